@@ -1,0 +1,159 @@
+/**
+ * RFC 9457 problem details: every API error leaves through here, with per-field messages in
+ * `errors` and never a stack trace.
+ */
+import { z } from 'zod';
+
+export interface FieldError {
+  /** Dotted path of the field at fault, e.g. `gate.widthMm`; `''` for the body as a whole. */
+  field: string;
+  message: string;
+}
+
+export interface ProblemBody {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  errors?: FieldError[];
+  [extension: string]: unknown;
+}
+
+const titles: Record<number, string> = {
+  400: 'Bad request',
+  401: 'Sign-in required',
+  403: 'Not allowed',
+  404: 'Not found',
+  405: 'Method not allowed',
+  409: 'Conflict',
+  413: 'Request too large',
+  415: 'Unsupported media type',
+  422: 'Invalid input',
+  428: 'Precondition required',
+  429: 'Too many requests',
+  500: 'Server error',
+  503: 'Service unavailable',
+};
+
+export function problem(
+  status: number,
+  detail?: string,
+  extra: Partial<ProblemBody> & Record<string, unknown> = {},
+  headers: HeadersInit = {},
+): Response {
+  const body: ProblemBody = {
+    type: `https://latchwell.invalid/problems/${status}`,
+    title: titles[status] ?? 'Error',
+    status,
+    ...(detail ? { detail } : {}),
+    ...extra,
+  };
+  return new Response(JSON.stringify(body), {
+    status,
+    headers: { 'content-type': 'application/problem+json', ...headers },
+  });
+}
+
+/** Thrown inside handlers to leave early with a problem response. */
+export class HttpProblem extends Error {
+  constructor(
+    readonly status: number,
+    detail: string,
+    readonly extra: Partial<ProblemBody> & Record<string, unknown> = {},
+  ) {
+    super(detail);
+  }
+  toResponse(): Response {
+    return problem(this.status, this.message, this.extra);
+  }
+}
+
+export function zodFieldErrors(error: z.ZodError): FieldError[] {
+  return error.issues.map((issue) => {
+    const field = issue.path.map(String).join('.');
+    if (issue.code === 'unrecognized_keys') {
+      return { field: [field, ...issue.keys].filter(Boolean).join('.'), message: `Unknown field: ${issue.keys.join(', ')}` };
+    }
+    return { field, message: issue.message };
+  });
+}
+
+export const maxJsonBodyBytes = 256 * 1024;
+
+/**
+ * Reads a JSON body and parses it with a zod schema. Refuses a wrong content type (415), an
+ * oversize body (413), malformed JSON (400) and invalid fields (422, each field named).
+ */
+export async function parseBody<S extends z.ZodType>(schema: S, request: Request, limit = maxJsonBodyBytes): Promise<z.infer<S>> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!/^application\/(merge-patch\+)?json\b/i.test(type)) {
+    throw new HttpProblem(415, 'Send the body as application/json.', { errors: [{ field: '', message: 'Content-Type must be application/json' }] });
+  }
+  const declared = Number(request.headers.get('content-length') ?? 0);
+  if (declared > limit) throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
+  const text = await readLimited(request, limit);
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch {
+    throw new HttpProblem(400, 'The body is not valid JSON.', { errors: [{ field: '', message: 'Malformed JSON' }] });
+  }
+  return parseValue(schema, json);
+}
+
+export function parseValue<S extends z.ZodType>(schema: S, value: unknown): z.infer<S> {
+  const result = schema.safeParse(value);
+  if (!result.success) {
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: zodFieldErrors(result.error) });
+  }
+  return result.data;
+}
+
+/** Parses URL search params (first value of each key) with a zod schema; 400 on failure. */
+export function parseQuery<S extends z.ZodType>(schema: S, url: URL): z.infer<S> {
+  const raw: Record<string, string> = {};
+  for (const [key, value] of url.searchParams) raw[key] ??= value;
+  const result = schema.safeParse(raw);
+  if (!result.success) throw new HttpProblem(400, 'Some query parameters are invalid.', { errors: zodFieldErrors(result.error) });
+  return result.data;
+}
+
+async function readLimited(request: Request, limit: number): Promise<string> {
+  if (!request.body) return '';
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > limit) {
+      await reader.cancel();
+      throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
+    }
+    chunks.push(value);
+  }
+  return Buffer.concat(chunks).toString('utf8');
+}
+
+/** Wraps an endpoint so thrown HttpProblems become responses and anything else a bare 500. */
+export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
+  return async (context: C): Promise<Response> => {
+    try {
+      return await fn(context);
+    } catch (error) {
+      if (error instanceof HttpProblem) return error.toResponse();
+      if (isDatabaseUnavailable(error)) return problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' });
+      console.error('[api] unhandled error', error);
+      return problem(500, 'Something went wrong on our side.');
+    }
+  };
+}
+
+/** Connection-level failures (server down, pool exhausted) rather than bad queries. */
+export function isDatabaseUnavailable(error: unknown): boolean {
+  const e = error as { code?: string; message?: string; name?: string } | null;
+  if (!e) return false;
+  if (e.code && ['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', '57P01', '57P02', '57P03', '08000', '08003', '08006'].includes(e.code)) return true;
+  return e.name === 'KnexTimeoutError' || /Connection terminated|ECONNREFUSED|connect ECONN/i.test(e.message ?? '');
+}

@@ -1,0 +1,69 @@
+/**
+ * Starts what the integration suite talks to: a mail catcher and the built server on free
+ * loopback ports, against the test database that `npm test` recreated and migrated.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import type { TestProject } from 'vitest/node';
+import { ensureDatabase, recreateTestDatabase } from '../../../db/launcher';
+import { startMailCatcher } from '../../../src/lib/server/mail/catcher';
+import { migrateLatest } from '../../../src/cli/migrate';
+import { publishRulesetFiles } from '../../../src/cli/publish-rulesets';
+import { ensureBuilt, freePort, startAppServer } from '../../../src/cli/services';
+
+declare module 'vitest' {
+  export interface ProvidedContext {
+    baseUrl: string;
+    catcherUrl: string;
+    smtpUrl: string;
+    databaseUrl: string;
+    adminDatabaseUrl: string;
+    dataDir: string;
+  }
+}
+
+export default async function setup(project: TestProject) {
+  let databaseUrl = process.env.TEST_DATABASE_URL;
+  let adminDatabaseUrl = process.env.TEST_ADMIN_DATABASE_URL;
+  if (!databaseUrl) {
+    // Run directly through vitest: do what `npm test` would have done.
+    const endpoints = await ensureDatabase();
+    await recreateTestDatabase(endpoints);
+    await migrateLatest(endpoints.testUrl);
+    await publishRulesetFiles(endpoints.testUrl);
+    databaseUrl = endpoints.testUrl;
+    adminDatabaseUrl = endpoints.adminUrl;
+  }
+  ensureBuilt();
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-test-'));
+  const [smtpPort, httpPort, port] = await Promise.all([freePort(), freePort(), freePort()]);
+  const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort });
+  const smtpUrl = `smtp://127.0.0.1:${smtpPort}`;
+  const catcherUrl = `http://127.0.0.1:${httpPort}`;
+  const server = await startAppServer({
+    port,
+    quiet: true,
+    env: {
+      DATABASE_URL: databaseUrl,
+      SMTP_URL: smtpUrl,
+      MAIL_CATCHER_URL: catcherUrl,
+      AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
+      AUTH_TRUST_HOST: 'true',
+      LATCHWELL_DATA_DIR: dataDir,
+      LATCHWELL_ENV: 'test',
+    },
+  });
+  project.provide('baseUrl', server.url);
+  project.provide('catcherUrl', catcherUrl);
+  project.provide('smtpUrl', smtpUrl);
+  project.provide('databaseUrl', databaseUrl);
+  project.provide('adminDatabaseUrl', adminDatabaseUrl ?? databaseUrl);
+  project.provide('dataDir', dataDir);
+
+  return async () => {
+    await server.stop();
+    await catcher.close();
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  };
+}
