@@ -1,0 +1,102 @@
+/**
+ * The append-only audit trail. Each event's hash covers the previous event's hash and the
+ * event's own fields (canonical JSON, SHA-256), so any later edit or deletion breaks the
+ * chain at that row. Write events inside the same transaction as the change they record.
+ */
+import { createHash } from 'node:crypto';
+import type { Knex } from 'knex';
+
+export const genesisHash = '0'.repeat(64);
+
+export interface AuditEventInput {
+  organisationId: string | null;
+  actorUserId?: string | null;
+  actorLabel?: string | null;
+  action: string;
+  entityType?: string | null;
+  entityId?: string | null;
+  ip?: string | null;
+  detail?: Record<string, unknown>;
+}
+
+interface StoredAuditFields {
+  organisation_id: string | null;
+  actor_user_id: string | null;
+  actor_label: string | null;
+  action: string;
+  entity_type: string | null;
+  entity_id: string | null;
+  ip: string | null;
+  detail: Record<string, unknown>;
+  created_at: string;
+}
+
+function canonical(value: unknown): string {
+  if (value === null || typeof value !== 'object') return JSON.stringify(value ?? null);
+  if (Array.isArray(value)) return `[${value.map(canonical).join(',')}]`;
+  const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+  return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`).join(',')}}`;
+}
+
+export function auditHash(prevHash: string, fields: StoredAuditFields): string {
+  return createHash('sha256').update(prevHash).update('\n').update(canonical(fields)).digest('hex');
+}
+
+/** Appends one event; serialised by a transaction-scoped advisory lock so the chain never forks. */
+export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput): Promise<void> {
+  await trx.raw('select pg_advisory_xact_lock(hashtext(?))', ['audit_events']);
+  const last = await trx('audit_events').orderBy('id', 'desc').first('hash');
+  const prevHash: string = last?.hash ?? genesisHash;
+  const createdAt = new Date().toISOString();
+  const fields: StoredAuditFields = {
+    organisation_id: event.organisationId,
+    actor_user_id: event.actorUserId ?? null,
+    actor_label: event.actorLabel ?? null,
+    action: event.action,
+    entity_type: event.entityType ?? null,
+    entity_id: event.entityId ?? null,
+    ip: event.ip ?? null,
+    detail: event.detail ?? {},
+    created_at: createdAt,
+  };
+  await trx('audit_events').insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash: auditHash(prevHash, fields) });
+}
+
+export interface ChainVerification {
+  ok: boolean;
+  checked: number;
+  /** The first row whose stored hash or link does not match, when the chain is broken. */
+  firstBrokenId: number | null;
+}
+
+/** Walks the whole chain in id order, streaming, and reports the first broken link. */
+export async function verifyAuditChain(knex: Knex): Promise<ChainVerification> {
+  let prev = genesisHash;
+  let checked = 0;
+  let lastId = 0;
+  for (;;) {
+    const rows = await knex('audit_events')
+      .where('id', '>', lastId)
+      .orderBy('id')
+      .limit(1000)
+      .select('id', 'organisation_id', 'actor_user_id', 'actor_label', 'action', 'entity_type', 'entity_id', knex.raw('host(ip) as ip'), 'detail', 'created_at', 'prev_hash', 'hash');
+    if (!rows.length) return { ok: true, checked, firstBrokenId: null };
+    for (const row of rows) {
+      const fields: StoredAuditFields = {
+        organisation_id: row.organisation_id,
+        actor_user_id: row.actor_user_id,
+        actor_label: row.actor_label,
+        action: row.action,
+        entity_type: row.entity_type,
+        entity_id: row.entity_id,
+        ip: row.ip,
+        detail: row.detail,
+        created_at: new Date(row.created_at).toISOString(),
+      };
+      if (row.prev_hash !== prev || auditHash(prev, fields) !== row.hash) return { ok: false, checked, firstBrokenId: Number(row.id) };
+      prev = row.hash;
+      checked++;
+      lastId = Number(row.id);
+    }
+  }
+}
