@@ -250,14 +250,46 @@ export function stopDatabase(): void {
   runAs(account, path.join(bin, 'pg_ctl'), ['stop', '-D', dirs.data, '-m', 'fast', '-w']);
 }
 
-/** Drop and create the test database so every `npm test` starts from nothing. */
-export async function recreateTestDatabase(endpoints: DatabaseEndpoints): Promise<void> {
-  const name = new URL(endpoints.testUrl).pathname.slice(1);
+/**
+ * Drop and create a test database so every `npm test` starts from nothing. Each run gets
+ * its own database (`latchwell_test_<pid>`) so parallel runs never drop each other's; the
+ * databases of runs whose process is gone are dropped on the way. Returns its URL.
+ */
+export async function recreateTestDatabase(endpoints: DatabaseEndpoints, runId = process.pid): Promise<string> {
+  const base = new URL(endpoints.testUrl);
+  const prefix = base.pathname.slice(1);
+  const name = `${prefix}_${runId}`;
+  const client = new pg.Client({ connectionString: endpoints.adminUrl });
+  await client.connect();
+  try {
+    const { rows } = await client.query<{ datname: string }>('select datname from pg_database where datname like $1', [`${prefix}\\_%`]);
+    for (const { datname } of rows) {
+      const pid = Number(datname.slice(prefix.length + 1));
+      if (!Number.isInteger(pid) || pid === runId) continue;
+      let alive = true;
+      try {
+        process.kill(pid, 0);
+      } catch {
+        alive = false;
+      }
+      if (!alive) await client.query(`drop database if exists "${datname}" with (force)`);
+    }
+    await client.query(`drop database if exists "${name}" with (force)`);
+    await client.query(`create database "${name}"`);
+  } finally {
+    await client.end();
+  }
+  base.pathname = `/${name}`;
+  return base.toString();
+}
+
+/** Drops a database made by recreateTestDatabase. */
+export async function dropDatabase(endpoints: DatabaseEndpoints, url: string): Promise<void> {
+  const name = new URL(url).pathname.slice(1);
   const client = new pg.Client({ connectionString: endpoints.adminUrl });
   await client.connect();
   try {
     await client.query(`drop database if exists "${name}" with (force)`);
-    await client.query(`create database "${name}"`);
   } finally {
     await client.end();
   }

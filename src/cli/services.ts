@@ -11,7 +11,8 @@ import { fileURLToPath } from 'node:url';
 
 export const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 export const dataDir = path.resolve(process.env.LATCHWELL_DATA_DIR ?? path.join(projectRoot, '.data'));
-const serverEntry = path.join(projectRoot, 'dist/server/entry.mjs');
+const distDir = path.join(projectRoot, 'dist');
+const serverEntry = path.join(distDir, 'server/entry.mjs');
 const buildInputs = ['src', 'public', 'astro.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json', 'knexfile.ts', 'auth.config.ts'];
 
 function newestMtime(target: string): number {
@@ -29,16 +30,57 @@ export function buildIsStale(): boolean {
   return buildInputs.some((p) => newestMtime(path.join(projectRoot, p)) > built);
 }
 
-/** Runs `astro build` when the build is missing or older than its sources. */
-export function ensureBuilt(log = console.log): void {
-  if (!buildIsStale()) return;
-  log('[build] building the app (sources changed or no build yet)…');
-  const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'build'], {
-    cwd: projectRoot,
-    stdio: process.env.LATCHWELL_QUIET === '1' ? 'pipe' : 'inherit',
-    encoding: 'utf8',
-  });
-  if (result.status !== 0) throw new Error(`astro build failed${result.stderr ? `:\n${result.stderr}` : ''}`);
+/**
+ * Runs `astro build` when the build is missing or older than its sources. Concurrent callers
+ * (several test runs on one machine) take turns through a lock folder.
+ */
+export async function ensureBuilt(log = console.log): Promise<void> {
+  const lock = path.join(dataDir, 'build.lock');
+  fs.mkdirSync(dataDir, { recursive: true });
+  const deadline = Date.now() + 5 * 60_000;
+  for (;;) {
+    try {
+      fs.mkdirSync(lock);
+      fs.writeFileSync(path.join(lock, 'pid'), String(process.pid));
+      break;
+    } catch {
+      const holder = Number(fs.readFileSync(path.join(lock, 'pid'), { encoding: 'utf8', flag: 'a+' }) || 0);
+      let alive = false;
+      try {
+        if (holder) process.kill(holder, 0);
+        alive = holder > 0;
+      } catch {
+        alive = false;
+      }
+      if (!alive) fs.rmSync(lock, { recursive: true, force: true });
+      else if (Date.now() > deadline) throw new Error('timed out waiting for another build to finish');
+      else await new Promise((r) => setTimeout(r, 500));
+    }
+  }
+  try {
+    if (!buildIsStale()) return;
+    log('[build] building the app (sources changed or no build yet)…');
+    const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'build'], {
+      cwd: projectRoot,
+      stdio: process.env.LATCHWELL_QUIET === '1' ? 'pipe' : 'inherit',
+      encoding: 'utf8',
+    });
+    if (result.status !== 0) throw new Error(`astro build failed${result.stderr ? `:\n${result.stderr}` : ''}`);
+  } finally {
+    fs.rmSync(lock, { recursive: true, force: true });
+  }
+}
+
+/**
+ * Copies the current build to `target` so a test run keeps serving the build it started with
+ * while another run rebuilds dist/. Packages still resolve from the project's node_modules.
+ */
+export async function snapshotBuild(target: string): Promise<string> {
+  await ensureBuilt();
+  fs.rmSync(target, { recursive: true, force: true });
+  fs.mkdirSync(path.dirname(target), { recursive: true });
+  fs.cpSync(distDir, target, { recursive: true });
+  return path.join(target, 'server/entry.mjs');
 }
 
 /** A port on 127.0.0.1 nobody listens on right now. */
@@ -72,9 +114,9 @@ export interface RunningServer {
 }
 
 /** Starts the built server and resolves once /api/health answers (any status). */
-export async function startAppServer(options: { port: number; host?: string; env: Record<string, string>; quiet?: boolean }): Promise<RunningServer> {
+export async function startAppServer(options: { port: number; host?: string; env: Record<string, string>; quiet?: boolean; entry?: string }): Promise<RunningServer> {
   const host = options.host ?? '127.0.0.1';
-  const child = spawn(process.execPath, [serverEntry], {
+  const child = spawn(process.execPath, [options.entry ?? process.env.LATCHWELL_SERVER_ENTRY ?? serverEntry], {
     cwd: projectRoot,
     env: { ...process.env, ...options.env, HOST: host, PORT: String(options.port) },
     stdio: options.quiet ? ['ignore', 'ignore', 'pipe'] : ['ignore', 'inherit', 'inherit'],

@@ -22,7 +22,7 @@ if (applied.length) console.log(`[db] applied ${applied.length} migration(s)`);
 const published = await publishRulesetFiles(db.appUrl);
 if (published.length) console.log(`[rulesets] published ${published.join(', ')}`);
 if (await seedIfEmpty(db.appUrl)) console.log('[db] seeded the demo scenario');
-ensureBuilt();
+await ensureBuilt();
 
 let catcher: RunningCatcher | undefined;
 const externalSmtp = Boolean(process.env.SMTP_URL);

@@ -1,16 +1,18 @@
 /**
- * `npm test`: ensure the private database, recreate the test database, migrate it, publish
- * the shipped rulesets into it, build when stale, then run every vitest project (unit,
- * integration, e2e). Exits non-zero on any failure.
+ * `npm test`: ensure the private database, create this run's own test database, migrate it,
+ * publish the shipped rulesets into it, build when stale and snapshot the build, then run
+ * every vitest project (unit, integration, e2e). Exits non-zero on any failure. Several runs
+ * on one machine do not disturb each other: each has its own database and build snapshot.
  *
  * `--only <project>` runs one project; anything after `--` goes to vitest.
  */
 import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
 import path from 'node:path';
-import { ensureDatabase, recreateTestDatabase } from '../../db/launcher';
+import { dropDatabase, ensureDatabase, recreateTestDatabase } from '../../db/launcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
-import { ensureBuilt, projectRoot } from './services';
+import { dataDir, projectRoot, snapshotBuild } from './services';
 
 const args = process.argv.slice(2);
 const onlyIndex = args.indexOf('--only');
@@ -18,15 +20,27 @@ const only = onlyIndex >= 0 ? args[onlyIndex + 1] : undefined;
 const passthrough = args.includes('--') ? args.slice(args.indexOf('--') + 1) : [];
 
 const db = await ensureDatabase();
-await recreateTestDatabase(db);
-await migrateLatest(db.testUrl);
-await publishRulesetFiles(db.testUrl);
-if (only !== 'unit') ensureBuilt();
-
-const vitestArgs = ['run', ...(only ? ['--project', only] : []), ...passthrough];
-const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), ...vitestArgs], {
-  cwd: projectRoot,
-  stdio: 'inherit',
-  env: { ...process.env, TEST_DATABASE_URL: db.testUrl, TEST_ADMIN_DATABASE_URL: db.adminUrl },
-});
-process.exit(result.status ?? 1);
+const testUrl = await recreateTestDatabase(db);
+const snapshotDir = path.join(dataDir, 'test-builds', String(process.pid));
+let status = 1;
+try {
+  await migrateLatest(testUrl);
+  await publishRulesetFiles(testUrl);
+  const entry = only === 'unit' ? undefined : await snapshotBuild(snapshotDir);
+  const vitestArgs = ['run', ...(only ? ['--project', only] : []), ...passthrough];
+  const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), ...vitestArgs], {
+    cwd: projectRoot,
+    stdio: 'inherit',
+    env: {
+      ...process.env,
+      TEST_DATABASE_URL: testUrl,
+      TEST_ADMIN_DATABASE_URL: db.adminUrl,
+      ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
+    },
+  });
+  status = result.status ?? 1;
+} finally {
+  fs.rmSync(snapshotDir, { recursive: true, force: true });
+  await dropDatabase(db, testUrl).catch(() => {});
+}
+process.exit(status);

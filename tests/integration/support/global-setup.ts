@@ -29,13 +29,12 @@ export default async function setup(project: TestProject) {
   if (!databaseUrl) {
     // Run directly through vitest: do what `npm test` would have done.
     const endpoints = await ensureDatabase();
-    await recreateTestDatabase(endpoints);
-    await migrateLatest(endpoints.testUrl);
-    await publishRulesetFiles(endpoints.testUrl);
-    databaseUrl = endpoints.testUrl;
+    databaseUrl = await recreateTestDatabase(endpoints);
+    await migrateLatest(databaseUrl);
+    await publishRulesetFiles(databaseUrl);
     adminDatabaseUrl = endpoints.adminUrl;
   }
-  ensureBuilt();
+  if (!process.env.LATCHWELL_SERVER_ENTRY) await ensureBuilt();
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-test-'));
   const [smtpPort, httpPort, port] = await Promise.all([freePort(), freePort(), freePort()]);
   const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort });
