@@ -1,0 +1,91 @@
+/**
+ * Submitting a draft: in one transaction, lock the draft, build the engine input from the gate
+ * as it stands, its site and the draft's documents, score it with the pinned ruleset version,
+ * and store the result, its SHA-256, the verdict and a snapshot of the gate, with an audit
+ * event. The stored result is what the report renders from, forever.
+ */
+import type { Assessment } from '@/lib/api/assessments';
+import type { Gate } from '@/lib/api/gates';
+import { AssessmentInputError } from '@/lib/rules/input-check';
+import { resultSha256 } from '@/lib/rules/hash';
+import { scoreParsed } from '@/lib/rules/engine';
+import type { RulesetVersion } from '@/lib/rules/ruleset-schema';
+import { buildEngineInput } from './assessment-input';
+import { assertEditable, getAssessment, type RequestFacts } from './assessments';
+import { recordAudit } from './audit';
+import { db } from './db';
+import { getGate } from './gates';
+import { HttpProblem } from './http/problem';
+import type { SessionUser } from './session-user';
+
+/** Engine input paths as the API names them (answers and choices are both `answers` here). */
+function apiField(path: string): string {
+  if (path.startsWith('choices.')) return `answers.${path.slice('choices.'.length)}`;
+  if (path.startsWith('site.')) return `observations.${path}`;
+  return path;
+}
+
+export async function submitAssessment(viewer: SessionUser, id: string, expectedVersion: number | undefined, request: RequestFacts): Promise<Assessment | null> {
+  return db().transaction(async (trx) => {
+    const locked = await trx('assessments').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
+    if (!locked) return null;
+    const current = await getAssessment(viewer, id, trx);
+    if (!current) return null;
+    assertEditable(viewer, current, expectedVersion);
+
+    const gate = (await getGate(viewer, current.gate.id, trx)) as Gate;
+    await trx('gates').where({ id: gate.id }).forShare().first('id');
+    const site = await trx('sites').where({ id: gate.siteId }).first<{ usage_class: number; address_line1: string; city: string; name: string | null }>('usage_class', 'address_line1', 'city', 'name');
+    const pinned = await trx('ruleset_versions').where({ id: current.ruleset.versionId }).first<{ content: RulesetVersion; content_sha256: string }>('content', 'content_sha256');
+    const { content, content_sha256: contentSha256 } = pinned as { content: RulesetVersion; content_sha256: string };
+
+    const built = buildEngineInput({ ...gate, usageClass: site?.usage_class ?? 0 }, current, content.questions);
+    if (!built.ok) throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: built.errors });
+    let result;
+    try {
+      result = scoreParsed(built.value, { version: content, contentSha256 });
+    } catch (error) {
+      if (error instanceof AssessmentInputError) {
+        throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: error.issues.map((i) => ({ field: apiField(i.path), message: i.message })) });
+      }
+      throw error;
+    }
+    const sha256 = resultSha256(result);
+    const gateSnapshot = {
+      ...gate,
+      site: { id: gate.siteId, name: site?.name ?? null, addressLine1: site?.address_line1, city: site?.city, usageClass: site?.usage_class },
+      client: current.client,
+    };
+    await trx('assessments')
+      .where({ id, row_version: current.rowVersion, status: 'draft' })
+      .update({
+        status: 'scored',
+        result: JSON.stringify(result),
+        result_sha256: sha256,
+        verdict: result.verdict,
+        gate_snapshot: JSON.stringify(gateSnapshot),
+        submitted_at: trx.fn.now(),
+        row_version: current.rowVersion + 1,
+        updated_at: trx.fn.now(),
+      });
+    await recordAudit(trx, {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      action: 'assessment.submitted',
+      entityType: 'assessment',
+      entityId: id,
+      ip: request.ip,
+      detail: {
+        verdict: result.verdict,
+        resultSha256: sha256,
+        inputSha256: result.inputSha256,
+        family: current.ruleset.family,
+        version: current.ruleset.version,
+        rulesetVersionId: current.ruleset.versionId,
+        complete: result.complete,
+      },
+    });
+    return getAssessment(viewer, id, trx);
+  });
+}

@@ -1,0 +1,323 @@
+/**
+ * Assessments: drafts pinned to a published ruleset version, saved with a row version, and
+ * submitted for scoring. The one module holding their SQL. Staff see the organisation's
+ * assessments; a homeowner sees only those of their own client that were sent for signature.
+ */
+import type { Knex } from 'knex';
+import type {
+  Assessment,
+  AssessmentCreate,
+  AssessmentListQuery,
+  AssessmentPatch,
+  AssessmentSummary,
+} from '@/lib/api/assessments';
+import type { Page } from '@/lib/api/common';
+import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
+import { mergeDocuments, type AssessmentDocuments } from './assessment-input';
+import { recordAudit } from './audit';
+import { db } from './db';
+import { HttpProblem } from './http/problem';
+import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from './listing';
+import type { SessionUser } from './session-user';
+
+/** Statuses a homeowner may see: the report has been sent to them. */
+const HOMEOWNER_VISIBLE = ['awaiting_signature', 'signed', 'superseded'] as const;
+
+interface SummaryRow {
+  id: string;
+  status: Assessment['status'];
+  purpose: Assessment['purpose'];
+  verdict: Assessment['verdict'];
+  row_version: number;
+  gate_id: string;
+  gate_label: string;
+  gate_kind: string;
+  site_id: string;
+  site_name: string | null;
+  site_address_line1: string;
+  site_city: string;
+  site_usage_class: number;
+  client_id: string;
+  client_name: string;
+  auditor_id: string;
+  auditor_name: string;
+  ruleset_version_id: string;
+  ruleset_family: string;
+  ruleset_version: string;
+  ruleset_title: string;
+  visited_on: Date | null;
+  submitted_at: Date | null;
+  signed_at: Date | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+interface FullRow extends SummaryRow {
+  answers: Assessment['answers'];
+  measurements: Assessment['measurements'];
+  observations: Assessment['observations'];
+  gate_snapshot: unknown;
+  result: unknown;
+  result_sha256: string | null;
+}
+
+const summaryColumns = [
+  'a.id',
+  'a.status',
+  'a.purpose',
+  'a.verdict',
+  'a.row_version',
+  'a.gate_id',
+  'g.label as gate_label',
+  'g.kind as gate_kind',
+  's.id as site_id',
+  's.name as site_name',
+  's.address_line1 as site_address_line1',
+  's.city as site_city',
+  's.usage_class as site_usage_class',
+  'c.id as client_id',
+  'c.name as client_name',
+  'a.auditor_id',
+  'u.name as auditor_name',
+  'a.ruleset_version_id',
+  'r.family as ruleset_family',
+  'rv.version as ruleset_version',
+  'r.title as ruleset_title',
+  'a.visited_on',
+  'a.submitted_at',
+  'a.signed_at',
+  'a.created_at',
+  'a.updated_at',
+] as const;
+
+const fullColumns = [...summaryColumns, 'a.answers', 'a.measurements', 'a.observations', 'a.gate_snapshot', 'a.result', 'a.result_sha256'] as const;
+
+const sortColumns: Record<AssessmentListQuery['sort']['field'], string> = {
+  visitedOn: 'a.visited_on',
+  createdAt: 'a.created_at',
+  updatedAt: 'a.updated_at',
+  submittedAt: 'a.submitted_at',
+};
+
+const isoOrNull = (value: Date | null) => (value ? iso(value) : null);
+
+function toSummary(row: SummaryRow): AssessmentSummary {
+  return {
+    id: row.id,
+    status: row.status,
+    purpose: row.purpose,
+    verdict: row.verdict,
+    rowVersion: row.row_version,
+    gate: { id: row.gate_id, label: row.gate_label, kind: row.gate_kind },
+    site: { id: row.site_id, name: row.site_name, addressLine1: row.site_address_line1, city: row.site_city, usageClass: row.site_usage_class },
+    client: { id: row.client_id, name: row.client_name },
+    auditor: { id: row.auditor_id, name: row.auditor_name },
+    ruleset: { versionId: row.ruleset_version_id, family: row.ruleset_family, version: row.ruleset_version, title: row.ruleset_title },
+    visitedOn: isoOrNull(row.visited_on),
+    submittedAt: isoOrNull(row.submitted_at),
+    signedAt: isoOrNull(row.signed_at),
+    createdAt: iso(row.created_at),
+    updatedAt: iso(row.updated_at),
+  };
+}
+
+function toAssessment(row: FullRow): Assessment {
+  return {
+    ...toSummary(row),
+    answers: row.answers ?? {},
+    measurements: row.measurements ?? {},
+    observations: row.observations ?? {},
+    gateSnapshot: row.gate_snapshot,
+    result: row.result,
+    resultSha256: row.result_sha256,
+  };
+}
+
+/** The assessments a viewer may see, joined to what the list shows about each. */
+function visibleAssessments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
+  const query = knex('assessments as a')
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .join('users as u', 'u.id', 'a.auditor_id')
+    .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where('a.organisation_id', viewer.organisationId);
+  if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId).whereIn('a.status', HOMEOWNER_VISIBLE);
+  return query;
+}
+
+export async function listAssessments(viewer: SessionUser, timeZone: string, query: AssessmentListQuery): Promise<Page<AssessmentSummary>> {
+  const base = visibleAssessments(db(), viewer);
+  if (query.status) base.andWhere('a.status', query.status);
+  if (query.verdict) base.andWhere('a.verdict', query.verdict);
+  if (query.purpose) base.andWhere('a.purpose', query.purpose);
+  if (query.gateKind) base.andWhere('g.kind', query.gateKind);
+  if (query.auditorId) base.andWhere('a.auditor_id', query.auditorId);
+  if (query.gateId) base.andWhere('a.gate_id', query.gateId);
+  if (query.siteId) base.andWhere('g.site_id', query.siteId);
+  if (query.clientId) base.andWhere('s.client_id', query.clientId);
+  // Dates are days in the organisation's time zone: from its midnight to the next one after `to`.
+  if (query.from) base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
+  if (query.to) base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
+  return fetchPage<SummaryRow, AssessmentSummary>(
+    { base, columns: summaryColumns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'a.id', map: toSummary },
+    query,
+  );
+}
+
+export async function getAssessment(viewer: SessionUser, id: string, knex: Knex = db()): Promise<Assessment | null> {
+  const row = await visibleAssessments(knex, viewer).andWhere('a.id', id).first<FullRow | undefined>(fullColumns);
+  return row ? toAssessment(row) : null;
+}
+
+function invalid(field: string, message: string): HttpProblem {
+  return new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field, message }] });
+}
+
+/** The family's current version for this organisation: its own family of that name first, else the shipped one; the latest published. */
+async function currentPublishedVersion(knex: Knex, organisationId: string, family: string): Promise<{ id: string; version: string } | undefined> {
+  return knex('ruleset_versions as rv')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where('r.family', family)
+    .andWhere((w) => w.where('r.organisation_id', organisationId).orWhereNull('r.organisation_id'))
+    .andWhere('rv.status', 'published')
+    .orderByRaw('r.organisation_id is null, rv.published_at desc, rv.created_at desc')
+    .first('rv.id', 'rv.version');
+}
+
+/** Whose draft it is: an auditor starts their own; owner / office may name a member of staff. */
+async function resolveAuditor(knex: Knex, viewer: SessionUser, auditorId: string | undefined): Promise<string> {
+  if (auditorId === undefined || auditorId === viewer.id) return viewer.id;
+  if (viewer.role === 'auditor') throw new HttpProblem(403, 'An auditor starts assessments for themself only.');
+  const person = await knex('users')
+    .where({ id: auditorId, organisation_id: viewer.organisationId, active: true })
+    .whereIn('role', ['owner', 'office', 'auditor'])
+    .first('id');
+  if (!person) throw invalid('auditorId', 'no active member of staff with this id in the organisation');
+  return auditorId;
+}
+
+export interface RequestFacts {
+  ip: string | null;
+}
+
+/** Starts a draft pinned to the family's current published version; audited. */
+export async function createAssessment(viewer: SessionUser, input: AssessmentCreate, request: RequestFacts): Promise<Assessment> {
+  return db().transaction(async (trx) => {
+    const gate = await trx('gates').where({ id: input.gateId, organisation_id: viewer.organisationId }).forShare().first('id');
+    if (!gate) throw invalid('gateId', 'no such gate in this organisation');
+    const auditorId = await resolveAuditor(trx, viewer, input.auditorId);
+    const version = await currentPublishedVersion(trx, viewer.organisationId, input.family);
+    if (!version) throw invalid('family', `no published version of the ruleset family "${input.family}"`);
+    const [{ id }] = await trx('assessments')
+      .insert({
+        organisation_id: viewer.organisationId,
+        gate_id: input.gateId,
+        ruleset_version_id: version.id,
+        auditor_id: auditorId,
+        purpose: input.purpose,
+        visited_on: input.visitedOn ?? trx.fn.now(),
+      })
+      .returning<{ id: string }[]>('id');
+    await recordAudit(trx, {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      action: 'assessment.created',
+      entityType: 'assessment',
+      entityId: id,
+      ip: request.ip,
+      detail: { gateId: input.gateId, family: input.family, version: version.version, rulesetVersionId: version.id, purpose: input.purpose, auditorId },
+    });
+    return (await getAssessment(viewer, id as string, trx)) as Assessment;
+  });
+}
+
+/** The checks every change to a draft makes, in the order a person would want to hear them. */
+export function assertEditable(viewer: SessionUser, current: Assessment, expectedVersion: number | undefined): void {
+  if (viewer.role === 'auditor' && current.auditor.id !== viewer.id) {
+    throw new HttpProblem(403, "This is another auditor's assessment; only they or the office may change it.");
+  }
+  if (current.status !== 'draft') {
+    throw new HttpProblem(409, `This assessment is ${current.status.replace('_', ' ')} and can no longer be changed.`, { current });
+  }
+  if (expectedVersion !== undefined && current.rowVersion !== expectedVersion) throw staleProblem(current, expectedVersion);
+}
+
+/** 409 for a change made against an older row version; carries the current state to merge with. */
+function staleProblem(current: Assessment, expectedVersion: number): HttpProblem {
+  return new HttpProblem(
+    409,
+    `Someone saved this assessment after you read it (you sent version ${expectedVersion}; it is now at ${current.rowVersion}). Apply your change to the current state and send it again.`,
+    { current },
+  );
+}
+
+async function pinnedQuestions(knex: Knex, rulesetVersionId: string): Promise<RulesetQuestion[]> {
+  const row = await knex('ruleset_versions').where({ id: rulesetVersionId }).first<{ questions: RulesetQuestion[] | null }>(knex.raw("content -> 'questions' as questions"));
+  return row?.questions ?? [];
+}
+
+/**
+ * Saves a merge patch to a draft, but only over the row version the client read: the update
+ * is one `UPDATE … WHERE id = ? AND row_version = ?`, so of two saves made from the same
+ * version exactly one wins and the other gets 409 with the current state.
+ */
+export async function patchAssessment(viewer: SessionUser, id: string, expectedVersion: number, patch: AssessmentPatch): Promise<Assessment | null> {
+  const knex = db();
+  const current = await getAssessment(viewer, id, knex);
+  if (!current) return null;
+  assertEditable(viewer, current, expectedVersion);
+  const merged = mergeDocuments(
+    { answers: current.answers, measurements: current.measurements, observations: current.observations } satisfies AssessmentDocuments,
+    patch,
+    await pinnedQuestions(knex, current.ruleset.versionId),
+  );
+  if (!merged.ok) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: merged.errors });
+  const changes: Record<string, unknown> = {
+    answers: JSON.stringify(merged.value.answers),
+    measurements: JSON.stringify(merged.value.measurements),
+    observations: JSON.stringify(merged.value.observations),
+    row_version: knex.raw('row_version + 1'),
+    updated_at: knex.fn.now(),
+  };
+  if (patch.purpose !== undefined) changes.purpose = patch.purpose;
+  if (patch.visitedOn !== undefined) changes.visited_on = patch.visitedOn;
+  const updated = await knex('assessments')
+    .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' })
+    .update(changes);
+  if (updated === 0) {
+    const now = await getAssessment(viewer, id, knex);
+    if (!now) return null;
+    assertEditable(viewer, now, expectedVersion);
+    throw staleProblem(now, expectedVersion);
+  }
+  return getAssessment(viewer, id, knex);
+}
+
+/** Discards a draft (and only a draft); audited. */
+export async function discardAssessment(viewer: SessionUser, id: string, request: RequestFacts): Promise<boolean> {
+  return db().transaction(async (trx) => {
+    const current = await getAssessment(viewer, id, trx);
+    if (!current) return false;
+    assertEditable(viewer, current, undefined);
+    try {
+      await trx('assessments').where({ id, organisation_id: viewer.organisationId, status: 'draft' }).delete();
+    } catch (error) {
+      if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION) throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
+      throw error;
+    }
+    await recordAudit(trx, {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      action: 'assessment.discarded',
+      entityType: 'assessment',
+      entityId: id,
+      ip: request.ip,
+      detail: { gateId: current.gate.id, rowVersion: current.rowVersion },
+    });
+    return true;
+  });
+}

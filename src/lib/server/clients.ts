@@ -1,0 +1,117 @@
+/**
+ * Clients of the contracting organisation: the one module that holds their SQL. Every query
+ * is scoped to the viewer's organisation; a homeowner sees only the client they belong to.
+ */
+import type { Knex } from 'knex';
+import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/api/clients';
+import type { Page } from '@/lib/api/common';
+import { db } from './db';
+import { HttpProblem } from './http/problem';
+import { containsPattern, fetchPage, iso } from './listing';
+import type { SessionUser } from './session-user';
+
+interface ClientRow {
+  id: string;
+  name: string;
+  kind: Client['kind'];
+  contact_email: string | null;
+  phone: string | null;
+  notes: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+const columns = ['c.id', 'c.name', 'c.kind', 'c.contact_email', 'c.phone', 'c.notes', 'c.created_at', 'c.updated_at'] as const;
+
+const returnedColumns = columns.map((c) => c.slice('c.'.length));
+
+const sortColumns: Record<ClientListQuery['sort']['field'], string> = { name: 'c.name', createdAt: 'c.created_at', updatedAt: 'c.updated_at' };
+
+function toClient(row: ClientRow): Client {
+  return {
+    id: row.id,
+    name: row.name,
+    kind: row.kind,
+    contactEmail: row.contact_email,
+    phone: row.phone ?? null,
+    notes: row.notes,
+    createdAt: iso(row.created_at),
+    updatedAt: iso(row.updated_at),
+  };
+}
+
+function toRow(input: ClientCreate | ClientPatch): Partial<Omit<ClientRow, 'id' | 'created_at' | 'updated_at'>> {
+  const row: Partial<Omit<ClientRow, 'id' | 'created_at' | 'updated_at'>> = {};
+  if (input.name !== undefined) row.name = input.name;
+  if (input.kind !== undefined) row.kind = input.kind;
+  if (input.contactEmail !== undefined) row.contact_email = input.contactEmail;
+  if (input.phone !== undefined) row.phone = input.phone;
+  if (input.notes !== undefined) row.notes = input.notes;
+  return row;
+}
+
+/** The clients a viewer may see. */
+function visibleClients(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
+  const query = knex('clients as c').where('c.organisation_id', viewer.organisationId);
+  if (viewer.role === 'homeowner') query.andWhere('c.id', viewer.clientId);
+  return query;
+}
+
+export async function listClients(viewer: SessionUser, query: ClientListQuery): Promise<Page<Client>> {
+  const base = visibleClients(db(), viewer);
+  if (query.kind) base.andWhere('c.kind', query.kind);
+  if (query.q) {
+    const pattern = containsPattern(query.q);
+    base.andWhere((w) => w.whereILike('c.name', pattern).orWhereILike('c.contact_email', pattern).orWhereILike('c.phone', pattern));
+  }
+  return fetchPage<ClientRow, Client>(
+    { base, columns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'c.id', map: toClient },
+    query,
+  );
+}
+
+export async function getClient(viewer: SessionUser, id: string, knex: Knex = db()): Promise<Client | null> {
+  const row = await visibleClients(knex, viewer).andWhere('c.id', id).first<ClientRow | undefined>(columns);
+  return row ? toClient(row) : null;
+}
+
+export async function createClient(viewer: SessionUser, input: ClientCreate): Promise<Client> {
+  const [row] = await db()('clients')
+    .insert({ ...toRow(input), organisation_id: viewer.organisationId })
+    .returning<ClientRow[]>(returnedColumns);
+  return toClient(row as ClientRow);
+}
+
+export async function updateClient(viewer: SessionUser, id: string, patch: ClientPatch): Promise<Client | null> {
+  const [row] = await db()('clients')
+    .where({ id, organisation_id: viewer.organisationId })
+    .update({ ...toRow(patch), updated_at: db().fn.now() })
+    .returning<ClientRow[]>(returnedColumns);
+  return row ? toClient(row) : null;
+}
+
+/**
+ * Deletes a client with its sites and gates, in one transaction. Refused (409) while any of
+ * its gates has an assessment on record, or while a homeowner account belongs to it.
+ */
+export async function deleteClient(viewer: SessionUser, id: string): Promise<boolean> {
+  return db().transaction(async (trx) => {
+    const client = await visibleClients(trx, viewer).andWhere('c.id', id).forUpdate().first('c.id');
+    if (!client) return false;
+    const siteIds = trx('sites').select('id').where({ organisation_id: viewer.organisationId, client_id: id });
+    const gateIds = trx('gates').select('id').whereIn('site_id', siteIds);
+    await trx('gates').whereIn('id', gateIds.clone()).forUpdate().select('id');
+    const [{ count: assessments }] = await trx('assessments').whereIn('gate_id', gateIds.clone()).count<{ count: string }[]>({ count: '*' });
+    if (Number(assessments) > 0) {
+      throw new HttpProblem(409, `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`);
+    }
+    const [{ count: accounts }] = await trx('users').where({ organisation_id: viewer.organisationId, client_id: id }).count<{ count: string }[]>({ count: '*' });
+    if (Number(accounts) > 0) {
+      throw new HttpProblem(409, `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`);
+    }
+    await trx('gates').whereIn('id', gateIds).delete();
+    await trx('sites').where({ organisation_id: viewer.organisationId, client_id: id }).delete();
+    await trx('clients').where({ organisation_id: viewer.organisationId, id }).delete();
+    return true;
+  });
+}

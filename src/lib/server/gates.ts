@@ -1,0 +1,179 @@
+/**
+ * Gates: what stands at a site. Dimensions are stored in mm / kg with what was entered kept
+ * beside them (`entered`), and operator facts as a small JSON document. A homeowner sees only
+ * the gates at their own client's sites.
+ */
+import type { Knex } from 'knex';
+import type { Page } from '@/lib/api/common';
+import type { EnteredValue, Gate, GateCreate, GateListQuery, GatePatch, OperatorFacts } from '@/lib/api/gates';
+import { db } from './db';
+import { HttpProblem } from './http/problem';
+import { containsPattern, fetchPage, iso } from './listing';
+import type { SessionUser } from './session-user';
+
+interface GateRow {
+  id: string;
+  site_id: string;
+  client_id: string;
+  label: string;
+  kind: Gate['kind'];
+  leaves: Gate['leaves'];
+  opening_direction: Gate['openingDirection'];
+  width_mm: number | null;
+  height_mm: number | null;
+  weight_kg: number | null;
+  entered: Gate['entered'];
+  operator: OperatorFacts;
+  installed_on: string | null;
+  next_inspection_due: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+const columns = (knex: Knex) => [
+  'g.id',
+  'g.site_id',
+  's.client_id',
+  'g.label',
+  'g.kind',
+  'g.leaves',
+  'g.opening_direction',
+  'g.width_mm',
+  'g.height_mm',
+  'g.weight_kg',
+  'g.entered',
+  'g.operator',
+  // Dates as text: a JS Date would shift them by the server's time zone.
+  knex.raw('g.installed_on::text as installed_on'),
+  knex.raw('g.next_inspection_due::text as next_inspection_due'),
+  'g.created_at',
+  'g.updated_at',
+];
+
+const sortColumns: Record<GateListQuery['sort']['field'], string> = {
+  label: 'g.label',
+  nextInspectionDue: 'g.next_inspection_due',
+  createdAt: 'g.created_at',
+  updatedAt: 'g.updated_at',
+};
+
+function toGate(row: GateRow): Gate {
+  return {
+    id: row.id,
+    siteId: row.site_id,
+    clientId: row.client_id,
+    label: row.label,
+    kind: row.kind,
+    leaves: row.leaves,
+    openingDirection: row.opening_direction,
+    widthMm: row.width_mm,
+    heightMm: row.height_mm,
+    weightKg: row.weight_kg,
+    entered: row.entered ?? {},
+    operator: row.operator ?? {},
+    installedOn: row.installed_on,
+    nextInspectionDue: row.next_inspection_due,
+    createdAt: iso(row.created_at),
+    updatedAt: iso(row.updated_at),
+  };
+}
+
+const dimensionColumn = { width: 'width_mm', height: 'height_mm', weight: 'weight_kg' } as const;
+
+/** Columns to write for a create or a patch; `entered` is merged with what the row held. */
+function toRow(input: GateCreate | GatePatch, previousEntered: Gate['entered'] = {}): Record<string, unknown> {
+  const row: Record<string, unknown> = {};
+  if (input.siteId !== undefined) row.site_id = input.siteId;
+  if (input.label !== undefined) row.label = input.label;
+  if (input.kind !== undefined) row.kind = input.kind;
+  if (input.leaves !== undefined) row.leaves = input.leaves;
+  if (input.openingDirection !== undefined) row.opening_direction = input.openingDirection;
+  if (input.installedOn !== undefined) row.installed_on = input.installedOn;
+  if (input.nextInspectionDue !== undefined) row.next_inspection_due = input.nextInspectionDue;
+  if (input.operator !== undefined) row.operator = JSON.stringify(withoutUndefined(input.operator));
+  const entered: Partial<Record<keyof typeof dimensionColumn, EnteredValue>> = { ...previousEntered };
+  let enteredChanged = false;
+  for (const dimension of ['width', 'height', 'weight'] as const) {
+    const value = input.dimensions[dimension];
+    if (value === undefined) continue;
+    enteredChanged = true;
+    row[dimensionColumn[dimension]] = value?.stored ?? null;
+    if (value) entered[dimension] = value.entered;
+    else delete entered[dimension];
+  }
+  if (enteredChanged) row.entered = JSON.stringify(entered);
+  return row;
+}
+
+function withoutUndefined<T extends object>(value: T): T {
+  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined)) as T;
+}
+
+/** The gates a viewer may see, joined to their site (for the client). */
+function visibleGates(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
+  const query = knex('gates as g')
+    .join('sites as s', 's.id', 'g.site_id')
+    .where('g.organisation_id', viewer.organisationId);
+  if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId);
+  return query;
+}
+
+export async function listGates(viewer: SessionUser, query: GateListQuery): Promise<Page<Gate>> {
+  const knex = db();
+  const base = visibleGates(knex, viewer);
+  if (query.siteId) base.andWhere('g.site_id', query.siteId);
+  if (query.clientId) base.andWhere('s.client_id', query.clientId);
+  if (query.kind) base.andWhere('g.kind', query.kind);
+  if (query.dueBy) base.andWhere('g.next_inspection_due', '<=', query.dueBy);
+  if (query.q) base.andWhereILike('g.label', containsPattern(query.q));
+  return fetchPage<GateRow, Gate>(
+    { base, columns: columns(knex), order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'g.id', map: toGate },
+    query,
+  );
+}
+
+export async function getGate(viewer: SessionUser, id: string, knex: Knex = db()): Promise<Gate | null> {
+  const row = await visibleGates(knex, viewer).andWhere('g.id', id).first<GateRow | undefined>(columns(knex));
+  return row ? toGate(row) : null;
+}
+
+async function assertSiteInOrganisation(knex: Knex, viewer: SessionUser, siteId: string): Promise<void> {
+  const site = await knex('sites').where({ id: siteId, organisation_id: viewer.organisationId }).forShare().first('id');
+  if (!site) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'siteId', message: 'no such site in this organisation' }] });
+}
+
+export async function createGate(viewer: SessionUser, input: GateCreate): Promise<Gate> {
+  return db().transaction(async (trx) => {
+    await assertSiteInOrganisation(trx, viewer, input.siteId);
+    const [{ id }] = await trx('gates')
+      .insert({ operator: '{}', ...toRow(input), organisation_id: viewer.organisationId })
+      .returning<{ id: string }[]>('id');
+    return (await getGate(viewer, id as string, trx)) as Gate;
+  });
+}
+
+export async function updateGate(viewer: SessionUser, id: string, patch: GatePatch): Promise<Gate | null> {
+  return db().transaction(async (trx) => {
+    const current = await trx('gates').where({ id, organisation_id: viewer.organisationId }).forUpdate().first<{ entered: Gate['entered'] } | undefined>('entered');
+    if (!current) return null;
+    if (patch.siteId !== undefined) await assertSiteInOrganisation(trx, viewer, patch.siteId);
+    await trx('gates')
+      .where({ id, organisation_id: viewer.organisationId })
+      .update({ ...toRow(patch, current.entered), updated_at: trx.fn.now() });
+    return getGate(viewer, id, trx);
+  });
+}
+
+/** Deletes a gate; refused (409) while it has an assessment on record. */
+export async function deleteGate(viewer: SessionUser, id: string): Promise<boolean> {
+  return db().transaction(async (trx) => {
+    const gate = await trx('gates').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
+    if (!gate) return false;
+    const [{ count }] = await trx('assessments').where({ gate_id: id }).count<{ count: string }[]>({ count: '*' });
+    if (Number(count) > 0) {
+      throw new HttpProblem(409, `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`);
+    }
+    await trx('gates').where({ organisation_id: viewer.organisationId, id }).delete();
+    return true;
+  });
+}

@@ -1,0 +1,37 @@
+import type { APIRoute } from 'astro';
+import { AssessmentPatchSchema } from '@/lib/api/assessments';
+import { idFromPath } from '@/lib/api/common';
+import { discardAssessment, getAssessment, patchAssessment } from '@/lib/server/assessments';
+import { clientAddressOf } from '@/lib/server/auth/client-address';
+import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
+import { found, requireRole } from '@/lib/server/http/guard';
+import { etagOf, requireIfMatch } from '@/lib/server/http/row-version';
+import { handle, HttpProblem, parseBody } from '@/lib/server/http/problem';
+
+const what = 'That assessment';
+
+/** The assessment with its documents; the ETag is its row version, for If-Match on PATCH. */
+export const GET: APIRoute = handle(async ({ locals, params }) => {
+  const { user } = requireRole(locals, ...assessmentReaders);
+  const id = idFromPath(params.id);
+  const assessment = found(id ? await getAssessment(user, id) : null, what);
+  return Response.json(assessment, { headers: { etag: etagOf(assessment.rowVersion) } });
+});
+
+/** Merge-patches a draft's answers, measurements and observations over the row version in If-Match. */
+export const PATCH: APIRoute = handle(async ({ locals, params, request }) => {
+  const { user } = requireRole(locals, ...assessmentWorkers);
+  const id = found(idFromPath(params.id), what);
+  const expectedVersion = requireIfMatch(request);
+  const patch = await parseBody(AssessmentPatchSchema, request);
+  const saved = found(await patchAssessment(user, id, expectedVersion, patch), what);
+  return Response.json(saved, { headers: { etag: etagOf(saved.rowVersion) } });
+});
+
+/** Discards a draft; anything submitted is kept. */
+export const DELETE: APIRoute = handle(async (context) => {
+  const { user } = requireRole(context.locals, ...assessmentWorkers);
+  const id = found(idFromPath(context.params.id), what);
+  if (!(await discardAssessment(user, id, { ip: clientAddressOf(context) }))) throw new HttpProblem(404, `${what} was not found.`);
+  return new Response(null, { status: 204 });
+});

@@ -1,0 +1,25 @@
+import type { APIRoute } from 'astro';
+import { AssessmentCreateSchema, AssessmentListQuerySchema } from '@/lib/api/assessments';
+import { createAssessment, listAssessments } from '@/lib/server/assessments';
+import { clientAddressOf } from '@/lib/server/auth/client-address';
+import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
+import { requireRole } from '@/lib/server/http/guard';
+import { etagOf } from '@/lib/server/http/row-version';
+import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
+
+/** Assessments filtered by status, verdict, gate kind, auditor, visit dates, gate, site or client. */
+export const GET: APIRoute = handle(async ({ locals, url }) => {
+  const { user, organisation } = requireRole(locals, ...assessmentReaders);
+  return Response.json(await listAssessments(user, organisation.timeZone, parseQuery(AssessmentListQuerySchema, url)));
+});
+
+/** Starts a draft on a gate, pinned to the family's current published ruleset version. */
+export const POST: APIRoute = handle(async (context) => {
+  const { user } = requireRole(context.locals, ...assessmentWorkers);
+  const input = await parseBody(AssessmentCreateSchema, context.request);
+  const created = await createAssessment(user, input, { ip: clientAddressOf(context) });
+  return Response.json(created, {
+    status: 201,
+    headers: { location: `/api/assessments/${created.id}`, etag: etagOf(created.rowVersion) },
+  });
+});

@@ -1,0 +1,31 @@
+import type { APIRoute } from 'astro';
+import { ClientPatchSchema } from '@/lib/api/clients';
+import { idFromPath } from '@/lib/api/common';
+import { deleteClient, getClient, updateClient } from '@/lib/server/clients';
+import { directoryDeleters, directoryReaders, directoryWriters } from '@/lib/server/domain-access';
+import { found, requireRole } from '@/lib/server/http/guard';
+import { handle, HttpProblem, parseBody } from '@/lib/server/http/problem';
+
+const what = 'That client';
+
+export const GET: APIRoute = handle(async ({ locals, params }) => {
+  const { user } = requireRole(locals, ...directoryReaders);
+  const id = idFromPath(params.id);
+  return Response.json(found(id ? await getClient(user, id) : null, what));
+});
+
+export const PATCH: APIRoute = handle(async ({ locals, params, request }) => {
+  const { user } = requireRole(locals, ...directoryWriters);
+  const id = found(idFromPath(params.id), what);
+  const patch = await parseBody(ClientPatchSchema, request);
+  return Response.json(found(await updateClient(user, id, patch), what));
+});
+
+/** Removes the client with its sites and gates; 409 while any has an assessment on record. */
+export const DELETE: APIRoute = handle(async ({ locals, params }) => {
+  const { user } = requireRole(locals, ...directoryDeleters);
+  const id = found(idFromPath(params.id), what);
+  const deleted = await deleteClient(user, id);
+  if (!deleted) throw new HttpProblem(404, `${what} was not found.`);
+  return new Response(null, { status: 204 });
+});

@@ -1,0 +1,18 @@
+import type { APIRoute } from 'astro';
+import { ClientCreateSchema, ClientListQuerySchema } from '@/lib/api/clients';
+import { createClient, listClients } from '@/lib/server/clients';
+import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
+import { requireRole } from '@/lib/server/http/guard';
+import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
+
+/** The organisation's clients, filtered, sorted and paged (a homeowner sees only their own client's). */
+export const GET: APIRoute = handle(async ({ locals, url }) => {
+  const { user } = requireRole(locals, ...directoryReaders);
+  return Response.json(await listClients(user, parseQuery(ClientListQuerySchema, url)));
+});
+
+export const POST: APIRoute = handle(async ({ locals, request }) => {
+  const { user } = requireRole(locals, ...directoryWriters);
+  const created = await createClient(user, await parseBody(ClientCreateSchema, request));
+  return Response.json(created, { status: 201, headers: { location: `/api/clients/${created.id}` } });
+});

@@ -1,0 +1,18 @@
+import type { APIRoute } from 'astro';
+import { GateCreateSchema, GateListQuerySchema } from '@/lib/api/gates';
+import { createGate, listGates } from '@/lib/server/gates';
+import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
+import { requireRole } from '@/lib/server/http/guard';
+import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
+
+/** The organisation's gates, filtered, sorted and paged (a homeowner sees only their own client's). */
+export const GET: APIRoute = handle(async ({ locals, url }) => {
+  const { user } = requireRole(locals, ...directoryReaders);
+  return Response.json(await listGates(user, parseQuery(GateListQuerySchema, url)));
+});
+
+export const POST: APIRoute = handle(async ({ locals, request }) => {
+  const { user } = requireRole(locals, ...directoryWriters);
+  const created = await createGate(user, await parseBody(GateCreateSchema, request));
+  return Response.json(created, { status: 201, headers: { location: `/api/gates/${created.id}` } });
+});
