@@ -4,9 +4,10 @@ import { fileURLToPath } from 'node:url';
 const alias = { '@': fileURLToPath(new URL('./src', import.meta.url)) };
 
 /**
- * Two projects: `unit` is pure (no database, no network) and runs in parallel;
+ * Three projects: `unit` is pure (no database, no network) and runs in parallel;
  * `integration` talks to the built server and the private PostgreSQL started by
- * `npm test` (src/cli/test.ts), which passes their addresses through env.
+ * `npm test` (src/cli/test.ts), which passes their addresses through env; `e2e` drives
+ * Debian's chromium through playwright-core against the same server, one file at a time.
  */
 export default defineConfig({
   resolve: { alias },
@@ -22,6 +23,18 @@ export default defineConfig({
           globalSetup: ['tests/integration/support/global-setup.ts'],
           testTimeout: 30_000,
           hookTimeout: 60_000,
+        },
+      },
+      {
+        resolve: { alias },
+        test: {
+          name: 'e2e',
+          include: ['tests/e2e/**/*.test.ts'],
+          environment: 'node',
+          globalSetup: ['tests/integration/support/global-setup.ts'],
+          fileParallelism: false,
+          testTimeout: 180_000,
+          hookTimeout: 90_000,
         },
       },
     ],

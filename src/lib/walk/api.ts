@@ -1,0 +1,115 @@
+/**
+ * The walk-through's calls to /api, each answering with what happened in words the sync loop
+ * can act on: saved, refused (with the server's message), a conflict with the current copy,
+ * or — by throwing `OfflineError` — no answer at all, so the edit stays queued.
+ */
+import type { Assessment } from '@/lib/api/assessments';
+import type { JsonObject } from './merge-patch';
+import type { PhotoRecord, TraceRecord } from './records';
+
+export type { PhotoRecord, TraceRecord } from './records';
+
+export class OfflineError extends Error {
+  constructor(cause?: unknown) {
+    super('No connection to the server');
+    this.name = 'OfflineError';
+    this.cause = cause;
+  }
+}
+
+export interface Problem {
+  status: number;
+  title?: string;
+  detail?: string;
+  errors?: { field: string; message: string }[];
+  current?: Assessment;
+  [key: string]: unknown;
+}
+
+export type Answer<T> = { ok: true; value: T } | { ok: false; problem: Problem };
+
+/** fetch, with a network failure (or a gateway that is not ours) turned into OfflineError. */
+async function call(input: string, init: RequestInit = {}): Promise<Response> {
+  let response: Response;
+  try {
+    response = await fetch(input, { credentials: 'same-origin', ...init, headers: { accept: 'application/json', ...init.headers } });
+  } catch (error) {
+    throw new OfflineError(error);
+  }
+  // A captive portal or proxy error page is not the server's answer either.
+  if ([502, 503, 504].includes(response.status)) throw new OfflineError(new Error(`HTTP ${response.status}`));
+  return response;
+}
+
+async function answer<T>(response: Response): Promise<Answer<T>> {
+  const text = await response.text();
+  let body: unknown = null;
+  try {
+    body = text ? JSON.parse(text) : null;
+  } catch {
+    body = { detail: text.slice(0, 300) };
+  }
+  if (response.ok) return { ok: true, value: body as T };
+  return { ok: false, problem: { status: response.status, ...(body as object) } as Problem };
+}
+
+/** Saves a merge patch over the row version this device last saw (`If-Match`). */
+export async function patchAssessment(id: string, rowVersion: number, patch: JsonObject): Promise<Answer<Assessment>> {
+  return answer(
+    await call(`/api/assessments/${id}`, {
+      method: 'PATCH',
+      headers: { 'content-type': 'application/merge-patch+json', 'if-match': `"${rowVersion}"` },
+      body: JSON.stringify(patch),
+    }),
+  );
+}
+
+export async function getAssessment(id: string): Promise<Answer<Assessment>> {
+  return answer(await call(`/api/assessments/${id}`));
+}
+
+export async function uploadPhoto(
+  assessmentId: string,
+  photo: { clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob },
+): Promise<Answer<PhotoRecord>> {
+  const form = new FormData();
+  form.set('clientRef', photo.clientRef);
+  form.set('itemKey', photo.itemKey);
+  if (photo.takenAt) form.set('takenAt', photo.takenAt);
+  form.set('photo', photo.blob, photo.fileName);
+  return answer(await call(`/api/assessments/${assessmentId}/photos`, { method: 'POST', body: form }));
+}
+
+export async function removePhoto(assessmentId: string, photoId: string): Promise<Answer<null>> {
+  return answer(await call(`/api/assessments/${assessmentId}/photos/${photoId}`, { method: 'DELETE' }));
+}
+
+export async function uploadTrace(
+  assessmentId: string,
+  trace: { clientRef: string; itemKey: string; fileName: string; csv: string; location: string; direction: string; gapMm: number },
+): Promise<Answer<TraceRecord>> {
+  const query = new URLSearchParams({
+    clientRef: trace.clientRef,
+    itemKey: trace.itemKey,
+    fileName: trace.fileName,
+    location: trace.location,
+    direction: trace.direction,
+    gapMm: String(trace.gapMm),
+  });
+  return answer(
+    await call(`/api/assessments/${assessmentId}/force-traces?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: trace.csv }),
+  );
+}
+
+export async function removeTrace(assessmentId: string, traceId: string): Promise<Answer<null>> {
+  return answer(await call(`/api/assessments/${assessmentId}/force-traces/${traceId}`, { method: 'DELETE' }));
+}
+
+/** Scores the current answers without storing anything (the live preview). */
+export async function scorePreview(body: { family: string; version?: string; input: unknown }): Promise<Answer<unknown>> {
+  return answer(await call('/api/score', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) }));
+}
+
+export async function submitAssessment(id: string, rowVersion: number): Promise<Answer<Assessment>> {
+  return answer(await call(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'content-type': 'application/json', 'if-match': `"${rowVersion}"` }, body: '{}' }));
+}

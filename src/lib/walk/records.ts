@@ -1,0 +1,48 @@
+/**
+ * Photos and force traces as the API returns them, and the limits the device checks before
+ * sending (the server checks them again). Types and constants only: shared by the island and
+ * the server without pulling either's code into the other.
+ */
+
+/** The largest photo accepted. Phone cameras write 2–8 MB; 15 MB leaves room for 48 MP shots. */
+export const MAX_PHOTO_BYTES = 15 * 1024 * 1024;
+/** The largest force-meter CSV accepted: 10 s at 1 kHz is about 200 kB. */
+export const MAX_TRACE_CSV_BYTES = 2 * 1024 * 1024;
+
+export function megabytes(bytes: number): string {
+  return `${(bytes / (1024 * 1024)).toFixed(1).replace(/\.0$/, '')} MB`;
+}
+
+/** A photo as the server keeps it; URLs serve the thumbnail and display sizes. */
+export interface PhotoRecord {
+  id: string;
+  clientRef: string | null;
+  itemKey: string;
+  caption: string | null;
+  width: number;
+  height: number;
+  displayBytes: number;
+  originalBytes: number;
+  takenAt: string | null;
+  createdAt: string;
+  thumbUrl: string;
+  displayUrl: string;
+}
+
+export const TRACE_LOCATIONS = ['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other'] as const;
+export type TraceLocation = (typeof TRACE_LOCATIONS)[number];
+
+/** A force trace as the server keeps it: the samples (for the plot) and the calculator's judgement. */
+export interface TraceRecord {
+  id: string;
+  clientRef: string | null;
+  itemKey: string;
+  label: string | null;
+  location: TraceLocation;
+  direction: 'closing' | 'opening';
+  gapMm: number;
+  /** [time s, force N] pairs as parsed. */
+  samples: [number, number][];
+  evaluation: unknown;
+  createdAt: string;
+}

@@ -1,0 +1,44 @@
+/**
+ * What every page visit in the browser tests checks and keeps: no serious or critical axe-core
+ * violation, and a screenshot at phone and desktop width (palette PNG, so the committed files
+ * stay small enough to review in a pull request).
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import AxeBuilder from '@axe-core/playwright';
+import type { Page } from 'playwright-core';
+import sharp from 'sharp';
+import { desktopViewport, phoneViewport } from './browser';
+
+export const screenshotsDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../screenshots');
+
+/** Serious and critical violations, one readable line each (rule, impact, first targets). */
+export async function seriousAxeViolations(page: Page, exclude: string[] = []): Promise<string[]> {
+  let builder = new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'best-practice']);
+  for (const selector of exclude) builder = builder.exclude(selector);
+  const { violations } = await builder.analyze();
+  return violations
+    .filter((v) => v.impact === 'serious' || v.impact === 'critical')
+    .map((v) => `${v.id} (${v.impact}): ${v.help} — ${v.nodes.slice(0, 3).map((n) => n.target.join(' ')).join(' | ')}`);
+}
+
+async function savePng(buffer: Buffer, file: string): Promise<void> {
+  const small = await sharp(buffer).png({ palette: true, quality: 90, compressionLevel: 9, effort: 8 }).toBuffer();
+  fs.writeFileSync(file, small);
+}
+
+/**
+ * Saves `<name>-360.png` and `<name>-1280.png` (the viewport, or the whole page with
+ * `fullPage`), then puts the phone viewport back.
+ */
+export async function screenshotBothWidths(page: Page, name: string, options: { fullPage?: boolean } = {}): Promise<void> {
+  fs.mkdirSync(screenshotsDir, { recursive: true });
+  for (const viewport of [phoneViewport, desktopViewport]) {
+    await page.setViewportSize(viewport);
+    await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
+    const buffer = await page.screenshot({ fullPage: options.fullPage ?? false, animations: 'disabled', caret: 'hide' });
+    await savePng(buffer, path.join(screenshotsDir, `${name}-${viewport.width}.png`));
+  }
+  await page.setViewportSize(phoneViewport);
+}
