@@ -31,13 +31,13 @@ export async function publishRulesetFiles(connectionString: string): Promise<str
       const relative = path.relative(projectRoot, file);
       let loaded;
       try {
-        loaded = loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8')));
+        loaded = loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8')), relative);
       } catch (error) {
         throw new Error(`${relative}: ${(error as Error).message}`);
       }
-      const { ruleset, contentSha256 } = loaded;
+      const { version: ruleset, contentSha256 } = loaded;
       const outcome = await publishShippedVersion(
-        { family: ruleset.family, title: ruleset.title, region: ruleset.region ?? null, version: ruleset.version, content: ruleset, contentSha256 },
+        { family: ruleset.family, title: ruleset.familyTitle, region: ruleset.region, version: ruleset.version, content: ruleset, contentSha256 },
         instance,
       ).catch((error: Error) => {
         throw new Error(`${relative}: ${error.message}`);
