@@ -1,0 +1,246 @@
+/**
+ * Judges the entrapment-protection devices fitted to a gate operator, per direction of
+ * travel, under both UL 325 regimes (the pre-2016 primary/secondary table and the 2016 rules
+ * of two independent, monitored means), and says which regime applies to this operator.
+ */
+import type { GateKind, UsageClass } from './gate-kind';
+import {
+  ENTRAPMENT_DEVICE_TYPES,
+  UL325_2016_ALLOWED_TYPES,
+  UL325_2016_EFFECTIVE_DATE,
+  UL325_2016_MIN_INDEPENDENT_TYPES,
+  UL325_EXTERNAL_DEVICE_TYPES,
+  UL325_KIND_GROUP,
+  UL325_PRE2016_ENTRAPMENT_TABLE,
+  type EntrapmentDeviceType,
+  type Pre2016EntrapmentTable,
+  type Ul325KindGroup,
+} from './ul325-entrapment-types';
+
+/** The two UL 325 regimes for entrapment protection. */
+export type EntrapmentEdition = 'pre-2016' | '2016';
+/** Entrapment protection is judged per direction of travel. */
+export type TravelDirection = 'opening' | 'closing';
+
+/** One entrapment-protection device (or inherent feature) found on the gate. */
+export interface FittedDevice {
+  type: EntrapmentDeviceType;
+  /** The operator checks the device every cycle (matters for external B1/B2 devices from 2016). */
+  monitored: boolean;
+}
+
+/** What the auditor records about the operator and its protection devices. */
+export interface EntrapmentProtectionInput {
+  gateKind: GateKind;
+  usageClass: UsageClass;
+  automaticClosing: boolean;
+  /** Date of manufacture of the operator (ISO 8601); picks the edition unless `edition` is given. */
+  manufacturedOn?: string | null;
+  /** Rule edition chosen explicitly (e.g. the label is unreadable but the listing is known). */
+  edition?: EntrapmentEdition | null;
+  devices: Record<TravelDirection, readonly FittedDevice[]>;
+  /** Directions of travel in which an entrapment zone exists. */
+  entrapmentZones: Record<TravelDirection, boolean>;
+}
+
+/** Machine codes, in the order they appear in `reasons`. */
+export const ENTRAPMENT_REASONS = [
+  'kind_not_in_table',
+  'no_devices',
+  'primary_not_allowed',
+  'needs_secondary',
+  'same_type_both_roles',
+  'needs_two_types',
+  'same_type_twice',
+  'unmonitored_external',
+  'type_e_not_counted',
+  'd_with_auto_close',
+  'type_not_allowed_for_kind',
+] as const;
+/** Machine code of one finding about a direction's protection. */
+export type EntrapmentReason = (typeof ENTRAPMENT_REASONS)[number];
+
+/** Judgement of one direction of travel under one edition. */
+export interface DirectionJudgement {
+  entrapmentZone: boolean;
+  /** Requirement met with the counted types; true when no entrapment zone; null when the table has no entry. */
+  compliant: boolean | null;
+  /** Every finding: unmet requirements and fitted devices that do not count (a compliant direction may carry some). */
+  reasons: EntrapmentReason[];
+  /** Distinct fitted types that count under this edition. */
+  countedTypes: EntrapmentDeviceType[];
+  /** Pre-2016 only: the primary/secondary pair found, else null. */
+  assignment: { primary: EntrapmentDeviceType; secondary: EntrapmentDeviceType } | null;
+}
+
+/** Both directions under one edition. */
+export interface EditionJudgement {
+  opening: DirectionJudgement;
+  closing: DirectionJudgement;
+  compliant: boolean | null;
+}
+
+/** Judgement under both editions and the verdict under the one that applies. */
+export interface EntrapmentProtectionResult {
+  /** From `edition`, else from `manufacturedOn`; null when neither is known. */
+  applicableEdition: EntrapmentEdition | null;
+  byEdition: Record<EntrapmentEdition, EditionJudgement>;
+  /** Verdict under the applicable edition; null when the edition is unknown. */
+  compliant: boolean | null;
+}
+
+/** Tables and thresholds a ruleset may replace. */
+export interface EntrapmentRules {
+  pre2016Table: Pre2016EntrapmentTable;
+  allowed2016: Readonly<Record<Ul325KindGroup, readonly EntrapmentDeviceType[]>>;
+  externalTypes: readonly EntrapmentDeviceType[];
+  minIndependentTypes2016: number;
+  effectiveDate2016: string;
+}
+
+const DEFAULT_RULES: EntrapmentRules = {
+  pre2016Table: UL325_PRE2016_ENTRAPMENT_TABLE,
+  allowed2016: UL325_2016_ALLOWED_TYPES,
+  externalTypes: UL325_EXTERNAL_DEVICE_TYPES,
+  minIndependentTypes2016: UL325_2016_MIN_INDEPENDENT_TYPES,
+  effectiveDate2016: UL325_2016_EFFECTIVE_DATE,
+};
+
+const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[] =>
+  ENTRAPMENT_DEVICE_TYPES.filter((type) => new Set(types).has(type));
+
+const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] =>
+  ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
+
+const ISO_DATE = /^(\d{4})-(\d{2})-(\d{2})(?:$|T)/;
+
+/** Picks the rule edition from an explicit choice or the operator's date of manufacture. */
+export function applicableEntrapmentEdition(
+  manufacturedOn: string | null | undefined,
+  edition?: EntrapmentEdition | null,
+  effectiveDate2016: string = UL325_2016_EFFECTIVE_DATE,
+): EntrapmentEdition | null {
+  if (edition) return edition;
+  if (manufacturedOn === null || manufacturedOn === undefined) return null;
+  const match = ISO_DATE.exec(manufacturedOn);
+  const day = match ? new Date(`${match[1]}-${match[2]}-${match[3]}T00:00:00Z`) : null;
+  if (!match || !day || Number.isNaN(day.getTime()) || day.toISOString().slice(0, 10) !== manufacturedOn.slice(0, 10)) {
+    throw new RangeError(`manufacturedOn must be an ISO date (YYYY-MM-DD), got "${manufacturedOn}"`);
+  }
+  return manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016';
+}
+
+function judgePre2016(
+  input: EntrapmentProtectionInput,
+  direction: TravelDirection,
+  rules: EntrapmentRules,
+): DirectionJudgement {
+  const entrapmentZone = input.entrapmentZones[direction];
+  const reasons = new Set<EntrapmentReason>();
+  const group = UL325_KIND_GROUP[input.gateKind];
+  const row = group ? rules.pre2016Table[group][input.usageClass] : undefined;
+  const fitted = input.devices[direction];
+  if (!row) {
+    reasons.add('kind_not_in_table');
+    return {
+      entrapmentZone,
+      compliant: entrapmentZone ? null : true,
+      reasons: sortReasons(reasons),
+      countedTypes: [],
+      assignment: null,
+    };
+  }
+  const usable = new Set<EntrapmentDeviceType>();
+  for (const device of fitted) {
+    if (device.type === 'D' && input.automaticClosing) reasons.add('d_with_auto_close');
+    else if (!row.primary.includes(device.type) && !row.secondary.includes(device.type))
+      reasons.add('type_not_allowed_for_kind');
+    else usable.add(device.type);
+  }
+  const countedTypes = sortTypes(usable);
+  const primaries = row.primary.filter((type) => usable.has(type));
+  const secondaries = row.secondary.filter((type) => usable.has(type));
+  let assignment: DirectionJudgement['assignment'] = null;
+  for (const primary of primaries) {
+    const secondary = secondaries.find((type) => type !== primary);
+    if (secondary) {
+      assignment = { primary, secondary };
+      break;
+    }
+  }
+  if (entrapmentZone && !assignment) {
+    if (fitted.length === 0) reasons.add('no_devices');
+    else if (primaries.length === 0) reasons.add('primary_not_allowed');
+    else if (secondaries.length === 0) reasons.add('needs_secondary');
+    else reasons.add('same_type_both_roles');
+  }
+  return {
+    entrapmentZone,
+    compliant: !entrapmentZone || assignment !== null,
+    reasons: sortReasons(reasons),
+    countedTypes,
+    assignment,
+  };
+}
+
+function judge2016(
+  input: EntrapmentProtectionInput,
+  direction: TravelDirection,
+  rules: EntrapmentRules,
+): DirectionJudgement {
+  const entrapmentZone = input.entrapmentZones[direction];
+  const reasons = new Set<EntrapmentReason>();
+  const group = UL325_KIND_GROUP[input.gateKind];
+  const allowed = group ? rules.allowed2016[group] : null;
+  const counted = new Set<EntrapmentDeviceType>();
+  let countedDevices = 0;
+  for (const device of input.devices[direction]) {
+    if (device.type === 'E') reasons.add('type_e_not_counted');
+    else if (device.type === 'D' && input.automaticClosing) reasons.add('d_with_auto_close');
+    else if (allowed && !allowed.includes(device.type)) reasons.add('type_not_allowed_for_kind');
+    else if (rules.externalTypes.includes(device.type) && !device.monitored) reasons.add('unmonitored_external');
+    else {
+      counted.add(device.type);
+      countedDevices += 1;
+    }
+  }
+  const enough = counted.size >= rules.minIndependentTypes2016;
+  if (entrapmentZone && !enough) {
+    reasons.add('needs_two_types');
+    if (countedDevices > counted.size) reasons.add('same_type_twice');
+  }
+  return {
+    entrapmentZone,
+    compliant: !entrapmentZone || enough,
+    reasons: sortReasons(reasons),
+    countedTypes: sortTypes(counted),
+    assignment: null,
+  };
+}
+
+function combine(opening: DirectionJudgement, closing: DirectionJudgement): EditionJudgement {
+  const both = [opening.compliant, closing.compliant];
+  const compliant = both.includes(false) ? false : both.includes(null) ? null : true;
+  return { opening, closing, compliant };
+}
+
+/**
+ * Judges fitted entrapment protection per direction under both editions and gives the verdict
+ * under the one that applies. A direction without an entrapment zone needs no protection.
+ */
+export function assessEntrapmentProtection(
+  input: EntrapmentProtectionInput,
+  rules: Partial<EntrapmentRules> = {},
+): EntrapmentProtectionResult {
+  const merged: EntrapmentRules = { ...DEFAULT_RULES, ...rules };
+  const applicableEdition = applicableEntrapmentEdition(input.manufacturedOn, input.edition, merged.effectiveDate2016);
+  const byEdition: Record<EntrapmentEdition, EditionJudgement> = {
+    'pre-2016': combine(judgePre2016(input, 'opening', merged), judgePre2016(input, 'closing', merged)),
+    '2016': combine(judge2016(input, 'opening', merged), judge2016(input, 'closing', merged)),
+  };
+  return {
+    applicableEdition,
+    byEdition,
+    compliant: applicableEdition === null ? null : byEdition[applicableEdition].compliant,
+  };
+}
