@@ -1,0 +1,269 @@
+/**
+ * The authorization matrix: every route file under src/pages/api, every method it exports,
+ * called as each role of one organisation, as a signed-out visitor and as another
+ * organisation's owner, with the status each must get. A route without a row here fails the
+ * first test, so a new endpoint cannot ship without saying who may call it.
+ *
+ * Calls that change or remove something get a fresh target per caller (`t.fresh…`), so the
+ * outcome of one call never decides the next one's.
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { anonymousClient, createOrganisation, fixturePassword, signIn, signInHomeowner, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import sharp from 'sharp';
+import { insertClient, insertDraft, insertGate, insertSite, publishedFamilies, currentVersion, seedDirectory, type Directory } from './support/domain';
+
+type Who = 'owner' | 'office' | 'auditor' | 'homeowner' | 'anonymous' | 'otherOrg';
+const callers: readonly Who[] = ['owner', 'office', 'auditor', 'homeowner', 'anonymous', 'otherOrg'];
+
+/** Expected statuses, in the column order of the table below. */
+const s = (owner: number, office: number, auditor: number, homeowner: number, anonymous: number, otherOrg: number): Record<Who, number> => ({
+  owner,
+  office,
+  auditor,
+  homeowner,
+  anonymous,
+  otherOrg,
+});
+
+interface Call {
+  path: string;
+  body?: unknown;
+  headers?: Record<string, string>;
+  /** A urlencoded form body (auth core's callbacks). */
+  form?: string;
+  /** A multipart body (photo uploads). */
+  multipart?: FormData;
+  /** A raw body with its own content type (force-meter CSV). */
+  raw?: { contentType: string; text: string };
+}
+
+/** What the subject organisation holds, and fresh rows for calls that change or delete. */
+interface Targets {
+  org: FixtureOrganisation;
+  dir: Directory;
+  family: string;
+  freshClient(): Promise<string>;
+  freshSite(): Promise<string>;
+  freshGate(): Promise<string>;
+  /** A draft of the first auditor, pinned to the family's current version, ready to submit. */
+  freshDraft(): Promise<string>;
+  uniqueEmail(prefix: string): string;
+  /** A photo uploaded (as the owner) to a fresh draft. */
+  freshPhoto(): Promise<{ draftId: string; photoId: string }>;
+  /** A force trace uploaded (as the owner) to a fresh draft. */
+  freshTrace(): Promise<{ draftId: string; traceId: string }>;
+}
+
+interface Row {
+  /** The route file under src/pages/api, without extension. */
+  route: string;
+  method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
+  call: (t: Targets) => Call | Promise<Call>;
+  expect: Record<Who, number>;
+}
+
+const row = (route: string, method: Row['method'], call: Row['call'], expected: Record<Who, number>): Row => ({ route, method, call, expect: expected });
+
+const siteContext = { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false };
+
+// prettier-ignore
+const matrix: Row[] = [
+  //   route                          method    request                                                                              owner office auditor home anon other
+  row('health',                      'GET',    () => ({ path: '/api/health' }),                                                       s(200, 200, 200, 200, 200, 200)),
+  row('auth/[...auth]',              'GET',    () => ({ path: '/api/auth/session' }),                                                 s(200, 200, 200, 200, 200, 200)),
+  row('auth/[...auth]',              'POST',   () => ({ path: '/api/auth/callback/credentials', form: 'email=x%40matrix.test&password=x' }), s(403, 403, 403, 403, 403, 403)),
+  row('auth/email-link',             'POST',   () => ({ path: '/api/auth/email-link', body: {} }),                                    s(422, 422, 422, 422, 422, 422)),
+  row('organisation',                'GET',    () => ({ path: '/api/organisation' }),                                                 s(200, 200, 200, 403, 401, 200)),
+  row('organisation',                'PATCH',  () => ({ path: '/api/organisation', body: { remindClients: false } }),                 s(200, 403, 403, 403, 401, 200)),
+  row('users/index',                 'GET',    () => ({ path: '/api/users' }),                                                        s(200, 200, 403, 403, 401, 200)),
+  row('users/[id]',                  'GET',    (t) => ({ path: `/api/users/${t.org.auditor2.id}` }),                                  s(200, 200, 403, 403, 401, 404)),
+  row('users/[id]',                  'PATCH',  (t) => ({ path: `/api/users/${t.org.auditor2.id}`, body: { name: 'Second auditor' } }), s(200, 403, 403, 403, 401, 404)),
+  row('invitations/index',           'GET',    () => ({ path: '/api/invitations' }),                                                  s(200, 403, 403, 403, 401, 200)),
+  row('invitations/index',           'POST',   (t) => ({ path: '/api/invitations', body: { email: t.uniqueEmail('invitee'), role: 'auditor' } }), s(201, 403, 403, 403, 401, 201)),
+  row('invitations/[token]/accept',  'POST',   () => ({ path: '/api/invitations/no-such-token/accept', body: { name: 'Nobody', password: 'long-enough-pass' } }), s(404, 404, 404, 404, 404, 404)),
+
+  row('clients/index',               'GET',    () => ({ path: '/api/clients' }),                                                      s(200, 200, 200, 200, 401, 200)),
+  row('clients/index',               'POST',   () => ({ path: '/api/clients', body: { name: 'Matrix Client', kind: 'business' } }),   s(201, 201, 201, 403, 401, 201)),
+  row('clients/[id]',                'GET',    (t) => ({ path: `/api/clients/${t.dir.clientId}` }),                                   s(200, 200, 200, 404, 401, 404)),
+  row('clients/[id]',                'PATCH',  (t) => ({ path: `/api/clients/${t.dir.clientId}`, body: { notes: 'Checked' } }),       s(200, 200, 200, 403, 401, 404)),
+  row('clients/[id]',                'DELETE', async (t) => ({ path: `/api/clients/${await t.freshClient()}` }),                      s(204, 204, 403, 403, 401, 404)),
+  row('sites/index',                 'GET',    () => ({ path: '/api/sites' }),                                                        s(200, 200, 200, 200, 401, 200)),
+  row('sites/index',                 'POST',   (t) => ({ path: '/api/sites', body: { clientId: t.dir.clientId, addressLine1: '1 Matrix Way', city: 'Eastholm', usageClass: 1 } }), s(201, 201, 201, 403, 401, 422)),
+  row('sites/[id]',                  'GET',    (t) => ({ path: `/api/sites/${t.dir.siteId}` }),                                       s(200, 200, 200, 404, 401, 404)),
+  row('sites/[id]',                  'PATCH',  (t) => ({ path: `/api/sites/${t.dir.siteId}`, body: { notes: 'Checked' } }),         s(200, 200, 200, 403, 401, 404)),
+  row('sites/[id]',                  'DELETE', async (t) => ({ path: `/api/sites/${await t.freshSite()}` }),                          s(204, 204, 403, 403, 401, 404)),
+  row('gates/index',                 'GET',    () => ({ path: '/api/gates' }),                                                        s(200, 200, 200, 200, 401, 200)),
+  row('gates/index',                 'POST',   (t) => ({ path: '/api/gates', body: { siteId: t.dir.siteId, label: 'Matrix gate', kind: 'slide', leaves: 'single' } }), s(201, 201, 201, 403, 401, 422)),
+  row('gates/[id]',                  'GET',    (t) => ({ path: `/api/gates/${t.dir.gateId}` }),                                       s(200, 200, 200, 404, 401, 404)),
+  row('gates/[id]',                  'PATCH',  (t) => ({ path: `/api/gates/${t.dir.gateId}`, body: { nextInspectionDue: '2027-06-30' } }), s(200, 200, 200, 403, 401, 404)),
+  row('gates/[id]',                  'DELETE', async (t) => ({ path: `/api/gates/${await t.freshGate()}` }),                          s(204, 204, 403, 403, 401, 404)),
+  row('assessments/index',           'GET',    () => ({ path: '/api/assessments' }),                                                  s(200, 200, 200, 200, 401, 200)),
+  row('assessments/index',           'POST',   (t) => ({ path: '/api/assessments', body: { gateId: t.dir.gateId, family: t.family, purpose: 'inspection' } }), s(201, 201, 201, 403, 401, 422)),
+  row('assessments/[id]',            'GET',    async (t) => ({ path: `/api/assessments/${await t.freshDraft()}` }),                   s(200, 200, 200, 404, 401, 404)),
+  row('assessments/[id]',            'PATCH',  async (t) => ({ path: `/api/assessments/${await t.freshDraft()}`, body: { purpose: 'service' }, headers: { 'if-match': '"1"' } }), s(200, 200, 200, 403, 401, 404)),
+  row('assessments/[id]',            'DELETE', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}` }),                   s(204, 204, 204, 403, 401, 404)),
+  row('assessments/[id]/submit',     'POST',   async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/submit` }),            s(200, 200, 200, 403, 401, 404)),
+  row('assessments/[id]/photos/index', 'GET',  async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/photos` }),            s(200, 200, 200, 404, 401, 404)),
+  row('assessments/[id]/photos/index', 'POST', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/photos`, multipart: await photoForm() }), s(201, 201, 201, 403, 401, 404)),
+  row('assessments/[id]/photos/[photoId]', 'GET', async (t) => { const p = await t.freshPhoto(); return { path: `/api/assessments/${p.draftId}/photos/${p.photoId}?size=thumb` }; }, s(200, 200, 200, 404, 401, 404)),
+  row('assessments/[id]/photos/[photoId]', 'DELETE', async (t) => { const p = await t.freshPhoto(); return { path: `/api/assessments/${p.draftId}/photos/${p.photoId}` }; }, s(204, 204, 204, 403, 401, 404)),
+  row('assessments/[id]/force-traces/index', 'GET', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/force-traces` }), s(200, 200, 200, 404, 401, 404)),
+  row('assessments/[id]/force-traces/index', 'POST', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/force-traces?${traceQuery}`, raw: { contentType: 'text/csv', text: forceTraceCsv } }), s(201, 201, 201, 403, 401, 404)),
+  row('assessments/[id]/force-traces/[traceId]', 'DELETE', async (t) => { const f = await t.freshTrace(); return { path: `/api/assessments/${f.draftId}/force-traces/${f.traceId}` }; }, s(204, 204, 204, 403, 401, 404)),
+];
+
+/** An 8 × 8 grey PNG, made on the spot. */
+let png: Buffer | undefined;
+async function photoForm(): Promise<FormData> {
+  png ??= await sharp({ create: { width: 8, height: 8, channels: 3, background: '#8a8a8a' } }).png().toBuffer();
+  const form = new FormData();
+  form.set('photo', new Blob([new Uint8Array(png)], { type: 'image/png' }), 'gate.png');
+  form.set('itemKey', 'closingEdge');
+  return form;
+}
+
+/** Six seconds of a force meter at 500 Hz: a push up to 280 N at 0.4 s, then easing to 20 N. */
+const forceTraceCsv = [
+  'time (s),force (N)',
+  ...Array.from({ length: 3001 }, (_, i) => {
+    const t = i / 500;
+    const f = t < 0.4 ? 700 * t : Math.max(20, 280 - 400 * (t - 0.4));
+    return `${t.toFixed(3)},${f.toFixed(1)}`;
+  }),
+].join('\n');
+const traceQuery = 'itemKey=forceTest&location=closing_edge&direction=closing&gapMm=50';
+
+const apiRoot = path.resolve(__dirname, '../../src/pages/api');
+
+/** Every "route METHOD" the API exports, read from the route files themselves. */
+function declaredRoutes(): string[] {
+  const found: string[] = [];
+  for (const file of fs.readdirSync(apiRoot, { recursive: true, encoding: 'utf8' })) {
+    if (!/\.(ts|js|mjs)$/.test(file)) continue;
+    const route = file.replace(/\.(ts|js|mjs)$/, '').split(path.sep).join('/');
+    const source = fs.readFileSync(path.join(apiRoot, file), 'utf8');
+    const methods = new Set<string>();
+    for (const m of source.matchAll(/export\s+(?:const|async\s+function|function)\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(m[1] as string);
+    for (const m of source.matchAll(/export\s*\{([^}]*)\}/g)) for (const name of (m[1] as string).matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(name[1] as string);
+    for (const method of methods) found.push(`${route} ${method}`);
+  }
+  return found.sort();
+}
+
+let clients: Record<Who, TestClient>;
+let targets: Targets;
+
+async function send(client: TestClient, method: string, call: Call): Promise<Response> {
+  if (call.multipart) return client.fetch(call.path, { method, headers: { accept: 'application/json', ...call.headers }, body: call.multipart });
+  if (call.raw) return client.fetch(call.path, { method, headers: { accept: 'application/json', 'content-type': call.raw.contentType, ...call.headers }, body: call.raw.text });
+  if (call.form !== undefined) {
+    return client.fetch(call.path, { method, headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json', ...call.headers }, body: call.form });
+  }
+  const headers: Record<string, string> = { accept: 'application/json', ...call.headers };
+  if (call.body !== undefined) headers['content-type'] = 'application/json';
+  return client.fetch(call.path, { method, headers, body: call.body === undefined ? undefined : JSON.stringify(call.body) });
+}
+
+beforeAll(async () => {
+  const [org, other] = await Promise.all([createOrganisation('matrix'), createOrganisation('matrix-other')]);
+  const dir = await seedDirectory(org);
+  const [family] = await publishedFamilies();
+  if (!family) throw new Error('no ruleset family is published in the test database');
+  const version = await currentVersion(family);
+  let emails = 0;
+  targets = {
+    org,
+    dir,
+    family,
+    freshClient: () => insertClient(org.id),
+    freshSite: () => insertSite(org.id, dir.clientId),
+    freshGate: () => insertGate(org.id, dir.siteId),
+    freshDraft: () => insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { observations: JSON.stringify({ site: siteContext }) }),
+    uniqueEmail: (prefix) => `${prefix}.${Date.now()}.${emails++}@matrix.test`,
+    async freshPhoto() {
+      const draftId = await targets.freshDraft();
+      const res = await send(clients.owner, 'POST', { path: `/api/assessments/${draftId}/photos`, multipart: await photoForm() });
+      if (res.status !== 201) throw new Error(`photo upload answered ${res.status}: ${await res.text()}`);
+      return { draftId, photoId: (await res.json()).id };
+    },
+    async freshTrace() {
+      const draftId = await targets.freshDraft();
+      const res = await send(clients.owner, 'POST', { path: `/api/assessments/${draftId}/force-traces?${traceQuery}`, raw: { contentType: 'text/csv', text: forceTraceCsv } });
+      if (res.status !== 201) throw new Error(`trace upload answered ${res.status}: ${await res.text()}`);
+      return { draftId, traceId: (await res.json()).id };
+    },
+  };
+  const [owner, office, auditor, homeowner, otherOrg] = await Promise.all([
+    signIn(org.owner.email, fixturePassword),
+    signIn(org.office.email, fixturePassword),
+    signIn(org.auditor.email, fixturePassword),
+    signInHomeowner(org.homeowner.email),
+    signIn(other.owner.email, fixturePassword),
+  ]);
+  clients = { owner, office, auditor, homeowner, anonymous: anonymousClient(), otherOrg };
+});
+
+describe('authorization matrix', () => {
+  it('has a row for every route and method under src/pages/api, and none for routes that are gone', () => {
+    const declared = declaredRoutes();
+    const covered = matrix.map((r) => `${r.route} ${r.method}`);
+    expect(declared.filter((k) => !covered.includes(k)), 'routes without a matrix row').toEqual([]);
+    expect(covered.filter((k) => !declared.includes(k)), 'matrix rows for routes that do not exist').toEqual([]);
+    expect(new Set(covered).size, 'each route and method once').toBe(covered.length);
+  });
+
+  it.each(matrix.map((r) => [`${r.method} ${r.route}`, r] as const))('%s answers each caller as the table says', async (_name, r) => {
+    const actual = {} as Record<Who, number>;
+    for (const who of callers) {
+      const res = await send(clients[who], r.method, await r.call(targets));
+      actual[who] = res.status;
+      const text = await res.text();
+      if (res.status >= 400) expect(text, `${who}: an error never carries a stack trace`).not.toMatch(/\bat .+:\d+:\d+/);
+    }
+    expect(actual).toEqual(r.expect);
+  });
+
+  it("lists never show another organisation's rows", async () => {
+    for (const list of ['/api/clients?pageSize=100', '/api/sites?pageSize=100', '/api/gates?pageSize=100', '/api/assessments?pageSize=100']) {
+      const body = await (await send(clients.otherOrg, 'GET', { path: list })).text();
+      for (const id of Object.values(targets.dir)) expect(body, list).not.toContain(id);
+    }
+  });
+});
+
+describe('path variants of protected routes', () => {
+  const spellings = (p: string) => [
+    p.replace('/api/', '/%61pi/'),
+    p.replace('/api/', '/%2561pi/'),
+    `${p}/`,
+    p.replace('/api/', '/api//'),
+    p.replace('/api/', '/API/'),
+    p.replace('/api/', '/api/./'),
+  ];
+
+  it('refuses a signed-out visitor however the path is spelled', async () => {
+    for (const variant of [...spellings('/api/clients'), ...spellings(`/api/gates/${targets.dir.gateId}`), ...spellings('/api/users')]) {
+      const res = await send(clients.anonymous, 'GET', { path: variant });
+      expect(res.status, variant).toBe(401);
+    }
+  });
+
+  it("never shows another organisation's or client's record through a variant path", async () => {
+    for (const variant of spellings(`/api/clients/${targets.dir.clientId}`)) {
+      for (const who of ['otherOrg', 'homeowner'] as const) {
+        const res = await send(clients[who], 'GET', { path: variant });
+        expect([404], `${who} ${variant}`).toContain(res.status);
+      }
+    }
+  });
+
+  it('refuses a state change from a signed-out visitor through a variant path, leaving the row as it was', async () => {
+    for (const variant of spellings(`/api/clients/${targets.dir.clientId}`)) {
+      const res = await send(clients.anonymous, 'DELETE', { path: variant });
+      expect(res.status, variant).toBe(401);
+    }
+    expect((await send(clients.owner, 'GET', { path: `/api/clients/${targets.dir.clientId}` })).status).toBe(200);
+  });
+});
