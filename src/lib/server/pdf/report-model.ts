@@ -1,0 +1,267 @@
+/**
+ * What a report shows, built from the assessment as stored: its stored scoring result (never
+ * re-scored here), the organisation, site, gate, people, photos, force traces and, for the
+ * final document, the signing record. Pure: loading is in src/lib/server/reports.ts.
+ *
+ * The stored result is read leniently (unknown fields ignored, odd values defaulted), so a
+ * report of an old assessment still renders after the engine's result grows new fields.
+ */
+import { z } from "zod";
+
+const SEVERITY_ORDER = ["critical", "major", "minor"] as const;
+export type Severity = (typeof SEVERITY_ORDER)[number];
+export type Verdict = "clear" | "remedy" | "withdraw";
+
+const StoredFindingSchema = z.object({
+  ruleId: z.string(),
+  title: z.string().catch("Untitled check"),
+  area: z.string().catch("other"),
+  severity: z.enum(SEVERITY_ORDER).catch("minor"),
+  outcome: z.enum(["pass", "fail", "n/a", "needs_info"]).catch("needs_info"),
+  missing: z
+    .array(z.object({ key: z.string(), prompt: z.string().catch("") }))
+    .catch([]),
+  observed: z.record(z.string(), z.unknown()).catch({}),
+  params: z
+    .record(
+      z.string(),
+      z.object({ value: z.unknown(), unit: z.string().optional() }),
+    )
+    .catch({}),
+  hrn: z
+    .object({ value: z.number(), band: z.string() })
+    .optional()
+    .catch(undefined),
+  remediation: z.string().catch(""),
+  caution: z.string().catch(""),
+  reference: z
+    .object({
+      standard: z.string().catch(""),
+      clause: z.string().catch(""),
+      note: z.string().optional(),
+    })
+    .catch({ standard: "", clause: "" }),
+});
+
+export const StoredResultSchema = z.object({
+  ruleset: z.object({
+    family: z.string(),
+    version: z.string(),
+    contentSha256: z.string(),
+  }),
+  verdict: z.enum(["clear", "remedy", "withdraw"]),
+  complete: z.boolean().catch(true),
+  findings: z.array(StoredFindingSchema),
+  areaScores: z.record(z.string(), z.number().nullable()).catch({}),
+});
+export type StoredResult = z.infer<typeof StoredResultSchema>;
+export type StoredFinding = z.infer<typeof StoredFindingSchema>;
+
+export type ReportKind = "preview" | "signing_copy" | "signed_report";
+
+export interface ReportPhoto {
+  itemKey: string;
+  caption: string | null;
+  data: Buffer;
+  format: "jpg" | "png";
+  width: number;
+  height: number;
+  takenAt: Date | null;
+}
+
+export interface ReportForceTrace {
+  label: string;
+  itemKey: string;
+  /** [t s, f N] */
+  samples: Array<[number, number]>;
+  /** The peak force allowed at this point, N, when the evaluation names it. */
+  limitN: number | null;
+  peakN: number | null;
+  passed: boolean | null;
+}
+
+export interface SwingGeometryMeasurements {
+  aMm: number;
+  bMm: number;
+  bracketFromHingeMm: number;
+  retractedLengthMm: number;
+  strokeMm: number;
+  targetOpeningDeg: number;
+  leafWidthMm: number | null;
+}
+
+export interface OwnerSignature {
+  name: string;
+  email: string;
+  signedAt: Date;
+  method: "drawn" | "typed";
+  imagePng: Buffer | null;
+  ip: string | null;
+  userAgent: string | null;
+  shownPdfSha256: string;
+  consentText: string;
+  intentText: string;
+  cautionsAcknowledged: Array<{ ruleId: string; title: string }>;
+}
+
+export interface ReportSource {
+  documentId: string;
+  kind: ReportKind;
+  generatedAt: Date;
+  organisation: {
+    id: string;
+    name: string;
+    timeZone: string;
+    displayUnits: "imperial" | "metric";
+  };
+  assessment: {
+    id: string;
+    purpose: string;
+    status: string;
+    visitedOn: Date | null;
+    submittedAt: Date | null;
+    supersedesId: string | null;
+    result: unknown;
+    resultSha256: string | null;
+    swingGeometry: SwingGeometryMeasurements | null;
+  };
+  auditor: { name: string; email: string };
+  client: { name: string; contactEmail: string | null };
+  site: { name: string | null; lines: string[]; usageClass: number | null };
+  gate: {
+    label: string;
+    kind: string;
+    leaves: string;
+    openingDirection: string | null;
+    widthMm: number | null;
+    heightMm: number | null;
+    weightKg: number | null;
+  };
+  ruleset: {
+    title: string;
+    version: string;
+    contentSha256: string;
+    areaTitles: Record<string, string>;
+  };
+  photos: ReportPhoto[];
+  forceTraces: ReportForceTrace[];
+  signing: {
+    assessor: { name: string; signedAt: Date };
+    owner: OwnerSignature;
+  } | null;
+}
+
+export interface ReportCaution {
+  ruleId: string;
+  title: string;
+  severity: Severity;
+  caution: string;
+}
+
+export interface ReportModel extends ReportSource {
+  result: StoredResult;
+  /** Failing findings, critical first, then needs-information, then the rest. */
+  failing: Array<StoredFinding & { photos: ReportPhoto[] }>;
+  needsInfo: StoredFinding[];
+  passed: StoredFinding[];
+  notApplicable: number;
+  areas: Array<{ key: string; title: string; score: number | null }>;
+  cautions: ReportCaution[];
+  /** Photos no finding claimed, shown in their own section so none is left out. */
+  otherPhotos: ReportPhoto[];
+}
+
+export class ReportNotReady extends Error {}
+
+const bySeverity = (a: StoredFinding, b: StoredFinding) =>
+  SEVERITY_ORDER.indexOf(a.severity) - SEVERITY_ORDER.indexOf(b.severity) ||
+  a.ruleId.localeCompare(b.ruleId);
+
+/** A photo belongs to a finding when its item key is the rule id or a fact the rule read. */
+function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
+  if (photo.itemKey === finding.ruleId) return true;
+  const keys = [
+    ...Object.keys(finding.observed),
+    ...finding.missing.map((m) => m.key),
+  ].map((k) => k.split(".").pop());
+  return keys.includes(photo.itemKey);
+}
+
+export function buildReportModel(source: ReportSource): ReportModel {
+  const parsed = StoredResultSchema.safeParse(source.assessment.result);
+  if (!parsed.success)
+    throw new ReportNotReady(
+      "This assessment has no stored scoring result to report on.",
+    );
+  const result = parsed.data;
+  const claimed = new Set<ReportPhoto>();
+  const failing = result.findings
+    .filter((f) => f.outcome === "fail")
+    .sort(bySeverity)
+    .map((f) => {
+      const photos = source.photos.filter((p) => photoBelongsTo(p, f));
+      photos.forEach((p) => claimed.add(p));
+      return { ...f, photos };
+    });
+  const cautions: ReportCaution[] = [];
+  const seen = new Set<string>();
+  for (const f of failing) {
+    const text = f.caution.trim();
+    if (!text || seen.has(text)) continue;
+    seen.add(text);
+    cautions.push({
+      ruleId: f.ruleId,
+      title: f.title,
+      severity: f.severity,
+      caution: text,
+    });
+  }
+  const areaKeys = Object.keys(result.areaScores);
+  return {
+    ...source,
+    result,
+    failing,
+    needsInfo: result.findings
+      .filter((f) => f.outcome === "needs_info")
+      .sort(bySeverity),
+    passed: result.findings
+      .filter((f) => f.outcome === "pass")
+      .sort(bySeverity),
+    notApplicable: result.findings.filter((f) => f.outcome === "n/a").length,
+    areas: areaKeys.map((key) => ({
+      key,
+      title: source.ruleset.areaTitles[key] ?? key,
+      score: result.areaScores[key],
+    })),
+    cautions,
+    otherPhotos: source.photos.filter((p) => !claimed.has(p)),
+  };
+}
+
+/** The verdict in plain words, for the owner as much as the office. */
+export const verdictWords: Record<
+  Verdict,
+  { label: string; headline: string; meaning: string }
+> = {
+  clear: {
+    label: "Clear",
+    headline: "No hazard above minor was found.",
+    meaning:
+      "The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.",
+  },
+  remedy: {
+    label: "Remedy",
+    headline: "Hazards were found that must be fixed.",
+    meaning:
+      "The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.",
+  },
+  withdraw: {
+    label: "Withdraw from automatic use",
+    headline: "At least one critical hazard was found.",
+    meaning:
+      "Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.",
+  },
+};
+
+export const DISCLAIMER =
+  "This assessment supports, and does not replace, the gate and operator manufacturers\u2019 installation and maintenance instructions, the local codes in force, the decisions of the authority having jurisdiction, and the advice of licensed professionals. It records the condition seen on the day of the visit; a gate changes with use, weather and repairs.";

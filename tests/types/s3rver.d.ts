@@ -1,0 +1,15 @@
+/** Just enough of s3rver's API for the storage tests (the package ships no types). */
+declare module 's3rver' {
+  interface S3rverOptions {
+    address?: string;
+    port?: number;
+    silent?: boolean;
+    directory: string;
+    configureBuckets?: Array<{ name: string; configs: Array<string | Buffer> }>;
+  }
+  export default class S3rver {
+    constructor(options: S3rverOptions);
+    run(): Promise<{ address: string; port: number }>;
+    close(): Promise<void>;
+  }
+}
