@@ -3,14 +3,18 @@ import { defineConfig } from 'astro/config';
 import node from '@astrojs/node';
 import react from '@astrojs/react';
 import tailwindcss from '@tailwindcss/vite';
+import auth from 'auth-astro';
 
 // Server-rendered app behind the Node standalone adapter: `node dist/server/entry.mjs`.
 export default defineConfig({
   output: 'server',
   adapter: node({ mode: 'standalone' }),
-  integrations: [react()],
+  integrations: [react(), auth({ injectEndpoints: false })],
   server: { host: process.env.HOST ?? '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
-  security: { checkOrigin: true },
+  // Cross-site writes (forms and JSON alike) are refused by src/middleware.ts, which compares
+  // Origin with the Host the browser used. Astro's own check compares with Astro.url, whose host
+  // is "localhost" unless security.allowedDomains is set at build time, so it refused every form.
+  security: { checkOrigin: false },
   vite: {
     plugins: [tailwindcss()],
     ssr: { external: ['@node-rs/argon2', 'pg', 'knex'] },

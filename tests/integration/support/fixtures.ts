@@ -101,10 +101,16 @@ export async function createOrganisation(label = 'org'): Promise<FixtureOrganisa
   });
 }
 
-/** A browser-like HTTP client with its own cookie jar. */
+/** A browser-like HTTP client with its own cookie jar and its own client address. */
 export interface TestClient {
   /** The current `Cookie` header value (empty when signed out). */
   readonly cookie: string;
+  /**
+   * The address this client appears to come from (sent as X-Forwarded-For, which the server
+   * takes as the client address), so per-address throttling in one test never spills into
+   * another. A made-up address from 198.18.0.0/15 (reserved for testing) unless given.
+   */
+  readonly address: string;
   /**
    * fetch against the server under test: `path` is relative to the base URL. Sends the
    * cookies and `Origin: <baseUrl>`, does not follow redirects, and keeps any cookies the
@@ -115,17 +121,25 @@ export interface TestClient {
   json(method: string, path: string, body?: unknown): Promise<Response>;
 }
 
+/** A made-up client address from 198.18.0.0/15, the block reserved for network tests. */
+export function testAddress(): string {
+  return `198.${18 + Math.floor(Math.random() * 2)}.${Math.floor(Math.random() * 256)}.${1 + Math.floor(Math.random() * 254)}`;
+}
+
 /** A client with no session (still sends a same-origin Origin header). */
-export function anonymousClient(): TestClient {
+export function anonymousClient(options: { address?: string } = {}): TestClient {
   const baseUrl = inject('baseUrl');
   const jar = new Map<string, string>();
+  const address = options.address ?? testAddress();
   const client: TestClient = {
+    address,
     get cookie() {
       return [...jar].map(([k, v]) => `${k}=${v}`).join('; ');
     },
     async fetch(path, init = {}) {
       const headers = new Headers(init.headers);
       if (!headers.has('origin')) headers.set('origin', baseUrl);
+      if (!headers.has('x-forwarded-for')) headers.set('x-forwarded-for', address);
       if (jar.size && !headers.has('cookie')) headers.set('cookie', client.cookie);
       const res = await fetch(new URL(path, baseUrl), { redirect: 'manual', ...init, headers });
       keepCookies(jar, res);
@@ -166,12 +180,16 @@ async function csrfToken(client: TestClient): Promise<string> {
   return ((await res.json()) as { csrfToken: string }).csrfToken;
 }
 
-/** Posts a form to an auth core credentials callback; returns the raw response (a redirect). */
-export async function postCredentials(client: TestClient, providerId: string, fields: Record<string, string>): Promise<Response> {
+/**
+ * Posts a form to an auth core credentials callback (after fetching a CSRF token) and returns
+ * the raw response: a redirect on success; on refusal problem+json (401, 429) unless
+ * `headers` asks for text/html, when it is a redirect back to /signin with the reason.
+ */
+export async function postCredentials(client: TestClient, providerId: string, fields: Record<string, string>, headers: Record<string, string> = {}): Promise<Response> {
   const form = new URLSearchParams({ ...fields, csrfToken: await csrfToken(client) });
   return client.fetch(`/api/auth/callback/${providerId}`, {
     method: 'POST',
-    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    headers: { 'content-type': 'application/x-www-form-urlencoded', ...headers },
     body: form,
   });
 }
@@ -195,20 +213,27 @@ interface CaughtSummary {
   receivedAt: string;
 }
 
+/** Ids of the caught messages to `to` so far: pass them to `waitForMail` to wait for a new one. */
+export async function caughtMailIds(to: string): Promise<Set<string>> {
+  const list = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as CaughtSummary[];
+  return new Set(list.filter((m) => m.to.some((t) => t.toLowerCase() === to.toLowerCase())).map((m) => m.id));
+}
+
 /**
- * Waits for the newest caught message to `to` received after `since` (ms epoch) and returns
- * its text and html. Polls the catcher for up to `timeoutMs`.
+ * Waits for a caught message to `to` that is not among `seen` (from `caughtMailIds`, taken
+ * before the action that sends it) and returns its subject, text and html. Polls the catcher
+ * for up to `timeoutMs`.
  */
-export async function waitForMail(to: string, since: number, timeoutMs = 8000): Promise<{ subject: string; text: string; html: string | null }> {
+export async function waitForMail(to: string, seen: Set<string>, timeoutMs = 8000): Promise<{ subject: string; text: string; html: string | null }> {
   const catcherUrl = inject('catcherUrl');
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const list = (await (await fetch(`${catcherUrl}/messages`)).json()) as CaughtSummary[];
-    const mine = list
-      .filter((m) => m.to.some((t) => t.toLowerCase() === to.toLowerCase()) && Date.parse(m.receivedAt) >= since - 1000)
+    const fresh = list
+      .filter((m) => m.to.some((t) => t.toLowerCase() === to.toLowerCase()) && !seen.has(m.id))
       .sort((a, b) => Date.parse(b.receivedAt) - Date.parse(a.receivedAt));
-    if (mine.length) {
-      const message = await (await fetch(`${catcherUrl}/messages/${mine[0].id}`)).json();
+    if (fresh.length) {
+      const message = await (await fetch(`${catcherUrl}/messages/${fresh[0].id}`)).json();
       return { subject: message.subject, text: message.text, html: message.html };
     }
     if (Date.now() > deadline) throw new Error(`no mail to ${to} arrived within ${timeoutMs} ms`);
@@ -225,10 +250,10 @@ export function linkIn(text: string, pathPrefix: string): string {
 
 /** Asks for a homeowner sign-in link and returns the link from the caught e-mail. */
 export async function requestHomeownerLink(email: string): Promise<string> {
-  const since = Date.now();
+  const seen = await caughtMailIds(email);
   const res = await anonymousClient().json('POST', '/api/auth/email-link', { email });
   if (res.status !== 202) throw new Error(`requesting a link for ${email} answered ${res.status}: ${await res.text()}`);
-  const mail = await waitForMail(email, since);
+  const mail = await waitForMail(email, seen);
   return linkIn(mail.text, '/signin/link');
 }
 

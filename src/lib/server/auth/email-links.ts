@@ -1,0 +1,55 @@
+/**
+ * Homeowners and property managers sign in with a one-time link. Asking for one always gets
+ * the same answer whether or not the address is known, and the mail leaves in the background,
+ * so neither the reply nor its timing tells who has an account.
+ */
+import { recordAudit } from '../audit';
+import { db } from '../db';
+import { sendSignInLinkMail } from './mails';
+import { checkThrottle, recordAttempt } from './throttle';
+import { hashLinkToken, newLinkToken } from './tokens';
+
+/** Long enough to switch to the mail app and back; short enough that an old mail is useless. */
+export const signInLinkMinutes = 20;
+
+export type LinkRequestOutcome = { outcome: 'accepted' } | { outcome: 'throttled'; retryAfterSeconds: number };
+
+export async function requestSignInLink(email: string, ip: string | null, origin: string): Promise<LinkRequestOutcome> {
+  const address = email.trim().toLowerCase();
+  const prepared = await db().transaction(async (trx) => {
+    await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`sign-in-link:${address}`]);
+    const throttle = await checkThrottle(trx, 'link_request', address, ip);
+    if (throttle.throttled) return { kind: 'throttled' as const, retryAfterSeconds: throttle.retryAfterSeconds };
+    const person = await trx('users as u')
+      .join('organisations as o', 'o.id', 'u.organisation_id')
+      .whereRaw('u.email = ?::citext', [address])
+      .andWhere({ 'u.role': 'homeowner', 'u.active': true })
+      .first('u.id', 'u.email', 'u.name', 'u.organisation_id', 'o.name as organisation_name');
+    await recordAttempt(trx, 'link_request', address, ip, Boolean(person));
+    if (!person) return { kind: 'unknown' as const };
+    const token = newLinkToken();
+    await trx('sign_in_links').insert({
+      user_id: person.id,
+      token_hash: hashLinkToken(token),
+      expires_at: new Date(Date.now() + signInLinkMinutes * 60_000),
+      requested_ip: ip,
+    });
+    await recordAudit(trx, {
+      organisationId: person.organisation_id,
+      actorLabel: person.email,
+      action: 'sign_in.link_sent',
+      entityType: 'user',
+      entityId: person.id,
+      ip,
+    });
+    return { kind: 'send' as const, person, token };
+  });
+  if (prepared.kind === 'throttled') return { outcome: 'throttled', retryAfterSeconds: prepared.retryAfterSeconds };
+  if (prepared.kind === 'send') {
+    const link = `${origin}/signin/link?token=${prepared.token}`;
+    sendSignInLinkMail({ email: prepared.person.email, name: prepared.person.name }, prepared.person.organisation_name, link, signInLinkMinutes).catch((error: unknown) => {
+      console.error('[sign-in] could not send a sign-in link:', error instanceof Error ? error.message : error);
+    });
+  }
+  return { outcome: 'accepted' };
+}

@@ -1,0 +1,70 @@
+/**
+ * Sign-in throttling, counted in the database so every app instance agrees. A sliding
+ * window: once an account (or an address) has N counted events in the last 15 minutes, it
+ * waits until the oldest of those N leaves the window.
+ *
+ * - Password sign-ins count failures; a success resets the account's count (not the address's,
+ *   so signing in to one's own account cannot unlock guessing at others).
+ * - Link requests count every request, so nobody can flood a homeowner's inbox.
+ */
+import type { Knex } from 'knex';
+
+export type AttemptKind = 'password' | 'link_request' | 'link';
+
+export interface ThrottleLimits {
+  windowMinutes: number;
+  perAccount: number;
+  perAddress: number;
+}
+
+/** Common practice (OWASP authentication cheat sheet: lock out after a few failures), no fixed standard. */
+export const passwordLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
+export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
+
+export type ThrottleVerdict = { throttled: false } | { throttled: true; scope: 'account' | 'address'; retryAfterSeconds: number };
+
+/** When the Nth most recent counted event leaves the window, or null when fewer than N. */
+async function freedAt(knex: Knex, query: Knex.QueryBuilder, limit: number, windowMinutes: number): Promise<Date | null> {
+  const row = await query
+    .clone()
+    .where('created_at', '>', knex.raw(`now() - make_interval(mins => ?)`, [windowMinutes]))
+    .orderBy('created_at', 'desc')
+    .offset(limit - 1)
+    .first('created_at');
+  if (!row) return null;
+  return new Date(new Date(row.created_at).getTime() + windowMinutes * 60_000);
+}
+
+function verdict(scope: 'account' | 'address', until: Date | null): ThrottleVerdict | null {
+  if (!until) return null;
+  return { throttled: true, scope, retryAfterSeconds: Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000)) };
+}
+
+export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null): Promise<ThrottleVerdict> {
+  const limits = kind === 'password' ? passwordLimits : linkRequestLimits;
+  if (email) {
+    const account = knex('sign_in_attempts').where({ kind, email });
+    if (kind === 'password') {
+      account.where('succeeded', false).andWhere('created_at', '>', knex.raw(`coalesce((select max(created_at) from sign_in_attempts where kind = 'password' and email = ? and succeeded), '-infinity')`, [email]));
+    }
+    const hit = verdict('account', await freedAt(knex, account, limits.perAccount, limits.windowMinutes));
+    if (hit) return hit;
+  }
+  if (ip) {
+    const address = knex('sign_in_attempts').where({ kind, ip });
+    if (kind === 'password') address.where('succeeded', false);
+    const hit = verdict('address', await freedAt(knex, address, limits.perAddress, limits.windowMinutes));
+    if (hit) return hit;
+  }
+  return { throttled: false };
+}
+
+export async function recordAttempt(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null, succeeded: boolean): Promise<void> {
+  await knex('sign_in_attempts').insert({ kind, email, ip, succeeded });
+}
+
+/** "about 12 minutes" for a message a person reads. */
+export function waitInWords(seconds: number): string {
+  const minutes = Math.ceil(seconds / 60);
+  return minutes <= 1 ? 'about a minute' : `about ${minutes} minutes`;
+}
