@@ -82,8 +82,8 @@ export type DraftObservations = z.infer<typeof DraftObservationsSchema>;
 /** PATCH body: a merge patch of the three documents, plus the visit's facts. */
 export const AssessmentPatchSchema = z
   .strictObject({
-    answers: z.record(questionKey, z.union([AnswerEntrySchema, z.null()])).optional(),
-    measurements: z.record(questionKey, z.union([MeasurementEntrySchema, z.null()])).optional(),
+    answers: z.record(questionKey, AnswerEntrySchema.nullable()).optional(),
+    measurements: z.record(questionKey, MeasurementEntrySchema.nullable()).optional(),
     /** Validated as a whole after merging (see DraftObservationsSchema). */
     observations: z
       .strictObject({

@@ -7,19 +7,21 @@ export type ClientKind = (typeof CLIENT_KINDS)[number];
 
 const kind = z.enum(CLIENT_KINDS, `must be one of: ${CLIENT_KINDS.join(', ')}`);
 const contactEmail = z
-  .union([z.email('must be an e-mail address').max(254, 'must be at most 254 characters'), z.literal('').transform(() => null), z.null()])
+  .string('must be text')
+  .trim()
+  .max(254, 'must be at most 254 characters')
+  .refine((value) => value === '' || z.email().safeParse(value).success, 'must be an e-mail address')
+  .transform((value) => value || null)
+  .nullable()
   .optional();
 /** Digits, spaces and the usual phone punctuation; long enough for an extension. */
 const phone = z
-  .union([
-    z
-      .string()
-      .trim()
-      .max(40, 'must be at most 40 characters')
-      .regex(/^\+?[0-9 ().\-/]*(?:(?:x|ext\.?)\s*[0-9]+)?$/i, 'must be a phone number (digits, spaces, + ( ) . - /)')
-      .transform((value) => value || null),
-    z.null(),
-  ])
+  .string('must be text')
+  .trim()
+  .max(40, 'must be at most 40 characters')
+  .regex(/^\+?[0-9 ().\-/]*(?:(?:x|ext\.?)\s*[0-9]+)?$/i, 'must be a phone number (digits, spaces, + ( ) . - /)')
+  .transform((value) => value || null)
+  .nullable()
   .optional();
 
 export const ClientCreateSchema = z.strictObject({

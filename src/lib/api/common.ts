@@ -11,7 +11,7 @@ const noNul = (value: string) => !value.includes('\u0000');
 /** Required, trimmed, non-empty text of at most `max` characters. */
 export const text = (max: number) =>
   z
-    .string()
+    .string('must be text')
     .trim()
     .min(1, 'must not be empty')
     .max(max, `must be at most ${max} characters`)
@@ -20,7 +20,12 @@ export const text = (max: number) =>
 /** Optional text that may also be cleared with null (or an empty string, stored as null). */
 export const optionalText = (max: number) =>
   z
-    .union([text(max), z.literal('').transform(() => null), z.null()])
+    .string('must be text')
+    .trim()
+    .max(max, `must be at most ${max} characters`)
+    .refine(noNul, 'must not contain NUL characters')
+    .transform((value) => value || null)
+    .nullable()
     .optional();
 
 export const IdSchema = z.uuid('must be an id (UUID)');

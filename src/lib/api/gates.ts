@@ -25,7 +25,7 @@ export const GATE_DIMENSION_BOUNDS = {
 } as const;
 
 const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
-const nullable = <S extends z.ZodType>(schema: S) => z.union([schema, z.null()]).optional();
+const nullable = <S extends z.ZodType>(schema: S) => schema.nullable().optional();
 
 const entered = <K extends 'length' | 'mass'>(kind: K) =>
   z.strictObject({

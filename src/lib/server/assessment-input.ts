@@ -14,10 +14,16 @@ import {
 } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
-import { AssessmentInputSchema, MeasuredValueSchema, type AssessmentInput, type MeasuredValue } from '@/lib/rules/input';
-import { canonicalValue, kindOfUnit, MEASURED_ANSWER_TYPES } from '@/lib/rules/measures';
-import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
-import { YES_NO_NA } from '@/lib/rules/vocabulary';
+import {
+  AssessmentInputSchema,
+  MEASURED_ANSWER_TYPES,
+  MeasuredValueSchema,
+  YES_NO_NA,
+  type AssessmentInput,
+  type MeasuredValue,
+  type RulesetQuestion,
+} from '@/lib/rules';
+import { canonicalValue, kindOfUnit } from '@/lib/rules/measures';
 import type { FieldError } from './http/problem';
 
 export interface AssessmentDocuments {

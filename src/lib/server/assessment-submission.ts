@@ -6,10 +6,7 @@
  */
 import type { Assessment } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
-import { AssessmentInputError } from '@/lib/rules/input-check';
-import { resultSha256 } from '@/lib/rules/hash';
-import { scoreParsed } from '@/lib/rules/engine';
-import type { RulesetVersion } from '@/lib/rules/ruleset-schema';
+import { AssessmentInputError, resultSha256, scoreParsed, type RulesetVersion } from '@/lib/rules';
 import { buildEngineInput } from './assessment-input';
 import { assertEditable, getAssessment, type RequestFacts } from './assessments';
 import { recordAudit } from './audit';
