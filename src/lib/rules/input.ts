@@ -1,0 +1,183 @@
+/**
+ * What an auditor brings back from a gate, as the engine reads it: the gate profile, the site,
+ * answers, measurements (each with the unit it was entered in and its canonical value),
+ * entrapment zones and devices, force tests, swing-operator geometry and HRN overrides.
+ * The API and the walk-through forms parse with these same schemas, so a value the engine
+ * would refuse is refused at the form, with the field named.
+ */
+import { z } from 'zod';
+import { ENTRAPMENT_DEVICE_TYPES } from './calculators/ul325-entrapment-types';
+import { CANONICAL_TOLERANCE, canonicalValue, kindOfUnit } from './measures';
+import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS, YES_NO_NA } from './vocabulary';
+
+const note = z.string().trim().max(2000, 'a note may be at most 2000 characters');
+const key = z.string().regex(KEY_PATTERN, 'keys are camelCase letters and digits, starting with a lower-case letter');
+const finite = z.number({ message: 'must be a number' }).finite('must be a finite number');
+const nonNegativeMm = finite.nonnegative('must not be negative');
+
+/**
+ * A measured value: `value` in the `unit` the auditor entered, and `canonical` in the unit the
+ * engine reads (mm, N, kg, m/s, s, V, A, deg, count). The canonical value must match the entered
+ * one, so a form's conversion slip is caught here, not in a report.
+ */
+export const MeasuredValueSchema = z
+  .strictObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() })
+  .superRefine((m, ctx) => {
+    const kind = kindOfUnit(m.unit);
+    if (!kind) {
+      ctx.addIssue({ code: 'custom', path: ['unit'], message: `unknown unit "${m.unit}"` });
+      return;
+    }
+    const expected = canonicalValue(kind, m.value, m.unit);
+    if (Math.abs(expected - m.canonical) > CANONICAL_TOLERANCE * Math.max(1, Math.abs(expected))) {
+      ctx.addIssue({ code: 'custom', path: ['canonical'], message: `${m.value} ${m.unit} is ${expected} in canonical units, not ${m.canonical}` });
+    }
+  });
+export type MeasuredValue = z.infer<typeof MeasuredValueSchema>;
+
+export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3), z.literal(4)], {
+  message: 'usage class must be 1, 2, 3 or 4',
+});
+
+/** The gate as recorded in the office: what it is, how it opens, who uses it. */
+export const GateProfileSchema = z
+  .strictObject({
+    kind: z.enum(GATE_KINDS),
+    leaves: z.enum(['single', 'double']),
+    /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
+    openingDirection: z.enum(['pull_to_open', 'push_to_open']).optional(),
+    usageClass: UsageClassSchema,
+    leafWidth: MeasuredValueSchema.optional(),
+    leafHeight: MeasuredValueSchema.optional(),
+    leafWeight: MeasuredValueSchema.optional(),
+    /** The operator is listed to the applicable safety standard (label seen or paperwork). */
+    operatorListed: z.boolean(),
+    automaticClosing: z.boolean(),
+    operatorManufacturedOn: z.iso.date({ message: 'must be a date written YYYY-MM-DD' }).optional(),
+  })
+  .superRefine((p, ctx) => {
+    if (p.kind === 'swing' && !p.openingDirection) {
+      ctx.addIssue({ code: 'custom', path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
+    }
+    const dims: Array<['leafWidth' | 'leafHeight' | 'leafWeight', string]> = [['leafWidth', 'length'], ['leafHeight', 'length'], ['leafWeight', 'mass']];
+    for (const [field, kind] of dims) {
+      const m = p[field];
+      if (m && kindOfUnit(m.unit) !== kind) ctx.addIssue({ code: 'custom', path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
+      if (m && m.canonical <= 0) ctx.addIssue({ code: 'custom', path: [field, 'value'], message: `${field} must be greater than zero` });
+    }
+  });
+export type GateProfile = z.infer<typeof GateProfileSchema>;
+
+/** Who is around the gate: drives which rules apply and the HRN likelihood, frequency and people. */
+export const SiteContextSchema = z.strictObject({
+  pedestriansUseDriveway: z.boolean(),
+  childrenOrPetsPresent: z.boolean(),
+  publicAccess: z.boolean(),
+  slopeAcrossSwing: z.boolean(),
+});
+export type SiteContext = z.infer<typeof SiteContextSchema>;
+
+export const AnswerSchema = z.strictObject({ value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }), note: note.optional() });
+/** A choice, date or short text answer (choice values are checked against the ruleset's options when scoring). */
+export const ChoiceSchema = z.strictObject({ value: z.string().trim().min(1).max(200), note: note.optional() });
+
+/** Places along a gate where someone can be caught (UL 325 entrapment zones, as the auditor finds them). */
+export const ENTRAPMENT_ZONES = ['closing_edge', 'hinge_side', 'open_side', 'post_gap', 'gate_bottom', 'other'] as const;
+
+/** Entrapment zones found on the walk and the protection devices fitted, per zone and direction. */
+export const EntrapmentInputSchema = z.strictObject({
+  zones: z.array(z.strictObject({ zone: z.enum(ENTRAPMENT_ZONES), direction: z.enum(TRAVEL_DIRECTIONS), note: note.optional() })).max(20),
+  devices: z
+    .array(
+      z.strictObject({
+        type: z.enum(ENTRAPMENT_DEVICE_TYPES as unknown as ['A', 'B1', 'B2', 'C', 'D', 'E']),
+        direction: z.enum(TRAVEL_DIRECTIONS),
+        zone: z.enum(ENTRAPMENT_ZONES),
+        /** The operator checks the device every cycle. */
+        monitored: z.boolean(),
+        note: note.optional(),
+      }),
+    )
+    .max(30),
+  /** Which UL 325 regime applies when the label date is unreadable but the listing is known. */
+  edition: z.enum(['pre-2016', '2016']).optional(),
+});
+export type EntrapmentInput = z.infer<typeof EntrapmentInputSchema>;
+
+/** A force meter's own summary of one measuring point, when the raw trace is not kept. */
+export const ForceSummarySchema = z.strictObject({
+  peakN: nonNegativeMm,
+  durationAbove150S: nonNegativeMm,
+  staticN: nonNegativeMm,
+  residualAt5sN: nonNegativeMm,
+});
+
+/** One force measurement at one point: raw samples (time s, force N) or the meter's summary. */
+export const ForceTestSchema = z
+  .strictObject({
+    location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
+    direction: z.enum(TRAVEL_DIRECTIONS),
+    /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
+    gapMm: nonNegativeMm,
+    heightMm: nonNegativeMm.optional(),
+    samples: z.array(z.strictObject({ t: finite, f: finite })).min(2).max(20_000).optional(),
+    summary: ForceSummarySchema.optional(),
+    note: note.optional(),
+  })
+  .superRefine((t, ctx) => {
+    if (!t.samples === !t.summary) ctx.addIssue({ code: 'custom', path: ['samples'], message: 'give either the samples or the summary of the trace, not both' });
+  });
+export type ForceTest = z.infer<typeof ForceTestSchema>;
+
+/**
+ * Top view of a linear swing operator (mm, degrees): A back along the gate line from the hinge
+ * axis to the rear pivot, B across it (negative: operator on the far side), the leaf bracket's
+ * distance from the hinge, the ram's retracted length and stroke, the opening wanted.
+ */
+export const SwingGeometryInputSchema = z
+  .strictObject({
+    aMm: finite,
+    bMm: finite,
+    bracketFromHingeMm: finite.positive('must be greater than zero'),
+    retractedLengthMm: finite.positive('must be greater than zero'),
+    strokeMm: finite.positive('must be greater than zero'),
+    targetOpeningDeg: finite.gt(0, 'must be above 0°').lte(180, 'must be at most 180°'),
+    bracketOffsetMm: nonNegativeMm.optional(),
+    leafThicknessMm: nonNegativeMm.optional(),
+    operatorHalfWidthMm: nonNegativeMm.optional(),
+    operatorBodyLengthMm: finite.positive().optional(),
+  })
+  .superRefine((g, ctx) => {
+    if (g.aMm === 0 && g.bMm === 0) ctx.addIssue({ code: 'custom', path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' });
+  });
+export type SwingGeometryInput = z.infer<typeof SwingGeometryInputSchema>;
+
+const hrnKey = z.string().regex(/^[a-z0-9_]{1,40}$/);
+/** The auditor's own HRN factor keys for one rule, when the derived defaults do not fit the site. */
+export const HrnOverrideSchema = z.strictObject({
+  lo: hrnKey.optional(),
+  fe: hrnKey.optional(),
+  dph: hrnKey.optional(),
+  np: hrnKey.optional(),
+  reason: z.string().trim().min(1, 'say why the rating was changed').max(500),
+});
+
+/** The whole assessment input scored against a ruleset version. */
+export const AssessmentInputSchema = z.strictObject({
+  profile: GateProfileSchema,
+  site: SiteContextSchema,
+  answers: z.record(key, AnswerSchema).optional(),
+  choices: z.record(key, ChoiceSchema).optional(),
+  measurements: z.record(key, MeasuredValueSchema).optional(),
+  entrapment: EntrapmentInputSchema.optional(),
+  forceTests: z.array(ForceTestSchema).max(50).optional(),
+  swingGeometry: SwingGeometryInputSchema.optional(),
+  hrnOverrides: z.record(z.string().min(3).max(120), HrnOverrideSchema).optional(),
+}).superRefine((input, ctx) => {
+  for (const k of Object.keys(input.choices ?? {})) {
+    if (input.answers && Object.prototype.hasOwnProperty.call(input.answers, k)) {
+      ctx.addIssue({ code: 'custom', path: ['choices', k], message: `"${k}" is answered both as yes/no and as a choice` });
+    }
+  }
+});
+export type AssessmentInput = z.infer<typeof AssessmentInputSchema>;
