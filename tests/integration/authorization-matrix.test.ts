@@ -54,6 +54,10 @@ interface Targets {
   freshPhoto(): Promise<{ draftId: string; photoId: string }>;
   /** A force trace uploaded (as the owner) to a fresh draft. */
   freshTrace(): Promise<{ draftId: string; traceId: string }>;
+  /** An open staff invitation made by the owner. */
+  freshInvitation(): Promise<string>;
+  /** The family's current published version id. */
+  versionId: string;
 }
 
 interface Row {
@@ -67,6 +71,15 @@ interface Row {
 const row = (route: string, method: Row['method'], call: Row['call'], expected: Record<Who, number>): Row => ({ route, method, call, expect: expected });
 
 const siteContext = { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false };
+
+/** A fresh draft amendment of the family's current version, derived by the subject organisation's owner. */
+async function freshAmendment(t: Targets): Promise<{ path: string; ruleId: string }> {
+  const from = await currentVersion(t.family);
+  const res = await send(clients.owner, 'POST', { path: '/api/rulesets/amendments', body: { fromFamily: t.family, fromVersion: from.version } });
+  if (res.status !== 201) throw new Error(`deriving an amendment answered ${res.status}: ${await res.text()}`);
+  const draft = await res.json();
+  return { path: `/api/rulesets/${draft.family}/${draft.version}`, ruleId: draft.content.rules[0].id };
+}
 
 // prettier-ignore
 const matrix: Row[] = [
@@ -112,6 +125,30 @@ const matrix: Row[] = [
   row('assessments/[id]/force-traces/index', 'GET', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/force-traces` }), s(200, 200, 200, 404, 401, 404)),
   row('assessments/[id]/force-traces/index', 'POST', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/force-traces?${traceQuery}`, raw: { contentType: 'text/csv', text: forceTraceCsv } }), s(201, 201, 201, 403, 401, 404)),
   row('assessments/[id]/force-traces/[traceId]', 'DELETE', async (t) => { const f = await t.freshTrace(); return { path: `/api/assessments/${f.draftId}/force-traces/${f.traceId}` }; }, s(204, 204, 204, 403, 401, 404)),
+
+  row('invitations/[id]',            'DELETE', async (t) => ({ path: `/api/invitations/${await t.freshInvitation()}` }),              s(204, 403, 403, 403, 401, 404)),
+  row('verify/index',                'GET',    () => ({ path: '/api/verify?document=00000000-0000-4000-8000-000000000000' }),         s(200, 200, 200, 200, 200, 200)),
+  row('verify/index',                'POST',   () => ({ path: '/api/verify', raw: { contentType: 'application/pdf', text: '%PDF-1.7 not a report' } }), s(200, 200, 200, 200, 200, 200)),
+  row('archive/index',               'GET',    () => ({ path: '/api/archive' }),                                                      s(200, 200, 403, 403, 401, 200)),
+  row('archive/count',               'GET',    () => ({ path: '/api/archive/count' }),                                                s(200, 200, 403, 403, 401, 200)),
+  row('archive/export',              'GET',    () => ({ path: '/api/archive/export' }),                                               s(200, 200, 403, 403, 401, 200)),
+  row('archive/audit/index',         'GET',    () => ({ path: '/api/archive/audit' }),                                                s(200, 403, 403, 403, 401, 200)),
+  row('archive/audit/verify',        'GET',    () => ({ path: '/api/archive/audit/verify' }),                                         s(200, 403, 403, 403, 401, 200)),
+  row('archive/gates/[id]/index',    'GET',    (t) => ({ path: `/api/archive/gates/${t.dir.gateId}` }),                               s(200, 200, 200, 403, 401, 404)),
+  row('archive/gates/[id]/reinspection.ics', 'GET', (t) => ({ path: `/api/archive/gates/${t.dir.gateId}/reinspection.ics` }),         s(200, 200, 200, 403, 401, 404)),
+  row('archive/impact',              'GET',    (t) => ({ path: `/api/archive/impact?versionId=${t.versionId}` }),                     s(200, 200, 403, 403, 401, 200)),
+  row('archive/impact.csv',          'GET',    (t) => ({ path: `/api/archive/impact.csv?versionId=${t.versionId}` }),                 s(200, 200, 403, 403, 401, 200)),
+  row('archive/reinspection/index',  'GET',    () => ({ path: '/api/archive/reinspection' }),                                         s(200, 200, 403, 403, 401, 200)),
+  row('archive/reinspection/reminders', 'POST', () => ({ path: '/api/archive/reinspection/reminders' }),                               s(202, 202, 403, 403, 401, 202)),
+
+  row('score',                       'POST',   (t) => ({ path: '/api/score', body: { family: t.family, input: { profile: { kind: 'slide', leaves: 'single', usageClass: 1, operatorListed: true, automaticClosing: false }, site: siteContext } } }), s(200, 200, 200, 403, 401, 200)),
+  row('rulesets/index',              'GET',    () => ({ path: '/api/rulesets' }),                                                     s(200, 200, 200, 200, 401, 200)),
+  row('rulesets/amendments',         'POST',   async (t) => ({ path: '/api/rulesets/amendments', body: { fromFamily: t.family, fromVersion: (await currentVersion(t.family)).version } }), s(201, 403, 403, 403, 401, 201)),
+  row('rulesets/[family]/diff',      'GET',    async (t) => { const v = (await currentVersion(t.family)).version; return { path: `/api/rulesets/${t.family}/diff?from=${v}&to=${v}` }; }, s(200, 200, 200, 200, 401, 200)),
+  row('rulesets/[family]/[version]', 'GET',    async (t) => ({ path: (await freshAmendment(t)).path }),                               s(200, 200, 200, 404, 401, 404)),
+  row('rulesets/[family]/[version]', 'PATCH',  async (t) => { const a = await freshAmendment(t); return { path: a.path, body: { rules: { [a.ruleId]: { severity: 'critical' } } } }; }, s(200, 403, 403, 403, 401, 404)),
+  row('rulesets/[family]/[version]', 'DELETE', async (t) => ({ path: (await freshAmendment(t)).path }),                               s(204, 403, 403, 403, 401, 404)),
+  row('rulesets/[family]/[version]/publish', 'POST', async (t) => ({ path: `${(await freshAmendment(t)).path}/publish` }),           s(200, 403, 403, 403, 401, 404)),
 ];
 
 /** An 8 × 8 grey PNG, made on the spot. */
@@ -182,6 +219,12 @@ beforeAll(async () => {
     freshGate: () => insertGate(org.id, dir.siteId),
     freshDraft: () => insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { observations: JSON.stringify({ site: siteContext }) }),
     uniqueEmail: (prefix) => `${prefix}.${Date.now()}.${emails++}@matrix.test`,
+    versionId: version.id,
+    async freshInvitation() {
+      const res = await send(clients.owner, 'POST', { path: '/api/invitations', body: { email: targets.uniqueEmail('withdrawn'), role: 'office' } });
+      if (res.status !== 201) throw new Error(`inviting answered ${res.status}: ${await res.text()}`);
+      return (await res.json()).id;
+    },
     async freshPhoto() {
       const draftId = await targets.freshDraft();
       const res = await send(clients.owner, 'POST', { path: `/api/assessments/${draftId}/photos`, multipart: await photoForm() });

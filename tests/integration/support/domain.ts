@@ -87,7 +87,7 @@ export interface Directory {
 export async function seedDirectory(org: FixtureOrganisation): Promise<Directory> {
   const clientId = await insertClient(org.id);
   const siteId = await insertSite(org.id, clientId, { usage_class: 2 });
-  const gateId = await insertGate(org.id, siteId);
+  const gateId = await insertGate(org.id, siteId, { next_inspection_due: '2027-03-01' });
   const homeSiteId = await insertSite(org.id, org.clientId);
   const homeGateId = await insertGate(org.id, homeSiteId);
   return { clientId, siteId, gateId, homeSiteId, homeGateId };
