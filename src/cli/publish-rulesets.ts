@@ -22,13 +22,16 @@ export function rulesetFiles(root = path.join(projectRoot, 'rulesets')): string[
     .map((f) => path.join(root, f));
 }
 
-/** Publishes all shipped files; returns the "family version" labels newly published. */
-export async function publishRulesetFiles(connectionString: string): Promise<string[]> {
+/**
+ * Publishes all shipped files (those under `root`, the repository's rulesets/ unless a test
+ * names another folder); returns the "family version" labels newly published.
+ */
+export async function publishRulesetFiles(connectionString: string, root = path.join(projectRoot, 'rulesets')): Promise<string[]> {
   const instance = knex(knexConfig(connectionString));
   const published: string[] = [];
   try {
-    for (const file of rulesetFiles()) {
-      const relative = path.relative(projectRoot, file);
+    for (const file of rulesetFiles(root)) {
+      const relative = path.relative(path.dirname(root), file);
       let loaded;
       try {
         loaded = loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8')), relative);
