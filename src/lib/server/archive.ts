@@ -1,0 +1,161 @@
+/**
+ * The archive list: every assessment of the organisation, filtered (archive-filters.ts), sorted
+ * and paged by keyset. A page is "the next `limit` rows after this (sort value, id)", so page
+ * 400 costs what page 1 costs and rows filed meanwhile never shift a page. The total is a
+ * separate call, so typing in the search box does not pay for counting.
+ */
+import type { Knex } from 'knex';
+import type { ArchiveFilter, ArchiveItem, ArchiveListQuery, ArchivePage, ArchiveSort } from '@/lib/api/archive';
+import { applyArchiveFilter, archiveBase, archiveDateSql } from './archive-filters';
+import { db } from './db';
+import { HttpProblem } from './http/problem';
+import { iso } from './listing';
+
+interface ArchiveRow {
+  id: string;
+  status: ArchiveItem['status'];
+  verdict: ArchiveItem['verdict'];
+  archive_date: Date;
+  signed_at: Date | null;
+  client_id: string;
+  client_name: string;
+  site_id: string;
+  address_line1: string;
+  city: string;
+  postal_code: string | null;
+  usage_class: number;
+  gate_id: string;
+  gate_label: string;
+  gate_kind: string;
+  auditor_id: string;
+  auditor_name: string;
+  family: string;
+  version: string;
+  signed_document_id: string | null;
+  /** The sort value as PostgreSQL text, so a cursor keeps microseconds exactly. */
+  sort_key: string;
+}
+
+export const archiveColumns = (knex: Knex) => [
+  'a.id',
+  'a.status',
+  'a.verdict',
+  knex.raw(`${archiveDateSql} as archive_date`),
+  'a.signed_at',
+  'c.id as client_id',
+  'c.name as client_name',
+  's.id as site_id',
+  's.address_line1',
+  's.city',
+  's.postal_code',
+  's.usage_class',
+  'g.id as gate_id',
+  'g.label as gate_label',
+  'g.kind as gate_kind',
+  'u.id as auditor_id',
+  'u.name as auditor_name',
+  'r.family',
+  'rv.version',
+  'd.id as signed_document_id',
+];
+
+export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key'>): ArchiveItem {
+  return {
+    id: row.id,
+    status: row.status,
+    verdict: row.verdict,
+    date: iso(row.archive_date),
+    signedAt: row.signed_at ? iso(row.signed_at) : null,
+    client: { id: row.client_id, name: row.client_name },
+    site: { id: row.site_id, addressLine1: row.address_line1, city: row.city, postalCode: row.postal_code, usageClass: row.usage_class },
+    gate: { id: row.gate_id, label: row.gate_label, kind: row.gate_kind },
+    auditor: { id: row.auditor_id, name: row.auditor_name },
+    ruleset: { family: row.family, version: row.version },
+    signedDocumentId: row.signed_document_id,
+  };
+}
+
+interface SortPlan {
+  /** SQL of the sort value (first key); the assessment id is always the second. */
+  expression: string;
+  /** Cast a cursor's text value back to the column's type. */
+  cast: string;
+  direction: 'asc' | 'desc';
+}
+
+const sortPlans: Record<ArchiveSort, SortPlan> = {
+  '-date': { expression: archiveDateSql, cast: 'timestamptz', direction: 'desc' },
+  date: { expression: archiveDateSql, cast: 'timestamptz', direction: 'asc' },
+  client: { expression: 'c.name', cast: 'text', direction: 'asc' },
+  '-client': { expression: 'c.name', cast: 'text', direction: 'desc' },
+  gate: { expression: 'g.label', cast: 'text', direction: 'asc' },
+  '-gate': { expression: 'g.label', cast: 'text', direction: 'desc' },
+};
+
+interface Cursor {
+  sort: ArchiveSort;
+  value: string;
+  id: string;
+}
+
+export function encodeCursor(cursor: Cursor): string {
+  return Buffer.from(JSON.stringify([cursor.sort, cursor.value, cursor.id]), 'utf8').toString('base64url');
+}
+
+/** timestamptz as PostgreSQL writes it: `2026-11-20 09:15:02.123456+00`. */
+const timestampText = /^\d{4}-\d\d-\d\d \d\d:\d\d:\d\d(\.\d{1,6})?[+-]\d\d(:\d\d){0,2}$/;
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** A cursor from a previous page of the same sort; 400 for anything else. */
+export function decodeCursor(text: string, sort: ArchiveSort, field: 'after' | 'before'): Cursor {
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(Buffer.from(text, 'base64url').toString('utf8'));
+  } catch {
+    parsed = null;
+  }
+  const bad = (message: string) => new HttpProblem(400, 'Some query parameters are invalid.', { errors: [{ field, message }] });
+  if (!Array.isArray(parsed) || parsed.length !== 3 || !parsed.every((p) => typeof p === 'string')) throw bad('is not a cursor from this list');
+  const [cursorSort, value, id] = parsed as [string, string, string];
+  if (cursorSort !== sort) throw bad('belongs to another sort order; start again from the first page');
+  if (!uuidPattern.test(id) || value.length > 300) throw bad('is not a cursor from this list');
+  if (sortPlans[sort].cast === 'timestamptz' && !timestampText.test(value)) throw bad('is not a cursor from this list');
+  return { sort, value, id };
+}
+
+/** One page of the archive in the requested sort, before or after a cursor. */
+export async function listArchive(organisationId: string, timeZone: string, query: ArchiveListQuery, knex: Knex = db()): Promise<ArchivePage> {
+  const plan = sortPlans[query.sort];
+  const backwards = Boolean(query.before);
+  const cursor = query.after ? decodeCursor(query.after, query.sort, 'after') : query.before ? decodeCursor(query.before, query.sort, 'before') : null;
+  // Reading backwards walks the opposite order from the cursor, then turns the page round.
+  const direction = backwards ? (plan.direction === 'asc' ? 'desc' : 'asc') : plan.direction;
+  const base = applyArchiveFilter(archiveBase(knex, organisationId), knex, organisationId, query, timeZone);
+  if (cursor) {
+    const comparison = direction === 'asc' ? '>' : '<';
+    base.andWhereRaw(`(${plan.expression}, a.id) ${comparison} (?::${plan.cast}, ?::uuid)`, [cursor.value, cursor.id]);
+  }
+  const rows = (await base
+    .select([...archiveColumns(knex), knex.raw(`(${plan.expression})::text as sort_key`)])
+    .orderByRaw(`${plan.expression} ${direction}, a.id ${direction}`)
+    .limit(query.limit + 1)) as ArchiveRow[];
+
+  const more = rows.length > query.limit;
+  const page = rows.slice(0, query.limit);
+  if (backwards) page.reverse();
+  const cursorOf = (row: ArchiveRow | undefined) => (row ? encodeCursor({ sort: query.sort, value: row.sort_key, id: row.id }) : null);
+  const hasNext = backwards ? true : more;
+  const hasPrev = backwards ? more : Boolean(cursor);
+  return {
+    items: page.map(toArchiveItem),
+    nextCursor: hasNext && page.length ? cursorOf(page[page.length - 1]) : null,
+    prevCursor: hasPrev && page.length ? cursorOf(page[0]) : null,
+  };
+}
+
+/** How many assessments the filter matches. */
+export async function countArchive(organisationId: string, timeZone: string, filter: ArchiveFilter, knex: Knex = db()): Promise<number> {
+  const base = applyArchiveFilter(archiveBase(knex, organisationId), knex, organisationId, filter, timeZone);
+  const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
+  return Number(total);
+}

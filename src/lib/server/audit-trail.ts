@@ -1,0 +1,167 @@
+/**
+ * The owner's view of the audit trail: their organisation's events, newest first, and a
+ * verification of the hash chain that points at the first broken link.
+ *
+ * The chain is one sequence for the whole database (audit.ts), so a link can only be checked
+ * by walking all of it. The walk runs in one REPEATABLE READ snapshot, so events appended
+ * while it runs are not half-seen. Each row is checked twice: its `prev_hash` must equal the
+ * stored hash of the row before it (nothing removed or inserted), and its own hash must
+ * match its fields (nothing edited). After a broken row the walk carries on from the row's
+ * stored hash, so one edit is reported once instead of condemning everything after it.
+ *
+ * An owner is told where their own organisation's events break, and only how many breaks
+ * there are elsewhere: other organisations' rows are none of their business.
+ */
+import type { Knex } from 'knex';
+import { auditHash, genesisHash } from './audit';
+import { db } from './db';
+import { iso } from './listing';
+
+export interface AuditEventView {
+  id: number;
+  at: string;
+  actorUserId: string | null;
+  actorLabel: string | null;
+  action: string;
+  entityType: string | null;
+  entityId: string | null;
+  ip: string | null;
+  detail: Record<string, unknown>;
+  hash: string;
+}
+
+export interface AuditPage {
+  items: AuditEventView[];
+  /** Pass as `before` for older events; null when this page reaches the first event. */
+  nextBefore: number | null;
+}
+
+export interface TrailVerification {
+  /** True when every event of this organisation and every link into them are intact. */
+  ok: boolean;
+  /** Events of this organisation checked. */
+  checked: number;
+  /** Events checked across the whole chain. */
+  chainLength: number;
+  /** The organisation's first event whose hash or link does not match, when there is one. */
+  firstBrokenId: number | null;
+  /** `content`: the row's fields no longer give its hash; `link`: a row before it was removed, inserted or re-hashed. */
+  brokenBy: 'content' | 'link' | null;
+  /** Broken rows belonging to other organisations or to no organisation (counted, not shown). */
+  brokenElsewhere: number;
+  verifiedAt: string;
+}
+
+interface StoredRow {
+  id: string | number;
+  organisation_id: string | null;
+  actor_user_id: string | null;
+  actor_label: string | null;
+  action: string;
+  entity_type: string | null;
+  entity_id: string | null;
+  ip: string | null;
+  detail: Record<string, unknown>;
+  created_at: Date;
+  prev_hash: string;
+  hash: string;
+}
+
+const rowColumns = (knex: Knex) => [
+  'id',
+  'organisation_id',
+  'actor_user_id',
+  'actor_label',
+  'action',
+  'entity_type',
+  'entity_id',
+  knex.raw('host(ip) as ip'),
+  'detail',
+  'created_at',
+  'prev_hash',
+  'hash',
+];
+
+export interface AuditListOptions {
+  before?: number;
+  limit: number;
+  action?: string;
+  entityId?: string;
+}
+
+export async function listAuditEvents(organisationId: string, options: AuditListOptions, knex: Knex = db()): Promise<AuditPage> {
+  const query = knex('audit_events').where('organisation_id', organisationId);
+  if (options.before) query.andWhere('id', '<', options.before);
+  if (options.action) query.andWhere('action', options.action);
+  if (options.entityId) query.andWhere('entity_id', options.entityId);
+  const rows = (await query.orderBy('id', 'desc').limit(options.limit + 1).select(rowColumns(knex))) as StoredRow[];
+  const page = rows.slice(0, options.limit);
+  return {
+    items: page.map((row) => ({
+      id: Number(row.id),
+      at: iso(row.created_at),
+      actorUserId: row.actor_user_id,
+      actorLabel: row.actor_label,
+      action: row.action,
+      entityType: row.entity_type,
+      entityId: row.entity_id,
+      ip: row.ip,
+      detail: row.detail ?? {},
+      hash: row.hash,
+    })),
+    nextBefore: rows.length > options.limit ? Number(page.at(-1)!.id) : null,
+  };
+}
+
+function recomputedHash(row: StoredRow): string {
+  return auditHash(row.prev_hash, {
+    organisation_id: row.organisation_id,
+    actor_user_id: row.actor_user_id,
+    actor_label: row.actor_label,
+    action: row.action,
+    entity_type: row.entity_type,
+    entity_id: row.entity_id,
+    ip: row.ip,
+    detail: row.detail,
+    created_at: iso(row.created_at),
+  });
+}
+
+const BATCH = 2000;
+
+/** Walks the whole chain in one snapshot and reports on `organisationId`'s part of it. */
+export async function verifyOrganisationTrail(organisationId: string, knex: Knex = db()): Promise<TrailVerification> {
+  return knex.transaction(
+    async (trx) => {
+      let previousHash = genesisHash;
+      let lastId = 0;
+      let chainLength = 0;
+      let checked = 0;
+      let firstBrokenId: number | null = null;
+      let brokenBy: TrailVerification['brokenBy'] = null;
+      let brokenElsewhere = 0;
+      for (;;) {
+        const rows = (await trx('audit_events').where('id', '>', lastId).orderBy('id').limit(BATCH).select(rowColumns(trx))) as StoredRow[];
+        if (!rows.length) break;
+        for (const row of rows) {
+          const linkBroken = row.prev_hash !== previousHash;
+          const contentBroken = !linkBroken && recomputedHash(row) !== row.hash;
+          const ours = row.organisation_id === organisationId;
+          if (ours) checked++;
+          if (linkBroken || contentBroken) {
+            if (!ours) brokenElsewhere++;
+            else if (firstBrokenId === null) {
+              firstBrokenId = Number(row.id);
+              brokenBy = linkBroken ? 'link' : 'content';
+            }
+          }
+          previousHash = row.hash;
+          lastId = Number(row.id);
+          chainLength++;
+        }
+      }
+      return { ok: firstBrokenId === null, checked, chainLength, firstBrokenId, brokenBy, brokenElsewhere, verifiedAt: new Date().toISOString() };
+    },
+    { isolationLevel: 'repeatable read', readOnly: true },
+  );
+}

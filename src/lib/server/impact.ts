@@ -1,0 +1,377 @@
+/**
+ * Ruleset impact: what a newly published version would say about the gates already in the
+ * archive. Every signed assessment of the family made under another version is re-scored in
+ * memory against the new one — from its stored documents and the gate as it was scored
+ * (`gate_snapshot`) — and compared with the verdict it was signed with. Nothing stored
+ * changes: the archive keeps what was signed; this is a planning list for return visits.
+ *
+ * Rows are read in keyset batches (id order, one version at a time) and scored as they come,
+ * yielding to the event loop between batches, so memory holds one batch and the server keeps
+ * answering while a large archive is re-scored.
+ *
+ * `basis: 'latest'` (the default) looks at each gate's most recent signed assessment of the
+ * family only — the gate's standing record; a gate already signed under the new version is
+ * left out. `basis: 'all'` re-scores every signed assessment.
+ */
+import type { Knex } from 'knex';
+import { AssessmentInputError, scoreParsed, type Finding, type LoadedRuleset, type RulesetVersion } from '@/lib/rules';
+import type { AssessmentDocuments, GateForScoring } from './assessment-input';
+import { buildEngineInput } from './assessment-input';
+import { archiveDateSql } from './archive-filters';
+import { csvRow } from './csv';
+import { db } from './db';
+import { iso } from './listing';
+import { loadedRuleset } from './ruleset-cache';
+
+export type ImpactBasis = 'latest' | 'all';
+type Verdict = 'clear' | 'remedy' | 'withdraw';
+const VERDICT_RANK: Record<Verdict, number> = { clear: 0, remedy: 1, withdraw: 2 };
+
+export interface ImpactTarget {
+  id: string;
+  family: string;
+  version: string;
+  publishedAt: string | null;
+  /** The versions whose assessments are re-scored: the family's others. */
+  otherVersions: { id: string; version: string }[];
+}
+
+/** A rule behind a worse verdict, and how the same rule stood in the signed result. */
+export interface ResponsibleRule {
+  ruleId: string;
+  title: string;
+  area: string;
+  severity: Finding['severity'];
+  outcome: 'fail' | 'needs_info';
+  /** Outcome in the signed result: `absent` when the old version had no such rule. */
+  before: 'pass' | 'fail' | 'n/a' | 'needs_info' | 'absent';
+  beforeSeverity: Finding['severity'] | null;
+}
+
+export interface ImpactOutcome {
+  assessmentId: string;
+  gateId: string;
+  gateLabel: string;
+  gateKind: string;
+  clientName: string;
+  address: string;
+  city: string;
+  visitDate: string;
+  signedAt: string | null;
+  fromVersion: string;
+  before: Verdict;
+  after: Verdict | null;
+  change: 'worse' | 'better' | 'same' | 'unscorable';
+  rules: ResponsibleRule[];
+  /** Why it could not be re-scored (input the new version refuses), when it could not. */
+  problem?: string;
+}
+
+interface ImpactRow {
+  id: string;
+  gate_id: string;
+  gate_label: string;
+  gate_kind: string;
+  client_name: string;
+  address_line1: string;
+  city: string;
+  archive_date: Date;
+  signed_at: Date | null;
+  verdict: Verdict;
+  answers: AssessmentDocuments['answers'];
+  measurements: AssessmentDocuments['measurements'];
+  observations: AssessmentDocuments['observations'];
+  gate_snapshot: (Partial<GateForScoring> & { site?: { usageClass?: number } }) | null;
+  /** ruleId -> [outcome, severity] in the signed result. */
+  old_outcomes: Record<string, [ResponsibleRule['before'], Finding['severity']]> | null;
+}
+
+/** The published version `versionId` (a shipped family, or the organisation's own) and its family's other versions. */
+export async function impactTarget(organisationId: string, versionId: string, knex: Knex = db()): Promise<ImpactTarget | null> {
+  const target = await knex('ruleset_versions as rv')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where('rv.id', versionId)
+    .whereIn('rv.status', ['published', 'retired'])
+    .andWhere((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))
+    .first('rv.id', 'rv.ruleset_id', 'r.family', 'rv.version', 'rv.published_at');
+  if (!target) return null;
+  const others = await knex('ruleset_versions').where('ruleset_id', target.ruleset_id).andWhereNot('id', versionId).orderBy('created_at').select('id', 'version');
+  return {
+    id: target.id,
+    family: target.family,
+    version: target.version,
+    publishedAt: target.published_at ? iso(target.published_at) : null,
+    otherVersions: others,
+  };
+}
+
+/** Published versions that have a predecessor in their family: the ones an impact list makes sense for. */
+export async function impactCandidates(organisationId: string, knex: Knex = db()): Promise<{ id: string; family: string; title: string; version: string; publishedAt: string | null }[]> {
+  const rows = await knex('ruleset_versions as rv')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where('rv.status', 'published')
+    .andWhere((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))
+    .whereExists(knex('ruleset_versions as older').whereRaw('older.ruleset_id = rv.ruleset_id').andWhereRaw('older.id <> rv.id').andWhereRaw('older.created_at <= rv.created_at').select(knex.raw('1')))
+    .orderBy([{ column: 'r.family' }, { column: 'rv.published_at', order: 'desc' }])
+    .select('rv.id', 'r.family', 'r.title', 'rv.version', 'rv.published_at');
+  return rows.map((r) => ({ id: r.id, family: r.family, title: r.title, version: r.version, publishedAt: r.published_at ? iso(r.published_at) : null }));
+}
+
+async function loadTarget(knex: Knex, versionId: string): Promise<LoadedRuleset> {
+  const { content_sha256: sha } = await knex('ruleset_versions').where({ id: versionId }).first('content_sha256');
+  return loadedRuleset(sha, async () => (await knex('ruleset_versions').where({ id: versionId }).first('content')).content);
+}
+
+function gateForScoring(snapshot: ImpactRow['gate_snapshot']): GateForScoring | null {
+  if (!snapshot || !snapshot.kind || !snapshot.leaves) return null;
+  const usageClass = snapshot.usageClass ?? snapshot.site?.usageClass;
+  if (!usageClass) return null;
+  return {
+    kind: snapshot.kind,
+    leaves: snapshot.leaves,
+    openingDirection: snapshot.openingDirection ?? null,
+    widthMm: snapshot.widthMm ?? null,
+    heightMm: snapshot.heightMm ?? null,
+    weightKg: snapshot.weightKg ?? null,
+    entered: snapshot.entered ?? {},
+    operator: snapshot.operator ?? {},
+    usageClass,
+  } as GateForScoring;
+}
+
+/** The findings that set a verdict: critical fails for withdraw; major fails and unchecked criticals for remedy. */
+function verdictDrivers(findings: readonly Finding[], verdict: Verdict): Finding[] {
+  if (verdict === 'withdraw') return findings.filter((f) => f.severity === 'critical' && f.outcome === 'fail');
+  if (verdict === 'remedy') return findings.filter((f) => (f.severity === 'major' && f.outcome === 'fail') || (f.severity === 'critical' && f.outcome === 'needs_info'));
+  return [];
+}
+
+const SEVERITY_RANK = { critical: 0, major: 1, minor: 2 } as const;
+
+/** Re-scores one stored assessment against the target version. */
+export function rescore(row: ImpactRow, target: LoadedRuleset, fromVersion: string): ImpactOutcome {
+  const base: Omit<ImpactOutcome, 'after' | 'change' | 'rules'> = {
+    assessmentId: row.id,
+    gateId: row.gate_id,
+    gateLabel: row.gate_label,
+    gateKind: row.gate_kind,
+    clientName: row.client_name,
+    address: row.address_line1,
+    city: row.city,
+    visitDate: iso(row.archive_date),
+    signedAt: row.signed_at ? iso(row.signed_at) : null,
+    fromVersion,
+    before: row.verdict,
+  };
+  const gate = gateForScoring(row.gate_snapshot);
+  if (!gate) return { ...base, after: null, change: 'unscorable', rules: [], problem: 'the gate as scored was not recorded' };
+  const built = buildEngineInput(gate, { answers: row.answers ?? {}, measurements: row.measurements ?? {}, observations: row.observations ?? {} }, (target.version as RulesetVersion).questions);
+  if (!built.ok) return { ...base, after: null, change: 'unscorable', rules: [], problem: built.errors.map((e) => `${e.field}: ${e.message}`).join('; ') };
+  let findings: Finding[];
+  let after: Verdict;
+  try {
+    const result = scoreParsed(built.value, target);
+    findings = result.findings;
+    after = result.verdict;
+  } catch (error) {
+    if (!(error instanceof AssessmentInputError)) throw error;
+    return { ...base, after: null, change: 'unscorable', rules: [], problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
+  }
+  const delta = VERDICT_RANK[after] - VERDICT_RANK[row.verdict];
+  if (delta <= 0) return { ...base, after, change: delta < 0 ? 'better' : 'same', rules: [] };
+  const old = row.old_outcomes ?? {};
+  const rules = verdictDrivers(findings, after)
+    .filter((f) => {
+      // Responsible: it was not already failing at this severity or worse.
+      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
+      return !(outcome === f.outcome && severity !== null && SEVERITY_RANK[severity] <= SEVERITY_RANK[f.severity]);
+    })
+    .map((f) => {
+      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
+      return { ruleId: f.ruleId, title: f.title, area: f.area, severity: f.severity, outcome: f.outcome as 'fail' | 'needs_info', before: outcome, beforeSeverity: severity };
+    });
+  return { ...base, after, change: 'worse', rules };
+}
+
+const BATCH = 1000;
+
+function rowsOf(knex: Knex, organisationId: string, target: ImpactTarget, versionId: string, basis: ImpactBasis, afterId: string | null): Knex.QueryBuilder {
+  const familyVersionIds = [target.id, ...target.otherVersions.map((v) => v.id)];
+  const query = knex('assessments as a')
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .where({ 'a.organisation_id': organisationId, 'a.ruleset_version_id': versionId, 'a.status': 'signed' })
+    .whereNotNull('a.verdict');
+  if (afterId) query.andWhere('a.id', '>', afterId);
+  if (basis === 'latest') {
+    // The gate's most recent signed assessment of this family is this one.
+    query.whereNotExists(
+      knex('assessments as later')
+        .whereRaw('later.organisation_id = a.organisation_id and later.gate_id = a.gate_id')
+        .andWhere('later.status', 'signed')
+        .whereIn('later.ruleset_version_id', familyVersionIds)
+        .andWhereRaw(`(coalesce(later.visited_on, later.created_at), later.id) > (${archiveDateSql}, a.id)`)
+        .select(knex.raw('1')),
+    );
+  }
+  return query
+    .orderBy('a.id')
+    .limit(BATCH)
+    .select(
+      'a.id',
+      'a.gate_id',
+      'g.label as gate_label',
+      'g.kind as gate_kind',
+      'c.name as client_name',
+      's.address_line1',
+      's.city',
+      knex.raw(`${archiveDateSql} as archive_date`),
+      'a.signed_at',
+      'a.verdict',
+      'a.answers',
+      'a.measurements',
+      'a.observations',
+      'a.gate_snapshot',
+      knex.raw(
+        `(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`,
+      ),
+    );
+}
+
+const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
+ * Re-scores the archive against `target`, one outcome per assessment considered, as an async
+ * stream: callers count, list or write CSV without holding the whole archive.
+ */
+export async function* rescoreArchive(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db()): AsyncGenerator<ImpactOutcome> {
+  const loaded = await loadTarget(knex, target.id);
+  for (const from of target.otherVersions) {
+    let afterId: string | null = null;
+    for (;;) {
+      const rows = (await rowsOf(knex, organisationId, target, from.id, basis, afterId)) as ImpactRow[];
+      if (!rows.length) break;
+      for (const row of rows) yield rescore(row, loaded, from.version);
+      afterId = rows[rows.length - 1]!.id;
+      if (rows.length < BATCH) break;
+      await yieldToEventLoop();
+    }
+  }
+}
+
+export interface ImpactReport {
+  target: Omit<ImpactTarget, 'otherVersions'> & { comparedWith: string[] };
+  basis: ImpactBasis;
+  considered: number;
+  worse: number;
+  better: number;
+  same: number;
+  unscorable: number;
+  /** Worse gates, withdraw first, then by client and gate; at most `limit` of them. */
+  items: ImpactOutcome[];
+  truncated: boolean;
+  /** A few of the assessments that could not be re-scored, with why. */
+  unscorableSamples: Pick<ImpactOutcome, 'assessmentId' | 'gateLabel' | 'problem'>[];
+  durationMs: number;
+}
+
+const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
+  VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] || a.clientName.localeCompare(b.clientName) || a.gateLabel.localeCompare(b.gateLabel) || a.assessmentId.localeCompare(b.assessmentId);
+
+/** Counts every outcome and keeps the worse ones (up to `limit`, the most severe first). */
+export async function impactReport(organisationId: string, target: ImpactTarget, basis: ImpactBasis, limit = 500, knex: Knex = db()): Promise<ImpactReport> {
+  const started = performance.now();
+  const counts = { considered: 0, worse: 0, better: 0, same: 0, unscorable: 0 };
+  let items: ImpactOutcome[] = [];
+  const unscorableSamples: ImpactReport['unscorableSamples'] = [];
+  for await (const outcome of rescoreArchive(organisationId, target, basis, knex)) {
+    counts.considered++;
+    counts[outcome.change]++;
+    if (outcome.change === 'unscorable' && unscorableSamples.length < 10) unscorableSamples.push({ assessmentId: outcome.assessmentId, gateLabel: outcome.gateLabel, problem: outcome.problem });
+    if (outcome.change !== 'worse') continue;
+    items.push(outcome);
+    // Keep memory bounded: trim to the most severe `limit` now and then.
+    if (items.length >= limit * 2) items = items.sort(worseFirst).slice(0, limit);
+  }
+  items.sort(worseFirst);
+  const { otherVersions, ...rest } = target;
+  return {
+    target: { ...rest, comparedWith: otherVersions.map((v) => v.version) },
+    basis,
+    ...counts,
+    items: items.slice(0, limit),
+    truncated: counts.worse > limit,
+    unscorableSamples,
+    durationMs: Math.round(performance.now() - started),
+  };
+}
+
+const csvHeader = [
+  'client',
+  'address',
+  'city',
+  'gate',
+  'gate_kind',
+  'visit_date',
+  'signed_at',
+  'assessment_id',
+  'signed_under',
+  'verdict_signed',
+  'verdict_under_new_version',
+  'responsible_rules',
+  'responsible_rule_titles',
+];
+
+/** The worse outcomes as CSV, written while the archive is re-scored. */
+export function impactCsv(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db()): ReadableStream<Uint8Array> {
+  const encoder = new TextEncoder();
+  const outcomes = rescoreArchive(organisationId, target, basis, knex);
+  let headerSent = false;
+  return new ReadableStream<Uint8Array>({
+    async pull(controller) {
+      if (!headerSent) {
+        headerSent = true;
+        controller.enqueue(encoder.encode(csvRow(csvHeader)));
+        return;
+      }
+      try {
+        for (;;) {
+          const next = await outcomes.next();
+          if (next.done) {
+            controller.close();
+            return;
+          }
+          const o = next.value;
+          if (o.change !== 'worse') continue;
+          controller.enqueue(
+            encoder.encode(
+              csvRow([
+                o.clientName,
+                o.address,
+                o.city,
+                o.gateLabel,
+                o.gateKind,
+                o.visitDate,
+                o.signedAt,
+                o.assessmentId,
+                `${target.family} ${o.fromVersion}`,
+                o.before,
+                o.after,
+                o.rules.map((r) => r.ruleId).join('; '),
+                o.rules.map((r) => r.title).join('; '),
+              ]),
+            ),
+          );
+          return;
+        }
+      } catch (error) {
+        console.error('[impact] CSV export failed:', error instanceof Error ? error.message : error);
+        controller.error(error);
+      }
+    },
+    async cancel() {
+      await outcomes.return(undefined);
+    },
+  });
+}

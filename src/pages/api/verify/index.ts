@@ -1,0 +1,35 @@
+import type { APIRoute } from 'astro';
+import { z } from 'zod';
+import { referenceOf, sha256Of, streamedSha256, verifyDocument } from '@/lib/server/document-verification';
+import { readMultipart } from '@/lib/server/http/multipart';
+import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
+
+/** Signed reports are a few MB; anything far larger is not one of ours. */
+const MAX_PDF_BYTES = 30 * 1024 * 1024;
+
+const QuerySchema = z.strictObject({
+  document: z.string().trim().max(100).refine((v) => referenceOf(v) !== null, 'must be a document id (UUID) or a SHA-256 (64 hex digits)'),
+});
+
+const tooLarge = () => new HttpProblem(413, `A signed report is never larger than ${MAX_PDF_BYTES / 1024 / 1024} MB.`);
+
+/** Public: is this document id or SHA-256 an archived signed report? */
+export const GET: APIRoute = handle(async ({ url }) => {
+  const { document } = parseQuery(QuerySchema, url);
+  return Response.json(await verifyDocument(referenceOf(document)!));
+});
+
+/** Public: is this PDF (multipart field `file`, or the raw body as application/pdf) an archived signed report? */
+export const POST: APIRoute = handle(async ({ request }) => {
+  const type = request.headers.get('content-type') ?? '';
+  if (/^application\/pdf\b/i.test(type)) {
+    if (Number(request.headers.get('content-length') ?? 0) > MAX_PDF_BYTES) throw tooLarge();
+    return Response.json(await verifyDocument({ sha256: await streamedSha256(request, MAX_PDF_BYTES, tooLarge) }));
+  }
+  const form = await readMultipart(request, MAX_PDF_BYTES, tooLarge);
+  const file = form.get('file');
+  if (!(file instanceof File) || file.size === 0) {
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'file', message: 'choose the PDF to check' }] });
+  }
+  return Response.json(await verifyDocument({ sha256: sha256Of(new Uint8Array(await file.arrayBuffer())) }));
+});

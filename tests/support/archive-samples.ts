@@ -1,0 +1,133 @@
+/**
+ * Invented walk-through records for the archive's tests and benchmark: a gate profile and the
+ * three stored documents (answers, measurements, observations) an auditor could bring back,
+ * generated from a ruleset version's own questions with a seeded generator, so the same seed
+ * always gives the same record and the engine can score it. Values are plausible, not real.
+ */
+import { canonicalValue, kindOfUnit } from '../../src/lib/rules/measures';
+import type { RulesetQuestion, RulesetVersion } from '../../src/lib/rules';
+
+export interface Prng {
+  next(): number;
+  int(min: number, max: number): number;
+  pick<T>(items: readonly T[]): T;
+  chance(probability: number): boolean;
+}
+
+/** mulberry32: small, fast and the same on every run. */
+export function createPrng(seed: number): Prng {
+  let state = seed >>> 0;
+  const next = (): number => {
+    state = (state + 0x6d2b79f5) >>> 0;
+    let t = state;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  return {
+    next,
+    int: (min, max) => min + Math.floor(next() * (max - min + 1)),
+    pick: (items) => items[Math.floor(next() * items.length)] as never,
+    chance: (p) => next() < p,
+  };
+}
+
+/** The gate columns an assessment's `gate_snapshot` keeps and the engine reads. */
+export interface SampleGate {
+  kind: 'swing' | 'slide';
+  leaves: 'single' | 'double';
+  openingDirection: 'pull_to_open' | 'push_to_open' | null;
+  widthMm: number;
+  heightMm: number;
+  weightKg: number;
+  entered: Record<string, { value: number; unit: string }>;
+  operator: { listed: boolean; automaticClosing: boolean; manufacturedOn: string; mounting: string; power: string };
+}
+
+export function sampleGate(prng: Prng): SampleGate {
+  const kind = prng.chance(0.6) ? 'swing' : 'slide';
+  const widthMm = prng.int(24, 60) * 100;
+  const year = prng.int(2004, 2025);
+  return {
+    kind,
+    leaves: kind === 'swing' && prng.chance(0.5) ? 'double' : 'single',
+    openingDirection: kind === 'swing' ? prng.pick(['pull_to_open', 'push_to_open'] as const) : null,
+    widthMm,
+    heightMm: prng.int(12, 24) * 100,
+    weightKg: prng.int(60, 400),
+    entered: { width: { value: widthMm, unit: 'mm' } },
+    operator: {
+      listed: prng.chance(0.85),
+      automaticClosing: prng.chance(0.4),
+      manufacturedOn: `${year}-0${prng.int(1, 9)}-1${prng.int(0, 9)}`,
+      mounting: 'post',
+      power: prng.chance(0.5) ? 'low_voltage_dc' : 'mains_ac',
+    },
+  };
+}
+
+type Measured = { value: number; unit: string; canonical: number };
+
+/** Entered value ranges per measured kind: wide enough that some gates fail each limit. */
+const ranges: Record<string, { unit: string; min: number; max: number; step: number }> = {
+  length: { unit: 'mm', min: 0, max: 2400, step: 5 },
+  count: { unit: 'count', min: 0, max: 3, step: 1 },
+  time: { unit: 's', min: 0, max: 3, step: 0.1 },
+  speed: { unit: 'm/s', min: 0.1, max: 0.45, step: 0.01 },
+  current: { unit: 'A', min: 1, max: 12, step: 0.5 },
+  voltage: { unit: 'V', min: 12, max: 240, step: 12 },
+  force: { unit: 'N', min: 50, max: 900, step: 10 },
+  mass: { unit: 'kg', min: 20, max: 400, step: 5 },
+  angle: { unit: 'deg', min: 0, max: 120, step: 5 },
+};
+
+function measured(prng: Prng, question: RulesetQuestion): Measured | undefined {
+  const range = ranges[question.answerType];
+  if (!range) return undefined;
+  const steps = Math.round((range.max - range.min) / range.step);
+  let value = Math.round((range.min + prng.int(0, steps) * range.step) * 100) / 100;
+  let unit = range.unit;
+  // Some auditors measure in inches.
+  if (question.answerType === 'length' && prng.chance(0.3)) {
+    unit = 'in';
+    value = Math.round((value / 25.4) * 4) / 4;
+  }
+  const kind = kindOfUnit(unit);
+  if (!kind) return undefined;
+  return { value, unit, canonical: canonicalValue(kind, value, unit) };
+}
+
+export interface SampleDocuments {
+  answers: Record<string, { value: string }>;
+  measurements: Record<string, Measured>;
+  observations: { site: { pedestriansUseDriveway: boolean; childrenOrPetsPresent: boolean; publicAccess: boolean; slopeAcrossSwing: boolean } };
+}
+
+/**
+ * Answers every question of `version` it can: yes/no/na mostly yes (a careful installer),
+ * choices at random, measurements in range; `diligence` (0–1) is the chance of a good answer.
+ */
+export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'questions'>, diligence = 0.85): SampleDocuments {
+  const answers: SampleDocuments['answers'] = {};
+  const measurements: SampleDocuments['measurements'] = {};
+  for (const question of version.questions) {
+    if (question.answerType === 'yes_no_na') {
+      answers[question.key] = { value: prng.chance(diligence) ? 'yes' : prng.chance(0.6) ? 'no' : 'na' };
+    } else if (question.answerType === 'choice') {
+      const options = question.options ?? [];
+      if (options.length) answers[question.key] = { value: prng.pick(options).value };
+    } else if (question.answerType === 'date' || question.answerType === 'text') {
+      continue;
+    } else {
+      const m = measured(prng, question);
+      if (m) measurements[question.key] = m;
+    }
+  }
+  return {
+    answers,
+    measurements,
+    observations: {
+      site: { pedestriansUseDriveway: prng.chance(0.5), childrenOrPetsPresent: prng.chance(0.4), publicAccess: prng.chance(0.2), slopeAcrossSwing: prng.chance(0.1) },
+    },
+  };
+}
