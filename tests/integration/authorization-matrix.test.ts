@@ -302,6 +302,16 @@ describe('path variants of protected routes', () => {
     }
   });
 
+  it('gives a signed-in owner the canonical answer or a plain 404 through a variant, nothing else', async () => {
+    const path = `/api/clients/${targets.dir.clientId}`;
+    const canonical = await (await send(clients.owner, 'GET', { path })).json();
+    for (const variant of spellings(path)) {
+      const res = await send(clients.owner, 'GET', { path: variant });
+      expect([200, 404], variant).toContain(res.status);
+      if (res.status === 200) expect(await res.json(), variant).toEqual(canonical);
+    }
+  });
+
   it('refuses a state change from a signed-out visitor through a variant path, leaving the row as it was', async () => {
     for (const variant of spellings(`/api/clients/${targets.dir.clientId}`)) {
       const res = await send(clients.anonymous, 'DELETE', { path: variant });
