@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { createOrganisation, fixturePassword, hasSession, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import { closeTestDb, createOrganisation, fixturePassword, hasSession, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
 
 const baseUrl = inject('baseUrl');
 let org: FixtureOrganisation;
@@ -9,7 +9,7 @@ beforeAll(async () => {
   owner = await signIn(org.owner.email, fixturePassword);
 });
 afterAll(async () => {
-  await testDb().destroy();
+  await closeTestDb();
 });
 
 describe('signed-out callers', () => {

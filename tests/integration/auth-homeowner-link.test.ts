@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import {
   anonymousClient,
+  closeTestDb,
   createOrganisation,
   followHomeownerLink,
   hasSession,
@@ -18,7 +19,7 @@ beforeAll(async () => {
   org = await createOrganisation('homeowner-link');
 });
 afterAll(async () => {
-  await testDb().destroy();
+  await closeTestDb();
 });
 
 async function mailCountTo(email: string): Promise<number> {

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import {
   anonymousClient,
+  closeTestDb,
   createOrganisation,
   fixturePassword,
   hasSession,
@@ -16,7 +17,7 @@ beforeAll(async () => {
   org = await createOrganisation('sign-in');
 });
 afterAll(async () => {
-  await testDb().destroy();
+  await closeTestDb();
 });
 
 const someAddress = testAddress;

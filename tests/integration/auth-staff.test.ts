@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   anonymousClient,
   caughtMailIds,
+  closeTestDb,
   createOrganisation,
   fixturePassword,
   linkIn,
@@ -26,7 +27,7 @@ beforeAll(async () => {
   ]);
 });
 afterAll(async () => {
-  await testDb().destroy();
+  await closeTestDb();
 });
 
 const newAddress = () => `invitee-${Date.now()}-${Math.floor(Math.random() * 1e6)}@fixtures.test`;
