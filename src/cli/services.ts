@@ -34,7 +34,7 @@ export function buildIsStale(): boolean {
  * Runs `astro build` when the build is missing or older than its sources. Concurrent callers
  * (several test runs on one machine) take turns through a lock folder.
  */
-export async function ensureBuilt(log = console.log): Promise<void> {
+export async function ensureBuilt(log = console.log, quiet = process.env.LATCHWELL_QUIET === '1'): Promise<void> {
   const lock = path.join(dataDir, 'build.lock');
   fs.mkdirSync(dataDir, { recursive: true });
   const deadline = Date.now() + 5 * 60_000;
@@ -60,12 +60,15 @@ export async function ensureBuilt(log = console.log): Promise<void> {
   try {
     if (!buildIsStale()) return;
     log('[build] building the app (sources changed or no build yet)…');
+    const started = performance.now();
     const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'build'], {
       cwd: projectRoot,
-      stdio: process.env.LATCHWELL_QUIET === '1' ? 'pipe' : 'inherit',
+      stdio: quiet ? 'pipe' : 'inherit',
       encoding: 'utf8',
+      maxBuffer: 64 * 1024 * 1024,
     });
-    if (result.status !== 0) throw new Error(`astro build failed${result.stderr ? `:\n${result.stderr}` : ''}`);
+    if (result.status !== 0) throw new Error(`astro build failed${result.stderr ? `:\n${result.stdout?.slice(-4000)}\n${result.stderr}` : ''}`);
+    log(`[build] done in ${((performance.now() - started) / 1000).toFixed(1)} s`);
   } finally {
     fs.rmSync(lock, { recursive: true, force: true });
   }
@@ -76,7 +79,7 @@ export async function ensureBuilt(log = console.log): Promise<void> {
  * while another run rebuilds dist/. Packages still resolve from the project's node_modules.
  */
 export async function snapshotBuild(target: string): Promise<string> {
-  await ensureBuilt();
+  await ensureBuilt(console.log, true);
   fs.rmSync(target, { recursive: true, force: true });
   fs.mkdirSync(path.dirname(target), { recursive: true });
   fs.cpSync(distDir, target, { recursive: true });
