@@ -163,8 +163,10 @@ describe('gates', () => {
     // 12 ft = 3657.6 mm; 300 lb = 136.08 kg (NIST SP 811 exact factors), stored whole.
     expect(gate).toMatchObject({ widthMm: 3658, heightMm: 1830, weightKg: 136, installedOn: '2021-04-12', nextInspectionDue: '2027-04-12' });
     expect(gate.entered).toEqual({ width: { value: 12, unit: 'ft' }, height: { value: 1830, unit: 'mm' }, weight: { value: 300, unit: 'lb' } });
-    const patched = await (await office.json('PATCH', `/api/gates/${gate.id}`, { widthMm: null, height: { value: 6, unit: 'ft' } })).json();
+    const patched = await (await office.json('PATCH', `/api/gates/${gate.id}`, { widthMm: null, height: { value: 6, unit: 'ft' }, operator: { automaticClosing: false, model: null } })).json();
     expect(patched).toMatchObject({ widthMm: null, heightMm: 1829, weightKg: 136 });
+    // Operator facts merge: the ones not sent stay, null removes one.
+    expect(patched.operator).toEqual({ listed: true, automaticClosing: false, manufacturedOn: '2021-03-01', mounting: 'pad', power: 'mains_ac' });
     expect(patched.entered).toEqual({ height: { value: 6, unit: 'ft' }, weight: { value: 300, unit: 'lb' } });
   });
 

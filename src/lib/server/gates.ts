@@ -6,6 +6,7 @@
 import type { Knex } from 'knex';
 import type { Page } from '@/lib/api/common';
 import type { EnteredValue, Gate, GateCreate, GateListQuery, GatePatch, OperatorFacts } from '@/lib/api/gates';
+import { applyMergePatch } from '@/lib/merge-patch';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -80,8 +81,11 @@ function toGate(row: GateRow): Gate {
 
 const dimensionColumn = { width: 'width_mm', height: 'height_mm', weight: 'weight_kg' } as const;
 
-/** Columns to write for a create or a patch; `entered` is merged with what the row held. */
-function toRow(input: GateCreate | GatePatch, previousEntered: Gate['entered'] = {}): Record<string, unknown> {
+/**
+ * Columns to write for a create or a patch. `entered` is merged with what the row held, and
+ * operator facts merge key by key (a null removes one), as in a JSON merge patch.
+ */
+function toRow(input: GateCreate | GatePatch, previous: Pick<Gate, 'entered' | 'operator'> = { entered: {}, operator: {} }): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (input.siteId !== undefined) row.site_id = input.siteId;
   if (input.label !== undefined) row.label = input.label;
@@ -90,8 +94,8 @@ function toRow(input: GateCreate | GatePatch, previousEntered: Gate['entered'] =
   if (input.openingDirection !== undefined) row.opening_direction = input.openingDirection;
   if (input.installedOn !== undefined) row.installed_on = input.installedOn;
   if (input.nextInspectionDue !== undefined) row.next_inspection_due = input.nextInspectionDue;
-  if (input.operator !== undefined) row.operator = JSON.stringify(withoutUndefined(input.operator));
-  const entered: Partial<Record<keyof typeof dimensionColumn, EnteredValue>> = { ...previousEntered };
+  if (input.operator !== undefined) row.operator = JSON.stringify(applyMergePatch(previous.operator, withoutUndefined(input.operator)));
+  const entered: Partial<Record<keyof typeof dimensionColumn, EnteredValue>> = { ...previous.entered };
   let enteredChanged = false;
   for (const dimension of ['width', 'height', 'weight'] as const) {
     const value = input.dimensions[dimension];
@@ -154,12 +158,15 @@ export async function createGate(viewer: SessionUser, input: GateCreate): Promis
 
 export async function updateGate(viewer: SessionUser, id: string, patch: GatePatch): Promise<Gate | null> {
   return db().transaction(async (trx) => {
-    const current = await trx('gates').where({ id, organisation_id: viewer.organisationId }).forUpdate().first<{ entered: Gate['entered'] } | undefined>('entered');
+    const current = await trx('gates')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first<Pick<Gate, 'entered' | 'operator'> | undefined>('entered', 'operator');
     if (!current) return null;
     if (patch.siteId !== undefined) await assertSiteInOrganisation(trx, viewer, patch.siteId);
     await trx('gates')
       .where({ id, organisation_id: viewer.organisationId })
-      .update({ ...toRow(patch, current.entered), updated_at: trx.fn.now() });
+      .update({ ...toRow(patch, current), updated_at: trx.fn.now() });
     return getGate(viewer, id, trx);
   });
 }
