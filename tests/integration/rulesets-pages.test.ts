@@ -1,0 +1,78 @@
+/**
+ * The ruleset pages as people open them: the list of families, one version in plain words, the
+ * readable diff, and the owner's amendment editor (reached by the "Amend" form, no script).
+ */
+import { beforeAll, describe, expect, it } from 'vitest';
+import { createOrganisation, fixturePassword, signIn, signInHomeowner, type FixtureOrganisation, type TestClient } from './support/fixtures';
+
+const NA = 'north-american-gate';
+
+let org: FixtureOrganisation;
+let owner: TestClient;
+let auditor: TestClient;
+let homeowner: TestClient;
+
+beforeAll(async () => {
+  org = await createOrganisation('rulesets-pages');
+  [owner, auditor, homeowner] = await Promise.all([signIn(org.owner.email, fixturePassword), signIn(org.auditor.email, fixturePassword), signInHomeowner(org.homeowner.email)]);
+});
+
+const page = async (client: TestClient, path: string) => {
+  const res = await client.fetch(path, { headers: { accept: 'text/html' } });
+  return { status: res.status, html: await res.text(), location: res.headers.get('location') };
+};
+
+/** Text of the page with tags stripped and entities for quotes undone, for reading sentences. */
+const textOf = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/&#39;|&#x27;/g, "'").replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/\s+/g, ' ');
+
+describe('ruleset pages', () => {
+  it('lists the shipped families and their versions; only the owner is offered "Amend"', async () => {
+    const forAuditor = await page(auditor, '/rulesets');
+    expect(forAuditor.status).toBe(200);
+    expect(textOf(forAuditor.html)).toContain('North American automated vehicular gates');
+    expect(textOf(forAuditor.html)).toContain('2015.1');
+    expect(forAuditor.html).not.toContain('>Amend<');
+    const forOwner = await page(owner, '/rulesets');
+    expect(forOwner.html).toContain('>Amend<');
+  });
+
+  it('shows a version readably: rules by hazard area with what passes in plain words, units in both systems, and its questions', async () => {
+    const { status, html } = await page(auditor, `/rulesets/${NA}/2026.1`);
+    expect(status).toBe(200);
+    const text = textOf(html);
+    expect(text).toContain('Pinch and crush points');
+    expect(text).toContain('fixed object clearance is at least 406.4 mm (16 in)');
+    expect(text).toContain('Caution for the homeowner');
+    expect(text).toContain('ASTM F2200');
+    expect(text).toContain('How many warning placards can you read standing on the street side of the gate?');
+    expect(html).toContain('id="rule-pinch.fixed-objects"');
+  });
+
+  it('answers 404 for a version that does not exist', async () => {
+    expect((await page(auditor, `/rulesets/${NA}/1999.1`)).status).toBe(404);
+  });
+
+  it('shows the readable diff between the two shipped North American versions', async () => {
+    const { status, html } = await page(homeowner, `/rulesets/${NA}/diff?from=2015.1&to=2026.1`);
+    expect(status).toBe(200);
+    const text = textOf(html);
+    expect(text).toContain('gaps.slide-screen-height');
+    expect(text).toMatch(/was 1219\.2 mm now 1828\.8 mm/);
+    expect(text).toContain('Two independent means of entrapment protection while closing');
+  });
+
+  it('lets the owner start an amendment from the list and opens the editor; others are refused the editor', async () => {
+    const form = new URLSearchParams({ fromFamily: NA, fromVersion: '2026.1' });
+    const res = await owner.fetch('/rulesets', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }, body: form });
+    expect(res.status).toBe(303);
+    const location = res.headers.get('location') ?? '';
+    expect(location).toBe(`/rulesets/${NA}-local/2026.1-local.1/edit`);
+    const editor = await page(owner, location);
+    expect(editor.status).toBe(200);
+    expect(editor.html).toContain('astro-island');
+    expect(textOf(editor.html)).toContain('Add a local requirement');
+    expect((await page(auditor, location)).status).toBe(403);
+    const refused = await auditor.fetch('/rulesets', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }, body: form });
+    expect(refused.status).toBe(403);
+  });
+});
