@@ -4,10 +4,10 @@
  * /Contents holds a detached PKCS#7 / CMS SignedData (RFC 5652) over every byte of the file
  * except the /Contents value itself (SubFilter adbe.pkcs7.detached).
  */
-import { pdflibAddPlaceholder } from "@signpdf/placeholder-pdf-lib";
-import { P12Signer } from "@signpdf/signer-p12";
-import { SignPdf } from "@signpdf/signpdf";
-import { PDFDocument } from "pdf-lib";
+import { pdflibAddPlaceholder } from '@signpdf/placeholder-pdf-lib';
+import { P12Signer } from '@signpdf/signer-p12';
+import { SignPdf } from '@signpdf/signpdf';
+import { PDFDocument } from 'pdf-lib';
 
 export interface SignatureDetails {
   /** Why the document is signed, shown by readers in the signature panel. */
@@ -22,12 +22,7 @@ export interface SignatureDetails {
 /** Room for the PKCS#7 blob: a 2048-bit RSA signature plus one certificate fits well in 8 KiB. */
 const SIGNATURE_LENGTH = 8192;
 
-export async function signPdfWithCertificate(
-  pdf: Uint8Array,
-  p12: Buffer,
-  passphrase: string,
-  details: SignatureDetails,
-): Promise<Buffer> {
+export async function signPdfWithCertificate(pdf: Uint8Array, p12: Buffer, passphrase: string, details: SignatureDetails): Promise<Buffer> {
   const pdfDoc = await PDFDocument.load(pdf, { updateMetadata: false });
   pdflibAddPlaceholder({
     pdfDoc,
@@ -37,13 +32,11 @@ export async function signPdfWithCertificate(
     location: details.location,
     signingTime: details.signingTime,
     signatureLength: SIGNATURE_LENGTH,
-    appName: "Latchwell",
+    appName: 'Latchwell',
   });
   // Classic cross-reference table, no object streams: the placeholder must stay findable as
   // plain bytes for the byte-range computation.
-  const withPlaceholder = Buffer.from(
-    await pdfDoc.save({ useObjectStreams: false }),
-  );
+  const withPlaceholder = Buffer.from(await pdfDoc.save({ useObjectStreams: false }));
   const signer = new P12Signer(p12, { passphrase });
   return new SignPdf().sign(withPlaceholder, signer, details.signingTime);
 }

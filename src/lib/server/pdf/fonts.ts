@@ -4,24 +4,19 @@
  * and subsets them. No network, no system fonts.
  * Latin first, then Latin Extended, Greek and Cyrillic as fallbacks for names and addresses.
  */
-import { createRequire } from "node:module";
-import fs from "node:fs";
-import path from "node:path";
-import { Font } from "@react-pdf/renderer";
-import { woffToSfnt } from "./woff";
+import { createRequire } from 'node:module';
+import fs from 'node:fs';
+import path from 'node:path';
+import { Font } from '@react-pdf/renderer';
+import { woffToSfnt } from './woff';
 
-export const REPORT_FONT_FAMILIES = [
-  "Noto Sans",
-  "Noto Sans Latin Ext",
-  "Noto Sans Greek",
-  "Noto Sans Cyrillic",
-];
+export const REPORT_FONT_FAMILIES = ['Noto Sans', 'Noto Sans Latin Ext', 'Noto Sans Greek', 'Noto Sans Cyrillic'];
 
 const subsets: Array<[family: string, subset: string]> = [
-  ["Noto Sans", "latin"],
-  ["Noto Sans Latin Ext", "latin-ext"],
-  ["Noto Sans Greek", "greek"],
-  ["Noto Sans Cyrillic", "cyrillic"],
+  ['Noto Sans', 'latin'],
+  ['Noto Sans Latin Ext', 'latin-ext'],
+  ['Noto Sans Greek', 'greek'],
+  ['Noto Sans Cyrillic', 'cyrillic'],
 ];
 const weights = [400, 600, 700] as const;
 
@@ -31,30 +26,18 @@ function fontsDir(): string {
   const candidates: string[] = [];
   try {
     const require = createRequire(import.meta.url);
-    candidates.push(
-      path.join(
-        path.dirname(require.resolve("@fontsource/noto-sans/package.json")),
-        "files",
-      ),
-    );
+    candidates.push(path.join(path.dirname(require.resolve('@fontsource/noto-sans/package.json')), 'files'));
   } catch {
     // Bundled builds may not resolve package.json; fall back to the working directory.
   }
-  candidates.push(
-    path.join(process.cwd(), "node_modules/@fontsource/noto-sans/files"),
-  );
-  const found = candidates.find((dir) =>
-    fs.existsSync(path.join(dir, "noto-sans-latin-400-normal.woff")),
-  );
-  if (!found)
-    throw new Error(
-      `Noto Sans font files not found (looked in ${candidates.join(", ")})`,
-    );
+  candidates.push(path.join(process.cwd(), 'node_modules/@fontsource/noto-sans/files'));
+  const found = candidates.find((dir) => fs.existsSync(path.join(dir, 'noto-sans-latin-400-normal.woff')));
+  if (!found) throw new Error(`Noto Sans font files not found (looked in ${candidates.join(', ')})`);
   return found;
 }
 
 function fontDataUrl(dir: string, file: string): string {
-  return `data:font/ttf;base64,${woffToSfnt(fs.readFileSync(path.join(dir, file))).toString("base64")}`;
+  return `data:font/ttf;base64,${woffToSfnt(fs.readFileSync(path.join(dir, file))).toString('base64')}`;
 }
 
 export function registerReportFonts(): void {
@@ -65,19 +48,13 @@ export function registerReportFonts(): void {
       family,
       fonts: weights.flatMap((fontWeight) => [
         {
-          src: fontDataUrl(
-            dir,
-            `noto-sans-${subset}-${fontWeight}-normal.woff`,
-          ),
+          src: fontDataUrl(dir, `noto-sans-${subset}-${fontWeight}-normal.woff`),
           fontWeight,
         },
         {
-          src: fontDataUrl(
-            dir,
-            `noto-sans-${subset}-${fontWeight}-italic.woff`,
-          ),
+          src: fontDataUrl(dir, `noto-sans-${subset}-${fontWeight}-italic.woff`),
           fontWeight,
-          fontStyle: "italic" as const,
+          fontStyle: 'italic' as const,
         },
       ]),
     });

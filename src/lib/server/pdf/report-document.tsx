@@ -4,38 +4,21 @@
  * severity, drawings, photos, the cautions the owner acknowledges, the disclaimer, the ruleset
  * and document identity, and the signature blocks (filled in on the signed document).
  */
-import { Document, Image, Page, Text, View } from "@react-pdf/renderer";
-import type { ReactElement } from "react";
-import { ForceTracePlot, SwingGeometryDiagram } from "./diagrams";
-import {
-  DISCLAIMER,
-  verdictWords,
-  type ReportModel,
-  type ReportPhoto,
-  type StoredFinding,
-} from "./report-model";
-import { styles } from "./styles";
-import { colours, severityColour, verdictColour } from "./theme";
-import {
-  factLabel,
-  formatDate,
-  formatDateTime,
-  formatObserved,
-  formatQuantity,
-  pdfText,
-} from "./text";
+import { Document, Image, Page, Text, View } from '@react-pdf/renderer';
+import type { ReactElement } from 'react';
+import { ForceTracePlot, SwingGeometryDiagram } from './diagrams';
+import { DISCLAIMER, verdictWords, type ReportModel, type ReportPhoto, type StoredFinding } from './report-model';
+import { styles } from './styles';
+import { colours, severityColour, verdictColour } from './theme';
+import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
 
 const kindBanner = {
-  preview: "Preview - not for signature",
-  signing_copy: "Copy for signature",
-  signed_report: "Signed report",
+  preview: 'Preview - not for signature',
+  signing_copy: 'Copy for signature',
+  signed_report: 'Signed report',
 } as const;
 
-export function ReportDocument({
-  model,
-}: {
-  model: ReportModel;
-}): ReactElement {
+export function ReportDocument({ model }: { model: ReportModel }): ReactElement {
   const units = model.organisation.displayUnits;
   const verdict = verdictWords[model.result.verdict];
   const title = `Gate safety assessment - ${model.gate.label}`;
@@ -52,50 +35,24 @@ export function ReportDocument({
         <Chrome model={model} />
         <Text style={styles.label}>{pdfText(model.organisation.name)}</Text>
         <Text style={styles.h1}>Gate safety assessment</Text>
-        <Text style={styles.muted}>
-          {pdfText(
-            `${model.gate.label} at ${model.site.name ?? model.site.lines[0] ?? "the site"}`,
-          )}
-        </Text>
+        <Text style={styles.muted}>{pdfText(`${model.gate.label} at ${model.site.name ?? model.site.lines[0] ?? 'the site'}`)}</Text>
 
-        <View
-          style={[
-            styles.verdictBox,
-            { backgroundColor: verdictColour[model.result.verdict] },
-          ]}
-        >
+        <View style={[styles.verdictBox, { backgroundColor: verdictColour[model.result.verdict] }]}>
           <Text style={[styles.label, { color: colours.white }]}>Verdict</Text>
           <Text style={styles.verdictLabel}>{verdict.label}</Text>
-          <Text style={{ fontWeight: 700, marginTop: 2 }}>
-            {verdict.headline}
-          </Text>
+          <Text style={{ fontWeight: 700, marginTop: 2 }}>{verdict.headline}</Text>
           <Text style={{ marginTop: 2 }}>{verdict.meaning}</Text>
         </View>
         {!model.result.complete ? (
           <Text style={[styles.small, { marginTop: 4, color: colours.remedy }]}>
-            Some checks could not be completed for lack of information; they are
-            listed in this report.
+            Some checks could not be completed for lack of information; they are listed in this report.
           </Text>
         ) : null}
 
         <View style={styles.factGrid}>
-          <Fact
-            label="Site"
-            value={[model.site.name, ...model.site.lines]
-              .filter(Boolean)
-              .join(", ")}
-          />
-          <Fact
-            label="Gate"
-            value={`${model.gate.label}: ${model.gate.kind.replace(/_/g, " ")}, ${model.gate.leaves} leaf${gateSize(model, units)}`}
-          />
-          <Fact
-            label="Date of visit"
-            value={formatDate(
-              model.assessment.visitedOn ?? model.assessment.submittedAt,
-              model.organisation.timeZone,
-            )}
-          />
+          <Fact label="Site" value={[model.site.name, ...model.site.lines].filter(Boolean).join(', ')} />
+          <Fact label="Gate" value={`${model.gate.label}: ${model.gate.kind.replace(/_/g, ' ')}, ${model.gate.leaves} leaf${gateSize(model, units)}`} />
+          <Fact label="Date of visit" value={formatDate(model.assessment.visitedOn ?? model.assessment.submittedAt, model.organisation.timeZone)} />
           <Fact label="Auditor" value={model.auditor.name} />
           <Fact label="Organisation" value={model.organisation.name} />
           <Fact label="Client" value={model.client.name} />
@@ -112,12 +69,7 @@ export function ReportDocument({
         <Text style={styles.h2}>What needs fixing</Text>
         {model.failing.length === 0 ? <Text>No check failed.</Text> : null}
         {model.failing.map((finding) => (
-          <FindingCard
-            key={finding.ruleId}
-            finding={finding}
-            photos={finding.photos}
-            model={model}
-          />
+          <FindingCard key={finding.ruleId} finding={finding} photos={finding.photos} model={model} />
         ))}
 
         {model.needsInfo.length ? (
@@ -126,32 +78,16 @@ export function ReportDocument({
             {model.needsInfo.map((f) => (
               <View key={f.ruleId} style={{ marginBottom: 4 }} wrap={false}>
                 <Text style={{ fontWeight: 600 }}>{pdfText(f.title)}</Text>
-                <Text style={styles.small}>
-                  Missing:{" "}
-                  {pdfText(
-                    f.missing
-                      .map((m) => m.prompt || factLabel(m.key))
-                      .join("; ") || "details not recorded",
-                  )}
-                </Text>
+                <Text style={styles.small}>Missing: {pdfText(f.missing.map((m) => m.prompt || factLabel(m.key)).join('; ') || 'details not recorded')}</Text>
               </View>
             ))}
           </View>
         ) : null}
 
-        {model.assessment.swingGeometry || model.forceTraces.length ? (
-          <Text style={styles.h2}>Measurements</Text>
-        ) : null}
-        <SwingGeometryDiagram
-          geometry={model.assessment.swingGeometry}
-          formatLength={(mm) => formatQuantity(mm, "mm", units)}
-        />
+        {model.assessment.swingGeometry || model.forceTraces.length ? <Text style={styles.h2}>Measurements</Text> : null}
+        <SwingGeometryDiagram geometry={model.assessment.swingGeometry} formatLength={(mm) => formatQuantity(mm, 'mm', units)} />
         {model.forceTraces.map((trace) => (
-          <ForceTracePlot
-            key={trace.itemKey + trace.label}
-            trace={trace}
-            formatForce={(n) => formatQuantity(n, "N", units)}
-          />
+          <ForceTracePlot key={trace.itemKey + trace.label} trace={trace} formatForce={(n) => formatQuantity(n, 'N', units)} />
         ))}
 
         {model.otherPhotos.length ? (
@@ -164,10 +100,7 @@ export function ReportDocument({
         <Text style={styles.h2}>Checks passed</Text>
         <Text style={styles.small}>
           {model.passed.length} checks passed
-          {model.notApplicable
-            ? `; ${model.notApplicable} did not apply to this gate`
-            : ""}
-          .
+          {model.notApplicable ? `; ${model.notApplicable} did not apply to this gate` : ''}.
         </Text>
         {model.passed.map((f) => (
           <Text key={f.ruleId} style={styles.small}>
@@ -180,24 +113,15 @@ export function ReportDocument({
         <Chrome model={model} />
         <Text style={styles.h2}>Cautions for the owner</Text>
         {model.cautions.length === 0 ? (
-          <Text>
-            There are no cautions to acknowledge beyond keeping the gate
-            maintained and inspected.
-          </Text>
+          <Text>There are no cautions to acknowledge beyond keeping the gate maintained and inspected.</Text>
         ) : (
           <Text style={[styles.small, { marginBottom: 6 }]}>
-            Until the fixes are done, please read and acknowledge each of these.{" "}
-            {model.signing ? "Each was ticked by the signer." : ""}
+            Until the fixes are done, please read and acknowledge each of these. {model.signing ? 'Each was ticked by the signer.' : ''}
           </Text>
         )}
         {model.cautions.map((c) => (
           <View key={c.ruleId} style={styles.caution} wrap={false}>
-            <View
-              style={[
-                styles.box,
-                model.signing ? { backgroundColor: colours.iron800 } : {},
-              ]}
-            />
+            <View style={[styles.box, model.signing ? { backgroundColor: colours.iron800 } : {}]} />
             <View style={{ flex: 1 }}>
               <Text style={{ fontWeight: 700 }}>{pdfText(c.title)}</Text>
               <Text>{pdfText(c.caution)}</Text>
@@ -225,20 +149,12 @@ function Chrome({ model }: { model: ReportModel }) {
     <>
       <View style={styles.header} fixed>
         <Text style={styles.brandMark}>LATCHWELL</Text>
-        <Text>
-          {pdfText(`${model.organisation.name} · ${kindBanner[model.kind]}`)}
-        </Text>
+        <Text>{pdfText(`${model.organisation.name} · ${kindBanner[model.kind]}`)}</Text>
       </View>
       <Text style={styles.footerLeft} fixed>
         {`Document ${model.documentId} · ${pdfText(model.ruleset.title)} ${model.ruleset.version}`}
       </Text>
-      <Text
-        style={styles.footerRight}
-        fixed
-        render={({ pageNumber, totalPages }) =>
-          `Page ${pageNumber} of ${totalPages}`
-        }
-      />
+      <Text style={styles.footerRight} fixed render={({ pageNumber, totalPages }) => `Page ${pageNumber} of ${totalPages}`} />
     </>
   );
 }
@@ -247,27 +163,22 @@ function Fact({ label, value }: { label: string; value: string }) {
   return (
     <View style={styles.fact}>
       <Text style={styles.label}>{label}</Text>
-      <Text>{pdfText(value || "-")}</Text>
+      <Text>{pdfText(value || '-')}</Text>
     </View>
   );
 }
 
-function gateSize(model: ReportModel, units: "imperial" | "metric"): string {
+function gateSize(model: ReportModel, units: 'imperial' | 'metric'): string {
   const parts = [
-    model.gate.widthMm
-      ? `${formatQuantity(model.gate.widthMm, "mm", units)} wide`
-      : null,
-    model.gate.heightMm
-      ? `${formatQuantity(model.gate.heightMm, "mm", units)} high`
-      : null,
+    model.gate.widthMm ? `${formatQuantity(model.gate.widthMm, 'mm', units)} wide` : null,
+    model.gate.heightMm ? `${formatQuantity(model.gate.heightMm, 'mm', units)} high` : null,
   ].filter(Boolean);
-  return parts.length ? `, ${parts.join(", ")}` : "";
+  return parts.length ? `, ${parts.join(', ')}` : '';
 }
 
 function summaryLine(model: ReportModel): string {
-  const count = (s: string) =>
-    model.failing.filter((f) => f.severity === s).length;
-  return `${count("critical")} critical, ${count("major")} major and ${count("minor")} minor hazards; ${model.passed.length} checks passed; ${model.needsInfo.length} need information.`;
+  const count = (s: string) => model.failing.filter((f) => f.severity === s).length;
+  return `${count('critical')} critical, ${count('major')} major and ${count('minor')} minor hazards; ${model.passed.length} checks passed; ${model.needsInfo.length} need information.`;
 }
 
 function AreaBars({ model }: { model: ReportModel }) {
@@ -275,20 +186,13 @@ function AreaBars({ model }: { model: ReportModel }) {
     <View>
       {model.areas.map((area) => {
         const score = area.score;
-        const colour =
-          score === null
-            ? colours.iron200
-            : score >= 90
-              ? colours.clear
-              : score >= 60
-                ? colours.remedy
-                : colours.withdraw;
+        const colour = score === null ? colours.iron200 : score >= 90 ? colours.clear : score >= 60 ? colours.remedy : colours.withdraw;
         return (
           <View
             key={area.key}
             style={{
-              flexDirection: "row",
-              alignItems: "center",
+              flexDirection: 'row',
+              alignItems: 'center',
               marginBottom: 5,
             }}
             wrap={false}
@@ -313,52 +217,28 @@ function AreaBars({ model }: { model: ReportModel }) {
                 />
               )}
             </View>
-            <Text style={{ width: 60, textAlign: "right" }}>
-              {score === null ? "not scored" : `${Math.round(score)} / 100`}
-            </Text>
+            <Text style={{ width: 60, textAlign: 'right' }}>{score === null ? 'not scored' : `${Math.round(score)} / 100`}</Text>
           </View>
         );
       })}
-      <Text style={[styles.small, styles.muted, { marginTop: 2 }]}>
-        100 means every applicable check in the area passed; failures weigh by
-        severity.
-      </Text>
+      <Text style={[styles.small, styles.muted, { marginTop: 2 }]}>100 means every applicable check in the area passed; failures weigh by severity.</Text>
     </View>
   );
 }
 
 function referenceText(f: StoredFinding): string {
-  return (
-    [f.reference.standard, f.reference.clause].filter(Boolean).join(", ") ||
-    "no reference recorded"
-  );
+  return [f.reference.standard, f.reference.clause].filter(Boolean).join(', ') || 'no reference recorded';
 }
 
-function FindingCard({
-  finding,
-  photos,
-  model,
-}: {
-  finding: StoredFinding;
-  photos: ReportPhoto[];
-  model: ReportModel;
-}) {
+function FindingCard({ finding, photos, model }: { finding: StoredFinding; photos: ReportPhoto[]; model: ReportModel }) {
   const units = model.organisation.displayUnits;
   const observed = Object.entries(finding.observed)
     .slice(0, 8)
     .map(([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units)}`);
   const limits = Object.entries(finding.params)
-    .filter(
-      ([, p]) =>
-        typeof p.value === "number" ||
-        typeof p.value === "string" ||
-        typeof p.value === "boolean",
-    )
+    .filter(([, p]) => typeof p.value === 'number' || typeof p.value === 'string' || typeof p.value === 'boolean')
     .slice(0, 4)
-    .map(
-      ([k, p]) =>
-        `${factLabel(k)}: ${typeof p.value === "number" ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
-    );
+    .map(([k, p]) => `${factLabel(k)}: ${typeof p.value === 'number' ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`);
   return (
     <View
       style={[
@@ -372,40 +252,18 @@ function FindingCard({
     >
       <View style={styles.findingHead}>
         <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
-        <Text
-          style={[
-            styles.pill,
-            { backgroundColor: severityColour[finding.severity] },
-          ]}
-        >
-          {finding.severity}
-        </Text>
+        <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>{finding.severity}</Text>
       </View>
       <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
         {pdfText(
-          `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ""}`,
+          `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
         )}
       </Text>
-      <Field
-        name="What was found"
-        value={
-          observed.length
-            ? observed.join("; ")
-            : "The check failed on the answers given."
-        }
-      />
-      {limits.length ? (
-        <Field name="Judged against" value={limits.join("; ")} />
-      ) : null}
-      <Field name="Why it matters" value={finding.caution || "-"} />
-      <Field name="Fix" value={finding.remediation || "-"} />
-      <Field
-        name="Reference"
-        value={
-          referenceText(finding) +
-          (finding.reference.note ? ` (${finding.reference.note})` : "")
-        }
-      />
+      <Field name="What was found" value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'} />
+      {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
+      <Field name="Why it matters" value={finding.caution || '-'} />
+      <Field name="Fix" value={finding.remediation || '-'} />
+      <Field name="Reference" value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')} />
       {photos.length ? <Photos photos={photos} model={model} /> : null}
     </View>
   );
@@ -420,36 +278,17 @@ function Field({ name, value }: { name: string; value: string }) {
   );
 }
 
-function Photos({
-  photos,
-  model,
-}: {
-  photos: ReportPhoto[];
-  model: ReportModel;
-}) {
+function Photos({ photos, model }: { photos: ReportPhoto[]; model: ReportModel }) {
   return (
     <View style={styles.photoRow}>
       {photos.map((photo, i) => {
-        const height = Math.min(
-          150,
-          (150 * photo.height) / Math.max(1, photo.width),
-        );
+        const height = Math.min(150, (150 * photo.height) / Math.max(1, photo.width));
         return (
           <View key={`${photo.itemKey}-${i}`} style={styles.photo} wrap={false}>
-            <Image
-              src={{ data: photo.data, format: photo.format }}
-              style={{ width: 150, height, objectFit: "cover" }}
-            />
+            <Image src={{ data: photo.data, format: photo.format }} style={{ width: 150, height, objectFit: 'cover' }} />
             <Text style={styles.mono}>
               {pdfText(
-                [
-                  photo.caption,
-                  photo.takenAt
-                    ? formatDateTime(photo.takenAt, model.organisation.timeZone)
-                    : null,
-                ]
-                  .filter(Boolean)
-                  .join(" · ") || photo.itemKey,
+                [photo.caption, photo.takenAt ? formatDateTime(photo.takenAt, model.organisation.timeZone) : null].filter(Boolean).join(' · ') || photo.itemKey,
               )}
             </Text>
           </View>
@@ -463,7 +302,7 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
   const zone = model.organisation.timeZone;
   const owner = model.signing?.owner;
   return (
-    <View style={{ flexDirection: "row", gap: 12 }} wrap={false}>
+    <View style={{ flexDirection: 'row', gap: 12 }} wrap={false}>
       <View style={styles.signatureBlock}>
         <Text style={styles.label}>Assessed by</Text>
         <View style={styles.signatureLine}>
@@ -471,7 +310,7 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
             <Text
               style={{
                 fontSize: 16,
-                fontStyle: "italic",
+                fontStyle: 'italic',
                 color: colours.iron800,
               }}
             >
@@ -481,26 +320,17 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
         </View>
         <Text style={{ fontWeight: 600 }}>{pdfText(model.auditor.name)}</Text>
         <Text style={styles.small}>for {pdfText(model.organisation.name)}</Text>
-        <Text style={styles.small}>
-          {model.signing
-            ? `Sent for signature ${formatDateTime(model.signing.assessor.signedAt, zone)}`
-            : "Date:"}
-        </Text>
+        <Text style={styles.small}>{model.signing ? `Sent for signature ${formatDateTime(model.signing.assessor.signedAt, zone)}` : 'Date:'}</Text>
       </View>
       <View style={styles.signatureBlock}>
         <Text style={styles.label}>Acknowledged by the owner</Text>
         <View style={styles.signatureLine}>
-          {owner?.imagePng ? (
-            <Image
-              src={{ data: owner.imagePng, format: "png" }}
-              style={{ height: 50, objectFit: "contain" }}
-            />
-          ) : null}
+          {owner?.imagePng ? <Image src={{ data: owner.imagePng, format: 'png' }} style={{ height: 50, objectFit: 'contain' }} /> : null}
           {owner && !owner.imagePng ? (
             <Text
               style={{
                 fontSize: 16,
-                fontStyle: "italic",
+                fontStyle: 'italic',
                 color: colours.iron800,
               }}
             >
@@ -508,14 +338,8 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
             </Text>
           ) : null}
         </View>
-        <Text style={{ fontWeight: 600 }}>
-          {owner ? pdfText(owner.name) : "Name:"}
-        </Text>
-        <Text style={styles.small}>
-          {owner
-            ? `Signed electronically ${formatDateTime(owner.signedAt, zone)}`
-            : "Date:"}
-        </Text>
+        <Text style={{ fontWeight: 600 }}>{owner ? pdfText(owner.name) : 'Name:'}</Text>
+        <Text style={styles.small}>{owner ? `Signed electronically ${formatDateTime(owner.signedAt, zone)}` : 'Date:'}</Text>
       </View>
     </View>
   );
@@ -525,61 +349,37 @@ function Identity({ model }: { model: ReportModel }) {
   const owner = model.signing?.owner;
   const zone = model.organisation.timeZone;
   const rows: Array<[string, string]> = [
-    ["Document id", model.documentId],
-    [
-      "Assessment",
-      model.assessment.id +
-        (model.assessment.supersedesId
-          ? ` (revision of ${model.assessment.supersedesId})`
-          : ""),
-    ],
-    ["Ruleset", `${model.ruleset.title}, version ${model.ruleset.version}`],
-    ["Ruleset content SHA-256", model.ruleset.contentSha256],
-    ["Result SHA-256", model.assessment.resultSha256 ?? "-"],
-    ["Rendered", formatDateTime(model.generatedAt, zone)],
+    ['Document id', model.documentId],
+    ['Assessment', model.assessment.id + (model.assessment.supersedesId ? ` (revision of ${model.assessment.supersedesId})` : '')],
+    ['Ruleset', `${model.ruleset.title}, version ${model.ruleset.version}`],
+    ['Ruleset content SHA-256', model.ruleset.contentSha256],
+    ['Result SHA-256', model.assessment.resultSha256 ?? '-'],
+    ['Rendered', formatDateTime(model.generatedAt, zone)],
   ];
   if (owner) {
     rows.push(
-      ["Signer", `${owner.name} <${owner.email}>`],
-      [
-        "Signature",
-        owner.method === "drawn"
-          ? "drawn on screen"
-          : "typed name (no drawing device)",
-      ],
-      ["Consent", owner.consentText],
-      ["Intent", owner.intentText],
-      [
-        "Cautions acknowledged",
-        owner.cautionsAcknowledged.length
-          ? owner.cautionsAcknowledged.map((c) => c.title).join("; ")
-          : "none were listed",
-      ],
-      ["Signed at", formatDateTime(owner.signedAt, zone)],
-      ["From address", owner.ip ?? "not recorded"],
-      ["Browser", (owner.userAgent ?? "not recorded").slice(0, 160)],
-      ["SHA-256 of the copy shown", owner.shownPdfSha256],
+      ['Signer', `${owner.name} <${owner.email}>`],
+      ['Signature', owner.method === 'drawn' ? 'drawn on screen' : 'typed name (no drawing device)'],
+      ['Consent', owner.consentText],
+      ['Intent', owner.intentText],
+      ['Cautions acknowledged', owner.cautionsAcknowledged.length ? owner.cautionsAcknowledged.map((c) => c.title).join('; ') : 'none were listed'],
+      ['Signed at', formatDateTime(owner.signedAt, zone)],
+      ['From address', owner.ip ?? 'not recorded'],
+      ['Browser', (owner.userAgent ?? 'not recorded').slice(0, 160)],
+      ['SHA-256 of the copy shown', owner.shownPdfSha256],
     );
   }
   return (
     <View>
       {rows.map(([name, value]) => (
-        <View
-          key={name}
-          style={[styles.row, { marginBottom: 1.5 }]}
-          wrap={false}
-        >
-          <Text style={[styles.fieldName, { width: 130, fontSize: 8 }]}>
-            {name}
-          </Text>
+        <View key={name} style={[styles.row, { marginBottom: 1.5 }]} wrap={false}>
+          <Text style={[styles.fieldName, { width: 130, fontSize: 8 }]}>{name}</Text>
           <Text style={[styles.fieldValue, styles.mono]}>{pdfText(value)}</Text>
         </View>
       ))}
-      {model.kind === "signed_report" ? (
+      {model.kind === 'signed_report' ? (
         <Text style={[styles.small, { marginTop: 6 }]}>
-          This file carries a digital signature of{" "}
-          {pdfText(model.organisation.name)}; a PDF reader shows whether
-          anything changed after signing.
+          This file carries a digital signature of {pdfText(model.organisation.name)}; a PDF reader shows whether anything changed after signing.
         </Text>
       ) : null}
     </View>

@@ -6,41 +6,31 @@
  * The stored result is read leniently (unknown fields ignored, odd values defaulted), so a
  * report of an old assessment still renders after the engine's result grows new fields.
  */
-import { z } from "zod";
+import { z } from 'zod';
 
-const SEVERITY_ORDER = ["critical", "major", "minor"] as const;
+const SEVERITY_ORDER = ['critical', 'major', 'minor'] as const;
 export type Severity = (typeof SEVERITY_ORDER)[number];
-export type Verdict = "clear" | "remedy" | "withdraw";
+export type Verdict = 'clear' | 'remedy' | 'withdraw';
 
 const StoredFindingSchema = z.object({
   ruleId: z.string(),
-  title: z.string().catch("Untitled check"),
-  area: z.string().catch("other"),
-  severity: z.enum(SEVERITY_ORDER).catch("minor"),
-  outcome: z.enum(["pass", "fail", "n/a", "needs_info"]).catch("needs_info"),
-  missing: z
-    .array(z.object({ key: z.string(), prompt: z.string().catch("") }))
-    .catch([]),
+  title: z.string().catch('Untitled check'),
+  area: z.string().catch('other'),
+  severity: z.enum(SEVERITY_ORDER).catch('minor'),
+  outcome: z.enum(['pass', 'fail', 'n/a', 'needs_info']).catch('needs_info'),
+  missing: z.array(z.object({ key: z.string(), prompt: z.string().catch('') })).catch([]),
   observed: z.record(z.string(), z.unknown()).catch({}),
-  params: z
-    .record(
-      z.string(),
-      z.object({ value: z.unknown(), unit: z.string().optional() }),
-    )
-    .catch({}),
-  hrn: z
-    .object({ value: z.number(), band: z.string() })
-    .optional()
-    .catch(undefined),
-  remediation: z.string().catch(""),
-  caution: z.string().catch(""),
+  params: z.record(z.string(), z.object({ value: z.unknown(), unit: z.string().optional() })).catch({}),
+  hrn: z.object({ value: z.number(), band: z.string() }).optional().catch(undefined),
+  remediation: z.string().catch(''),
+  caution: z.string().catch(''),
   reference: z
     .object({
-      standard: z.string().catch(""),
-      clause: z.string().catch(""),
+      standard: z.string().catch(''),
+      clause: z.string().catch(''),
       note: z.string().optional(),
     })
-    .catch({ standard: "", clause: "" }),
+    .catch({ standard: '', clause: '' }),
 });
 
 export const StoredResultSchema = z.object({
@@ -49,7 +39,7 @@ export const StoredResultSchema = z.object({
     version: z.string(),
     contentSha256: z.string(),
   }),
-  verdict: z.enum(["clear", "remedy", "withdraw"]),
+  verdict: z.enum(['clear', 'remedy', 'withdraw']),
   complete: z.boolean().catch(true),
   findings: z.array(StoredFindingSchema),
   areaScores: z.record(z.string(), z.number().nullable()).catch({}),
@@ -57,13 +47,13 @@ export const StoredResultSchema = z.object({
 export type StoredResult = z.infer<typeof StoredResultSchema>;
 export type StoredFinding = z.infer<typeof StoredFindingSchema>;
 
-export type ReportKind = "preview" | "signing_copy" | "signed_report";
+export type ReportKind = 'preview' | 'signing_copy' | 'signed_report';
 
 export interface ReportPhoto {
   itemKey: string;
   caption: string | null;
   data: Buffer;
-  format: "jpg" | "png";
+  format: 'jpg' | 'png';
   width: number;
   height: number;
   takenAt: Date | null;
@@ -94,7 +84,7 @@ export interface OwnerSignature {
   name: string;
   email: string;
   signedAt: Date;
-  method: "drawn" | "typed";
+  method: 'drawn' | 'typed';
   imagePng: Buffer | null;
   ip: string | null;
   userAgent: string | null;
@@ -112,7 +102,7 @@ export interface ReportSource {
     id: string;
     name: string;
     timeZone: string;
-    displayUnits: "imperial" | "metric";
+    displayUnits: 'imperial' | 'metric';
   };
   assessment: {
     id: string;
@@ -174,60 +164,53 @@ export interface ReportModel extends ReportSource {
 export class ReportNotReady extends Error {}
 
 const bySeverity = (a: StoredFinding, b: StoredFinding) =>
-  SEVERITY_ORDER.indexOf(a.severity) - SEVERITY_ORDER.indexOf(b.severity) ||
-  a.ruleId.localeCompare(b.ruleId);
+  SEVERITY_ORDER.indexOf(a.severity) - SEVERITY_ORDER.indexOf(b.severity) || a.ruleId.localeCompare(b.ruleId);
 
 /** A photo belongs to a finding when its item key is the rule id or a fact the rule read. */
 function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
   if (photo.itemKey === finding.ruleId) return true;
-  const keys = [
-    ...Object.keys(finding.observed),
-    ...finding.missing.map((m) => m.key),
-  ].map((k) => k.split(".").pop());
+  const keys = [...Object.keys(finding.observed), ...finding.missing.map((m) => m.key)].map((k) => k.split('.').pop());
   return keys.includes(photo.itemKey);
+}
+
+/**
+ * The cautions the owner acknowledges: one per failing finding (worst first) with a caution
+ * text, the same text once. The signing page and the report list exactly these.
+ */
+export function cautionsOf(result: StoredResult): ReportCaution[] {
+  const cautions: ReportCaution[] = [];
+  const seen = new Set<string>();
+  for (const f of result.findings.filter((x) => x.outcome === 'fail').sort(bySeverity)) {
+    const text = f.caution.trim();
+    if (!text || seen.has(text)) continue;
+    seen.add(text);
+    cautions.push({ ruleId: f.ruleId, title: f.title, severity: f.severity, caution: text });
+  }
+  return cautions;
 }
 
 export function buildReportModel(source: ReportSource): ReportModel {
   const parsed = StoredResultSchema.safeParse(source.assessment.result);
-  if (!parsed.success)
-    throw new ReportNotReady(
-      "This assessment has no stored scoring result to report on.",
-    );
+  if (!parsed.success) throw new ReportNotReady('This assessment has no stored scoring result to report on.');
   const result = parsed.data;
   const claimed = new Set<ReportPhoto>();
   const failing = result.findings
-    .filter((f) => f.outcome === "fail")
+    .filter((f) => f.outcome === 'fail')
     .sort(bySeverity)
     .map((f) => {
       const photos = source.photos.filter((p) => photoBelongsTo(p, f));
       photos.forEach((p) => claimed.add(p));
       return { ...f, photos };
     });
-  const cautions: ReportCaution[] = [];
-  const seen = new Set<string>();
-  for (const f of failing) {
-    const text = f.caution.trim();
-    if (!text || seen.has(text)) continue;
-    seen.add(text);
-    cautions.push({
-      ruleId: f.ruleId,
-      title: f.title,
-      severity: f.severity,
-      caution: text,
-    });
-  }
+  const cautions = cautionsOf(result);
   const areaKeys = Object.keys(result.areaScores);
   return {
     ...source,
     result,
     failing,
-    needsInfo: result.findings
-      .filter((f) => f.outcome === "needs_info")
-      .sort(bySeverity),
-    passed: result.findings
-      .filter((f) => f.outcome === "pass")
-      .sort(bySeverity),
-    notApplicable: result.findings.filter((f) => f.outcome === "n/a").length,
+    needsInfo: result.findings.filter((f) => f.outcome === 'needs_info').sort(bySeverity),
+    passed: result.findings.filter((f) => f.outcome === 'pass').sort(bySeverity),
+    notApplicable: result.findings.filter((f) => f.outcome === 'n/a').length,
     areas: areaKeys.map((key) => ({
       key,
       title: source.ruleset.areaTitles[key] ?? key,
@@ -239,29 +222,24 @@ export function buildReportModel(source: ReportSource): ReportModel {
 }
 
 /** The verdict in plain words, for the owner as much as the office. */
-export const verdictWords: Record<
-  Verdict,
-  { label: string; headline: string; meaning: string }
-> = {
+export const verdictWords: Record<Verdict, { label: string; headline: string; meaning: string }> = {
   clear: {
-    label: "Clear",
-    headline: "No hazard above minor was found.",
-    meaning:
-      "The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.",
+    label: 'Clear',
+    headline: 'No hazard above minor was found.',
+    meaning: 'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
   },
   remedy: {
-    label: "Remedy",
-    headline: "Hazards were found that must be fixed.",
+    label: 'Remedy',
+    headline: 'Hazards were found that must be fixed.',
     meaning:
-      "The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.",
+      'The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.',
   },
   withdraw: {
-    label: "Withdraw from automatic use",
-    headline: "At least one critical hazard was found.",
-    meaning:
-      "Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.",
+    label: 'Withdraw from automatic use',
+    headline: 'At least one critical hazard was found.',
+    meaning: 'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
   },
 };
 
 export const DISCLAIMER =
-  "This assessment supports, and does not replace, the gate and operator manufacturers\u2019 installation and maintenance instructions, the local codes in force, the decisions of the authority having jurisdiction, and the advice of licensed professionals. It records the condition seen on the day of the visit; a gate changes with use, weather and repairs.";
+  'This assessment supports, and does not replace, the gate and operator manufacturers\u2019 installation and maintenance instructions, the local codes in force, the decisions of the authority having jurisdiction, and the advice of licensed professionals. It records the condition seen on the day of the visit; a gate changes with use, weather and repairs.';

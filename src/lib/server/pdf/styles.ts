@@ -1,7 +1,7 @@
 /** react-pdf styles of the report, from the theme. */
-import { StyleSheet } from "@react-pdf/renderer";
-import { REPORT_FONT_FAMILIES } from "./fonts";
-import { colours, type } from "./theme";
+import { StyleSheet } from '@react-pdf/renderer';
+import { REPORT_FONT_FAMILIES } from './fonts';
+import { colours, type } from './theme';
 
 export const styles = StyleSheet.create({
   page: {
@@ -15,12 +15,12 @@ export const styles = StyleSheet.create({
   // No lineHeight anywhere: react-pdf 4.9 drops (or mis-places) a `render` text such as the
   // page numbers when a line height applies to it, and Noto Sans' own spacing is about 1.36.
   header: {
-    position: "absolute",
+    position: 'absolute',
     top: 20,
     left: 48,
     right: 48,
-    flexDirection: "row",
-    justifyContent: "space-between",
+    flexDirection: 'row',
+    justifyContent: 'space-between',
     fontSize: type.tiny,
     color: colours.iron600,
     borderBottomWidth: 0.75,
@@ -28,7 +28,7 @@ export const styles = StyleSheet.create({
     paddingBottom: 4,
   },
   footerLeft: {
-    position: "absolute",
+    position: 'absolute',
     bottom: 24,
     left: 48,
     right: 150,
@@ -39,11 +39,11 @@ export const styles = StyleSheet.create({
     paddingTop: 4,
   },
   footerRight: {
-    position: "absolute",
+    position: 'absolute',
     bottom: 24,
     right: 48,
     width: 102,
-    textAlign: "right",
+    textAlign: 'right',
     fontSize: type.tiny,
     color: colours.iron600,
     borderTopWidth: 0.5,
@@ -79,11 +79,11 @@ export const styles = StyleSheet.create({
     fontSize: type.tiny,
     fontWeight: 600,
     color: colours.iron600,
-    textTransform: "uppercase",
+    textTransform: 'uppercase',
     letterSpacing: 0.6,
   },
-  factGrid: { flexDirection: "row", flexWrap: "wrap", marginTop: 8 },
-  fact: { width: "50%", paddingVertical: 4, paddingRight: 8 },
+  factGrid: { flexDirection: 'row', flexWrap: 'wrap', marginTop: 8 },
+  fact: { width: '50%', paddingVertical: 4, paddingRight: 8 },
   verdictBox: {
     marginTop: 10,
     padding: 14,
@@ -100,9 +100,9 @@ export const styles = StyleSheet.create({
     backgroundColor: colours.white,
   },
   findingHead: {
-    flexDirection: "row",
-    justifyContent: "space-between",
-    alignItems: "flex-start",
+    flexDirection: 'row',
+    justifyContent: 'space-between',
+    alignItems: 'flex-start',
   },
   pill: {
     fontSize: type.tiny,
@@ -111,15 +111,15 @@ export const styles = StyleSheet.create({
     paddingVertical: 1.5,
     paddingHorizontal: 5,
     borderRadius: 3,
-    textTransform: "uppercase",
+    textTransform: 'uppercase',
   },
-  row: { flexDirection: "row" },
+  row: { flexDirection: 'row' },
   fieldName: { width: 92, fontWeight: 600, color: colours.iron700 },
   fieldValue: { flex: 1 },
-  photoRow: { flexDirection: "row", flexWrap: "wrap", marginTop: 6 },
+  photoRow: { flexDirection: 'row', flexWrap: 'wrap', marginTop: 6 },
   photo: { width: 150, marginRight: 8, marginBottom: 6 },
   caution: {
-    flexDirection: "row",
+    flexDirection: 'row',
     marginBottom: 6,
     padding: 7,
     backgroundColor: colours.brass100,
@@ -147,7 +147,7 @@ export const styles = StyleSheet.create({
     borderBottomColor: colours.iron700,
     height: 54,
     marginBottom: 4,
-    justifyContent: "flex-end",
+    justifyContent: 'flex-end',
   },
   mono: { fontSize: type.tiny, color: colours.iron700 },
   disclaimer: {

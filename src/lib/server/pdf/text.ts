@@ -5,62 +5,55 @@
 
 /** Glyphs Noto Sans' Latin subsets lack, spelled out so nothing prints as a blank box. */
 const replacements: Array<[RegExp, string]> = [
-  [/≥/g, "at least "],
-  [/≤/g, "at most "],
-  [/≠/g, "not "],
-  [/≈/g, "about "],
-  [/[✓✔]/g, "yes"],
-  [/[✗✘]/g, "no"],
-  [/→/g, "->"],
-  [/\u00a0/g, " "],
+  [/≥/g, 'at least '],
+  [/≤/g, 'at most '],
+  [/≠/g, 'not '],
+  [/≈/g, 'about '],
+  [/[✓✔]/g, 'yes'],
+  [/[✗✘]/g, 'no'],
+  [/→/g, '->'],
+  [/\u00a0/g, ' '],
 ];
 
 export function pdfText(value: unknown): string {
-  let text = value === null || value === undefined ? "" : String(value);
-  for (const [pattern, replacement] of replacements)
-    text = text.replace(pattern, replacement);
+  let text = value === null || value === undefined ? '' : String(value);
+  for (const [pattern, replacement] of replacements) text = text.replace(pattern, replacement);
   // Control characters (other than newline) have no glyph.
-  return text.replace(/[\u0000-\u0009\u000b-\u001f\u007f]/g, "");
+  return text.replace(/[\u0000-\u0009\u000b-\u001f\u007f]/g, '');
 }
 
-export function formatDate(
-  value: Date | string | null | undefined,
-  timeZone: string,
-): string {
-  if (!value) return "-";
+export function formatDate(value: Date | string | null | undefined, timeZone: string): string {
+  if (!value) return '-';
   const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat("en-US", {
+  return new Intl.DateTimeFormat('en-US', {
     timeZone: safeZone(timeZone),
-    year: "numeric",
-    month: "long",
-    day: "numeric",
+    year: 'numeric',
+    month: 'long',
+    day: 'numeric',
   }).format(date);
 }
 
-export function formatDateTime(
-  value: Date | string | null | undefined,
-  timeZone: string,
-): string {
-  if (!value) return "-";
+export function formatDateTime(value: Date | string | null | undefined, timeZone: string): string {
+  if (!value) return '-';
   const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat("en-US", {
+  return new Intl.DateTimeFormat('en-US', {
     timeZone: safeZone(timeZone),
-    year: "numeric",
-    month: "short",
-    day: "numeric",
-    hour: "2-digit",
-    minute: "2-digit",
-    second: "2-digit",
-    timeZoneName: "short",
+    year: 'numeric',
+    month: 'short',
+    day: 'numeric',
+    hour: '2-digit',
+    minute: '2-digit',
+    second: '2-digit',
+    timeZoneName: 'short',
   }).format(date);
 }
 
 function safeZone(zone: string): string {
   try {
-    new Intl.DateTimeFormat("en-US", { timeZone: zone });
+    new Intl.DateTimeFormat('en-US', { timeZone: zone });
     return zone;
   } catch {
-    return "UTC";
+    return 'UTC';
   }
 }
 
@@ -69,69 +62,56 @@ const N_PER_LBF = 4.4482216152605;
 const KG_PER_LB = 0.45359237;
 
 function round(value: number, digits: number): string {
-  return Number(value.toFixed(digits)).toLocaleString("en-US", {
+  return Number(value.toFixed(digits)).toLocaleString('en-US', {
     maximumFractionDigits: digits,
   });
 }
 
 /** A canonical value (mm, N, kg …) in the organisation's system, with its unit. */
-export function formatQuantity(
-  value: number,
-  unit: string | undefined,
-  system: "imperial" | "metric",
-): string {
-  if (!unit || unit === "count") return round(value, 2);
-  if (system === "imperial") {
-    if (unit === "mm") return `${round(value / MM_PER_INCH, 2)} in`;
-    if (unit === "N") return `${round(value / N_PER_LBF, 1)} lbf`;
-    if (unit === "kg") return `${round(value / KG_PER_LB, 1)} lb`;
+export function formatQuantity(value: number, unit: string | undefined, system: 'imperial' | 'metric'): string {
+  if (!unit || unit === 'count') return round(value, 2);
+  if (system === 'imperial') {
+    if (unit === 'mm') return `${round(value / MM_PER_INCH, 2)} in`;
+    if (unit === 'N') return `${round(value / N_PER_LBF, 1)} lbf`;
+    if (unit === 'kg') return `${round(value / KG_PER_LB, 1)} lb`;
   }
-  if (unit === "deg") return `${round(value, 1)}°`;
-  if (unit === "%") return `${round(value, 1)} %`;
+  if (unit === 'deg') return `${round(value, 1)}°`;
+  if (unit === '%') return `${round(value, 1)} %`;
   return `${round(value, 2)} ${unit}`;
 }
 
 /** `hingeGapMm` -> `hinge gap`; `m.closingEdgeForceN` -> `closing edge force`. */
 export function factLabel(key: string): string {
-  const last = key.split(".").pop() ?? key;
-  const bare = last.replace(/(Mm|N|Kg|Deg|S|Ms|V|A|Pct)$/, "");
+  const last = key.split('.').pop() ?? key;
+  const bare = last.replace(/(Mm|N|Kg|Deg|S|Ms|V|A|Pct)$/, '');
   return bare
-    .replace(/([a-z0-9])([A-Z])/g, "$1 $2")
+    .replace(/([a-z0-9])([A-Z])/g, '$1 $2')
     .toLowerCase()
     .trim();
 }
 
 /** The unit a fact key's suffix names, when it names one. */
 export function unitFromKey(key: string): string | undefined {
-  const last = key.split(".").pop() ?? key;
+  const last = key.split('.').pop() ?? key;
   const match = /(Mm|N|Kg|Deg|Ms|S|V|A)$/.exec(last);
   if (!match) return undefined;
   return {
-    Mm: "mm",
-    N: "N",
-    Kg: "kg",
-    Deg: "deg",
-    Ms: "ms",
-    S: "s",
-    V: "V",
-    A: "A",
+    Mm: 'mm',
+    N: 'N',
+    Kg: 'kg',
+    Deg: 'deg',
+    Ms: 'ms',
+    S: 's',
+    V: 'V',
+    A: 'A',
   }[match[1]];
 }
 
-export function formatObserved(
-  key: string,
-  value: unknown,
-  system: "imperial" | "metric",
-): string {
-  if (value === null || value === undefined) return "not recorded";
-  if (typeof value === "boolean") return value ? "yes" : "no";
-  if (typeof value === "number")
-    return formatQuantity(value, unitFromKey(key), system);
-  if (typeof value === "string")
-    return value === "na" ? "not applicable" : value.replace(/_/g, " ");
-  if (Array.isArray(value))
-    return value.length
-      ? value.map((v) => formatObserved(key, v, system)).join(", ")
-      : "none";
+export function formatObserved(key: string, value: unknown, system: 'imperial' | 'metric'): string {
+  if (value === null || value === undefined) return 'not recorded';
+  if (typeof value === 'boolean') return value ? 'yes' : 'no';
+  if (typeof value === 'number') return formatQuantity(value, unitFromKey(key), system);
+  if (typeof value === 'string') return value === 'na' ? 'not applicable' : value.replace(/_/g, ' ');
+  if (Array.isArray(value)) return value.length ? value.map((v) => formatObserved(key, v, system)).join(', ') : 'none';
   return JSON.stringify(value).slice(0, 200);
 }

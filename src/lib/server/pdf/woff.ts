@@ -3,10 +3,10 @@
  * table once with Node's zlib. The report renderer then reads uncompressed tables instead of
  * inflating them in JavaScript on every glyph lookup, which made rendering several times slower.
  */
-import { inflateSync } from "node:zlib";
+import { inflateSync } from 'node:zlib';
 
 export function woffToSfnt(woff: Buffer): Buffer {
-  if (woff.readUInt32BE(0) !== 0x774f4646) throw new Error("not a WOFF file"); // 'wOFF'
+  if (woff.readUInt32BE(0) !== 0x774f4646) throw new Error('not a WOFF file'); // 'wOFF'
   const flavor = woff.readUInt32BE(4);
   const numTables = woff.readUInt16BE(12);
   const tables = Array.from({ length: numTables }, (_, i) => {
@@ -18,8 +18,7 @@ export function woffToSfnt(woff: Buffer): Buffer {
     const checksum = woff.readUInt32BE(at + 16);
     const stored = woff.subarray(offset, offset + compLength);
     const data = compLength < origLength ? inflateSync(stored) : stored;
-    if (data.length !== origLength)
-      throw new Error("WOFF table length mismatch");
+    if (data.length !== origLength) throw new Error('WOFF table length mismatch');
     return { tag, checksum, data };
   });
   let power = 1;
@@ -30,10 +29,7 @@ export function woffToSfnt(woff: Buffer): Buffer {
   }
   const headerSize = 12 + numTables * 16;
   const padded = (n: number) => (n + 3) & ~3;
-  const total = tables.reduce(
-    (sum, t) => sum + padded(t.data.length),
-    headerSize,
-  );
+  const total = tables.reduce((sum, t) => sum + padded(t.data.length), headerSize);
   const out = Buffer.alloc(total);
   out.writeUInt32BE(flavor, 0);
   out.writeUInt16BE(numTables, 4);

@@ -1,0 +1,204 @@
+/**
+ * The owner's signing form on the public /sign/[token] page: a checkbox per caution, consent to
+ * sign electronically, the typed name, and a signature drawn with signature_pad.
+ *
+ * Keyboard and assistive-technology users (or anyone whose device cannot draw) tick "use my
+ * typed name as my signature": the typed name then is the signature mark, recorded as
+ * `typed`. Talks to the server only through POST /api/sign/{token}/submit.
+ */
+import { useEffect, useRef, useState, type FormEvent } from 'react';
+import SignaturePad from 'signature_pad';
+
+export interface CautionItem {
+  ruleId: string;
+  title: string;
+  caution: string;
+}
+
+interface Props {
+  token: string;
+  cautions: CautionItem[];
+  consentText: string;
+  intentText: string;
+  documentSha256: string;
+  recipientEmail: string;
+}
+
+type Phase = { kind: 'editing' } | { kind: 'sending' } | { kind: 'signed'; documentSha256: string } | { kind: 'closed'; message: string };
+
+export default function SignatureForm({ token, cautions, consentText, intentText, documentSha256, recipientEmail }: Props) {
+  const canvas = useRef<HTMLCanvasElement>(null);
+  const pad = useRef<SignaturePad | null>(null);
+  const [ticked, setTicked] = useState<Record<string, boolean>>({});
+  const [consent, setConsent] = useState(false);
+  const [name, setName] = useState('');
+  const [typedOnly, setTypedOnly] = useState(false);
+  const [drawn, setDrawn] = useState(false);
+  const [errors, setErrors] = useState<string[]>([]);
+  const [phase, setPhase] = useState<Phase>({ kind: 'editing' });
+
+  useEffect(() => {
+    const el = canvas.current;
+    if (!el || typedOnly) return;
+    const instance = new SignaturePad(el, { penColor: '#121c29', backgroundColor: 'rgba(255,255,255,0)', minWidth: 0.8, maxWidth: 2.6 });
+    const fit = () => {
+      // Size the bitmap to the element and the screen's pixel ratio so strokes stay sharp.
+      const ratio = Math.max(window.devicePixelRatio || 1, 1);
+      const data = instance.toData();
+      el.width = el.offsetWidth * ratio;
+      el.height = el.offsetHeight * ratio;
+      el.getContext('2d')?.scale(ratio, ratio);
+      instance.clear();
+      instance.fromData(data);
+    };
+    fit();
+    instance.addEventListener('endStroke', () => setDrawn(!instance.isEmpty()));
+    window.addEventListener('resize', fit);
+    pad.current = instance;
+    return () => {
+      window.removeEventListener('resize', fit);
+      instance.off();
+      pad.current = null;
+    };
+  }, [typedOnly]);
+
+  const clear = () => {
+    pad.current?.clear();
+    setDrawn(false);
+  };
+
+  async function submit(event: FormEvent) {
+    event.preventDefault();
+    const problems: string[] = [];
+    const unticked = cautions.filter((c) => !ticked[c.ruleId]);
+    if (unticked.length) problems.push(`Tick each caution to show you have read it (${unticked.length} left).`);
+    if (!consent) problems.push('Tick the box to agree to sign electronically.');
+    if (name.trim().length < 2) problems.push('Type your full name.');
+    if (!typedOnly && (!pad.current || pad.current.isEmpty())) problems.push('Draw your signature in the box, or tick “use my typed name as my signature”.');
+    setErrors(problems);
+    if (problems.length) return;
+    setPhase({ kind: 'sending' });
+    const signature = typedOnly || !pad.current ? { method: 'typed' as const } : { method: 'drawn' as const, png: pad.current.toDataURL('image/png') };
+    try {
+      const res = await fetch(`/api/sign/${encodeURIComponent(token)}/submit`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify({
+          name: name.trim(),
+          consent: true,
+          intent: true,
+          acknowledgedCautions: cautions.map((c) => c.ruleId),
+          shownPdfSha256: documentSha256,
+          signature,
+        }),
+      });
+      const body = await res.json().catch(() => ({}));
+      if (res.ok) return setPhase({ kind: 'signed', documentSha256: body.document?.sha256 ?? '' });
+      if (body.linkState) return setPhase({ kind: 'closed', message: body.detail ?? 'This link can no longer be used.' });
+      setErrors([body.detail ?? 'Something went wrong; try again.', ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message)]);
+      setPhase({ kind: 'editing' });
+    } catch {
+      setErrors(['We could not reach the server. Check your connection and press Sign again; nothing was signed yet.']);
+      setPhase({ kind: 'editing' });
+    }
+  }
+
+  if (phase.kind === 'signed') {
+    return (
+      <section className="card border-clear" role="status" aria-live="polite">
+        <h2 className="text-xl font-bold text-clear">Signed. Thank you.</h2>
+        <p className="mt-2">
+          Your signed copy is on its way to <strong>{recipientEmail}</strong>. You can close this page.
+        </p>
+        {phase.documentSha256 ? <p className="mt-2 break-all text-xs text-iron-600">Document fingerprint (SHA-256): {phase.documentSha256}</p> : null}
+      </section>
+    );
+  }
+  if (phase.kind === 'closed') {
+    return (
+      <section className="card" role="alert">
+        <h2 className="text-xl font-bold">This link cannot be used now</h2>
+        <p className="mt-2">{phase.message}</p>
+      </section>
+    );
+  }
+
+  return (
+    <form onSubmit={submit} noValidate className="space-y-5" aria-describedby={errors.length ? 'sign-errors' : undefined}>
+      {cautions.length ? (
+        <fieldset className="card space-y-3">
+          <legend className="px-1 text-lg font-bold">Cautions to acknowledge</legend>
+          <p className="text-sm text-iron-700">Until the fixes are done, please read each one and tick it.</p>
+          {cautions.map((c) => (
+            <label key={c.ruleId} className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg bg-brass-100 p-3">
+              <input
+                type="checkbox"
+                className="mt-1 size-5 shrink-0 accent-iron-800"
+                checked={Boolean(ticked[c.ruleId])}
+                onChange={(e) => setTicked({ ...ticked, [c.ruleId]: e.target.checked })}
+              />
+              <span>
+                <span className="block font-semibold">{c.title}</span>
+                <span className="block">{c.caution}</span>
+              </span>
+            </label>
+          ))}
+        </fieldset>
+      ) : null}
+
+      <fieldset className="card space-y-4">
+        <legend className="px-1 text-lg font-bold">Your signature</legend>
+        <label className="flex min-h-11 cursor-pointer items-start gap-3">
+          <input type="checkbox" className="mt-1 size-5 shrink-0 accent-iron-800" checked={consent} onChange={(e) => setConsent(e.target.checked)} />
+          <span>{consentText}</span>
+        </label>
+        <div>
+          <label htmlFor="signer-name" className="label">
+            Your full name
+          </label>
+          <input id="signer-name" className="field" autoComplete="name" value={name} onChange={(e) => setName(e.target.value)} maxLength={120} required />
+        </div>
+        {!typedOnly ? (
+          <div>
+            <span id="pad-label" className="label">
+              Sign here with your finger or mouse
+            </span>
+            <canvas
+              ref={canvas}
+              aria-labelledby="pad-label"
+              role="img"
+              className="block h-40 w-full touch-none rounded-lg border-2 border-dashed border-iron-400 bg-white"
+            />
+            <div className="mt-2 flex items-center justify-between gap-2 text-sm">
+              <span className="text-iron-600">{drawn ? 'Signature drawn.' : 'Nothing drawn yet.'}</span>
+              <button type="button" className="btn-secondary" onClick={clear}>
+                Clear
+              </button>
+            </div>
+          </div>
+        ) : null}
+        <label className="flex min-h-11 cursor-pointer items-start gap-3">
+          <input type="checkbox" className="mt-1 size-5 shrink-0 accent-iron-800" checked={typedOnly} onChange={(e) => setTypedOnly(e.target.checked)} />
+          <span>I cannot draw here: use my typed name as my signature.</span>
+        </label>
+      </fieldset>
+
+      {errors.length ? (
+        <div id="sign-errors" role="alert" className="rounded-lg border border-withdraw bg-white p-3 text-withdraw">
+          <ul className="list-disc pl-5">
+            {errors.map((e) => (
+              <li key={e}>{e}</li>
+            ))}
+          </ul>
+        </div>
+      ) : null}
+
+      <div className="card space-y-3">
+        <p>{intentText}</p>
+        <button type="submit" className="btn w-full text-lg" disabled={phase.kind === 'sending'}>
+          {phase.kind === 'sending' ? 'Signing…' : 'Sign the report'}
+        </button>
+      </div>
+    </form>
+  );
+}
