@@ -100,27 +100,95 @@ function measured(prng: Prng, question: RulesetQuestion): Measured | undefined {
 export interface SampleDocuments {
   answers: Record<string, { value: string }>;
   measurements: Record<string, Measured>;
-  observations: { site: { pedestriansUseDriveway: boolean; childrenOrPetsPresent: boolean; publicAccess: boolean; slopeAcrossSwing: boolean } };
+  observations: {
+    site: { pedestriansUseDriveway: boolean; childrenOrPetsPresent: boolean; publicAccess: boolean; slopeAcrossSwing: boolean };
+    entrapment: { zones: { zone: string; direction: string }[]; devices: { type: string; direction: string; zone: string; monitored: boolean }[] };
+  };
 }
 
+/** Inherent sensing in both directions, a monitored photo-eye closing and an edge opening; careless: the edge missing. */
+function sampleEntrapment(prng: Prng, diligence: number): SampleDocuments['observations']['entrapment'] {
+  const devices = [
+    { type: 'A', direction: 'closing', zone: 'closing_edge', monitored: true },
+    { type: 'B1', direction: 'closing', zone: 'closing_edge', monitored: true },
+    { type: 'A', direction: 'opening', zone: 'open_side', monitored: true },
+  ];
+  if (prng.chance(diligence)) devices.push({ type: 'B2', direction: 'opening', zone: 'open_side', monitored: true });
+  return {
+    zones: [
+      { zone: 'closing_edge', direction: 'closing' },
+      { zone: 'open_side', direction: 'opening' },
+    ],
+    devices,
+  };
+}
+
+type Logic = unknown;
+
 /**
- * Answers every question of `version` it can: yes/no/na mostly yes (a careful installer),
- * choices at random, measurements in range; `diligence` (0–1) is the chance of a good answer.
+ * What a gate that passes would show, read from the version's own rule conditions: for
+ * `answers.k == v` the answer v, for `m.k <= params.p` a value under the limit, for
+ * `m.k >= params.p` one over it. Only simple comparisons are read; the rest stay random.
  */
-export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'questions'>, diligence = 0.85): SampleDocuments {
+export function safeAnswersOf(version: Pick<RulesetVersion, 'rules'>): { answers: Map<string, string>; below: Map<string, number>; above: Map<string, number> } {
+  const answers = new Map<string, string>();
+  const below = new Map<string, number>();
+  const above = new Map<string, number>();
+  const varName = (x: Logic) => (x && typeof x === 'object' && 'var' in (x as object) ? String((x as { var: unknown }).var) : null);
+  for (const rule of version.rules) {
+    const params = Object.fromEntries(Object.entries(rule.params).map(([k, v]) => [`params.${k}`, v.value]));
+    const visit = (node: Logic): void => {
+      if (!node || typeof node !== 'object' || Array.isArray(node)) return;
+      const [op, args] = Object.entries(node as Record<string, Logic>)[0] ?? [];
+      if (!op || !Array.isArray(args)) return;
+      if (op === 'and') return args.forEach(visit);
+      if (op === 'or') return visit(args[0]);
+      const left = varName(args[0]);
+      const right = varName(args[1]);
+      const limit = right ? params[right] : typeof args[1] === 'number' ? args[1] : undefined;
+      if (op === '==' && left?.startsWith('answers.') && typeof args[1] === 'string') answers.set(left.slice(8), args[1]);
+      else if (left?.startsWith('m.') && typeof limit === 'number') {
+        if (op === '<=' || op === '<') below.set(left.slice(2), limit);
+        if (op === '>=' || op === '>') above.set(left.slice(2), limit);
+      }
+    };
+    visit(rule.condition);
+  }
+  return { answers, below, above };
+}
+
+const safeCache = new WeakMap<object, ReturnType<typeof safeAnswersOf>>();
+
+/**
+ * Answers every question of `version` it can. With probability `diligence` an item shows what
+ * a passing gate would (see safeAnswersOf), otherwise anything in range, so most gates come out
+ * clear and some fail an item or two.
+ */
+export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'questions' | 'rules'>, diligence = 0.97): SampleDocuments {
+  let safe = safeCache.get(version);
+  if (!safe) safeCache.set(version, (safe = safeAnswersOf(version)));
   const answers: SampleDocuments['answers'] = {};
   const measurements: SampleDocuments['measurements'] = {};
   for (const question of version.questions) {
+    const careful = prng.chance(diligence);
     if (question.answerType === 'yes_no_na') {
-      answers[question.key] = { value: prng.chance(diligence) ? 'yes' : prng.chance(0.6) ? 'no' : 'na' };
+      answers[question.key] = { value: careful ? (safe.answers.get(question.key) ?? 'yes') : prng.pick(['yes', 'no', 'na']) };
     } else if (question.answerType === 'choice') {
       const options = question.options ?? [];
-      if (options.length) answers[question.key] = { value: prng.pick(options).value };
+      const good = safe.answers.get(question.key);
+      if (options.length) answers[question.key] = { value: careful && good ? good : prng.pick(options).value };
     } else if (question.answerType === 'date' || question.answerType === 'text') {
       continue;
     } else {
       const m = measured(prng, question);
-      if (m) measurements[question.key] = m;
+      if (!m) continue;
+      const under = safe.below.get(question.key);
+      const over = safe.above.get(question.key);
+      if (careful && (under !== undefined || over !== undefined)) {
+        const canonical = under !== undefined ? Math.round(under * 0.6 * 100) / 100 : Math.round(((over ?? 0) * 1.2 + 1) * 100) / 100;
+        const unit = ranges[question.answerType]!.unit;
+        measurements[question.key] = { value: canonical, unit, canonical: canonicalValue(kindOfUnit(unit)!, canonical, unit) };
+      } else measurements[question.key] = m;
     }
   }
   return {
@@ -128,6 +196,7 @@ export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'quest
     measurements,
     observations: {
       site: { pedestriansUseDriveway: prng.chance(0.5), childrenOrPetsPresent: prng.chance(0.4), publicAccess: prng.chance(0.2), slopeAcrossSwing: prng.chance(0.1) },
+      entrapment: sampleEntrapment(prng, diligence),
     },
   };
 }

@@ -7,6 +7,9 @@ import { z } from 'zod';
 import { ASSESSMENT_STATUSES, VERDICT_VALUES, type AssessmentStatus, type VerdictValue } from './assessments';
 import { IdSchema, IsoDateSchema, SearchTextSchema } from './common';
 import { GATE_KIND_VALUES } from './gates';
+import { ARCHIVE_SORTS, type ArchiveFilterKey } from '../archive-query';
+
+export { ARCHIVE_SORTS, ARCHIVE_FILTER_KEYS, type ArchiveSort } from '../archive-query';
 
 const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
 const familySlug = z.string().max(64).regex(/^[a-z][a-z0-9]*(?:-[a-z0-9]+)*$/, 'must be a ruleset family slug');
@@ -15,7 +18,7 @@ const versionLabel = z.string().max(32).regex(/^[0-9A-Za-z][0-9A-Za-z.+-]*$/, 'm
 const blankAsUndefined = (value: unknown) => (value === '' ? undefined : value);
 const optional = <S extends z.ZodType>(schema: S) => z.preprocess(blankAsUndefined, schema.optional());
 
-/** The filters of the archive, as URL query parameters (also the export's). */
+/** The filters of the archive, as URL query parameters (also the export's); keys as ARCHIVE_FILTER_KEYS. */
 export const ArchiveFilterShape = {
   /** Free text over client name, site address and gate label. */
   q: optional(SearchTextSchema),
@@ -33,10 +36,7 @@ export const ArchiveFilterShape = {
   /** Visit date range, inclusive, as days in the organisation's time zone. */
   from: optional(IsoDateSchema),
   to: optional(IsoDateSchema),
-};
-
-export const ARCHIVE_SORTS = ['-date', 'date', 'client', '-client', 'gate', '-gate'] as const;
-export type ArchiveSort = (typeof ARCHIVE_SORTS)[number];
+} satisfies Record<ArchiveFilterKey, z.ZodType>;
 export const ARCHIVE_PAGE_SIZE_MAX = 100;
 
 const dateOrder = (q: { from?: string; to?: string }) => !q.from || !q.to || q.from <= q.to;
@@ -80,6 +80,3 @@ export interface ArchivePage {
   /** Cursor for the page before this one, or null at the start. */
   prevCursor: string | null;
 }
-
-/** The list's filter keys, in the order the URL writes them. */
-export const ARCHIVE_FILTER_KEYS = Object.keys(ArchiveFilterShape) as (keyof typeof ArchiveFilterShape)[];

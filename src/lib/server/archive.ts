@@ -159,3 +159,23 @@ export async function countArchive(organisationId: string, timeZone: string, fil
   const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
   return Number(total);
 }
+
+/** What the archive's filter menus offer: the organisation's staff and the ruleset versions it has used or may use. */
+export async function archiveFilterOptions(organisationId: string, knex: Knex = db()): Promise<{ auditors: { id: string; name: string }[]; rulesets: { family: string; title: string; versions: string[] }[] }> {
+  const [auditors, versions] = await Promise.all([
+    knex('users').where('organisation_id', organisationId).whereIn('role', ['owner', 'office', 'auditor']).orderBy('name').select('id', 'name'),
+    knex('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))
+      .whereIn('rv.status', ['published', 'retired'])
+      .orderBy([{ column: 'r.family' }, { column: 'rv.created_at', order: 'desc' }])
+      .select('r.family', 'r.title', 'rv.version'),
+  ]);
+  const rulesets = new Map<string, { family: string; title: string; versions: string[] }>();
+  for (const v of versions as { family: string; title: string; version: string }[]) {
+    const entry = rulesets.get(v.family) ?? { family: v.family, title: v.title, versions: [] as string[] };
+    entry.versions.push(v.version);
+    rulesets.set(v.family, entry);
+  }
+  return { auditors, rulesets: [...rulesets.values()] };
+}

@@ -80,7 +80,7 @@ export async function gateHistory(organisationId: string, gateId: string, knex: 
       'rv.version',
       'u.name as auditor_name',
       knex.raw(`a.result -> 'areaScores' as area_scores`),
-      knex.raw(`jsonb_path_query_array(a.result, '$.findings[*] ? (@.outcome == "fail").ruleId') as failed_rule_ids`),
+      knex.raw(`jsonb_path_query_array(a.result, '$.findings[*] \\? (@.outcome == "fail").ruleId') as failed_rule_ids`),
     )
     .orderByRaw(`${archiveDateSql} asc, a.id asc`)) as VisitRow[];
 
@@ -121,7 +121,7 @@ async function openFindingsOf(knex: Knex, last: GateVisit, scored: GateVisit[]):
   const row = await knex('assessments')
     .where({ id: last.assessmentId })
     .first<{ open: Omit<OpenFinding, 'failingSince' | 'visitsFailing'>[] | null }>(
-      knex.raw(`jsonb_path_query_array(result, '$.findings[*] ? (@.outcome == "fail" || @.outcome == "needs_info")') as open`),
+      knex.raw(`jsonb_path_query_array(result, '$.findings[*] \\? (@.outcome == "fail" || @.outcome == "needs_info")') as open`),
     );
   const open = row?.open ?? [];
   const lastIndex = scored.indexOf(last);

@@ -14,6 +14,7 @@
  * left out. `basis: 'all'` re-scores every signed assessment.
  */
 import type { Knex } from 'knex';
+import type { ImpactBasis, ImpactOutcome, ImpactReport, ImpactTarget, ResponsibleRule } from '@/lib/api/impact';
 import { AssessmentInputError, scoreParsed, type Finding, type LoadedRuleset, type RulesetVersion } from '@/lib/rules';
 import type { AssessmentDocuments, GateForScoring } from './assessment-input';
 import { buildEngineInput } from './assessment-input';
@@ -23,49 +24,11 @@ import { db } from './db';
 import { iso } from './listing';
 import { loadedRuleset } from './ruleset-cache';
 
-export type ImpactBasis = 'latest' | 'all';
 type Verdict = 'clear' | 'remedy' | 'withdraw';
 const VERDICT_RANK: Record<Verdict, number> = { clear: 0, remedy: 1, withdraw: 2 };
 
-export interface ImpactTarget {
-  id: string;
-  family: string;
-  version: string;
-  publishedAt: string | null;
-  /** The versions whose assessments are re-scored: the family's others. */
-  otherVersions: { id: string; version: string }[];
-}
 
-/** A rule behind a worse verdict, and how the same rule stood in the signed result. */
-export interface ResponsibleRule {
-  ruleId: string;
-  title: string;
-  area: string;
-  severity: Finding['severity'];
-  outcome: 'fail' | 'needs_info';
-  /** Outcome in the signed result: `absent` when the old version had no such rule. */
-  before: 'pass' | 'fail' | 'n/a' | 'needs_info' | 'absent';
-  beforeSeverity: Finding['severity'] | null;
-}
 
-export interface ImpactOutcome {
-  assessmentId: string;
-  gateId: string;
-  gateLabel: string;
-  gateKind: string;
-  clientName: string;
-  address: string;
-  city: string;
-  visitDate: string;
-  signedAt: string | null;
-  fromVersion: string;
-  before: Verdict;
-  after: Verdict | null;
-  change: 'worse' | 'better' | 'same' | 'unscorable';
-  rules: ResponsibleRule[];
-  /** Why it could not be re-scored (input the new version refuses), when it could not. */
-  problem?: string;
-}
 
 interface ImpactRow {
   id: string;
@@ -260,21 +223,6 @@ export async function* rescoreArchive(organisationId: string, target: ImpactTarg
   }
 }
 
-export interface ImpactReport {
-  target: Omit<ImpactTarget, 'otherVersions'> & { comparedWith: string[] };
-  basis: ImpactBasis;
-  considered: number;
-  worse: number;
-  better: number;
-  same: number;
-  unscorable: number;
-  /** Worse gates, withdraw first, then by client and gate; at most `limit` of them. */
-  items: ImpactOutcome[];
-  truncated: boolean;
-  /** A few of the assessments that could not be re-scored, with why. */
-  unscorableSamples: Pick<ImpactOutcome, 'assessmentId' | 'gateLabel' | 'problem'>[];
-  durationMs: number;
-}
 
 const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
   VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] || a.clientName.localeCompare(b.clientName) || a.gateLabel.localeCompare(b.gateLabel) || a.assessmentId.localeCompare(b.assessmentId);

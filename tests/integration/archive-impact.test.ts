@@ -1,0 +1,111 @@
+/**
+ * Ruleset impact over HTTP: signed assessments under north-american-gate 2015.1 re-scored
+ * against 2026.1. Walk-through records are generated until one gets a worse verdict under the
+ * new version and one does not (decided by the same engine, so the test follows the shipped
+ * rulesets as they change); the stored results must not change.
+ */
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { ImpactReport } from '../../src/lib/api/impact';
+import { scoreParsed } from '../../src/lib/rules';
+import { buildEngineInput } from '../../src/lib/server/assessment-input';
+import { createPrng, sampleDocuments, sampleGate, type SampleDocuments, type SampleGate } from '../support/archive-samples';
+import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion, type PublishedVersion } from './support/archive';
+
+const rank = { clear: 0, remedy: 1, withdraw: 2 } as const;
+let org: FixtureOrganisation;
+let office: TestClient;
+let v2015: PublishedVersion;
+let v2026: PublishedVersion;
+const filed: Record<string, string> = {};
+const gates: Record<string, string> = {};
+
+interface Case {
+  gate: SampleGate;
+  documents: SampleDocuments;
+}
+
+function verdictUnder(version: PublishedVersion, c: Case) {
+  const built = buildEngineInput({ ...c.gate, usageClass: 1 } as never, c.documents as never, version.loaded.version.questions);
+  return built.ok ? scoreParsed(built.value, version.loaded).verdict : null;
+}
+
+/** The first generated records that get worse, and that stay the same, under the new version. */
+function findCases(): { worse: Case; same: Case } {
+  const prng = createPrng(9001);
+  let worse: Case | undefined;
+  let same: Case | undefined;
+  for (let i = 0; i < 5000 && !(worse && same); i++) {
+    const c = { gate: sampleGate(prng), documents: sampleDocuments(prng, v2015.loaded.version) };
+    const before = verdictUnder(v2015, c);
+    const after = verdictUnder(v2026, c);
+    if (!before || !after) continue;
+    if (!worse && rank[after] > rank[before]) worse = c;
+    if (!same && after === before && before !== 'withdraw') same = c;
+  }
+  if (!worse || !same) throw new Error('no generated record gets worse under north-american-gate 2026.1; the rulesets may have converged');
+  return { worse, same };
+}
+
+beforeAll(async () => {
+  org = await createOrganisation('impact');
+  office = await signIn(org.office.email, fixturePassword);
+  [v2015, v2026] = await Promise.all([publishedVersion('north-american-gate', '2015.1'), publishedVersion('north-american-gate', '2026.1')]);
+  const { worse, same } = findCases();
+  const client = await addClient(org.id, 'Fieldfare Close Association');
+  const site = await addSite(org.id, client, '1 Fieldfare Close', 'Brookhaven', 1);
+  const base = { organisationId: org.id, auditorId: org.auditor.id, usageClass: 1 };
+  gates.worse = await addGate(org.id, site, 'North gate', worse.gate);
+  gates.same = await addGate(org.id, site, 'South gate', same.gate);
+  gates.revisited = await addGate(org.id, site, 'Service gate', worse.gate);
+  filed.worse = (await fileAssessment({ ...base, gateId: gates.worse, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2025-04-01T10:00:00Z' })).id;
+  filed.same = (await fileAssessment({ ...base, gateId: gates.same, gate: same.gate, version: v2015, documents: same.documents, visitedOn: '2025-04-01T11:00:00Z' })).id;
+  // Visited under the old version, then again under the new one: its standing record is already current.
+  filed.revisitedOld = (await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2024-04-01T10:00:00Z' })).id;
+  filed.revisitedNew = (await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2026, documents: worse.documents, visitedOn: '2026-04-01T10:00:00Z' })).id;
+});
+
+describe('ruleset impact', () => {
+  it("lists the gates whose last signed visit would get a worse verdict, with the rules responsible, without touching stored results", async () => {
+    const stored = await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at');
+    const report = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}`));
+    expect(report).toMatchObject({ basis: 'latest', considered: 2, worse: 1, same: 1, unscorable: 0, truncated: false });
+    expect(report.target).toMatchObject({ family: 'north-american-gate', version: '2026.1' });
+    expect(report.target.comparedWith).toContain('2015.1');
+    const [item] = report.items;
+    expect(item).toMatchObject({ assessmentId: filed.worse, gateId: gates.worse, gateLabel: 'North gate', clientName: 'Fieldfare Close Association', fromVersion: '2015.1', change: 'worse' });
+    expect(rank[item!.after!]).toBeGreaterThan(rank[item!.before]);
+    expect(item!.rules.length).toBeGreaterThan(0);
+    // Every rule named really drives the new verdict, and was not already failing that badly.
+    for (const rule of item!.rules) {
+      expect(['fail', 'needs_info']).toContain(rule.outcome);
+      expect(rule.severity === 'critical' || (rule.severity === 'major' && rule.outcome === 'fail')).toBe(true);
+      expect(rule.before === 'fail' && rule.beforeSeverity === rule.severity).toBe(false);
+    }
+    expect(await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at')).toEqual(stored);
+  });
+
+  it('re-scores every signed visit with basis=all, and exports the list as CSV', async () => {
+    const all = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`));
+    expect(all).toMatchObject({ considered: 3, worse: 2, same: 1 });
+    expect(all.items.map((i) => i.assessmentId).sort()).toEqual([filed.worse, filed.revisitedOld].sort());
+
+    const csv = await office.fetch(`/api/archive/impact.csv?versionId=${v2026.id}`);
+    expect(csv.status).toBe(200);
+    expect(csv.headers.get('content-type')).toBe('text/csv; charset=utf-8');
+    expect(csv.headers.get('content-disposition')).toBe('attachment; filename="impact-north-american-gate-2026.1.csv"');
+    const lines = (await csv.text()).trim().split('\r\n');
+    expect(lines[0]).toMatch(/^client,address,city,gate,/);
+    expect(lines).toHaveLength(2);
+    expect(lines[1]).toContain(filed.worse);
+    expect(lines[1]).toContain('Fieldfare Close Association');
+  });
+
+  it('refuses a version that is not published or not visible, and a bad query', async () => {
+    expect((await office.fetch('/api/archive/impact?versionId=00000000-0000-4000-8000-000000000000')).status).toBe(404);
+    expect((await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=some`)).status).toBe(400);
+    const page = await office.fetch('/archive/impact');
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain('Ruleset impact');
+  });
+});
