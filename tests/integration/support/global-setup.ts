@@ -20,6 +20,8 @@ declare module 'vitest' {
     databaseUrl: string;
     adminDatabaseUrl: string;
     dataDir: string;
+    /** The environment the server under test runs with, for tests that start a second instance. */
+    serverEnv: Record<string, string>;
   }
 }
 
@@ -40,19 +42,17 @@ export default async function setup(project: TestProject) {
   const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort });
   const smtpUrl = `smtp://127.0.0.1:${smtpPort}`;
   const catcherUrl = `http://127.0.0.1:${httpPort}`;
-  const server = await startAppServer({
-    port,
-    quiet: true,
-    env: {
-      DATABASE_URL: databaseUrl,
-      SMTP_URL: smtpUrl,
-      MAIL_CATCHER_URL: catcherUrl,
-      AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
-      AUTH_TRUST_HOST: 'true',
-      LATCHWELL_DATA_DIR: dataDir,
-      LATCHWELL_ENV: 'test',
-    },
-  });
+  const serverEnv = {
+    DATABASE_URL: databaseUrl,
+    SMTP_URL: smtpUrl,
+    MAIL_CATCHER_URL: catcherUrl,
+    AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
+    AUTH_TRUST_HOST: 'true',
+    LATCHWELL_DATA_DIR: dataDir,
+    LATCHWELL_ENV: 'test',
+  };
+  const server = await startAppServer({ port, quiet: true, env: serverEnv });
+  project.provide('serverEnv', serverEnv);
   project.provide('baseUrl', server.url);
   project.provide('catcherUrl', catcherUrl);
   project.provide('smtpUrl', smtpUrl);
