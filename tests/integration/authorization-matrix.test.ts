@@ -9,9 +9,9 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
-import { anonymousClient, createOrganisation, fixturePassword, signIn, signInHomeowner, type FixtureOrganisation, type TestClient } from './support/fixtures';
 import sharp from 'sharp';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { anonymousClient, createOrganisation, fixturePassword, signIn, signInHomeowner, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
 import { insertClient, insertDraft, insertGate, insertSite, publishedFamilies, currentVersion, seedDirectory, type Directory } from './support/domain';
 
 type Who = 'owner' | 'office' | 'auditor' | 'homeowner' | 'anonymous' | 'otherOrg';
@@ -58,6 +58,12 @@ interface Targets {
   freshInvitation(): Promise<string>;
   /** The family's current published version id. */
   versionId: string;
+  /** A fresh draft submitted by the owner: status scored. */
+  freshScored(): Promise<string>;
+  /** A fresh assessment recorded as signed (inserted directly; the signing flow has its own tests). */
+  freshSigned(): Promise<string>;
+  /** A document of an assessment the owner sent for signature (made once). */
+  sentDocument(): Promise<string>;
 }
 
 interface Row {
@@ -126,6 +132,14 @@ const matrix: Row[] = [
   row('assessments/[id]/force-traces/index', 'POST', async (t) => ({ path: `/api/assessments/${await t.freshDraft()}/force-traces?${traceQuery}`, raw: { contentType: 'text/csv', text: forceTraceCsv } }), s(201, 201, 201, 403, 401, 404)),
   row('assessments/[id]/force-traces/[traceId]', 'DELETE', async (t) => { const f = await t.freshTrace(); return { path: `/api/assessments/${f.draftId}/force-traces/${f.traceId}` }; }, s(204, 204, 204, 403, 401, 404)),
 
+  row('assessments/[id]/report.pdf',  'GET',   async (t) => ({ path: `/api/assessments/${await t.freshScored()}/report.pdf` }),         s(200, 200, 200, 404, 401, 404)),
+  row('assessments/[id]/signing',     'GET',   async (t) => ({ path: `/api/assessments/${await t.freshScored()}/signing` }),            s(200, 200, 200, 403, 401, 404)),
+  row('assessments/[id]/send-for-signature', 'POST', async (t) => ({ path: `/api/assessments/${await t.freshScored()}/send-for-signature` }), s(202, 202, 202, 403, 401, 404)),
+  row('assessments/[id]/revise',      'POST',  async (t) => ({ path: `/api/assessments/${await t.freshSigned()}/revise` }),             s(201, 201, 201, 403, 401, 404)),
+  row('documents/[id]',               'GET',   async (t) => ({ path: `/api/documents/${await t.sentDocument()}` }),                     s(200, 200, 200, 404, 401, 404)),
+  row('documents/[id]/file',          'GET',   async (t) => ({ path: `/api/documents/${await t.sentDocument()}/file` }),                s(200, 200, 200, 404, 401, 404)),
+  row('sign/[token]/report.pdf',      'GET',   () => ({ path: '/api/sign/not-a-real-token/report.pdf' }),                              s(404, 404, 404, 404, 404, 404)),
+  row('sign/[token]/submit',          'POST',  () => ({ path: '/api/sign/not-a-real-token/submit', body: { name: 'Nobody Here', consent: true, intent: true, acknowledgedCautions: [], shownPdfSha256: '0'.repeat(64), signature: { method: 'typed' } } }), s(404, 404, 404, 404, 404, 404)),
   row('invitations/[id]',            'DELETE', async (t) => ({ path: `/api/invitations/${await t.freshInvitation()}` }),              s(204, 403, 403, 403, 401, 404)),
   row('verify/index',                'GET',    () => ({ path: '/api/verify?document=00000000-0000-4000-8000-000000000000' }),         s(200, 200, 200, 200, 200, 200)),
   row('verify/index',                'POST',   () => ({ path: '/api/verify', raw: { contentType: 'application/pdf', text: '%PDF-1.7 not a report' } }), s(200, 200, 200, 200, 200, 200)),
@@ -191,6 +205,7 @@ function declaredRoutes(): string[] {
 
 let clients: Record<Who, TestClient>;
 let targets: Targets;
+let sentDocument: Promise<string> | undefined;
 
 async function send(client: TestClient, method: string, call: Call): Promise<Response> {
   if (call.multipart) return client.fetch(call.path, { method, headers: { accept: 'application/json', ...call.headers }, body: call.multipart });
@@ -220,6 +235,33 @@ beforeAll(async () => {
     freshDraft: () => insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { observations: JSON.stringify({ site: siteContext }) }),
     uniqueEmail: (prefix) => `${prefix}.${Date.now()}.${emails++}@matrix.test`,
     versionId: version.id,
+    async freshScored() {
+      const id = await targets.freshDraft();
+      const res = await send(clients.owner, 'POST', { path: `/api/assessments/${id}/submit` });
+      if (res.status !== 200) throw new Error(`submitting answered ${res.status}: ${await res.text()}`);
+      return id;
+    },
+    freshSigned: () =>
+      insertDraft(org.id, dir.gateId, org.auditor.id, version.id, {
+        status: 'signed',
+        verdict: 'clear',
+        result: JSON.stringify({ verdict: 'clear' }),
+        result_sha256: 'a'.repeat(64),
+        submitted_at: testDb().fn.now(),
+        signed_at: testDb().fn.now(),
+      }),
+    sentDocument() {
+      sentDocument ??= (async () => {
+        const id = await targets.freshScored();
+        const sent = await send(clients.owner, 'POST', { path: `/api/assessments/${id}/send-for-signature` });
+        if (sent.status !== 202) throw new Error(`sending answered ${sent.status}: ${await sent.text()}`);
+        const signing = await (await send(clients.owner, 'GET', { path: `/api/assessments/${id}/signing` })).json();
+        const documentId = signing.documents?.[0]?.id;
+        if (!documentId) throw new Error(`no document after sending: ${JSON.stringify(signing)}`);
+        return documentId as string;
+      })();
+      return sentDocument;
+    },
     async freshInvitation() {
       const res = await send(clients.owner, 'POST', { path: '/api/invitations', body: { email: targets.uniqueEmail('withdrawn'), role: 'office' } });
       if (res.status !== 201) throw new Error(`inviting answered ${res.status}: ${await res.text()}`);
