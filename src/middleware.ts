@@ -71,5 +71,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
     const next = `${context.url.pathname}${context.url.search}`;
     return withSecurityHeaders(context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303), false);
   }
-  return withSecurityHeaders(await next(), signedIn);
+  const response = await next();
+  // An /api path with no route (or no handler for the method) answers like every other API error.
+  if (api && response.status === 404 && !/json/.test(response.headers.get('content-type') ?? '')) {
+    return withSecurityHeaders(problem(404, 'There is no such API route.'), signedIn);
+  }
+  return withSecurityHeaders(response, signedIn);
 });

@@ -68,13 +68,14 @@ export class HttpProblem extends Error {
   }
 }
 
+/** One error per field at fault; an object with several unknown fields gives one error for each. */
 export function zodFieldErrors(error: z.ZodError): FieldError[] {
-  return error.issues.map((issue) => {
+  return error.issues.flatMap((issue) => {
     const field = issue.path.map(String).join('.');
     if (issue.code === 'unrecognized_keys') {
-      return { field: [field, ...issue.keys].filter(Boolean).join('.'), message: `Unknown field: ${issue.keys.join(', ')}` };
+      return issue.keys.map((key) => ({ field: [field, key].filter(Boolean).join('.'), message: 'is not a field of this request' }));
     }
-    return { field, message: issue.message };
+    return [{ field, message: issue.message }];
   });
 }
 
