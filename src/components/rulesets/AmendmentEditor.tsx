@@ -73,9 +73,10 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     else general.push(p);
   }
 
-  const refreshDiff = async () => {
-    if (!content.derivedFrom) return;
-    const answer = await fetchDiff(family, { fromFamily: content.derivedFrom.family, from: content.derivedFrom.version, to: version });
+  const refreshDiff = async (saved: RulesetVersionDetail) => {
+    const from = saved.content.derivedFrom;
+    if (!from) return;
+    const answer = await fetchDiff(saved.family, { fromFamily: from.family, from: from.version, to: saved.version });
     if (answer.ok) setDiff(answer.value);
   };
 
@@ -92,8 +93,8 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     }
     setDetail(answer.value);
     setProblems([]);
+    await refreshDiff(answer.value);
     setMessage({ tone: 'ok', text: done });
-    await refreshDiff();
     return null;
   };
 
@@ -149,7 +150,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
   const local = content.rules.filter((r) => r.local);
 
   return (
-    <div className="grid gap-6 pb-28">
+    <div className="grid min-w-0 gap-6 pb-28 [&>*]:min-w-0">
       <div aria-live="polite">
         {message && (
           <p role={message.tone === 'error' ? 'alert' : 'status'} className={`card ${message.tone === 'error' ? 'border-withdraw text-withdraw' : 'border-clear text-clear'}`}>
@@ -247,7 +248,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
         </section>
       )}
 
-      <div className="fixed inset-x-0 bottom-0 z-10 border-t border-iron-200 bg-white/95 px-4 py-3 shadow-lg">
+      <div className="fixed inset-x-0 bottom-0 z-10 border-t border-iron-200 bg-white/95 px-4 py-2 shadow-lg">
         <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-2">
           {confirming === 'publish' ? (
             <>
@@ -272,22 +273,23 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
               </button>
             </>
           ) : (
-            <>
-              <button type="button" className="btn" onClick={save} disabled={busy || (pendingCount === 0 && pending.problems.length === 0)}>
-                {pendingCount > 0 ? `Save ${pendingCount} change${pendingCount === 1 ? '' : 's'}` : 'No unsaved changes'}
+            <div className="grid w-full grid-cols-3 gap-2 sm:flex sm:w-auto">
+              <button type="button" className="btn px-2" onClick={save} disabled={busy || (pendingCount === 0 && pending.problems.length === 0)}>
+                {pendingCount > 0 ? `Save ${pendingCount}` : 'All saved'}
               </button>
-              {pendingCount > 0 && (
-                <button type="button" className="btn-secondary" onClick={() => (setEdits({}), setProblems([]))} disabled={busy}>
-                  Undo unsaved
+              {pendingCount > 0 ? (
+                <button type="button" className="btn-secondary px-2" onClick={() => (setEdits({}), setProblems([]))} disabled={busy}>
+                  Undo
+                </button>
+              ) : (
+                <button type="button" className="btn-secondary px-2" onClick={() => setConfirming('publish')} disabled={busy}>
+                  Publish…
                 </button>
               )}
-              <button type="button" className="btn-secondary" onClick={() => setConfirming('publish')} disabled={busy || pendingCount > 0}>
-                Publish…
+              <button type="button" className="btn-secondary px-2 text-withdraw" onClick={() => setConfirming('delete')} disabled={busy}>
+                Delete…
               </button>
-              <button type="button" className="btn-secondary text-withdraw" onClick={() => setConfirming('delete')} disabled={busy}>
-                Delete draft…
-              </button>
-            </>
+            </div>
           )}
         </div>
       </div>

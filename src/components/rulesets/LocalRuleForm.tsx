@@ -4,7 +4,7 @@
  * (answered yes, or a measurement at least / at most a limit). Checked with the API's own
  * schema before it is sent; the server's problems come back beside each field.
  */
-import { useId, useState, type ReactNode } from 'react';
+import { useEffect, useId, useRef, useState, type ReactNode } from 'react';
 import { LocalRuleSchema, type AmendmentProblem, type LocalRule } from '@/lib/api/rulesets';
 import { CANONICAL_UNIT_OF, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from '@/lib/rules/measures';
 import type { RulesetVersion } from '@/lib/rules/ruleset-schema';
@@ -52,6 +52,15 @@ export default function LocalRuleForm({ content, busy, onSubmit, onCancel }: Pro
   const [clause, setClause] = useState('');
   const [note, setNote] = useState('');
   const [errors, setErrors] = useState<AmendmentProblem[]>([]);
+  const formRef = useRef<HTMLFormElement>(null);
+  // Take the owner to the first problem: on a phone the button they pressed is far below it.
+  useEffect(() => {
+    if (errors.length === 0) return;
+    const first = formRef.current?.querySelector('[role=alert]');
+    const field = first?.parentElement?.querySelector<HTMLElement>('input, select, textarea');
+    (field ?? (first as HTMLElement | null))?.focus();
+    first?.scrollIntoView({ block: 'center' });
+  }, [errors]);
 
   const question = { section, prompt, whyItMatters };
   const body = {
@@ -81,7 +90,7 @@ export default function LocalRuleForm({ content, busy, onSubmit, onCancel }: Pro
   const unplaced = errors.filter((e) => !FIELDS.some((f) => e.field === f || e.field.startsWith(`${f}.`)));
 
   return (
-    <form onSubmit={submit} noValidate className="card grid gap-4 border-brass-400" aria-labelledby={`${id}-heading`}>
+    <form ref={formRef} onSubmit={submit} noValidate className="card grid gap-4 border-brass-400" aria-labelledby={`${id}-heading`}>
       <h3 id={`${id}-heading`} className="text-lg font-bold">
         Add a local requirement
       </h3>

@@ -22,10 +22,10 @@ function show(value: unknown, unit?: string): string {
 
 function Value({ value, unit }: { value: unknown; unit?: string }) {
   const text = show(value, unit);
-  if (text.length <= 140) return <span className="break-words">{text}</span>;
+  if (text.length <= 140) return <span className="wrap-anywhere">{text}</span>;
   return (
     <details>
-      <summary className="cursor-pointer">{text.slice(0, 100)}…</summary>
+      <summary className="cursor-pointer wrap-anywhere">{text.slice(0, 100)}…</summary>
       <code className="block text-xs break-all whitespace-pre-wrap">{text}</code>
     </details>
   );
@@ -39,7 +39,7 @@ function Changes({ changes, units }: { changes: FieldChange[]; units?: Record<st
         return (
           <li key={c.field} className="rounded-lg bg-iron-50 p-2">
             <code className="text-xs font-semibold text-iron-800">{c.field}</code>
-            <div className="mt-1 grid gap-1 sm:grid-cols-[auto_1fr]">
+            <div className="mt-1 grid min-w-0 gap-1 sm:grid-cols-[auto_1fr]">
               <span className="text-xs font-semibold text-withdraw">was</span>
               <del className="decoration-withdraw">
                 <Value value={c.from} unit={unit} />
@@ -111,7 +111,7 @@ export default function RulesetDiffView({ diff, paramUnits, ruleHref }: Props) {
   const count = (d: ItemsDiff) => d.added.length + d.removed.length + d.changed.length;
   const total = count(diff.rules) + count(diff.questions) + diff.version.length;
   return (
-    <div>
+    <div className="min-w-0">
       <p className="text-sm text-iron-600">
         {total === 0
           ? 'No differences.'
