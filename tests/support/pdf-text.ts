@@ -1,0 +1,14 @@
+/** Text of every page of a PDF, read back with pdfjs-dist (Mozilla's PDF.js, legacy Node build). */
+import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
+
+export async function extractPdfText(bytes: Uint8Array): Promise<string> {
+  const doc = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, disableFontFace: true, useSystemFonts: false, verbosity: 0 }).promise;
+  const pages: string[] = [];
+  for (let i = 1; i <= doc.numPages; i++) {
+    const content = await (await doc.getPage(i)).getTextContent();
+    pages.push(content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? '\n' : '') : '')).join(''));
+  }
+  await doc.destroy();
+  // Collapse the renderer's line breaks so phrases can be searched whole.
+  return pages.join('\n').replace(/\s+/g, ' ');
+}
