@@ -2,6 +2,7 @@
 import knex from 'knex';
 import { knexConfig } from '../../knexfile';
 import { ensureDatabase } from '../../db/launcher';
+import { closeDatabase } from '../lib/server/db';
 import { isMain } from './is-main';
 
 /** Runs the seeds when no organisation exists yet; returns whether it seeded. */
@@ -14,6 +15,7 @@ export async function seedIfEmpty(connectionString: string): Promise<boolean> {
     return true;
   } finally {
     await instance.destroy();
+    await closeDatabase(); // the scenario ran through the app's own modules and their pool
   }
 }
 
