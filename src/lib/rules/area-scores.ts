@@ -10,6 +10,7 @@
 import type { RulesetVersion } from './ruleset-schema';
 import type { Finding } from './result-types';
 
+/** Scores per area of the version, in the version's area order. */
 export function areaScores(findings: readonly Finding[], version: RulesetVersion): Record<string, number | null> {
   const weights = version.scoring.severityWeights;
   const totals = new Map<string, { passed: number; applicable: number }>();

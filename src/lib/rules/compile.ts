@@ -10,7 +10,7 @@ import { FACT_CATALOGUE } from './fact-catalogue';
 import { contentSha256 } from './hash';
 import { factKeyOfQuestion } from './ruleset-references';
 import type { RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
-import type { GateKind, HazardArea, UsageClass } from './vocabulary';
+import { SEVERITIES, type GateKind, type HazardArea, type UsageClass } from './vocabulary';
 
 /** A fact path ready to read: `calc.force.worst.peakN` → ['calc','force','worst','peakN']. */
 export interface FactPath {
@@ -32,13 +32,19 @@ export interface CompiledRule {
   readonly observed: readonly FactPath[];
   /** Param values as conditions see them (`params.<name>`), for the reference evaluator and reports. */
   readonly paramValues: Readonly<Record<string, unknown>>;
+  /** Params as a finding reports them (value and unit), built once and frozen. */
+  readonly findingParams: Readonly<Record<string, { value: unknown; unit?: string }>>;
 }
 
 export interface CompiledRuleset {
   readonly version: RulesetVersion;
   readonly contentSha256: string;
-  /** Enabled rules only, in file order. */
+  /** Enabled rules only, in the order findings are reported: severity, then area order, then id. */
   readonly rules: readonly CompiledRule[];
+  readonly questionByKey: ReadonlyMap<string, RulesetQuestion>;
+  readonly ruleIds: ReadonlySet<string>;
+  /** HRN level keys of the version's table, to check an auditor's overrides. */
+  readonly hrnKeys: Readonly<Record<'lo' | 'fe' | 'dph' | 'np', ReadonlySet<string>>>;
   readonly areaRank: ReadonlyMap<HazardArea, number>;
   readonly questionByFact: ReadonlyMap<string, RulesetQuestion>;
   readonly sectionRank: ReadonlyMap<string, number>;
@@ -68,6 +74,10 @@ function compileRule(rule: RulesetRule): CompiledRule {
   const paramValues: Record<string, unknown> = {};
   for (const [name, param] of Object.entries(rule.params)) paramValues[name] = param.value;
   const constants = { prefix: 'params', values: paramValues };
+  const findingParams: Record<string, { value: unknown; unit?: string }> = {};
+  for (const [name, param] of Object.entries(rule.params)) {
+    findingParams[name] = Object.freeze('unit' in param ? { value: param.value, unit: param.unit } : { value: param.value });
+  }
   const optional = new Set(rule.optional ?? []);
   const appliesVars = rule.appliesWhen === undefined ? [] : factVars(rule.appliesWhen);
   const observed = new Set([...rule.requires, ...optional, ...factVars(rule.condition), ...appliesVars]);
@@ -81,7 +91,20 @@ function compileRule(rule: RulesetRule): CompiledRule {
     appliesWhenRequires: appliesVars.filter((v) => !optional.has(v) && !FACT_CATALOGUE[v]?.always).map(toPath),
     observed: [...observed].sort().map(toPath),
     paramValues,
+    findingParams: Object.freeze(findingParams),
   };
+}
+
+const SEVERITY_RANK = new Map<string, number>(SEVERITIES.map((s, i) => [s, i]));
+
+/** Findings order: severity, then the version's area order, then rule id (code-unit order, no locale). */
+function reportOrder(rules: RulesetRule[], areaRank: ReadonlyMap<string, number>): RulesetRule[] {
+  return [...rules].sort(
+    (a, b) =>
+      (SEVERITY_RANK.get(a.severity) ?? 0) - (SEVERITY_RANK.get(b.severity) ?? 0) ||
+      (areaRank.get(a.area) ?? 0) - (areaRank.get(b.area) ?? 0) ||
+      (a.id < b.id ? -1 : a.id > b.id ? 1 : 0),
+  );
 }
 
 /**
@@ -94,12 +117,17 @@ export function compileRuleset(version: RulesetVersion, knownSha256?: string): C
   const sha = knownSha256 ?? contentSha256(version);
   let compiled = byHash.get(sha);
   if (!compiled) {
+    const areaRank = new Map(version.areas.map((area, i) => [area.key, i]));
+    const keysOf = (levels: ReadonlyArray<{ key: string }>) => new Set(levels.map((level) => level.key));
     compiled = {
       version,
       contentSha256: sha,
-      rules: version.rules.filter((rule) => rule.enabled).map(compileRule),
-      areaRank: new Map(version.areas.map((area, i) => [area.key, i])),
+      rules: reportOrder(version.rules.filter((rule) => rule.enabled), areaRank).map(compileRule),
+      areaRank,
       questionByFact: new Map(version.questions.map((q) => [factKeyOfQuestion(q), q])),
+      questionByKey: new Map(version.questions.map((q) => [q.key, q])),
+      ruleIds: new Set(version.rules.map((r) => r.id)),
+      hrnKeys: { lo: keysOf(version.hrn.lo), fe: keysOf(version.hrn.fe), dph: keysOf(version.hrn.dph), np: keysOf(version.hrn.np) },
       sectionRank: new Map(version.sections.map((section, i) => [section.key, i])),
     };
     byHash.set(sha, compiled);

@@ -3,13 +3,14 @@
  * compiled condition, rates failing findings (HRN), scores each hazard area and gives the verdict.
  *
  * Deterministic by construction: no clock, no randomness, findings in a fixed order (severity,
- * then the version's area order, then rule id), and every collection built in a stable order, so
+ * then the version's area order, then rule id; fixed when the version is compiled), and every
+ * collection built in a stable order, so
  * the same input and version give byte-identical canonical JSON and the same SHA-256.
  */
 import { areaScores } from './area-scores';
 import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset } from './compile';
 import { buildFacts, type Facts } from './facts';
-import { rateFinding } from './finding-hrn';
+import { rateFinding, type DerivedKeysCache } from './finding-hrn';
 import { contentSha256 } from './hash';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
@@ -18,15 +19,13 @@ import { explainMissing, isMissing } from './missing-info';
 import type { Finding, MissingItem, NeedsInfoItem, ScoreResult } from './result-types';
 import type { RulesetVersion } from './ruleset-schema';
 import { verdictOf } from './verdict';
-import { SEVERITIES, type Outcome, type Severity } from './vocabulary';
+import type { Outcome } from './vocabulary';
 
 /** A validated version with its content hash, as loadRulesetFile returns it. */
 export interface LoadedRuleset {
   version: RulesetVersion;
   contentSha256: string;
 }
-
-const SEVERITY_RANK: ReadonlyMap<Severity, number> = new Map(SEVERITIES.map((s, i) => [s, i]));
 
 function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
   return 'contentSha256' in ruleset && 'version' in ruleset && typeof ruleset.version === 'object'
@@ -50,8 +49,10 @@ export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | Rul
   const issues = checkInputAgainstRuleset(input, compiled);
   if (issues.length > 0) throw new AssessmentInputError(issues);
   const { facts, problems } = buildFacts(input);
-  const findings = compiled.rules.map((rule) => evaluateRule(rule, facts, input, compiled));
-  findings.sort((a, b) => compareFindings(a, b, compiled));
+  // compiled.rules is already in report order (severity, area, id).
+  const findings: Finding[] = [];
+  const derivedKeys: DerivedKeysCache = new Map();
+  for (const rule of compiled.rules) findings.push(evaluateRule(rule, facts, input, compiled, derivedKeys));
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (const f of findings) {
     if (f.outcome === 'pass') counts.pass += 1;
@@ -75,38 +76,42 @@ export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | Rul
   };
 }
 
-function compareFindings(a: Finding, b: Finding, compiled: CompiledRuleset): number {
-  const bySeverity = (SEVERITY_RANK.get(a.severity) ?? 0) - (SEVERITY_RANK.get(b.severity) ?? 0);
-  if (bySeverity !== 0) return bySeverity;
-  const byArea = (compiled.areaRank.get(a.area) ?? 0) - (compiled.areaRank.get(b.area) ?? 0);
-  if (byArea !== 0) return byArea;
-  return a.ruleId < b.ruleId ? -1 : a.ruleId > b.ruleId ? 1 : 0;
+/** Shared empties for findings that looked at nothing or miss nothing (results are read-only data). */
+const NOTHING_OBSERVED: Record<string, unknown> = Object.freeze({}) as Record<string, unknown>;
+const NOTHING_MISSING: MissingItem[] = Object.freeze([]) as unknown as MissingItem[];
+
+function makeFinding(
+  compiledRule: CompiledRule,
+  outcome: Outcome,
+  missing: MissingItem[],
+  observed: Record<string, unknown>,
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+  derivedKeys?: DerivedKeysCache,
+): Finding {
+  const { rule } = compiledRule;
+  const result: Finding = {
+    ruleId: rule.id,
+    title: rule.title,
+    area: rule.area,
+    severity: rule.severity,
+    outcome,
+    missing,
+    observed,
+    params: compiledRule.findingParams as Finding['params'],
+    remediation: rule.remediation,
+    caution: rule.caution,
+    reference: rule.reference,
+  };
+  if (rule.local) result.local = true;
+  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, derivedKeys);
+  return result;
 }
 
-function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
-  const { rule } = compiledRule;
-  const finding = (outcome: Outcome, missing: MissingItem[] = [], observed: Record<string, unknown> = {}): Finding => {
-    const params: Finding['params'] = {};
-    for (const [name, param] of Object.entries(rule.params)) params[name] = 'unit' in param ? { value: param.value, unit: param.unit } : { value: param.value };
-    const result: Finding = {
-      ruleId: rule.id,
-      title: rule.title,
-      area: rule.area,
-      severity: rule.severity,
-      outcome,
-      missing,
-      observed,
-      params,
-      remediation: rule.remediation,
-      caution: rule.caution,
-      reference: rule.reference,
-    };
-    if (rule.local) result.local = true;
-    if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn);
-    return result;
-  };
-
-  if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) return finding('n/a');
+function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset, derivedKeys: DerivedKeysCache): Finding {
+  if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
+    return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled);
+  }
   const observed: Record<string, unknown> = {};
   for (const path of compiledRule.observed) {
     const value = readFact(facts, path);
@@ -114,18 +119,20 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
   }
   if (compiledRule.appliesWhen) {
     const unknown = compiledRule.appliesWhenRequires.filter((path) => isMissing(readFact(facts, path)));
-    if (unknown.length > 0) return finding('needs_info', unknown.flatMap((path) => explainMissing(path, facts, compiled)), observed);
-    if (!truthy(compiledRule.appliesWhen(facts))) return finding('n/a', [], observed);
+    if (unknown.length > 0) {
+      return makeFinding(compiledRule, 'needs_info', dedupe(unknown.flatMap((path) => explainMissing(path, facts, compiled))), observed, input, compiled);
+    }
+    if (!truthy(compiledRule.appliesWhen(facts))) return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
   }
-  const missing: MissingItem[] = [];
+  let missing: MissingItem[] | null = null;
   for (const path of compiledRule.requires) {
     const value = readFact(facts, path);
     // The auditor judged the question not to apply at this gate: so does the rule.
-    if (value === 'na' && path.segments[0] === 'answers') return finding('n/a', [], observed);
-    if (isMissing(value)) missing.push(...explainMissing(path, facts, compiled));
+    if (value === 'na' && path.segments[0] === 'answers') return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
+    if (isMissing(value)) (missing ??= []).push(...explainMissing(path, facts, compiled));
   }
-  if (missing.length > 0) return finding('needs_info', dedupe(missing), observed);
-  return finding(truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', [], observed);
+  if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
+  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled, derivedKeys);
 }
 
 function dedupe(items: MissingItem[]): MissingItem[] {
@@ -134,6 +141,7 @@ function dedupe(items: MissingItem[]): MissingItem[] {
 }
 
 function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRuleset): NeedsInfoItem[] {
+  if (!findings.some((f) => f.missing.length > 0)) return [];
   const byKey = new Map<string, NeedsInfoItem>();
   for (const f of findings) {
     for (const item of f.missing) {

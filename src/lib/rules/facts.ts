@@ -9,7 +9,7 @@
 import { assessEntrapmentProtection, type FittedDevice } from './calculators/entrapment-protection';
 import { EN12453_GAP_ZONE_MM, evaluateForceTrace } from './calculators/force-trace';
 import { ForceTraceError } from './calculators/force-trace-error';
-import { assessPowerInstallation, voltageDrop, type Awg, type ChargerSource } from './calculators/power-wiring';
+import { voltageDrop, type Awg, type ChargerSource } from './calculators/power-wiring';
 import { assessSignage } from './calculators/controls-signage';
 import { assessSwingOperatorGeometry } from './calculators/swing-geometry';
 import { POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS } from './fact-catalogue';
@@ -143,7 +143,13 @@ interface ForceFigures {
   smallGap: boolean;
 }
 
-function forceFigures(kind: GateKind, test: ForceTest): ForceFigures {
+/** A refusal found without running the trace calculator (no Error built: these are common and cheap to say). */
+interface Refused {
+  code: string;
+  message: string;
+}
+
+function forceFigures(kind: GateKind, test: ForceTest): ForceFigures | Refused {
   if (test.samples) {
     const r = evaluateForceTrace(test.samples, { gateKind: kind, gapMm: test.gapMm });
     return {
@@ -155,7 +161,7 @@ function forceFigures(kind: GateKind, test: ForceTest): ForceFigures {
     };
   }
   if (test.gapMm < EN12453_GAP_ZONE_MM.min) {
-    throw new ForceTraceError('gap_not_covered', `A ${test.gapMm} mm gap is below the ${EN12453_GAP_ZONE_MM.min} mm measuring point`);
+    return { code: 'gap_not_covered', message: `A ${test.gapMm} mm gap is below the ${EN12453_GAP_ZONE_MM.min} mm measuring point` };
   }
   const s = test.summary as NonNullable<ForceTest['summary']>;
   return {
@@ -172,7 +178,11 @@ function forceFacts(kind: GateKind, tests: readonly ForceTest[], problems: Evide
   let rejected = 0;
   tests.forEach((test, i) => {
     try {
-      accepted.push(forceFigures(kind, test));
+      const figures = forceFigures(kind, test);
+      if ('code' in figures) {
+        rejected += 1;
+        problems.push({ path: `forceTests[${i}]`, code: figures.code, message: figures.message });
+      } else accepted.push(figures);
     } catch (error) {
       rejected += 1;
       problems.push(refusal(`forceTests[${i}]`, error));
@@ -225,7 +235,8 @@ function powerFacts(answers: Record<string, string>, m: Record<string, number>, 
   const facts: Record<string, unknown> = {};
   const k = POWER_INPUT_KEYS;
   const chargers = CHARGERS_BY_CHOICE[answers[k.chargingSource] ?? ''];
-  if (chargers) facts.chargingSourceCount = assessPowerInstallation({ chargerSources: chargers }).chargingSources.count;
+  // Distinct kinds of source, as the power calculator counts them (several panels on one solar charger count once).
+  if (chargers) facts.chargingSourceCount = new Set(chargers).size;
   const awg = AWG_BY_CHOICE[answers[k.wireGauge] ?? ''];
   const conductor = answers[k.conductor];
   const [run, current, supply] = [m[k.runLength], m[k.current], m[k.supply]];

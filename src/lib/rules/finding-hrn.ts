@@ -11,6 +11,8 @@ import type { FindingHrn } from './result-types';
 interface PricedTable {
   table: CalculatorHrnTable;
   bands: typeof HRN_BANDS;
+  /** Ratings already worked out, by factor keys: a version has few distinct combinations. */
+  rated: Map<string, ReturnType<typeof calculateHrn>>;
 }
 
 const priced = new WeakMap<HrnTable, PricedTable>();
@@ -22,33 +24,52 @@ function priceTable(hrn: HrnTable): PricedTable {
     found = {
       table: { lo: record(hrn.lo), fe: record(hrn.fe), dph: record(hrn.dph), np: hrn.np.map((row) => ({ key: row.key, upTo: row.upTo, factor: row.value })) },
       bands: hrn.bands.map((band) => ({ band: band.key, upTo: band.upTo })) as unknown as typeof HRN_BANDS,
+      rated: new Map(),
     };
     priced.set(hrn, found);
   }
   return found;
 }
 
+/** Derived keys per harm for one assessment: the site and class do not change between findings. */
+export type DerivedKeysCache = Map<string, DerivedHrnFactors>;
+
 /** Rates one failing rule at this gate. */
-export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable): FindingHrn {
+export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, cache: DerivedKeysCache = new Map()): FindingHrn {
   const override = input.hrnOverrides?.[ruleId];
   const overrideKeys: Partial<DerivedHrnFactors> = {};
   if (override?.lo) overrideKeys.lo = override.lo as DerivedHrnFactors['lo'];
   if (override?.fe) overrideKeys.fe = override.fe as DerivedHrnFactors['fe'];
   if (override?.dph) overrideKeys.dph = override.dph as DerivedHrnFactors['dph'];
   if (override?.np) overrideKeys.np = override.np as DerivedHrnFactors['np'];
-  const keys = deriveHrnFactors(
-    {
+  let derived = cache.get(harm);
+  if (!derived) {
+    derived = deriveHrnFactors({
       usageClass: input.profile.usageClass,
       childrenOrPetsPresent: input.site.childrenOrPetsPresent,
       pedestriansUseDriveway: input.site.pedestriansUseDriveway,
       publicAccess: input.site.publicAccess,
       severity: harm as DphKey,
-    },
-    overrideKeys,
-  );
-  const { table, bands } = priceTable(hrn);
-  const rated = calculateHrn(keys, table, bands);
-  const result: FindingHrn = { ...rated.factors, value: rated.hrn, band: rated.band, keys: { ...rated.keys } };
+    });
+    cache.set(harm, derived);
+  }
+  const keys: DerivedHrnFactors = override ? { ...derived, ...overrideKeys } : derived;
+  const priced = priceTable(hrn);
+  const cacheKey = `${keys.lo}|${keys.fe}|${keys.dph}|${keys.np}`;
+  let rated = priced.rated.get(cacheKey);
+  if (!rated) {
+    rated = calculateHrn(keys, priced.table, priced.bands);
+    priced.rated.set(cacheKey, rated);
+  }
+  const result: FindingHrn = {
+    lo: rated.factors.lo,
+    fe: rated.factors.fe,
+    dph: rated.factors.dph,
+    np: rated.factors.np,
+    value: rated.hrn,
+    band: rated.band,
+    keys: { lo: rated.keys.lo, fe: rated.keys.fe, dph: rated.keys.dph, np: rated.keys.np },
+  };
   if (override) result.overrideReason = override.reason;
   return result;
 }

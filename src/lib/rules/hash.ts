@@ -10,10 +10,15 @@ import { createHash } from 'node:crypto';
  * a bug upstream and must not be signed into a report.
  */
 export function canonicalJson(value: unknown): string {
-  return write(value, '$');
+  try {
+    return write(value);
+  } catch (error) {
+    if (error instanceof TypeError) throw new TypeError(`canonicalJson: ${error.message} at ${pathOfProblem(value, '$') ?? '$'}`);
+    throw error;
+  }
 }
 
-function write(value: unknown, path: string): string {
+function write(value: unknown): string {
   if (value === null) return 'null';
   switch (typeof value) {
     case 'string':
@@ -21,33 +26,65 @@ function write(value: unknown, path: string): string {
     case 'boolean':
       return value ? 'true' : 'false';
     case 'number':
-      if (!Number.isFinite(value)) throw new TypeError(`canonicalJson: non-finite number at ${path}`);
-      return Object.is(value, -0) ? '0' : JSON.stringify(value);
+      if (!Number.isFinite(value)) throw new TypeError('non-finite number');
+      return value === 0 ? '0' : String(value);
     case 'object':
-      return Array.isArray(value) ? writeArray(value, path) : writeObject(value as Record<string, unknown>, path);
+      return Array.isArray(value) ? writeArray(value) : writeObject(value as Record<string, unknown>);
     default:
-      throw new TypeError(`canonicalJson: cannot write a ${typeof value} at ${path}`);
+      throw new TypeError(`cannot write a ${typeof value}`);
   }
 }
 
-function writeArray(items: readonly unknown[], path: string): string {
-  const parts: string[] = [];
+function writeArray(items: readonly unknown[]): string {
+  let out = '[';
   for (let i = 0; i < items.length; i++) {
     const item = items[i];
-    parts.push(item === undefined || typeof item === 'function' ? 'null' : write(item, `${path}[${i}]`));
+    if (i > 0) out += ',';
+    out += item === undefined || typeof item === 'function' ? 'null' : write(item);
   }
-  return `[${parts.join(',')}]`;
+  return out + ']';
 }
 
-function writeObject(record: Record<string, unknown>, path: string): string {
-  const keys = Object.keys(record).sort();
-  const parts: string[] = [];
+/** Quoted keys, remembered: the same few dozen keys recur in every input and result. */
+const quotedKeys = new Map<string, string>();
+const QUOTED_KEYS_LIMIT = 4096;
+
+function quoted(key: string): string {
+  let q = quotedKeys.get(key);
+  if (q === undefined) {
+    q = JSON.stringify(key);
+    if (quotedKeys.size < QUOTED_KEYS_LIMIT) quotedKeys.set(key, q);
+  }
+  return q;
+}
+
+function writeObject(record: Record<string, unknown>): string {
+  const keys = Object.keys(record);
+  if (keys.length > 1) keys.sort();
+  let out = '{';
+  let first = true;
   for (const key of keys) {
     const member = record[key];
     if (member === undefined) continue;
-    parts.push(`${JSON.stringify(key)}:${write(member, `${path}.${key}`)}`);
+    if (!first) out += ',';
+    out += quoted(key) + ':' + write(member);
+    first = false;
   }
-  return `{${parts.join(',')}}`;
+  return out + '}';
+}
+
+/** Finds where a value cannot be written, only once writing has failed (keeps the fast path free of path strings). */
+function pathOfProblem(value: unknown, path: string): string | null {
+  if (typeof value === 'number') return Number.isFinite(value) ? null : path;
+  if (typeof value === 'bigint' || typeof value === 'symbol' || typeof value === 'function') return path;
+  if (value && typeof value === 'object') {
+    for (const [key, member] of Object.entries(value)) {
+      if (member === undefined) continue;
+      const found = pathOfProblem(member, Array.isArray(value) ? `${path}[${key}]` : `${path}.${key}`);
+      if (found) return found;
+    }
+  }
+  return null;
 }
 
 /** Hex SHA-256 of a string's UTF-8 bytes. */

@@ -37,7 +37,7 @@ const measured = new Set<string>(MEASURED_ANSWER_TYPES);
 /** Problems of an already-parsed input against one version; empty when it fits. */
 export function checkInputAgainstRuleset(input: AssessmentInput, compiled: CompiledRuleset): InputIssue[] {
   const issues: InputIssue[] = [];
-  const questions = new Map(compiled.version.questions.map((q) => [q.key, q]));
+  const questions = compiled.questionByKey;
   for (const [key, m] of Object.entries(input.measurements ?? {})) {
     const q = questions.get(key);
     if (!q) continue;
@@ -61,14 +61,7 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
       issues.push({ path: `choices.${key}`, message: `"${key}" is answered as ${q.answerType}, not as a choice` });
     }
   }
-  const ruleIds = new Set(compiled.version.rules.map((r) => r.id));
-  const { hrn } = compiled.version;
-  const factorKeys = {
-    lo: new Set(hrn.lo.map((l) => l.key)),
-    fe: new Set(hrn.fe.map((l) => l.key)),
-    dph: new Set(hrn.dph.map((l) => l.key)),
-    np: new Set(hrn.np.map((l) => l.key)),
-  };
+  const { ruleIds, hrnKeys: factorKeys } = compiled;
   for (const [ruleId, override] of Object.entries(input.hrnOverrides ?? {})) {
     if (!ruleIds.has(ruleId)) issues.push({ path: `hrnOverrides.${ruleId}`, message: `"${ruleId}" is not a rule of this version` });
     for (const factor of ['lo', 'fe', 'dph', 'np'] as const) {

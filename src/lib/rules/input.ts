@@ -7,7 +7,7 @@
  */
 import { z } from 'zod';
 import { ENTRAPMENT_DEVICE_TYPES } from './calculators/ul325-entrapment-types';
-import { CANONICAL_TOLERANCE, canonicalValue, kindOfUnit } from './measures';
+import { CANONICAL_TOLERANCE, exactCanonicalValue, kindOfUnit } from './measures';
 import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS, YES_NO_NA } from './vocabulary';
 
 const note = z.string().trim().max(2000, 'a note may be at most 2000 characters');
@@ -28,9 +28,9 @@ export const MeasuredValueSchema = z
       ctx.addIssue({ code: 'custom', path: ['unit'], message: `unknown unit "${m.unit}"` });
       return;
     }
-    const expected = canonicalValue(kind, m.value, m.unit);
+    const expected = exactCanonicalValue(kind, m.value, m.unit);
     if (Math.abs(expected - m.canonical) > CANONICAL_TOLERANCE * Math.max(1, Math.abs(expected))) {
-      ctx.addIssue({ code: 'custom', path: ['canonical'], message: `${m.value} ${m.unit} is ${expected} in canonical units, not ${m.canonical}` });
+      ctx.addIssue({ code: 'custom', path: ['canonical'], message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}` });
     }
   });
 export type MeasuredValue = z.infer<typeof MeasuredValueSchema>;

@@ -116,7 +116,15 @@ function compileVar(values: unknown[], constants: Constants): CompiledLogic {
         return inner === undefined ? notFound : inner;
       };
     }
-    return (data) => readVar(data, path, fallbackNode);
+    return (data) => {
+      let current: unknown = data;
+      for (const segment of segments) {
+        if (current === null || current === undefined) return notFound;
+        current = (current as Record<string, unknown>)[segment];
+        if (current === undefined) return notFound;
+      }
+      return current;
+    };
   }
   const args = values.map((v) => compileNode(v, constants));
   return (data) => {

@@ -14,8 +14,13 @@ const DEVICE_TYPES = ['A', 'A', 'B1', 'B1', 'B2', 'B2', 'C', 'D', 'E'] as const;
 const LENGTH_UNITS: LengthUnit[] = ['mm', 'mm', 'in', 'ft', 'cm'];
 
 /** Numeric params of the rules that read each measured fact: the values worth landing near. */
+const thresholdCache = new WeakMap<RulesetVersion, Map<string, number[]>>();
+
 function thresholdsByFact(version: RulesetVersion): Map<string, number[]> {
+  const cached = thresholdCache.get(version);
+  if (cached) return cached;
   const map = new Map<string, number[]>();
+  thresholdCache.set(version, map);
   for (const rule of version.rules) {
     const numbers = Object.values(rule.params).flatMap((p) => (typeof p.value === 'number' ? [p.value] : []));
     for (const fact of rule.requires) map.set(fact, [...(map.get(fact) ?? []), ...numbers]);

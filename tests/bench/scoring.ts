@@ -1,0 +1,127 @@
+/**
+ * Scoring benchmark (`npx tsx tests/bench/scoring.ts`, or through `npm run bench`): scores 10,000
+ * generated assessments (seeded, so every run sees the same gates) against the shipped rulesets
+ * and prints the median and p99 microseconds per assessment; then evaluates the same rule
+ * conditions over the same facts with json-rules-engine as a reference point.
+ *
+ * The ratio is conservative: the reference only evaluates conditions, while our figure is a
+ * whole assessment (input parsing, calculators, conditions, HRN, area scores, input hash).
+ * The conditions-only ratio compares like with like.
+ */
+import { readFileSync } from 'node:fs';
+import { loadavg } from 'node:os';
+import { pathToFileURL } from 'node:url';
+import { buildFacts, compileRuleset, loadRulesetFile, score, type AssessmentInput, type LoadedRuleset } from '@/lib/rules';
+import { generateInput } from '../unit/rules/support/generate-input';
+import { createPrng } from '../unit/rules/support/prng';
+import { shippedRulesetFiles } from '../unit/rules/support/shipped';
+import { flattenFacts, referenceEngineFor } from './json-logic-to-rules-engine';
+
+export interface ScoringBenchFigures {
+  medianUs: number;
+  p99Us: number;
+  referenceMedianUs: number;
+  /** json-rules-engine median ÷ our whole-assessment median (above 1: we are faster). */
+  ratio: number;
+  conditionsMedianUs: number;
+  /** json-rules-engine median ÷ our conditions-only median. */
+  conditionsRatio: number;
+  assessments: number;
+  untranslatedRules: number;
+}
+
+const ASSESSMENTS = 10_000;
+const WARM_UP = 1_000;
+const SEED = 20_260_101;
+
+const percentile = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] as number;
+const micros = (start: bigint) => Number(process.hrtime.bigint() - start) / 1000;
+const round2 = (n: number) => Math.round(n * 100) / 100;
+
+interface Case {
+  ruleset: LoadedRuleset;
+  input: AssessmentInput;
+}
+
+function generateCases(rulesets: LoadedRuleset[]): Case[] {
+  const rng = createPrng(SEED);
+  return Array.from({ length: ASSESSMENTS }, () => {
+    const ruleset = rng.pick(rulesets);
+    return { ruleset, input: generateInput(rng, ruleset.version) };
+  });
+}
+
+/** A fixed piece of work, so figures from a busy machine can be read against an idle one. */
+function calibrationUs(): number {
+  const sample = Object.fromEntries(Array.from({ length: 50 }, (_, i) => [`key${i}`, { value: i * 1.5, unit: 'mm' }]));
+  const runs = 20_000;
+  const start = process.hrtime.bigint();
+  for (let i = 0; i < runs; i++) JSON.stringify(sample);
+  return round2(micros(start) / runs);
+}
+
+/** Runs the benchmark and returns its figures (also printed). */
+export async function runScoringBench(): Promise<ScoringBenchFigures> {
+  const rulesets = shippedRulesetFiles().map((file) => loadRulesetFile(readFileSync(file, 'utf8'), file));
+  const cases = generateCases(rulesets);
+
+  for (const c of cases.slice(0, WARM_UP)) score(c.input, c.ruleset);
+  const ours: number[] = [];
+  for (const c of cases) {
+    const start = process.hrtime.bigint();
+    score(c.input, c.ruleset);
+    ours.push(micros(start));
+  }
+
+  const facts = cases.map((c) => buildFacts(c.input).facts);
+  const conditionsOnly: number[] = [];
+  let sink = 0;
+  for (let pass = 0; pass < 2; pass++) {
+    cases.forEach((c, i) => {
+      const compiled = compileRuleset(c.ruleset.version, c.ruleset.contentSha256);
+      const start = process.hrtime.bigint();
+      for (const rule of compiled.rules) if (rule.condition(facts[i])) sink += 1;
+      if (pass === 1) conditionsOnly.push(micros(start));
+    });
+  }
+
+  const engines = new Map(rulesets.map((r) => [r, referenceEngineFor(r.version)]));
+  const flat = facts.map((f) => flattenFacts(f));
+  const reference: number[] = [];
+  for (let i = 0; i < WARM_UP; i++) await engines.get(cases[i]!.ruleset)!.engine.run(flat[i]);
+  for (let i = 0; i < cases.length; i++) {
+    const { engine } = engines.get(cases[i]!.ruleset)!;
+    const start = process.hrtime.bigint();
+    await engine.run(flat[i]);
+    reference.push(micros(start));
+  }
+
+  for (const list of [ours, conditionsOnly, reference]) list.sort((a, b) => a - b);
+  const medianUs = percentile(ours, 0.5);
+  const referenceMedianUs = percentile(reference, 0.5);
+  const conditionsMedianUs = percentile(conditionsOnly, 0.5);
+  const untranslated = [...engines.values()].flatMap((e) => e.untranslated);
+  const figures: ScoringBenchFigures = {
+    medianUs: round2(medianUs),
+    p99Us: round2(percentile(ours, 0.99)),
+    referenceMedianUs: round2(referenceMedianUs),
+    ratio: round2(referenceMedianUs / medianUs),
+    conditionsMedianUs: round2(conditionsMedianUs),
+    conditionsRatio: round2(referenceMedianUs / conditionsMedianUs),
+    assessments: cases.length,
+    untranslatedRules: untranslated.length,
+  };
+
+  console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; calibration ${calibrationUs()} µs per JSON.stringify of a 50-key object`);
+  console.log(`Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`);
+  console.log(`  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`);
+  console.log(`  conditions only:  median ${figures.conditionsMedianUs} µs (checksum ${sink})`);
+  console.log(`  json-rules-engine, same conditions and facts: median ${figures.referenceMedianUs} µs`);
+  console.log(`  ratio json-rules-engine ÷ ours: ${figures.ratio}× whole assessment, ${figures.conditionsRatio}× conditions only`);
+  console.log(`  not translatable to json-rules-engine (need if/min arithmetic): ${[...new Set(untranslated)].join(', ') || 'none'}`);
+  return figures;
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {
+  await runScoringBench();
+}
