@@ -392,10 +392,14 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
   const png = body.signature.method === 'drawn' ? decodeSignaturePng(body.signature.png) : null;
   const knex = db();
   const outcome = await knex.transaction(async (trx) => {
+    // Lock order: the assessment, then the link, the same order as sending a new link takes,
+    // so a resend racing a signature waits instead of deadlocking.
+    const unlocked = await findRequest(trx, token, false);
+    if (!unlocked) throw linkProblem('unknown');
+    const assessment = await trx('assessments').where({ id: unlocked.assessment_id }).forUpdate().first('id', 'status', 'result', 'organisation_id');
     const request = await findRequest(trx, token, true);
     const state = stateOf(request);
     if (state !== 'ok' || !request) throw linkProblem(state === 'ok' ? 'unknown' : state);
-    const assessment = await trx('assessments').where({ id: request.assessment_id }).forUpdate().first('id', 'status', 'result', 'organisation_id');
     if (!assessment || assessment.status !== 'awaiting_signature') throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
     const shown = await trx('documents').where({ id: request.document_id }).first('sha256');
     if (!shown || shown.sha256 !== body.shownPdfSha256) {
