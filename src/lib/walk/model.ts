@@ -119,3 +119,20 @@ export function toolOfFact(fact: string): 'site' | 'entrapment' | 'force' | 'geo
 export function defaultUnitSystem(value: string | null | undefined): UnitSystem {
   return value === 'metric' ? 'metric' : 'imperial';
 }
+
+/** One thing the result is waiting on, as the auditor reads it: items with the same words are one entry. */
+export interface NeededItem {
+  key: string;
+  prompt: string;
+  ruleIds: string[];
+}
+
+export function mergeNeeds(items: readonly { key: string; prompt: string; ruleIds: readonly string[] }[]): NeededItem[] {
+  const byPrompt = new Map<string, NeededItem>();
+  for (const item of items) {
+    const seen = byPrompt.get(item.prompt);
+    if (seen) seen.ruleIds = [...new Set([...seen.ruleIds, ...item.ruleIds])];
+    else byPrompt.set(item.prompt, { key: item.key, prompt: item.prompt, ruleIds: [...item.ruleIds] });
+  }
+  return [...byPrompt.values()];
+}

@@ -120,7 +120,8 @@ export class WalkSync {
   ) {
     this.state = {
       phase: 'loading',
-      online: typeof navigator === 'undefined' ? true : navigator.onLine,
+      // Read from navigator in start(): the server render and the first client render must agree.
+      online: true,
       rowVersion: initial.rowVersion,
       status: initial.status,
       server: initial.documents,
@@ -174,7 +175,7 @@ export class WalkSync {
       window.addEventListener('online', this.handleOnline);
       window.addEventListener('offline', this.handleOffline);
     }
-    this.set({ phase: this.state.pending.length ? 'waiting' : 'saved' });
+    this.set({ phase: this.state.pending.length ? 'waiting' : 'saved', online: typeof navigator === 'undefined' || navigator.onLine });
     void this.flush();
   }
 
@@ -370,6 +371,11 @@ export class WalkSync {
     }
     await this.drop([head]);
     return true;
+  }
+
+  /** The assessment was submitted from this device: nothing more is sent. */
+  acceptSubmitted(assessment: Assessment): Promise<void> {
+    return this.serial(() => this.adopt(assessment)).then(() => this.set({ phase: 'closed' }));
   }
 
   private async close(current: Assessment): Promise<boolean> {

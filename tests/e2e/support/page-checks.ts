@@ -32,10 +32,12 @@ async function savePng(buffer: Buffer, file: string): Promise<void> {
  * Saves `<name>-360.png` and `<name>-1280.png` (the viewport, or the whole page with
  * `fullPage`), then puts the phone viewport back.
  */
-export async function screenshotBothWidths(page: Page, name: string, options: { fullPage?: boolean } = {}): Promise<void> {
+export async function screenshotBothWidths(page: Page, name: string, options: { fullPage?: boolean; focus?: string } = {}): Promise<void> {
   fs.mkdirSync(screenshotsDir, { recursive: true });
   for (const viewport of [phoneViewport, desktopViewport]) {
     await page.setViewportSize(viewport);
+    // A new width reflows the page: bring the part being shown back to the top.
+    if (options.focus) await page.locator(options.focus).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
     await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
     const buffer = await page.screenshot({ fullPage: options.fullPage ?? false, animations: 'disabled', caret: 'hide' });
     await savePng(buffer, path.join(screenshotsDir, `${name}-${viewport.width}.png`));

@@ -1,0 +1,60 @@
+/** A new client (who the contractor works for), checked with the API's own schema. */
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { CLIENT_KINDS, ClientCreateSchema, type Client } from '@/lib/api/clients';
+import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+
+interface Values {
+  name: string;
+  kind: (typeof CLIENT_KINDS)[number];
+  contactEmail: string;
+  phone: string;
+  notes: string;
+}
+
+const KIND_LABEL = { homeowner: 'Homeowner', property_manager: 'Property manager', business: 'Business' } as const;
+
+export default function ClientForm() {
+  const { register, handleSubmit, setError, formState } = useForm<Values>({
+    resolver: apiResolver<Values>(ClientCreateSchema),
+    defaultValues: { name: '', kind: 'homeowner', contactEmail: '', phone: '', notes: '' },
+  });
+  const [message, setMessage] = useState<string | null>(null);
+  const errors = formState.errors;
+  const onSubmit = handleSubmit(async (values) => {
+    const sent = await sendJson<Client, Values>('POST', '/api/clients', withoutBlanks(values), setError);
+    setMessage(sent.message);
+    if (sent.ok && sent.body) window.location.assign(`/clients/${sent.body.id}`);
+  });
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
+      <Field label="Name" error={errors.name?.message} className="sm:col-span-2">
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />}
+      </Field>
+      <Field label="Kind of client" error={errors.kind?.message}>
+        {(id, d) => (
+          <select id={id} aria-describedby={d} className="field" {...register('kind')}>
+            {CLIENT_KINDS.map((k) => (
+              <option key={k} value={k}>{KIND_LABEL[k]}</option>
+            ))}
+          </select>
+        )}
+      </Field>
+      <Field label="Phone" error={errors.phone?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} className="field" type="tel" autoComplete="off" {...register('phone')} />}
+      </Field>
+      <Field label="E-mail for reports and signing" error={errors.contactEmail?.message} className="sm:col-span-2">
+        {(id, d) => <input id={id} aria-describedby={d} className="field" type="email" autoComplete="off" {...register('contactEmail')} />}
+      </Field>
+      <Field label="Notes" error={errors.notes?.message} className="sm:col-span-2">
+        {(id, d) => <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />}
+      </Field>
+      <div className="grid gap-2 sm:col-span-2">
+        <FormMessage message={message} />
+        <button type="submit" className="btn w-full sm:w-auto" disabled={formState.isSubmitting}>
+          {formState.isSubmitting ? 'Saving…' : 'Add the client'}
+        </button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,207 @@
+/**
+ * A gate at a site, new or corrected on site: what it is, how it opens, its size as measured
+ * (kept in the unit entered) and the operator facts the rules depend on. Checked with the
+ * API's own schema before it is sent.
+ */
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { GATE_KIND_VALUES, GateCreateSchema, GatePatchSchema, OPERATOR_MOUNTINGS, OPERATOR_POWER, type Gate } from '@/lib/api/gates';
+import type { UnitSystem } from '@/lib/units';
+import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+
+type Tri = boolean | undefined;
+interface Values {
+  siteId: string;
+  label: string;
+  kind: (typeof GATE_KIND_VALUES)[number];
+  leaves: 'single' | 'double';
+  openingDirection: 'pull_to_open' | 'push_to_open' | undefined;
+  width: { value: number; unit: string };
+  height: { value: number; unit: string };
+  weight: { value: number; unit: string };
+  operator: { listed: Tri; automaticClosing: Tri; manufacturedOn: string; mounting: string; power: string; model: string };
+  installedOn: string;
+}
+
+const KIND_LABEL: Record<string, string> = {
+  swing: 'Swing',
+  slide: 'Slide',
+  barrier_arm: 'Barrier arm',
+  vertical_lift: 'Vertical lift',
+  vertical_pivot: 'Vertical pivot',
+  overhead_pivot: 'Overhead pivot',
+};
+const MOUNTING_LABEL: Record<string, string> = { post: 'On the post', pad: 'On a pad', wall: 'On a wall', column: 'On a column', underground: 'Underground', overhead: 'Overhead', other: 'Other' };
+const POWER_LABEL: Record<string, string> = { mains_ac: 'Mains AC', low_voltage_ac: 'Low-voltage AC', low_voltage_dc: 'Low-voltage DC', solar: 'Solar', other: 'Other' };
+
+const triState = { setValueAs: (v: unknown) => (v === '' || v === undefined ? undefined : v === true || v === 'true') };
+const number = { setValueAs: (v: unknown) => (v === '' || v === undefined ? Number.NaN : Number(String(v).replace(',', '.'))) };
+
+/** The body as the API takes it: a dimension without a number is not sent; a swing's direction only for swings. */
+function toBody(values: Values, mode: 'create' | 'edit'): unknown {
+  const body = withoutBlanks(values) as Record<string, unknown>;
+  for (const key of ['width', 'height', 'weight']) {
+    const dimension = body[key] as { value?: number } | undefined;
+    if (!dimension || dimension.value === undefined) delete body[key];
+  }
+  if (values.kind !== 'swing') delete body.openingDirection;
+  if (mode === 'edit') delete body.siteId;
+  return body;
+}
+
+interface Props {
+  siteId: string;
+  units: UnitSystem;
+  gate?: Gate;
+  /** Where to go after saving; defaults to the site. */
+  next?: string;
+}
+
+/** An empty number field (the input shows nothing; `setValueAs` turns it into NaN, i.e. not given). */
+const blank = '' as unknown as number;
+
+function triDefault(value: boolean | null | undefined): Tri {
+  return value === null ? undefined : value;
+}
+
+export default function GateForm({ siteId, units, gate, next }: Props) {
+  const mode = gate ? 'edit' : 'create';
+  const lengthUnit = units === 'metric' ? 'mm' : 'ft';
+  const massUnit = units === 'metric' ? 'kg' : 'lb';
+  const { register, handleSubmit, setError, formState, watch } = useForm<Values>({
+    resolver: apiResolver<Values>(gate ? GatePatchSchema : GateCreateSchema, (v) => toBody(v, mode)),
+    defaultValues: {
+      siteId,
+      label: gate?.label ?? '',
+      kind: gate?.kind ?? 'swing',
+      leaves: gate?.leaves ?? 'single',
+      openingDirection: gate?.openingDirection ?? 'pull_to_open',
+      width: { value: gate?.entered.width?.value ?? blank, unit: gate?.entered.width?.unit ?? lengthUnit },
+      height: { value: gate?.entered.height?.value ?? blank, unit: gate?.entered.height?.unit ?? lengthUnit },
+      weight: { value: gate?.entered.weight?.value ?? blank, unit: gate?.entered.weight?.unit ?? massUnit },
+      operator: {
+        listed: triDefault(gate?.operator.listed),
+        automaticClosing: triDefault(gate?.operator.automaticClosing),
+        manufacturedOn: gate?.operator.manufacturedOn ?? '',
+        mounting: gate?.operator.mounting ?? '',
+        power: gate?.operator.power ?? '',
+        model: gate?.operator.model ?? '',
+      },
+      installedOn: gate?.installedOn ?? '',
+    },
+  });
+  const [message, setMessage] = useState<string | null>(null);
+  const errors = formState.errors;
+  const kind = watch('kind');
+  const onSubmit = handleSubmit(async (values) => {
+    const sent = await sendJson<Gate, Values>(gate ? 'PATCH' : 'POST', gate ? `/api/gates/${gate.id}` : '/api/gates', toBody(values, mode), setError);
+    setMessage(sent.message);
+    // A new query string, so the site page reloads with the new gate listed.
+    if (sent.ok && sent.body) window.location.assign(next ?? `/sites/${siteId}?gate=${sent.body.id}#gate-${sent.body.id}`);
+  });
+
+  const dimension = (key: 'width' | 'height' | 'weight', label: string, unitsOffered: string[]) => (
+    <Field label={label} error={errors[key]?.value?.message ?? errors[key]?.message ?? errors[key]?.unit?.message}>
+      {(id, d) => (
+        <div className="flex gap-2">
+          <input id={id} aria-describedby={d} className="field tabular-nums" inputMode="decimal" {...register(`${key}.value`, number)} />
+          <select aria-label={`${label} unit`} className="field w-24" {...register(`${key}.unit`)}>
+            {unitsOffered.map((u) => (
+              <option key={u} value={u}>{u}</option>
+            ))}
+          </select>
+        </div>
+      )}
+    </Field>
+  );
+
+  const tri = (name: 'operator.listed' | 'operator.automaticClosing', label: string, hint: string, error?: string) => (
+    <Field label={label} hint={hint} error={error}>
+      {(id, d) => (
+        <select id={id} aria-describedby={d} className="field" {...register(name, triState)}>
+          <option value="">Not known yet</option>
+          <option value="true">Yes</option>
+          <option value="false">No</option>
+        </select>
+      )}
+    </Field>
+  );
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
+      <Field label="Name of the gate" hint="As the owner calls it, e.g. “Driveway gate”." error={errors.label?.message} className="sm:col-span-2">
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('label')} />}
+      </Field>
+      <Field label="Kind" error={errors.kind?.message}>
+        {(id, d) => (
+          <select id={id} aria-describedby={d} className="field" {...register('kind')}>
+            {GATE_KIND_VALUES.map((k) => (
+              <option key={k} value={k}>{KIND_LABEL[k]}</option>
+            ))}
+          </select>
+        )}
+      </Field>
+      <Field label="Leaves" error={errors.leaves?.message}>
+        {(id, d) => (
+          <select id={id} aria-describedby={d} className="field" {...register('leaves')}>
+            <option value="single">One leaf</option>
+            <option value="double">Two leaves</option>
+          </select>
+        )}
+      </Field>
+      {kind === 'swing' && (
+        <Field label="Opens" error={errors.openingDirection?.message} className="sm:col-span-2">
+          {(id, d) => (
+            <select id={id} aria-describedby={d} className="field" {...register('openingDirection')}>
+              <option value="pull_to_open">Toward the operator side (pull to open)</option>
+              <option value="push_to_open">Away from the operator side (push to open)</option>
+            </select>
+          )}
+        </Field>
+      )}
+      {dimension('width', 'Opening width', ['mm', 'cm', 'm', 'in', 'ft'])}
+      {dimension('height', 'Leaf height', ['mm', 'cm', 'm', 'in', 'ft'])}
+      {dimension('weight', 'Leaf weight', ['kg', 'lb'])}
+      <Field label="Installed on" error={errors.installedOn?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} type="date" className="field" {...register('installedOn')} />}
+      </Field>
+      <fieldset className="grid gap-4 rounded-lg border border-iron-200 p-3 sm:col-span-2 sm:grid-cols-2">
+        <legend className="px-1 font-semibold text-iron-900">Operator</legend>
+        {tri('operator.listed', 'Listed to the safety standard?', 'A listing label on the operator, or the paperwork.', errors.operator?.listed?.message)}
+        {tri('operator.automaticClosing', 'Automatic closing on?', 'The gate closes by itself after a delay.', errors.operator?.automaticClosing?.message)}
+        <Field label="Made on (from its label)" error={errors.operator?.manufacturedOn?.message}>
+          {(id, d) => <input id={id} aria-describedby={d} type="date" className="field" {...register('operator.manufacturedOn')} />}
+        </Field>
+        <Field label="Make and model" error={errors.operator?.model?.message}>
+          {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('operator.model')} />}
+        </Field>
+        <Field label="Mounted" error={errors.operator?.mounting?.message}>
+          {(id, d) => (
+            <select id={id} aria-describedby={d} className="field" {...register('operator.mounting')}>
+              <option value="">Not recorded</option>
+              {OPERATOR_MOUNTINGS.map((m) => (
+                <option key={m} value={m}>{MOUNTING_LABEL[m]}</option>
+              ))}
+            </select>
+          )}
+        </Field>
+        <Field label="Power" error={errors.operator?.power?.message}>
+          {(id, d) => (
+            <select id={id} aria-describedby={d} className="field" {...register('operator.power')}>
+              <option value="">Not recorded</option>
+              {OPERATOR_POWER.map((p) => (
+                <option key={p} value={p}>{POWER_LABEL[p]}</option>
+              ))}
+            </select>
+          )}
+        </Field>
+      </fieldset>
+      <div className="grid gap-2 sm:col-span-2">
+        <FormMessage message={message} />
+        <button type="submit" className="btn w-full sm:w-auto" disabled={formState.isSubmitting}>
+          {formState.isSubmitting ? 'Saving…' : gate ? 'Save the gate' : 'Add the gate'}
+        </button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,86 @@
+/** A new site for a client: where gates stand, with the UL 325 usage class that sets the rules. */
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { SiteCreateSchema, type Site } from '@/lib/api/sites';
+import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+
+interface Values {
+  clientId: string;
+  name: string;
+  addressLine1: string;
+  addressLine2: string;
+  city: string;
+  region: string;
+  postalCode: string;
+  country: string;
+  usageClass: number;
+  notes: string;
+}
+
+export const USAGE_CLASS_TEXT = [
+  { value: 1, title: 'Class I · residential', text: 'A home, or up to four homes sharing a drive.' },
+  { value: 2, title: 'Class II · commercial, public', text: 'Apartments, shops, car parks: the public can reach it.' },
+  { value: 3, title: 'Class III · industrial', text: 'Factory or yard gates, not meant for the public.' },
+  { value: 4, title: 'Class IV · restricted, supervised', text: 'Guarded entries: prisons, airport security.' },
+] as const;
+
+export default function SiteForm({ clientId }: { clientId: string }) {
+  const { register, handleSubmit, setError, formState } = useForm<Values>({
+    resolver: apiResolver<Values>(SiteCreateSchema),
+    defaultValues: { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: 1, notes: '' },
+  });
+  const [message, setMessage] = useState<string | null>(null);
+  const errors = formState.errors;
+  const onSubmit = handleSubmit(async (values) => {
+    const sent = await sendJson<Site, Values>('POST', '/api/sites', withoutBlanks(values), setError);
+    setMessage(sent.message);
+    if (sent.ok && sent.body) window.location.assign(`/sites/${sent.body.id}`);
+  });
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
+      <input type="hidden" {...register('clientId')} />
+      <Field label="Street address" error={errors.addressLine1?.message} className="sm:col-span-2">
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('addressLine1')} />}
+      </Field>
+      <Field label="Town or city" error={errors.city?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('city')} />}
+      </Field>
+      <Field label="State or region" error={errors.region?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('region')} />}
+      </Field>
+      <Field label="Postal code" error={errors.postalCode?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('postalCode')} />}
+      </Field>
+      <Field label="Country (two letters)" error={errors.country?.message}>
+        {(id, d) => <input id={id} aria-describedby={d} className="field uppercase" maxLength={2} autoComplete="off" {...register('country')} />}
+      </Field>
+      <Field label="Name of the site (optional)" hint="For example “Main house” or “Rear yard”." error={errors.name?.message} className="sm:col-span-2">
+        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />}
+      </Field>
+      <fieldset className="sm:col-span-2">
+        <legend className="label">Who uses the gate (usage class)</legend>
+        <div className="grid gap-2 sm:grid-cols-2">
+          {USAGE_CLASS_TEXT.map((c) => (
+            <label key={c.value} className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg border border-iron-200 bg-white p-3 has-checked:border-iron-800 has-checked:bg-iron-50">
+              <input type="radio" className="mt-1 size-5 accent-iron-800" value={c.value} {...register('usageClass', { setValueAs: (v) => Number(v) })} />
+              <span>
+                <span className="block font-semibold text-iron-900">{c.title}</span>
+                <span className="block text-sm text-iron-600">{c.text}</span>
+              </span>
+            </label>
+          ))}
+        </div>
+        {errors.usageClass?.message && <p className="mt-1 text-sm font-semibold text-withdraw">{errors.usageClass.message}</p>}
+      </fieldset>
+      <Field label="Notes" error={errors.notes?.message} className="sm:col-span-2">
+        {(id, d) => <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />}
+      </Field>
+      <div className="grid gap-2 sm:col-span-2">
+        <FormMessage message={message} />
+        <button type="submit" className="btn w-full sm:w-auto" disabled={formState.isSubmitting}>
+          {formState.isSubmitting ? 'Saving…' : 'Add the site'}
+        </button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,64 @@
+/** Starts a draft assessment of one gate, pinned to the chosen family's current version, and opens its walk-through. */
+import { useId, useState } from 'react';
+import type { Assessment } from '@/lib/api/assessments';
+
+interface Props {
+  gateId: string;
+  families: { family: string; title: string; current: string }[];
+}
+
+const PURPOSES = [
+  { value: 'inspection', label: 'Inspection' },
+  { value: 'service', label: 'Service visit' },
+  { value: 'handover', label: 'Handover of a new install' },
+] as const;
+
+export default function StartAssessment({ gateId, families }: Props) {
+  const [family, setFamily] = useState(families[0]?.family ?? '');
+  const [purpose, setPurpose] = useState<string>('inspection');
+  const [busy, setBusy] = useState(false);
+  const [message, setMessage] = useState<string | null>(null);
+  const id = useId();
+  if (families.length === 0) return <p className="text-remedy">No ruleset is published yet.</p>;
+  const start = async () => {
+    setBusy(true);
+    setMessage(null);
+    try {
+      const response = await fetch('/api/assessments', {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify({ gateId, family, purpose }),
+      });
+      const body = await response.json().catch(() => null);
+      if (!response.ok) throw new Error(body?.detail ?? `The server answered ${response.status}.`);
+      window.location.assign(`/assessments/${(body as Assessment).id}/walk`);
+    } catch (error) {
+      setMessage(error instanceof TypeError ? 'No connection: starting an assessment needs signal once.' : (error as Error).message);
+      setBusy(false);
+    }
+  };
+  return (
+    <div className="grid gap-2 sm:grid-cols-[1fr_1fr_auto] sm:items-end">
+      <div>
+        <label htmlFor={`${id}-family`} className="label">Ruleset</label>
+        <select id={`${id}-family`} className="field" value={family} onChange={(e) => setFamily(e.target.value)}>
+          {families.map((f) => (
+            <option key={f.family} value={f.family}>{f.title} ({f.current})</option>
+          ))}
+        </select>
+      </div>
+      <div>
+        <label htmlFor={`${id}-purpose`} className="label">Purpose</label>
+        <select id={`${id}-purpose`} className="field" value={purpose} onChange={(e) => setPurpose(e.target.value)}>
+          {PURPOSES.map((p) => (
+            <option key={p.value} value={p.value}>{p.label}</option>
+          ))}
+        </select>
+      </div>
+      <button type="button" className="btn" disabled={busy} onClick={() => void start()}>
+        {busy ? 'Starting…' : 'Start the walk-through'}
+      </button>
+      {message && <p role="alert" className="font-semibold text-withdraw sm:col-span-3">{message}</p>}
+    </div>
+  );
+}

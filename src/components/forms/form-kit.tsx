@@ -1,0 +1,98 @@
+/**
+ * What the client, site and gate forms share: a labelled field with its error, a JSON submit
+ * to /api that maps the server's per-field problems back onto the form, and a resolver that
+ * drops empty optional fields before the API's own zod schema checks the body.
+ */
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useId, type ReactNode } from 'react';
+import type { FieldValues, Path, Resolver, UseFormSetError } from 'react-hook-form';
+import type { z } from 'zod';
+
+/** Empty strings and NaN become "not given", so optional fields stay optional. */
+export function withoutBlanks(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(withoutBlanks);
+  if (value && typeof value === 'object') {
+    const out: Record<string, unknown> = {};
+    for (const [key, inner] of Object.entries(value)) {
+      const cleaned = withoutBlanks(inner);
+      if (cleaned === undefined) continue;
+      if (cleaned && typeof cleaned === 'object' && !Array.isArray(cleaned) && Object.keys(cleaned).length === 0) continue;
+      out[key] = cleaned;
+    }
+    return out;
+  }
+  if (value === '' || (typeof value === 'number' && Number.isNaN(value))) return undefined;
+  return value;
+}
+
+/** The API's schema as a react-hook-form resolver, checking the body the form will send. */
+export function apiResolver<T extends FieldValues>(schema: z.ZodType, shape: (values: T) => unknown = withoutBlanks as (v: T) => unknown): Resolver<T> {
+  const inner = zodResolver(schema as never, undefined, { raw: true }) as unknown as Resolver<FieldValues>;
+  const resolver = async (values: T, context: unknown, options: unknown) => {
+    const result = await inner(shape(values) as FieldValues, context, options as never);
+    return result.errors && Object.keys(result.errors).length ? { values: {}, errors: result.errors } : { values, errors: {} };
+  };
+  return resolver as unknown as Resolver<T>;
+}
+
+export interface SendResult<T> {
+  ok: boolean;
+  body: T | null;
+  message: string | null;
+}
+
+/** Sends JSON; a 422 puts each field's message on the form (and returns ok: false). */
+export async function sendJson<T, F extends FieldValues>(method: string, url: string, body: unknown, setError: UseFormSetError<F>): Promise<SendResult<T>> {
+  let response: Response;
+  try {
+    response = await fetch(url, { method, headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify(body) });
+  } catch {
+    return { ok: false, body: null, message: 'No connection to the server. Try again when you have signal.' };
+  }
+  const json = await response.json().catch(() => null);
+  if (response.ok) return { ok: true, body: json as T, message: null };
+  for (const error of (json?.errors ?? []) as { field: string; message: string }[]) {
+    if (error.field) setError(error.field as Path<F>, { type: 'server', message: error.message });
+  }
+  return { ok: false, body: null, message: json?.detail ?? `The server answered ${response.status}.` };
+}
+
+interface FieldProps {
+  label: string;
+  error?: string | undefined;
+  hint?: string;
+  children: (id: string, describedBy: string | undefined) => ReactNode;
+  className?: string;
+}
+
+export function Field({ label, error, hint, children, className }: FieldProps) {
+  const id = useId();
+  const describedBy = [hint ? `${id}-hint` : '', error ? `${id}-error` : ''].filter(Boolean).join(' ') || undefined;
+  return (
+    <div className={className}>
+      <label htmlFor={id} className="label">
+        {label}
+      </label>
+      {children(id, describedBy)}
+      {hint && (
+        <p id={`${id}-hint`} className="mt-1 text-sm text-iron-600">
+          {hint}
+        </p>
+      )}
+      {error && (
+        <p id={`${id}-error`} className="mt-1 text-sm font-semibold text-withdraw">
+          {error}
+        </p>
+      )}
+    </div>
+  );
+}
+
+export function FormMessage({ message }: { message: string | null }) {
+  if (!message) return null;
+  return (
+    <p role="alert" className="rounded-md bg-withdraw/10 px-3 py-2 font-semibold text-withdraw">
+      {message}
+    </p>
+  );
+}

@@ -1,0 +1,63 @@
+/**
+ * The live result: the device's current answers scored by `POST /api/score` against the
+ * pinned ruleset version, a moment after the last change, while online. The previous result
+ * stays on screen while the next one is worked out (and while offline, marked as such).
+ */
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
+import { useEffect, useMemo, useState } from 'react';
+import type { ScoreResult } from '@/lib/rules/result-types';
+import { scorePreview, type Problem } from '@/lib/walk/api';
+import type { WalkDocuments } from '@/lib/walk/documents';
+import type { WalkGate, WalkRuleset } from '@/lib/walk/model';
+import { buildPreviewInput } from '@/lib/walk/score-input';
+
+const SETTLE_MS = 700;
+
+export class PreviewRefused extends Error {
+  constructor(readonly problem: Problem) {
+    super(problem.detail ?? 'The preview could not be scored');
+  }
+}
+
+export interface Preview {
+  result: ScoreResult | undefined;
+  /** Something must be answered before anything can be scored. */
+  blockers: string[];
+  refused: Problem | null;
+  updating: boolean;
+  /** The result shown is from before the latest changes. */
+  stale: boolean;
+}
+
+export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: WalkRuleset, online: boolean): Preview {
+  const { input, blockers } = useMemo(() => buildPreviewInput(gate, documents, ruleset.questions), [gate, documents, ruleset.questions]);
+  const body = useMemo(() => JSON.stringify({ family: ruleset.family, version: ruleset.version, input }), [input, ruleset.family, ruleset.version]);
+  const [settled, setSettled] = useState(body);
+  useEffect(() => {
+    const timer = setTimeout(() => setSettled(body), SETTLE_MS);
+    return () => clearTimeout(timer);
+  }, [body]);
+
+  const query = useQuery({
+    queryKey: ['walk-preview', settled],
+    queryFn: async () => {
+      const answer = await scorePreview(JSON.parse(settled));
+      if (!answer.ok) throw new PreviewRefused(answer.problem);
+      return answer.value as ScoreResult;
+    },
+    enabled: online && blockers.length === 0,
+    placeholderData: keepPreviousData,
+    staleTime: Infinity,
+    gcTime: 60_000,
+    retry: (count, error) => !(error instanceof PreviewRefused) && count < 2,
+    networkMode: 'always',
+  });
+
+  return {
+    result: query.data,
+    blockers,
+    refused: query.error instanceof PreviewRefused ? query.error.problem : null,
+    updating: query.isFetching,
+    stale: settled !== body || query.isPlaceholderData || !online,
+  };
+}
