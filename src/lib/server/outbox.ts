@@ -56,6 +56,12 @@ const envInt = (name: string, fallback: number) => {
   return Number.isFinite(value) && value > 0 ? value : fallback;
 };
 
+/** The group of workers that delivers this process's mail (OUTBOX_CHANNEL, default `default`). */
+export function outboxChannel(): string {
+  const channel = (process.env.OUTBOX_CHANNEL ?? 'default').trim().toLowerCase();
+  return /^[a-z0-9][a-z0-9_-]{0,39}$/.test(channel) ? channel : 'default';
+}
+
 export function outboxSettings(): OutboxSettings {
   return {
     maxAttempts: envInt('OUTBOX_MAX_ATTEMPTS', 10),
@@ -80,6 +86,7 @@ export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessa
   const [row] = await trx('outbox_messages')
     .insert({
       organisation_id: message.organisationId,
+      channel: outboxChannel(),
       kind: message.kind,
       to_addresses: message.to,
       cc_addresses: message.cc ?? [],
@@ -109,6 +116,7 @@ interface ClaimedMessage {
 export async function claimDueMessages(knex: Knex, settings: OutboxSettings): Promise<ClaimedMessage[]> {
   return knex.transaction(async (trx): Promise<ClaimedMessage[]> => {
     const due = await trx('outbox_messages')
+      .where('channel', outboxChannel())
       .whereIn('status', ['queued', 'sending'])
       .andWhere('next_attempt_at', '<=', trx.fn.now())
       .orderBy('next_attempt_at')

@@ -50,6 +50,9 @@ export default async function setup(project: TestProject) {
     AUTH_TRUST_HOST: 'true',
     LATCHWELL_DATA_DIR: dataDir,
     LATCHWELL_ENV: 'test',
+    // Each project has its own server and catcher on the one test database: keep their mail
+    // apart, or one project's outbox worker would deliver the other's messages to its catcher.
+    OUTBOX_CHANNEL: project.name === 'integration' ? 'default' : project.name,
   };
   const server = await startAppServer({ port, quiet: true, env: serverEnv });
   project.provide('serverEnv', serverEnv);
