@@ -101,7 +101,8 @@ function words(node: unknown, ctx: WordsContext): string {
     if ((op === '<' || op === '<=') && args.length === 3) return `${words(args[1], ctx)} is between ${words(args[0], ctx)} and ${words(args[2], ctx)}`;
     const [a, b] = args;
     // Yes/no facts and answers read as the answer itself: "hinge side guarded: yes".
-    const answer = b === true ? 'yes' : b === false ? 'no' : typeof b === 'string' && ['yes', 'no', 'na'].includes(b) ? (b === 'na' ? 'not applicable' : b) : null;
+    const answer =
+      b === true ? 'yes' : b === false ? 'no' : typeof b === 'string' && ['yes', 'no', 'na'].includes(b) ? (b === 'na' ? 'not applicable' : b) : null;
     if (answer && (op === '==' || op === '===')) return `${words(a, ctx)}: ${answer}`;
     if (answer && (op === '!=' || op === '!==')) return `${words(a, ctx)}: not ${answer}`;
     return `${words(a, ctx)} ${COMPARISONS[op]} ${words(b, ctx)}`;

@@ -27,7 +27,14 @@ interface Detail {
   derivedFrom: { family: string; version: string } | null;
   content: {
     derivedFrom?: { family: string; version: string; contentSha256: string };
-    rules: { id: string; severity: string; enabled: boolean; local?: true; params: Record<string, { value: unknown; unit?: string }>; reference: { source?: string } }[];
+    rules: {
+      id: string;
+      severity: string;
+      enabled: boolean;
+      local?: true;
+      params: Record<string, { value: unknown; unit?: string }>;
+      reference: { source?: string };
+    }[];
     questions: { key: string; answerType: string }[];
     sources: { id: string; kind: string; title: string }[];
   };
@@ -50,7 +57,11 @@ const fireSwitch = {
   gateKinds: ['swing', 'slide'],
   check: {
     kind: 'answer_yes',
-    question: { section: 'controls', prompt: 'Is a fire service key switch fitted at the gate and does it open the gate?', whyItMatters: 'Fire crews must get through a closed gate without waiting for anyone.' },
+    question: {
+      section: 'controls',
+      prompt: 'Is a fire service key switch fitted at the gate and does it open the gate?',
+      whyItMatters: 'Fire crews must get through a closed gate without waiting for anyone.',
+    },
   },
   harm: 'fatality',
   remediation: 'Fit the key switch the fire service specifies beside the entry lane and check it opens the gate.',
@@ -132,19 +143,29 @@ describe('the amendment flow', () => {
     const before = await stored();
     const res = await owner.json('PATCH', draftPath, {
       rules: { 'signage.placards-each-side': { enabled: false } },
-      addRules: [{ ...fireSwitch, title: 'Gate colour', check: { kind: 'condition', condition: { '==': [{ var: 'answers.gateColour' }, 'red'] }, requires: ['answers.gateColour'] } }],
+      addRules: [
+        {
+          ...fireSwitch,
+          title: 'Gate colour',
+          check: { kind: 'condition', condition: { '==': [{ var: 'answers.gateColour' }, 'red'] }, requires: ['answers.gateColour'] },
+        },
+      ],
     });
     expect(res.status).toBe(422);
     const { errors } = await res.json();
     const index = draft.content.rules.length;
     expect(errors.length).toBeGreaterThan(0);
-    for (const e of errors) expect(e).toMatchObject({ field: expect.stringMatching(new RegExp(`^ruleset\\.rules\\[${index}\\]`)), ruleId: 'local.gate-colour' });
+    for (const e of errors)
+      expect(e).toMatchObject({ field: expect.stringMatching(new RegExp(`^ruleset\\.rules\\[${index}\\]`)), ruleId: 'local.gate-colour' });
     expect(errors.map((e: { message: string }) => e.message).join(' ')).toContain('answers.gateColour');
     expect(await stored()).toEqual(before);
   });
 
   it('refuses to remove a shipped rule (it can be turned off) or to change a rule or param that does not exist', async () => {
-    const res = await owner.json('PATCH', draftPath, { removeRules: ['pinch.fixed-objects'], rules: { 'pinch.no-such-rule': { enabled: false }, 'pinch.operator-arm': { params: { maxWidthMm: 3 } } } });
+    const res = await owner.json('PATCH', draftPath, {
+      removeRules: ['pinch.fixed-objects'],
+      rules: { 'pinch.no-such-rule': { enabled: false }, 'pinch.operator-arm': { params: { maxWidthMm: 3 } } },
+    });
     expect(res.status).toBe(422);
     const fields = (await res.json()).errors.map((e: { field: string }) => e.field);
     expect(fields).toEqual(['removeRules[0]', 'rules.pinch.no-such-rule', 'rules.pinch.operator-arm.params.maxWidthMm']);
@@ -180,7 +201,9 @@ describe('the amendment flow', () => {
   });
 
   it('removes a local rule again, with the question and source only it used', async () => {
-    const added = await owner.json('PATCH', draftPath, { addRules: [{ ...fireSwitch, title: 'Knox box beside the keypad', reference: { standard: 'Brackenfold borough access rules', clause: '4.2' } }] });
+    const added = await owner.json('PATCH', draftPath, {
+      addRules: [{ ...fireSwitch, title: 'Knox box beside the keypad', reference: { standard: 'Brackenfold borough access rules', clause: '4.2' } }],
+    });
     expect(added.status).toBe(200);
     const res = await owner.json('PATCH', draftPath, { removeRules: ['local.knox-box-beside-the-keypad'] });
     expect(res.status).toBe(200);
@@ -217,7 +240,10 @@ describe('the amendment flow', () => {
 
   it('scores against the local family’s current version with every amendment in force', async () => {
     const input = swingGateInput();
-    const res = await auditor.json('POST', '/api/score', { family: LOCAL, input: { ...input, answers: { ...input.answers, localFireServiceKeySwitchAtTheGate: { value: 'no' } } } });
+    const res = await auditor.json('POST', '/api/score', {
+      family: LOCAL,
+      input: { ...input, answers: { ...input.answers, localFireServiceKeySwitchAtTheGate: { value: 'no' } } },
+    });
     expect(res.status).toBe(200);
     const result = await res.json();
     expect(result.ruleset).toEqual({ family: LOCAL, version: draft.version, contentSha256: draft.contentSha256 });

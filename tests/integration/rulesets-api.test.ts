@@ -50,7 +50,12 @@ describe('POST /api/score', () => {
     expect(result.ruleset).toEqual({ family: NA, version: '2026.1', contentSha256: shipped('2026.1').contentSha256 });
     // ASTM F2200, swing gates: 16 in (406.4 mm) to fixed objects; the open leaf stops 12 in from the pier.
     const fixedObjects = findingOf(result, 'pinch.fixed-objects');
-    expect(fixedObjects).toMatchObject({ outcome: 'fail', severity: 'critical', observed: { 'm.fixedObjectClearanceMm': 304.8 }, params: { minClearanceMm: { value: 406.4, unit: 'mm' } } });
+    expect(fixedObjects).toMatchObject({
+      outcome: 'fail',
+      severity: 'critical',
+      observed: { 'm.fixedObjectClearanceMm': 304.8 },
+      params: { minClearanceMm: { value: 406.4, unit: 'mm' } },
+    });
     expect(result.verdict).toBe('withdraw');
     const failing: Finding[] = result.findings.filter((f: Finding) => f.outcome === 'fail');
     expect(failing.length).toBeGreaterThanOrEqual(2);
@@ -168,7 +173,12 @@ describe('GET /api/rulesets/{family}/{version}', () => {
   });
 
   it('answers 404 with problem details for an unknown version or a malformed label', async () => {
-    for (const p of [`/api/rulesets/${NA}/1999.1`, `/api/rulesets/${NA}/not-a-version`, '/api/rulesets/no-such-family/2026.1', '/api/rulesets/Bad_Family/2026.1']) {
+    for (const p of [
+      `/api/rulesets/${NA}/1999.1`,
+      `/api/rulesets/${NA}/not-a-version`,
+      '/api/rulesets/no-such-family/2026.1',
+      '/api/rulesets/Bad_Family/2026.1',
+    ]) {
       const res = await auditor.json('GET', p);
       expect(res.status, p).toBe(404);
       expect(res.headers.get('content-type'), p).toMatch(/^application\/problem\+json/);

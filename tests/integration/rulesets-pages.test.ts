@@ -14,7 +14,11 @@ let homeowner: TestClient;
 
 beforeAll(async () => {
   org = await createOrganisation('rulesets-pages');
-  [owner, auditor, homeowner] = await Promise.all([signIn(org.owner.email, fixturePassword), signIn(org.auditor.email, fixturePassword), signInHomeowner(org.homeowner.email)]);
+  [owner, auditor, homeowner] = await Promise.all([
+    signIn(org.owner.email, fixturePassword),
+    signIn(org.auditor.email, fixturePassword),
+    signInHomeowner(org.homeowner.email),
+  ]);
 });
 
 const page = async (client: TestClient, path: string) => {
@@ -23,7 +27,13 @@ const page = async (client: TestClient, path: string) => {
 };
 
 /** Text of the page with tags stripped and entities for quotes undone, for reading sentences. */
-const textOf = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/&#39;|&#x27;/g, "'").replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/\s+/g, ' ');
+const textOf = (html: string) =>
+  html
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/&#39;|&#x27;/g, "'")
+    .replace(/&quot;/g, '"')
+    .replace(/&amp;/g, '&')
+    .replace(/\s+/g, ' ');
 
 describe('ruleset pages', () => {
   it('lists the shipped families and their versions; only the owner is offered "Amend"', async () => {
@@ -63,7 +73,11 @@ describe('ruleset pages', () => {
 
   it('lets the owner start an amendment from the list and opens the editor; others are refused the editor', async () => {
     const form = new URLSearchParams({ fromFamily: NA, fromVersion: '2026.1' });
-    const res = await owner.fetch('/rulesets', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }, body: form });
+    const res = await owner.fetch('/rulesets', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' },
+      body: form,
+    });
     expect(res.status).toBe(303);
     const location = res.headers.get('location') ?? '';
     expect(location).toBe(`/rulesets/${NA}-local/2026.1-local.1/edit`);
@@ -72,7 +86,11 @@ describe('ruleset pages', () => {
     expect(editor.html).toContain('astro-island');
     expect(textOf(editor.html)).toContain('Add a local requirement');
     expect((await page(auditor, location)).status).toBe(403);
-    const refused = await auditor.fetch('/rulesets', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }, body: form });
+    const refused = await auditor.fetch('/rulesets', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' },
+      body: form,
+    });
     expect(refused.status).toBe(403);
   });
 });

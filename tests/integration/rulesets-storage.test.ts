@@ -47,9 +47,9 @@ beforeAll(async () => {
 describe('the published-version guard (raw SQL)', () => {
   it("refuses an UPDATE of a published version's content", async () => {
     const id = await insertVersion('2026.1-local.1', 'published');
-    await expect(
-      testDb().raw(`update ruleset_versions set content = jsonb_set(content, '{summary}', '"quietly edited"') where id = ?`, [id]),
-    ).rejects.toThrow(/is published and its content cannot change/);
+    await expect(testDb().raw(`update ruleset_versions set content = jsonb_set(content, '{summary}', '"quietly edited"') where id = ?`, [id])).rejects.toThrow(
+      /is published and its content cannot change/,
+    );
     await expect(testDb().raw(`update ruleset_versions set content_sha256 = ? where id = ?`, ['f'.repeat(64), id])).rejects.toThrow(/cannot change/);
     const row = await testDb()('ruleset_versions').where({ id }).first('content');
     expect(row.content.summary).toBe(document.summary);
@@ -66,7 +66,9 @@ describe('the published-version guard (raw SQL)', () => {
     await expect(testDb().raw(`update ruleset_versions set status = 'draft' where id = ?`, [id])).rejects.toThrow(/cannot go from published to draft/);
     await testDb().raw(`update ruleset_versions set status = 'retired' where id = ?`, [id]);
     expect((await testDb()('ruleset_versions').where({ id }).first('status')).status).toBe('retired');
-    await expect(testDb().raw(`update ruleset_versions set content = '{}'::jsonb where id = ?`, [id])).rejects.toThrow(/is retired and its content cannot change/);
+    await expect(testDb().raw(`update ruleset_versions set content = '{}'::jsonb where id = ?`, [id])).rejects.toThrow(
+      /is retired and its content cannot change/,
+    );
   });
 
   it("allows an UPDATE of a draft's content, and its deletion", async () => {
@@ -96,9 +98,15 @@ describe('npm run rulesets:publish', () => {
   it('publishes a new file once, and a second run changes nothing', async () => {
     const url = inject('databaseUrl');
     expect(await publishRulesetFiles(url, root)).toEqual([`${family} 2026.1`]);
-    const before = await testDb()('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where('r.family', family).select('rv.id', 'rv.content_sha256', 'rv.published_at');
+    const before = await testDb()('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where('r.family', family)
+      .select('rv.id', 'rv.content_sha256', 'rv.published_at');
     expect(await publishRulesetFiles(url, root)).toEqual([]);
-    const after = await testDb()('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where('r.family', family).select('rv.id', 'rv.content_sha256', 'rv.published_at');
+    const after = await testDb()('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where('r.family', family)
+      .select('rv.id', 'rv.content_sha256', 'rv.published_at');
     expect(after).toEqual(before);
     expect(before).toHaveLength(1);
     expect(before[0].content_sha256).toBe(loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8'))).contentSha256);

@@ -27,7 +27,10 @@ export const VersionLabelSchema = z
   .max(40, 'must be at most 40 characters')
   .regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must be a version label such as "2026.1" or "2026.1-local.2"');
 
-export const RuleIdSchema = z.string().max(120, 'must be at most 120 characters').regex(/^[a-z]+(?:\.[a-z0-9]+(?:-[a-z0-9]+)*)+$/, 'must be a rule id such as "pinch.hinge-side"');
+export const RuleIdSchema = z
+  .string()
+  .max(120, 'must be at most 120 characters')
+  .regex(/^[a-z]+(?:\.[a-z0-9]+(?:-[a-z0-9]+)*)+$/, 'must be a rule id such as "pinch.hinge-side"');
 
 /** Local rules live under their own prefix, so a later shipped version can never collide with them. */
 export const LOCAL_RULE_PREFIX = 'local.';

@@ -51,9 +51,13 @@ export async function deriveAmendment({ user, organisation }: AmendmentSession, 
     const source = await findVersion(user, input.fromFamily, input.fromVersion, trx);
     if (!source) {
       const field = (await findFamilyOnly(trx, user, input.fromFamily)) ? 'fromVersion' : 'fromFamily';
-      throw invalid(field, field === 'fromFamily' ? `no ruleset family "${input.fromFamily}" that you can see` : `no version "${input.fromVersion}" of "${input.fromFamily}"`);
+      throw invalid(
+        field,
+        field === 'fromFamily' ? `no ruleset family "${input.fromFamily}" that you can see` : `no version "${input.fromVersion}" of "${input.fromFamily}"`,
+      );
     }
-    if (source.summary.status !== 'published') throw invalid('fromVersion', `${input.fromVersion} is ${source.summary.status}; amendments start from a published version`);
+    if (source.summary.status !== 'published')
+      throw invalid('fromVersion', `${input.fromVersion} is ${source.summary.status}; amendments start from a published version`);
 
     const root = source.family.based_on_family ?? source.family.family;
     const slug = input.family ?? (source.family.organisation_id ? source.family.family : `${source.family.family}-local`);
@@ -62,12 +66,15 @@ export async function deriveAmendment({ user, organisation }: AmendmentSession, 
       throw invalid('family', `"${slug}" is a shipped family; a local family needs a name of its own, such as "${slug}-local"`);
     }
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`ruleset:${organisation.id}:${slug}`]);
-    let target = await trx('rulesets').where({ organisation_id: organisation.id, family: slug }).first<FamilyRow | undefined>('id', 'organisation_id', 'family', 'title', 'region', 'based_on_family');
+    let target = await trx('rulesets')
+      .where({ organisation_id: organisation.id, family: slug })
+      .first<FamilyRow | undefined>('id', 'organisation_id', 'family', 'title', 'region', 'based_on_family');
     if (target && target.based_on_family !== root) {
       throw invalid('family', `"${slug}" amends ${target.based_on_family ?? 'another family'}, not ${root}; pick another name`);
     }
     const sourceDocument = (await loadVersion(source, trx)).version;
-    const title = target?.title ?? (source.family.organisation_id ? sourceDocument.familyTitle : localFamilyTitle(sourceDocument.familyTitle, organisation.name));
+    const title =
+      target?.title ?? (source.family.organisation_id ? sourceDocument.familyTitle : localFamilyTitle(sourceDocument.familyTitle, organisation.name));
     if (!target) {
       [target] = await trx('rulesets')
         .insert({ organisation_id: organisation.id, family: slug, title, region: source.family.region, based_on_family: root })
@@ -95,7 +102,11 @@ export async function deriveAmendment({ user, organisation }: AmendmentSession, 
       entityType: 'ruleset_version',
       entityId: id,
       ip: request.ip,
-      detail: { family: slug, version: label, from: { family: source.family.family, version: source.summary.version, contentSha256: source.summary.contentSha256 } },
+      detail: {
+        family: slug,
+        version: label,
+        from: { family: source.family.family, version: source.summary.version, contentSha256: source.summary.contentSha256 },
+      },
     });
     return { family: slug, version: label, loaded };
   });
@@ -104,7 +115,10 @@ export async function deriveAmendment({ user, organisation }: AmendmentSession, 
 }
 
 async function findFamilyOnly(knex: Knex, user: SessionUser, family: string): Promise<boolean> {
-  const row = await knex('rulesets').where('family', family).andWhere((w) => w.whereNull('organisation_id').orWhere('organisation_id', user.organisationId)).first('id');
+  const row = await knex('rulesets')
+    .where('family', family)
+    .andWhere((w) => w.whereNull('organisation_id').orWhere('organisation_id', user.organisationId))
+    .first('id');
   return Boolean(row);
 }
 
@@ -128,7 +142,12 @@ async function lockOwnVersion(trx: Knex.Transaction, user: SessionUser, family: 
   const row = await trx('ruleset_versions')
     .where({ id: stored.id })
     .forUpdate()
-    .first<{ status: string; content: unknown; content_sha256: string; derived_from_version_id: string | null }>('status', 'content', 'content_sha256', 'derived_from_version_id');
+    .first<{ status: string; content: unknown; content_sha256: string; derived_from_version_id: string | null }>(
+      'status',
+      'content',
+      'content_sha256',
+      'derived_from_version_id',
+    );
   if (row.status !== 'draft') {
     throw new HttpProblem(409, `${family} ${version} is ${row.status}: a published version never changes. Derive a new amendment to change it.`);
   }
@@ -146,7 +165,13 @@ function documentProblems(problems: readonly RulesetProblem[], content: RulesetV
 }
 
 /** Applies an owner's changes to a draft; nothing is stored unless the whole result is valid. */
-export async function amendDraft({ user, organisation }: AmendmentSession, family: string, version: string, patch: AmendmentPatch, request: RequestFacts): Promise<RulesetVersionDetail> {
+export async function amendDraft(
+  { user, organisation }: AmendmentSession,
+  family: string,
+  version: string,
+  patch: AmendmentPatch,
+  request: RequestFacts,
+): Promise<RulesetVersionDetail> {
   await db().transaction(async (trx) => {
     const draft = await lockOwnVersion(trx, user, family, version, 'edited');
     const baseline = draft.derivedFromVersionId ? await contentById(draft.derivedFromVersionId, trx) : null;
@@ -158,7 +183,9 @@ export async function amendDraft({ user, organisation }: AmendmentSession, famil
     }
     const { version: document, contentSha256 } = checked.ruleset;
     if (contentSha256 === draft.contentSha256) return;
-    await trx('ruleset_versions').where({ id: draft.stored.id }).update({ content: JSON.stringify(document), content_sha256: contentSha256 });
+    await trx('ruleset_versions')
+      .where({ id: draft.stored.id })
+      .update({ content: JSON.stringify(document), content_sha256: contentSha256 });
     await recordAudit(trx, {
       organisationId: organisation.id,
       actorUserId: user.id,
@@ -182,11 +209,17 @@ export async function amendDraft({ user, organisation }: AmendmentSession, famil
 }
 
 /** Publishes a draft: from now on its content never changes (the trigger holds it too). */
-export async function publishDraft({ user, organisation }: AmendmentSession, family: string, version: string, request: RequestFacts): Promise<RulesetVersionDetail> {
+export async function publishDraft(
+  { user, organisation }: AmendmentSession,
+  family: string,
+  version: string,
+  request: RequestFacts,
+): Promise<RulesetVersionDetail> {
   await db().transaction(async (trx) => {
     const draft = await lockOwnVersion(trx, user, family, version, 'published from here');
     const checked = validateRuleset(draft.content);
-    if (!checked.ok) throw new HttpProblem(422, 'This draft is not a valid ruleset; fix it before publishing.', { errors: documentProblems(checked.problems, draft.content) });
+    if (!checked.ok)
+      throw new HttpProblem(422, 'This draft is not a valid ruleset; fix it before publishing.', { errors: documentProblems(checked.problems, draft.content) });
     await trx('ruleset_versions').where({ id: draft.stored.id }).update({ status: 'published', published_at: trx.fn.now() });
     await recordAudit(trx, {
       organisationId: organisation.id,

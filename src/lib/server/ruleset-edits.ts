@@ -117,7 +117,12 @@ function typeMismatch(before: unknown, after: unknown): string | null {
   const kind = (v: unknown) => (Array.isArray(v) ? 'list' : typeof v);
   const expected = kind(before);
   if (expected === kind(after)) return null;
-  const words: Record<string, string> = { number: 'must be a number', string: 'must be a word or phrase', boolean: 'must be true or false', list: 'must be a list' };
+  const words: Record<string, string> = {
+    number: 'must be a number',
+    string: 'must be a word or phrase',
+    boolean: 'must be true or false',
+    list: 'must be a list',
+  };
   return words[expected] ?? `must be a ${expected}`;
 }
 
@@ -139,7 +144,11 @@ function uniqueName(base: string, taken: (name: string) => boolean, withNumber: 
 function generatedRuleId(rule: LocalRule, content: RulesetVersion): string {
   const slug = words(rule.title).join('-').slice(0, 60).replace(/-+$/, '') || 'requirement';
   const base = `${LOCAL_RULE_PREFIX}${slug}`;
-  return uniqueName(base, (id) => content.rules.some((r) => r.id === id), (n) => `${base}-${n}`);
+  return uniqueName(
+    base,
+    (id) => content.rules.some((r) => r.id === id),
+    (n) => `${base}-${n}`,
+  );
 }
 
 function generatedQuestionKey(title: string, suffix: string, content: RulesetVersion): string {
@@ -148,14 +157,22 @@ function generatedQuestionKey(title: string, suffix: string, content: RulesetVer
     .join('')
     .slice(0, 63 - 'local'.length - suffix.length - 2);
   const stem = `local${camel || 'Check'}`;
-  return uniqueName(`${stem}${suffix}`, (key) => content.questions.some((q) => q.key === key), (n) => `${stem}${n}${suffix}`);
+  return uniqueName(
+    `${stem}${suffix}`,
+    (key) => content.questions.some((q) => q.key === key),
+    (n) => `${stem}${n}${suffix}`,
+  );
 }
 
 /** The id of a `local` source for the reference's code or authority, added when new. */
 function localSourceId(content: RulesetVersion, standard: string): string {
   const existing = content.sources.find((s) => s.kind === 'local' && s.title === standard);
   if (existing) return existing.id;
-  const id = uniqueName('localSource', (key) => content.sources.some((s) => s.id === key), (n) => `localSource${n}`);
+  const id = uniqueName(
+    'localSource',
+    (key) => content.sources.some((s) => s.id === key),
+    (n) => `localSource${n}`,
+  );
   content.sources.push({ id, title: standard, kind: 'local', note: 'Added by the organisation as a local amendment.' });
   return id;
 }
@@ -242,8 +259,7 @@ function pruneOrphans(content: RulesetVersion, baseline: RulesetVersion | null):
   const baseSources = new Set(baseline?.sources.map((s) => s.id) ?? []);
   const ruleText = content.rules.map((r) => JSON.stringify(r)).join('\n');
   const askText = content.questions.map((q) => JSON.stringify(q.askWhen ?? null)).join('\n');
-  const stillRead = (key: string) =>
-    [`"answers.${key}"`, `"m.${key}"`].some((fact) => ruleText.includes(fact) || askText.includes(fact));
+  const stillRead = (key: string) => [`"answers.${key}"`, `"m.${key}"`].some((fact) => ruleText.includes(fact) || askText.includes(fact));
   content.questions = content.questions.filter((q) => baseQuestions.has(q.key) || stillRead(q.key));
   const usedSources = new Set(content.rules.map((r) => r.reference.source).filter(Boolean));
   content.sources = content.sources.filter((s) => s.kind !== 'local' || baseSources.has(s.id) || usedSources.has(s.id));

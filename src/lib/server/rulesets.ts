@@ -41,13 +41,17 @@ export async function publishShippedVersion(v: RulesetVersionToPublish, knex: Kn
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`ruleset:${v.family}`]);
     let ruleset = await trx('rulesets').whereNull('organisation_id').andWhere({ family: v.family }).first('id');
     if (!ruleset) {
-      [ruleset] = await trx('rulesets').insert({ family: v.family, title: v.title, region: v.region ?? null }).returning('id');
+      [ruleset] = await trx('rulesets')
+        .insert({ family: v.family, title: v.title, region: v.region ?? null })
+        .returning('id');
     }
     const existing = await trx('ruleset_versions').where({ ruleset_id: ruleset.id, version: v.version }).first('id', 'content_sha256', 'status');
     if (existing) {
       if (existing.content_sha256 === v.contentSha256) return 'unchanged';
       if (existing.status !== 'draft') throw new RulesetConflictError(v.family, v.version);
-      await trx('ruleset_versions').where({ id: existing.id }).update({ content: JSON.stringify(v.content), content_sha256: v.contentSha256 });
+      await trx('ruleset_versions')
+        .where({ id: existing.id })
+        .update({ content: JSON.stringify(v.content), content_sha256: v.contentSha256 });
       await trx('ruleset_versions').where({ id: existing.id }).update({ status: 'published', published_at: trx.fn.now() });
       return 'published';
     }
@@ -132,10 +136,7 @@ function visibleVersionsOf(knex: Knex, viewer: SessionUser, family: FamilyRow): 
 
 /** The family a slug names for this viewer: their organisation's own first, else the shipped one. */
 export async function resolveFamily(viewer: SessionUser, family: string, knex: Knex = db()): Promise<FamilyRow | undefined> {
-  return visibleFamilies(knex, viewer)
-    .andWhere('r.family', family)
-    .orderByRaw('r.organisation_id is null')
-    .first<FamilyRow | undefined>(familyColumns);
+  return visibleFamilies(knex, viewer).andWhere('r.family', family).orderByRaw('r.organisation_id is null').first<FamilyRow | undefined>(familyColumns);
 }
 
 function toSummary(row: VersionRow): RulesetVersionSummary {
@@ -162,10 +163,19 @@ export async function listVisibleFamilies(viewer: SessionUser, knex: Knex = db()
   if (families.length === 0) return [];
   const byFamily = new Map(families.map((f) => [f.id, [] as VersionRow[]]));
   const rows = await knex('ruleset_versions as rv')
-    .whereIn('rv.ruleset_id', families.map((f) => f.id))
+    .whereIn(
+      'rv.ruleset_id',
+      families.map((f) => f.id),
+    )
     .andWhere((w) => {
       w.whereIn('rv.status', ['published', 'retired']);
-      if (seesDrafts(viewer)) w.orWhere((d) => d.where('rv.status', 'draft').whereIn('rv.ruleset_id', families.filter((f) => f.organisation_id).map((f) => f.id)));
+      if (seesDrafts(viewer))
+        w.orWhere((d) =>
+          d.where('rv.status', 'draft').whereIn(
+            'rv.ruleset_id',
+            families.filter((f) => f.organisation_id).map((f) => f.id),
+          ),
+        );
     })
     .orderByRaw(versionOrder)
     .select<VersionRow[]>(versionColumns(knex));
@@ -210,7 +220,10 @@ export async function findCurrentVersion(viewer: SessionUser, family: string, kn
   if (!familyRow) return null;
   const row = await knex('ruleset_versions as rv')
     .where({ 'rv.ruleset_id': familyRow.id, 'rv.status': 'published' })
-    .orderBy([{ column: 'rv.published_at', order: 'desc' }, { column: 'rv.created_at', order: 'desc' }])
+    .orderBy([
+      { column: 'rv.published_at', order: 'desc' },
+      { column: 'rv.created_at', order: 'desc' },
+    ])
     .first<VersionRow | undefined>(versionColumns(knex));
   return row ? { id: row.id, family: familyRow, summary: toSummary(row) } : null;
 }
@@ -266,7 +279,9 @@ export async function scorePreview(viewer: SessionUser, request: ScoreRequest): 
   if (!target) {
     const family = await resolveFamily(viewer, request.family);
     if (family && request.version) {
-      throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'version', message: `no version "${request.version}" of "${request.family}" that you can see` }] });
+      throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+        errors: [{ field: 'version', message: `no version "${request.version}" of "${request.family}" that you can see` }],
+      });
     }
     invalidFamily(request.family, family);
   }
@@ -286,7 +301,11 @@ export async function scorePreview(viewer: SessionUser, request: ScoreRequest): 
  * (the cache holds that): the family the slug names for this viewer, then the named version
  * (drafts of the organisation's own family included) or the latest published one.
  */
-async function findScorableVersion(viewer: SessionUser, family: string, version: string | undefined): Promise<{ id: string; content_sha256: string } | undefined> {
+async function findScorableVersion(
+  viewer: SessionUser,
+  family: string,
+  version: string | undefined,
+): Promise<{ id: string; content_sha256: string } | undefined> {
   const knex = db();
   const named = version
     ? `and rv.version = ? and (rv.status in ('published', 'retired') or (rv.status = 'draft' and f.organisation_id is not null and ?))`
