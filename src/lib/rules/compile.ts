@@ -16,6 +16,8 @@ import { SEVERITIES, type GateKind, type HazardArea, type UsageClass } from './v
 export interface FactPath {
   readonly key: string;
   readonly segments: readonly string[];
+  /** Reads this path from a fact object; undefined when any step is absent. */
+  readonly read?: (facts: unknown) => unknown;
 }
 
 export interface CompiledRule {
@@ -53,10 +55,34 @@ export interface CompiledRuleset {
 const byHash = new Map<string, CompiledRuleset>();
 const byObject = new WeakMap<object, CompiledRuleset>();
 
-const toPath = (key: string): FactPath => ({ key, segments: key.split('.') });
+function readerOf(segments: readonly string[]): (facts: unknown) => unknown {
+  if (segments.length === 2) {
+    const [group, name] = segments as [string, string];
+    return (facts) => {
+      const inner = (facts as Record<string, Record<string, unknown> | undefined>)[group];
+      return inner === undefined || inner === null ? undefined : inner[name];
+    };
+  }
+  return (facts) => walk(facts, segments);
+}
+
+const toPath = (key: string): FactPath => {
+  const segments = key.split('.');
+  return { key, segments, read: readerOf(segments) };
+};
+
+function walk(facts: unknown, segments: readonly string[]): unknown {
+  let current: unknown = facts;
+  for (const segment of segments) {
+    if (current === null || current === undefined) return undefined;
+    current = (current as Record<string, unknown>)[segment];
+  }
+  return current;
+}
 
 /** Reads a fact by its pre-split path; undefined when any step is absent. */
 export function readFact(facts: unknown, path: FactPath): unknown {
+  if (path.read) return path.read(facts);
   let current: unknown = facts;
   for (const segment of path.segments) {
     if (current === null || current === undefined) return undefined;

@@ -3,9 +3,9 @@
  * compiled condition, rates failing findings (HRN), scores each hazard area and gives the verdict.
  *
  * Deterministic by construction: no clock, no randomness, findings in a fixed order (severity,
- * then the version's area order, then rule id; fixed when the version is compiled), and every
- * collection built in a stable order, so
- * the same input and version give byte-identical canonical JSON and the same SHA-256.
+ * then the version's area order, then rule id; fixed when the version is compiled) and every
+ * collection built in a stable order, so the same input and version give byte-identical
+ * canonical JSON and the same SHA-256.
  */
 import { areaScores } from './area-scores';
 import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset } from './compile';

@@ -6,15 +6,16 @@
  * refuses (a force trace sampled too slowly, an impossible operator layout) is listed as a
  * problem with its input path instead of failing the whole assessment.
  */
-import { assessEntrapmentProtection, type FittedDevice } from './calculators/entrapment-protection';
-import { EN12453_GAP_ZONE_MM, evaluateForceTrace } from './calculators/force-trace';
-import { ForceTraceError } from './calculators/force-trace-error';
 import { voltageDrop, type Awg, type ChargerSource } from './calculators/power-wiring';
 import { assessSignage } from './calculators/controls-signage';
-import { assessSwingOperatorGeometry } from './calculators/swing-geometry';
+import { refusal, type EvidenceProblem } from './evidence';
 import { POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS } from './fact-catalogue';
-import type { AssessmentInput, EntrapmentInput, ForceTest } from './input';
-import type { GateKind } from './vocabulary';
+import { entrapmentFacts } from './facts-entrapment';
+import { forceFacts } from './facts-force';
+import { geometryFacts } from './facts-geometry';
+import type { AssessmentInput } from './input';
+
+export type { EvidenceProblem } from './evidence';
 
 /** The nested, JSON-ready object conditions read with `{"var": "calc.force.worst.peakN"}`. */
 export interface Facts {
@@ -31,13 +32,6 @@ export interface Facts {
   };
 }
 
-/** Evidence a calculator refused, with the input path to fix. */
-export interface EvidenceProblem {
-  path: string;
-  code: string;
-  message: string;
-}
-
 export interface FactsResult {
   facts: Facts;
   problems: EvidenceProblem[];
@@ -52,18 +46,19 @@ const CHARGERS_BY_CHOICE: Readonly<Record<string, readonly ChargerSource[]>> = O
   both: ['transformer', 'solar'],
   none: [],
 });
-/** Gate kinds EN 12453 holds to 400 N whatever the gap: their tests count with the small-gap ones. */
-const FOUR_HUNDRED_NEWTON_KINDS: ReadonlySet<GateKind> = new Set(['barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot']);
 const MILLIMETRES_PER_METRE = 1000;
 
 /** Builds the facts for one input. Pure: same input, same facts. */
 export function buildFacts(input: AssessmentInput): FactsResult {
   const problems: EvidenceProblem[] = [];
   const answers: Record<string, string> = {};
-  for (const [key, answer] of Object.entries(input.answers ?? {})) answers[key] = answer.value;
-  for (const [key, choice] of Object.entries(input.choices ?? {})) answers[key] = choice.value;
+  const given = input.answers ?? {};
+  for (const key in given) answers[key] = (given[key] as { value: string }).value;
+  const choices = input.choices ?? {};
+  for (const key in choices) answers[key] = (choices[key] as { value: string }).value;
   const m: Record<string, number> = {};
-  for (const [key, measured] of Object.entries(input.measurements ?? {})) m[key] = measured.canonical;
+  const measurements = input.measurements ?? {};
+  for (const key in measurements) m[key] = (measurements[key] as { canonical: number }).canonical;
 
   const facts: Facts = { profile: profileFacts(input), site: { ...input.site }, answers, m, calc: {} };
   if (input.entrapment) facts.calc.entrapment = entrapmentFacts(input, input.entrapment);
@@ -96,141 +91,6 @@ function profileFacts(input: AssessmentInput): Record<string, unknown> {
   return profile;
 }
 
-function entrapmentFacts(input: AssessmentInput, e: EntrapmentInput): Record<string, unknown> {
-  const devices: Record<'opening' | 'closing', FittedDevice[]> = { opening: [], closing: [] };
-  for (const d of e.devices) devices[d.direction].push({ type: d.type, monitored: d.monitored });
-  const zones = { opening: e.zones.some((z) => z.direction === 'opening'), closing: e.zones.some((z) => z.direction === 'closing') };
-  const judged = assessEntrapmentProtection({
-    gateKind: input.profile.kind,
-    usageClass: input.profile.usageClass,
-    automaticClosing: input.profile.automaticClosing,
-    manufacturedOn: input.profile.operatorManufacturedOn ?? null,
-    edition: e.edition ?? null,
-    devices,
-    entrapmentZones: zones,
-  });
-  const facts: Record<string, unknown> = {
-    deviceCount: e.devices.length,
-    zonesWithoutExternalSensor: e.zones.filter(
-      (z) => !e.devices.some((d) => d.zone === z.zone && d.direction === z.direction && (d.type === 'B1' || d.type === 'B2')),
-    ).length,
-    unmonitoredExternal: e.devices.filter((d) => (d.type === 'B1' || d.type === 'B2') && !d.monitored).length,
-    typeDWithAutoClose: input.profile.automaticClosing && e.devices.some((d) => d.type === 'D'),
-  };
-  if (judged.applicableEdition) facts.rules2016 = judged.applicableEdition === '2016';
-  for (const direction of ['closing', 'opening'] as const) {
-    const pre = judged.byEdition['pre-2016'][direction];
-    const now = judged.byEdition['2016'][direction];
-    const external = e.devices.filter((d) => d.direction === direction && (d.type === 'B1' || d.type === 'B2'));
-    const side: Record<string, unknown> = {
-      zone: zones[direction],
-      countedTypes2016: now.countedTypes.length,
-      externalSensors: external.length,
-      monitoredSensors: external.filter((d) => d.monitored).length,
-    };
-    if (pre.compliant !== null) side.compliantPre2016 = pre.compliant;
-    if (now.compliant !== null) side.compliant2016 = now.compliant;
-    facts[direction] = side;
-  }
-  return facts;
-}
-
-interface ForceFigures {
-  peakN: number;
-  durationAbove150S: number;
-  staticN: number;
-  residualAt5sN: number;
-  smallGap: boolean;
-}
-
-/** A refusal found without running the trace calculator (no Error built: these are common and cheap to say). */
-interface Refused {
-  code: string;
-  message: string;
-}
-
-function forceFigures(kind: GateKind, test: ForceTest): ForceFigures | Refused {
-  if (test.samples) {
-    const r = evaluateForceTrace(test.samples, { gateKind: kind, gapMm: test.gapMm });
-    return {
-      peakN: r.peak,
-      durationAbove150S: r.durationAbove150,
-      staticN: r.staticForce,
-      residualAt5sN: r.residualAt5s,
-      smallGap: FOUR_HUNDRED_NEWTON_KINDS.has(kind) || r.zone !== 'gap_over_500',
-    };
-  }
-  if (test.gapMm < EN12453_GAP_ZONE_MM.min) {
-    return { code: 'gap_not_covered', message: `A ${test.gapMm} mm gap is below the ${EN12453_GAP_ZONE_MM.min} mm measuring point` };
-  }
-  const s = test.summary as NonNullable<ForceTest['summary']>;
-  return {
-    peakN: s.peakN,
-    durationAbove150S: s.durationAbove150S,
-    staticN: s.staticN,
-    residualAt5sN: s.residualAt5sN,
-    smallGap: FOUR_HUNDRED_NEWTON_KINDS.has(kind) || test.gapMm <= EN12453_GAP_ZONE_MM.max,
-  };
-}
-
-function forceFacts(kind: GateKind, tests: readonly ForceTest[], problems: EvidenceProblem[]): Record<string, unknown> {
-  const accepted: ForceFigures[] = [];
-  let rejected = 0;
-  tests.forEach((test, i) => {
-    try {
-      const figures = forceFigures(kind, test);
-      if ('code' in figures) {
-        rejected += 1;
-        problems.push({ path: `forceTests[${i}]`, code: figures.code, message: figures.message });
-      } else accepted.push(figures);
-    } catch (error) {
-      rejected += 1;
-      problems.push(refusal(`forceTests[${i}]`, error));
-    }
-  });
-  const facts: Record<string, unknown> = { testCount: accepted.length, rejectedTraces: rejected };
-  if (accepted.length === 0) return facts;
-  const max = (pick: (f: ForceFigures) => number, from: ForceFigures[] = accepted) => Math.max(...from.map(pick));
-  facts.worst = {
-    peakN: max((f) => f.peakN),
-    durationAbove150S: max((f) => f.durationAbove150S),
-    staticN: max((f) => f.staticN),
-    residualAt5sN: max((f) => f.residualAt5sN),
-  };
-  const small = accepted.filter((f) => f.smallGap);
-  const large = accepted.filter((f) => !f.smallGap);
-  if (small.length > 0) facts.smallGapMaxPeakN = max((f) => f.peakN, small);
-  if (large.length > 0) facts.largeGapMaxPeakN = max((f) => f.peakN, large);
-  return facts;
-}
-
-/**
- * The geometry sweep samples the whole swing and is by far the dearest calculator, while the
- * walk-through re-scores the same gate after every answer: recent layouts are remembered.
- */
-const GEOMETRY_MEMO_SIZE = 256;
-const geometryMemo = new Map<string, Record<string, unknown> | EvidenceProblem>();
-
-function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, problems: EvidenceProblem[]): Record<string, unknown> | null {
-  const key = [g.aMm, g.bMm, g.bracketFromHingeMm, g.retractedLengthMm, g.strokeMm, g.targetOpeningDeg, g.bracketOffsetMm, g.leafThicknessMm, g.operatorHalfWidthMm, g.operatorBodyLengthMm].join('|');
-  let found = geometryMemo.get(key);
-  if (!found) {
-    try {
-      const r = assessSwingOperatorGeometry(g);
-      found = { minClearanceMm: r.minClearanceMm, swingReachable: r.swingReachable, passesDeadCentre: r.passesDeadCentre, minLeverArmMm: r.minLeverArmMm };
-    } catch (error) {
-      found = refusal('swingGeometry', error);
-    }
-    if (geometryMemo.size >= GEOMETRY_MEMO_SIZE) geometryMemo.delete(geometryMemo.keys().next().value as string);
-    geometryMemo.set(key, found);
-  }
-  if ('code' in found && 'path' in found) {
-    problems.push({ ...(found as EvidenceProblem) });
-    return null;
-  }
-  return { ...found };
-}
-
 function powerFacts(answers: Record<string, string>, m: Record<string, number>, problems: EvidenceProblem[]): Record<string, unknown> | null {
   const facts: Record<string, unknown> = {};
   const k = POWER_INPUT_KEYS;
@@ -259,10 +119,4 @@ function signageFacts(m: Record<string, number>): Record<string, unknown> | null
   if (!Number.isInteger(side1) || !Number.isInteger(side2) || side1 < 0 || side2 < 0) return null;
   const total = assessSignage({ placardsGateSide1: side1, placardsGateSide2: side2 }).total.count;
   return total === null ? null : { totalPlacards: total };
-}
-
-function refusal(path: string, error: unknown): EvidenceProblem {
-  if (error instanceof ForceTraceError) return { path, code: error.code, message: error.message };
-  if (error instanceof RangeError) return { path, code: 'out_of_range', message: error.message };
-  throw error;
 }

@@ -38,13 +38,15 @@ const measured = new Set<string>(MEASURED_ANSWER_TYPES);
 export function checkInputAgainstRuleset(input: AssessmentInput, compiled: CompiledRuleset): InputIssue[] {
   const issues: InputIssue[] = [];
   const questions = compiled.questionByKey;
-  for (const [key, m] of Object.entries(input.measurements ?? {})) {
+  const measurements = input.measurements ?? {};
+  for (const key in measurements) {
     const q = questions.get(key);
     if (!q) continue;
+    const m = measurements[key] as { unit: string };
     if (!measured.has(q.answerType)) issues.push({ path: `measurements.${key}`, message: `"${key}" is answered as ${q.answerType}, not measured` });
     else if (kindOfUnit(m.unit) !== q.answerType) issues.push({ path: `measurements.${key}.unit`, message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it` });
   }
-  for (const key of Object.keys(input.answers ?? {})) {
+  for (const key in input.answers ?? {}) {
     const q = questions.get(key);
     if (q && q.answerType !== 'yes_no_na') issues.push({ path: `answers.${key}`, message: `"${key}" is answered as ${q.answerType}, not yes/no/na` });
   }

@@ -1,0 +1,50 @@
+/**
+ * Entrapment facts (`calc.entrapment.*`): the UL 325 judgement per direction under both regimes
+ * (pre-2016 table, 2016 two independent means), which regime applies to this operator, and the
+ * plain counts rules read (external sensors, unmonitored ones, zones no sensor watches).
+ */
+import { assessEntrapmentProtection, type FittedDevice } from './calculators/entrapment-protection';
+import type { AssessmentInput, EntrapmentInput } from './input';
+
+const isExternalSensor = (type: string): boolean => type === 'B1' || type === 'B2';
+
+/** The entrapment facts of one input that recorded its zones and devices. */
+export function entrapmentFacts(input: AssessmentInput, e: EntrapmentInput): Record<string, unknown> {
+  const devices: Record<'opening' | 'closing', FittedDevice[]> = { opening: [], closing: [] };
+  for (const d of e.devices) devices[d.direction].push({ type: d.type, monitored: d.monitored });
+  const zones = { opening: e.zones.some((z) => z.direction === 'opening'), closing: e.zones.some((z) => z.direction === 'closing') };
+  const judged = assessEntrapmentProtection({
+    gateKind: input.profile.kind,
+    usageClass: input.profile.usageClass,
+    automaticClosing: input.profile.automaticClosing,
+    manufacturedOn: input.profile.operatorManufacturedOn ?? null,
+    edition: e.edition ?? null,
+    devices,
+    entrapmentZones: zones,
+  });
+  const facts: Record<string, unknown> = {
+    deviceCount: e.devices.length,
+    zonesWithoutExternalSensor: e.zones.filter(
+      (z) => !e.devices.some((d) => d.zone === z.zone && d.direction === z.direction && isExternalSensor(d.type)),
+    ).length,
+    unmonitoredExternal: e.devices.filter((d) => isExternalSensor(d.type) && !d.monitored).length,
+    typeDWithAutoClose: input.profile.automaticClosing && e.devices.some((d) => d.type === 'D'),
+  };
+  if (judged.applicableEdition) facts.rules2016 = judged.applicableEdition === '2016';
+  for (const direction of ['closing', 'opening'] as const) {
+    const pre = judged.byEdition['pre-2016'][direction];
+    const now = judged.byEdition['2016'][direction];
+    const external = e.devices.filter((d) => d.direction === direction && isExternalSensor(d.type));
+    const side: Record<string, unknown> = {
+      zone: zones[direction],
+      countedTypes2016: now.countedTypes.length,
+      externalSensors: external.length,
+      monitoredSensors: external.filter((d) => d.monitored).length,
+    };
+    if (pre.compliant !== null) side.compliantPre2016 = pre.compliant;
+    if (now.compliant !== null) side.compliant2016 = now.compliant;
+    facts[direction] = side;
+  }
+  return facts;
+}
+
