@@ -131,7 +131,7 @@ export async function startAppServer(options: { port: number; host?: string; env
   const url = `http://${host}:${options.port}`;
   const deadline = Date.now() + 30_000;
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`server exited with ${child.exitCode}: ${stderr}`);
+    if (child.exitCode !== null || child.signalCode !== null) throw new Error(`server exited with ${child.exitCode ?? child.signalCode}: ${stderr}`);
     const ok = await fetch(`${url}/api/health`).then(() => true, () => false);
     if (ok) break;
     if (Date.now() > deadline) {
@@ -146,7 +146,8 @@ export async function startAppServer(options: { port: number; host?: string; env
     child,
     stop: () =>
       new Promise<void>((resolve) => {
-        if (child.exitCode !== null) return resolve();
+        // A child killed by a signal keeps exitCode null and sets signalCode instead.
+        if (child.exitCode !== null || child.signalCode !== null) return resolve();
         child.once('exit', () => resolve());
         child.kill('SIGTERM');
         setTimeout(() => child.kill('SIGKILL'), 5000).unref();
