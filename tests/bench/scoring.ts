@@ -75,6 +75,7 @@ function calibrationUs(): number {
 
 /** Runs the benchmark and returns its figures (also printed). */
 export async function runScoringBench(): Promise<ScoringBenchFigures> {
+  const calibration = calibrationUs();
   const rulesets = shippedRulesetFiles().map((file) => loadRulesetFile(readFileSync(file, 'utf8'), file));
   const cases = generateCases(rulesets);
 
@@ -138,7 +139,7 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     untranslatedRules: untranslated.length,
   };
 
-  console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; calibration ${calibrationUs()} µs per JSON.stringify of a 50-key object`);
+  console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; calibration ${calibration} µs per JSON.stringify of a 50-key object`);
   console.log(`Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`);
   console.log(`  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`);
   console.log(`  CPU time per assessment (mean, whole loop): ${figures.cpuMeanUs} µs`);

@@ -17,6 +17,7 @@ import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from '.
 import { truthy } from './json-logic-compile';
 import { explainMissing, isMissing } from './missing-info';
 import type { Finding, MissingItem, NeedsInfoItem, ScoreResult } from './result-types';
+import { factKeyOfQuestion } from './ruleset-references';
 import type { RulesetVersion } from './ruleset-schema';
 import { verdictOf } from './verdict';
 import type { Outcome } from './vocabulary';
@@ -140,27 +141,32 @@ function dedupe(items: MissingItem[]): MissingItem[] {
   return items.filter((item) => (seen.has(item.key) ? false : (seen.add(item.key), true)));
 }
 
+/** Where a needed item sorts: questions in walk order first, then derived facts by key. */
+const needRanks = new WeakMap<CompiledRuleset, Map<string, number>>();
+
+function needRank(key: string, compiled: CompiledRuleset): number {
+  let ranks = needRanks.get(compiled);
+  if (!ranks) {
+    const order = compiled.version.questions.map((q, i) => ({ fact: factKeyOfQuestion(q), section: compiled.sectionRank.get(q.section) ?? 0, i }));
+    order.sort((a, b) => a.section - b.section || a.i - b.i);
+    ranks = new Map(order.map((o, rank) => [o.fact, rank]));
+    needRanks.set(compiled, ranks);
+  }
+  return ranks.get(key) ?? Number.MAX_SAFE_INTEGER;
+}
+
 function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRuleset): NeedsInfoItem[] {
-  if (!findings.some((f) => f.missing.length > 0)) return [];
-  const byKey = new Map<string, NeedsInfoItem>();
+  let byKey: Map<string, NeedsInfoItem> | null = null;
   for (const f of findings) {
     for (const item of f.missing) {
-      const entry = byKey.get(item.key) ?? { key: item.key, prompt: item.prompt, ruleIds: [] };
+      byKey ??= new Map();
+      let entry = byKey.get(item.key);
+      if (!entry) byKey.set(item.key, (entry = { key: item.key, prompt: item.prompt, ruleIds: [] }));
       entry.ruleIds.push(f.ruleId);
-      byKey.set(item.key, entry);
     }
   }
-  const questionOrder = new Map(compiled.version.questions.map((q, i) => [q.key, i]));
-  const rank = (key: string): [number, number, number, string] => {
-    const q = compiled.questionByFact.get(key);
-    if (!q) return [1, 0, 0, key];
-    return [0, compiled.sectionRank.get(q.section) ?? 0, questionOrder.get(q.key) ?? 0, key];
-  };
+  if (!byKey) return [];
   const items = [...byKey.values()];
   for (const item of items) item.ruleIds.sort();
-  return items.sort((a, b) => {
-    const [ra, rb] = [rank(a.key), rank(b.key)];
-    for (let i = 0; i < 3; i++) if (ra[i] !== rb[i]) return (ra[i] as number) - (rb[i] as number);
-    return ra[3] < rb[3] ? -1 : ra[3] > rb[3] ? 1 : 0;
-  });
+  return items.sort((a, b) => needRank(a.key, compiled) - needRank(b.key, compiled) || (a.key < b.key ? -1 : a.key > b.key ? 1 : 0));
 }

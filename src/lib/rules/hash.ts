@@ -22,7 +22,7 @@ function write(value: unknown): string {
   if (value === null) return 'null';
   switch (typeof value) {
     case 'string':
-      return JSON.stringify(value);
+      return value.length <= SHORT_STRING ? quoted(value) : JSON.stringify(value);
     case 'boolean':
       return value ? 'true' : 'false';
     case 'number':
@@ -45,7 +45,10 @@ function writeArray(items: readonly unknown[]): string {
   return out + ']';
 }
 
-/** Quoted keys, remembered: the same few dozen keys recur in every input and result. */
+/** Strings up to this length are remembered quoted (keys, units, yes/no answers, outcomes recur constantly). */
+const SHORT_STRING = 24;
+
+/** Quoted keys and short values, remembered: the same few hundred recur in every input and result. */
 const quotedKeys = new Map<string, string>();
 const QUOTED_KEYS_LIMIT = 4096;
 
