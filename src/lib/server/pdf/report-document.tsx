@@ -285,7 +285,7 @@ function Photos({ photos, model }: { photos: ReportPhoto[]; model: ReportModel }
         const height = Math.min(150, (150 * photo.height) / Math.max(1, photo.width));
         return (
           <View key={`${photo.itemKey}-${i}`} style={styles.photo} wrap={false}>
-            <Image src={{ data: photo.data, format: photo.format }} style={{ width: 150, height, objectFit: 'cover' }} />
+            <Image src={photo.data} style={{ width: 150, height, objectFit: 'cover' }} />
             <Text style={styles.mono}>
               {pdfText(
                 [photo.caption, photo.takenAt ? formatDateTime(photo.takenAt, model.organisation.timeZone) : null].filter(Boolean).join(' · ') || photo.itemKey,
@@ -325,7 +325,7 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
       <View style={styles.signatureBlock}>
         <Text style={styles.label}>Acknowledged by the owner</Text>
         <View style={styles.signatureLine}>
-          {owner?.imagePng ? <Image src={{ data: owner.imagePng, format: 'png' }} style={{ height: 50, objectFit: 'contain' }} /> : null}
+          {owner?.imagePng ? <Image src={owner.imagePng} style={{ height: 50, objectFit: 'contain' }} /> : null}
           {owner && !owner.imagePng ? (
             <Text
               style={{
