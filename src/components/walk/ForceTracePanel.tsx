@@ -53,8 +53,8 @@ function Row({ label, value, limit, pass }: { label: string; value: string; limi
   return (
     <tr className="border-t border-iron-100">
       <th scope="row" className="py-1.5 pr-2 text-left font-normal text-iron-700">{label}</th>
-      <td className="py-1.5 pr-2 text-right font-semibold tabular-nums">{value}</td>
-      <td className="py-1.5 pr-2 text-right text-iron-600 tabular-nums">{limit}</td>
+      <td className="py-1.5 pr-2 text-right font-semibold whitespace-nowrap tabular-nums">{value}</td>
+      <td className="py-1.5 pr-2 text-right whitespace-nowrap text-iron-600 tabular-nums">{limit}</td>
       <td className={`py-1.5 text-right font-bold ${pass ? 'text-clear' : 'text-withdraw'}`}>{pass ? 'Pass' : 'Fail'}</td>
     </tr>
   );

@@ -54,7 +54,7 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
         options={options.map((o) => ({ value: o.value, label: o.label }))}
         value={answer?.value}
         disabled={!editable}
-        columns={options.some((o) => o.label.length > 14) ? 1 : 2}
+        columns={options.some((o) => o.label.length > 22) ? 1 : 2}
         onChange={setAnswer}
       />
     );

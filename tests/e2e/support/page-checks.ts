@@ -13,14 +13,18 @@ import { desktopViewport, phoneViewport } from './browser';
 
 export const screenshotsDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../screenshots');
 
-/** Serious and critical violations, one readable line each (rule, impact, first targets). */
-export async function seriousAxeViolations(page: Page, exclude: string[] = []): Promise<string[]> {
+/**
+ * Serious and critical violations, one readable line each (rule, impact, first targets).
+ * `include` limits the check to the part of the page a step changed (the whole page is
+ * checked when it first loads).
+ */
+export async function seriousAxeViolations(page: Page, include: string[] = []): Promise<string[]> {
   let builder = new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'best-practice']);
-  for (const selector of exclude) builder = builder.exclude(selector);
+  for (const selector of include) builder = builder.include(selector);
   const { violations } = await builder.analyze();
   return violations
     .filter((v) => v.impact === 'serious' || v.impact === 'critical')
-    .map((v) => `${v.id} (${v.impact}): ${v.help} — ${v.nodes.slice(0, 3).map((n) => n.target.join(' ')).join(' | ')}`);
+    .map((v) => `${v.id} (${v.impact}): ${v.help} — ${v.nodes.slice(0, 3).map((n) => `${n.target.join(' ')} ${n.html.slice(0, 100)} [${(n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 160)}]`).join(' | ')}`);
 }
 
 async function savePng(buffer: Buffer, file: string): Promise<void> {
@@ -38,6 +42,7 @@ export async function screenshotBothWidths(page: Page, name: string, options: { 
     await page.setViewportSize(viewport);
     // A new width reflows the page: bring the part being shown back to the top.
     if (options.focus) await page.locator(options.focus).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await page.evaluate(() => window.scrollTo(0, window.scrollY));
     await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
     const buffer = await page.screenshot({ fullPage: options.fullPage ?? false, animations: 'disabled', caret: 'hide' });
     await savePng(buffer, path.join(screenshotsDir, `${name}-${viewport.width}.png`));
