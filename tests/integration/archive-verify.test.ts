@@ -36,7 +36,7 @@ function sha(bytes: Buffer): string {
 
 function pdfForm(bytes: Buffer): FormData {
   const form = new FormData();
-  form.set('file', new Blob([bytes], { type: 'application/pdf' }), 'report.pdf');
+  form.set('file', new Blob([new Uint8Array(bytes)], { type: 'application/pdf' }), 'report.pdf');
   return form;
 }
 
@@ -48,7 +48,7 @@ describe('public verification', () => {
 
   it('confirms by document id, and by the raw PDF body', async () => {
     expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`))).toMatchObject({ match: true, organisation: org.name });
-    const raw = await anonymousClient().fetch('/api/verify', { method: 'POST', headers: { 'content-type': 'application/pdf' }, body: signed.pdf! });
+    const raw = await anonymousClient().fetch('/api/verify', { method: 'POST', headers: { 'content-type': 'application/pdf' }, body: new Uint8Array(signed.pdf!) });
     expect(await expectJson(raw)).toMatchObject({ match: true, documentId: signed.documentId });
   });
 

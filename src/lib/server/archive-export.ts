@@ -14,7 +14,7 @@ import { Readable } from 'node:stream';
 import { ZipArchive } from 'archiver';
 import type { Knex } from 'knex';
 import type { ArchiveFilter } from '@/lib/api/archive';
-import { applyArchiveFilter, archiveBase, archiveDateSql } from './archive-filters';
+import { applyArchiveFilter, archiveBase, archiveDateSql, archiveLookups } from './archive-filters';
 import { csvRow } from './csv';
 import { db } from './db';
 import { iso } from './listing';
@@ -46,10 +46,13 @@ const BATCH = 500;
 
 /** The signed reports matching `filter` and signed no later than `cutoff`, newest first, in batches. */
 export async function* signedReportsFor(organisationId: string, timeZone: string, filter: ArchiveFilter, cutoff: string, knex: Knex = db()): AsyncGenerator<ExportRow> {
+  const filtered = archiveBase(knex, organisationId);
+  await applyArchiveFilter(filtered, knex, organisationId, filter, timeZone);
   let after: { key: string; id: string } | null = null;
   for (;;) {
-    const query = applyArchiveFilter(archiveBase(knex, organisationId), knex, organisationId, filter, timeZone)
-      .whereNotNull('d.id')
+    const query = filtered
+      .clone()
+      .join('documents as d', (j: Knex.JoinClause) => j.on('d.assessment_id', 'a.id').andOnVal('d.kind', 'signed_report'))
       .andWhere('d.created_at', '<=', cutoff);
     if (after) query.andWhereRaw(`(${archiveDateSql}, a.id) < (?::timestamptz, ?::uuid)`, [after.key, after.id]);
     const rows = (await query
@@ -67,9 +70,7 @@ export async function* signedReportsFor(organisationId: string, timeZone: string
         's.usage_class',
         'g.label as gate_label',
         'g.kind as gate_kind',
-        'u.name as auditor_name',
-        'r.family',
-        'rv.version',
+        ...archiveLookups(knex),
         'd.id as document_id',
         'd.sha256',
         'd.size_bytes',

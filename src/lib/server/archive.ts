@@ -6,7 +6,7 @@
  */
 import type { Knex } from 'knex';
 import type { ArchiveFilter, ArchiveItem, ArchiveListQuery, ArchivePage, ArchiveSort } from '@/lib/api/archive';
-import { applyArchiveFilter, archiveBase, archiveDateSql } from './archive-filters';
+import { applyArchiveFilter, archiveBase, archiveDateSql, archiveLookups } from './archive-filters';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { iso } from './listing';
@@ -34,6 +34,8 @@ interface ArchiveRow {
   signed_document_id: string | null;
   /** The sort value as PostgreSQL text, so a cursor keeps microseconds exactly. */
   sort_key: string;
+  /** Parent sorts: the client or gate the row was reached through. */
+  parent_id: string | null;
 }
 
 export const archiveColumns = (knex: Knex) => [
@@ -52,14 +54,12 @@ export const archiveColumns = (knex: Knex) => [
   'g.id as gate_id',
   'g.label as gate_label',
   'g.kind as gate_kind',
-  'u.id as auditor_id',
-  'u.name as auditor_name',
-  'r.family',
-  'rv.version',
-  'd.id as signed_document_id',
+  'a.auditor_id',
+  ...archiveLookups(knex),
+  knex.raw(`(select d.id from documents d where d.assessment_id = a.id and d.kind = 'signed_report') as signed_document_id`),
 ];
 
-export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key'>): ArchiveItem {
+export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key' | 'parent_id'>): ArchiveItem {
   return {
     id: row.id,
     status: row.status,
@@ -75,31 +75,36 @@ export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key'>): ArchiveItem {
   };
 }
 
-interface SortPlan {
-  /** SQL of the sort value (first key); the assessment id is always the second. */
-  expression: string;
-  /** Cast a cursor's text value back to the column's type. */
-  cast: string;
-  direction: 'asc' | 'desc';
-}
+/**
+ * How each sort is read. By date, the assessments' own (organisation, date, id) index gives the
+ * order. By client or gate, the parent rows are walked in name order (their own index) and each
+ * one's assessments joined in by id, so a page costs a few parents, not a sort of the archive.
+ */
+type SortPlan =
+  | { kind: 'date'; direction: 'asc' | 'desc' }
+  | { kind: 'parent'; direction: 'asc' | 'desc'; table: 'clients' | 'gates'; key: 'name' | 'label'; link: string };
 
 const sortPlans: Record<ArchiveSort, SortPlan> = {
-  '-date': { expression: archiveDateSql, cast: 'timestamptz', direction: 'desc' },
-  date: { expression: archiveDateSql, cast: 'timestamptz', direction: 'asc' },
-  client: { expression: 'c.name', cast: 'text', direction: 'asc' },
-  '-client': { expression: 'c.name', cast: 'text', direction: 'desc' },
-  gate: { expression: 'g.label', cast: 'text', direction: 'asc' },
-  '-gate': { expression: 'g.label', cast: 'text', direction: 'desc' },
+  '-date': { kind: 'date', direction: 'desc' },
+  date: { kind: 'date', direction: 'asc' },
+  client: { kind: 'parent', direction: 'asc', table: 'clients', key: 'name', link: 's.client_id' },
+  '-client': { kind: 'parent', direction: 'desc', table: 'clients', key: 'name', link: 's.client_id' },
+  gate: { kind: 'parent', direction: 'asc', table: 'gates', key: 'label', link: 'a.gate_id' },
+  '-gate': { kind: 'parent', direction: 'desc', table: 'gates', key: 'label', link: 'a.gate_id' },
 };
 
+/** Where a page starts: after (or before) this row in the sort. */
 interface Cursor {
   sort: ArchiveSort;
+  /** Date sorts: the date as PostgreSQL text (microseconds kept). Parent sorts: the parent's name. */
   value: string;
+  /** Parent sorts: the client or gate id, tie-breaker between equal names. */
+  parentId: string | null;
   id: string;
 }
 
 export function encodeCursor(cursor: Cursor): string {
-  return Buffer.from(JSON.stringify([cursor.sort, cursor.value, cursor.id]), 'utf8').toString('base64url');
+  return Buffer.from(JSON.stringify([cursor.sort, cursor.value, cursor.parentId, cursor.id]), 'utf8').toString('base64url');
 }
 
 /** timestamptz as PostgreSQL writes it: `2026-11-20 09:15:02.123456+00`. */
@@ -115,12 +120,18 @@ export function decodeCursor(text: string, sort: ArchiveSort, field: 'after' | '
     parsed = null;
   }
   const bad = (message: string) => new HttpProblem(400, 'Some query parameters are invalid.', { errors: [{ field, message }] });
-  if (!Array.isArray(parsed) || parsed.length !== 3 || !parsed.every((p) => typeof p === 'string')) throw bad('is not a cursor from this list');
-  const [cursorSort, value, id] = parsed as [string, string, string];
+  if (!Array.isArray(parsed) || parsed.length !== 4) throw bad('is not a cursor from this list');
+  const [cursorSort, value, parentId, id] = parsed as unknown[];
   if (cursorSort !== sort) throw bad('belongs to another sort order; start again from the first page');
-  if (!uuidPattern.test(id) || value.length > 300) throw bad('is not a cursor from this list');
-  if (sortPlans[sort].cast === 'timestamptz' && !timestampText.test(value)) throw bad('is not a cursor from this list');
-  return { sort, value, id };
+  const plan = sortPlans[sort];
+  const valid =
+    typeof value === 'string' &&
+    value.length <= 300 &&
+    typeof id === 'string' &&
+    uuidPattern.test(id) &&
+    (plan.kind === 'date' ? parentId === null && timestampText.test(value) : typeof parentId === 'string' && uuidPattern.test(parentId));
+  if (!valid) throw bad('is not a cursor from this list');
+  return { sort, value: value as string, parentId: parentId as string | null, id: id as string };
 }
 
 /** One page of the archive in the requested sort, before or after a cursor. */
@@ -130,20 +141,40 @@ export async function listArchive(organisationId: string, timeZone: string, quer
   const cursor = query.after ? decodeCursor(query.after, query.sort, 'after') : query.before ? decodeCursor(query.before, query.sort, 'before') : null;
   // Reading backwards walks the opposite order from the cursor, then turns the page round.
   const direction = backwards ? (plan.direction === 'asc' ? 'desc' : 'asc') : plan.direction;
-  const base = applyArchiveFilter(archiveBase(knex, organisationId), knex, organisationId, query, timeZone);
-  if (cursor) {
-    const comparison = direction === 'asc' ? '>' : '<';
-    base.andWhereRaw(`(${plan.expression}, a.id) ${comparison} (?::${plan.cast}, ?::uuid)`, [cursor.value, cursor.id]);
+  const comparison = direction === 'asc' ? '>' : '<';
+  const base = archiveBase(knex, organisationId);
+  await applyArchiveFilter(base, knex, organisationId, query, timeZone);
+  let rows: ArchiveRow[];
+  if (plan.kind === 'date') {
+    if (cursor) base.andWhereRaw(`(${archiveDateSql}, a.id) ${comparison} (?::timestamptz, ?::uuid)`, [cursor.value, cursor.id]);
+    rows = (await base
+      .select([...archiveColumns(knex), knex.raw(`(${archiveDateSql})::text as sort_key`), knex.raw('null::uuid as parent_id')])
+      .orderByRaw(`${archiveDateSql} ${direction}, a.id ${direction}`)
+      .limit(query.limit + 1)) as ArchiveRow[];
+  } else {
+    const parents = knex(plan.table).where('organisation_id', organisationId).select('id', `${plan.key} as key`).orderByRaw(`${plan.key} ${direction}, id ${direction}`);
+    if (cursor) {
+      parents.andWhereRaw(`(${plan.key}, id) ${comparison}= (?, ?::uuid)`, [cursor.value, cursor.parentId]);
+      base.andWhereRaw(`((p.key, p.id) ${comparison} (?, ?::uuid) or a.id ${comparison} ?::uuid)`, [cursor.value, cursor.parentId, cursor.id]);
+    }
+    const perParent = base
+      .andWhereRaw(`${plan.link} = p.id`)
+      .select([...archiveColumns(knex), knex.raw('p.key as sort_key'), knex.raw('p.id as parent_id')])
+      .orderBy('a.id', direction)
+      .limit(query.limit + 1);
+    // Parents come in name order from their index, so the sort below only orders rows within one parent.
+    rows = (await knex
+      .select('x.*')
+      .from(parents.as('p'))
+      .joinRaw('cross join lateral (?) x', [perParent as unknown as Knex.Value])
+      .orderByRaw(`p.key ${direction}, p.id ${direction}, x.id ${direction}`)
+      .limit(query.limit + 1)) as ArchiveRow[];
   }
-  const rows = (await base
-    .select([...archiveColumns(knex), knex.raw(`(${plan.expression})::text as sort_key`)])
-    .orderByRaw(`${plan.expression} ${direction}, a.id ${direction}`)
-    .limit(query.limit + 1)) as ArchiveRow[];
 
   const more = rows.length > query.limit;
   const page = rows.slice(0, query.limit);
   if (backwards) page.reverse();
-  const cursorOf = (row: ArchiveRow | undefined) => (row ? encodeCursor({ sort: query.sort, value: row.sort_key, id: row.id }) : null);
+  const cursorOf = (row: ArchiveRow | undefined) => (row ? encodeCursor({ sort: query.sort, value: row.sort_key, parentId: row.parent_id, id: row.id }) : null);
   const hasNext = backwards ? true : more;
   const hasPrev = backwards ? more : Boolean(cursor);
   return {
@@ -155,7 +186,8 @@ export async function listArchive(organisationId: string, timeZone: string, quer
 
 /** How many assessments the filter matches. */
 export async function countArchive(organisationId: string, timeZone: string, filter: ArchiveFilter, knex: Knex = db()): Promise<number> {
-  const base = applyArchiveFilter(archiveBase(knex, organisationId), knex, organisationId, filter, timeZone);
+  const base = archiveBase(knex, organisationId);
+  await applyArchiveFilter(base, knex, organisationId, filter, timeZone);
   const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
   return Number(total);
 }

@@ -18,10 +18,12 @@ import type { ImpactBasis, ImpactOutcome, ImpactReport, ImpactTarget, Responsibl
 import { AssessmentInputError, scoreParsed, type Finding, type LoadedRuleset, type RulesetVersion } from '@/lib/rules';
 import type { AssessmentDocuments, GateForScoring } from './assessment-input';
 import { buildEngineInput } from './assessment-input';
+import { archivedEngineInput } from './archived-input';
 import { archiveDateSql } from './archive-filters';
 import { csvRow } from './csv';
 import { db } from './db';
 import { iso } from './listing';
+import { startRescorePool } from './impact-workers';
 import { loadedRuleset } from './ruleset-cache';
 
 type Verdict = 'clear' | 'remedy' | 'withdraw';
@@ -45,8 +47,6 @@ interface ImpactRow {
   measurements: AssessmentDocuments['measurements'];
   observations: AssessmentDocuments['observations'];
   gate_snapshot: (Partial<GateForScoring> & { site?: { usageClass?: number } }) | null;
-  /** ruleId -> [outcome, severity] in the signed result. */
-  old_outcomes: Record<string, [ResponsibleRule['before'], Finding['severity']]> | null;
 }
 
 /** The published version `versionId` (a shipped family, or the organisation's own) and its family's other versions. */
@@ -111,9 +111,51 @@ function verdictDrivers(findings: readonly Finding[], verdict: Verdict): Finding
 
 const SEVERITY_RANK = { critical: 0, major: 1, minor: 2 } as const;
 
-/** Re-scores one stored assessment against the target version. */
-export function rescore(row: ImpactRow, target: LoadedRuleset, fromVersion: string): ImpactOutcome {
-  const base: Omit<ImpactOutcome, 'after' | 'change' | 'rules'> = {
+/** A finding behind a worse verdict, before it is compared with the signed result. */
+type Driver = Pick<Finding, 'ruleId' | 'title' | 'area' | 'severity' | 'outcome'>;
+
+/** The new verdict of one stored assessment, or why it could not be had. */
+function rescoreVerdict(row: ImpactRow, target: LoadedRuleset): { after: Verdict; drivers: Driver[] } | { problem: string } {
+  const gate = gateForScoring(row.gate_snapshot);
+  if (!gate) return { problem: 'the gate as scored was not recorded' };
+  const documents = { answers: row.answers ?? {}, measurements: row.measurements ?? {}, observations: row.observations ?? {} };
+  const questions = (target.version as RulesetVersion).questions;
+  let result: ReturnType<typeof scoreParsed>;
+  try {
+    result = scoreParsed(archivedEngineInput(gate, documents, questions), target);
+  } catch (error) {
+    if (error instanceof AssessmentInputError) return { problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
+    // Not the shape it was signed with after all: take the validating road for a proper answer.
+    const built = buildEngineInput(gate, documents, questions);
+    if (!built.ok) return { problem: built.errors.map((e) => `${e.field}: ${e.message}`).join('; ') };
+    try {
+      result = scoreParsed(built.value, target);
+    } catch (again) {
+      if (again instanceof AssessmentInputError) return { problem: again.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
+      throw again;
+    }
+  }
+  const drivers = VERDICT_RANK[result.verdict] > VERDICT_RANK[row.verdict] ? verdictDrivers(result.findings, result.verdict) : [];
+  return { after: result.verdict, drivers: drivers.map(({ ruleId, title, area, severity, outcome }) => ({ ruleId, title, area, severity, outcome })) };
+}
+
+type OldOutcomes = Record<string, [ResponsibleRule['before'], Finding['severity']]>;
+
+/** The rules responsible: drivers that were not already failing at this severity or worse when signed. */
+function responsibleRules(drivers: Driver[], old: OldOutcomes): ResponsibleRule[] {
+  return drivers
+    .filter((f) => {
+      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
+      return !(outcome === f.outcome && severity !== null && SEVERITY_RANK[severity] <= SEVERITY_RANK[f.severity]);
+    })
+    .map((f) => {
+      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
+      return { ruleId: f.ruleId, title: f.title, area: f.area, severity: f.severity, outcome: f.outcome as 'fail' | 'needs_info', before: outcome, beforeSeverity: severity };
+    });
+}
+
+function baseOutcome(row: ImpactRow, fromVersion: string): Omit<ImpactOutcome, 'after' | 'change' | 'rules'> {
+  return {
     assessmentId: row.id,
     gateId: row.gate_id,
     gateLabel: row.gate_label,
@@ -126,47 +168,53 @@ export function rescore(row: ImpactRow, target: LoadedRuleset, fromVersion: stri
     fromVersion,
     before: row.verdict,
   };
-  const gate = gateForScoring(row.gate_snapshot);
-  if (!gate) return { ...base, after: null, change: 'unscorable', rules: [], problem: 'the gate as scored was not recorded' };
-  const built = buildEngineInput(gate, { answers: row.answers ?? {}, measurements: row.measurements ?? {}, observations: row.observations ?? {} }, (target.version as RulesetVersion).questions);
-  if (!built.ok) return { ...base, after: null, change: 'unscorable', rules: [], problem: built.errors.map((e) => `${e.field}: ${e.message}`).join('; ') };
-  let findings: Finding[];
-  let after: Verdict;
-  try {
-    const result = scoreParsed(built.value, target);
-    findings = result.findings;
-    after = result.verdict;
-  } catch (error) {
-    if (!(error instanceof AssessmentInputError)) throw error;
-    return { ...base, after: null, change: 'unscorable', rules: [], problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
-  }
-  const delta = VERDICT_RANK[after] - VERDICT_RANK[row.verdict];
-  if (delta <= 0) return { ...base, after, change: delta < 0 ? 'better' : 'same', rules: [] };
-  const old = row.old_outcomes ?? {};
-  const rules = verdictDrivers(findings, after)
-    .filter((f) => {
-      // Responsible: it was not already failing at this severity or worse.
-      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
-      return !(outcome === f.outcome && severity !== null && SEVERITY_RANK[severity] <= SEVERITY_RANK[f.severity]);
-    })
-    .map((f) => {
-      const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
-      return { ruleId: f.ruleId, title: f.title, area: f.area, severity: f.severity, outcome: f.outcome as 'fail' | 'needs_info', before: outcome, beforeSeverity: severity };
-    });
-  return { ...base, after, change: 'worse', rules };
+}
+
+/** How each rule stood in the signed results of these assessments (read only for the few that got worse). */
+async function oldOutcomesOf(knex: Knex, ids: string[]): Promise<Map<string, OldOutcomes>> {
+  if (!ids.length) return new Map();
+  const rows = await knex('assessments as a')
+    .whereIn('a.id', ids)
+    .select(
+      'a.id',
+      knex.raw(`(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`),
+    );
+  return new Map(rows.map((r: { id: string; old_outcomes: OldOutcomes | null }) => [r.id, r.old_outcomes ?? {}]));
+}
+
+/** Re-scores stored assessments against the target version. */
+export async function rescoreRows(knex: Knex, rows: ImpactRow[], target: LoadedRuleset, fromVersion: string): Promise<ImpactOutcome[]> {
+  const scored = rows.map((row) => ({ row, verdict: rescoreVerdict(row, target) }));
+  const worse = scored.filter((s) => 'after' in s.verdict && VERDICT_RANK[s.verdict.after] > VERDICT_RANK[s.row.verdict]).map((s) => s.row.id);
+  const old = await oldOutcomesOf(knex, worse);
+  return scored.map(({ row, verdict }) => {
+    const base = baseOutcome(row, fromVersion);
+    if ('problem' in verdict) return { ...base, after: null, change: 'unscorable', rules: [], problem: verdict.problem };
+    const delta = VERDICT_RANK[verdict.after] - VERDICT_RANK[row.verdict];
+    if (delta <= 0) return { ...base, after: verdict.after, change: delta < 0 ? 'better' : 'same', rules: [] };
+    return { ...base, after: verdict.after, change: 'worse', rules: responsibleRules(verdict.drivers, old.get(row.id) ?? {}) };
+  });
 }
 
 const BATCH = 1000;
 
-function rowsOf(knex: Knex, organisationId: string, target: ImpactTarget, versionId: string, basis: ImpactBasis, afterId: string | null): Knex.QueryBuilder {
+/** One slice of the work: a version's candidate assessments with ids in (afterId, upToId]. */
+export interface ImpactSlice {
+  organisationId: string;
+  target: ImpactTarget;
+  versionId: string;
+  fromVersion: string;
+  basis: ImpactBasis;
+  afterId: string | null;
+  upToId: string;
+}
+
+/** The signed assessments of one version the impact considers (see the module comment for `basis`). */
+function candidates(knex: Knex, organisationId: string, target: ImpactTarget, versionId: string, basis: ImpactBasis): Knex.QueryBuilder {
   const familyVersionIds = [target.id, ...target.otherVersions.map((v) => v.id)];
   const query = knex('assessments as a')
-    .join('gates as g', 'g.id', 'a.gate_id')
-    .join('sites as s', 's.id', 'g.site_id')
-    .join('clients as c', 'c.id', 's.client_id')
     .where({ 'a.organisation_id': organisationId, 'a.ruleset_version_id': versionId, 'a.status': 'signed' })
     .whereNotNull('a.verdict');
-  if (afterId) query.andWhere('a.id', '>', afterId);
   if (basis === 'latest') {
     // The gate's most recent signed assessment of this family is this one.
     query.whereNotExists(
@@ -178,51 +226,102 @@ function rowsOf(knex: Knex, organisationId: string, target: ImpactTarget, versio
         .select(knex.raw('1')),
     );
   }
-  return query
-    .orderBy('a.id')
-    .limit(BATCH)
-    .select(
-      'a.id',
-      'a.gate_id',
-      'g.label as gate_label',
-      'g.kind as gate_kind',
-      'c.name as client_name',
-      's.address_line1',
-      's.city',
-      knex.raw(`${archiveDateSql} as archive_date`),
-      'a.signed_at',
-      'a.verdict',
-      'a.answers',
-      'a.measurements',
-      'a.observations',
-      'a.gate_snapshot',
-      knex.raw(
-        `(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`,
-      ),
-    );
+  return query;
 }
+
+/** Slices of at most BATCH candidates each, found by reading ids only (keyset, id order). */
+async function* slicesOf(knex: Knex, organisationId: string, target: ImpactTarget, basis: ImpactBasis): AsyncGenerator<ImpactSlice> {
+  for (const from of target.otherVersions) {
+    let afterId: string | null = null;
+    for (;;) {
+      const query = candidates(knex, organisationId, target, from.id, basis);
+      if (afterId) query.andWhere('a.id', '>', afterId);
+      const [last] = (await knex.from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page')).orderBy('id', 'desc').limit(1).select('id')) as { id: string }[];
+      if (!last) break;
+      yield { organisationId, target, versionId: from.id, fromVersion: from.version, basis, afterId, upToId: last.id };
+      afterId = last.id;
+    }
+  }
+}
+
+/** The rows of one slice, with what re-scoring and listing need. */
+async function rowsOf(knex: Knex, slice: ImpactSlice): Promise<ImpactRow[]> {
+  const query = candidates(knex, slice.organisationId, slice.target, slice.versionId, slice.basis)
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .andWhere('a.id', '<=', slice.upToId);
+  if (slice.afterId) query.andWhere('a.id', '>', slice.afterId);
+  return (await query.orderBy('a.id').select(
+    'a.id',
+    'a.gate_id',
+    'g.label as gate_label',
+    'g.kind as gate_kind',
+    'c.name as client_name',
+    's.address_line1',
+    's.city',
+    knex.raw(`${archiveDateSql} as archive_date`),
+    'a.signed_at',
+    'a.verdict',
+    'a.answers',
+    'a.measurements',
+    'a.observations',
+    'a.gate_snapshot',
+  )) as ImpactRow[];
+}
+
+/** Reads and re-scores one slice in this thread (also what each worker thread runs). */
+export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promise<ImpactOutcome[]> {
+  const [loaded, rows] = await Promise.all([loadTarget(knex, slice.target.id), rowsOf(knex, slice)]);
+  return rescoreRows(knex, rows, loaded, slice.fromVersion);
+}
+
+// Worker threads find rescoreSlice here after importing this module (see impact-workers.ts).
+(globalThis as Record<symbol, unknown>)[Symbol.for('latchwell.impact.rescoreSlice')] = rescoreSlice;
 
 const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 /**
  * Re-scores the archive against `target`, one outcome per assessment considered, as an async
- * stream: callers count, list or write CSV without holding the whole archive.
+ * stream: callers count, list or write CSV without holding the whole archive. Large archives are
+ * spread over worker threads (impact-workers.ts), each reading and scoring its own slices; a
+ * few slices run here, one at a time, yielding to the event loop in between.
  */
 export async function* rescoreArchive(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db()): AsyncGenerator<ImpactOutcome> {
-  const loaded = await loadTarget(knex, target.id);
-  for (const from of target.otherVersions) {
-    let afterId: string | null = null;
+  const slices = slicesOf(knex, organisationId, target, basis);
+  const first = await slices.next();
+  if (first.done) return;
+  const second = await slices.next();
+  if (second.done) {
+    yield* await rescoreSlice(first.value, knex);
+    return;
+  }
+  const pool = await startRescorePool(import.meta.url);
+  try {
+    // Up to two slices per worker in flight (the next ids are read meanwhile); results come back in slice order.
+    const limit = pool ? pool.size * 2 : 1;
+    const inFlight: Promise<ImpactOutcome[]>[] = [];
+    const start = (slice: ImpactSlice) => {
+      const work = pool ? pool.run(slice) : rescoreSlice(slice, knex);
+      work.catch(() => {}); // awaited below; this only keeps an abandoned one from being "unhandled"
+      inFlight.push(work);
+    };
+    start(first.value);
+    let next: IteratorResult<ImpactSlice> = second;
     for (;;) {
-      const rows = (await rowsOf(knex, organisationId, target, from.id, basis, afterId)) as ImpactRow[];
-      if (!rows.length) break;
-      for (const row of rows) yield rescore(row, loaded, from.version);
-      afterId = rows[rows.length - 1]!.id;
-      if (rows.length < BATCH) break;
-      await yieldToEventLoop();
+      while (!next.done && inFlight.length < limit) {
+        start(next.value);
+        next = await slices.next();
+      }
+      const oldest = inFlight.shift();
+      if (!oldest) break;
+      yield* await oldest;
+      if (!pool) await yieldToEventLoop();
     }
+  } finally {
+    await pool?.close();
   }
 }
-
 
 const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
   VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] || a.clientName.localeCompare(b.clientName) || a.gateLabel.localeCompare(b.gateLabel) || a.assessmentId.localeCompare(b.assessmentId);
