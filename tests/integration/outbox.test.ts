@@ -152,6 +152,8 @@ describe('the outbox while SMTP is down', () => {
     expect(['queued', 'sending']).toContain(status.messages[0].status);
     expect(status.messages[0].attempts).toBeGreaterThanOrEqual(2);
     expect(status.messages[0].lastError).toBeTruthy();
+    const page = await (await send(`/assessments/${assessment.assessmentId}/report`)).text();
+    expect(page).toContain('Queued: waiting for the mail server');
   });
 
   it('delivers the queued message once SMTP comes back, and nothing is lost or sent twice', async () => {
@@ -171,6 +173,7 @@ describe('the outbox while SMTP is down', () => {
     const status = await (await send(`/api/assessments/${assessment.assessmentId}/signing`)).json();
     expect(status.messages[0].status).toBe('sent');
     expect(status.messages[0].sentAt).toBeTruthy();
+    expect(await (await send(`/assessments/${assessment.assessmentId}/report`)).text()).toContain('data-message-status="sent"');
     // Still one message after a few more polls.
     await new Promise((r) => setTimeout(r, 800));
     expect(((await (await fetch(`http://127.0.0.1:${httpPort}/messages`)).json()) as unknown[]).length).toBe(1);
