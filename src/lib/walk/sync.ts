@@ -105,7 +105,8 @@ export class WalkSync {
   private state: SyncState;
   private listeners = new Set<() => void>();
   private chain: Promise<unknown> = Promise.resolve();
-  private flushing = false;
+  private running: Promise<void> | null = null;
+  private again = false;
   private flushTimer: ReturnType<typeof setTimeout> | undefined;
   private retryTimer: ReturnType<typeof setTimeout> | undefined;
   /** The server copy that caused the current conflict. */
@@ -284,14 +285,34 @@ export class WalkSync {
     this.onServerCopy(assessment);
   }
 
+  private blocked(): boolean {
+    return this.state.phase === 'conflict' || this.state.phase === 'closed' || this.state.phase === 'loading';
+  }
+
   /**
    * Sends waiting edits in order until none is left, the connection drops or a conflict needs
-   * the auditor. Only the IndexedDB steps take the serial lock, so typing is never held up by
+   * the auditor. A call while a round is under way asks for one more round and resolves when
+   * that is done. Only the IndexedDB steps take the serial lock, so typing is never held up by
    * a slow request.
    */
-  async flush(): Promise<void> {
-    if (this.flushing || this.state.phase === 'conflict' || this.state.phase === 'closed' || this.state.phase === 'loading') return;
-    this.flushing = true;
+  flush(): Promise<void> {
+    if (this.blocked()) return Promise.resolve();
+    if (this.running) {
+      this.again = true;
+      return this.running;
+    }
+    this.running = (async () => {
+      do {
+        this.again = false;
+        await this.flushRound();
+      } while (this.again && !this.blocked());
+    })().finally(() => {
+      this.running = null;
+    });
+    return this.running;
+  }
+
+  private async flushRound(): Promise<void> {
     clearTimeout(this.retryTimer);
     try {
       for (;;) {
@@ -313,7 +334,6 @@ export class WalkSync {
       this.scheduleRetry();
     } finally {
       this.inFlight.clear();
-      this.flushing = false;
     }
   }
 
