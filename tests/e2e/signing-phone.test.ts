@@ -111,6 +111,28 @@ describe('signing on a phone', () => {
     expect(signature).toMatchObject({ signature_method: 'typed', signature_image_key: null, signer_name: 'Orrin Quillfeather' });
   });
 
+  it('shows the office the signed report, its documents and the delivered e-mails', async () => {
+    const { assessmentId } = await testDb()('signatures')
+      .join('assessments', 'assessments.id', 'signatures.assessment_id')
+      .where('assessments.organisation_id', org.id)
+      .orderBy('signatures.signed_at')
+      .first('signatures.assessment_id as assessmentId');
+    const base = new URL(inject('baseUrl'));
+    await browser.context.addCookies(
+      office.cookie.split('; ').map((pair) => {
+        const eq = pair.indexOf('=');
+        return { name: pair.slice(0, eq), value: pair.slice(eq + 1), domain: base.hostname, path: '/' };
+      }),
+    );
+    const { page } = browser;
+    await page.goto(`/assessments/${assessmentId}/report`);
+    await page.getByRole('heading', { name: /Signed by Imke Quillfeather/ }).waitFor();
+    await page.getByRole('link', { name: 'Signed report' }).waitFor();
+    expect(await seriousAxeViolations(page)).toEqual([]);
+    await screenshotBothWidths(page, 'signing-04-office-view', { fullPage: true });
+    await browser.context.clearCookies();
+  });
+
   it('shows a clear page for a used link', async () => {
     const { path } = await sentLink();
     const { page } = browser;
