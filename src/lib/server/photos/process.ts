@@ -36,9 +36,10 @@ export interface ProcessedPhoto {
 
 /** The size refusal, in words a technician can act on. */
 export function tooLargeProblem(bytes: number | null): HttpProblem {
-  const size = bytes === null ? 'This photo' : `This photo is ${megabytes(bytes)};`;
-  return new HttpProblem(413, `${size} the limit is ${megabytes(MAX_PHOTO_BYTES)}. Take it again at a lower resolution, or pick a smaller copy.`, {
-    errors: [{ field: 'photo', message: `must be at most ${megabytes(MAX_PHOTO_BYTES)}` }],
+  const limit = megabytes(MAX_PHOTO_BYTES);
+  const size = bytes === null ? `This photo is larger than the ${limit} limit.` : `This photo is ${megabytes(bytes)}; the limit is ${limit}.`;
+  return new HttpProblem(413, `${size} Take it again at a lower resolution, or pick a smaller copy.`, {
+    errors: [{ field: 'photo', message: `must be at most ${limit}` }],
     limitBytes: MAX_PHOTO_BYTES,
   });
 }
