@@ -77,7 +77,9 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('signed_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
   });
   await knex.raw(`alter table signatures add constraint signatures_consented check (consented)`);
-  await knex.raw(`alter table signatures add constraint signatures_hashes_hex check (${sha256Check('shown_pdf_sha256')} and (signature_image_key is null or ${sha256Check('signature_image_key')}))`);
+  await knex.raw(
+    `alter table signatures add constraint signatures_hashes_hex check (${sha256Check('shown_pdf_sha256')} and (signature_image_key is null or ${sha256Check('signature_image_key')}))`,
+  );
   await knex.raw(`alter table signatures add constraint signatures_drawn_has_image check ((signature_method = 'drawn') = (signature_image_key is not null))`);
 
   await knex.schema.createTable('assessment_photos', (t) => {

@@ -50,7 +50,9 @@ export async function samplePhoto(seed: number, width = 1200, height = 900): Pro
     raw[i + 1] = ((y + seed * 37) * 255) / height;
     raw[i + 2] = ((x ^ y) + seed * 13) & 0xff;
   }
-  return sharp(raw, { raw: { width, height, channels: 3 } }).jpeg({ quality: 80 }).toBuffer();
+  return sharp(raw, { raw: { width, height, channels: 3 } })
+    .jpeg({ quality: 80 })
+    .toBuffer();
 }
 
 export async function sampleReportSource(options: { findings?: number; photos?: number } = {}): Promise<ReportSource> {
@@ -91,7 +93,21 @@ export async function sampleReportSource(options: { findings?: number; photos?: 
     client: { name: 'Quillfeather Household', contactEmail: 'home@quillfeather.test' },
     site: { name: 'Home', lines: ['9 Larchmere Rise', 'Marrowfield, CO 80999', 'US'], usageClass: 1 },
     gate: { label: 'Driveway gate', kind: 'swing', leaves: 'double', openingDirection: 'pull_to_open', widthMm: 3660, heightMm: 1520, weightKg: 140 },
-    ruleset: { title: 'North American residential gates', version: '2026.1', contentSha256: 'a'.repeat(64), areaTitles: { pinch: 'Pinch and crush points', gaps: 'Gaps and openings', signage: 'Signs', force: 'Force and reversal', sensing: 'Entrapment sensing', controls: 'Controls', build: 'Gate construction', power: 'Power and wiring' } },
+    ruleset: {
+      title: 'North American residential gates',
+      version: '2026.1',
+      contentSha256: 'a'.repeat(64),
+      areaTitles: {
+        pinch: 'Pinch and crush points',
+        gaps: 'Gaps and openings',
+        signage: 'Signs',
+        force: 'Force and reversal',
+        sensing: 'Entrapment sensing',
+        controls: 'Controls',
+        build: 'Gate construction',
+        power: 'Power and wiring',
+      },
+    },
     photos,
     forceTraces: [{ label: 'Closing edge, 300 mm gap', itemKey: 'closingEdge300', samples, limitN: 400, peakN: 520, passed: false }],
     signing: null,

@@ -41,7 +41,8 @@ export function createS3Storage(settings: S3Settings): FileStorage {
     region: settings.region,
     endpoint: settings.endpoint,
     forcePathStyle: settings.forcePathStyle,
-    credentials: settings.accessKeyId && settings.secretAccessKey ? { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey } : undefined,
+    credentials:
+      settings.accessKeyId && settings.secretAccessKey ? { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey } : undefined,
     // Many S3-compatible stores do not understand the SDK's default CRC32 trailers.
     requestChecksumCalculation: 'WHEN_REQUIRED',
     responseChecksumValidation: 'WHEN_REQUIRED',
