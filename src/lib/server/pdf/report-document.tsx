@@ -248,22 +248,24 @@ function FindingCard({ finding, photos, model }: { finding: StoredFinding; photo
           borderLeftColor: severityColour[finding.severity],
         },
       ]}
-      wrap={false}
     >
-      <View style={styles.findingHead}>
-        <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
-        <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>{finding.severity}</Text>
+      {/* The words of a finding stay together; its photos may follow on the next page. */}
+      <View wrap={false}>
+        <View style={styles.findingHead}>
+          <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
+          <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>{finding.severity}</Text>
+        </View>
+        <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
+          {pdfText(
+            `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
+          )}
+        </Text>
+        <Field name="What was found" value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'} />
+        {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
+        <Field name="Why it matters" value={finding.caution || '-'} />
+        <Field name="Fix" value={finding.remediation || '-'} />
+        <Field name="Reference" value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')} />
       </View>
-      <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
-        {pdfText(
-          `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
-        )}
-      </Text>
-      <Field name="What was found" value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'} />
-      {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
-      <Field name="Why it matters" value={finding.caution || '-'} />
-      <Field name="Fix" value={finding.remediation || '-'} />
-      <Field name="Reference" value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')} />
       {photos.length ? <Photos photos={photos} model={model} /> : null}
     </View>
   );
