@@ -9,6 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'vitest';
 import type { Locator, Page } from 'playwright-core';
+import { currentVersion, insertDraft, seedDirectory } from '../integration/support/domain';
 import { createOrganisation, fixturePassword, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -57,6 +58,10 @@ async function waitSaved() {
 beforeAll(async () => {
   org = await createOrganisation('walk e2e');
   await testDb()('organisations').where({ id: org.id }).update({ display_units: 'imperial' });
+  // A draft from yesterday's visit elsewhere, so the auditor's list is not empty on first sight.
+  const dir = await seedDirectory(org);
+  const version = await currentVersion('north-american-gate');
+  await insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { visited_on: new Date(Date.now() - 86_400_000) });
   session = await launchBrowser(inject('baseUrl'));
   page = session.page;
 });
@@ -218,12 +223,34 @@ describe('the auditor walks a swing gate on a phone', () => {
     expect(await testDb()('assessment_photos').where({ assessment_id: assessmentId }).count('* as n').first()).toEqual({ n: '2' });
   });
 
+  it('shows a change saved elsewhere that clashes with one made here, and keeps the value the auditor picks', async () => {
+    await session.context.setOffline(true);
+    await page.locator('#q-latchFitted').locator('label', { hasText: /^No$/ }).click();
+    // Meanwhile the office corrects the same answer from another device.
+    await testDb()('assessments')
+      .where({ id: assessmentId })
+      .update({ answers: testDb().raw(`jsonb_set(answers, '{latchFitted}', '{"value":"na"}')`), row_version: testDb().raw('row_version + 1') });
+    await session.context.setOffline(false);
+
+    const dialog = page.getByRole('dialog', { name: 'Saved elsewhere in the meantime' });
+    await dialog.waitFor({ timeout: 30_000 });
+    await expect(dialog.getByText('On this phone').isVisible()).resolves.toBe(true);
+    await expect(page.locator('[data-save-state]').getAttribute('data-save-state')).resolves.toBe('conflict');
+    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({ value: 'na' });
+    await checkPage('walk-12-conflict', { only: ['dialog'] });
+
+    await dialog.getByRole('radio', { name: /On this phone/ }).check();
+    await dialog.getByRole('button', { name: 'Keep these values' }).click();
+    await waitSaved();
+    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({ value: 'no' });
+  });
+
   it('shows the live result and what is left, then submits and shows the verdict', async () => {
     await page.getByRole('tab', { name: /To check/ }).click();
-    await checkPage('walk-12-to-check', { only: ['#panel-check'] });
+    await checkPage('walk-13-to-check', { only: ['#panel-check'] });
     await page.getByRole('tab', { name: 'Result' }).click();
     await page.locator('[data-verdict]').first().waitFor({ timeout: 20_000 });
-    await checkPage('walk-13-live-result');
+    await checkPage('walk-14-live-result');
     await page.getByRole('button', { name: 'Submit the assessment' }).click();
     await page.getByText('Submitted result').waitFor({ timeout: 20_000 });
     const verdict = await page.locator('[data-verdict]').getAttribute('data-verdict');
@@ -231,10 +258,11 @@ describe('the auditor walks a swing gate on a phone', () => {
     expect(stored.status).toBe('scored');
     expect(stored.verdict).toBe(verdict);
     await expect(page.getByRole('heading', { name: /Failing items/ }).isVisible()).resolves.toBe(true);
-    await checkPage('walk-14-submitted', { only: ['#panel-result', '[data-save-state]'] });
+    await checkPage('walk-15-submitted', { only: ['#panel-result', '[data-save-state]'] });
 
     await page.goto('/assessments');
     await page.getByRole('heading', { name: 'Recently submitted' }).waitFor();
     await expect(page.getByRole('link', { name: /Driveway gate/ }).count()).resolves.toBeGreaterThan(0);
+    await checkPage('walk-16-assessments-after');
   });
 });
