@@ -89,6 +89,8 @@ export interface ResultViewProps {
   submitProblem: Problem | null;
   onSubmit(): void;
   onGoToCheck(): void;
+  /** The staff report page (PDF, sending for signature), once submitted. */
+  reportUrl: string;
 }
 
 export function ResultView(props: ResultViewProps) {
@@ -110,6 +112,11 @@ export function ResultView(props: ResultViewProps) {
             <p className="mt-2 text-iron-800">{props.online ? 'Working it out…' : 'Offline: the result is worked out on the server once the signal is back.'}</p>
           )}
         </div>
+      )}
+      {submitted && (
+        <a className="btn w-full sm:w-fit" href={props.reportUrl}>
+          Open the report and send it for signature
+        </a>
       )}
       {result && (
         <div className="grid gap-4 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] lg:items-start">

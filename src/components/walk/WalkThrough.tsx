@@ -238,6 +238,7 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
             submitProblem={submitProblem}
             onSubmit={() => submit.mutate()}
             onGoToCheck={() => setView('check')}
+            reportUrl={`/assessments/${assessment.id}/report`}
           />
         </div>
       </div>
