@@ -63,7 +63,7 @@ function ToolSlot({ children, mounted }: { children: React.ReactNode; mounted: b
 function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, editable: editableProp, gateEditUrl }: WalkThroughProps) {
   const { sync, state } = useWalkSync({ id: assessment.id, rowVersion: assessment.rowVersion, status: assessment.status, documents, photos, traces });
   const editable = editableProp && state.status === 'draft' && state.phase !== 'closed';
-  const [view, setView] = useState<WalkView>('walk');
+  const [view, setView] = useState<WalkView>(assessment.status === 'draft' ? 'walk' : 'result');
   const [mounted, setMounted] = useState(false);
   const [submitted, setSubmitted] = useState<ScoreResult | null>(assessment.status === 'draft' ? null : assessment.result);
   useEffect(() => setMounted(true), []);

@@ -176,7 +176,16 @@ export class WalkSync {
       window.addEventListener('online', this.handleOnline);
       window.addEventListener('offline', this.handleOffline);
     }
-    this.set({ phase: this.state.pending.length ? 'waiting' : 'saved', online: typeof navigator === 'undefined' || navigator.onLine });
+    const online = typeof navigator === 'undefined' || navigator.onLine;
+    if (this.state.status !== 'draft') {
+      // Submitted (here or elsewhere): nothing more can be saved; edits left on the device are listed as not saved.
+      const left = this.state.pending;
+      for (const op of left) this.refuse(op, { status: 409, detail: 'The assessment was submitted before this change reached the server.' });
+      if (left.length) await this.serial(() => outbox.removeOps(left));
+      this.set({ phase: 'closed', online, pending: [], pendingCount: 0, view: this.state.server });
+      return;
+    }
+    this.set({ phase: this.state.pending.length ? 'waiting' : 'saved', online });
     void this.flush();
   }
 

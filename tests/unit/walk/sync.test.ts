@@ -161,4 +161,26 @@ describe('the device outbox', () => {
     expect(server.row.answers).toEqual({ ownerShown: { value: 'yes' } });
     sync.stop();
   });
+
+  it('lists edits still on the device as not saved when the assessment was submitted meanwhile, and sends nothing', async () => {
+    const server = fakeServer();
+    const id = newId();
+    server.state.offline = true;
+    const before = await open(id, server);
+    await before.edit({ answers: { manualLeft: { value: 'yes' } } });
+    await before.flush();
+    before.stop();
+    server.state.offline = false;
+    server.calls.length = 0;
+
+    const after = new WalkSync({ id, rowVersion: 3, status: 'scored', documents: emptyDocuments(), photos: [], traces: [] });
+    after.sender = server.send;
+    await after.start();
+    expect(after.getState()).toMatchObject({ phase: 'closed', pendingCount: 0 });
+    expect(after.getState().refused).toEqual([expect.objectContaining({ what: 'manualLeft', message: expect.stringMatching(/submitted before this change/) })]);
+    expect(after.getState().view.answers).toEqual({});
+    await after.flush();
+    expect(server.calls).toEqual([]);
+    after.stop();
+  });
 });
