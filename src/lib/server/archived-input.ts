@@ -20,19 +20,21 @@ function dimension(stored: number | null, entered: { value: number; unit: string
   return { value, unit, canonical: canonicalValue(kind, value, unit) };
 }
 
-/** Drops keys whose value is undefined, as a schema parse would leave them out. */
-function defined<T extends object>(value: T): T {
-  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined)) as T;
-}
+const yesNoKeys = new WeakMap<readonly RulesetQuestion[], Set<string>>();
 
+/**
+ * Keys left undefined here are absent after a schema parse; nothing reads the difference (the
+ * engine tests for undefined, and the input hash drops undefined members as JSON does).
+ */
 export function archivedEngineInput(gate: GateForScoring, documents: AssessmentDocuments, questions: readonly RulesetQuestion[]): AssessmentInput {
-  const yesNo = new Set(questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key));
+  let yesNo = yesNoKeys.get(questions);
+  if (!yesNo) yesNoKeys.set(questions, (yesNo = new Set(questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key))));
   const answers: Record<string, { value: string; note?: string }> = {};
   const choices: Record<string, { value: string; note?: string }> = {};
   for (const [key, entry] of Object.entries(documents.answers)) (yesNo.has(key) ? answers : choices)[key] = entry;
   const { site, entrapment, forceTests, swingGeometry, hrnOverrides } = documents.observations;
-  return defined({
-    profile: defined({
+  return {
+    profile: {
       kind: gate.kind,
       leaves: gate.leaves,
       openingDirection: gate.openingDirection ?? undefined,
@@ -43,7 +45,7 @@ export function archivedEngineInput(gate: GateForScoring, documents: AssessmentD
       operatorListed: gate.operator.listed ?? undefined,
       automaticClosing: gate.operator.automaticClosing ?? undefined,
       operatorManufacturedOn: gate.operator.manufacturedOn ?? undefined,
-    }),
+    },
     site: site ?? {},
     answers,
     choices,
@@ -52,5 +54,5 @@ export function archivedEngineInput(gate: GateForScoring, documents: AssessmentD
     forceTests,
     swingGeometry,
     hrnOverrides,
-  }) as AssessmentInput;
+  } as AssessmentInput;
 }

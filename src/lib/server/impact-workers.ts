@@ -9,7 +9,10 @@
  * Where that import cannot work (the Vite dev server serves TypeScript only through itself), the
  * pool does not start and the caller scores in its own thread.
  *
- * IMPACT_WORKERS sets the thread count (0 turns workers off); by default one per core, at most 4.
+ * IMPACT_WORKERS sets the thread count (0 turns workers off). By default, with four cores or more,
+ * one per core but one (for the server and the database), at most 4; on smaller machines none:
+ * measured on two busy cores, the scoring thread alone finished first, and it yields to other
+ * requests every hundred assessments.
  */
 import os from 'node:os';
 import { Worker } from 'node:worker_threads';
@@ -48,7 +51,8 @@ interface PendingJob {
 function workerCount(): number {
   const configured = process.env.IMPACT_WORKERS;
   if (configured !== undefined && configured !== '') return Math.max(0, Math.min(16, Number(configured) || 0));
-  return Math.max(1, Math.min(4, os.availableParallelism()));
+  const cores = os.availableParallelism();
+  return cores >= 4 ? Math.min(4, cores - 1) : 0;
 }
 
 function startWorker(moduleUrl: string): Promise<Worker | null> {

@@ -111,6 +111,8 @@ function verdictDrivers(findings: readonly Finding[], verdict: Verdict): Finding
 
 const SEVERITY_RANK = { critical: 0, major: 1, minor: 2 } as const;
 
+const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
 /** A finding behind a worse verdict, before it is compared with the signed result. */
 type Driver = Pick<Finding, 'ruleId' | 'title' | 'area' | 'severity' | 'outcome'>;
 
@@ -184,7 +186,12 @@ async function oldOutcomesOf(knex: Knex, ids: string[]): Promise<Map<string, Old
 
 /** Re-scores stored assessments against the target version. */
 export async function rescoreRows(knex: Knex, rows: ImpactRow[], target: LoadedRuleset, fromVersion: string): Promise<ImpactOutcome[]> {
-  const scored = rows.map((row) => ({ row, verdict: rescoreVerdict(row, target) }));
+  const scored: { row: ImpactRow; verdict: ReturnType<typeof rescoreVerdict> }[] = [];
+  for (const row of rows) {
+    scored.push({ row, verdict: rescoreVerdict(row, target) });
+    // In the server's own thread, let other requests through every hundred or so.
+    if (scored.length % 100 === 0) await yieldToEventLoop();
+  }
   const worse = scored.filter((s) => 'after' in s.verdict && VERDICT_RANK[s.verdict.after] > VERDICT_RANK[s.row.verdict]).map((s) => s.row.id);
   const old = await oldOutcomesOf(knex, worse);
   return scored.map(({ row, verdict }) => {
@@ -279,8 +286,6 @@ export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promi
 // Worker threads find rescoreSlice here after importing this module (see impact-workers.ts).
 (globalThis as Record<symbol, unknown>)[Symbol.for('latchwell.impact.rescoreSlice')] = rescoreSlice;
 
-const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
-
 /**
  * Re-scores the archive against `target`, one outcome per assessment considered, as an async
  * stream: callers count, list or write CSV without holding the whole archive. Large archives are
@@ -298,8 +303,9 @@ export async function* rescoreArchive(organisationId: string, target: ImpactTarg
   }
   const pool = await startRescorePool(import.meta.url);
   try {
-    // Up to two slices per worker in flight (the next ids are read meanwhile); results come back in slice order.
-    const limit = pool ? pool.size * 2 : 1;
+    // Two slices per worker in flight, or two here: one is read from the database while the
+    // other is scored. Results come back in slice order.
+    const limit = pool ? pool.size * 2 : 2;
     const inFlight: Promise<ImpactOutcome[]>[] = [];
     const start = (slice: ImpactSlice) => {
       const work = pool ? pool.run(slice) : rescoreSlice(slice, knex);
