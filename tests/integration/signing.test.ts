@@ -35,16 +35,22 @@ interface CaughtSummary {
   attachments: Array<{ index: number; filename: string | null; sha256: string; contentType: string }>;
 }
 
-/** Waits for a caught message to `to` whose subject matches, and parses its raw source with mailparser. */
-async function caughtMail(to: string, subject: RegExp, since = 0, timeoutMs = 15_000) {
+/**
+ * Waits for a caught message to `to` whose subject matches (and, when given, that carries the
+ * outbox id the API answered with), and parses its raw source with mailparser.
+ */
+async function caughtMail(to: string, subject: RegExp, outboxId?: string, timeoutMs = 15_000) {
   const catcherUrl = inject('catcherUrl');
   const deadline = Date.now() + timeoutMs;
+  const seen = new Set<string>();
   for (;;) {
     const list = (await (await fetch(`${catcherUrl}/messages`)).json()) as CaughtSummary[];
-    const found = list.find((m) => m.to.some((t) => t.toLowerCase() === to.toLowerCase()) && subject.test(m.subject) && Date.parse(m.receivedAt) >= since);
-    if (found) {
-      const raw = Buffer.from(await (await fetch(`${catcherUrl}/messages/${found.id}/raw`)).arrayBuffer());
-      return { summary: found, parsed: await simpleParser(raw) };
+    for (const m of list) {
+      if (seen.has(m.id) || !m.to.some((t) => t.toLowerCase() === to.toLowerCase()) || !subject.test(m.subject)) continue;
+      const raw = Buffer.from(await (await fetch(`${catcherUrl}/messages/${m.id}/raw`)).arrayBuffer());
+      const parsed = await simpleParser(raw);
+      if (!outboxId || parsed.headers.get('x-latchwell-outbox-id') === outboxId) return { summary: m, parsed };
+      seen.add(m.id);
     }
     if (Date.now() > deadline) throw new Error(`no mail to ${to} matching ${subject} within ${timeoutMs} ms`);
     await new Promise((r) => setTimeout(r, 150));
@@ -84,10 +90,21 @@ async function sendAndOpen(assessmentId: string, by: TestClient = office) {
   expect(res.status, await res.clone().text()).toBe(202);
   const sent = await res.json();
   const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
-  // The catcher and the test share one clock; messages of earlier tests to the same client are older.
-  const mail = await caughtMail(clientEmail, /Please read and sign/, since - 50);
+  // Several links go to the same client address: pick this one by the outbox id in its headers.
+  const mail = await caughtMail(clientEmail, /Please read and sign/, sent.message.id);
+  expect(Date.parse(mail.summary.receivedAt)).toBeGreaterThanOrEqual(since - 1000);
   const link = signLink(mail.parsed.text ?? '');
   return { sent, mail, clientEmail, ...link };
+}
+
+async function outboxDrained(timeoutMs = 20_000): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const [{ n }] = await testDb()('outbox_messages').where({ organisation_id: org.id }).whereIn('status', ['queued', 'sending']).count({ n: '*' });
+    if (Number(n) === 0) return;
+    if (Date.now() > deadline) throw new Error('outbox messages of this organisation are still waiting');
+    await new Promise((r) => setTimeout(r, 100));
+  }
 }
 
 async function submit(token: string, body: Record<string, unknown>) {
@@ -164,6 +181,15 @@ describe('sending a scored assessment for signature and signing it', () => {
     expect(otherPdf.status).toBe(409);
     const noConsent = await submit(token, { ...base, consent: false, acknowledgedCautions: cautionIds });
     expect(noConsent.status).toBe(422);
+    const notPng = await submit(token, {
+      ...base,
+      acknowledgedCautions: cautionIds,
+      signature: { method: 'drawn', png: `data:image/png;base64,${Buffer.from('GIF89a not a png at all').toString('base64')}` },
+    });
+    expect(notPng.status).toBe(422);
+    expect((await notPng.json()).errors[0].field).toBe('signature.png');
+    const unknownField = await submit(token, { ...base, acknowledgedCautions: cautionIds, signedFor: 'someone else' });
+    expect(unknownField.status).toBe(422);
     expect(await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).first()).toBeUndefined();
     expect((await testDb()('sign_requests').where({ assessment_id: assessment.assessmentId }).first('used_at')).used_at).toBeNull();
   });
@@ -392,6 +418,9 @@ describe('signing links that cannot be used', () => {
 
 describe('who may see the report and send it', () => {
   it('lets staff read the preview and the homeowner read it once sent; others get 401/403/404', async () => {
+    // The homeowner signs in by e-mailed link to the client's address: let earlier tests' mail
+    // to that address go out first, so the sign-in helper picks the right message.
+    await outboxDrained();
     const assessment = await seeded(0);
     const preview = await office.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`);
     expect(preview.status).toBe(200);
