@@ -4,7 +4,8 @@
  * new version and one does not (decided by the same engine, so the test follows the shipped
  * rulesets as they change); the stored results must not change.
  */
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, inject, it } from 'vitest';
+import { freePort, startAppServer } from '../../src/cli/services';
 import type { ImpactReport } from '../../src/lib/api/impact';
 import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
@@ -100,6 +101,37 @@ describe('ruleset impact', () => {
     expect(lines[1]).toContain(filed.worse);
     expect(lines[1]).toContain('Fieldfare Close Association');
   });
+
+  it('gives the same list when the built server spreads the re-scoring over worker threads', async () => {
+    const here = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`));
+    const server = await startAppServer({
+      port: await freePort(),
+      quiet: true,
+      env: {
+        DATABASE_URL: inject('databaseUrl'),
+        AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
+        AUTH_TRUST_HOST: 'true',
+        LATCHWELL_DATA_DIR: inject('dataDir'),
+        LATCHWELL_ENV: 'test',
+        OUTBOX_WORKER: 'off',
+        SMTP_URL: 'smtp://127.0.0.1:9',
+        IMPACT_WORKERS: '2',
+        // One assessment per slice, so even this small archive goes to the workers.
+        IMPACT_SLICE_SIZE: '1',
+      },
+    });
+    try {
+      const res = await fetch(`${server.url}/api/archive/impact?versionId=${v2026.id}&basis=all`, { headers: { cookie: office.cookie, accept: 'application/json', origin: server.url } });
+      const spread = await expectJson<ImpactReport>(res);
+      expect(spread.workers).toBe(2);
+      expect(here.workers).toBe(0);
+      const { durationMs: _a, workers: _b, ...same } = spread;
+      const { durationMs: _c, workers: _d, ...expected } = here;
+      expect(same).toEqual(expected);
+    } finally {
+      await server.stop();
+    }
+  }, 60_000);
 
   it('refuses a version that is not published or not visible, and a bad query', async () => {
     expect((await office.fetch('/api/archive/impact?versionId=00000000-0000-4000-8000-000000000000')).status).toBe(404);

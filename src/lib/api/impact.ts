@@ -66,5 +66,7 @@ export interface ImpactReport {
   truncated: boolean;
   /** A few of the assessments that could not be re-scored, with why. */
   unscorableSamples: Pick<ImpactOutcome, 'assessmentId' | 'gateLabel' | 'problem'>[];
+  /** Worker threads that re-scored (0: the server's own thread). */
+  workers: number;
   durationMs: number;
 }

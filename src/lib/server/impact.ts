@@ -203,7 +203,8 @@ export async function rescoreRows(knex: Knex, rows: ImpactRow[], target: LoadedR
   });
 }
 
-const BATCH = 1000;
+/** Assessments per slice (IMPACT_SLICE_SIZE, for tests of the slicing; 1,000 by default). */
+const BATCH = Math.min(10_000, Math.max(1, Number(process.env.IMPACT_SLICE_SIZE) || 1000));
 
 /** One slice of the work: a version's candidate assessments with ids in (afterId, upToId]. */
 export interface ImpactSlice {
@@ -292,7 +293,7 @@ export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promi
  * spread over worker threads (impact-workers.ts), each reading and scoring its own slices; a
  * few slices run here, one at a time, yielding to the event loop in between.
  */
-export async function* rescoreArchive(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db()): AsyncGenerator<ImpactOutcome> {
+export async function* rescoreArchive(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db(), info: { workers: number } = { workers: 0 }): AsyncGenerator<ImpactOutcome> {
   const slices = slicesOf(knex, organisationId, target, basis);
   const first = await slices.next();
   if (first.done) return;
@@ -302,6 +303,7 @@ export async function* rescoreArchive(organisationId: string, target: ImpactTarg
     return;
   }
   const pool = await startRescorePool(import.meta.url);
+  info.workers = pool?.size ?? 0;
   try {
     // Two slices per worker in flight, or two here: one is read from the database while the
     // other is scored. Results come back in slice order.
@@ -338,7 +340,8 @@ export async function impactReport(organisationId: string, target: ImpactTarget,
   const counts = { considered: 0, worse: 0, better: 0, same: 0, unscorable: 0 };
   let items: ImpactOutcome[] = [];
   const unscorableSamples: ImpactReport['unscorableSamples'] = [];
-  for await (const outcome of rescoreArchive(organisationId, target, basis, knex)) {
+  const info = { workers: 0 };
+  for await (const outcome of rescoreArchive(organisationId, target, basis, knex, info)) {
     counts.considered++;
     counts[outcome.change]++;
     if (outcome.change === 'unscorable' && unscorableSamples.length < 10) unscorableSamples.push({ assessmentId: outcome.assessmentId, gateLabel: outcome.gateLabel, problem: outcome.problem });
@@ -356,6 +359,7 @@ export async function impactReport(organisationId: string, target: ImpactTarget,
     items: items.slice(0, limit),
     truncated: counts.worse > limit,
     unscorableSamples,
+    workers: info.workers,
     durationMs: Math.round(performance.now() - started),
   };
 }
