@@ -59,7 +59,7 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
               {editable && (
                 <button
                   type="button"
-                  className="absolute -top-2 -right-2 flex size-8 items-center justify-center rounded-full border border-iron-200 bg-white text-iron-800 shadow-sm"
+                  className="absolute -top-3 -right-3 flex size-10 items-center justify-center rounded-full border border-iron-200 bg-white text-lg text-iron-800 shadow-sm"
                   aria-label="Remove this photo"
                   onClick={() => void sync.remove('removePhoto', photo.clientRef ?? photo.id, photo.id)}
                 >
@@ -79,7 +79,7 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
               {editable && (
                 <button
                   type="button"
-                  className="absolute -top-2 -right-2 flex size-8 items-center justify-center rounded-full border border-iron-200 bg-white text-iron-800 shadow-sm"
+                  className="absolute -top-3 -right-3 flex size-10 items-center justify-center rounded-full border border-iron-200 bg-white text-lg text-iron-800 shadow-sm"
                   aria-label="Remove this photo"
                   onClick={() => void sync.remove('removePhoto', photo.clientRef, null)}
                 >

@@ -31,21 +31,22 @@ export interface Preview {
 
 export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: WalkRuleset, online: boolean): Preview {
   const { input, blockers } = useMemo(() => buildPreviewInput(gate, documents, ruleset.questions), [gate, documents, ruleset.questions]);
-  const body = useMemo(() => JSON.stringify({ family: ruleset.family, version: ruleset.version, input }), [input, ruleset.family, ruleset.version]);
-  const [settled, setSettled] = useState(body);
+  // Key order follows whoever wrote the document last; the same answers must be the same request.
+  const body = useMemo(() => stableJson({ family: ruleset.family, version: ruleset.version, input }), [input, ruleset.family, ruleset.version]);
+  const [settled, setSettled] = useState({ body, ready: blockers.length === 0 });
   useEffect(() => {
-    const timer = setTimeout(() => setSettled(body), SETTLE_MS);
+    const timer = setTimeout(() => setSettled({ body, ready: blockers.length === 0 }), SETTLE_MS);
     return () => clearTimeout(timer);
-  }, [body]);
+  }, [body, blockers.length]);
 
   const query = useQuery({
-    queryKey: ['walk-preview', settled],
+    queryKey: ['walk-preview', settled.body],
     queryFn: async () => {
-      const answer = await scorePreview(JSON.parse(settled));
+      const answer = await scorePreview(JSON.parse(settled.body));
       if (!answer.ok) throw new PreviewRefused(answer.problem);
       return answer.value as ScoreResult;
     },
-    enabled: online && blockers.length === 0,
+    enabled: online && settled.ready && blockers.length === 0,
     placeholderData: keepPreviousData,
     staleTime: Infinity,
     gcTime: 60_000,
@@ -58,6 +59,13 @@ export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: Wa
     blockers,
     refused: query.error instanceof PreviewRefused ? query.error.problem : null,
     updating: query.isFetching,
-    stale: settled !== body || query.isPlaceholderData || !online,
+    stale: settled.body !== body || query.isPlaceholderData || !online,
   };
+}
+
+/** JSON with object keys sorted, so equal content is an equal string. */
+function stableJson(value: unknown): string {
+  return JSON.stringify(value, (_key, v: unknown) =>
+    v && typeof v === 'object' && !Array.isArray(v) ? Object.fromEntries(Object.entries(v as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))) : v,
+  );
 }
