@@ -135,6 +135,13 @@ describe('the auditor walks a swing gate on a phone', () => {
       await answer(page.locator(`#q-${q.key}`), q);
     }
 
+    // Keyboard only: arrow keys move the choice within a yes / no / N/A group.
+    await page.locator('#q-placardsLegible input[value=yes]').focus();
+    await page.keyboard.press('ArrowRight');
+    await expect(page.locator('#q-placardsLegible input[value=no]').isChecked()).resolves.toBe(true);
+    await page.keyboard.press('ArrowLeft');
+    await expect(page.locator('#q-placardsLegible input[value=yes]').isChecked()).resolves.toBe(true);
+
     const hinge = page.locator('#q-hingeGapMm');
     await hinge.locator('input[data-photo-pick]').setInputFiles({ name: 'hinge.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg() });
     await hinge.locator('img[src*="size=thumb"]').waitFor({ timeout: 20_000 });
@@ -246,8 +253,15 @@ describe('the auditor walks a swing gate on a phone', () => {
   });
 
   it('shows the live result and what is left, then submits and shows the verdict', async () => {
-    await page.getByRole('tab', { name: /To check/ }).click();
+    // The views are tabs: arrow keys move between them.
+    await page.getByRole('tab', { name: 'Walk' }).focus();
+    await page.keyboard.press('ArrowRight');
+    await expect(page.getByRole('tab', { name: /To check/ }).getAttribute('aria-selected')).resolves.toBe('true');
     await checkPage('walk-13-to-check', { only: ['#panel-check'] });
+    // One tap from the list to the item, with focus on it.
+    await page.locator('#panel-check button').first().click();
+    await expect(page.getByRole('tab', { name: 'Walk' }).getAttribute('aria-selected')).resolves.toBe('true');
+    await expect(page.evaluate(() => document.activeElement?.id ?? '')).resolves.toMatch(/^(q-|item-)/);
     await page.getByRole('tab', { name: 'Result' }).click();
     await page.locator('[data-verdict]').first().waitFor({ timeout: 20_000 });
     await checkPage('walk-14-live-result');
