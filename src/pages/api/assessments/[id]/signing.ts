@@ -6,7 +6,7 @@ import { documentsOfAssessment } from '@/lib/server/documents';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { handle } from '@/lib/server/http/problem';
 import { messagesAbout } from '@/lib/server/outbox';
-import { signingStatus } from '@/lib/server/signing-status';
+import { signingStatus } from '@/lib/server/signing';
 
 /**
  * Where an assessment stands on its way to a signature (staff): its links (never the tokens),
