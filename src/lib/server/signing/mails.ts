@@ -1,0 +1,88 @@
+/**
+ * The e-mails of the signing flow: the link to sign, and the signed report to the signer and
+ * to the office. Plain text first; the HTML part escapes every name.
+ */
+import { verdictWords, type Verdict } from '../pdf/report-model';
+
+function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+function formatDay(date: Date, timeZone: string): string {
+  try {
+    return new Intl.DateTimeFormat('en-US', { timeZone, dateStyle: 'long' }).format(date);
+  } catch {
+    return date.toISOString().slice(0, 10);
+  }
+}
+
+export function signRequestMail(input: {
+  organisationName: string;
+  clientName: string;
+  gateLabel: string;
+  siteLine: string;
+  verdict: Verdict;
+  link: string;
+  expiresAt: Date;
+  timeZone: string;
+}): { subject: string; text: string; html: string } {
+  const words = verdictWords[input.verdict];
+  const until = formatDay(input.expiresAt, input.timeZone);
+  const subject = `Please read and sign: gate safety report for ${input.gateLabel}`;
+  const text = [
+    `Hello ${input.clientName},`,
+    '',
+    `${input.organisationName} has assessed the ${input.gateLabel} at ${input.siteLine}.`,
+    `Verdict: ${words.label}. ${words.headline}`,
+    '',
+    'Please read the report and acknowledge it, with its cautions, on this page (no account needed):',
+    input.link,
+    '',
+    `The link works once and expires on ${until}.`,
+    'If you did not expect this message, you can ignore it.',
+    '',
+    input.organisationName,
+  ].join('\n');
+  const html = `<p>Hello ${escapeHtml(input.clientName)},</p>
+<p>${escapeHtml(input.organisationName)} has assessed the ${escapeHtml(input.gateLabel)} at ${escapeHtml(input.siteLine)}.</p>
+<p><strong>Verdict: ${escapeHtml(words.label)}.</strong> ${escapeHtml(words.headline)}</p>
+<p><a href="${escapeHtml(input.link)}">Read and sign the report</a> (no account needed). The link works once and expires on ${escapeHtml(until)}.</p>
+<p>If you did not expect this message, you can ignore it.</p>
+<p>${escapeHtml(input.organisationName)}</p>`;
+  return { subject, text, html };
+}
+
+export function signedReportMail(input: {
+  kind: 'owner' | 'organisation';
+  organisationName: string;
+  gateLabel: string;
+  signerName: string;
+  sha256: string;
+  documentId: string;
+}): { subject: string; text: string } {
+  if (input.kind === 'owner') {
+    return {
+      subject: `Your signed gate safety report: ${input.gateLabel}`,
+      text: [
+        `Hello ${input.signerName},`,
+        '',
+        `Thank you for signing. Your copy of the gate safety report for the ${input.gateLabel} is attached, signed by you and digitally signed by ${input.organisationName}.`,
+        'Keep it with the gate’s papers. Please follow the cautions you acknowledged until the fixes are done.',
+        '',
+        `Document ${input.documentId}`,
+        `SHA-256 ${input.sha256}`,
+        '',
+        input.organisationName,
+      ].join('\n'),
+    };
+  }
+  return {
+    subject: `Signed: gate safety report for ${input.gateLabel} (${input.signerName})`,
+    text: [
+      `${input.signerName} signed the gate safety report for the ${input.gateLabel}. The signed document is attached and kept in the archive.`,
+      '',
+      `Document ${input.documentId}`,
+      `SHA-256 ${input.sha256}`,
+    ].join('\n'),
+  };
+}
