@@ -151,6 +151,8 @@ describe('archive search', () => {
   it('counts what a filter matches', async () => {
     expect(await expectJson(await office.fetch('/api/archive/count'))).toEqual({ total: 7 });
     expect(await expectJson(await office.fetch('/api/archive/count?q=harrowgate&status=signed'))).toEqual({ total: 4 });
+    expect(await expectJson(await office.fetch('/api/archive/count?gateKind=slide'))).toEqual({ total: 3 });
+    expect(await expectJson(await office.fetch('/api/archive/count?status=signed&family=north-american-gate'))).toEqual({ total: 5 });
   });
 
   it("never shows another organisation's assessments, whatever the filter", async () => {

@@ -186,7 +186,13 @@ export async function listArchive(organisationId: string, timeZone: string, quer
 
 /** How many assessments the filter matches. */
 export async function countArchive(organisationId: string, timeZone: string, filter: ArchiveFilter, knex: Knex = db()): Promise<number> {
-  const base = archiveBase(knex, organisationId);
+  // Counting needs the joins only when a filter looks at the gate, site or client.
+  const needsSite = Boolean(filter.q || filter.client || filter.address || filter.clientId || filter.usageClass);
+  const base = needsSite
+    ? archiveBase(knex, organisationId)
+    : filter.gateKind
+      ? knex('assessments as a').join('gates as g', 'g.id', 'a.gate_id').where('a.organisation_id', organisationId)
+      : knex('assessments as a').where('a.organisation_id', organisationId);
   await applyArchiveFilter(base, knex, organisationId, filter, timeZone);
   const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
   return Number(total);
