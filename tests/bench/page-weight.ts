@@ -85,7 +85,9 @@ export async function runPageWeightBench(log: (line: string) => void = console.l
     files: sized.length,
   };
 
-  log(`walk-through page, JavaScript before it is interactive: ${figures.walkthroughGzipKb} KiB gzipped (${figures.walkthroughRawKb} KiB raw, ${figures.files} files)`);
+  log(
+    `walk-through page, JavaScript before it is interactive: ${figures.walkthroughGzipKb} KiB gzipped (${figures.walkthroughRawKb} KiB raw, ${figures.files} files)`,
+  );
   for (const s of sized) log(`  ${String(kib(s.gz)).padStart(6)} KiB  ${s.f}`);
   log(`loaded on demand after hydration: ${figures.onDemandGzipKb} KiB gzipped`);
   for (const s of lazySized) log(`  ${String(kib(s.gz)).padStart(6)} KiB  ${s.f}`);

@@ -127,7 +127,12 @@ describe('the auditor walks a swing gate on a phone', () => {
     await waitSaved();
     await checkPage('walk-06-start');
 
-    for (const prompt of ['Do people walk through the gateway?', 'Are children or pets about?', 'Can the public reach the gate?', 'Does the ground slope across the gate’s travel?']) {
+    for (const prompt of [
+      'Do people walk through the gateway?',
+      'Are children or pets about?',
+      'Can the public reach the gate?',
+      'Does the ground slope across the gate’s travel?',
+    ]) {
       await page.getByRole('radiogroup', { name: prompt }).locator('label', { hasText: 'No' }).click();
     }
     for (const q of swingQuestions) {
@@ -197,14 +202,18 @@ describe('the auditor walks a swing gate on a phone', () => {
 
   it('keeps answering without signal, survives a reload offline, and syncs when the signal returns', async () => {
     // The page and its scripts must be on the phone before the signal goes.
-    await page.waitForFunction(async () => {
-      const registration = await navigator.serviceWorker.getRegistration('/assessments/');
-      if (!registration?.active) return false;
-      const scripts = [...document.querySelectorAll('script[type=module][src]')].map((s) => (s as HTMLScriptElement).src);
-      const page = await caches.match(location.href, { ignoreSearch: true });
-      const cached = await Promise.all(scripts.map((src) => caches.match(src)));
-      return Boolean(page) && cached.every(Boolean);
-    }, undefined, { timeout: 20_000, polling: 500 });
+    await page.waitForFunction(
+      async () => {
+        const registration = await navigator.serviceWorker.getRegistration('/assessments/');
+        if (!registration?.active) return false;
+        const scripts = [...document.querySelectorAll('script[type=module][src]')].map((s) => (s as HTMLScriptElement).src);
+        const page = await caches.match(location.href, { ignoreSearch: true });
+        const cached = await Promise.all(scripts.map((src) => caches.match(src)));
+        return Boolean(page) && cached.every(Boolean);
+      },
+      undefined,
+      { timeout: 20_000, polling: 500 },
+    );
 
     await session.context.setOffline(true);
     for (const q of swingQuestions.filter((x) => offlineKeys.has(x.key))) await answer(page.locator(`#q-${q.key}`), q);

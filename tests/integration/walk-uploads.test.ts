@@ -32,7 +32,8 @@ function photoForm(bytes: Uint8Array, fields: Record<string, string> = {}, name 
   return form;
 }
 
-const upload = (client: TestClient, form: FormData, id = draftId) => client.fetch(`/api/assessments/${id}/photos`, { method: 'POST', body: form, headers: { accept: 'application/json' } });
+const upload = (client: TestClient, form: FormData, id = draftId) =>
+  client.fetch(`/api/assessments/${id}/photos`, { method: 'POST', body: form, headers: { accept: 'application/json' } });
 
 /** Seven seconds at 500 Hz: contact at 1 s, a 260 N peak, under 150 N within 0.3 s, settling at 10 N. */
 function passingTrace(separator = ',', decimal = '.'): string {
@@ -46,9 +47,20 @@ function passingTrace(separator = ',', decimal = '.'): string {
 }
 
 const traceQuery = (extra: Record<string, string> = {}) =>
-  new URLSearchParams({ itemKey: 'forceTest.closing_edge', location: 'closing_edge', direction: 'closing', gapMm: '300', fileName: 'edge.csv', ...extra }).toString();
+  new URLSearchParams({
+    itemKey: 'forceTest.closing_edge',
+    location: 'closing_edge',
+    direction: 'closing',
+    gapMm: '300',
+    fileName: 'edge.csv',
+    ...extra,
+  }).toString();
 const sendTrace = (client: TestClient, csv: string, extra: Record<string, string> = {}) =>
-  client.fetch(`/api/assessments/${draftId}/force-traces?${traceQuery(extra)}`, { method: 'POST', headers: { 'content-type': 'text/csv', accept: 'application/json' }, body: csv });
+  client.fetch(`/api/assessments/${draftId}/force-traces?${traceQuery(extra)}`, {
+    method: 'POST',
+    headers: { 'content-type': 'text/csv', accept: 'application/json' },
+    body: csv,
+  });
 
 beforeAll(async () => {
   org = await createOrganisation('walk uploads');
@@ -70,7 +82,13 @@ describe('photo uploads', () => {
     expect(photo.takenAt).toBe('2026-11-30T09:15:00.000Z');
 
     const row = await testDb()('assessment_photos').where({ id: photo.id }).first();
-    expect(row).toMatchObject({ item_key: 'hingeGapMm', original_content_type: 'image/jpeg', original_bytes: original.byteLength, original_filename: 'hinge.jpg', uploaded_by: org.auditor.id });
+    expect(row).toMatchObject({
+      item_key: 'hingeGapMm',
+      original_content_type: 'image/jpeg',
+      original_bytes: original.byteLength,
+      original_filename: 'hinge.jpg',
+      uploaded_by: org.auditor.id,
+    });
     expect(row.original_sha256).toBe(createHash('sha256').update(original).digest('hex'));
 
     const display = await auditor.fetch(photo.displayUrl);
@@ -79,7 +97,12 @@ describe('photo uploads', () => {
     expect(createHash('sha256').update(displayBytes).digest('hex')).toBe(row.display_sha256);
     expect(display.headers.get('etag')).toBe(`"${row.display_sha256}"`);
     const displayMeta = await sharp(displayBytes).metadata();
-    expect({ w: displayMeta.width, h: displayMeta.height, orientation: displayMeta.orientation ?? 1, exif: displayMeta.exif }).toEqual({ w: 900, h: 1200, orientation: 1, exif: undefined });
+    expect({ w: displayMeta.width, h: displayMeta.height, orientation: displayMeta.orientation ?? 1, exif: displayMeta.exif }).toEqual({
+      w: 900,
+      h: 1200,
+      orientation: 1,
+      exif: undefined,
+    });
 
     const thumb = await sharp(Buffer.from(await (await auditor.fetch(photo.thumbUrl)).arrayBuffer())).metadata();
     expect(Math.max(thumb.width ?? 0, thumb.height ?? 0)).toBe(320);
@@ -90,7 +113,9 @@ describe('photo uploads', () => {
     const form = () => photoForm(Buffer.from([0xff, 0xd8, 0xff]), { clientRef: '3f6c2a1e-8b4d-4c7a-9e2f-1a2b3c4d5e6f' });
     const again = await upload(auditor, form());
     expect(again.status).toBe(200);
-    expect(await testDb()('assessment_photos').where({ assessment_id: draftId, client_ref: '3f6c2a1e-8b4d-4c7a-9e2f-1a2b3c4d5e6f' }).count('* as n').first()).toEqual({ n: '1' });
+    expect(
+      await testDb()('assessment_photos').where({ assessment_id: draftId, client_ref: '3f6c2a1e-8b4d-4c7a-9e2f-1a2b3c4d5e6f' }).count('* as n').first(),
+    ).toEqual({ n: '1' });
   });
 
   it('checks the type by content: a PDF named .jpg is refused, naming what it is', async () => {
@@ -112,14 +137,18 @@ describe('photo uploads', () => {
   });
 
   it('refuses a photo without a walk-through item, or with a malformed device id', async () => {
-    const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } }).png().toBuffer();
+    const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } })
+      .png()
+      .toBuffer();
     const res = await upload(auditor, photoForm(png, { itemKey: '../etc', clientRef: 'not-a-uuid' }, 'a.png', 'image/png'));
     expect(res.status).toBe(422);
     expect((await res.json()).errors.map((e: { field: string }) => e.field).sort()).toEqual(['clientRef', 'itemKey']);
   });
 
   it("keeps another auditor's hands off this draft's photos", async () => {
-    const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } }).png().toBuffer();
+    const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } })
+      .png()
+      .toBuffer();
     expect((await upload(auditor2, photoForm(png, {}, 'a.png', 'image/png'))).status).toBe(403);
   });
 

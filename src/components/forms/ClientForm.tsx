@@ -35,7 +35,9 @@ export default function ClientForm() {
         {(id, d) => (
           <select id={id} aria-describedby={d} className="field" {...register('kind')}>
             {CLIENT_KINDS.map((k) => (
-              <option key={k} value={k}>{KIND_LABEL[k]}</option>
+              <option key={k} value={k}>
+                {KIND_LABEL[k]}
+              </option>
             ))}
           </select>
         )}

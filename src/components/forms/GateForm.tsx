@@ -31,8 +31,22 @@ const KIND_LABEL: Record<string, string> = {
   vertical_pivot: 'Vertical pivot',
   overhead_pivot: 'Overhead pivot',
 };
-const MOUNTING_LABEL: Record<string, string> = { post: 'On the post', pad: 'On a pad', wall: 'On a wall', column: 'On a column', underground: 'Underground', overhead: 'Overhead', other: 'Other' };
-const POWER_LABEL: Record<string, string> = { mains_ac: 'Mains AC', low_voltage_ac: 'Low-voltage AC', low_voltage_dc: 'Low-voltage DC', solar: 'Solar', other: 'Other' };
+const MOUNTING_LABEL: Record<string, string> = {
+  post: 'On the post',
+  pad: 'On a pad',
+  wall: 'On a wall',
+  column: 'On a column',
+  underground: 'Underground',
+  overhead: 'Overhead',
+  other: 'Other',
+};
+const POWER_LABEL: Record<string, string> = {
+  mains_ac: 'Mains AC',
+  low_voltage_ac: 'Low-voltage AC',
+  low_voltage_dc: 'Low-voltage DC',
+  solar: 'Solar',
+  other: 'Other',
+};
 
 const triState = { setValueAs: (v: unknown) => (v === '' || v === undefined ? undefined : v === true || v === 'true') };
 const number = { setValueAs: (v: unknown) => (v === '' || v === undefined ? Number.NaN : Number(String(v).replace(',', '.'))) };
@@ -107,7 +121,9 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
           <input id={id} aria-describedby={d} className="field tabular-nums" inputMode="decimal" {...register(`${key}.value`, number)} />
           <select aria-label={`${label} unit`} className="field w-24" {...register(`${key}.unit`)}>
             {unitsOffered.map((u) => (
-              <option key={u} value={u}>{u}</option>
+              <option key={u} value={u}>
+                {u}
+              </option>
             ))}
           </select>
         </div>
@@ -136,7 +152,9 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
         {(id, d) => (
           <select id={id} aria-describedby={d} className="field" {...register('kind')}>
             {GATE_KIND_VALUES.map((k) => (
-              <option key={k} value={k}>{KIND_LABEL[k]}</option>
+              <option key={k} value={k}>
+                {KIND_LABEL[k]}
+              </option>
             ))}
           </select>
         )}
@@ -180,7 +198,9 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
             <select id={id} aria-describedby={d} className="field" {...register('operator.mounting')}>
               <option value="">Not recorded</option>
               {OPERATOR_MOUNTINGS.map((m) => (
-                <option key={m} value={m}>{MOUNTING_LABEL[m]}</option>
+                <option key={m} value={m}>
+                  {MOUNTING_LABEL[m]}
+                </option>
               ))}
             </select>
           )}
@@ -190,7 +210,9 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
             <select id={id} aria-describedby={d} className="field" {...register('operator.power')}>
               <option value="">Not recorded</option>
               {OPERATOR_POWER.map((p) => (
-                <option key={p} value={p}>{POWER_LABEL[p]}</option>
+                <option key={p} value={p}>
+                  {POWER_LABEL[p]}
+                </option>
               ))}
             </select>
           )}

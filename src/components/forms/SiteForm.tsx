@@ -61,7 +61,10 @@ export default function SiteForm({ clientId }: { clientId: string }) {
         <legend className="label">Who uses the gate (usage class)</legend>
         <div className="grid gap-2 sm:grid-cols-2">
           {USAGE_CLASS_TEXT.map((c) => (
-            <label key={c.value} className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg border border-iron-200 bg-white p-3 has-checked:border-iron-800 has-checked:bg-iron-50">
+            <label
+              key={c.value}
+              className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg border border-iron-200 bg-white p-3 has-checked:border-iron-800 has-checked:bg-iron-50"
+            >
               <input type="radio" className="mt-1 size-5 accent-iron-800" value={c.value} {...register('usageClass', { setValueAs: (v) => Number(v) })} />
               <span>
                 <span className="block font-semibold text-iron-900">{c.title}</span>

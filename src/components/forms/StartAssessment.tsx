@@ -40,25 +40,37 @@ export default function StartAssessment({ gateId, families }: Props) {
   return (
     <div className="grid gap-2 sm:grid-cols-[1fr_1fr_auto] sm:items-end">
       <div>
-        <label htmlFor={`${id}-family`} className="label">Ruleset</label>
+        <label htmlFor={`${id}-family`} className="label">
+          Ruleset
+        </label>
         <select id={`${id}-family`} className="field" value={family} onChange={(e) => setFamily(e.target.value)}>
           {families.map((f) => (
-            <option key={f.family} value={f.family}>{f.title} ({f.current})</option>
+            <option key={f.family} value={f.family}>
+              {f.title} ({f.current})
+            </option>
           ))}
         </select>
       </div>
       <div>
-        <label htmlFor={`${id}-purpose`} className="label">Purpose</label>
+        <label htmlFor={`${id}-purpose`} className="label">
+          Purpose
+        </label>
         <select id={`${id}-purpose`} className="field" value={purpose} onChange={(e) => setPurpose(e.target.value)}>
           {PURPOSES.map((p) => (
-            <option key={p.value} value={p.value}>{p.label}</option>
+            <option key={p.value} value={p.value}>
+              {p.label}
+            </option>
           ))}
         </select>
       </div>
       <button type="button" className="btn" disabled={busy} onClick={() => void start()}>
         {busy ? 'Starting…' : 'Start the walk-through'}
       </button>
-      {message && <p role="alert" className="font-semibold text-withdraw sm:col-span-3">{message}</p>}
+      {message && (
+        <p role="alert" className="font-semibold text-withdraw sm:col-span-3">
+          {message}
+        </p>
+      )}
     </div>
   );
 }

@@ -20,18 +20,33 @@ export function ClearanceChart({ chart, limitMm, units }: { chart: SwingGeometry
   return (
     <figure className="m-0 mt-3">
       <figcaption className="mb-1 text-sm font-semibold text-iron-900">Ram-to-leaf clearance over the swing</figcaption>
-      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full" role="img" aria-label={`Clearance from ${formatLength(values[0] ?? 0, units)} closed to ${formatLength(values[values.length - 1] ?? 0, units)} at ${maxAngle}°, smallest ${formatLength(min, units)} at ${minAt}°; the dashed line is the ${formatLength(limitMm, units)} wanted.`}>
+      <svg
+        viewBox={`0 0 ${W} ${H}`}
+        className="h-auto w-full"
+        role="img"
+        aria-label={`Clearance from ${formatLength(values[0] ?? 0, units)} closed to ${formatLength(values[values.length - 1] ?? 0, units)} at ${maxAngle}°, smallest ${formatLength(min, units)} at ${minAt}°; the dashed line is the ${formatLength(limitMm, units)} wanted.`}
+      >
         <rect x={M.left} y={y(limitMm)} width={W - M.left - M.right} height={Math.max(0, y(bottom) - y(limitMm))} fill="#b3261e" fillOpacity={0.08} />
         <line x1={M.left} x2={W - M.right} y1={y(limitMm)} y2={y(limitMm)} stroke="#b3261e" strokeWidth={1.5} strokeDasharray="6 4" />
         <line x1={M.left} x2={M.left} y1={M.top} y2={H - M.bottom} stroke="#3b5370" />
         <line x1={M.left} x2={W - M.right} y1={H - M.bottom} y2={H - M.bottom} stroke="#3b5370" />
         <polyline points={points} fill="none" stroke="#1d2c3f" strokeWidth={2.5} strokeLinejoin="round" />
         <circle cx={x(minAt)} cy={y(min)} r={4} fill={min < limitMm ? '#b3261e' : '#1f7a45'} />
-        <text x={M.left - 4} y={y(top / 1.15) + 4} textAnchor="end" fontSize="11" fill="#1d2c3f">{formatLength(top / 1.15, units)}</text>
-        <text x={M.left - 4} y={y(limitMm) + 4} textAnchor="end" fontSize="11" fill="#b3261e">{formatLength(limitMm, units)}</text>
-        <text x={M.left} y={H - 10} fontSize="11" fill="#1d2c3f">0°</text>
-        <text x={W - M.right} y={H - 10} textAnchor="end" fontSize="11" fill="#1d2c3f">{maxAngle}°</text>
-        <text x={(M.left + W - M.right) / 2} y={H - 10} textAnchor="middle" fontSize="11" fill="#3b5370">opening angle</text>
+        <text x={M.left - 4} y={y(top / 1.15) + 4} textAnchor="end" fontSize="11" fill="#1d2c3f">
+          {formatLength(top / 1.15, units)}
+        </text>
+        <text x={M.left - 4} y={y(limitMm) + 4} textAnchor="end" fontSize="11" fill="#b3261e">
+          {formatLength(limitMm, units)}
+        </text>
+        <text x={M.left} y={H - 10} fontSize="11" fill="#1d2c3f">
+          0°
+        </text>
+        <text x={W - M.right} y={H - 10} textAnchor="end" fontSize="11" fill="#1d2c3f">
+          {maxAngle}°
+        </text>
+        <text x={(M.left + W - M.right) / 2} y={H - 10} textAnchor="middle" fontSize="11" fill="#3b5370">
+          opening angle
+        </text>
       </svg>
     </figure>
   );

@@ -44,10 +44,20 @@ export function ConflictDialog({ conflicts, questions, onResolve }: Props) {
   }, [conflicts.length]);
   const complete = conflicts.every((c) => choices.has(c.field.join('.')));
   return (
-    <dialog ref={dialog} aria-labelledby="conflict-title" className="m-auto w-[min(100vw-1rem,40rem)] rounded-xl p-0 backdrop:bg-iron-900/60" onCancel={(e) => e.preventDefault()}>
+    <dialog
+      ref={dialog}
+      aria-labelledby="conflict-title"
+      className="m-auto w-[min(100vw-1rem,40rem)] rounded-xl p-0 backdrop:bg-iron-900/60"
+      onCancel={(e) => e.preventDefault()}
+    >
       <div className="p-4">
-        <h2 id="conflict-title" className="text-xl font-bold text-iron-900">Saved elsewhere in the meantime</h2>
-        <p className="mt-1 text-iron-700">Someone saved other values for {conflicts.length === 1 ? 'this item' : `these ${conflicts.length} items`} while this phone had changes waiting. Choose which value to keep for each.</p>
+        <h2 id="conflict-title" className="text-xl font-bold text-iron-900">
+          Saved elsewhere in the meantime
+        </h2>
+        <p className="mt-1 text-iron-700">
+          Someone saved other values for {conflicts.length === 1 ? 'this item' : `these ${conflicts.length} items`} while this phone had changes waiting. Choose
+          which value to keep for each.
+        </p>
         <ul className="mt-4 grid gap-4">
           {conflicts.map((c) => {
             const id = c.field.join('.');
@@ -57,7 +67,13 @@ export function ConflictDialog({ conflicts, questions, onResolve }: Props) {
                   <legend className="px-1 font-semibold text-iron-900">{titleOf(c.field, questions)}</legend>
                   {(['mine', 'theirs'] as const).map((side) => (
                     <label key={side} className="mt-2 flex min-h-11 cursor-pointer items-center gap-3 rounded-md px-2 hover:bg-iron-50">
-                      <input type="radio" className="size-5 accent-iron-800" name={id} checked={choices.get(id) === side} onChange={() => setChoices((m) => new Map(m).set(id, side))} />
+                      <input
+                        type="radio"
+                        className="size-5 accent-iron-800"
+                        name={id}
+                        checked={choices.get(id) === side}
+                        onChange={() => setChoices((m) => new Map(m).set(id, side))}
+                      />
                       <span>
                         <span className="block text-sm text-iron-600">{side === 'mine' ? 'On this phone' : 'Saved elsewhere'}</span>
                         <span className="block font-semibold text-iron-900">{describe(side === 'mine' ? c.mine : c.theirs)}</span>

@@ -25,7 +25,19 @@ export interface EntrapmentValue {
 
 const selectClass = 'field min-h-11';
 
-function Select({ label, value, options, onChange, disabled }: { label: string; value: string; options: Record<string, string>; onChange(v: string): void; disabled: boolean }) {
+function Select({
+  label,
+  value,
+  options,
+  onChange,
+  disabled,
+}: {
+  label: string;
+  value: string;
+  options: Record<string, string>;
+  onChange(v: string): void;
+  disabled: boolean;
+}) {
   const id = useId();
   return (
     <div>
@@ -51,13 +63,18 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
   const setDevice = (i: number, device: Partial<Device>) => save({ ...current, devices: current.devices.map((d, j) => (j === i ? { ...d, ...device } : d)) });
 
   return (
-    <section id="item-entrapment" tabIndex={-1} aria-labelledby="entrapment-title" className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}>
+    <section
+      id="item-entrapment"
+      tabIndex={-1}
+      aria-labelledby="entrapment-title"
+      className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}
+    >
       <h3 id="entrapment-title" className="text-lg font-semibold text-iron-900">
         Entrapment zones and protection
       </h3>
       <p className="mt-1 text-sm text-iron-600">
-        List every place a person could be caught as the gate moves, then each device that protects it. Two independent means per direction are
-        expected on gates built to the current rules.
+        List every place a person could be caught as the gate moves, then each device that protects it. Two independent means per direction are expected on
+        gates built to the current rules.
       </p>
 
       <h4 className="mt-4 font-semibold text-iron-900">Zones found ({current.zones.length})</h4>
@@ -65,7 +82,13 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
         {current.zones.map((zone, i) => (
           <li key={i} className="grid gap-2 rounded-lg border border-iron-100 p-3 sm:grid-cols-[1fr_1fr_auto] sm:items-end">
             <Select label="Where" value={zone.zone} options={ZONE_LABEL} disabled={!editable} onChange={(v) => setZone(i, { zone: v })} />
-            <Select label="When" value={zone.direction} options={DIRECTION_LABEL} disabled={!editable} onChange={(v) => setZone(i, { direction: v as Zone['direction'] })} />
+            <Select
+              label="When"
+              value={zone.direction}
+              options={DIRECTION_LABEL}
+              disabled={!editable}
+              onChange={(v) => setZone(i, { direction: v as Zone['direction'] })}
+            />
             {editable && (
               <button type="button" className="btn-secondary" onClick={() => save({ ...current, zones: current.zones.filter((_, j) => j !== i) })}>
                 Remove zone
@@ -75,7 +98,11 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
         ))}
       </ul>
       {editable && (
-        <button type="button" className="btn-secondary mt-2" onClick={() => save({ ...current, zones: [...current.zones, { zone: 'closing_edge', direction: 'closing' }] })}>
+        <button
+          type="button"
+          className="btn-secondary mt-2"
+          onClick={() => save({ ...current, zones: [...current.zones, { zone: 'closing_edge', direction: 'closing' }] })}
+        >
           + Add a zone
         </button>
       )}
@@ -86,13 +113,29 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
           <li key={i} className="grid gap-2 rounded-lg border border-iron-100 p-3 sm:grid-cols-2">
             <Select label="Type" value={device.type} options={DEVICE_LABEL} disabled={!editable} onChange={(v) => setDevice(i, { type: v })} />
             <Select label="Protects" value={device.zone} options={ZONE_LABEL} disabled={!editable} onChange={(v) => setDevice(i, { zone: v })} />
-            <Select label="When" value={device.direction} options={DIRECTION_LABEL} disabled={!editable} onChange={(v) => setDevice(i, { direction: v as Device['direction'] })} />
+            <Select
+              label="When"
+              value={device.direction}
+              options={DIRECTION_LABEL}
+              disabled={!editable}
+              onChange={(v) => setDevice(i, { direction: v as Device['direction'] })}
+            />
             <label className="flex min-h-11 items-center gap-3 self-end font-semibold text-iron-900">
-              <input type="checkbox" className="size-6 accent-iron-800" checked={device.monitored} disabled={!editable} onChange={(e) => setDevice(i, { monitored: e.target.checked })} />
+              <input
+                type="checkbox"
+                className="size-6 accent-iron-800"
+                checked={device.monitored}
+                disabled={!editable}
+                onChange={(e) => setDevice(i, { monitored: e.target.checked })}
+              />
               Monitored by the operator
             </label>
             {editable && (
-              <button type="button" className="btn-secondary sm:col-span-2" onClick={() => save({ ...current, devices: current.devices.filter((_, j) => j !== i) })}>
+              <button
+                type="button"
+                className="btn-secondary sm:col-span-2"
+                onClick={() => save({ ...current, devices: current.devices.filter((_, j) => j !== i) })}
+              >
                 Remove device
               </button>
             )}
@@ -103,7 +146,15 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
         <button
           type="button"
           className="btn-secondary mt-2"
-          onClick={() => save({ ...current, devices: [...current.devices, { type: 'B1', zone: current.zones[0]?.zone ?? 'closing_edge', direction: current.zones[0]?.direction ?? 'closing', monitored: true }] })}
+          onClick={() =>
+            save({
+              ...current,
+              devices: [
+                ...current.devices,
+                { type: 'B1', zone: current.zones[0]?.zone ?? 'closing_edge', direction: current.zones[0]?.direction ?? 'closing', monitored: true },
+              ],
+            })
+          }
         >
           + Add a device
         </button>

@@ -44,7 +44,12 @@ function toForceTest(trace: ShownTrace): Json | null {
     location: trace.location,
     direction: trace.direction,
     gapMm: trace.gapMm,
-    summary: { peakN: Math.max(0, e.peak), durationAbove150S: Math.max(0, e.durationAbove150), staticN: Math.max(0, e.staticForce), residualAt5sN: Math.max(0, e.residualAt5s) },
+    summary: {
+      peakN: Math.max(0, e.peak),
+      durationAbove150S: Math.max(0, e.durationAbove150),
+      staticN: Math.max(0, e.staticForce),
+      residualAt5sN: Math.max(0, e.residualAt5s),
+    },
     note: `Trace ${trace.label}`.slice(0, 2000),
   };
 }
@@ -52,7 +57,9 @@ function toForceTest(trace: ShownTrace): Json | null {
 function Row({ label, value, limit, pass }: { label: string; value: string; limit: string; pass: boolean }) {
   return (
     <tr className="border-t border-iron-100">
-      <th scope="row" className="py-1.5 pr-2 text-left font-normal text-iron-700">{label}</th>
+      <th scope="row" className="py-1.5 pr-2 text-left font-normal text-iron-700">
+        {label}
+      </th>
       <td className="py-1.5 pr-2 text-right font-semibold whitespace-nowrap tabular-nums">{value}</td>
       <td className="py-1.5 pr-2 text-right whitespace-nowrap text-iron-600 tabular-nums">{limit}</td>
       <td className={`py-1.5 text-right font-bold ${pass ? 'text-clear' : 'text-withdraw'}`}>{pass ? 'Pass' : 'Fail'}</td>
@@ -63,14 +70,24 @@ function Row({ label, value, limit, pass }: { label: string; value: string; limi
 function Evaluation({ e }: { e: ForceTraceResult }) {
   return (
     <div>
-      <p className={`mb-2 inline-block rounded-md px-2 py-1 font-bold text-white ${e.overallPass ? 'bg-clear' : 'bg-withdraw'}`}>{e.overallPass ? 'Within the limits' : 'Over a limit'}</p>
+      <p className={`mb-2 inline-block rounded-md px-2 py-1 font-bold text-white ${e.overallPass ? 'bg-clear' : 'bg-withdraw'}`}>
+        {e.overallPass ? 'Within the limits' : 'Over a limit'}
+      </p>
       <table className="w-full text-sm">
         <thead>
           <tr className="text-xs text-iron-600">
-            <th scope="col" className="text-left font-semibold">Measure</th>
-            <th scope="col" className="text-right font-semibold">Found</th>
-            <th scope="col" className="text-right font-semibold">Limit</th>
-            <th scope="col" className="text-right font-semibold"><span className="sr-only">Outcome</span></th>
+            <th scope="col" className="text-left font-semibold">
+              Measure
+            </th>
+            <th scope="col" className="text-right font-semibold">
+              Found
+            </th>
+            <th scope="col" className="text-right font-semibold">
+              Limit
+            </th>
+            <th scope="col" className="text-right font-semibold">
+              <span className="sr-only">Outcome</span>
+            </th>
           </tr>
         </thead>
         <tbody>
@@ -80,7 +97,9 @@ function Evaluation({ e }: { e: ForceTraceResult }) {
           <Row label="Force 5 s after contact" value={`${e.residualAt5s} N`} limit={`${e.limits.maxResidualN} N`} pass={e.pass.residualAt5s} />
         </tbody>
       </table>
-      <p className="mt-2 text-xs text-iron-600">{e.sampleCount} samples at {e.sampleRateHz} Hz; first contact at {e.firstContactAt} s.</p>
+      <p className="mt-2 text-xs text-iron-600">
+        {e.sampleCount} samples at {e.sampleRateHz} Hz; first contact at {e.firstContactAt} s.
+      </p>
     </div>
   );
 }
@@ -107,16 +126,37 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
       } catch {
         // Checked before queueing; a file that no longer parses shows without a plot.
       }
-      return { key: op.clientRef, clientRef: op.clientRef, serverId: null, label: op.fileName, location: op.location as TraceLocation, direction: op.direction, gapMm: op.gapMm, samples, evaluation, waiting: true };
+      return {
+        key: op.clientRef,
+        clientRef: op.clientRef,
+        serverId: null,
+        label: op.fileName,
+        location: op.location as TraceLocation,
+        direction: op.direction,
+        gapMm: op.gapMm,
+        samples,
+        evaluation,
+        waiting: true,
+      };
     });
     const uploaded = traces
       .filter((t) => !waiting.some((op) => op.clientRef === t.clientRef))
-      .map((t) => ({ key: t.id, clientRef: t.clientRef ?? t.id, serverId: t.id, label: t.label ?? 'trace', location: t.location, direction: t.direction, gapMm: t.gapMm, samples: t.samples, evaluation: t.evaluation as ForceTraceResult | null, waiting: false }));
+      .map((t) => ({
+        key: t.id,
+        clientRef: t.clientRef ?? t.id,
+        serverId: t.id,
+        label: t.label ?? 'trace',
+        location: t.location,
+        direction: t.direction,
+        gapMm: t.gapMm,
+        samples: t.samples,
+        evaluation: t.evaluation as ForceTraceResult | null,
+        waiting: false,
+      }));
     return [...uploaded, ...local];
   }, [traces, pending, gateKind]);
 
-  const saveForceTests = (list: ShownTrace[]) =>
-    void sync.edit({ observations: { forceTests: list.map(toForceTest).filter((t): t is Json => t !== null) } });
+  const saveForceTests = (list: ShownTrace[]) => void sync.edit({ observations: { forceTests: list.map(toForceTest).filter((t): t is Json => t !== null) } });
 
   const upload = async (file: File | undefined) => {
     if (!file) return;
@@ -148,7 +188,10 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
     const clientRef = newClientRef();
     const op: TraceOp = { kind: 'trace', clientRef, itemKey: `forceTest.${location}`, fileName: file.name.slice(0, 200), csv, location, direction, gapMm };
     await sync.addTrace(op);
-    saveForceTests([...shown, { key: clientRef, clientRef, serverId: null, label: op.fileName, location, direction, gapMm, samples, evaluation, waiting: true }]);
+    saveForceTests([
+      ...shown,
+      { key: clientRef, clientRef, serverId: null, label: op.fileName, location, direction, gapMm, samples, evaluation, waiting: true },
+    ]);
   };
 
   const remove = (trace: ShownTrace) => {
@@ -157,45 +200,77 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
   };
 
   return (
-    <section id="item-force" tabIndex={-1} aria-labelledby="force-title" className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}>
+    <section
+      id="item-force"
+      tabIndex={-1}
+      aria-labelledby="force-title"
+      className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}
+    >
       <h3 id="force-title" className="text-lg font-semibold text-iron-900">
         Force traces
       </h3>
       <p className="mt-1 text-sm text-iron-600">
-        Upload the CSV your force meter exported at each measuring point (time and force; comma or semicolon; header optional). The trace is judged
-        against the limits for the gap left at that point.
+        Upload the CSV your force meter exported at each measuring point (time and force; comma or semicolon; header optional). The trace is judged against the
+        limits for the gap left at that point.
       </p>
       {editable && (
         <div className="mt-3 grid gap-3 sm:grid-cols-3">
           <div>
-            <label htmlFor={ids.location} className="label">Measuring point</label>
+            <label htmlFor={ids.location} className="label">
+              Measuring point
+            </label>
             <select id={ids.location} className="field" value={location} onChange={(e) => setLocation(e.target.value as TraceLocation)}>
               {TRACE_LOCATIONS.map((l) => (
-                <option key={l} value={l}>{TRACE_LOCATION_LABEL[l]}</option>
+                <option key={l} value={l}>
+                  {TRACE_LOCATION_LABEL[l]}
+                </option>
               ))}
             </select>
           </div>
           <div>
-            <label htmlFor={ids.direction} className="label">Gate moving</label>
+            <label htmlFor={ids.direction} className="label">
+              Gate moving
+            </label>
             <select id={ids.direction} className="field" value={direction} onChange={(e) => setDirection(e.target.value as 'closing' | 'opening')}>
               <option value="closing">{DIRECTION_LABEL.closing}</option>
               <option value="opening">{DIRECTION_LABEL.opening}</option>
             </select>
           </div>
           <div>
-            <label htmlFor={ids.gap} className="label">Gap left at the point</label>
+            <label htmlFor={ids.gap} className="label">
+              Gap left at the point
+            </label>
             <div className="flex gap-2">
-              <input id={ids.gap} className="field" inputMode="decimal" value={gapText} onChange={(e) => setGapText(e.target.value)} placeholder={units === 'metric' ? '300' : '12'} />
+              <input
+                id={ids.gap}
+                className="field"
+                inputMode="decimal"
+                value={gapText}
+                onChange={(e) => setGapText(e.target.value)}
+                placeholder={units === 'metric' ? '300' : '12'}
+              />
               <select aria-label="Gap unit" className="field w-24" value={gapUnit} onChange={(e) => setGapUnit(e.target.value)}>
                 {lengthUnits.map((u) => (
-                  <option key={u} value={u}>{u}</option>
+                  <option key={u} value={u}>
+                    {u}
+                  </option>
                 ))}
               </select>
             </div>
           </div>
           <label className="btn sm:col-span-3 cursor-pointer focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-brass-500">
             Choose the meter’s CSV file
-            <input id={ids.file} type="file" accept=".csv,.txt,text/csv,text/plain" className="sr-only" aria-describedby={error ? ids.error : undefined} onChange={(e) => { void upload(e.target.files?.[0]); e.target.value = ''; }} />
+            <input
+              id={ids.file}
+              type="file"
+              accept=".csv,.txt,text/csv,text/plain"
+              className="sr-only"
+              aria-describedby={error ? ids.error : undefined}
+              onChange={(e) => {
+                void upload(e.target.files?.[0]);
+                e.target.value = '';
+              }}
+            />
           </label>
         </div>
       )}

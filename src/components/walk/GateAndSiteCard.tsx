@@ -47,15 +47,37 @@ function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neede
   const { sync, editable } = useWalkActions();
   const facts: [string, string][] = [
     ['Kind', `${KIND_LABEL[gate.kind] ?? gate.kind}, ${gate.leaves === 'double' ? 'two leaves' : 'one leaf'}`],
-    ...(gate.kind === 'swing' ? [['Opens', gate.openingDirection === 'pull_to_open' ? 'Toward the operator side' : gate.openingDirection === 'push_to_open' ? 'Away from the operator side' : 'Not recorded'] as [string, string]] : []),
-    ['Width', gate.entered.width ? `${gate.entered.width.value} ${gate.entered.width.unit}` : gate.widthMm ? formatLength(gate.widthMm, units) : 'Not recorded'],
-    ['Weight', gate.entered.weight ? `${gate.entered.weight.value} ${gate.entered.weight.unit}` : gate.weightKg ? formatMass(gate.weightKg, units) : 'Not recorded'],
+    ...(gate.kind === 'swing'
+      ? [
+          [
+            'Opens',
+            gate.openingDirection === 'pull_to_open'
+              ? 'Toward the operator side'
+              : gate.openingDirection === 'push_to_open'
+                ? 'Away from the operator side'
+                : 'Not recorded',
+          ] as [string, string],
+        ]
+      : []),
+    [
+      'Width',
+      gate.entered.width ? `${gate.entered.width.value} ${gate.entered.width.unit}` : gate.widthMm ? formatLength(gate.widthMm, units) : 'Not recorded',
+    ],
+    [
+      'Weight',
+      gate.entered.weight ? `${gate.entered.weight.value} ${gate.entered.weight.unit}` : gate.weightKg ? formatMass(gate.weightKg, units) : 'Not recorded',
+    ],
     ['Usage class', ['I', 'II', 'III', 'IV'][gate.usageClass - 1] ?? String(gate.usageClass)],
     ['Operator listed', yesNoUnknown(gate.operator.listed)],
     ['Automatic closing', yesNoUnknown(gate.operator.automaticClosing)],
   ];
   return (
-    <section aria-labelledby="gate-site-title" id="item-site" tabIndex={-1} className={`card scroll-mt-32 border-l-4 ${neededSite || neededGate ? 'border-l-brass-500' : 'border-l-iron-200'}`}>
+    <section
+      aria-labelledby="gate-site-title"
+      id="item-site"
+      tabIndex={-1}
+      className={`card scroll-mt-32 border-l-4 ${neededSite || neededGate ? 'border-l-brass-500' : 'border-l-iron-200'}`}
+    >
       <h2 id="gate-site-title" className="text-xl font-bold text-iron-900">
         Gate and site
       </h2>

@@ -34,7 +34,10 @@ export function LiveSummary({ result, ruleset, stale, toCheck, blockers, onOpen 
                     <span className="truncate text-iron-800">{area.title}</span>
                     <span className="font-semibold tabular-nums text-iron-900">{value}</span>
                     <span className="col-span-2 h-1.5 overflow-hidden rounded-full bg-iron-100" aria-hidden="true">
-                      <span className={`block h-full ${value >= 90 ? 'bg-clear' : value >= 60 ? 'bg-remedy' : 'bg-withdraw'}`} style={{ width: `${Math.max(2, value)}%` }} />
+                      <span
+                        className={`block h-full ${value >= 90 ? 'bg-clear' : value >= 60 ? 'bg-remedy' : 'bg-withdraw'}`}
+                        style={{ width: `${Math.max(2, value)}%` }}
+                      />
                     </span>
                   </li>
                 );

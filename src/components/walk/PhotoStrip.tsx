@@ -32,7 +32,9 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
     const file = files?.[0];
     if (!file) return;
     if (file.size > MAX_PHOTO_BYTES) {
-      setMessage(`This photo is ${megabytes(file.size)}; the limit is ${megabytes(MAX_PHOTO_BYTES)}. Take it again at a lower resolution, or pick a smaller copy.`);
+      setMessage(
+        `This photo is ${megabytes(file.size)}; the limit is ${megabytes(MAX_PHOTO_BYTES)}. Take it again at a lower resolution, or pick a smaller copy.`,
+      );
       return;
     }
     if (file.type && !file.type.startsWith('image/')) {
@@ -54,7 +56,13 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
           {photos.map((photo) => (
             <li key={photo.id} className="relative">
               <a href={photo.displayUrl} target="_blank" rel="noopener" className="block">
-                <img src={photo.thumbUrl} alt={`Photo ${photo.takenAt ? `taken ${new Date(photo.takenAt).toLocaleString()}` : ''}`} width={72} height={72} className="size-18 rounded-md border border-iron-200 object-cover" />
+                <img
+                  src={photo.thumbUrl}
+                  alt={`Photo ${photo.takenAt ? `taken ${new Date(photo.takenAt).toLocaleString()}` : ''}`}
+                  width={72}
+                  height={72}
+                  className="size-18 rounded-md border border-iron-200 object-cover"
+                />
               </a>
               {editable && (
                 <button
@@ -71,7 +79,13 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
           {pending.map((photo) => (
             <li key={photo.clientRef} className="relative">
               {photo.url ? (
-                <img src={photo.url} alt={`Photo ${photo.fileName}, waiting to upload`} width={72} height={72} className="size-18 rounded-md border-2 border-dashed border-brass-500 object-cover" />
+                <img
+                  src={photo.url}
+                  alt={`Photo ${photo.fileName}, waiting to upload`}
+                  width={72}
+                  height={72}
+                  className="size-18 rounded-md border-2 border-dashed border-brass-500 object-cover"
+                />
               ) : (
                 <span className="flex size-18 items-center justify-center rounded-md border-2 border-dashed border-brass-500 text-xs">photo</span>
               )}
@@ -99,11 +113,30 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
               <circle cx="12" cy="13" r="3.5" fill="none" stroke="currentColor" strokeWidth="2" />
             </svg>
             Take photo
-            <input type="file" accept="image/*" capture="environment" className="sr-only" aria-describedby={message ? id : undefined} onChange={(e) => { add(e.target.files); e.target.value = ''; }} />
+            <input
+              type="file"
+              accept="image/*"
+              capture="environment"
+              className="sr-only"
+              aria-describedby={message ? id : undefined}
+              onChange={(e) => {
+                add(e.target.files);
+                e.target.value = '';
+              }}
+            />
           </label>
           <label className="btn-secondary min-h-11 cursor-pointer focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-brass-500">
             Pick a photo
-            <input type="file" accept="image/*" className="sr-only" data-photo-pick={itemKey} onChange={(e) => { add(e.target.files); e.target.value = ''; }} />
+            <input
+              type="file"
+              accept="image/*"
+              className="sr-only"
+              data-photo-pick={itemKey}
+              onChange={(e) => {
+                add(e.target.files);
+                e.target.value = '';
+              }}
+            />
           </label>
         </div>
       )}

@@ -60,14 +60,38 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
     );
   } else if (question.answerType === 'date') {
     control = (
-      <input type="date" className="field max-w-52" aria-labelledby={promptId} value={answer?.value ?? ''} disabled={!editable} onChange={(e) => setAnswer(e.target.value || null)} />
+      <input
+        type="date"
+        className="field max-w-52"
+        aria-labelledby={promptId}
+        value={answer?.value ?? ''}
+        disabled={!editable}
+        onChange={(e) => setAnswer(e.target.value || null)}
+      />
     );
   } else if (question.answerType === 'text') {
     control = (
-      <input type="text" className="field" aria-labelledby={promptId} maxLength={200} defaultValue={answer?.value ?? ''} disabled={!editable} onChange={(e) => setAnswer(e.target.value.trim() || null)} />
+      <input
+        type="text"
+        className="field"
+        aria-labelledby={promptId}
+        maxLength={200}
+        defaultValue={answer?.value ?? ''}
+        disabled={!editable}
+        onChange={(e) => setAnswer(e.target.value.trim() || null)}
+      />
     );
   } else {
-    control = <MeasureInput kind={question.answerType as MeasuredAnswerType} labelledBy={promptId} value={measurement} units={units} disabled={!editable} onChange={setMeasurement} />;
+    control = (
+      <MeasureInput
+        kind={question.answerType as MeasuredAnswerType}
+        labelledBy={promptId}
+        value={measurement}
+        units={units}
+        disabled={!editable}
+        onChange={setMeasurement}
+      />
+    );
   }
 
   return (

@@ -14,7 +14,9 @@ function AreaScores({ result, ruleset }: { result: ScoreResult; ruleset: WalkRul
   const rows = ruleset.areas.filter((a) => result.areaScores[a.key] !== null && result.areaScores[a.key] !== undefined);
   return (
     <section aria-labelledby="area-scores" className="card">
-      <h3 id="area-scores" className="mb-3 text-lg font-bold text-iron-900">Scores by hazard area</h3>
+      <h3 id="area-scores" className="mb-3 text-lg font-bold text-iron-900">
+        Scores by hazard area
+      </h3>
       <ul className="grid gap-3">
         {rows.map((area) => {
           const value = result.areaScores[area.key] as number;
@@ -40,20 +42,30 @@ function FailingFindings({ findings, areaTitle }: { findings: Finding[]; areaTit
   const failing = findings.filter((f) => f.outcome === 'fail').sort((a, b) => SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
   return (
     <section aria-labelledby="failing" className="card">
-      <h3 id="failing" className="mb-3 text-lg font-bold text-iron-900">Failing items ({failing.length})</h3>
+      <h3 id="failing" className="mb-3 text-lg font-bold text-iron-900">
+        Failing items ({failing.length})
+      </h3>
       {failing.length === 0 ? (
         <p className="text-iron-700">No item fails.</p>
       ) : (
         <ul className="grid gap-3">
           {failing.map((f) => (
-            <li key={f.ruleId} className={`rounded-lg border-l-4 bg-iron-50 p-3 ${f.severity === 'critical' ? 'border-l-withdraw' : f.severity === 'major' ? 'border-l-remedy' : 'border-l-iron-400'}`}>
+            <li
+              key={f.ruleId}
+              className={`rounded-lg border-l-4 bg-iron-50 p-3 ${f.severity === 'critical' ? 'border-l-withdraw' : f.severity === 'major' ? 'border-l-remedy' : 'border-l-iron-400'}`}
+            >
               <p className="text-xs font-semibold uppercase tracking-wide text-iron-600">
                 {SEVERITY_LABEL[f.severity]} · {areaTitle(f.area)}
                 {f.hrn ? ` · HRN ${f.hrn.value} (${f.hrn.band})` : ''}
               </p>
               <p className="mt-0.5 font-semibold text-iron-900">{f.title}</p>
-              <p className="mt-1 text-iron-800"><span className="font-semibold">Remedy: </span>{f.remediation}</p>
-              <p className="mt-1 text-xs text-iron-600">{f.reference.standard}, {f.reference.clause}</p>
+              <p className="mt-1 text-iron-800">
+                <span className="font-semibold">Remedy: </span>
+                {f.remediation}
+              </p>
+              <p className="mt-1 text-xs text-iron-600">
+                {f.reference.standard}, {f.reference.clause}
+              </p>
             </li>
           ))}
         </ul>
@@ -66,7 +78,9 @@ function Verdict({ result, live }: { result: ScoreResult; live: boolean }) {
   return (
     <div className={`rounded-xl p-4 ${VERDICT_CLASS[result.verdict]}`}>
       <p className="text-sm font-semibold uppercase tracking-wide opacity-90">{live ? 'Live result' : 'Submitted result'}</p>
-      <p className="text-2xl font-bold" data-verdict={result.verdict}>{VERDICT_LABEL[result.verdict]}</p>
+      <p className="text-2xl font-bold" data-verdict={result.verdict}>
+        {VERDICT_LABEL[result.verdict]}
+      </p>
       <p className="mt-1">{VERDICT_EXPLANATION[result.verdict]}</p>
       <p className="mt-2 text-sm font-semibold">
         {result.counts.fail} failing · {result.counts.pass} passing · {result.counts.needsInfo} waiting for information
@@ -104,12 +118,18 @@ export function ResultView(props: ResultViewProps) {
           <h2 className="text-lg font-bold text-iron-900">No live result yet</h2>
           {props.blockers.length > 0 ? (
             <ul className="mt-2 list-disc pl-5 text-iron-800">
-              {props.blockers.map((b) => <li key={b}>{b}</li>)}
+              {props.blockers.map((b) => (
+                <li key={b}>{b}</li>
+              ))}
             </ul>
           ) : props.refused ? (
-            <p className="mt-2 text-iron-800">{props.refused.detail} {(props.refused.errors ?? []).map((e) => `${e.field}: ${e.message}`).join('; ')}</p>
+            <p className="mt-2 text-iron-800">
+              {props.refused.detail} {(props.refused.errors ?? []).map((e) => `${e.field}: ${e.message}`).join('; ')}
+            </p>
           ) : (
-            <p className="mt-2 text-iron-800">{props.online ? 'Working it out…' : 'Offline: the result is worked out on the server once the signal is back.'}</p>
+            <p className="mt-2 text-iron-800">
+              {props.online ? 'Working it out…' : 'Offline: the result is worked out on the server once the signal is back.'}
+            </p>
           )}
         </div>
       )}
@@ -121,37 +141,53 @@ export function ResultView(props: ResultViewProps) {
       {result && (
         <div className="grid gap-4 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] lg:items-start">
           <div className="grid min-w-0 gap-4">
-          <Verdict result={result} live={!submitted} />
-          {!submitted && props.stale && <p className="text-sm font-semibold text-iron-700">{props.online ? 'Updating with your latest answers…' : 'Offline: this is the result before your latest answers.'}</p>}
-          {needs.length > 0 && (
-            <section aria-labelledby="still-needed" className="card border-l-4 border-l-brass-500">
-              <h3 id="still-needed" className="text-lg font-bold text-iron-900">Still needs information ({needs.length})</h3>
-              <ul className="mt-2 list-disc pl-5 text-iron-800">
-                {needs.slice(0, 8).map((n) => <li key={n.key}>{n.prompt}</li>)}
-              </ul>
-              {!submitted && (
-                <button type="button" className="btn-secondary mt-3" onClick={props.onGoToCheck}>
-                  Open the list
-                </button>
-              )}
-            </section>
-          )}
-          <FailingFindings findings={result.findings} areaTitle={areaTitle} />
+            <Verdict result={result} live={!submitted} />
+            {!submitted && props.stale && (
+              <p className="text-sm font-semibold text-iron-700">
+                {props.online ? 'Updating with your latest answers…' : 'Offline: this is the result before your latest answers.'}
+              </p>
+            )}
+            {needs.length > 0 && (
+              <section aria-labelledby="still-needed" className="card border-l-4 border-l-brass-500">
+                <h3 id="still-needed" className="text-lg font-bold text-iron-900">
+                  Still needs information ({needs.length})
+                </h3>
+                <ul className="mt-2 list-disc pl-5 text-iron-800">
+                  {needs.slice(0, 8).map((n) => (
+                    <li key={n.key}>{n.prompt}</li>
+                  ))}
+                </ul>
+                {!submitted && (
+                  <button type="button" className="btn-secondary mt-3" onClick={props.onGoToCheck}>
+                    Open the list
+                  </button>
+                )}
+              </section>
+            )}
+            <FailingFindings findings={result.findings} areaTitle={areaTitle} />
           </div>
           <AreaScores result={result} ruleset={ruleset} />
         </div>
       )}
       {!submitted && (
         <section aria-labelledby="submit-title" className="card">
-          <h2 id="submit-title" className="text-lg font-bold text-iron-900">Submit</h2>
-          <p className="mt-1 text-iron-700">Submitting scores the assessment on the server with {ruleset.title} {ruleset.version} and stores the result. Answers cannot be changed afterwards.</p>
+          <h2 id="submit-title" className="text-lg font-bold text-iron-900">
+            Submit
+          </h2>
+          <p className="mt-1 text-iron-700">
+            Submitting scores the assessment on the server with {ruleset.title} {ruleset.version} and stores the result. Answers cannot be changed afterwards.
+          </p>
           {props.submitBlocked && <p className="mt-2 font-semibold text-remedy">{props.submitBlocked}</p>}
           {props.submitProblem && (
             <div role="alert" className="mt-2 rounded-md bg-withdraw/10 px-3 py-2 text-withdraw">
               <p className="font-semibold">{props.submitProblem.detail ?? 'The assessment could not be submitted.'}</p>
               {(props.submitProblem.errors ?? []).length > 0 && (
                 <ul className="mt-1 list-disc pl-5 text-sm">
-                  {(props.submitProblem.errors ?? []).map((e) => <li key={e.field + e.message}>{e.field}: {e.message}</li>)}
+                  {(props.submitProblem.errors ?? []).map((e) => (
+                    <li key={e.field + e.message}>
+                      {e.field}: {e.message}
+                    </li>
+                  ))}
                 </ul>
               )}
             </div>

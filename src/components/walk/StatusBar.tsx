@@ -27,7 +27,12 @@ function SaveState({ state }: { state: SyncState }) {
     [icon, text, tone] = ['✓', state.online ? 'All saved' : 'All saved · offline', 'bg-clear text-white'];
   }
   return (
-    <p role="status" aria-live="polite" data-save-state={state.phase} className={`inline-flex min-h-9 items-center gap-1.5 rounded-full px-3 text-sm font-semibold ${tone}`}>
+    <p
+      role="status"
+      aria-live="polite"
+      data-save-state={state.phase}
+      className={`inline-flex min-h-9 items-center gap-1.5 rounded-full px-3 text-sm font-semibold ${tone}`}
+    >
       <span aria-hidden="true">{icon}</span>
       {text}
     </p>
@@ -54,7 +59,11 @@ export function StatusBar({ state, verdict, stale, toCheck, view, onView }: Prop
       <div className="flex flex-wrap items-center justify-between gap-2">
         <SaveState state={state} />
         {verdict ? (
-          <button type="button" onClick={() => onView('result')} className={`inline-flex min-h-9 items-center gap-1 rounded-full px-3 text-sm font-bold ${VERDICT_CLASS[verdict]}`}>
+          <button
+            type="button"
+            onClick={() => onView('result')}
+            className={`inline-flex min-h-9 items-center gap-1 rounded-full px-3 text-sm font-bold ${VERDICT_CLASS[verdict]}`}
+          >
             <span className="sr-only">Result: </span>
             {VERDICT_SHORT[verdict]}
             {stale && <span aria-label="(updating)">…</span>}

@@ -105,18 +105,30 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
   const leafLengthMm = gate.widthMm ? gate.widthMm / (gate.leaves === 'double' ? 2 : 1) : null;
 
   return (
-    <section id="item-geometry" tabIndex={-1} aria-labelledby="geometry-title" className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}>
+    <section
+      id="item-geometry"
+      tabIndex={-1}
+      aria-labelledby="geometry-title"
+      className={`card scroll-mt-32 border-l-4 ${needed ? 'border-l-brass-500' : 'border-l-iron-200'}`}
+    >
       <h3 id="geometry-title" className="text-lg font-semibold text-iron-900">
         Swing geometry check
       </h3>
-      <p className="mt-1 text-sm text-iron-600">Where the ram operator is mounted decides how far the gate can open and whether the ram body pinches against the leaf.</p>
+      <p className="mt-1 text-sm text-iron-600">
+        Where the ram operator is mounted decides how far the gate can open and whether the ram body pinches against the leaf.
+      </p>
       <fieldset className="mt-3 grid min-w-0 gap-3 sm:grid-cols-2" disabled={!editable}>
         <legend className="sr-only">Operator mounting figures</legend>
         <div className="sm:col-span-2">
-          <span className="label" id={`${ids}-unit`}>Measured in</span>
+          <span className="label" id={`${ids}-unit`}>
+            Measured in
+          </span>
           <div role="radiogroup" aria-labelledby={`${ids}-unit`} className="flex w-fit overflow-hidden rounded-lg border-2 border-iron-200">
             {lengthUnits.map((u) => (
-              <label key={u} className={`flex min-h-11 min-w-14 cursor-pointer items-center justify-center px-3 font-semibold focus-within:outline-3 focus-within:-outline-offset-3 focus-within:outline-brass-500 ${unit === u ? 'bg-iron-800 text-white' : 'bg-white text-iron-800'}`}>
+              <label
+                key={u}
+                className={`flex min-h-11 min-w-14 cursor-pointer items-center justify-center px-3 font-semibold focus-within:outline-3 focus-within:-outline-offset-3 focus-within:outline-brass-500 ${unit === u ? 'bg-iron-800 text-white' : 'bg-white text-iron-800'}`}
+              >
                 <input
                   type="radio"
                   className="sr-only"
@@ -153,11 +165,15 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
               value={texts[field.key]}
               onChange={(e) => setTexts((current) => ({ ...current, [field.key]: e.target.value }))}
             />
-            <p id={`${ids}-${field.key}-hint`} className="mt-1 text-xs text-iron-600">{field.hint}</p>
+            <p id={`${ids}-${field.key}-hint`} className="mt-1 text-xs text-iron-600">
+              {field.hint}
+            </p>
           </div>
         ))}
         <div>
-          <label htmlFor={`${ids}-angle`} className="label">Opening wanted (°)</label>
+          <label htmlFor={`${ids}-angle`} className="label">
+            Opening wanted (°)
+          </label>
           <input id={`${ids}-angle`} className="field tabular-nums" inputMode="decimal" value={angleText} onChange={(e) => setAngleText(e.target.value)} />
         </div>
         <label className="flex min-h-11 items-center gap-3 font-semibold text-iron-900 sm:col-span-2">
@@ -167,7 +183,9 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
       </fieldset>
 
       {typeof result === 'string' ? (
-        <p className="mt-4 rounded-md bg-iron-50 px-3 py-2 text-iron-800" role="status">{result}</p>
+        <p className="mt-4 rounded-md bg-iron-50 px-3 py-2 text-iron-800" role="status">
+          {result}
+        </p>
       ) : (
         <div className="mt-4 grid min-w-0 gap-4 xl:grid-cols-2">
           <SwingTopView input={input as SwingGeometryValue} result={result} leafLengthMm={leafLengthMm} />
@@ -179,13 +197,17 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
                   : `Cannot reach ${(input as SwingGeometryValue).targetOpeningDeg}°: reachable ${result.reachableRangesDeg.map((r) => `${r.fromDeg}°–${r.toDeg}°`).join(', ') || 'nowhere'}.`}
               </li>
               <li className={`rounded-md px-3 py-2 font-semibold ${result.clearance.pass ? 'bg-clear/10 text-clear' : 'bg-withdraw/10 text-withdraw'}`}>
-                Closest the ram comes to the leaf: {formatLength(result.minClearanceMm, units)} at {result.minClearanceAtDeg}° (at least {formatLength(OPERATOR_LEAF_MIN_CLEARANCE_MM, units)} wanted).
+                Closest the ram comes to the leaf: {formatLength(result.minClearanceMm, units)} at {result.minClearanceAtDeg}° (at least{' '}
+                {formatLength(OPERATOR_LEAF_MIN_CLEARANCE_MM, units)} wanted).
               </li>
               <li className="rounded-md bg-iron-50 px-3 py-2 text-iron-900">
-                Stroke used: {formatLength(result.strokeNeededMm, units)} of {formatLength((input as SwingGeometryValue).strokeMm, units)}; extension {formatLength(result.extensionAtClosedMm, units)} closed, {formatLength(result.extensionAtOpenMm, units)} open.
+                Stroke used: {formatLength(result.strokeNeededMm, units)} of {formatLength((input as SwingGeometryValue).strokeMm, units)}; extension{' '}
+                {formatLength(result.extensionAtClosedMm, units)} closed, {formatLength(result.extensionAtOpenMm, units)} open.
               </li>
               <li className={`rounded-md px-3 py-2 ${result.passesDeadCentre ? 'bg-remedy/10 font-semibold text-remedy' : 'bg-iron-50 text-iron-900'}`}>
-                {result.passesDeadCentre ? `The ram passes dead centre at ${result.deadCentreDeg}°: no leverage there.` : `Leverage: at least ${formatLength(result.minLeverArmMm, units)} (at ${result.minLeverArmAtDeg}°).`}
+                {result.passesDeadCentre
+                  ? `The ram passes dead centre at ${result.deadCentreDeg}°: no leverage there.`
+                  : `Leverage: at least ${formatLength(result.minLeverArmMm, units)} (at ${result.minLeverArmAtDeg}°).`}
               </li>
             </ul>
             <ClearanceChart chart={result.chart} limitMm={OPERATOR_LEAF_MIN_CLEARANCE_MM} units={units} />

@@ -54,7 +54,12 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
 
   return (
     <figure className="m-0">
-      <svg viewBox={`${minX} ${-maxY} ${width} ${height}`} className="h-auto w-full rounded-lg border border-iron-100 bg-iron-50" role="img" aria-label={description}>
+      <svg
+        viewBox={`${minX} ${-maxY} ${width} ${height}`}
+        className="h-auto w-full rounded-lg border border-iron-100 bg-iron-50"
+        role="img"
+        aria-label={description}
+      >
         <line x1={minX} y1={0} x2={minX + width} y2={0} stroke="#c3cfdc" strokeWidth={stroke / 2} strokeDasharray={`${stroke * 3} ${stroke * 2}`} />
         {arcs.map((d, i) => (
           <path key={i} d={d} fill="none" stroke="#1f7a45" strokeOpacity={0.55} strokeWidth={stroke * 2.5} strokeLinecap="round" />
@@ -73,7 +78,16 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
                 strokeDasharray={`${stroke} ${stroke}`}
               />
             )}
-            <line x1={rear.x} y1={-rear.y} x2={p.front.x} y2={-p.front.y} stroke={p.colour} strokeWidth={stroke * 2.8} strokeLinecap="round" strokeOpacity={0.85} />
+            <line
+              x1={rear.x}
+              y1={-rear.y}
+              x2={p.front.x}
+              y2={-p.front.y}
+              stroke={p.colour}
+              strokeWidth={stroke * 2.8}
+              strokeLinecap="round"
+              strokeOpacity={0.85}
+            />
             <circle cx={p.front.x} cy={-p.front.y} r={stroke * 1.5} fill="#fff" stroke={p.colour} strokeWidth={stroke / 1.5} />
           </g>
         ))}

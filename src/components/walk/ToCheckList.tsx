@@ -38,12 +38,18 @@ interface Props {
 function Entry({ target, onGo }: { target: CheckTarget; onGo(id: string): void }) {
   return (
     <li>
-      <button type="button" onClick={() => onGo(target.id)} className="flex min-h-12 w-full items-center justify-between gap-3 rounded-lg border border-iron-200 bg-white px-3 py-2 text-left hover:border-iron-400">
+      <button
+        type="button"
+        onClick={() => onGo(target.id)}
+        className="flex min-h-12 w-full items-center justify-between gap-3 rounded-lg border border-iron-200 bg-white px-3 py-2 text-left hover:border-iron-400"
+      >
         <span>
           <span className="block font-semibold text-iron-900">{target.label}</span>
           {target.detail && <span className="block text-sm text-iron-600">{target.detail}</span>}
         </span>
-        <span aria-hidden="true" className="text-xl text-iron-600">›</span>
+        <span aria-hidden="true" className="text-xl text-iron-600">
+          ›
+        </span>
       </button>
     </li>
   );
@@ -59,7 +65,9 @@ export function ToCheckList({ blockers, needsInfo: raw, unanswered, previewAvail
       {nothing && <p className="card text-lg font-semibold text-clear">Nothing left to check: every item is answered.</p>}
       {blockers.length > 0 && (
         <section aria-labelledby="check-blockers">
-          <h2 id="check-blockers" className="mb-2 text-lg font-bold text-iron-900">Needed before anything can be scored</h2>
+          <h2 id="check-blockers" className="mb-2 text-lg font-bold text-iron-900">
+            Needed before anything can be scored
+          </h2>
           <ul className="grid gap-2">
             {blockers.map((text) => (
               <Entry key={text} target={{ id: /edit the gate/.test(text) ? 'item-gate' : 'item-site', label: text }} onGo={onGo} />
@@ -69,18 +77,32 @@ export function ToCheckList({ blockers, needsInfo: raw, unanswered, previewAvail
       )}
       {needsInfo.length > 0 && (
         <section aria-labelledby="check-needed">
-          <h2 id="check-needed" className="mb-2 text-lg font-bold text-iron-900">The result is waiting on these</h2>
+          <h2 id="check-needed" className="mb-2 text-lg font-bold text-iron-900">
+            The result is waiting on these
+          </h2>
           <ul className="grid gap-2">
             {needsInfo.map((item) => (
-              <Entry key={item.key} target={{ id: targetOfFact(item.key), label: item.prompt, detail: `Needed by ${item.ruleIds.length} ${item.ruleIds.length === 1 ? 'rule' : 'rules'}` }} onGo={onGo} />
+              <Entry
+                key={item.key}
+                target={{
+                  id: targetOfFact(item.key),
+                  label: item.prompt,
+                  detail: `Needed by ${item.ruleIds.length} ${item.ruleIds.length === 1 ? 'rule' : 'rules'}`,
+                }}
+                onGo={onGo}
+              />
             ))}
           </ul>
         </section>
       )}
-      {!previewAvailable && blockers.length === 0 && <p className="text-sm text-iron-600">The live result is not available right now, so only unanswered questions are listed.</p>}
+      {!previewAvailable && blockers.length === 0 && (
+        <p className="text-sm text-iron-600">The live result is not available right now, so only unanswered questions are listed.</p>
+      )}
       {rest.length > 0 && (
         <section aria-labelledby="check-unanswered">
-          <h2 id="check-unanswered" className="mb-2 text-lg font-bold text-iron-900">Not answered yet ({rest.length})</h2>
+          <h2 id="check-unanswered" className="mb-2 text-lg font-bold text-iron-900">
+            Not answered yet ({rest.length})
+          </h2>
           <ul className="grid gap-2">
             {rest.map((q) => (
               <Entry key={q.key} target={{ id: `q-${q.key}`, label: q.prompt }} onGo={onGo} />

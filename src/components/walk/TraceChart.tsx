@@ -62,7 +62,14 @@ export function TraceChart({ samples, evaluation, label }: Props) {
         scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(max, limits.peakN) * 1.1] } },
         axes: [
           { label: 'seconds', stroke: '#1d2c3f', grid: { stroke: '#e1e7ee' }, font: '12px Noto Sans, sans-serif', labelFont: '12px Noto Sans, sans-serif' },
-          { label: 'newtons', stroke: '#1d2c3f', grid: { stroke: '#e1e7ee' }, font: '12px Noto Sans, sans-serif', labelFont: '12px Noto Sans, sans-serif', size: 56 },
+          {
+            label: 'newtons',
+            stroke: '#1d2c3f',
+            grid: { stroke: '#e1e7ee' },
+            font: '12px Noto Sans, sans-serif',
+            labelFont: '12px Noto Sans, sans-serif',
+            size: 56,
+          },
         ],
         series: [{}, { label: 'Force', stroke: '#1d2c3f', width: 2 }],
         hooks: { draw: [drawLimits] },
@@ -87,9 +94,24 @@ export function TraceChart({ samples, evaluation, label }: Props) {
         className="w-full overflow-hidden"
       />
       <figcaption className="mt-1 flex flex-wrap gap-x-4 gap-y-1 text-xs font-semibold text-iron-700">
-        <span><span aria-hidden="true" style={{ color: LIMIT_COLOURS.peak }}>– – </span>peak limit {evaluation.limits.peakN} N</span>
-        <span><span aria-hidden="true" style={{ color: LIMIT_COLOURS.static }}>– – </span>static limit {evaluation.limits.maxStaticN} N</span>
-        <span><span aria-hidden="true" style={{ color: LIMIT_COLOURS.residual }}>– – </span>residual limit {evaluation.limits.maxResidualN} N, 5 s after contact (dotted)</span>
+        <span>
+          <span aria-hidden="true" style={{ color: LIMIT_COLOURS.peak }}>
+            – –{' '}
+          </span>
+          peak limit {evaluation.limits.peakN} N
+        </span>
+        <span>
+          <span aria-hidden="true" style={{ color: LIMIT_COLOURS.static }}>
+            – –{' '}
+          </span>
+          static limit {evaluation.limits.maxStaticN} N
+        </span>
+        <span>
+          <span aria-hidden="true" style={{ color: LIMIT_COLOURS.residual }}>
+            – –{' '}
+          </span>
+          residual limit {evaluation.limits.maxResidualN} N, 5 s after contact (dotted)
+        </span>
       </figcaption>
     </figure>
   );

@@ -149,116 +149,149 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
 
   return (
     <WalkActionsContext.Provider value={actions}>
-      <StatusBar state={state} verdict={result?.verdict ?? null} stale={!submitted && preview.stale} toCheck={submitted ? 0 : toCheck} view={view} onView={setView} />
+      <StatusBar
+        state={state}
+        verdict={result?.verdict ?? null}
+        stale={!submitted && preview.stale}
+        toCheck={submitted ? 0 : toCheck}
+        view={view}
+        onView={setView}
+      />
       <div className={`mt-4 ${view !== 'result' ? 'lg:grid lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start lg:gap-6' : ''}`}>
-      <div className="grid min-w-0 gap-4">
-        <RefusedNotices refused={state.refused} onDismiss={(id) => sync.dismissRefused(id)} />
-        {state.phase === 'closed' && !submitted && (
-          <p role="status" className="card border-l-4 border-l-iron-600 font-semibold">This assessment was submitted and can no longer be changed.</p>
-        )}
-
-        <div id="panel-walk" role="tabpanel" aria-labelledby="tab-walk" hidden={view !== 'walk'} className="grid gap-4">
-          <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4 sm:mx-0 sm:px-0">
-            <ol className="flex gap-2 pb-1">
-              {groups.map((group, i) => {
-                const answered = group.questions.filter((q) => isAnswered(q, state.view)).length;
-                return (
-                  <li key={group.key} className="shrink-0">
-                    <a href={`#section-${group.key}`} className="flex min-h-11 items-center gap-2 rounded-full border border-iron-200 bg-white px-3 text-sm font-semibold text-iron-900 no-underline hover:border-iron-400">
-                      <span>{i + 1}. {group.title}</span>
-                      {group.questions.length > 0 && <span className={`tabular-nums ${answered === group.questions.length ? 'text-clear' : 'text-iron-600'}`}>{answered}/{group.questions.length}</span>}
-                    </a>
-                  </li>
-                );
-              })}
-            </ol>
-          </nav>
-
-          <GateAndSiteCard
-            site={observations.site as never}
-            gate={gate}
-            gateEditUrl={gateEditUrl}
-            units={units}
-            neededSite={neededBy.byTool.has('site') || preview.blockers.some((b) => !/edit the gate/.test(b))}
-            neededGate={neededBy.byTool.has('gate') || preview.blockers.some((b) => /edit the gate/.test(b))}
-          />
-
-          {groups.map((group, i) => (
-            <section key={group.key} id={`section-${group.key}`} aria-labelledby={`section-${group.key}-title`} className="grid scroll-mt-28 gap-3">
-              <h2 id={`section-${group.key}-title`} className="mt-2 text-xl font-bold text-iron-900">
-                <span className="text-brass-700">{i + 1}.</span> {group.title}
-              </h2>
-              {group.questions.map((q) => (
-                <QuestionCard
-                  key={q.key}
-                  question={q}
-                  areaTitle={areaTitle.get(q.area) ?? q.area}
-                  answer={state.view.answers[q.key]}
-                  measurement={state.view.measurements[q.key]}
-                  photos={photosByItem.get(q.key) ?? EMPTY}
-                  pendingPhotos={pendingByItem.get(q.key) ?? EMPTY}
-                  neededBy={neededBy.byKey.get(q.key) ?? 0}
-                />
-              ))}
-              {group.key === 'sensing' && <EntrapmentCard value={observations.entrapment} needed={neededBy.byTool.has('entrapment')} />}
-              {group.key === 'operator_arm' && gate.kind === 'swing' && (
-                <ToolSlot mounted={mounted}>
-                  <SwingGeometryPanel gate={gate} value={observations.swingGeometry} needed={neededBy.byTool.has('geometry')} />
-                </ToolSlot>
-              )}
-              {group.key === 'force_test' && (
-                <ToolSlot mounted={mounted}>
-                  <ForceTracePanel gateKind={gate.kind} traces={state.traces} pending={state.pending} needed={neededBy.byTool.has('force')} />
-                </ToolSlot>
-              )}
-            </section>
-          ))}
-          {!submitted && (
-            <button type="button" className="btn w-full" onClick={() => { setView('result'); window.scrollTo({ top: 0 }); }}>
-              Review the result and submit
-            </button>
+        <div className="grid min-w-0 gap-4">
+          <RefusedNotices refused={state.refused} onDismiss={(id) => sync.dismissRefused(id)} />
+          {state.phase === 'closed' && !submitted && (
+            <p role="status" className="card border-l-4 border-l-iron-600 font-semibold">
+              This assessment was submitted and can no longer be changed.
+            </p>
           )}
-        </div>
 
-        <div id="panel-check" role="tabpanel" aria-labelledby="tab-check" hidden={view !== 'check'}>
-          <ToCheckList blockers={preview.blockers} needsInfo={preview.result?.needsInfo ?? EMPTY} unanswered={unanswered} previewAvailable={Boolean(preview.result)} onGo={go} />
-        </div>
+          <div id="panel-walk" role="tabpanel" aria-labelledby="tab-walk" hidden={view !== 'walk'} className="grid gap-4">
+            <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4 sm:mx-0 sm:px-0">
+              <ol className="flex gap-2 pb-1">
+                {groups.map((group, i) => {
+                  const answered = group.questions.filter((q) => isAnswered(q, state.view)).length;
+                  return (
+                    <li key={group.key} className="shrink-0">
+                      <a
+                        href={`#section-${group.key}`}
+                        className="flex min-h-11 items-center gap-2 rounded-full border border-iron-200 bg-white px-3 text-sm font-semibold text-iron-900 no-underline hover:border-iron-400"
+                      >
+                        <span>
+                          {i + 1}. {group.title}
+                        </span>
+                        {group.questions.length > 0 && (
+                          <span className={`tabular-nums ${answered === group.questions.length ? 'text-clear' : 'text-iron-600'}`}>
+                            {answered}/{group.questions.length}
+                          </span>
+                        )}
+                      </a>
+                    </li>
+                  );
+                })}
+              </ol>
+            </nav>
 
-        <div id="panel-result" role="tabpanel" aria-labelledby="tab-result" hidden={view !== 'result'}>
-          <ResultView
-            ruleset={ruleset}
-            result={result}
-            submitted={Boolean(submitted)}
-            blockers={preview.blockers}
-            refused={preview.refused}
-            stale={preview.stale}
-            online={state.online}
-            submitBlocked={submitBlocked}
-            submitting={submit.isPending}
-            submitProblem={submitProblem}
-            onSubmit={() => submit.mutate()}
-            onGoToCheck={() => setView('check')}
-            reportUrl={`/assessments/${assessment.id}/report`}
-          />
+            <GateAndSiteCard
+              site={observations.site as never}
+              gate={gate}
+              gateEditUrl={gateEditUrl}
+              units={units}
+              neededSite={neededBy.byTool.has('site') || preview.blockers.some((b) => !/edit the gate/.test(b))}
+              neededGate={neededBy.byTool.has('gate') || preview.blockers.some((b) => /edit the gate/.test(b))}
+            />
+
+            {groups.map((group, i) => (
+              <section key={group.key} id={`section-${group.key}`} aria-labelledby={`section-${group.key}-title`} className="grid scroll-mt-28 gap-3">
+                <h2 id={`section-${group.key}-title`} className="mt-2 text-xl font-bold text-iron-900">
+                  <span className="text-brass-700">{i + 1}.</span> {group.title}
+                </h2>
+                {group.questions.map((q) => (
+                  <QuestionCard
+                    key={q.key}
+                    question={q}
+                    areaTitle={areaTitle.get(q.area) ?? q.area}
+                    answer={state.view.answers[q.key]}
+                    measurement={state.view.measurements[q.key]}
+                    photos={photosByItem.get(q.key) ?? EMPTY}
+                    pendingPhotos={pendingByItem.get(q.key) ?? EMPTY}
+                    neededBy={neededBy.byKey.get(q.key) ?? 0}
+                  />
+                ))}
+                {group.key === 'sensing' && <EntrapmentCard value={observations.entrapment} needed={neededBy.byTool.has('entrapment')} />}
+                {group.key === 'operator_arm' && gate.kind === 'swing' && (
+                  <ToolSlot mounted={mounted}>
+                    <SwingGeometryPanel gate={gate} value={observations.swingGeometry} needed={neededBy.byTool.has('geometry')} />
+                  </ToolSlot>
+                )}
+                {group.key === 'force_test' && (
+                  <ToolSlot mounted={mounted}>
+                    <ForceTracePanel gateKind={gate.kind} traces={state.traces} pending={state.pending} needed={neededBy.byTool.has('force')} />
+                  </ToolSlot>
+                )}
+              </section>
+            ))}
+            {!submitted && (
+              <button
+                type="button"
+                className="btn w-full"
+                onClick={() => {
+                  setView('result');
+                  window.scrollTo({ top: 0 });
+                }}
+              >
+                Review the result and submit
+              </button>
+            )}
+          </div>
+
+          <div id="panel-check" role="tabpanel" aria-labelledby="tab-check" hidden={view !== 'check'}>
+            <ToCheckList
+              blockers={preview.blockers}
+              needsInfo={preview.result?.needsInfo ?? EMPTY}
+              unanswered={unanswered}
+              previewAvailable={Boolean(preview.result)}
+              onGo={go}
+            />
+          </div>
+
+          <div id="panel-result" role="tabpanel" aria-labelledby="tab-result" hidden={view !== 'result'}>
+            <ResultView
+              ruleset={ruleset}
+              result={result}
+              submitted={Boolean(submitted)}
+              blockers={preview.blockers}
+              refused={preview.refused}
+              stale={preview.stale}
+              online={state.online}
+              submitBlocked={submitBlocked}
+              submitting={submit.isPending}
+              submitProblem={submitProblem}
+              onSubmit={() => submit.mutate()}
+              onGoToCheck={() => setView('check')}
+              reportUrl={`/assessments/${assessment.id}/report`}
+            />
+          </div>
         </div>
+        {view !== 'result' && (
+          <aside aria-label="Live result" className="sticky top-36 hidden lg:block">
+            <LiveSummary
+              result={result}
+              ruleset={ruleset}
+              stale={!submitted && preview.stale}
+              toCheck={submitted ? 0 : toCheck}
+              blockers={preview.blockers.length}
+              onOpen={(next) => {
+                setView(next);
+                window.scrollTo({ top: 0 });
+              }}
+            />
+          </aside>
+        )}
       </div>
-      {view !== 'result' && (
-        <aside aria-label="Live result" className="sticky top-36 hidden lg:block">
-          <LiveSummary
-            result={result}
-            ruleset={ruleset}
-            stale={!submitted && preview.stale}
-            toCheck={submitted ? 0 : toCheck}
-            blockers={preview.blockers.length}
-            onOpen={(next) => {
-              setView(next);
-              window.scrollTo({ top: 0 });
-            }}
-          />
-        </aside>
+      {state.phase === 'conflict' && (
+        <ConflictDialog conflicts={state.conflicts} questions={ruleset.questions} onResolve={(choices) => void sync.resolveConflicts(choices)} />
       )}
-      </div>
-      {state.phase === 'conflict' && <ConflictDialog conflicts={state.conflicts} questions={ruleset.questions} onResolve={(choices) => void sync.resolveConflicts(choices)} />}
     </WalkActionsContext.Provider>
   );
 }

@@ -66,6 +66,8 @@ export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: Wa
 /** JSON with object keys sorted, so equal content is an equal string. */
 function stableJson(value: unknown): string {
   return JSON.stringify(value, (_key, v: unknown) =>
-    v && typeof v === 'object' && !Array.isArray(v) ? Object.fromEntries(Object.entries(v as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))) : v,
+    v && typeof v === 'object' && !Array.isArray(v)
+      ? Object.fromEntries(Object.entries(v as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)))
+      : v,
   );
 }

@@ -54,7 +54,10 @@ async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
 
 export async function listTraces(viewer: SessionUser, assessmentId: string, knex: Knex = db()): Promise<TraceRecord[]> {
   await visibleAssessment(viewer, assessmentId);
-  const rows = await knex('force_traces').where({ assessment_id: assessmentId, organisation_id: viewer.organisationId }).orderBy('created_at').select<TraceRow[]>(columns);
+  const rows = await knex('force_traces')
+    .where({ assessment_id: assessmentId, organisation_id: viewer.organisationId })
+    .orderBy('created_at')
+    .select<TraceRow[]>(columns);
   return rows.map(toRecord);
 }
 

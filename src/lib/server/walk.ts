@@ -56,8 +56,7 @@ export async function loadWalk(viewer: SessionUser, assessmentId: string): Promi
       ...(askWhen !== undefined ? { askWhen } : {}),
     })),
   };
-  const editable =
-    assessment.status === 'draft' && viewer.role !== 'homeowner' && (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);
+  const editable = assessment.status === 'draft' && viewer.role !== 'homeowner' && (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);
   return {
     assessment,
     documents: {

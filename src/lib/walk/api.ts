@@ -64,10 +64,6 @@ export async function patchAssessment(id: string, rowVersion: number, patch: Jso
   );
 }
 
-export async function getAssessment(id: string): Promise<Answer<Assessment>> {
-  return answer(await call(`/api/assessments/${id}`));
-}
-
 export async function uploadPhoto(
   assessmentId: string,
   photo: { clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob },
@@ -111,5 +107,7 @@ export async function scorePreview(body: { family: string; version?: string; inp
 }
 
 export async function submitAssessment(id: string, rowVersion: number): Promise<Answer<Assessment>> {
-  return answer(await call(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'content-type': 'application/json', 'if-match': `"${rowVersion}"` }, body: '{}' }));
+  return answer(
+    await call(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'content-type': 'application/json', 'if-match': `"${rowVersion}"` }, body: '{}' }),
+  );
 }

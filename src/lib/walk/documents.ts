@@ -48,9 +48,14 @@ export function applyDocumentsPatch(documents: WalkDocuments, patch: JsonObject)
     }
   }
   return {
-    answers: (patch.answers === undefined ? documents.answers : applyMergePatch(documents.answers as unknown as Json, patch.answers)) as unknown as WalkDocuments['answers'],
+    answers: (patch.answers === undefined
+      ? documents.answers
+      : applyMergePatch(documents.answers as unknown as Json, patch.answers)) as unknown as WalkDocuments['answers'],
     measurements,
-    observations: (patch.observations === undefined ? documents.observations : applyMergePatch(documents.observations, patch.observations)) as Record<string, Json>,
+    observations: (patch.observations === undefined ? documents.observations : applyMergePatch(documents.observations, patch.observations)) as Record<
+      string,
+      Json
+    >,
   };
 }
 

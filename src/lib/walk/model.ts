@@ -7,7 +7,6 @@ import type { Gate } from '@/lib/api/gates';
 import { compileLogic, truthy, type CompiledLogic } from '@/lib/rules/json-logic-compile';
 import type { AnswerType, RulesetQuestion } from '@/lib/rules/ruleset-schema';
 import type { HazardArea, WalkSection } from '@/lib/rules/vocabulary';
-import type { UnitSystem } from '@/lib/units';
 import type { WalkDocuments } from './documents';
 
 export type WalkQuestion = Pick<RulesetQuestion, 'key' | 'section' | 'area' | 'prompt' | 'whyItMatters' | 'answerType' | 'options' | 'askWhen' | 'gateKinds'>;
@@ -114,10 +113,6 @@ export function toolOfFact(fact: string): 'site' | 'entrapment' | 'force' | 'geo
   if (fact.startsWith('calc.geometry')) return 'geometry';
   if (fact.startsWith('profile.')) return 'gate';
   return null;
-}
-
-export function defaultUnitSystem(value: string | null | undefined): UnitSystem {
-  return value === 'metric' ? 'metric' : 'imperial';
 }
 
 /** One thing the result is waiting on, as the auditor reads it: items with the same words are one entry. */

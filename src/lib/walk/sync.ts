@@ -9,16 +9,7 @@
 import type { Assessment } from '@/lib/api/assessments';
 import { OfflineError, type Answer, type PhotoRecord, type Problem, type TraceRecord } from './api';
 import * as api from './api';
-import {
-  applyDocumentsPatch,
-  asDocuments,
-  changedFields,
-  findConflicts,
-  toJson,
-  withoutField,
-  type FieldConflict,
-  type WalkDocuments,
-} from './documents';
+import { applyDocumentsPatch, asDocuments, changedFields, findConflicts, toJson, withoutField, type FieldConflict, type WalkDocuments } from './documents';
 import { composeMergePatches, type JsonObject } from './merge-patch';
 import * as outbox from './outbox';
 import type { OutboxOp, OutboxOpBody } from './outbox';
@@ -95,7 +86,10 @@ function describeProblem(problem: Problem): string {
 }
 
 function whatOf(op: OutboxOp): string {
-  if (op.kind === 'patch') return changedFields(op.patch).map((f) => f.slice(1).join('.')).join(', ');
+  if (op.kind === 'patch')
+    return changedFields(op.patch)
+      .map((f) => f.slice(1).join('.'))
+      .join(', ');
   if (op.kind === 'photo') return `photo ${op.fileName}`;
   if (op.kind === 'trace') return `force trace ${op.fileName}`;
   return op.kind === 'removePhoto' ? 'removing a photo' : 'removing a force trace';
@@ -167,7 +161,12 @@ export class WalkSync {
   async start(): Promise<void> {
     await this.serial(async () => {
       const [snapshot, pending] = await Promise.all([outbox.loadSnapshot(this.initial.id), outbox.pendingOps(this.initial.id)]);
-      const initialSnapshot = { assessmentId: this.initial.id, rowVersion: this.initial.rowVersion, documents: toJson(this.initial.documents), savedAt: new Date().toISOString() };
+      const initialSnapshot = {
+        assessmentId: this.initial.id,
+        rowVersion: this.initial.rowVersion,
+        documents: toJson(this.initial.documents),
+        savedAt: new Date().toISOString(),
+      };
       const base = snapshot && (pending.length > 0 || snapshot.rowVersion > this.initial.rowVersion) ? snapshot : initialSnapshot;
       if (base === initialSnapshot) await outbox.saveSnapshot(initialSnapshot);
       this.applyBase(base.rowVersion, asDocuments(base.documents), pending);
@@ -204,13 +203,13 @@ export class WalkSync {
   };
 
   private handleOffline = () => {
-    this.set({ online: false, phase: this.state.phase === 'saving' || this.state.phase === 'saved' ? (this.state.pending.length ? 'waiting' : 'saved') : this.state.phase });
+    const open = this.state.phase === 'saving' || this.state.phase === 'saved';
+    this.set({ online: false, phase: open && this.state.pending.length ? 'waiting' : this.state.phase });
   };
 
   private applyBase(rowVersion: number, server: WalkDocuments, pending: OutboxOp[]): void {
     const patches = pending.filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch').map((op) => op.patch);
-    const pendingCount =
-      new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size + pending.filter((op) => op.kind !== 'patch').length;
+    const pendingCount = new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size + pending.filter((op) => op.kind !== 'patch').length;
     this.set({ rowVersion, server, view: patches.reduce(applyDocumentsPatch, server), pending, pendingCount });
   }
 
@@ -289,7 +288,12 @@ export class WalkSync {
   /** The server's copy became the base: remember it on the device too. */
   private async adopt(assessment: Assessment): Promise<void> {
     const documents = asDocuments({ answers: assessment.answers, measurements: assessment.measurements, observations: assessment.observations } as never);
-    await outbox.saveSnapshot({ assessmentId: this.initial.id, rowVersion: assessment.rowVersion, documents: toJson(documents), savedAt: new Date().toISOString() });
+    await outbox.saveSnapshot({
+      assessmentId: this.initial.id,
+      rowVersion: assessment.rowVersion,
+      documents: toJson(documents),
+      savedAt: new Date().toISOString(),
+    });
     this.set({ status: assessment.status, server: documents, rowVersion: assessment.rowVersion });
     this.onServerCopy(assessment);
   }
@@ -383,7 +387,15 @@ export class WalkSync {
         await this.drop([head]);
         return true;
       }
-      result = await this.sender({ kind: 'photo', assessmentId: id, clientRef: head.clientRef, itemKey: head.itemKey, takenAt: head.takenAt, fileName: head.fileName, blob });
+      result = await this.sender({
+        kind: 'photo',
+        assessmentId: id,
+        clientRef: head.clientRef,
+        itemKey: head.itemKey,
+        takenAt: head.takenAt,
+        fileName: head.fileName,
+        blob,
+      });
       if (result.ok) this.set({ photos: [...this.state.photos.filter((p) => p.clientRef !== head.clientRef), result.value as PhotoRecord] });
     } else if (head.kind === 'trace') {
       const { seq: _s, assessmentId: _a, createdAt: _c, ...op } = head;

@@ -24,7 +24,13 @@ export async function seriousAxeViolations(page: Page, include: string[] = []): 
   const { violations } = await builder.analyze();
   return violations
     .filter((v) => v.impact === 'serious' || v.impact === 'critical')
-    .map((v) => `${v.id} (${v.impact}): ${v.help} — ${v.nodes.slice(0, 3).map((n) => `${n.target.join(' ')} ${n.html.slice(0, 100)} [${(n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 160)}]`).join(' | ')}`);
+    .map(
+      (v) =>
+        `${v.id} (${v.impact}): ${v.help} — ${v.nodes
+          .slice(0, 3)
+          .map((n) => `${n.target.join(' ')} ${n.html.slice(0, 100)} [${(n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 160)}]`)
+          .join(' | ')}`,
+    );
 }
 
 async function savePng(buffer: Buffer, file: string): Promise<void> {
@@ -41,7 +47,11 @@ export async function screenshotBothWidths(page: Page, name: string, options: { 
   for (const viewport of [phoneViewport, desktopViewport]) {
     await page.setViewportSize(viewport);
     // A new width reflows the page: bring the part being shown back to the top.
-    if (options.focus) await page.locator(options.focus).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    if (options.focus)
+      await page
+        .locator(options.focus)
+        .first()
+        .evaluate((el) => el.scrollIntoView({ block: 'start' }));
     await page.evaluate(() => window.scrollTo(0, window.scrollY));
     await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
     const buffer = await page.screenshot({ fullPage: options.fullPage ?? false, animations: 'disabled', caret: 'hide' });

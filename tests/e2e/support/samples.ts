@@ -8,7 +8,11 @@ import sharp from 'sharp';
 /** A 640×480 picture stored sideways with EXIF orientation 6, as phone cameras do. */
 export async function cameraJpeg(colour = '#c98b16'): Promise<Buffer> {
   const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="640" height="480"><rect width="640" height="480" fill="#e1e7ee"/><rect x="40" y="60" width="560" height="300" fill="${colour}"/><rect x="40" y="360" width="560" height="30" fill="#1d2c3f"/></svg>`;
-  return sharp(Buffer.from(svg)).jpeg({ quality: 80 }).withExif({ IFD2: { DateTimeOriginal: '2026:11:30 09:15:00' } }).withMetadata({ orientation: 6 }).toBuffer();
+  return sharp(Buffer.from(svg))
+    .jpeg({ quality: 80 })
+    .withExif({ IFD2: { DateTimeOriginal: '2026:11:30 09:15:00' } })
+    .withMetadata({ orientation: 6 })
+    .toBuffer();
 }
 
 /**

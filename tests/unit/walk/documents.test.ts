@@ -9,7 +9,10 @@ const base: WalkDocuments = {
 
 describe('applying an edit on the device the way the server does', () => {
   it('merges an answer (a note survives a new value) but replaces a measurement whole', () => {
-    const next = applyDocumentsPatch(base, { answers: { hingeSideGuarded: { value: 'yes' } }, measurements: { hingeGapMm: { value: 60, unit: 'mm', canonical: 60 } } });
+    const next = applyDocumentsPatch(base, {
+      answers: { hingeSideGuarded: { value: 'yes' } },
+      measurements: { hingeGapMm: { value: 60, unit: 'mm', canonical: 60 } },
+    });
     expect(next.answers.hingeSideGuarded).toEqual({ value: 'yes', note: 'open hinge' });
     expect(next.measurements.hingeGapMm).toEqual({ value: 60, unit: 'mm', canonical: 60 });
   });
@@ -22,7 +25,9 @@ describe('applying an edit on the device the way the server does', () => {
   });
 
   it('names each field an edit changes: answers, measurements, site facts, whole observation parts', () => {
-    expect(changedFields({ answers: { a: { value: 'yes' } }, measurements: { m: null }, observations: { site: { publicAccess: true }, forceTests: [] } })).toEqual([
+    expect(
+      changedFields({ answers: { a: { value: 'yes' } }, measurements: { m: null }, observations: { site: { publicAccess: true }, forceTests: [] } }),
+    ).toEqual([
       ['answers', 'a'],
       ['measurements', 'm'],
       ['observations', 'site', 'publicAccess'],
@@ -56,7 +61,9 @@ describe('a newer server copy against edits waiting on the device', () => {
   });
 
   it('drops one field from a waiting edit when the auditor keeps the server value, and empty parents with it', () => {
-    expect(withoutField({ answers: { a: { value: 'yes' } }, observations: { site: { publicAccess: true } } }, ['observations', 'site', 'publicAccess'])).toEqual({
+    expect(
+      withoutField({ answers: { a: { value: 'yes' } }, observations: { site: { publicAccess: true } } }, ['observations', 'site', 'publicAccess']),
+    ).toEqual({
       answers: { a: { value: 'yes' } },
     });
   });

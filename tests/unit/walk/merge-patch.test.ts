@@ -20,7 +20,9 @@ describe('folding queued edits (RFC 7396 merge patches)', () => {
   it('refuses to fold an object written over a removal, which one patch cannot express', () => {
     expect(composeMergePatches({ answers: { a: null } }, { answers: { a: { value: 'yes' } } })).toBeNull();
     // Sent one after the other the note is gone; folded it would have survived.
-    expect(applyMergePatch(applyMergePatch(server, { answers: { a: null } }), { answers: { a: { value: 'yes' } } })).toMatchObject({ answers: { a: { value: 'yes' } } });
+    expect(applyMergePatch(applyMergePatch(server, { answers: { a: null } }), { answers: { a: { value: 'yes' } } })).toMatchObject({
+      answers: { a: { value: 'yes' } },
+    });
   });
 
   it('builds a patch for one path and reads a value at a path', () => {

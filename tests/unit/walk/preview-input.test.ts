@@ -12,7 +12,14 @@ import { buildPreviewInput } from '@/lib/walk/score-input';
 
 const file = JSON.parse(fs.readFileSync('rulesets/north-american-gate/2026.1.json', 'utf8')) as RulesetVersion;
 const loaded = loadRulesetFile(file, 'north-american-gate 2026.1');
-const ruleset: WalkRuleset = { family: file.family, version: file.version, title: file.familyTitle, sections: file.sections, areas: file.areas, questions: file.questions };
+const ruleset: WalkRuleset = {
+  family: file.family,
+  version: file.version,
+  title: file.familyTitle,
+  sections: file.sections,
+  areas: file.areas,
+  questions: file.questions,
+};
 
 const gate: WalkGate = {
   id: '00000000-0000-4000-8000-000000000001',
@@ -32,7 +39,11 @@ const site = { pedestriansUseDriveway: true, childrenOrPetsPresent: false, publi
 
 describe('the live preview input', () => {
   it('says what must be known before anything can be scored', () => {
-    const { blockers } = buildPreviewInput({ ...gate, operator: {} }, { answers: {}, measurements: {}, observations: { site: { publicAccess: true } } }, ruleset.questions);
+    const { blockers } = buildPreviewInput(
+      { ...gate, operator: {} },
+      { answers: {}, measurements: {}, observations: { site: { publicAccess: true } } },
+      ruleset.questions,
+    );
     expect(blockers).toHaveLength(5);
     expect(blockers.join(' ')).toMatch(/people walk through/);
     expect(blockers.join(' ')).toMatch(/listed to the safety standard/);
@@ -55,9 +66,10 @@ describe('the live preview input', () => {
 
   it('scores with the engine: the hinge-side gap the auditor measured decides its finding', () => {
     const hingeOutcome = (value: number, unit: 'mm' | 'in', canonical: number) =>
-      score(buildPreviewInput(gate, { answers: {}, measurements: { hingeGapMm: { value, unit, canonical } }, observations: { site } }, ruleset.questions).input, loaded).findings.find(
-        (f) => f.ruleId === 'pinch.hinge-side',
-      )?.outcome;
+      score(
+        buildPreviewInput(gate, { answers: {}, measurements: { hingeGapMm: { value, unit, canonical } }, observations: { site } }, ruleset.questions).input,
+        loaded,
+      ).findings.find((f) => f.ruleId === 'pinch.hinge-side')?.outcome;
     // The ruleset's own params: a finger is safe below 4 mm and clear above 25 mm.
     expect(hingeOutcome(3 / 8, 'in', 9.525)).toBe('fail');
     expect(hingeOutcome(3, 'mm', 3)).toBe('pass');

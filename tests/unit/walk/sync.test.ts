@@ -16,7 +16,13 @@ const newId = () => `00000000-0000-4000-8000-${String(++counter).padStart(12, '0
 
 /** A server holding one draft, answering the sync loop's requests as the API does. */
 function fakeServer() {
-  const row = { rowVersion: 1, status: 'draft' as Assessment['status'], answers: {} as JsonObject, measurements: {} as JsonObject, observations: {} as JsonObject };
+  const row = {
+    rowVersion: 1,
+    status: 'draft' as Assessment['status'],
+    answers: {} as JsonObject,
+    measurements: {} as JsonObject,
+    observations: {} as JsonObject,
+  };
   const calls: SendJob[] = [];
   const state = { offline: false, refuseNext: false };
   const current = () => ({ ...structuredClone(row) }) as unknown as Assessment;
@@ -26,7 +32,14 @@ function fakeServer() {
     if (job.kind === 'patch') {
       if (state.refuseNext) {
         state.refuseNext = false;
-        return { ok: false, problem: { status: 422, detail: 'Some fields are missing or invalid.', errors: [{ field: 'answers.x.value', message: 'must be one of: yes, no, na' }] } };
+        return {
+          ok: false,
+          problem: {
+            status: 422,
+            detail: 'Some fields are missing or invalid.',
+            errors: [{ field: 'answers.x.value', message: 'must be one of: yes, no, na' }],
+          },
+        };
       }
       if (job.rowVersion !== row.rowVersion) return { ok: false, problem: { status: 409, current: current() } };
       row.answers = applyMergePatch(row.answers, job.patch.answers ?? {}) as JsonObject;
@@ -98,7 +111,10 @@ describe('the device outbox', () => {
     const sync = await open(newId(), server);
     server.state.offline = true;
     await sync.edit({ answers: { positiveStopClosed: { value: 'yes' } } });
-    await sync.addPhoto({ clientRef: '11111111-1111-4111-8111-111111111111', itemKey: 'positiveStopClosed', fileName: 'stop.jpg', takenAt: null }, new Blob(['jpeg']));
+    await sync.addPhoto(
+      { clientRef: '11111111-1111-4111-8111-111111111111', itemKey: 'positiveStopClosed', fileName: 'stop.jpg', takenAt: null },
+      new Blob(['jpeg']),
+    );
     await sync.edit({ answers: { manualLeft: { value: 'no' } } });
     await sync.flush();
     server.calls.length = 0;
@@ -157,7 +173,9 @@ describe('the device outbox', () => {
     await sync.flush();
     await sync.edit({ answers: { ownerShown: { value: 'yes' } } });
     await sync.flush();
-    expect(sync.getState().refused).toEqual([expect.objectContaining({ what: 'latchFitted', message: expect.stringMatching(/answers\.x\.value: must be one of/) })]);
+    expect(sync.getState().refused).toEqual([
+      expect.objectContaining({ what: 'latchFitted', message: expect.stringMatching(/answers\.x\.value: must be one of/) }),
+    ]);
     expect(server.row.answers).toEqual({ ownerShown: { value: 'yes' } });
     sync.stop();
   });

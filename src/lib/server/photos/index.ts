@@ -78,7 +78,10 @@ async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
 
 export async function listPhotos(viewer: SessionUser, assessmentId: string, knex: Knex = db()): Promise<PhotoRecord[]> {
   await visibleAssessment(viewer, assessmentId);
-  const rows = await knex('assessment_photos').where({ assessment_id: assessmentId, organisation_id: viewer.organisationId }).orderBy('created_at').select<PhotoRow[]>(columns);
+  const rows = await knex('assessment_photos')
+    .where({ assessment_id: assessmentId, organisation_id: viewer.organisationId })
+    .orderBy('created_at')
+    .select<PhotoRow[]>(columns);
   return rows.map(toRecord);
 }
 
@@ -143,7 +146,12 @@ export async function addPhoto(viewer: SessionUser, assessmentId: string, photo:
 export type PhotoSize = 'thumb' | 'display' | 'original';
 
 /** Where a photo's bytes are, for one size; null when there is no such photo for the viewer. */
-export async function photoFile(viewer: SessionUser, assessmentId: string, photoId: string, size: PhotoSize): Promise<{ key: string; contentType: string } | null> {
+export async function photoFile(
+  viewer: SessionUser,
+  assessmentId: string,
+  photoId: string,
+  size: PhotoSize,
+): Promise<{ key: string; contentType: string } | null> {
   await visibleAssessment(viewer, assessmentId);
   const row = await db()('assessment_photos')
     .where({ id: photoId, assessment_id: assessmentId, organisation_id: viewer.organisationId })

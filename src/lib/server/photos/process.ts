@@ -70,7 +70,9 @@ export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
   try {
     metadata = await sharp(bytes, { limitInputPixels: MAX_INPUT_PIXELS }).metadata();
   } catch {
-    throw new HttpProblem(422, 'The photo could not be read; it may be damaged. Take it again.', { errors: [{ field: 'photo', message: 'could not be decoded' }] });
+    throw new HttpProblem(422, 'The photo could not be read; it may be damaged. Take it again.', {
+      errors: [{ field: 'photo', message: 'could not be decoded' }],
+    });
   }
   const oriented = () => sharp(bytes, { limitInputPixels: MAX_INPUT_PIXELS }).rotate();
   const render = async (longSide: number, quality: number) => {
@@ -85,6 +87,8 @@ export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
     const [display, thumb] = await Promise.all([render(DISPLAY_LONG_SIDE_PX, 82), render(THUMB_LONG_SIDE_PX, 70)]);
     return { original: { bytes, contentType: type.mime }, display, thumb, takenAt: exifTakenAt(metadata.exif) };
   } catch {
-    throw new HttpProblem(422, 'The photo could not be converted; it may be damaged. Take it again.', { errors: [{ field: 'photo', message: 'could not be decoded' }] });
+    throw new HttpProblem(422, 'The photo could not be converted; it may be damaged. Take it again.', {
+      errors: [{ field: 'photo', message: 'could not be decoded' }],
+    });
   }
 }

@@ -19,7 +19,10 @@ export const GET: APIRoute = handle(async ({ locals, params, url, request }) => 
   const assessmentId = found(idFromPath(params.id), what);
   const photoId = found(idFromPath(params.photoId), what);
   const size = (url.searchParams.get('size') ?? 'display') as PhotoSize;
-  if (!sizes.includes(size)) throw new HttpProblem(400, 'size must be thumb, display or original.', { errors: [{ field: 'size', message: 'must be one of: thumb, display, original' }] });
+  if (!sizes.includes(size))
+    throw new HttpProblem(400, 'size must be thumb, display or original.', {
+      errors: [{ field: 'size', message: 'must be one of: thumb, display, original' }],
+    });
   const file = found(await photoFile(user, assessmentId, photoId, size), what);
   const etag = `"${file.key}"`;
   const headers = { 'content-type': file.contentType, etag, 'cache-control': 'private, max-age=31536000, immutable', 'x-content-type-options': 'nosniff' };

@@ -36,10 +36,7 @@ export const POST: APIRoute = handle(async ({ locals, params, request }) => {
   const file = form.get('photo');
   if (!(file instanceof File)) throw new HttpProblem(422, 'Attach the photo.', { errors: [{ field: 'photo', message: 'is required (a file)' }] });
   if (file.size > MAX_PHOTO_BYTES) throw tooLargeProblem(file.size);
-  const fields = parseValue(
-    PhotoFieldsSchema,
-    Object.fromEntries([...form.entries()].filter(([key, value]) => key !== 'photo' && typeof value === 'string')),
-  );
+  const fields = parseValue(PhotoFieldsSchema, Object.fromEntries([...form.entries()].filter(([key, value]) => key !== 'photo' && typeof value === 'string')));
   const { photo, created } = await addPhoto(user, id, {
     itemKey: fields.itemKey,
     clientRef: fields.clientRef?.toLowerCase() ?? null,
