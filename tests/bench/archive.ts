@@ -316,6 +316,7 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     server = undefined;
 
     // Impact: every assessment (all under 2015.1) re-scored against 2026.1, in this process.
+    const previousUrl = process.env.DATABASE_URL;
     process.env.DATABASE_URL = databaseUrl;
     const { impactReport, impactTarget } = await import('../../src/lib/server/impact');
     const { closeDatabase } = await import('../../src/lib/server/db');
@@ -326,6 +327,8 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     const report = await impactReport(organisationId, target, 'all');
     const impactSeconds = (performance.now() - impactStarted) / 1000;
     await closeDatabase();
+    if (previousUrl === undefined) delete process.env.DATABASE_URL;
+    else process.env.DATABASE_URL = previousUrl;
 
     const figures: ArchiveBenchFigures = {
       listP50Ms: round2(percentile(all, 0.5)),
@@ -345,7 +348,7 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     for (const [name, f] of Object.entries(perFilter)) console.log(`    ${name.padEnd(24)} p50 ${String(f.p50).padStart(7)} ms   p95 ${String(f.p95).padStart(7)} ms`);
     console.log(`  count (kind + status): p95 ${figures.countP95Ms} ms`);
     console.log(
-      `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,
+      `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each, ${report.workers ? `${report.workers} worker threads` : 'one thread'}; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,
     );
     return figures;
   } finally {
