@@ -9,7 +9,7 @@
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { dropDatabase, ensureDatabase, recreateTestDatabase } from '../../db/launcher';
+import { dropDatabase, ensureDatabase, recreateTestDatabase, stopDatabase } from '../../db/launcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
 import { dataDir, projectRoot, snapshotBuild } from './services';
@@ -42,5 +42,7 @@ try {
 } finally {
   fs.rmSync(snapshotDir, { recursive: true, force: true });
   await dropDatabase(db, testUrl).catch(() => {});
+  // Leave the machine as we found it: stop the server if this run started it.
+  if (db.startedHere) stopDatabase();
 }
 process.exit(status);
