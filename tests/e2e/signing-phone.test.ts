@@ -85,6 +85,17 @@ describe('signing on a phone', () => {
     expect(signature.signature_image_key).toMatch(/^[0-9a-f]{64}$/);
     expect(signature.user_agent).toMatch(/Chrome/);
     expect((await testDb()('assessments').where({ id: assessmentId }).first('status')).status).toBe('signed');
+
+    // The journey ends in the owner's mailbox: the signed PDF, byte for byte the archived one.
+    const stored = await testDb()('documents').where({ assessment_id: assessmentId, kind: 'signed_report' }).first('sha256');
+    const contact = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+    const catcher = inject('catcherUrl');
+    let delivered = false;
+    for (const deadline = Date.now() + 20_000; !delivered && Date.now() < deadline; await new Promise((r) => setTimeout(r, 200))) {
+      const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{ to: string[]; attachments: Array<{ sha256: string }> }>;
+      delivered = list.some((m) => m.to.includes(contact) && m.attachments.some((a) => a.sha256 === stored.sha256));
+    }
+    expect(delivered, `signed PDF ${stored.sha256} in ${contact}'s mailbox`).toBe(true);
   });
 
   it('signs with the keyboard only, the typed name standing as the mark', async () => {
