@@ -143,9 +143,9 @@ describe('the auditor walks a swing gate on a phone', () => {
     // Keyboard only: arrow keys move the choice within a yes / no / N/A group.
     await page.locator('#q-placardsLegible input[value=yes]').focus();
     await page.keyboard.press('ArrowRight');
-    await expect(page.locator('#q-placardsLegible input[value=no]').isChecked()).resolves.toBe(true);
+    await expect.poll(() => page.locator('#q-placardsLegible input[value=no]').isChecked()).toBe(true);
     await page.keyboard.press('ArrowLeft');
-    await expect(page.locator('#q-placardsLegible input[value=yes]').isChecked()).resolves.toBe(true);
+    await expect.poll(() => page.locator('#q-placardsLegible input[value=yes]').isChecked()).toBe(true);
 
     const hinge = page.locator('#q-hingeGapMm');
     await hinge.locator('input[data-photo-pick]').setInputFiles({ name: 'hinge.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg() });

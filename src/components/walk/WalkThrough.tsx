@@ -5,7 +5,7 @@
  * belong; autosave through the device outbox; the live result and Submit.
  */
 import { QueryClient, QueryClientProvider, useMutation } from '@tanstack/react-query';
-import { lazy, Suspense, useCallback, useEffect, useMemo, useState } from 'react';
+import { lazy, Suspense, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { AssessmentStatus } from '@/lib/api/assessments';
 import type { ScoreResult } from '@/lib/rules/result-types';
 import type { UnitSystem } from '@/lib/units';
@@ -134,6 +134,18 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
           ? 'Wait until every change is saved.'
           : null;
 
+  // Each view keeps its own scroll position: back on Walk is where the auditor left off.
+  const scrollOf = useRef<Record<WalkView, number>>({ walk: 0, check: 0, result: 0 });
+  const switchView = useCallback(
+    (next: WalkView) => {
+      if (next === view) return;
+      scrollOf.current[view] = window.scrollY;
+      setView(next);
+      requestAnimationFrame(() => window.scrollTo({ top: scrollOf.current[next] }));
+    },
+    [view],
+  );
+
   const go = useCallback((targetId: string) => {
     setView('walk');
     requestAnimationFrame(() => {
@@ -155,7 +167,7 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
         stale={!submitted && preview.stale}
         toCheck={submitted ? 0 : toCheck}
         view={view}
-        onView={setView}
+        onView={switchView}
       />
       <div className={`mt-4 ${view !== 'result' ? 'lg:grid lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start lg:gap-6' : ''}`}>
         <div className="grid min-w-0 gap-4">
@@ -232,14 +244,7 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
               </section>
             ))}
             {!submitted && (
-              <button
-                type="button"
-                className="btn w-full"
-                onClick={() => {
-                  setView('result');
-                  window.scrollTo({ top: 0 });
-                }}
-              >
+              <button type="button" className="btn w-full" onClick={() => switchView('result')}>
                 Review the result and submit
               </button>
             )}
@@ -268,7 +273,7 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
               submitting={submit.isPending}
               submitProblem={submitProblem}
               onSubmit={() => submit.mutate()}
-              onGoToCheck={() => setView('check')}
+              onGoToCheck={() => switchView('check')}
               reportUrl={`/assessments/${assessment.id}/report`}
             />
           </div>
@@ -281,10 +286,7 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
               stale={!submitted && preview.stale}
               toCheck={submitted ? 0 : toCheck}
               blockers={preview.blockers.length}
-              onOpen={(next) => {
-                setView(next);
-                window.scrollTo({ top: 0 });
-              }}
+              onOpen={switchView}
             />
           </aside>
         )}
