@@ -60,7 +60,9 @@ export async function serverTools(databaseUrl: string): Promise<{ serverVersion:
   let serverVersion: string;
   let major: number;
   try {
-    const { rows } = await client.query<{ server_version: string; num: string }>("select current_setting('server_version') as server_version, current_setting('server_version_num') as num");
+    const { rows } = await client.query<{ server_version: string; num: string }>(
+      "select current_setting('server_version') as server_version, current_setting('server_version_num') as num",
+    );
     serverVersion = rows[0]!.server_version;
     major = Math.floor(Number(rows[0]!.num) / 10000);
   } finally {
@@ -177,7 +179,13 @@ export async function restoreDatabase(options: RestoreOptions): Promise<RestoreR
         continue;
       }
       // Content-addressed: a file already there under this name holds these bytes.
-      if (await fs.stat(target).then(() => true, () => false)) continue;
+      if (
+        await fs.stat(target).then(
+          () => true,
+          () => false,
+        )
+      )
+        continue;
       await fs.mkdir(path.dirname(target), { recursive: true });
       await fs.copyFile(source, target);
       await fs.chmod(target, 0o444);

@@ -29,7 +29,9 @@ if (isMain(import.meta.url)) {
     const report = await restoreDatabase({ from: path.resolve(from), databaseUrl: target.toString(), adminUrl: endpoints.adminUrl, dataDir });
     console.log(`restored ${report.manifest.database} (backed up ${report.manifest.createdAt}) into "${name}"; ${report.filesRestored} data file(s)`);
     if (report.corruptFiles.length) {
-      console.error(`[restore] ${report.corruptFiles.length} file(s) in the backup do not match their SHA-256 and were not restored:\n  ${report.corruptFiles.join('\n  ')}`);
+      console.error(
+        `[restore] ${report.corruptFiles.length} file(s) in the backup do not match their SHA-256 and were not restored:\n  ${report.corruptFiles.join('\n  ')}`,
+      );
       process.exit(1);
     }
   } catch (error) {

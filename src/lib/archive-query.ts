@@ -5,7 +5,22 @@
  */
 
 /** The archive's filters (src/lib/api/archive.ts parses each), in the order URLs write them. */
-export const ARCHIVE_FILTER_KEYS = ['q', 'client', 'clientId', 'address', 'gateKind', 'usageClass', 'status', 'verdict', 'family', 'version', 'auditorId', 'gateId', 'from', 'to'] as const;
+export const ARCHIVE_FILTER_KEYS = [
+  'q',
+  'client',
+  'clientId',
+  'address',
+  'gateKind',
+  'usageClass',
+  'status',
+  'verdict',
+  'family',
+  'version',
+  'auditorId',
+  'gateId',
+  'from',
+  'to',
+] as const;
 export type ArchiveFilterKey = (typeof ARCHIVE_FILTER_KEYS)[number];
 
 export const ARCHIVE_SORTS = ['-date', 'date', 'client', '-client', 'gate', '-gate'] as const;

@@ -74,17 +74,59 @@ async function scratchDatabase(adminUrl: string, appUrl: string, reseed: boolean
 }
 
 /** Words for invented names: shuffled together they give thousands of distinct clients and streets. */
-const CLIENT_WORDS = ['Harrow', 'Fennick', 'Larkspur', 'Quarry', 'Moss', 'Tollbar', 'Fieldfare', 'Saltmere', 'Brook', 'Pennine', 'Wren', 'Copper', 'Ash', 'Heron', 'Linden', 'Marsh'];
+const CLIENT_WORDS = [
+  'Harrow',
+  'Fennick',
+  'Larkspur',
+  'Quarry',
+  'Moss',
+  'Tollbar',
+  'Fieldfare',
+  'Saltmere',
+  'Brook',
+  'Pennine',
+  'Wren',
+  'Copper',
+  'Ash',
+  'Heron',
+  'Linden',
+  'Marsh',
+];
 const CLIENT_KINDS = ['Lettings', 'Household', 'Storage', 'Residents', 'Estates', 'Logistics', 'Farm', 'Court Association'];
-const STREETS = ['Fennick Row', 'Tollbar Yard', 'Harrowgate Close', 'Quayside Walk', 'Larkspur Row', 'Pennine Court', 'Brookhaven Lane', 'Heron Way', 'Copperfield Road', 'Wrenfold Drive', 'Ashby Mews', 'Linden Crescent'];
+const STREETS = [
+  'Fennick Row',
+  'Tollbar Yard',
+  'Harrowgate Close',
+  'Quayside Walk',
+  'Larkspur Row',
+  'Pennine Court',
+  'Brookhaven Lane',
+  'Heron Way',
+  'Copperfield Road',
+  'Wrenfold Drive',
+  'Ashby Mews',
+  'Linden Crescent',
+];
 const CITIES = ['Eastholm', 'Westmarch', 'Saltmere', 'Northwick', 'Brookhaven', 'Hollins', 'Greyford', 'Marlow Cross'];
-const GATE_LABELS = ['Front drive gate', 'Rear yard slider', 'Service gate', 'Courtyard gate', 'Depot main gate', 'North entrance', 'Loading bay gate', 'Paddock gate'];
+const GATE_LABELS = [
+  'Front drive gate',
+  'Rear yard slider',
+  'Service gate',
+  'Courtyard gate',
+  'Depot main gate',
+  'North entrance',
+  'Loading bay gate',
+  'Paddock gate',
+];
 
 const sqlArray = (values: string[]) => `array[${values.map((v) => `'${v.replace(/'/g, "''")}'`).join(',')}]`;
 
 async function seed(db: Knex): Promise<{ organisationId: string; officeEmail: string; auditorIds: string[] }> {
   const started = performance.now();
-  const [v2015] = await db('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where({ 'r.family': 'north-american-gate', 'rv.version': '2015.1' }).select('rv.id', 'rv.content');
+  const [v2015] = await db('ruleset_versions as rv')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where({ 'r.family': 'north-american-gate', 'rv.version': '2015.1' })
+    .select('rv.id', 'rv.content');
   if (!v2015) throw new Error('north-american-gate 2015.1 is not published in the bench database');
   const loaded = loadRulesetFile(v2015.content);
 
@@ -128,7 +170,9 @@ async function seed(db: Knex): Promise<{ organisationId: string; officeEmail: st
       .insert(staff.map((s) => ({ ...s, organisation_id: org.id, password_hash: hash })))
       .returning(['id', 'role']);
     const auditorIds = users.filter((u) => u.role === 'auditor').map((u) => u.id as string);
-    await trx.raw('create temporary table bench_pool (profile int, variant int, kind text, gate jsonb, snapshot jsonb, answers jsonb, measurements jsonb, observations jsonb, result jsonb, result_sha256 text, verdict text) on commit drop');
+    await trx.raw(
+      'create temporary table bench_pool (profile int, variant int, kind text, gate jsonb, snapshot jsonb, answers jsonb, measurements jsonb, observations jsonb, result jsonb, result_sha256 text, verdict text) on commit drop',
+    );
     for (let i = 0; i < pool.length; i += 200) await trx('bench_pool').insert(pool.slice(i, i + 200));
     await trx.raw('create temporary table bench_auditors (n int, id uuid) on commit drop');
     await trx('bench_auditors').insert(auditorIds.map((id, n) => ({ n, id })));
@@ -253,7 +297,8 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
   try {
     let org = await db('organisations').where('slug', `${SEED_MARK}-done`).first('id');
     if (!org) {
-      if (await db('organisations').where('slug', SEED_MARK).first('id')) throw new Error(`${DATABASE} holds a half-finished seed: run with ARCHIVE_BENCH_RESEED=1`);
+      if (await db('organisations').where('slug', SEED_MARK).first('id'))
+        throw new Error(`${DATABASE} holds a half-finished seed: run with ARCHIVE_BENCH_RESEED=1`);
       console.log(`Seeding ${DATABASE}: ${GATES.toLocaleString('en-GB')} gates, ${(GATES * VISITS_PER_GATE).toLocaleString('en-GB')} assessments…`);
       const started = performance.now();
       await seed(db);
@@ -272,12 +317,20 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     server = await startAppServer({
       port,
       quiet: true,
-      env: { DATABASE_URL: databaseUrl, AUTH_SECRET: 'archive-bench-secret-0123456789abcdef', AUTH_TRUST_HOST: 'true', LATCHWELL_ENV: 'test', OUTBOX_WORKER: 'off', SMTP_URL: 'smtp://127.0.0.1:9' },
+      env: {
+        DATABASE_URL: databaseUrl,
+        AUTH_SECRET: 'archive-bench-secret-0123456789abcdef',
+        AUTH_TRUST_HOST: 'true',
+        LATCHWELL_ENV: 'test',
+        OUTBOX_WORKER: 'off',
+        SMTP_URL: 'smtp://127.0.0.1:9',
+      },
     });
     const cookie = await signInCookie(server.url, 'office@bench-archive.test');
     const deep = await (async () => {
       let path = '/api/archive?limit=25';
-      for (let i = 0; i < 40; i++) path = `/api/archive?limit=25&after=${((await timeGet(server!.url, cookie, path)).body as { nextCursor: string }).nextCursor}`;
+      for (let i = 0; i < 40; i++)
+        path = `/api/archive?limit=25&after=${((await timeGet(server!.url, cookie, path)).body as { nextCursor: string }).nextCursor}`;
       return path;
     })();
     const filters: Record<string, string> = {
@@ -320,7 +373,10 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     process.env.DATABASE_URL = databaseUrl;
     const { impactReport, impactTarget } = await import('../../src/lib/server/impact');
     const { closeDatabase } = await import('../../src/lib/server/db');
-    const [v2026] = await db('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where({ 'r.family': 'north-american-gate', 'rv.version': '2026.1' }).select('rv.id');
+    const [v2026] = await db('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where({ 'r.family': 'north-american-gate', 'rv.version': '2026.1' })
+      .select('rv.id');
     const target = await impactTarget(organisationId, v2026.id);
     if (!target) throw new Error('north-american-gate 2026.1 is not published in the bench database');
     const impactStarted = performance.now();
@@ -342,10 +398,17 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       assessments: Number(assessments),
       gates: Number(gates),
     };
-    console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}`);
+    console.log(
+      `Machine: load average ${loadavg()
+        .map((l) => l.toFixed(1))
+        .join(' ')}`,
+    );
     console.log(`Archive of ${figures.assessments.toLocaleString('en-GB')} assessments across ${figures.gates.toLocaleString('en-GB')} gates (${DATABASE})`);
-    console.log(`  list API over HTTP, ${REPEATS} rounds of ${Object.keys(filters).length} typical filters: p50 ${figures.listP50Ms} ms, p95 ${figures.listP95Ms} ms (target p95 < 50 ms)`);
-    for (const [name, f] of Object.entries(perFilter)) console.log(`    ${name.padEnd(24)} p50 ${String(f.p50).padStart(7)} ms   p95 ${String(f.p95).padStart(7)} ms`);
+    console.log(
+      `  list API over HTTP, ${REPEATS} rounds of ${Object.keys(filters).length} typical filters: p50 ${figures.listP50Ms} ms, p95 ${figures.listP95Ms} ms (target p95 < 50 ms)`,
+    );
+    for (const [name, f] of Object.entries(perFilter))
+      console.log(`    ${name.padEnd(24)} p50 ${String(f.p50).padStart(7)} ms   p95 ${String(f.p95).padStart(7)} ms`);
     console.log(`  count (kind + status): p95 ${figures.countP95Ms} ms`);
     console.log(
       `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each, ${report.workers ? `${report.workers} worker threads` : 'one thread'}; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,

@@ -42,7 +42,16 @@ beforeAll(async () => {
     const after = verdict(v2026, g, d);
     if (!before || !after || rank[after] <= rank[before]) continue;
     const id = await addGate(org.id, site, `Service gate ${++found}`, g);
-    await fileAssessment({ organisationId: org.id, auditorId: org.auditor.id, gateId: id, gate: g, usageClass: 1, version: v2015, visitedOn: `2025-0${found}-10T09:00:00Z`, documents: d });
+    await fileAssessment({
+      organisationId: org.id,
+      auditorId: org.auditor.id,
+      gateId: id,
+      gate: g,
+      usageClass: 1,
+      version: v2015,
+      visitedOn: `2025-0${found}-10T09:00:00Z`,
+      documents: d,
+    });
   }
   browser = await launchBrowser(inject('baseUrl'));
   const { page } = browser;

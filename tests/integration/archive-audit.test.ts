@@ -97,10 +97,24 @@ describe('audit trail', () => {
     const between = await testDb()('audit_events').where('id', '>', previous.id).andWhere('id', '<', last.id).count({ n: '*' });
     if (Number(between[0]!.n) > 0) return; // another file's event sits between ours: the link test needs adjacent rows
     const saved = { ...previous };
-    restore = () => withTriggerOff(
-      'insert into audit_events (id, organisation_id, actor_user_id, actor_label, action, entity_type, entity_id, ip, detail, created_at, prev_hash, hash) values (?,?,?,?,?,?,?,?,?,?,?,?)',
-      [saved.id, saved.organisation_id, saved.actor_user_id, saved.actor_label, saved.action, saved.entity_type, saved.entity_id, saved.ip, JSON.stringify(saved.detail), saved.created_at, saved.prev_hash, saved.hash],
-    );
+    restore = () =>
+      withTriggerOff(
+        'insert into audit_events (id, organisation_id, actor_user_id, actor_label, action, entity_type, entity_id, ip, detail, created_at, prev_hash, hash) values (?,?,?,?,?,?,?,?,?,?,?,?)',
+        [
+          saved.id,
+          saved.organisation_id,
+          saved.actor_user_id,
+          saved.actor_label,
+          saved.action,
+          saved.entity_type,
+          saved.entity_id,
+          saved.ip,
+          JSON.stringify(saved.detail),
+          saved.created_at,
+          saved.prev_hash,
+          saved.hash,
+        ],
+      );
     try {
       await withTriggerOff('delete from audit_events where id = ?', [previous.id]);
       const broken = await expectJson<TrailVerification>(await owner.fetch('/api/archive/audit/verify'));

@@ -43,7 +43,11 @@ async function migrate(db: Knex): Promise<void> {
   const dir = path.resolve(__dirname, '../../db/migrations');
   await db.migrate.latest({
     migrationSource: {
-      getMigrations: async () => fs.readdirSync(dir).filter((f) => f.endsWith('.ts')).sort(),
+      getMigrations: async () =>
+        fs
+          .readdirSync(dir)
+          .filter((f) => f.endsWith('.ts'))
+          .sort(),
       getMigrationName: (name: string) => name,
       getMigration: async (name: string) => import(path.join(dir, name)),
     },
@@ -58,21 +62,45 @@ beforeAll(async () => {
   source = knex({ client: 'pg', connection: urlFor(sourceName), pool: { min: 0, max: 2 } });
   await migrate(source);
   const files = createDiskStorage(path.join(work, 'source', 'files'));
-  const [org] = await source('organisations').insert({ name: 'Backstay Gate Services', slug: `backstay-${suffix}` }).returning('id');
-  const [user] = await source('users').insert({ organisation_id: org.id, email: `owner.${suffix}@backstay.test`, name: 'Owner', role: 'owner' }).returning('id');
+  const [org] = await source('organisations')
+    .insert({ name: 'Backstay Gate Services', slug: `backstay-${suffix}` })
+    .returning('id');
+  const [user] = await source('users')
+    .insert({ organisation_id: org.id, email: `owner.${suffix}@backstay.test`, name: 'Owner', role: 'owner' })
+    .returning('id');
   const [client] = await source('clients').insert({ organisation_id: org.id, name: 'Pennine Court', kind: 'business' }).returning('id');
-  const [site] = await source('sites').insert({ organisation_id: org.id, client_id: client.id, address_line1: '9 Pennine Court', city: 'Hollins', usage_class: 3 }).returning('id');
+  const [site] = await source('sites')
+    .insert({ organisation_id: org.id, client_id: client.id, address_line1: '9 Pennine Court', city: 'Hollins', usage_class: 3 })
+    .returning('id');
   const [gate] = await source('gates').insert({ organisation_id: org.id, site_id: site.id, label: 'Yard gate', kind: 'slide' }).returning('id');
   const [ruleset] = await source('rulesets').insert({ organisation_id: org.id, family: 'backup-check', title: 'Backup check' }).returning('id');
-  const [version] = await source('ruleset_versions').insert({ ruleset_id: ruleset.id, version: '1', content: '{}', content_sha256: '0'.repeat(64) }).returning('id');
+  const [version] = await source('ruleset_versions')
+    .insert({ ruleset_id: ruleset.id, version: '1', content: '{}', content_sha256: '0'.repeat(64) })
+    .returning('id');
   for (let i = 0; i < 3; i++) {
     const [assessment] = await source('assessments')
-      .insert({ organisation_id: org.id, gate_id: gate.id, ruleset_version_id: version.id, auditor_id: user.id, status: 'signed', verdict: 'clear', signed_at: new Date().toISOString() })
+      .insert({
+        organisation_id: org.id,
+        gate_id: gate.id,
+        ruleset_version_id: version.id,
+        auditor_id: user.id,
+        status: 'signed',
+        verdict: 'clear',
+        signed_at: new Date().toISOString(),
+      })
       .returning('id');
     const pdf = Buffer.concat([Buffer.from(`%PDF-1.7\n% backup round trip ${i}\n`), randomBytes(2048), Buffer.from('\n%%EOF\n')]);
     const stored = await files.put(pdf, 'application/pdf');
     const [doc] = await source('documents')
-      .insert({ organisation_id: org.id, assessment_id: assessment.id, kind: 'signed_report', sha256: stored.key, storage_key: stored.key, size_bytes: pdf.byteLength, filename: `report-${i}.pdf` })
+      .insert({
+        organisation_id: org.id,
+        assessment_id: assessment.id,
+        kind: 'signed_report',
+        sha256: stored.key,
+        storage_key: stored.key,
+        size_bytes: pdf.byteLength,
+        filename: `report-${i}.pdf`,
+      })
       .returning(['id', 'sha256']);
     documents.push(doc);
   }
@@ -94,7 +122,12 @@ describe('backup and restore', () => {
     expect(manifest).toMatchObject({ format: 'latchwell-backup/1', database: sourceName, files: 3 });
     expect(manifest.serverVersion).toMatch(/^\d+/);
 
-    const report = await restoreDatabase({ from: out, databaseUrl: urlFor(targetName), adminUrl: inject('adminDatabaseUrl'), dataDir: path.join(work, 'restored') });
+    const report = await restoreDatabase({
+      from: out,
+      databaseUrl: urlFor(targetName),
+      adminUrl: inject('adminDatabaseUrl'),
+      dataDir: path.join(work, 'restored'),
+    });
     expect(report).toMatchObject({ filesRestored: 3, corruptFiles: [] });
 
     const restored = knex({ client: 'pg', connection: urlFor(targetName), pool: { min: 0, max: 1 } });
@@ -121,6 +154,8 @@ describe('backup and restore', () => {
     const bogus = path.join(work, 'bogus.tar');
     fs.writeFileSync(path.join(work, 'manifest.json'), JSON.stringify({ format: 'something-else' }));
     execFileSync('tar', ['-cf', bogus, '-C', work, 'manifest.json']);
-    await expect(restoreDatabase({ from: bogus, databaseUrl: urlFor(targetName), adminUrl: inject('adminDatabaseUrl'), dataDir: path.join(work, 'nowhere') })).rejects.toThrow(/not a Latchwell backup/);
+    await expect(
+      restoreDatabase({ from: bogus, databaseUrl: urlFor(targetName), adminUrl: inject('adminDatabaseUrl'), dataDir: path.join(work, 'nowhere') }),
+    ).rejects.toThrow(/not a Latchwell backup/);
   });
 });

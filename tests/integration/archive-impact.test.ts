@@ -59,22 +59,37 @@ beforeAll(async () => {
   gates.worse = await addGate(org.id, site, 'North gate', worse.gate);
   gates.same = await addGate(org.id, site, 'South gate', same.gate);
   gates.revisited = await addGate(org.id, site, 'Service gate', worse.gate);
-  filed.worse = (await fileAssessment({ ...base, gateId: gates.worse, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2025-04-01T10:00:00Z' })).id;
-  filed.same = (await fileAssessment({ ...base, gateId: gates.same, gate: same.gate, version: v2015, documents: same.documents, visitedOn: '2025-04-01T11:00:00Z' })).id;
+  filed.worse = (
+    await fileAssessment({ ...base, gateId: gates.worse, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2025-04-01T10:00:00Z' })
+  ).id;
+  filed.same = (
+    await fileAssessment({ ...base, gateId: gates.same, gate: same.gate, version: v2015, documents: same.documents, visitedOn: '2025-04-01T11:00:00Z' })
+  ).id;
   // Visited under the old version, then again under the new one: its standing record is already current.
-  filed.revisitedOld = (await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2024-04-01T10:00:00Z' })).id;
-  filed.revisitedNew = (await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2026, documents: worse.documents, visitedOn: '2026-04-01T10:00:00Z' })).id;
+  filed.revisitedOld = (
+    await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2024-04-01T10:00:00Z' })
+  ).id;
+  filed.revisitedNew = (
+    await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2026, documents: worse.documents, visitedOn: '2026-04-01T10:00:00Z' })
+  ).id;
 });
 
 describe('ruleset impact', () => {
-  it("lists the gates whose last signed visit would get a worse verdict, with the rules responsible, without touching stored results", async () => {
+  it('lists the gates whose last signed visit would get a worse verdict, with the rules responsible, without touching stored results', async () => {
     const stored = await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at');
     const report = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}`));
     expect(report).toMatchObject({ basis: 'latest', considered: 2, worse: 1, same: 1, unscorable: 0, truncated: false });
     expect(report.target).toMatchObject({ family: 'north-american-gate', version: '2026.1' });
     expect(report.target.comparedWith).toContain('2015.1');
     const [item] = report.items;
-    expect(item).toMatchObject({ assessmentId: filed.worse, gateId: gates.worse, gateLabel: 'North gate', clientName: 'Fieldfare Close Association', fromVersion: '2015.1', change: 'worse' });
+    expect(item).toMatchObject({
+      assessmentId: filed.worse,
+      gateId: gates.worse,
+      gateLabel: 'North gate',
+      clientName: 'Fieldfare Close Association',
+      fromVersion: '2015.1',
+      change: 'worse',
+    });
     expect(rank[item!.after!]).toBeGreaterThan(rank[item!.before]);
     expect(item!.rules.length).toBeGreaterThan(0);
     // Every rule named really drives the new verdict, and was not already failing that badly.
@@ -83,7 +98,9 @@ describe('ruleset impact', () => {
       expect(rule.severity === 'critical' || (rule.severity === 'major' && rule.outcome === 'fail')).toBe(true);
       expect(rule.before === 'fail' && rule.beforeSeverity === rule.severity).toBe(false);
     }
-    expect(await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at')).toEqual(stored);
+    expect(await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at')).toEqual(
+      stored,
+    );
   });
 
   it('re-scores every signed visit with basis=all, and exports the list as CSV', async () => {
@@ -121,7 +138,9 @@ describe('ruleset impact', () => {
       },
     });
     try {
-      const res = await fetch(`${server.url}/api/archive/impact?versionId=${v2026.id}&basis=all`, { headers: { cookie: office.cookie, accept: 'application/json', origin: server.url } });
+      const res = await fetch(`${server.url}/api/archive/impact?versionId=${v2026.id}&basis=all`, {
+        headers: { cookie: office.cookie, accept: 'application/json', origin: server.url },
+      });
       const spread = await expectJson<ImpactReport>(res);
       expect(spread.workers).toBe(2);
       expect(here.workers).toBe(0);

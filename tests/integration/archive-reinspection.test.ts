@@ -33,7 +33,8 @@ beforeAll(async () => {
   const file = async (name: string, visit: string | null, fields: Record<string, unknown> = {}) => {
     const gate = sampleGate(prng);
     gates[name] = await addGate(org.id, site, `${name} gate`, gate, fields);
-    if (visit) await fileAssessment({ organisationId: org.id, gateId: gates[name]!, auditorId: org.auditor.id, version, gate, usageClass: 2, visitedOn: visit, prng });
+    if (visit)
+      await fileAssessment({ organisationId: org.id, gateId: gates[name]!, auditorId: org.auditor.id, version, gate, usageClass: 2, visitedOn: visit, prng });
   };
   await file('Overdue', monthsFromNow(-13).at);
   // Due on this month's 15th: within a month either side of today.
@@ -61,9 +62,15 @@ describe('re-inspection', () => {
 
   it('queues one office digest and one client message through the outbox, and never twice for the same due date', async () => {
     const [seenOffice, seenClient] = await Promise.all([caughtMailIds(org.office.email), caughtMailIds(clientEmail)]);
-    const first = await expectJson<{ officeGates: number; clientMessages: number; alreadyReminded: number }>(await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }), 202);
+    const first = await expectJson<{ officeGates: number; clientMessages: number; alreadyReminded: number }>(
+      await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }),
+      202,
+    );
     expect(first).toMatchObject({ officeGates: 2, clientMessages: 1, alreadyReminded: 0 });
-    const rows = await testDb()('outbox_messages').where({ organisation_id: org.id }).whereIn('kind', ['reinspection_reminder', 'reinspection_reminder_client']).select('kind', 'to_addresses', 'attachments');
+    const rows = await testDb()('outbox_messages')
+      .where({ organisation_id: org.id })
+      .whereIn('kind', ['reinspection_reminder', 'reinspection_reminder_client'])
+      .select('kind', 'to_addresses', 'attachments');
     expect(rows.map((r) => r.kind).sort()).toEqual(['reinspection_reminder', 'reinspection_reminder_client']);
     expect(rows.find((r) => r.kind === 'reinspection_reminder_client')!.to_addresses).toEqual([clientEmail]);
     expect(rows.every((r) => r.attachments[0]?.filename === 'reinspection.ics')).toBe(true);

@@ -21,11 +21,28 @@ beforeAll(async () => {
   const client = await addClient(org.id, 'Larkspur Row Residents');
   const site = await addSite(org.id, client, '5 Larkspur Row', 'Northwick', 2);
   const gateId = await addGate(org.id, site, 'Residents gate', gate);
-  signed = await fileAssessment({ organisationId: org.id, gateId, auditorId: org.auditor.id, version, gate, usageClass: 2, visitedOn: '2026-10-02T10:00:00Z', prng });
+  signed = await fileAssessment({
+    organisationId: org.id,
+    gateId,
+    auditorId: org.auditor.id,
+    version,
+    gate,
+    usageClass: 2,
+    visitedOn: '2026-10-02T10:00:00Z',
+    prng,
+  });
   // A signing copy is not a signed report, even though it is stored and hashed.
   const copy = Buffer.from(`%PDF-1.7\n% signing copy ${signed.id}\n%%EOF\n`);
   const [row] = await testDb()('documents')
-    .insert({ organisation_id: org.id, assessment_id: signed.id, kind: 'signing_copy', sha256: sha(copy), storage_key: sha(copy), size_bytes: copy.byteLength, filename: 'copy.pdf' })
+    .insert({
+      organisation_id: org.id,
+      assessment_id: signed.id,
+      kind: 'signing_copy',
+      sha256: sha(copy),
+      storage_key: sha(copy),
+      size_bytes: copy.byteLength,
+      filename: 'copy.pdf',
+    })
     .returning('id');
   draftCopyId = row.id;
 });
@@ -48,7 +65,11 @@ describe('public verification', () => {
 
   it('confirms by document id, and by the raw PDF body', async () => {
     expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`))).toMatchObject({ match: true, organisation: org.name });
-    const raw = await anonymousClient().fetch('/api/verify', { method: 'POST', headers: { 'content-type': 'application/pdf' }, body: new Uint8Array(signed.pdf!) });
+    const raw = await anonymousClient().fetch('/api/verify', {
+      method: 'POST',
+      headers: { 'content-type': 'application/pdf' },
+      body: new Uint8Array(signed.pdf!),
+    });
     expect(await expectJson(raw)).toMatchObject({ match: true, documentId: signed.documentId });
   });
 

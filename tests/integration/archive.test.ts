@@ -43,10 +43,41 @@ beforeAll(async () => {
   filed.front2025 = await fileAssessment({ ...base, gateId: gates.frontDrive, gate: swingA, usageClass: 1, version: v2015, visitedOn: '2025-03-10T10:00:00Z' });
   filed.front2026 = await fileAssessment({ ...base, gateId: gates.frontDrive, gate: swingA, usageClass: 1, version: v2026, visitedOn: '2026-03-12T10:00:00Z' });
   filed.rear = await fileAssessment({ ...base, gateId: gates.rearYard, gate: slideA, usageClass: 1, version: v2026, visitedOn: '2026-05-01T09:00:00Z' });
-  filed.depot = await fileAssessment({ ...base, auditorId: org.auditor2.id, gateId: gates.depot, gate: slideC, usageClass: 3, version: v2026, visitedOn: '2026-06-15T13:00:00Z' });
-  filed.depotDraft = await fileAssessment({ ...base, gateId: gates.depot, gate: slideC, usageClass: 3, version: v2026, visitedOn: '2026-11-01T08:00:00Z', status: 'draft' });
-  filed.courtyardScored = await fileAssessment({ ...base, gateId: gates.courtyard, gate: swingB, usageClass: 2, version: v2026, visitedOn: '2026-09-20T15:00:00Z', status: 'scored' });
-  filed.courtyard2024 = await fileAssessment({ ...base, gateId: gates.courtyard, gate: swingB, usageClass: 2, version: v2026, visitedOn: '2024-09-20T15:00:00Z' });
+  filed.depot = await fileAssessment({
+    ...base,
+    auditorId: org.auditor2.id,
+    gateId: gates.depot,
+    gate: slideC,
+    usageClass: 3,
+    version: v2026,
+    visitedOn: '2026-06-15T13:00:00Z',
+  });
+  filed.depotDraft = await fileAssessment({
+    ...base,
+    gateId: gates.depot,
+    gate: slideC,
+    usageClass: 3,
+    version: v2026,
+    visitedOn: '2026-11-01T08:00:00Z',
+    status: 'draft',
+  });
+  filed.courtyardScored = await fileAssessment({
+    ...base,
+    gateId: gates.courtyard,
+    gate: swingB,
+    usageClass: 2,
+    version: v2026,
+    visitedOn: '2026-09-20T15:00:00Z',
+    status: 'scored',
+  });
+  filed.courtyard2024 = await fileAssessment({
+    ...base,
+    gateId: gates.courtyard,
+    gate: swingB,
+    usageClass: 2,
+    version: v2026,
+    visitedOn: '2024-09-20T15:00:00Z',
+  });
 });
 
 const list = async (client: TestClient, query: string) => expectJson<ArchivePage>(await client.fetch(`/api/archive?${query}`));
@@ -131,9 +162,15 @@ describe('archive search', () => {
       expect(whole).toHaveLength(7);
       const pages: ArchivePage[] = [await list(office, `sort=${sort}&limit=2`)];
       while (pages.at(-1)!.nextCursor) pages.push(await list(office, `sort=${sort}&limit=2&after=${pages.at(-1)!.nextCursor}`));
-      expect(pages.flatMap((p) => p.items.map((i) => i.id)), sort).toEqual(whole);
+      expect(
+        pages.flatMap((p) => p.items.map((i) => i.id)),
+        sort,
+      ).toEqual(whole);
       const back = await list(office, `sort=${sort}&limit=2&before=${pages.at(-1)!.prevCursor}`);
-      expect(back.items.map((i) => i.id), sort).toEqual(pages.at(-2)!.items.map((i) => i.id));
+      expect(
+        back.items.map((i) => i.id),
+        sort,
+      ).toEqual(pages.at(-2)!.items.map((i) => i.id));
     }
   });
 
@@ -197,7 +234,9 @@ describe('gate history', () => {
     expect(history.lastVisit?.assessmentId).toBe(filed.front2026!.id);
 
     const { result } = await testDb()('assessments').where({ id: filed.front2026!.id }).first('result');
-    const open = result.findings.filter((f: { outcome: string }) => f.outcome === 'fail' || f.outcome === 'needs_info').map((f: { ruleId: string }) => f.ruleId);
+    const open = result.findings
+      .filter((f: { outcome: string }) => f.outcome === 'fail' || f.outcome === 'needs_info')
+      .map((f: { ruleId: string }) => f.ruleId);
     expect(history.openFindings.map((f) => f.ruleId).sort()).toEqual(open.sort());
     const earlierFails: string[] = history.visits[0]!.failedRuleIds;
     for (const finding of history.openFindings.filter((f) => f.outcome === 'fail')) {

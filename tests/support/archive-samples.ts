@@ -130,7 +130,11 @@ type Logic = unknown;
  * `answers.k == v` the answer v, for `m.k <= params.p` a value under the limit, for
  * `m.k >= params.p` one over it. Only simple comparisons are read; the rest stay random.
  */
-export function safeAnswersOf(version: Pick<RulesetVersion, 'rules'>): { answers: Map<string, string>; below: Map<string, number>; above: Map<string, number> } {
+export function safeAnswersOf(version: Pick<RulesetVersion, 'rules'>): {
+  answers: Map<string, string>;
+  below: Map<string, number>;
+  above: Map<string, number>;
+} {
   const answers = new Map<string, string>();
   const below = new Map<string, number>();
   const above = new Map<string, number>();
@@ -195,7 +199,12 @@ export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'quest
     answers,
     measurements,
     observations: {
-      site: { pedestriansUseDriveway: prng.chance(0.5), childrenOrPetsPresent: prng.chance(0.4), publicAccess: prng.chance(0.2), slopeAcrossSwing: prng.chance(0.1) },
+      site: {
+        pedestriansUseDriveway: prng.chance(0.5),
+        childrenOrPetsPresent: prng.chance(0.4),
+        publicAccess: prng.chance(0.2),
+        slopeAcrossSwing: prng.chance(0.1),
+      },
       entrapment: sampleEntrapment(prng, diligence),
     },
   };

@@ -57,7 +57,9 @@ const column = createColumnHelper<ArchiveItem>();
 function ArchiveTable({ initialSearch, options, timeZone }: Props) {
   const [state, setState] = useState<ArchiveViewState>(() => viewStateFrom(new URLSearchParams(initialSearch)));
   // What is typed in the text boxes; committed to the state (and the URL) after a short pause.
-  const [typed, setTyped] = useState(() => Object.fromEntries(TEXT_FILTERS.map((k) => [k, state.filters[k] ?? ''])) as Record<(typeof TEXT_FILTERS)[number], string>);
+  const [typed, setTyped] = useState(
+    () => Object.fromEntries(TEXT_FILTERS.map((k) => [k, state.filters[k] ?? ''])) as Record<(typeof TEXT_FILTERS)[number], string>,
+  );
   const historyMode = useRef<'push' | 'replace'>('replace');
 
   const update = (change: Partial<ArchiveViewState>, mode: 'push' | 'replace' = 'push') => {
@@ -102,7 +104,11 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
   }, []);
 
   const page = useQuery({ queryKey: ['archive', query], queryFn: ({ signal }) => fetchArchivePage(query, signal), placeholderData: keepPreviousData });
-  const count = useQuery({ queryKey: ['archive-count', filterQuery], queryFn: ({ signal }) => fetchArchiveCount(filterQuery, signal), placeholderData: keepPreviousData });
+  const count = useQuery({
+    queryKey: ['archive-count', filterQuery],
+    queryFn: ({ signal }) => fetchArchiveCount(filterQuery, signal),
+    placeholderData: keepPreviousData,
+  });
 
   const dateFormat = useMemo(() => new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone }), [timeZone]);
   const columns = useMemo(
@@ -145,12 +151,19 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
           <span className="inline-flex flex-wrap gap-1">
             <span className="rounded-full bg-iron-100 px-2 py-0.5 text-xs font-semibold">{STATUS_LABELS[c.row.original.status] ?? c.row.original.status}</span>
             {c.row.original.verdict && (
-              <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[c.row.original.verdict]}`}>{VERDICT_LABELS[c.row.original.verdict]}</span>
+              <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[c.row.original.verdict]}`}>
+                {VERDICT_LABELS[c.row.original.verdict]}
+              </span>
             )}
           </span>
         ),
       }),
-      column.accessor((row) => `${row.ruleset.family} ${row.ruleset.version}`, { id: 'ruleset', header: 'Ruleset', enableSorting: false, cell: (c) => <span className="text-sm">{c.getValue()}</span> }),
+      column.accessor((row) => `${row.ruleset.family} ${row.ruleset.version}`, {
+        id: 'ruleset',
+        header: 'Ruleset',
+        enableSorting: false,
+        cell: (c) => <span className="text-sm">{c.getValue()}</span>,
+      }),
       column.accessor((row) => row.auditor.name, { id: 'auditor', header: 'Auditor', enableSorting: false }),
     ],
     [dateFormat],
@@ -183,7 +196,14 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
       <form className="card grid gap-3 sm:grid-cols-2 lg:grid-cols-4" role="search" onSubmit={(e) => e.preventDefault()}>
         <label className="sm:col-span-2">
           <span className="label">Search client, address or gate</span>
-          <input className="field" type="search" value={typed.q} onChange={(e) => setTyped({ ...typed, q: e.target.value })} placeholder="e.g. Fennick, EH4, rear yard" autoComplete="off" />
+          <input
+            className="field"
+            type="search"
+            value={typed.q}
+            onChange={(e) => setTyped({ ...typed, q: e.target.value })}
+            placeholder="e.g. Fennick, EH4, rear yard"
+            autoComplete="off"
+          />
         </label>
         <label>
           <span className="label">Client name</span>
@@ -194,7 +214,12 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
           <input className="field" type="text" value={typed.address} onChange={(e) => setTyped({ ...typed, address: e.target.value })} autoComplete="off" />
         </label>
         <Select label="Gate kind" value={state.filters.gateKind} onChange={(v) => setFilter('gateKind', v)} options={Object.entries(GATE_KIND_LABELS)} />
-        <Select label="Usage class" value={state.filters.usageClass} onChange={(v) => setFilter('usageClass', v)} options={['1', '2', '3', '4'].map((c) => [c, `Class ${c}`])} />
+        <Select
+          label="Usage class"
+          value={state.filters.usageClass}
+          onChange={(v) => setFilter('usageClass', v)}
+          options={['1', '2', '3', '4'].map((c) => [c, `Class ${c}`])}
+        />
         <Select label="Status" value={state.filters.status} onChange={(v) => setFilter('status', v)} options={Object.entries(STATUS_LABELS)} />
         <Select label="Verdict" value={state.filters.verdict} onChange={(v) => setFilter('verdict', v)} options={Object.entries(VERDICT_LABELS)} />
         <label>
@@ -220,7 +245,12 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             ])}
           </select>
         </label>
-        <Select label="Auditor" value={state.filters.auditorId} onChange={(v) => setFilter('auditorId', v)} options={options.auditors.map((a) => [a.id, a.name])} />
+        <Select
+          label="Auditor"
+          value={state.filters.auditorId}
+          onChange={(v) => setFilter('auditorId', v)}
+          options={options.auditors.map((a) => [a.id, a.name])}
+        />
         <label>
           <span className="label">Visited from</span>
           <input className="field" type="date" value={state.filters.from ?? ''} onChange={(e) => setFilter('from', e.target.value)} />
@@ -265,9 +295,18 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
                 {group.headers.map((header) => {
                   const sorted = header.column.getIsSorted();
                   return (
-                    <th key={header.id} scope="col" className="px-3 py-2 font-semibold text-iron-800" aria-sort={sorted ? (sorted === 'desc' ? 'descending' : 'ascending') : undefined}>
+                    <th
+                      key={header.id}
+                      scope="col"
+                      className="px-3 py-2 font-semibold text-iron-800"
+                      aria-sort={sorted ? (sorted === 'desc' ? 'descending' : 'ascending') : undefined}
+                    >
                       {header.column.getCanSort() ? (
-                        <button type="button" className="inline-flex min-h-11 items-center gap-1 font-semibold" onClick={header.column.getToggleSortingHandler()}>
+                        <button
+                          type="button"
+                          className="inline-flex min-h-11 items-center gap-1 font-semibold"
+                          onClick={header.column.getToggleSortingHandler()}
+                        >
                           {flexRender(header.column.columnDef.header, header.getContext())}
                           <span aria-hidden="true">{sorted === 'desc' ? '▼' : sorted === 'asc' ? '▲' : '↕'}</span>
                         </button>
@@ -309,7 +348,12 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
       </div>
 
       <nav className="flex flex-wrap items-center justify-between gap-2" aria-label="Archive pages">
-        <button type="button" className="btn-secondary" disabled={!page.data?.prevCursor} onClick={() => update({ before: page.data?.prevCursor ?? undefined })}>
+        <button
+          type="button"
+          className="btn-secondary"
+          disabled={!page.data?.prevCursor}
+          onClick={() => update({ before: page.data?.prevCursor ?? undefined })}
+        >
           ← Previous
         </button>
         <label className="flex items-center gap-2 text-sm">
@@ -330,7 +374,17 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
   );
 }
 
-function Select({ label, value, onChange, options }: { label: string; value: string | undefined; onChange: (value: string) => void; options: [string, string][] }) {
+function Select({
+  label,
+  value,
+  onChange,
+  options,
+}: {
+  label: string;
+  value: string | undefined;
+  onChange: (value: string) => void;
+  options: [string, string][];
+}) {
   return (
     <label>
       <span className="label">{label}</span>

@@ -34,7 +34,13 @@ export default function ImpactApp(props: Props) {
 }
 
 const verdictClass: Record<string, string> = { clear: 'bg-clear text-white', remedy: 'bg-remedy text-white', withdraw: 'bg-withdraw text-white' };
-const beforeWords: Record<string, string> = { pass: 'passed', fail: 'failed at a lower severity', 'n/a': 'did not apply', needs_info: 'could not be checked', absent: 'new rule' };
+const beforeWords: Record<string, string> = {
+  pass: 'passed',
+  fail: 'failed at a lower severity',
+  'n/a': 'did not apply',
+  needs_info: 'could not be checked',
+  absent: 'new rule',
+};
 
 function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Props) {
   const [versionId, setVersionId] = useState(initialVersionId ?? '');
@@ -118,12 +124,18 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                     <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[item.before]}`}>{VERDICT_LABELS[item.before]}</span>
                     <span aria-hidden="true">→</span>
                     <span className="sr-only">would become</span>
-                    {item.after && <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[item.after]}`}>{VERDICT_LABELS[item.after]}</span>}
+                    {item.after && (
+                      <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[item.after]}`}>{VERDICT_LABELS[item.after]}</span>
+                    )}
                   </p>
                   <ul className="mt-2 list-disc pl-5 text-sm">
                     {item.rules.map((r) => (
                       <li key={r.ruleId}>
-                        <strong>{r.title}</strong> <span className="text-iron-600">({r.ruleId}, {r.severity})</span>: {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it {beforeWords[r.before] ?? r.before}.
+                        <strong>{r.title}</strong>{' '}
+                        <span className="text-iron-600">
+                          ({r.ruleId}, {r.severity})
+                        </span>
+                        : {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it {beforeWords[r.before] ?? r.before}.
                       </li>
                     ))}
                   </ul>
@@ -131,7 +143,11 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
               ))}
             </ul>
           )}
-          {data.truncated && <p className="text-sm text-iron-600">Showing the {data.items.length} most severe; the CSV has all {data.worse}.</p>}
+          {data.truncated && (
+            <p className="text-sm text-iron-600">
+              Showing the {data.items.length} most severe; the CSV has all {data.worse}.
+            </p>
+          )}
         </>
       )}
     </div>

@@ -12,8 +12,14 @@ import { ARCHIVE_SORTS, type ArchiveFilterKey } from '../archive-query';
 export { ARCHIVE_SORTS, ARCHIVE_FILTER_KEYS, type ArchiveSort } from '../archive-query';
 
 const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
-const familySlug = z.string().max(64).regex(/^[a-z][a-z0-9]*(?:-[a-z0-9]+)*$/, 'must be a ruleset family slug');
-const versionLabel = z.string().max(32).regex(/^[0-9A-Za-z][0-9A-Za-z.+-]*$/, 'must be a version label such as 2026.1');
+const familySlug = z
+  .string()
+  .max(64)
+  .regex(/^[a-z][a-z0-9]*(?:-[a-z0-9]+)*$/, 'must be a ruleset family slug');
+const versionLabel = z
+  .string()
+  .max(32)
+  .regex(/^[0-9A-Za-z][0-9A-Za-z.+-]*$/, 'must be a version label such as 2026.1');
 /** Empty query values (a cleared select in a form) mean "no filter". */
 const blankAsUndefined = (value: unknown) => (value === '' ? undefined : value);
 const optional = <S extends z.ZodType>(schema: S) => z.preprocess(blankAsUndefined, schema.optional());

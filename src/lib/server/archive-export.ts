@@ -45,7 +45,13 @@ interface ExportRow {
 const BATCH = 500;
 
 /** The signed reports matching `filter` and signed no later than `cutoff`, newest first, in batches. */
-export async function* signedReportsFor(organisationId: string, timeZone: string, filter: ArchiveFilter, cutoff: string, knex: Knex = db()): AsyncGenerator<ExportRow> {
+export async function* signedReportsFor(
+  organisationId: string,
+  timeZone: string,
+  filter: ArchiveFilter,
+  cutoff: string,
+  knex: Knex = db(),
+): AsyncGenerator<ExportRow> {
   const filtered = archiveBase(knex, organisationId);
   await applyArchiveFilter(filtered, knex, organisationId, filter, timeZone);
   let after: { key: string; id: string } | null = null;

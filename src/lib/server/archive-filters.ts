@@ -49,7 +49,11 @@ async function textMatchedGates(knex: Knex, organisationId: string, filter: Arch
   if (!filter.q && !filter.client && !filter.address) return null;
   const cap = FEW_GATES + 1;
   const ids = async (table: 'gates' | 'sites' | 'clients', condition: string, text: string): Promise<string[]> =>
-    (await knex(table).where('organisation_id', organisationId).andWhereRaw(`${condition} ilike ?`, [containsPattern(text)]).limit(cap).pluck('id')) as string[];
+    (await knex(table)
+      .where('organisation_id', organisationId)
+      .andWhereRaw(`${condition} ilike ?`, [containsPattern(text)])
+      .limit(cap)
+      .pluck('id')) as string[];
   const [labelGates, qSites, qClients, clients, sites] = await Promise.all([
     filter.q ? ids('gates', 'label', filter.q) : [],
     filter.q ? ids('sites', archiveAddressSql('sites'), filter.q) : [],
@@ -59,7 +63,11 @@ async function textMatchedGates(knex: Knex, organisationId: string, filter: Arch
   ]);
   if ([labelGates, qSites, qClients, clients, sites].some((list) => list.length >= cap)) return 'many';
   const gates = knex('gates as tg').where('tg.organisation_id', organisationId);
-  const sitesOf = (clientIds: string[]) => knex('sites').where('organisation_id', organisationId).andWhereRaw('client_id = any(?::uuid[])', [uuidArray(clientIds)]).select('id');
+  const sitesOf = (clientIds: string[]) =>
+    knex('sites')
+      .where('organisation_id', organisationId)
+      .andWhereRaw('client_id = any(?::uuid[])', [uuidArray(clientIds)])
+      .select('id');
   if (filter.q) {
     // Three index lookups, not one OR that would read every gate.
     gates.whereRaw(

@@ -81,8 +81,7 @@ export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key' | 'parent_id'>): 
  * one's assessments joined in by id, so a page costs a few parents, not a sort of the archive.
  */
 type SortPlan =
-  | { kind: 'date'; direction: 'asc' | 'desc' }
-  | { kind: 'parent'; direction: 'asc' | 'desc'; table: 'clients' | 'gates'; key: 'name' | 'label'; link: string };
+  { kind: 'date'; direction: 'asc' | 'desc' } | { kind: 'parent'; direction: 'asc' | 'desc'; table: 'clients' | 'gates'; key: 'name' | 'label'; link: string };
 
 const sortPlans: Record<ArchiveSort, SortPlan> = {
   '-date': { kind: 'date', direction: 'desc' },
@@ -152,7 +151,10 @@ export async function listArchive(organisationId: string, timeZone: string, quer
       .orderByRaw(`${archiveDateSql} ${direction}, a.id ${direction}`)
       .limit(query.limit + 1)) as ArchiveRow[];
   } else {
-    const parents = knex(plan.table).where('organisation_id', organisationId).select('id', `${plan.key} as key`).orderByRaw(`${plan.key} ${direction}, id ${direction}`);
+    const parents = knex(plan.table)
+      .where('organisation_id', organisationId)
+      .select('id', `${plan.key} as key`)
+      .orderByRaw(`${plan.key} ${direction}, id ${direction}`);
     if (cursor) {
       parents.andWhereRaw(`(${plan.key}, id) ${comparison}= (?, ?::uuid)`, [cursor.value, cursor.parentId]);
       base.andWhereRaw(`((p.key, p.id) ${comparison} (?, ?::uuid) or a.id ${comparison} ?::uuid)`, [cursor.value, cursor.parentId, cursor.id]);
@@ -199,7 +201,10 @@ export async function countArchive(organisationId: string, timeZone: string, fil
 }
 
 /** What the archive's filter menus offer: the organisation's staff and the ruleset versions it has used or may use. */
-export async function archiveFilterOptions(organisationId: string, knex: Knex = db()): Promise<{ auditors: { id: string; name: string }[]; rulesets: { family: string; title: string; versions: string[] }[] }> {
+export async function archiveFilterOptions(
+  organisationId: string,
+  knex: Knex = db(),
+): Promise<{ auditors: { id: string; name: string }[]; rulesets: { family: string; title: string; versions: string[] }[] }> {
   const [auditors, versions] = await Promise.all([
     knex('users').where('organisation_id', organisationId).whereIn('role', ['owner', 'office', 'auditor']).orderBy('name').select('id', 'name'),
     knex('ruleset_versions as rv')

@@ -94,7 +94,10 @@ export async function listAuditEvents(organisationId: string, options: AuditList
   if (options.before) query.andWhere('id', '<', options.before);
   if (options.action) query.andWhere('action', options.action);
   if (options.entityId) query.andWhere('entity_id', options.entityId);
-  const rows = (await query.orderBy('id', 'desc').limit(options.limit + 1).select(rowColumns(knex))) as StoredRow[];
+  const rows = (await query
+    .orderBy('id', 'desc')
+    .limit(options.limit + 1)
+    .select(rowColumns(knex))) as StoredRow[];
   const page = rows.slice(0, options.limit);
   return {
     items: page.map((row) => ({

@@ -11,9 +11,7 @@ import type { Knex } from 'knex';
 import { db } from './db';
 import { iso } from './listing';
 
-export type VerificationAnswer =
-  | { match: true; documentId: string; signedAt: string; organisation: string }
-  | { match: false };
+export type VerificationAnswer = { match: true; documentId: string; signedAt: string; organisation: string } | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
 
@@ -37,12 +35,14 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
     .where('d.kind', 'signed_report');
   if ('sha256' in reference) query.andWhere('d.sha256', reference.sha256);
   else query.andWhere('d.id', reference.documentId);
-  const row = await query.orderBy('d.created_at').first<{ id: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
-    'd.id',
-    'o.name as organisation',
-    knex.raw('coalesce(s.signed_at, a.signed_at) as signed_at'),
-    'd.created_at',
-  );
+  const row = await query
+    .orderBy('d.created_at')
+    .first<{ id: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
+      'd.id',
+      'o.name as organisation',
+      knex.raw('coalesce(s.signed_at, a.signed_at) as signed_at'),
+      'd.created_at',
+    );
   if (!row) return { match: false };
   return { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
 }

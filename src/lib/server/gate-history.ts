@@ -146,5 +146,10 @@ async function openFindingsOf(knex: Knex, last: GateVisit, scored: GateVisit[]):
         visitsFailing: count,
       };
     })
-    .sort((a, b) => (a.outcome === b.outcome ? 0 : a.outcome === 'fail' ? -1 : 1) || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity] || b.visitsFailing - a.visitsFailing);
+    .sort(
+      (a, b) =>
+        (a.outcome === b.outcome ? 0 : a.outcome === 'fail' ? -1 : 1) ||
+        SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity] ||
+        b.visitsFailing - a.visitsFailing,
+    );
 }

@@ -43,11 +43,21 @@ function nextDay(isoDate: string): string {
 }
 
 function stamp(now: Date): string {
-  return now.toISOString().replace(/[-:]/g, '').replace(/\.\d{3}/, '');
+  return now
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d{3}/, '');
 }
 
 export function calendarOf(events: readonly DueEvent[], name: string, now = new Date()): string {
-  const lines = ['BEGIN:VCALENDAR', 'VERSION:2.0', 'PRODID:-//Latchwell//Re-inspection//EN', 'CALSCALE:GREGORIAN', 'METHOD:PUBLISH', `X-WR-CALNAME:${escapeText(name)}`];
+  const lines = [
+    'BEGIN:VCALENDAR',
+    'VERSION:2.0',
+    'PRODID:-//Latchwell//Re-inspection//EN',
+    'CALSCALE:GREGORIAN',
+    'METHOD:PUBLISH',
+    `X-WR-CALNAME:${escapeText(name)}`,
+  ];
   for (const event of events) {
     lines.push(
       'BEGIN:VEVENT',

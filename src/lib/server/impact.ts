@@ -29,9 +29,6 @@ import { loadedRuleset } from './ruleset-cache';
 type Verdict = 'clear' | 'remedy' | 'withdraw';
 const VERDICT_RANK: Record<Verdict, number> = { clear: 0, remedy: 1, withdraw: 2 };
 
-
-
-
 interface ImpactRow {
   id: string;
   gate_id: string;
@@ -58,7 +55,11 @@ export async function impactTarget(organisationId: string, versionId: string, kn
     .andWhere((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))
     .first('rv.id', 'rv.ruleset_id', 'r.family', 'rv.version', 'rv.published_at');
   if (!target) return null;
-  const others = await knex('ruleset_versions').where('ruleset_id', target.ruleset_id).andWhereNot('id', versionId).orderBy('created_at').select('id', 'version');
+  const others = await knex('ruleset_versions')
+    .where('ruleset_id', target.ruleset_id)
+    .andWhereNot('id', versionId)
+    .orderBy('created_at')
+    .select('id', 'version');
   return {
     id: target.id,
     family: target.family,
@@ -69,12 +70,21 @@ export async function impactTarget(organisationId: string, versionId: string, kn
 }
 
 /** Published versions that have a predecessor in their family: the ones an impact list makes sense for. */
-export async function impactCandidates(organisationId: string, knex: Knex = db()): Promise<{ id: string; family: string; title: string; version: string; publishedAt: string | null }[]> {
+export async function impactCandidates(
+  organisationId: string,
+  knex: Knex = db(),
+): Promise<{ id: string; family: string; title: string; version: string; publishedAt: string | null }[]> {
   const rows = await knex('ruleset_versions as rv')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
     .where('rv.status', 'published')
     .andWhere((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))
-    .whereExists(knex('ruleset_versions as older').whereRaw('older.ruleset_id = rv.ruleset_id').andWhereRaw('older.id <> rv.id').andWhereRaw('older.created_at <= rv.created_at').select(knex.raw('1')))
+    .whereExists(
+      knex('ruleset_versions as older')
+        .whereRaw('older.ruleset_id = rv.ruleset_id')
+        .andWhereRaw('older.id <> rv.id')
+        .andWhereRaw('older.created_at <= rv.created_at')
+        .select(knex.raw('1')),
+    )
     .orderBy([{ column: 'r.family' }, { column: 'rv.published_at', order: 'desc' }])
     .select('rv.id', 'r.family', 'r.title', 'rv.version', 'rv.published_at');
   return rows.map((r) => ({ id: r.id, family: r.family, title: r.title, version: r.version, publishedAt: r.published_at ? iso(r.published_at) : null }));
@@ -105,7 +115,8 @@ function gateForScoring(snapshot: ImpactRow['gate_snapshot']): GateForScoring | 
 /** The findings that set a verdict: critical fails for withdraw; major fails and unchecked criticals for remedy. */
 function verdictDrivers(findings: readonly Finding[], verdict: Verdict): Finding[] {
   if (verdict === 'withdraw') return findings.filter((f) => f.severity === 'critical' && f.outcome === 'fail');
-  if (verdict === 'remedy') return findings.filter((f) => (f.severity === 'major' && f.outcome === 'fail') || (f.severity === 'critical' && f.outcome === 'needs_info'));
+  if (verdict === 'remedy')
+    return findings.filter((f) => (f.severity === 'major' && f.outcome === 'fail') || (f.severity === 'critical' && f.outcome === 'needs_info'));
   return [];
 }
 
@@ -152,7 +163,15 @@ function responsibleRules(drivers: Driver[], old: OldOutcomes): ResponsibleRule[
     })
     .map((f) => {
       const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
-      return { ruleId: f.ruleId, title: f.title, area: f.area, severity: f.severity, outcome: f.outcome as 'fail' | 'needs_info', before: outcome, beforeSeverity: severity };
+      return {
+        ruleId: f.ruleId,
+        title: f.title,
+        area: f.area,
+        severity: f.severity,
+        outcome: f.outcome as 'fail' | 'needs_info',
+        before: outcome,
+        beforeSeverity: severity,
+      };
     });
 }
 
@@ -179,7 +198,9 @@ async function oldOutcomesOf(knex: Knex, ids: string[]): Promise<Map<string, Old
     .whereIn('a.id', ids)
     .select(
       'a.id',
-      knex.raw(`(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`),
+      knex.raw(
+        `(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`,
+      ),
     );
   return new Map(rows.map((r: { id: string; old_outcomes: OldOutcomes | null }) => [r.id, r.old_outcomes ?? {}]));
 }
@@ -244,7 +265,9 @@ async function* slicesOf(knex: Knex, organisationId: string, target: ImpactTarge
     for (;;) {
       const query = candidates(knex, organisationId, target, from.id, basis);
       if (afterId) query.andWhere('a.id', '>', afterId);
-      const [last] = (await knex.from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page')).orderBy('id', 'desc').limit(1).select('id')) as { id: string }[];
+      const [last] = (await knex.from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page')).orderBy('id', 'desc').limit(1).select('id')) as {
+        id: string;
+      }[];
       if (!last) break;
       yield { organisationId, target, versionId: from.id, fromVersion: from.version, basis, afterId, upToId: last.id };
       afterId = last.id;
@@ -260,22 +283,24 @@ async function rowsOf(knex: Knex, slice: ImpactSlice): Promise<ImpactRow[]> {
     .join('clients as c', 'c.id', 's.client_id')
     .andWhere('a.id', '<=', slice.upToId);
   if (slice.afterId) query.andWhere('a.id', '>', slice.afterId);
-  return (await query.orderBy('a.id').select(
-    'a.id',
-    'a.gate_id',
-    'g.label as gate_label',
-    'g.kind as gate_kind',
-    'c.name as client_name',
-    's.address_line1',
-    's.city',
-    knex.raw(`${archiveDateSql} as archive_date`),
-    'a.signed_at',
-    'a.verdict',
-    'a.answers',
-    'a.measurements',
-    'a.observations',
-    'a.gate_snapshot',
-  )) as ImpactRow[];
+  return (await query
+    .orderBy('a.id')
+    .select(
+      'a.id',
+      'a.gate_id',
+      'g.label as gate_label',
+      'g.kind as gate_kind',
+      'c.name as client_name',
+      's.address_line1',
+      's.city',
+      knex.raw(`${archiveDateSql} as archive_date`),
+      'a.signed_at',
+      'a.verdict',
+      'a.answers',
+      'a.measurements',
+      'a.observations',
+      'a.gate_snapshot',
+    )) as ImpactRow[];
 }
 
 /** Reads and re-scores one slice in this thread (also what each worker thread runs). */
@@ -293,7 +318,13 @@ export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promi
  * spread over worker threads (impact-workers.ts), each reading and scoring its own slices; a
  * few slices run here, one at a time, yielding to the event loop in between.
  */
-export async function* rescoreArchive(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db(), info: { workers: number } = { workers: 0 }): AsyncGenerator<ImpactOutcome> {
+export async function* rescoreArchive(
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+  knex: Knex = db(),
+  info: { workers: number } = { workers: 0 },
+): AsyncGenerator<ImpactOutcome> {
   const slices = slicesOf(knex, organisationId, target, basis);
   const first = await slices.next();
   if (first.done) return;
@@ -332,7 +363,10 @@ export async function* rescoreArchive(organisationId: string, target: ImpactTarg
 }
 
 const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
-  VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] || a.clientName.localeCompare(b.clientName) || a.gateLabel.localeCompare(b.gateLabel) || a.assessmentId.localeCompare(b.assessmentId);
+  VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] ||
+  a.clientName.localeCompare(b.clientName) ||
+  a.gateLabel.localeCompare(b.gateLabel) ||
+  a.assessmentId.localeCompare(b.assessmentId);
 
 /** Counts every outcome and keeps the worse ones (up to `limit`, the most severe first). */
 export async function impactReport(organisationId: string, target: ImpactTarget, basis: ImpactBasis, limit = 500, knex: Knex = db()): Promise<ImpactReport> {
@@ -344,7 +378,8 @@ export async function impactReport(organisationId: string, target: ImpactTarget,
   for await (const outcome of rescoreArchive(organisationId, target, basis, knex, info)) {
     counts.considered++;
     counts[outcome.change]++;
-    if (outcome.change === 'unscorable' && unscorableSamples.length < 10) unscorableSamples.push({ assessmentId: outcome.assessmentId, gateLabel: outcome.gateLabel, problem: outcome.problem });
+    if (outcome.change === 'unscorable' && unscorableSamples.length < 10)
+      unscorableSamples.push({ assessmentId: outcome.assessmentId, gateLabel: outcome.gateLabel, problem: outcome.problem });
     if (outcome.change !== 'worse') continue;
     items.push(outcome);
     // Keep memory bounded: trim to the most severe `limit` now and then.

@@ -29,7 +29,10 @@ export interface ReminderOutcome {
   alreadyReminded: number;
 }
 
-export function dueEventOf(gate: Pick<DueGate, 'gateId' | 'gateLabel' | 'siteAddress' | 'siteCity' | 'clientName' | 'dueOn'>, organisationName: string): DueEvent {
+export function dueEventOf(
+  gate: Pick<DueGate, 'gateId' | 'gateLabel' | 'siteAddress' | 'siteCity' | 'clientName' | 'dueOn'>,
+  organisationName: string,
+): DueEvent {
   return {
     uid: `reinspection-${gate.gateId}-${gate.dueOn}@latchwell`,
     date: gate.dueOn,
@@ -103,7 +106,11 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
         relatedType: 'organisation',
         relatedId: organisation.id,
       });
-      await trx('reinspection_reminders').whereIn('gate_id', [...claimedOffice]).andWhere('recipient', 'office').whereNull('outbox_message_id').update({ outbox_message_id: messageId });
+      await trx('reinspection_reminders')
+        .whereIn('gate_id', [...claimedOffice])
+        .andWhere('recipient', 'office')
+        .whereNull('outbox_message_id')
+        .update({ outbox_message_id: messageId });
       outcome.officeGates = officeGates.length;
     }
 
@@ -139,7 +146,10 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
           relatedId: first.clientId,
         });
         await trx('reinspection_reminders')
-          .whereIn('gate_id', gates.map((g) => g.gateId))
+          .whereIn(
+            'gate_id',
+            gates.map((g) => g.gateId),
+          )
           .andWhere('recipient', 'client')
           .whereNull('outbox_message_id')
           .update({ outbox_message_id: messageId });

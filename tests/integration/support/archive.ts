@@ -25,7 +25,14 @@ export async function addClient(organisationId: string, name: string, email: str
   return row.id;
 }
 
-export async function addSite(organisationId: string, clientId: string, address: string, city = 'Eastholm', usageClass = 1, postalCode: string | null = null): Promise<string> {
+export async function addSite(
+  organisationId: string,
+  clientId: string,
+  address: string,
+  city = 'Eastholm',
+  usageClass = 1,
+  postalCode: string | null = null,
+): Promise<string> {
   const [row] = await testDb()('sites')
     .insert({ organisation_id: organisationId, client_id: clientId, address_line1: address, city, usage_class: usageClass, postal_code: postalCode })
     .returning('id');

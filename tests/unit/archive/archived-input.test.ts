@@ -18,20 +18,23 @@ const versions = fs
   .map((f) => loadRulesetFile(JSON.parse(fs.readFileSync(path.join(root, f), 'utf8'))));
 
 describe('archived engine input', () => {
-  it.each(versions.map((v) => [`${v.version.family} ${v.version.version}`, v] as const))('equals buildEngineInput for generated records of %s', (_name, loaded) => {
-    const prng = createPrng(31);
-    let compared = 0;
-    for (let i = 0; i < 150; i++) {
-      const gate = { ...sampleGate(prng), usageClass: 1 + (i % 4) };
-      if (i % 5 === 0) Object.assign(gate, { weightKg: null, entered: {} });
-      const documents = sampleDocuments(prng, versions[i % versions.length]!.version, i % 3 === 0 ? 0.6 : 0.97);
-      const slow = buildEngineInput(gate as never, documents as never, loaded.version.questions);
-      if (!slow.ok) continue;
-      const fast = archivedEngineInput(gate as never, documents as never, loaded.version.questions);
-      expect(contentSha256(fast)).toBe(contentSha256(slow.value));
-      expect(scoreParsed(fast, loaded).verdict).toBe(scoreParsed(slow.value, loaded).verdict);
-      compared++;
-    }
-    expect(compared).toBeGreaterThan(50);
-  });
+  it.each(versions.map((v) => [`${v.version.family} ${v.version.version}`, v] as const))(
+    'equals buildEngineInput for generated records of %s',
+    (_name, loaded) => {
+      const prng = createPrng(31);
+      let compared = 0;
+      for (let i = 0; i < 150; i++) {
+        const gate = { ...sampleGate(prng), usageClass: 1 + (i % 4) };
+        if (i % 5 === 0) Object.assign(gate, { weightKg: null, entered: {} });
+        const documents = sampleDocuments(prng, versions[i % versions.length]!.version, i % 3 === 0 ? 0.6 : 0.97);
+        const slow = buildEngineInput(gate as never, documents as never, loaded.version.questions);
+        if (!slow.ok) continue;
+        const fast = archivedEngineInput(gate as never, documents as never, loaded.version.questions);
+        expect(contentSha256(fast)).toBe(contentSha256(slow.value));
+        expect(scoreParsed(fast, loaded).verdict).toBe(scoreParsed(slow.value, loaded).verdict);
+        compared++;
+      }
+      expect(compared).toBeGreaterThan(50);
+    },
+  );
 });

@@ -5,7 +5,14 @@ import { calendarOf } from '@/lib/server/ics';
 
 describe('re-inspection calendar', () => {
   const ics = calendarOf(
-    [{ uid: 'reinspection-g1-2027-03-12@latchwell', date: '2027-03-12', summary: 'Gate re-inspection due: Yard gate, north side; Moss & Pell', description: 'Line one\nLine two, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line' }],
+    [
+      {
+        uid: 'reinspection-g1-2027-03-12@latchwell',
+        date: '2027-03-12',
+        summary: 'Gate re-inspection due: Yard gate, north side; Moss & Pell',
+        description: 'Line one\nLine two, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line',
+      },
+    ],
     'Quillmoor: re-inspection',
     new Date('2026-12-02T10:00:00Z'),
   );
@@ -22,7 +29,9 @@ describe('re-inspection calendar', () => {
     expect(ics).toContain('SUMMARY:Gate re-inspection due: Yard gate\\, north side\\; Moss & Pell');
     expect(lines.every((l) => Buffer.byteLength(l) <= 75)).toBe(true);
     const unfolded = ics.replace(/\r\n /g, '');
-    expect(unfolded).toContain('DESCRIPTION:Line one\\nLine two\\, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line');
+    expect(unfolded).toContain(
+      'DESCRIPTION:Line one\\nLine two\\, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line',
+    );
   });
 });
 

@@ -8,7 +8,11 @@ import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
 const MAX_PDF_BYTES = 30 * 1024 * 1024;
 
 const QuerySchema = z.strictObject({
-  document: z.string().trim().max(100).refine((v) => referenceOf(v) !== null, 'must be a document id (UUID) or a SHA-256 (64 hex digits)'),
+  document: z
+    .string()
+    .trim()
+    .max(100)
+    .refine((v) => referenceOf(v) !== null, 'must be a document id (UUID) or a SHA-256 (64 hex digits)'),
 });
 
 const tooLarge = () => new HttpProblem(413, `A signed report is never larger than ${MAX_PDF_BYTES / 1024 / 1024} MB.`);
