@@ -32,7 +32,8 @@ export default defineConfig({
           include: ['tests/e2e/**/*.test.ts'],
           environment: 'node',
           globalSetup: ['tests/integration/support/global-setup.ts'],
-          fileParallelism: false,
+          // One browser at a time: the files share one server and a 2-core machine.
+          poolOptions: { forks: { singleFork: true } },
           testTimeout: 180_000,
           hookTimeout: 90_000,
         },

@@ -74,18 +74,20 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
         requests: [
           {
             method: 'PATCH',
-            setupRequest: (req: Record<string, unknown>, context: Record<string, unknown>) => {
-              if (context.draft === undefined) context.draft = drafts[autosaveNext++ % drafts.length];
-              const draft = context.draft as { id: string; version: number };
+            // Each connection keeps its own draft and row version in its context.
+            setupRequest: (req, context) => {
+              const own = context as { draft?: { id: string; version: number } };
+              own.draft ??= drafts[autosaveNext++ % drafts.length];
               return {
                 ...req,
-                path: `/api/assessments/${draft.id}`,
-                headers: { ...(req.headers as Record<string, string>), 'if-match': `"${draft.version}"` },
+                path: `/api/assessments/${own.draft.id}`,
+                headers: { ...req.headers, 'if-match': `"${own.draft.version}"` },
                 body: JSON.stringify({ answers: { latchFitted: { value: 'no', note: `autosave ${Date.now()}` } } }),
               };
             },
-            onResponse: (status: number, body: string, context: Record<string, unknown>) => {
-              if (status === 200) (context.draft as { version: number }).version = JSON.parse(body).rowVersion;
+            onResponse: (status, body, context) => {
+              const own = context as { draft?: { version: number } };
+              if (status === 200 && own.draft) own.draft.version = JSON.parse(body).rowVersion;
             },
           },
         ],

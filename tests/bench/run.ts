@@ -5,6 +5,8 @@
  *
  * `npm run bench -- scoring report` runs only the named benchmarks.
  */
+export {};
+
 interface Row {
   bench: string;
   figure: string;
@@ -77,9 +79,14 @@ const benches: Bench[] = [
       for (const target of ['archive', 'read', 'score', 'autosave', 'health']) {
         if (f[`${target}Rps`] === undefined) continue;
         out.push(row('load', `${target} requests/s`, f[`${target}Rps`], 'req/s', 'reported', () => null));
-        out.push(row('load', `${target} p95`, f[`${target}P95Ms`], 'ms', target === 'autosave' || target === 'score' ? 'reported' : '< 50 ms', (v) => (target === 'autosave' || target === 'score' ? null : v < 50)));
+        out.push(
+          row('load', `${target} p95`, f[`${target}P95Ms`], 'ms', target === 'autosave' || target === 'score' ? 'reported' : '< 50 ms', (v) =>
+            target === 'autosave' || target === 'score' ? null : v < 50,
+          ),
+        );
         out.push(row('load', `${target} errors`, f[`${target}Errors`], '', '0', (v) => v === 0));
-        if (target !== 'health' && f[`${target}VsHealth`] !== undefined) out.push(row('load', `${target} ÷ health throughput`, f[`${target}VsHealth`], '×', 'reported', () => null));
+        if (target !== 'health' && f[`${target}VsHealth`] !== undefined)
+          out.push(row('load', `${target} ÷ health throughput`, f[`${target}VsHealth`], '×', 'reported', () => null));
       }
       return out;
     },
@@ -103,7 +110,10 @@ for (const bench of benches) {
 }
 
 const fmt = (v: number | null) => (v === null ? '—' : v >= 100 ? v.toFixed(0) : v >= 10 ? v.toFixed(1) : v.toFixed(2));
-const table = [['bench', 'figure', 'value', 'target', 'holds'], ...rows.map((r) => [r.bench, r.figure, `${fmt(r.value)} ${r.unit}`.trim(), r.target, r.holds === null ? '·' : r.holds ? 'yes' : 'NO'])];
+const table = [
+  ['bench', 'figure', 'value', 'target', 'holds'],
+  ...rows.map((r) => [r.bench, r.figure, `${fmt(r.value)} ${r.unit}`.trim(), r.target, r.holds === null ? '·' : r.holds ? 'yes' : 'NO']),
+];
 const widths = table[0].map((_, i) => Math.max(...table.map((r) => r[i].length)));
 console.log('\n' + table.map((r) => r.map((c, i) => c.padEnd(widths[i])).join('  ')).join('\n'));
 const failing = rows.filter((r) => r.holds === false);

@@ -26,7 +26,7 @@ async function phonePhoto(): Promise<Buffer> {
 
 function photoForm(bytes: Uint8Array, fields: Record<string, string> = {}, name = 'hinge.jpg', type = 'image/jpeg'): FormData {
   const form = new FormData();
-  form.set('photo', new Blob([bytes], { type }), name);
+  form.set('photo', new Blob([new Uint8Array(bytes)], { type }), name);
   form.set('itemKey', fields.itemKey ?? 'hingeGapMm');
   for (const [key, value] of Object.entries(fields)) if (key !== 'itemKey') form.set(key, value);
   return form;

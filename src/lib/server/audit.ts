@@ -2,6 +2,7 @@
  * The append-only audit trail. Each event's hash covers the previous event's hash and the
  * event's own fields (canonical JSON, SHA-256), so any later edit or deletion breaks the
  * chain at that row. Write events inside the same transaction as the change they record.
+ * Verification (per organisation, over the whole chain) lives in audit-trail.ts.
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
@@ -60,43 +61,4 @@ export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput)
     created_at: createdAt,
   };
   await trx('audit_events').insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash: auditHash(prevHash, fields) });
-}
-
-export interface ChainVerification {
-  ok: boolean;
-  checked: number;
-  /** The first row whose stored hash or link does not match, when the chain is broken. */
-  firstBrokenId: number | null;
-}
-
-/** Walks the whole chain in id order, streaming, and reports the first broken link. */
-export async function verifyAuditChain(knex: Knex): Promise<ChainVerification> {
-  let prev = genesisHash;
-  let checked = 0;
-  let lastId = 0;
-  for (;;) {
-    const rows = await knex('audit_events')
-      .where('id', '>', lastId)
-      .orderBy('id')
-      .limit(1000)
-      .select('id', 'organisation_id', 'actor_user_id', 'actor_label', 'action', 'entity_type', 'entity_id', knex.raw('host(ip) as ip'), 'detail', 'created_at', 'prev_hash', 'hash');
-    if (!rows.length) return { ok: true, checked, firstBrokenId: null };
-    for (const row of rows) {
-      const fields: StoredAuditFields = {
-        organisation_id: row.organisation_id,
-        actor_user_id: row.actor_user_id,
-        actor_label: row.actor_label,
-        action: row.action,
-        entity_type: row.entity_type,
-        entity_id: row.entity_id,
-        ip: row.ip,
-        detail: row.detail,
-        created_at: new Date(row.created_at).toISOString(),
-      };
-      if (row.prev_hash !== prev || auditHash(prev, fields) !== row.hash) return { ok: false, checked, firstBrokenId: Number(row.id) };
-      prev = row.hash;
-      checked++;
-      lastId = Number(row.id);
-    }
-  }
 }
