@@ -1,7 +1,7 @@
 /**
  * `npm test`: ensure the private database, create this run's own test database, migrate it,
  * publish the shipped rulesets into it, build when stale and snapshot the build, then run
- * every vitest project (unit, integration, e2e). Exits non-zero on any failure. Several runs
+ * the vitest projects (unit and integration together, then e2e). Exits non-zero on any failure. Several runs
  * on one machine do not disturb each other: each has its own database and build snapshot.
  *
  * `--only <project>` runs one project; anything after `--` goes to vitest.
@@ -27,18 +27,24 @@ try {
   await migrateLatest(testUrl);
   await publishRulesetFiles(testUrl);
   const entry = only === 'unit' ? undefined : await snapshotBuild(snapshotDir);
-  const vitestArgs = ['run', ...(only ? ['--project', only] : []), ...passthrough];
-  const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), ...vitestArgs], {
-    cwd: projectRoot,
-    stdio: 'inherit',
-    env: {
-      ...process.env,
-      TEST_DATABASE_URL: testUrl,
-      TEST_ADMIN_DATABASE_URL: db.adminUrl,
-      ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
-    },
-  });
-  status = result.status ?? 1;
+  // Browser journeys run after the rest, not beside it: they share the test database with the
+  // integration files (some of which briefly tamper with shared tables on purpose) and the
+  // machine's two cores with everything else.
+  const phases = only ? [['--project', only]] : [['--project', 'unit', '--project', 'integration'], ['--project', 'e2e']];
+  status = 0;
+  for (const phase of phases) {
+    const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), 'run', ...phase, ...passthrough], {
+      cwd: projectRoot,
+      stdio: 'inherit',
+      env: {
+        ...process.env,
+        TEST_DATABASE_URL: testUrl,
+        TEST_ADMIN_DATABASE_URL: db.adminUrl,
+        ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
+      },
+    });
+    if ((result.status ?? 1) !== 0) status = result.status ?? 1;
+  }
 } finally {
   fs.rmSync(snapshotDir, { recursive: true, force: true });
   await dropDatabase(db, testUrl).catch(() => {});
