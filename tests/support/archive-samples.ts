@@ -7,30 +7,10 @@
 import { canonicalValue, kindOfUnit } from '../../src/lib/rules/measures';
 import type { RulesetQuestion, RulesetVersion } from '../../src/lib/rules';
 
-export interface Prng {
-  next(): number;
-  int(min: number, max: number): number;
-  pick<T>(items: readonly T[]): T;
-  chance(probability: number): boolean;
-}
+import { createPrng, type Prng } from '../unit/rules/support/prng';
 
-/** mulberry32: small, fast and the same on every run. */
-export function createPrng(seed: number): Prng {
-  let state = seed >>> 0;
-  const next = (): number => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-  return {
-    next,
-    int: (min, max) => min + Math.floor(next() * (max - min + 1)),
-    pick: (items) => items[Math.floor(next() * items.length)] as never,
-    chance: (p) => next() < p,
-  };
-}
+/** The same seeded generator the rules tests use (mulberry32). */
+export { createPrng, type Prng };
 
 /** The gate columns an assessment's `gate_snapshot` keeps and the engine reads. */
 export interface SampleGate {
