@@ -2,7 +2,7 @@
  * Swing-operator geometry facts (`calc.geometry.*`) from the operator layout: smallest clearance
  * to the leaf, whether the ram reaches the whole swing, whether it passes dead centre.
  */
-import { assessSwingOperatorGeometry } from './calculators/swing-geometry';
+import { summariseSwingOperatorGeometry } from './calculators/swing-geometry';
 import { refusal, type EvidenceProblem } from './evidence';
 import type { AssessmentInput } from './input';
 
@@ -19,7 +19,7 @@ export function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, 
   let found = geometryMemo.get(key);
   if (!found) {
     try {
-      const r = assessSwingOperatorGeometry(g);
+      const r = summariseSwingOperatorGeometry(g);
       found = { minClearanceMm: r.minClearanceMm, swingReachable: r.swingReachable, passesDeadCentre: r.passesDeadCentre, minLeverArmMm: r.minLeverArmMm };
     } catch (error) {
       found = refusal('swingGeometry', error);

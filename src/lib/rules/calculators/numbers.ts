@@ -8,7 +8,12 @@
 /** Rounds to `decimals` places; tames float noise first (1.005 → 1.01) and turns -0 into 0. */
 export function roundTo(value: number, decimals: number): number {
   const scale = 10 ** decimals;
-  return Math.round(Number((value * scale).toPrecision(15))) / scale + 0;
+  const scaled = value * scale;
+  // Only a value within float noise of a half can round differently once tamed; everything
+  // else skips the (dear) decimal round trip and gives the same result.
+  const fraction = scaled - Math.floor(scaled);
+  if (Math.abs(fraction - 0.5) > Math.abs(scaled) * 1e-13 + 1e-9) return Math.round(scaled) / scale + 0;
+  return Math.round(Number(scaled.toPrecision(15))) / scale + 0;
 }
 
 /** Lengths in results: 0.1 mm. */

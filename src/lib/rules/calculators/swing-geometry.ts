@@ -136,13 +136,15 @@ export function pivotToPivotMm(input: SwingOperatorGeometryInput, angleDeg: numb
 /** Perpendicular distance from the hinge axis to the ram's line of action at an angle, mm, unrounded. */
 export function leverArmMm(input: SwingOperatorGeometryInput, angleDeg: number): number {
   const layout = layoutOf(input);
-  const front = frontPivotAt(layout, angleDeg);
+  return leverArmAt(layout, frontPivotAt(layout, angleDeg));
+}
+
+function leverArmAt(layout: Layout, front: Point): number {
   return Math.abs(cross(layout.rearPivot, front)) / distance(front, layout.rearPivot);
 }
 
-function clearanceAt(layout: Layout, angleDeg: number, leafLengthMm: number): number {
+function clearanceAt(layout: Layout, angleDeg: number, front: Point, leafLengthMm: number): number {
   const { input, rearPivot } = layout;
-  const front = frontPivotAt(layout, angleDeg);
   const span = distance(front, rearPivot);
   const bodyLength = Math.min(input.operatorBodyLengthMm ?? input.retractedLengthMm, span);
   const bodyEnd = add(rearPivot, scale(subtract(front, rearPivot), bodyLength / span));
@@ -205,11 +207,34 @@ function sampledAngles(target: number, step: number): number[] {
   return angles;
 }
 
+/** The summary figures without the chart arrays: what the rules read. */
+export type SwingOperatorGeometrySummary = Omit<SwingOperatorGeometryResult, 'chart'>;
+
 /** Works out ram length, reach, leverage and body clearance over the swing from closed to the target opening. */
 export function assessSwingOperatorGeometry(
   input: SwingOperatorGeometryInput,
   limits: { minClearanceMm?: number } = {},
 ): SwingOperatorGeometryResult {
+  const chart: SwingGeometryChart = { angleDeg: [], pivotToPivotMm: [], extensionMm: [], leverArmMm: [], clearanceMm: [] };
+  return { ...sweepSwing(input, limits, chart), chart };
+}
+
+/**
+ * The same figures as assessSwingOperatorGeometry without building the chart: scoring reads
+ * only the summary and re-scores after every answer, so it skips a thousand rounded samples.
+ */
+export function summariseSwingOperatorGeometry(
+  input: SwingOperatorGeometryInput,
+  limits: { minClearanceMm?: number } = {},
+): SwingOperatorGeometrySummary {
+  return sweepSwing(input, limits, null);
+}
+
+function sweepSwing(
+  input: SwingOperatorGeometryInput,
+  limits: { minClearanceMm?: number },
+  chart: SwingGeometryChart | null,
+): SwingOperatorGeometrySummary {
   const layout = layoutOf(input);
   const target = requireFinite('targetOpeningDeg', input.targetOpeningDeg);
   if (target <= 0 || target > SWEEP_MAX_DEG) throw new RangeError('targetOpeningDeg must be above 0 and at most 180');
@@ -219,20 +244,48 @@ export function assessSwingOperatorGeometry(
   const rearRadius = Math.hypot(layout.rearPivot.x, layout.rearPivot.y);
   const leafLength = rearRadius + longest; // no part of the operator reaches beyond this along the leaf
 
+  // One pass over the sampled angles; the first smallest value wins a tie.
   const angles = sampledAngles(target, step);
-  const lengths = angles.map((angle) => distance(frontPivotAt(layout, angle), layout.rearPivot));
-  const leverArms = angles.map((angle) => leverArmMm(input, angle));
-  const clearances = angles.map((angle) => clearanceAt(layout, angle, leafLength));
-  const argMin = (values: number[]) =>
-    values.reduce((best, value, i) => (value < (values[best] as number) ? i : best), 0);
-  const minLever = argMin(leverArms);
-  const minClear = argMin(clearances);
+  let closed = 0;
+  let open = 0;
+  let firstLever = 0;
+  let lastLever = 0;
+  let minLever = 0;
+  let minClear = 0;
+  let minLeverValue = Infinity;
+  let minClearValue = Infinity;
+  for (let i = 0; i < angles.length; i += 1) {
+    const angle = angles[i] as number;
+    const front = frontPivotAt(layout, angle);
+    const length = distance(front, layout.rearPivot);
+    const lever = leverArmAt(layout, front);
+    const clearance = clearanceAt(layout, angle, front, leafLength);
+    if (i === 0) {
+      closed = length;
+      firstLever = lever;
+    }
+    open = length;
+    lastLever = lever;
+    if (i === 0 || lever < minLeverValue) {
+      minLever = i;
+      minLeverValue = lever;
+    }
+    if (i === 0 || clearance < minClearValue) {
+      minClear = i;
+      minClearValue = clearance;
+    }
+    if (chart) {
+      chart.angleDeg.push(roundTo(angle, 3));
+      chart.pivotToPivotMm.push(roundMm(length));
+      chart.extensionMm.push(roundMm(length - shortest));
+      chart.leverArmMm.push(roundMm(lever));
+      chart.clearanceMm.push(roundMm(clearance));
+    }
+  }
 
   const ranges = reachableRanges(layout, shortest, longest);
   const within = (angle: number) =>
     ranges.some((range) => range.fromDeg <= angle + 1e-9 && angle - 1e-9 <= range.toDeg);
-  const closed = lengths[0] as number;
-  const open = lengths[lengths.length - 1] as number;
   const deadCentres = anglesWhereSeparationIs(layout, 0, 180).sort((a, b) => a - b);
   const deadCentre = deadCentres[0] ?? null;
   const minClearanceLimit = limits.minClearanceMm ?? OPERATOR_LEAF_MIN_CLEARANCE_MM;
@@ -249,19 +302,12 @@ export function assessSwingOperatorGeometry(
     swingReachable: ranges.some((range) => range.fromDeg <= 1e-9 && range.toDeg >= target - 1e-9),
     deadCentreDeg: deadCentre === null ? null : roundDeg(deadCentre),
     passesDeadCentre: deadCentre !== null && deadCentre <= target,
-    leverArmAtClosedMm: roundMm(leverArms[0] as number),
-    leverArmAtOpenMm: roundMm(leverArms[leverArms.length - 1] as number),
-    minLeverArmMm: roundMm(leverArms[minLever] as number),
+    leverArmAtClosedMm: roundMm(firstLever),
+    leverArmAtOpenMm: roundMm(lastLever),
+    minLeverArmMm: roundMm(minLeverValue),
     minLeverArmAtDeg: roundDeg(angles[minLever] as number),
-    minClearanceMm: roundMm(clearances[minClear] as number),
+    minClearanceMm: roundMm(minClearValue),
     minClearanceAtDeg: roundDeg(angles[minClear] as number),
-    clearance: checkAtLeast(clearances[minClear], minClearanceLimit),
-    chart: {
-      angleDeg: angles.map((angle) => roundTo(angle, 3)),
-      pivotToPivotMm: lengths.map(roundMm),
-      extensionMm: lengths.map((L) => roundMm(L - shortest)),
-      leverArmMm: leverArms.map(roundMm),
-      clearanceMm: clearances.map(roundMm),
-    },
+    clearance: checkAtLeast(minClearValue, minClearanceLimit),
   };
 }
