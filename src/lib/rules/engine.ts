@@ -7,11 +7,12 @@
  * collection built in a stable order, so the same input and version give byte-identical
  * canonical JSON and the same SHA-256.
  */
+import { z } from 'zod';
 import { areaScores } from './area-scores';
 import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset } from './compile';
 import { buildFacts, type Facts } from './facts';
-import { rateFinding, type DerivedKeysCache } from './finding-hrn';
-import { contentSha256 } from './hash';
+import { rateFinding, type HrnCache } from './finding-hrn';
+import { canonicalWriterFor, sha256Hex } from './hash';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
 import { truthy } from './json-logic-compile';
@@ -28,6 +29,16 @@ export interface LoadedRuleset {
   contentSha256: string;
 }
 
+/**
+ * The input schema with zod's ahead-of-time compiled fast path: a valid input is checked and
+ * copied in one generated function; an invalid one falls back to the ordinary parser, so the
+ * errors (and their field paths) are the same.
+ */
+const parseInput = z.compile(AssessmentInputSchema);
+
+/** The input's canonical JSON, with its object keys sorted once from the schema rather than per call. */
+const writeInputCanonically = canonicalWriterFor(AssessmentInputSchema);
+
 function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
   return 'contentSha256' in ruleset && 'version' in ruleset && typeof ruleset.version === 'object'
     ? compileRuleset(ruleset.version, ruleset.contentSha256)
@@ -39,21 +50,29 @@ function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
  * scores it against the version.
  */
 export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
-  const parsed = AssessmentInputSchema.safeParse(input);
+  const parsed = parseInput.safeParse(input);
   if (!parsed.success) throw new AssessmentInputError(issuesFromZod(parsed.error));
-  return scoreParsed(parsed.data, ruleset);
+  // What the schema just built has every key in canonical order (canonicalObject and
+  // dictionaryRecord in input.ts) and only finite numbers, so the native writer's output is the
+  // canonical JSON (a unit test holds the two equal).
+  return scoreWithHash(parsed.data, ruleset, () => sha256Hex(JSON.stringify(parsed.data)));
 }
 
 /** Scores an input already parsed with AssessmentInputSchema (an endpoint that parsed it itself). */
 export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
+  // The input may have been assembled in code rather than parsed: write its keys in order.
+  return scoreWithHash(input, ruleset, () => sha256Hex(writeInputCanonically(input)));
+}
+
+function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion, inputSha256: () => string): ScoreResult {
   const compiled = resolve(ruleset);
   const issues = checkInputAgainstRuleset(input, compiled);
   if (issues.length > 0) throw new AssessmentInputError(issues);
   const { facts, problems } = buildFacts(input);
   // compiled.rules is already in report order (severity, area, id).
   const findings: Finding[] = [];
-  const derivedKeys: DerivedKeysCache = new Map();
-  for (const rule of compiled.rules) findings.push(evaluateRule(rule, facts, input, compiled, derivedKeys));
+  const hrnCache: HrnCache = new Map();
+  for (const rule of compiled.rules) findings.push(evaluateRule(rule, facts, input, compiled, hrnCache));
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (const f of findings) {
     if (f.outcome === 'pass') counts.pass += 1;
@@ -66,7 +85,7 @@ export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | Rul
   const { version } = compiled;
   return {
     ruleset: { family: version.family, version: version.version, contentSha256: compiled.contentSha256 },
-    inputSha256: contentSha256(input),
+    inputSha256: inputSha256(),
     verdict: verdictOf(findings),
     complete: counts.needsInfo === 0,
     findings,
@@ -88,7 +107,7 @@ function makeFinding(
   observed: Record<string, unknown>,
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  derivedKeys?: DerivedKeysCache,
+  hrnCache?: HrnCache,
 ): Finding {
   const { rule } = compiledRule;
   const result: Finding = {
@@ -105,11 +124,11 @@ function makeFinding(
     reference: rule.reference,
   };
   if (rule.local) result.local = true;
-  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, derivedKeys);
+  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, hrnCache);
   return result;
 }
 
-function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset, derivedKeys: DerivedKeysCache): Finding {
+function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset, hrnCache: HrnCache): Finding {
   if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
     return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled);
   }
@@ -133,7 +152,7 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
     if (isMissing(value)) (missing ??= []).push(...explainMissing(path, facts, compiled));
   }
   if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
-  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled, derivedKeys);
+  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled, hrnCache);
 }
 
 function dedupe(items: MissingItem[]): MissingItem[] {

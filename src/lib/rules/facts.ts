@@ -51,12 +51,14 @@ const MILLIMETRES_PER_METRE = 1000;
 /** Builds the facts for one input. Pure: same input, same facts. */
 export function buildFacts(input: AssessmentInput): FactsResult {
   const problems: EvidenceProblem[] = [];
-  const answers: Record<string, string> = {};
+  // Keyed by question: each input answers a different subset, so these are dictionaries from the
+  // start (no per-subset hidden classes to build) and a key such as `constructor` reads nothing.
+  const answers: Record<string, string> = Object.create(null) as Record<string, string>;
   const given = input.answers ?? {};
   for (const key in given) answers[key] = (given[key] as { value: string }).value;
   const choices = input.choices ?? {};
   for (const key in choices) answers[key] = (choices[key] as { value: string }).value;
-  const m: Record<string, number> = {};
+  const m: Record<string, number> = Object.create(null) as Record<string, number>;
   const measurements = input.measurements ?? {};
   for (const key in measurements) m[key] = (measurements[key] as { canonical: number }).canonical;
 

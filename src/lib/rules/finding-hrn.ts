@@ -31,29 +31,40 @@ function priceTable(hrn: HrnTable): PricedTable {
   return found;
 }
 
-/** Derived keys per harm for one assessment: the site and class do not change between findings. */
-export type DerivedKeysCache = Map<string, DerivedHrnFactors>;
+/**
+ * Ratings of one assessment's failing findings without an override, by harm: the site and class
+ * do not change between findings, so every finding with the same worst harm shares one frozen
+ * rating instead of building its own.
+ */
+export type HrnCache = Map<string, FindingHrn>;
 
 /** Rates one failing rule at this gate. */
-export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, cache: DerivedKeysCache = new Map()): FindingHrn {
+export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, cache: HrnCache = new Map()): FindingHrn {
   const override = input.hrnOverrides?.[ruleId];
-  const overrideKeys: Partial<DerivedHrnFactors> = {};
-  if (override?.lo) overrideKeys.lo = override.lo as DerivedHrnFactors['lo'];
-  if (override?.fe) overrideKeys.fe = override.fe as DerivedHrnFactors['fe'];
-  if (override?.dph) overrideKeys.dph = override.dph as DerivedHrnFactors['dph'];
-  if (override?.np) overrideKeys.np = override.np as DerivedHrnFactors['np'];
-  let derived = cache.get(harm);
-  if (!derived) {
-    derived = deriveHrnFactors({
-      usageClass: input.profile.usageClass,
-      childrenOrPetsPresent: input.site.childrenOrPetsPresent,
-      pedestriansUseDriveway: input.site.pedestriansUseDriveway,
-      publicAccess: input.site.publicAccess,
-      severity: harm as DphKey,
-    });
-    cache.set(harm, derived);
+  if (!override) {
+    let shared = cache.get(harm);
+    if (!shared) cache.set(harm, (shared = Object.freeze(rate(input, harm, hrn, null))));
+    return shared;
   }
-  const keys: DerivedHrnFactors = override ? { ...derived, ...overrideKeys } : derived;
+  return rate(input, harm, hrn, override);
+}
+
+function rate(input: AssessmentInput, harm: string, hrn: HrnTable, override: NonNullable<AssessmentInput['hrnOverrides']>[string] | null): FindingHrn {
+  const derived = deriveHrnFactors({
+    usageClass: input.profile.usageClass,
+    childrenOrPetsPresent: input.site.childrenOrPetsPresent,
+    pedestriansUseDriveway: input.site.pedestriansUseDriveway,
+    publicAccess: input.site.publicAccess,
+    severity: harm as DphKey,
+  });
+  const keys: DerivedHrnFactors = override
+    ? {
+        lo: (override.lo as DerivedHrnFactors['lo'] | undefined) ?? derived.lo,
+        fe: (override.fe as DerivedHrnFactors['fe'] | undefined) ?? derived.fe,
+        dph: (override.dph as DerivedHrnFactors['dph'] | undefined) ?? derived.dph,
+        np: (override.np as DerivedHrnFactors['np'] | undefined) ?? derived.np,
+      }
+    : derived;
   const priced = priceTable(hrn);
   const cacheKey = `${keys.lo}|${keys.fe}|${keys.dph}|${keys.np}`;
   let rated = priced.rated.get(cacheKey);
@@ -68,7 +79,7 @@ export function rateFinding(input: AssessmentInput, harm: string, ruleId: string
     np: rated.factors.np,
     value: rated.hrn,
     band: rated.band,
-    keys: { lo: rated.keys.lo, fe: rated.keys.fe, dph: rated.keys.dph, np: rated.keys.np },
+    keys: Object.freeze({ lo: rated.keys.lo, fe: rated.keys.fe, dph: rated.keys.dph, np: rated.keys.np }),
   };
   if (override) result.overrideReason = override.reason;
   return result;

@@ -33,6 +33,8 @@ export function issuesFromZod(error: z.ZodError): InputIssue[] {
 }
 
 const measured = new Set<string>(MEASURED_ANSWER_TYPES);
+/** A calendar date written YYYY-MM-DD (built once: a zod schema is dear to make per call). */
+const IsoDate = z.iso.date();
 
 /** Problems of an already-parsed input against one version; empty when it fits. */
 export function checkInputAgainstRuleset(input: AssessmentInput, compiled: CompiledRuleset): InputIssue[] {
@@ -50,15 +52,17 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
     const q = questions.get(key);
     if (q && q.answerType !== 'yes_no_na') issues.push({ path: `answers.${key}`, message: `"${key}" is answered as ${q.answerType}, not yes/no/na` });
   }
-  for (const [key, choice] of Object.entries(input.choices ?? {})) {
+  const choices = input.choices ?? {};
+  for (const key in choices) {
     const q = questions.get(key);
     if (!q) continue;
+    const choice = choices[key] as { value: string };
     if (q.answerType === 'choice') {
       if (!q.options?.some((o) => o.value === choice.value)) {
         issues.push({ path: `choices.${key}.value`, message: `"${choice.value}" is not one of ${q.options?.map((o) => o.value).join(', ')}` });
       }
     } else if (q.answerType === 'date') {
-      if (!z.iso.date().safeParse(choice.value).success) issues.push({ path: `choices.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
+      if (!IsoDate.safeParse(choice.value).success) issues.push({ path: `choices.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
     } else if (q.answerType !== 'text') {
       issues.push({ path: `choices.${key}`, message: `"${key}" is answered as ${q.answerType}, not as a choice` });
     }

@@ -6,9 +6,21 @@
  * would refuse is refused at the form, with the field named.
  */
 import { z } from 'zod';
+import { dictionaryRecord } from './dictionary-record';
 import { ENTRAPMENT_DEVICE_TYPES } from './calculators/ul325-entrapment-types';
 import { CANONICAL_TOLERANCE, exactCanonicalValue, kindOfUnit } from './measures';
 import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS, YES_NO_NA } from './vocabulary';
+
+/**
+ * A strict object whose members are handed to zod in sorted key order, so a parsed value's keys
+ * come out in canonical order (object keys sorted by code unit, as canonicalJson in hash.ts
+ * writes them) and the engine can hash a parsed input with the native JSON.stringify. The
+ * declaration order below stays the readable one.
+ */
+function canonicalObject<T extends z.core.$ZodLooseShape>(shape: T) {
+  const sorted = Object.fromEntries(Object.keys(shape).sort().map((name) => [name, shape[name]])) as T;
+  return z.strictObject(sorted);
+}
 
 const note = z.string().trim().max(2000, 'a note may be at most 2000 characters');
 const key = z.string().regex(KEY_PATTERN, 'keys are camelCase letters and digits, starting with a lower-case letter');
@@ -20,8 +32,7 @@ const nonNegativeMm = finite.nonnegative('must not be negative');
  * engine reads (mm, N, kg, m/s, s, V, A, deg, count). The canonical value must match the entered
  * one, so a form's conversion slip is caught here, not in a report.
  */
-export const MeasuredValueSchema = z
-  .strictObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() })
+export const MeasuredValueSchema = canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() })
   .superRefine((m, ctx) => {
     const kind = kindOfUnit(m.unit);
     if (!kind) {
@@ -40,8 +51,7 @@ export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3
 });
 
 /** The gate as recorded in the office: what it is, how it opens, who uses it. */
-export const GateProfileSchema = z
-  .strictObject({
+export const GateProfileSchema = canonicalObject({
     kind: z.enum(GATE_KINDS),
     leaves: z.enum(['single', 'double']),
     /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
@@ -69,7 +79,7 @@ export const GateProfileSchema = z
 export type GateProfile = z.infer<typeof GateProfileSchema>;
 
 /** Who is around the gate: drives which rules apply and the HRN likelihood, frequency and people. */
-export const SiteContextSchema = z.strictObject({
+export const SiteContextSchema = canonicalObject({
   pedestriansUseDriveway: z.boolean(),
   childrenOrPetsPresent: z.boolean(),
   publicAccess: z.boolean(),
@@ -77,19 +87,19 @@ export const SiteContextSchema = z.strictObject({
 });
 export type SiteContext = z.infer<typeof SiteContextSchema>;
 
-export const AnswerSchema = z.strictObject({ value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }), note: note.optional() });
+export const AnswerSchema = canonicalObject({ value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }), note: note.optional() });
 /** A choice, date or short text answer (choice values are checked against the ruleset's options when scoring). */
-export const ChoiceSchema = z.strictObject({ value: z.string().trim().min(1).max(200), note: note.optional() });
+export const ChoiceSchema = canonicalObject({ value: z.string().trim().min(1).max(200), note: note.optional() });
 
 /** Places along a gate where someone can be caught (UL 325 entrapment zones, as the auditor finds them). */
 export const ENTRAPMENT_ZONES = ['closing_edge', 'hinge_side', 'open_side', 'post_gap', 'gate_bottom', 'other'] as const;
 
 /** Entrapment zones found on the walk and the protection devices fitted, per zone and direction. */
-export const EntrapmentInputSchema = z.strictObject({
-  zones: z.array(z.strictObject({ zone: z.enum(ENTRAPMENT_ZONES), direction: z.enum(TRAVEL_DIRECTIONS), note: note.optional() })).max(20),
+export const EntrapmentInputSchema = canonicalObject({
+  zones: z.array(canonicalObject({ zone: z.enum(ENTRAPMENT_ZONES), direction: z.enum(TRAVEL_DIRECTIONS), note: note.optional() })).max(20),
   devices: z
     .array(
-      z.strictObject({
+      canonicalObject({
         type: z.enum(ENTRAPMENT_DEVICE_TYPES as unknown as ['A', 'B1', 'B2', 'C', 'D', 'E']),
         direction: z.enum(TRAVEL_DIRECTIONS),
         zone: z.enum(ENTRAPMENT_ZONES),
@@ -105,7 +115,7 @@ export const EntrapmentInputSchema = z.strictObject({
 export type EntrapmentInput = z.infer<typeof EntrapmentInputSchema>;
 
 /** A force meter's own summary of one measuring point, when the raw trace is not kept. */
-export const ForceSummarySchema = z.strictObject({
+export const ForceSummarySchema = canonicalObject({
   peakN: nonNegativeMm,
   durationAbove150S: nonNegativeMm,
   staticN: nonNegativeMm,
@@ -113,14 +123,13 @@ export const ForceSummarySchema = z.strictObject({
 });
 
 /** One force measurement at one point: raw samples (time s, force N) or the meter's summary. */
-export const ForceTestSchema = z
-  .strictObject({
+export const ForceTestSchema = canonicalObject({
     location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
     direction: z.enum(TRAVEL_DIRECTIONS),
     /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
     gapMm: nonNegativeMm,
     heightMm: nonNegativeMm.optional(),
-    samples: z.array(z.strictObject({ t: finite, f: finite })).min(2).max(20_000).optional(),
+    samples: z.array(canonicalObject({ t: finite, f: finite })).min(2).max(20_000).optional(),
     summary: ForceSummarySchema.optional(),
     note: note.optional(),
   })
@@ -134,8 +143,7 @@ export type ForceTest = z.infer<typeof ForceTestSchema>;
  * axis to the rear pivot, B across it (negative: operator on the far side), the leaf bracket's
  * distance from the hinge, the ram's retracted length and stroke, the opening wanted.
  */
-export const SwingGeometryInputSchema = z
-  .strictObject({
+export const SwingGeometryInputSchema = canonicalObject({
     aMm: finite,
     bMm: finite,
     bracketFromHingeMm: finite.positive('must be greater than zero'),
@@ -154,7 +162,7 @@ export type SwingGeometryInput = z.infer<typeof SwingGeometryInputSchema>;
 
 const hrnKey = z.string().regex(/^[a-z0-9_]{1,40}$/);
 /** The auditor's own HRN factor keys for one rule, when the derived defaults do not fit the site. */
-export const HrnOverrideSchema = z.strictObject({
+export const HrnOverrideSchema = canonicalObject({
   lo: hrnKey.optional(),
   fe: hrnKey.optional(),
   dph: hrnKey.optional(),
@@ -163,16 +171,17 @@ export const HrnOverrideSchema = z.strictObject({
 });
 
 /** The whole assessment input scored against a ruleset version. */
-export const AssessmentInputSchema = z.strictObject({
+export const AssessmentInputSchema = canonicalObject({
   profile: GateProfileSchema,
   site: SiteContextSchema,
-  answers: z.record(key, AnswerSchema).optional(),
-  choices: z.record(key, ChoiceSchema).optional(),
-  measurements: z.record(key, MeasuredValueSchema).optional(),
+  // Records keyed by question parse into dictionaries (null-prototype objects): see dictionary-record.ts.
+  answers: dictionaryRecord(key, AnswerSchema).optional(),
+  choices: dictionaryRecord(key, ChoiceSchema).optional(),
+  measurements: dictionaryRecord(key, MeasuredValueSchema).optional(),
   entrapment: EntrapmentInputSchema.optional(),
   forceTests: z.array(ForceTestSchema).max(50).optional(),
   swingGeometry: SwingGeometryInputSchema.optional(),
-  hrnOverrides: z.record(z.string().min(3).max(120), HrnOverrideSchema).optional(),
+  hrnOverrides: dictionaryRecord(z.string().min(3).max(120), HrnOverrideSchema).optional(),
 }).superRefine((input, ctx) => {
   for (const k of Object.keys(input.choices ?? {})) {
     if (input.answers && Object.prototype.hasOwnProperty.call(input.answers, k)) {

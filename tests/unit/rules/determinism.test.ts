@@ -1,9 +1,16 @@
+import { createHash } from 'node:crypto';
+import { configure } from 'safe-stable-stringify';
 import { describe, expect, it } from 'vitest';
-import { canonicalJson, resultSha256, score } from '@/lib/rules';
+import { AnswerSchema, AssessmentInputSchema, canonicalJson, ChoiceSchema, HrnOverrideSchema, MeasuredValueSchema, canonicalWriterFor, resultSha256, score } from '@/lib/rules';
 import { euSwingGate } from './fixtures/european-powered-gate';
 import { naSwingGate } from './fixtures/north-american-gate';
 import { applyPatch, len, YES } from './support/inputs';
-import { shipped } from './support/shipped';
+import { generateInput } from './support/generate-input';
+import { createPrng } from './support/prng';
+import { shipped, shippedRulesets } from './support/shipped';
+
+/** An independent deterministic JSON writer from npm: keys sorted, no whitespace. */
+const referenceJson = configure({ deterministic: true, bigint: false, circularValue: Error });
 
 /** The same object with every key order reversed, all the way down. */
 function reverseKeys(value: unknown): unknown {
@@ -63,6 +70,56 @@ describe('scoring determinism', () => {
     const ruleset = shipped('north-american-gate', '2026.1');
     const result = score(failing, ruleset);
     expect(result.ruleset).toEqual({ family: 'north-american-gate', version: '2026.1', contentSha256: ruleset.contentSha256 });
-    expect(result.inputSha256).toMatch(/^[0-9a-f]{64}$/);
+    // The input hash is the SHA-256 of the parsed input as a deterministic writer from npm prints it.
+    const parsed = AssessmentInputSchema.parse(failing);
+    expect(result.inputSha256).toBe(createHash('sha256').update(referenceJson(parsed)!, 'utf8').digest('hex'));
+  });
+
+  it('writes generated inputs exactly as an independent deterministic writer does, with the schema-shaped writer and the generic one', () => {
+    const writeInput = canonicalWriterFor(AssessmentInputSchema);
+    const rng = createPrng(7_340_033);
+    const rulesets = shippedRulesets();
+    for (let i = 0; i < 300; i++) {
+      const input = AssessmentInputSchema.parse(generateInput(rng, rng.pick(rulesets).version));
+      if (i % 3 === 0) input.answers = { ...input.answers, zebraCrossing: { value: 'no', note: 'Quote " backslash \\ tab \t, é, 😀' } };
+      if (i % 5 === 0 && input.measurements) {
+        const [first] = Object.keys(input.measurements);
+        if (first) input.measurements[first] = { value: -0, unit: 'mm', canonical: -0 };
+      }
+      const expected = referenceJson(input);
+      expect(writeInput(input)).toBe(expected);
+      expect(canonicalJson(input)).toBe(expected);
+      // What score() hashes: the native writer over what the schema built (keys in canonical order).
+      expect(JSON.stringify(AssessmentInputSchema.parse(input))).toBe(expected);
+    }
+  });
+
+  it('declares every object of the input schema to zod in sorted key order, so parsed keys come out canonical', () => {
+    const unsorted: string[] = [];
+    const seen = new Set<unknown>();
+    const walk = (schema: unknown, path: string): void => {
+      if (!schema || typeof schema !== 'object' || seen.has(schema)) return;
+      seen.add(schema);
+      const def = (schema as { _zod?: { def?: Record<string, unknown> } })._zod?.def;
+      if (!def) return;
+      if (def.type === 'object') {
+        const keys = Object.keys(def.shape as object);
+        if (keys.join() !== [...keys].sort().join()) unsorted.push(path);
+        for (const k of keys) walk((def.shape as Record<string, unknown>)[k], `${path}.${k}`);
+      }
+      for (const child of ['innerType', 'element', 'valueType', 'in', 'out']) walk(def[child], path);
+    };
+    walk(AssessmentInputSchema, '$');
+    // Record values sit behind the dictionary records' transform: walk them by name.
+    for (const [name, schema] of Object.entries({ AnswerSchema, ChoiceSchema, MeasuredValueSchema, HrnOverrideSchema })) walk(schema, name);
+    expect(seen.size).toBeGreaterThan(20);
+    expect(unsorted).toEqual([]);
+  });
+
+  it('refuses a non-finite number in the schema-shaped writer too, naming where it is', () => {
+    const writeInput = canonicalWriterFor(AssessmentInputSchema);
+    const input = AssessmentInputSchema.parse(failing);
+    input.measurements!.hingeGapMm!.canonical = Number.NaN;
+    expect(() => writeInput(input)).toThrow(/non-finite number at \$\.measurements\.hingeGapMm\.canonical/);
   });
 });

@@ -106,8 +106,10 @@ const DEFAULT_RULES: EntrapmentRules = {
   effectiveDate2016: UL325_2016_EFFECTIVE_DATE,
 };
 
-const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[] =>
-  ENTRAPMENT_DEVICE_TYPES.filter((type) => new Set(types).has(type));
+const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[] => {
+  const present = types instanceof Set ? (types as ReadonlySet<EntrapmentDeviceType>) : new Set(types);
+  return ENTRAPMENT_DEVICE_TYPES.filter((type) => present.has(type));
+};
 
 const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] =>
   ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
@@ -122,12 +124,26 @@ export function applicableEntrapmentEdition(
 ): EntrapmentEdition | null {
   if (edition) return edition;
   if (manufacturedOn === null || manufacturedOn === undefined) return null;
-  const match = ISO_DATE.exec(manufacturedOn);
-  const day = match ? new Date(`${match[1]}-${match[2]}-${match[3]}T00:00:00Z`) : null;
-  if (!match || !day || Number.isNaN(day.getTime()) || day.toISOString().slice(0, 10) !== manufacturedOn.slice(0, 10)) {
-    throw new RangeError(`manufacturedOn must be an ISO date (YYYY-MM-DD), got "${manufacturedOn}"`);
+  return manufactureDateIsValid(manufacturedOn) ? (manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016') : refuseDate(manufacturedOn);
+}
+
+/** Dates already checked (an operator's date recurs every time its gate is scored). */
+const checkedDates = new Map<string, boolean>();
+const CHECKED_DATES_LIMIT = 1024;
+
+function manufactureDateIsValid(manufacturedOn: string): boolean {
+  let valid = checkedDates.get(manufacturedOn);
+  if (valid === undefined) {
+    const match = ISO_DATE.exec(manufacturedOn);
+    const day = match ? new Date(`${match[1]}-${match[2]}-${match[3]}T00:00:00Z`) : null;
+    valid = !!match && !!day && !Number.isNaN(day.getTime()) && day.toISOString().slice(0, 10) === manufacturedOn.slice(0, 10);
+    if (checkedDates.size < CHECKED_DATES_LIMIT) checkedDates.set(manufacturedOn, valid);
   }
-  return manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016';
+  return valid;
+}
+
+function refuseDate(manufacturedOn: string): never {
+  throw new RangeError(`manufacturedOn must be an ISO date (YYYY-MM-DD), got "${manufacturedOn}"`);
 }
 
 function judgePre2016(
