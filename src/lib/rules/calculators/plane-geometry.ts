@@ -35,35 +35,54 @@ export function distanceToLine(p: Point, a: Point, b: Point): number {
 
 /** Shortest distance from p to the segment a–b. */
 export function distanceToSegment(p: Point, a: Point, b: Point): number {
-  const ab = subtract(b, a);
-  const lengthSquared = dot(ab, ab);
-  if (lengthSquared === 0) return distance(p, a);
-  const t = Math.min(1, Math.max(0, dot(subtract(p, a), ab) / lengthSquared));
-  return distance(p, add(a, scale(ab, t)));
+  return distanceToSegmentXY(p.x, p.y, a.x, a.y, b.x, b.y);
+}
+
+/**
+ * distanceToSegment on plain coordinates: the sweeps call it hundreds of times per gate, and
+ * this form builds no point objects. Same arithmetic, in the same order, as the vector form.
+ */
+export function distanceToSegmentXY(px: number, py: number, ax: number, ay: number, bx: number, by: number): number {
+  const abx = bx - ax;
+  const aby = by - ay;
+  const lengthSquared = abx * abx + aby * aby;
+  if (lengthSquared === 0) return Math.hypot(px - ax, py - ay);
+  const t = Math.min(1, Math.max(0, ((px - ax) * abx + (py - ay) * aby) / lengthSquared));
+  return Math.hypot(px - (ax + abx * t), py - (ay + aby * t));
 }
 
 /** True when segments a1–a2 and b1–b2 cross or touch. */
 export function segmentsIntersect(a1: Point, a2: Point, b1: Point, b2: Point): boolean {
-  const d1 = cross(subtract(a2, a1), subtract(b1, a1));
-  const d2 = cross(subtract(a2, a1), subtract(b2, a1));
-  const d3 = cross(subtract(b2, b1), subtract(a1, b1));
-  const d4 = cross(subtract(b2, b1), subtract(a2, b1));
+  return segmentsIntersectXY(a1.x, a1.y, a2.x, a2.y, b1.x, b1.y, b2.x, b2.y);
+}
+
+/** segmentsIntersect on plain coordinates (see distanceToSegmentXY). */
+export function segmentsIntersectXY(a1x: number, a1y: number, a2x: number, a2y: number, b1x: number, b1y: number, b2x: number, b2y: number): boolean {
+  const d1 = (a2x - a1x) * (b1y - a1y) - (a2y - a1y) * (b1x - a1x);
+  const d2 = (a2x - a1x) * (b2y - a1y) - (a2y - a1y) * (b2x - a1x);
+  const d3 = (b2x - b1x) * (a1y - b1y) - (b2y - b1y) * (a1x - b1x);
+  const d4 = (b2x - b1x) * (a2y - b1y) - (b2y - b1y) * (a2x - b1x);
   if (((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0))) return true;
   return (
-    (d1 === 0 && distanceToSegment(b1, a1, a2) === 0) ||
-    (d2 === 0 && distanceToSegment(b2, a1, a2) === 0) ||
-    (d3 === 0 && distanceToSegment(a1, b1, b2) === 0) ||
-    (d4 === 0 && distanceToSegment(a2, b1, b2) === 0)
+    (d1 === 0 && distanceToSegmentXY(b1x, b1y, a1x, a1y, a2x, a2y) === 0) ||
+    (d2 === 0 && distanceToSegmentXY(b2x, b2y, a1x, a1y, a2x, a2y) === 0) ||
+    (d3 === 0 && distanceToSegmentXY(a1x, a1y, b1x, b1y, b2x, b2y) === 0) ||
+    (d4 === 0 && distanceToSegmentXY(a2x, a2y, b1x, b1y, b2x, b2y) === 0)
   );
 }
 
 /** Shortest distance between segments a1–a2 and b1–b2 (0 when they cross). */
 export function segmentDistance(a1: Point, a2: Point, b1: Point, b2: Point): number {
-  if (segmentsIntersect(a1, a2, b1, b2)) return 0;
+  return segmentDistanceXY(a1.x, a1.y, a2.x, a2.y, b1.x, b1.y, b2.x, b2.y);
+}
+
+/** segmentDistance on plain coordinates (see distanceToSegmentXY). */
+export function segmentDistanceXY(a1x: number, a1y: number, a2x: number, a2y: number, b1x: number, b1y: number, b2x: number, b2y: number): number {
+  if (segmentsIntersectXY(a1x, a1y, a2x, a2y, b1x, b1y, b2x, b2y)) return 0;
   return Math.min(
-    distanceToSegment(a1, b1, b2),
-    distanceToSegment(a2, b1, b2),
-    distanceToSegment(b1, a1, a2),
-    distanceToSegment(b2, a1, a2),
+    distanceToSegmentXY(a1x, a1y, b1x, b1y, b2x, b2y),
+    distanceToSegmentXY(a2x, a2y, b1x, b1y, b2x, b2y),
+    distanceToSegmentXY(b1x, b1y, a1x, a1y, a2x, a2y),
+    distanceToSegmentXY(b2x, b2y, a1x, a1y, a2x, a2y),
   );
 }

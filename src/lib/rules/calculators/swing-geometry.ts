@@ -17,8 +17,10 @@ import {
   point,
   scale,
   segmentDistance,
+  segmentDistanceXY,
   subtract,
   toDegrees,
+  toRadians,
   type Point,
 } from './plane-geometry';
 import { requireFinite, requireNonNegative, requirePositive, roundDeg, roundMm, roundTo } from './numbers';
@@ -254,12 +256,25 @@ function sweepSwing(
   let minClear = 0;
   let minLeverValue = Infinity;
   let minClearValue = Infinity;
+  // The per-angle figures on plain coordinates: the same arithmetic, in the same order, as
+  // frontPivotAt, leverArmAt and clearanceAt, without building a dozen point objects per angle.
+  const { x: rearX, y: rearY } = layout.rearPivot;
+  const bracket = input.bracketFromHingeMm;
+  const offset = layout.side * (input.bracketOffsetMm ?? 0);
+  const bodyLengthMm = input.operatorBodyLengthMm ?? input.retractedLengthMm;
   for (let i = 0; i < angles.length; i += 1) {
     const angle = angles[i] as number;
-    const front = frontPivotAt(layout, angle);
-    const length = distance(front, layout.rearPivot);
-    const lever = leverArmAt(layout, front);
-    const clearance = clearanceAt(layout, angle, front, leafLength);
+    const cos = Math.cos(toRadians(angle));
+    const sin = Math.sin(toRadians(angle));
+    const frontX = cos * bracket + Math.cos(toRadians(angle + 90)) * offset;
+    const frontY = sin * bracket + Math.sin(toRadians(angle + 90)) * offset;
+    const length = Math.hypot(frontX - rearX, frontY - rearY);
+    const lever = Math.abs(rearX * frontY - rearY * frontX) / length;
+    const bodyFraction = Math.min(bodyLengthMm, length) / length;
+    const clearance =
+      segmentDistanceXY(rearX, rearY, rearX + (frontX - rearX) * bodyFraction, rearY + (frontY - rearY) * bodyFraction, 0, 0, cos * leafLength, sin * leafLength) -
+      (input.leafThicknessMm ?? 0) / 2 -
+      (input.operatorHalfWidthMm ?? 0);
     if (i === 0) {
       closed = length;
       firstLever = lever;
