@@ -9,9 +9,9 @@
  */
 import { z } from 'zod';
 import { areaScores } from './area-scores';
-import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset } from './compile';
+import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset, type FactPath } from './compile';
 import { buildFacts, type Facts } from './facts';
-import { rateFinding, type HrnCache } from './finding-hrn';
+import { rateFinding } from './finding-hrn';
 import { canonicalWriterFor, sha256Hex } from './hash';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
@@ -70,9 +70,9 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   if (issues.length > 0) throw new AssessmentInputError(issues);
   const { facts, problems } = buildFacts(input);
   // compiled.rules is already in report order (severity, area, id).
-  const findings: Finding[] = [];
-  const hrnCache: HrnCache = new Map();
-  for (const rule of compiled.rules) findings.push(evaluateRule(rule, facts, input, compiled, hrnCache));
+  const rules = compiled.rules;
+  const findings: Finding[] = new Array<Finding>(rules.length);
+  for (let i = 0; i < rules.length; i++) findings[i] = evaluateRule(rules[i]!, i, facts, input, compiled);
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (const f of findings) {
     if (f.outcome === 'pass') counts.pass += 1;
@@ -107,7 +107,6 @@ function makeFinding(
   observed: Record<string, unknown>,
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  hrnCache?: HrnCache,
 ): Finding {
   const { rule } = compiledRule;
   const result: Finding = {
@@ -124,13 +123,27 @@ function makeFinding(
     reference: rule.reference,
   };
   if (rule.local) result.local = true;
-  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, hrnCache);
+  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn);
   return result;
 }
 
-function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset, hrnCache: HrnCache): Finding {
+/**
+ * A rule that does not apply to the gate's kind or class gives the same finding at every gate:
+ * built once per compiled version and shared, frozen (results are read-only data).
+ */
+const notApplicableFindings = new WeakMap<CompiledRuleset, Array<Finding | undefined>>();
+
+function notApplicable(compiledRule: CompiledRule, index: number, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+  let byIndex = notApplicableFindings.get(compiled);
+  if (!byIndex) notApplicableFindings.set(compiled, (byIndex = []));
+  let finding = byIndex[index];
+  if (!finding) byIndex[index] = finding = Object.freeze(makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled));
+  return finding;
+}
+
+function evaluateRule(compiledRule: CompiledRule, index: number, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
   if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
-    return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled);
+    return notApplicable(compiledRule, index, input, compiled);
   }
   const observed: Record<string, unknown> = {};
   for (const path of compiledRule.observed) {
@@ -138,8 +151,9 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
     if (!isMissing(value)) observed[path.key] = value;
   }
   if (compiledRule.appliesWhen) {
-    const unknown = compiledRule.appliesWhenRequires.filter((path) => isMissing(readFact(facts, path)));
-    if (unknown.length > 0) {
+    let unknown: FactPath[] | null = null;
+    for (const path of compiledRule.appliesWhenRequires) if (isMissing(readFact(facts, path))) (unknown ??= []).push(path);
+    if (unknown) {
       return makeFinding(compiledRule, 'needs_info', dedupe(unknown.flatMap((path) => explainMissing(path, facts, compiled))), observed, input, compiled);
     }
     if (!truthy(compiledRule.appliesWhen(facts))) return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
@@ -152,7 +166,7 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
     if (isMissing(value)) (missing ??= []).push(...explainMissing(path, facts, compiled));
   }
   if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
-  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled, hrnCache);
+  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled);
 }
 
 function dedupe(items: MissingItem[]): MissingItem[] {

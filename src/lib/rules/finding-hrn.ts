@@ -32,21 +32,29 @@ function priceTable(hrn: HrnTable): PricedTable {
 }
 
 /**
- * Ratings of one assessment's failing findings without an override, by harm: the site and class
- * do not change between findings, so every finding with the same worst harm shares one frozen
- * rating instead of building its own.
+ * Ratings without an override depend only on the HRN table, the worst harm and four site facts
+ * (usage class, children or pets, pedestrians, public access): at most 32 sites per harm. They
+ * are worked out once and shared, frozen, by every finding that rates the same.
  */
-export type HrnCache = Map<string, FindingHrn>;
+const sharedRatings = new WeakMap<HrnTable, Map<string, Array<FindingHrn | undefined>>>();
+
+function siteCode(input: AssessmentInput): number {
+  const { site } = input;
+  return (input.profile.usageClass - 1) * 8 + (site.childrenOrPetsPresent ? 4 : 0) + (site.pedestriansUseDriveway ? 2 : 0) + (site.publicAccess ? 1 : 0);
+}
 
 /** Rates one failing rule at this gate. */
-export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, cache: HrnCache = new Map()): FindingHrn {
+export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable): FindingHrn {
   const override = input.hrnOverrides?.[ruleId];
-  if (!override) {
-    let shared = cache.get(harm);
-    if (!shared) cache.set(harm, (shared = Object.freeze(rate(input, harm, hrn, null))));
-    return shared;
-  }
-  return rate(input, harm, hrn, override);
+  if (override) return rate(input, harm, hrn, override);
+  let byHarm = sharedRatings.get(hrn);
+  if (!byHarm) sharedRatings.set(hrn, (byHarm = new Map()));
+  let bySite = byHarm.get(harm);
+  if (!bySite) byHarm.set(harm, (bySite = []));
+  const code = siteCode(input);
+  let shared = bySite[code];
+  if (!shared) bySite[code] = shared = Object.freeze(rate(input, harm, hrn, null));
+  return shared;
 }
 
 function rate(input: AssessmentInput, harm: string, hrn: HrnTable, override: NonNullable<AssessmentInput['hrnOverrides']>[string] | null): FindingHrn {
