@@ -9,6 +9,7 @@ import { analyseLogic } from './json-logic-analysis';
 import { FACT_CATALOGUE } from './fact-catalogue';
 import { contentSha256 } from './hash';
 import { factKeyOfQuestion } from './ruleset-references';
+import type { FindingHrn } from './result-types';
 import type { RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
 import { SEVERITIES, type GateKind, type HazardArea, type UsageClass } from './vocabulary';
 
@@ -32,6 +33,17 @@ export interface CompiledRule {
   readonly appliesWhenRequires: readonly FactPath[];
   /** Every fact the rule looks at, reported as the finding's observed values. */
   readonly observed: readonly FactPath[];
+  /** Where each of `requires` sits in `observed` (each fact is read once per rule). */
+  readonly requiresAt: readonly number[];
+  /** Which of `requires` are answers to questions (an `na` answer makes the rule not apply). */
+  readonly requiresAnswer: readonly boolean[];
+  /** Where each of `appliesWhenRequires` sits in `observed`. */
+  readonly appliesWhenRequiresAt: readonly number[];
+  /**
+   * HRN ratings of this rule's failing finding without an override, by site (see rateFinding):
+   * a memo filled as gates are scored, so findings that rate the same share one frozen rating.
+   */
+  readonly ratings: Array<FindingHrn | undefined>;
   /** Param values as conditions see them (`params.<name>`), for the reference evaluator and reports. */
   readonly paramValues: Readonly<Record<string, unknown>>;
   /** Params as a finding reports them (value and unit), built once and frozen. */
@@ -96,6 +108,12 @@ function factVars(logic: unknown): string[] {
   return [...usage.vars, ...usage.missingKeys].filter((name) => !name.startsWith('params.'));
 }
 
+function indexIn(list: readonly string[], key: string): number {
+  const at = list.indexOf(key);
+  if (at < 0) throw new Error(`compile: ${key} is not among the facts the rule looks at`);
+  return at;
+}
+
 function compileRule(rule: RulesetRule): CompiledRule {
   const paramValues: Record<string, unknown> = {};
   for (const [name, param] of Object.entries(rule.params)) paramValues[name] = param.value;
@@ -106,7 +124,8 @@ function compileRule(rule: RulesetRule): CompiledRule {
   }
   const optional = new Set(rule.optional ?? []);
   const appliesVars = rule.appliesWhen === undefined ? [] : factVars(rule.appliesWhen);
-  const observed = new Set([...rule.requires, ...optional, ...factVars(rule.condition), ...appliesVars]);
+  const observed = [...new Set([...rule.requires, ...optional, ...factVars(rule.condition), ...appliesVars])].sort();
+  const appliesWhenRequires = appliesVars.filter((v) => !optional.has(v) && !FACT_CATALOGUE[v]?.always);
   return {
     rule,
     gateKinds: new Set(rule.appliesTo.gateKinds),
@@ -114,8 +133,12 @@ function compileRule(rule: RulesetRule): CompiledRule {
     condition: compileLogic(rule.condition, { constants }),
     appliesWhen: rule.appliesWhen === undefined ? null : compileLogic(rule.appliesWhen, { constants }),
     requires: rule.requires.map(toPath),
-    appliesWhenRequires: appliesVars.filter((v) => !optional.has(v) && !FACT_CATALOGUE[v]?.always).map(toPath),
-    observed: [...observed].sort().map(toPath),
+    appliesWhenRequires: appliesWhenRequires.map(toPath),
+    observed: observed.map(toPath),
+    requiresAt: rule.requires.map((key) => indexIn(observed, key)),
+    requiresAnswer: rule.requires.map((key) => key.split('.')[0] === 'answers'),
+    appliesWhenRequiresAt: appliesWhenRequires.map((key) => indexIn(observed, key)),
+    ratings: [],
     paramValues,
     findingParams: Object.freeze(findingParams),
   };

@@ -123,7 +123,7 @@ function makeFinding(
     reference: rule.reference,
   };
   if (rule.local) result.local = true;
-  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn);
+  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, compiledRule.ratings);
   return result;
 }
 
@@ -145,25 +145,32 @@ function evaluateRule(compiledRule: CompiledRule, index: number, facts: Facts, i
   if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
     return notApplicable(compiledRule, index, input, compiled);
   }
+  // Each fact the rule looks at is read once: observed values, applicability and requirements share the reads.
+  const paths = compiledRule.observed;
+  const values = new Array<unknown>(paths.length);
   const observed: Record<string, unknown> = {};
-  for (const path of compiledRule.observed) {
+  for (let i = 0; i < paths.length; i++) {
+    const path = paths[i]!;
     const value = readFact(facts, path);
+    values[i] = value;
     if (!isMissing(value)) observed[path.key] = value;
   }
   if (compiledRule.appliesWhen) {
     let unknown: FactPath[] | null = null;
-    for (const path of compiledRule.appliesWhenRequires) if (isMissing(readFact(facts, path))) (unknown ??= []).push(path);
+    const at = compiledRule.appliesWhenRequiresAt;
+    for (let i = 0; i < at.length; i++) if (isMissing(values[at[i]!])) (unknown ??= []).push(compiledRule.appliesWhenRequires[i]!);
     if (unknown) {
       return makeFinding(compiledRule, 'needs_info', dedupe(unknown.flatMap((path) => explainMissing(path, facts, compiled))), observed, input, compiled);
     }
     if (!truthy(compiledRule.appliesWhen(facts))) return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
   }
   let missing: MissingItem[] | null = null;
-  for (const path of compiledRule.requires) {
-    const value = readFact(facts, path);
+  const at = compiledRule.requiresAt;
+  for (let i = 0; i < at.length; i++) {
+    const value = values[at[i]!];
     // The auditor judged the question not to apply at this gate: so does the rule.
-    if (value === 'na' && path.segments[0] === 'answers') return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
-    if (isMissing(value)) (missing ??= []).push(...explainMissing(path, facts, compiled));
+    if (value === 'na' && compiledRule.requiresAnswer[i]) return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
+    if (isMissing(value)) (missing ??= []).push(...explainMissing(compiledRule.requires[i]!, facts, compiled));
   }
   if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
   return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled);

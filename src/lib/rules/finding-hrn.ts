@@ -33,28 +33,23 @@ function priceTable(hrn: HrnTable): PricedTable {
 
 /**
  * Ratings without an override depend only on the HRN table, the worst harm and four site facts
- * (usage class, children or pets, pedestrians, public access): at most 32 sites per harm. They
- * are worked out once and shared, frozen, by every finding that rates the same.
+ * (usage class, children or pets, pedestrians, public access): 32 sites. A rule keeps its own
+ * ratings by site (`shared`, from the compiled rule), so every finding that rates the same shares
+ * one frozen rating.
  */
-const sharedRatings = new WeakMap<HrnTable, Map<string, Array<FindingHrn | undefined>>>();
-
 function siteCode(input: AssessmentInput): number {
   const { site } = input;
   return (input.profile.usageClass - 1) * 8 + (site.childrenOrPetsPresent ? 4 : 0) + (site.pedestriansUseDriveway ? 2 : 0) + (site.publicAccess ? 1 : 0);
 }
 
 /** Rates one failing rule at this gate. */
-export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable): FindingHrn {
+export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, shared: Array<FindingHrn | undefined> = []): FindingHrn {
   const override = input.hrnOverrides?.[ruleId];
   if (override) return rate(input, harm, hrn, override);
-  let byHarm = sharedRatings.get(hrn);
-  if (!byHarm) sharedRatings.set(hrn, (byHarm = new Map()));
-  let bySite = byHarm.get(harm);
-  if (!bySite) byHarm.set(harm, (bySite = []));
   const code = siteCode(input);
-  let shared = bySite[code];
-  if (!shared) bySite[code] = shared = Object.freeze(rate(input, harm, hrn, null));
-  return shared;
+  let rating = shared[code];
+  if (!rating) shared[code] = rating = Object.freeze(rate(input, harm, hrn, null));
+  return rating;
 }
 
 function rate(input: AssessmentInput, harm: string, hrn: HrnTable, override: NonNullable<AssessmentInput['hrnOverrides']>[string] | null): FindingHrn {
