@@ -21,10 +21,15 @@ const isPlainRecord = (input: unknown): input is Record<string, unknown> => {
   return prototype === Object.prototype || prototype === null;
 };
 
+/** Keys remembered per record schema (a key schema is pure, so a remembered answer stays right). */
+const KNOWN_KEYS_LIMIT = 4096;
+
 export function dictionaryRecord<K extends z.ZodType<string, string>, V extends z.ZodType>(key: K, value: V) {
   const ordinary = z.record(key, value);
   const parseKey = z.compile(key);
   const parseValue = z.compile(value);
+  // Keys that passed the key schema, and what it made of them: the same question keys recur in every input.
+  const knownKeys = new Map<string, z.output<K>>();
   return z.unknown().transform((input, ctx): Record<z.output<K>, z.output<V>> => {
     if (isPlainRecord(input)) {
       const out = Object.create(null) as Record<string, z.output<V>>;
@@ -33,13 +38,22 @@ export function dictionaryRecord<K extends z.ZodType<string, string>, V extends 
       for (const name of Object.keys(input).sort()) {
         // z.record leaves a `__proto__` member out; so does this.
         if (name === '__proto__') continue;
-        const parsedKey = parseKey.safeParse(name);
-        const parsedValue = parsedKey.success ? parseValue.safeParse(input[name]) : null;
-        if (!parsedKey.success || !parsedValue?.success) {
+        let outKey = knownKeys.get(name);
+        if (outKey === undefined) {
+          const parsedKey = parseKey.safeParse(name);
+          if (!parsedKey.success) {
+            valid = false;
+            break;
+          }
+          outKey = parsedKey.data;
+          if (knownKeys.size < KNOWN_KEYS_LIMIT) knownKeys.set(name, outKey);
+        }
+        const parsedValue = parseValue.safeParse(input[name]);
+        if (!parsedValue.success) {
           valid = false;
           break;
         }
-        out[parsedKey.data] = parsedValue.data;
+        out[outKey] = parsedValue.data;
       }
       if (valid) return out;
     }
