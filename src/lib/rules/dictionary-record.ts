@@ -5,8 +5,8 @@
  * subset of keys in its own order. Built into a plain `{}`, each new subset makes V8 create a
  * fresh chain of hidden classes, which measured as the dearest part of parsing an assessment
  * (compiled parse of the bench's generated inputs, interleaved in one process on the CI kind:
- * 37 µs with z.record, 14 µs with this). A null-prototype object is a hash table from the start. It also means a key such as `toString`
- * reads nothing rather than an inherited function.
+ * 37 µs with z.record, 14 µs with this). A null-prototype object is a hash table from the start.
+ * It also means a key such as `toString` reads nothing rather than an inherited function.
  *
  * Validity and errors are zod's own: each value is parsed with the value schema (compiled), each
  * key with the key schema, and when anything is wrong the ordinary `z.record(key, value)` parses

@@ -12,7 +12,7 @@ import { areaScores } from './area-scores';
 import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset, type FactPath } from './compile';
 import { buildFacts, type Facts } from './facts';
 import { rateFinding } from './finding-hrn';
-import { canonicalWriterFor, sha256Hex } from './hash';
+import { contentSha256, sha256Hex } from './hash';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
 import { truthy } from './json-logic-compile';
@@ -36,9 +36,6 @@ export interface LoadedRuleset {
  */
 const parseInput = z.compile(AssessmentInputSchema);
 
-/** The input's canonical JSON, with its object keys sorted once from the schema rather than per call. */
-const writeInputCanonically = canonicalWriterFor(AssessmentInputSchema);
-
 function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
   return 'contentSha256' in ruleset && 'version' in ruleset && typeof ruleset.version === 'object'
     ? compileRuleset(ruleset.version, ruleset.contentSha256)
@@ -60,8 +57,8 @@ export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): 
 
 /** Scores an input already parsed with AssessmentInputSchema (an endpoint that parsed it itself). */
 export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
-  // The input may have been assembled in code rather than parsed: write its keys in order.
-  return scoreWithHash(input, ruleset, () => sha256Hex(writeInputCanonically(input)));
+  // The input may have been assembled in code rather than parsed: the generic writer sorts its keys.
+  return scoreWithHash(input, ruleset, () => contentSha256(input));
 }
 
 function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion, inputSha256: () => string): ScoreResult {
@@ -70,9 +67,7 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   if (issues.length > 0) throw new AssessmentInputError(issues);
   const { facts, problems } = buildFacts(input);
   // compiled.rules is already in report order (severity, area, id).
-  const rules = compiled.rules;
-  const findings: Finding[] = new Array<Finding>(rules.length);
-  for (let i = 0; i < rules.length; i++) findings[i] = evaluateRule(rules[i]!, i, facts, input, compiled);
+  const findings = compiled.rules.map((rule) => evaluateRule(rule, facts, input, compiled));
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (const f of findings) {
     if (f.outcome === 'pass') counts.pass += 1;
@@ -129,21 +124,20 @@ function makeFinding(
 
 /**
  * A rule that does not apply to the gate's kind or class gives the same finding at every gate:
- * built once per compiled version and shared, frozen (results are read-only data).
+ * built once per compiled rule and shared, frozen (results are read-only data).
  */
-const notApplicableFindings = new WeakMap<CompiledRuleset, Array<Finding | undefined>>();
+const notApplicableFindings = new WeakMap<CompiledRule, Finding>();
 
-function notApplicable(compiledRule: CompiledRule, index: number, input: AssessmentInput, compiled: CompiledRuleset): Finding {
-  let byIndex = notApplicableFindings.get(compiled);
-  if (!byIndex) notApplicableFindings.set(compiled, (byIndex = []));
-  let finding = byIndex[index];
-  if (!finding) byIndex[index] = finding = Object.freeze(makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled));
+function notApplicable(compiledRule: CompiledRule, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+  let finding = notApplicableFindings.get(compiledRule);
+  if (!finding)
+    notApplicableFindings.set(compiledRule, (finding = Object.freeze(makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled))));
   return finding;
 }
 
-function evaluateRule(compiledRule: CompiledRule, index: number, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
   if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
-    return notApplicable(compiledRule, index, input, compiled);
+    return notApplicable(compiledRule, input, compiled);
   }
   // Each fact the rule looks at is read once: observed values, applicability and requirements share the reads.
   const paths = compiledRule.observed;

@@ -1,5 +1,4 @@
 import { createHash } from 'node:crypto';
-import type { z } from 'zod';
 
 /**
  * Canonical JSON: object keys sorted by code unit, no whitespace, `-0` written as `0`,
@@ -27,7 +26,8 @@ function write(value: unknown): string {
     case 'boolean':
       return value ? 'true' : 'false';
     case 'number':
-      return writeNumber(value);
+      if (!Number.isFinite(value)) throw new TypeError('non-finite number');
+      return value === 0 ? '0' : String(value);
     case 'object':
       return Array.isArray(value) ? writeArray(value) : writeObject(value as Record<string, unknown>);
     default:
@@ -74,117 +74,6 @@ function writeObject(record: Record<string, unknown>): string {
     first = false;
   }
   return out + '}';
-}
-
-/** Writes one value in canonical form, knowing its schema. */
-export type CanonicalWriter = (value: unknown) => string;
-
-/**
- * A canonical JSON writer specialised to a zod schema's shape: an object's keys are sorted
- * once, when the writer is made, instead of on every call (only records still sort their keys).
- * The output is exactly `canonicalJson(value)` for any value the schema parsed; a member the
- * schema does not declare is not written, so pass only values that came out of the schema
- * (strict objects refuse unknown members anyway). Anything the shape walk does not know
- * (unions of objects, lazy, transforms) is written by the generic writer.
- */
-export function canonicalWriterFor(schema: z.ZodType): CanonicalWriter {
-  const writer = writerOf(schema as unknown as SchemaNode);
-  return (value) => {
-    try {
-      return writer(value);
-    } catch (error) {
-      if (error instanceof TypeError) throw new TypeError(`canonicalJson: ${error.message} at ${pathOfProblem(value, '$') ?? '$'}`);
-      throw error;
-    }
-  };
-}
-
-/** The part of a zod 4 schema's definition the shape walk reads. */
-interface SchemaNode {
-  _zod: {
-    def: {
-      type: string;
-      shape?: Record<string, SchemaNode>;
-      valueType?: SchemaNode;
-      element?: SchemaNode;
-      innerType?: SchemaNode;
-    };
-  };
-}
-
-function writerOf(schema: SchemaNode): CanonicalWriter {
-  const def = schema._zod.def;
-  switch (def.type) {
-    case 'optional':
-    case 'nullable':
-    case 'readonly':
-      return writerOf(def.innerType!);
-    case 'object': {
-      const members = Object.keys(def.shape!)
-        .sort()
-        .map((key) => ({ key, prefix: quoted(key) + ':', write: writerOf(def.shape![key]!) }));
-      return (value) => {
-        if (value === null || typeof value !== 'object' || Array.isArray(value)) return write(value);
-        const record = value as Record<string, unknown>;
-        let out = '{';
-        for (let i = 0; i < members.length; i++) {
-          const member = members[i]!;
-          const item = record[member.key];
-          if (item === undefined) continue;
-          out += (out.length === 1 ? '' : ',') + member.prefix + member.write(item);
-        }
-        return out + '}';
-      };
-    }
-    case 'record': {
-      const writeValue = writerOf(def.valueType!);
-      return (value) => {
-        if (value === null || typeof value !== 'object' || Array.isArray(value)) return write(value);
-        const record = value as Record<string, unknown>;
-        const keys = Object.keys(record);
-        if (keys.length > 1) keys.sort();
-        let out = '{';
-        for (const key of keys) {
-          const item = record[key];
-          if (item === undefined) continue;
-          out += (out.length === 1 ? '' : ',') + quoted(key) + ':' + writeValue(item);
-        }
-        return out + '}';
-      };
-    }
-    case 'array': {
-      const writeItem = writerOf(def.element!);
-      return (value) => {
-        if (!Array.isArray(value)) return write(value);
-        let out = '[';
-        for (let i = 0; i < value.length; i++) {
-          const item: unknown = value[i];
-          if (i > 0) out += ',';
-          out += item === undefined || typeof item === 'function' ? 'null' : writeItem(item);
-        }
-        return out + ']';
-      };
-    }
-    case 'number':
-      return (value) => (typeof value === 'number' ? writeNumber(value) : write(value));
-    case 'boolean':
-      return (value) => (value === true ? 'true' : value === false ? 'false' : write(value));
-    case 'enum': {
-      // The few values an enum allows, quoted once.
-      const known = new Map<unknown, string>();
-      for (const option of Object.values((def as { entries?: Record<string, unknown> }).entries ?? {})) {
-        if (typeof option === 'string') known.set(option, JSON.stringify(option));
-      }
-      return (value) => known.get(value) ?? write(value);
-    }
-    default:
-      return write;
-  }
-}
-
-function writeNumber(value: number): string {
-  if (!Number.isFinite(value)) throw new TypeError('non-finite number');
-  return value === 0 ? '0' : String(value);
 }
 
 /** Finds where a value cannot be written, only once writing has failed (keeps the fast path free of path strings). */

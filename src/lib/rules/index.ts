@@ -6,7 +6,7 @@
 export { score, scoreParsed, type LoadedRuleset } from './engine';
 export { loadRulesetFile, validateRuleset, RulesetValidationError, type RulesetProblem } from './load-ruleset';
 export { diffRulesets, fieldChanges, type RulesetDiff, type ItemsDiff, type ItemChange, type FieldChange } from './diff';
-export { canonicalJson, canonicalWriterFor, contentSha256, resultSha256, sha256Hex, type CanonicalWriter } from './hash';
+export { canonicalJson, contentSha256, resultSha256, sha256Hex } from './hash';
 export { compileRuleset, type CompiledRuleset, type CompiledRule } from './compile';
 export { compileLogic, truthy, COMPILED_OPERATORS, type CompiledLogic } from './json-logic-compile';
 export { buildFacts, type Facts, type FactsResult, type EvidenceProblem } from './facts';

@@ -18,7 +18,11 @@ import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS, YES_NO_NA } from './vocabul
  * declaration order below stays the readable one.
  */
 function canonicalObject<T extends z.core.$ZodLooseShape>(shape: T) {
-  const sorted = Object.fromEntries(Object.keys(shape).sort().map((name) => [name, shape[name]])) as T;
+  const sorted = Object.fromEntries(
+    Object.keys(shape)
+      .sort()
+      .map((name) => [name, shape[name]]),
+  ) as T;
   return z.strictObject(sorted);
 }
 
@@ -32,8 +36,8 @@ const nonNegativeMm = finite.nonnegative('must not be negative');
  * engine reads (mm, N, kg, m/s, s, V, A, deg, count). The canonical value must match the entered
  * one, so a form's conversion slip is caught here, not in a report.
  */
-export const MeasuredValueSchema = canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() })
-  .superRefine((m, ctx) => {
+export const MeasuredValueSchema = canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() }).superRefine(
+  (m, ctx) => {
     const kind = kindOfUnit(m.unit);
     if (!kind) {
       ctx.addIssue({ code: 'custom', path: ['unit'], message: `unknown unit "${m.unit}"` });
@@ -41,9 +45,14 @@ export const MeasuredValueSchema = canonicalObject({ value: finite, unit: z.stri
     }
     const expected = exactCanonicalValue(kind, m.value, m.unit);
     if (Math.abs(expected - m.canonical) > CANONICAL_TOLERANCE * Math.max(1, Math.abs(expected))) {
-      ctx.addIssue({ code: 'custom', path: ['canonical'], message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}` });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['canonical'],
+        message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}`,
+      });
     }
-  });
+  },
+);
 export type MeasuredValue = z.infer<typeof MeasuredValueSchema>;
 
 export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3), z.literal(4)], {
@@ -52,30 +61,33 @@ export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3
 
 /** The gate as recorded in the office: what it is, how it opens, who uses it. */
 export const GateProfileSchema = canonicalObject({
-    kind: z.enum(GATE_KINDS),
-    leaves: z.enum(['single', 'double']),
-    /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
-    openingDirection: z.enum(['pull_to_open', 'push_to_open']).optional(),
-    usageClass: UsageClassSchema,
-    leafWidth: MeasuredValueSchema.optional(),
-    leafHeight: MeasuredValueSchema.optional(),
-    leafWeight: MeasuredValueSchema.optional(),
-    /** The operator is listed to the applicable safety standard (label seen or paperwork). */
-    operatorListed: z.boolean(),
-    automaticClosing: z.boolean(),
-    operatorManufacturedOn: z.iso.date({ message: 'must be a date written YYYY-MM-DD' }).optional(),
-  })
-  .superRefine((p, ctx) => {
-    if (p.kind === 'swing' && !p.openingDirection) {
-      ctx.addIssue({ code: 'custom', path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
-    }
-    const dims: Array<['leafWidth' | 'leafHeight' | 'leafWeight', string]> = [['leafWidth', 'length'], ['leafHeight', 'length'], ['leafWeight', 'mass']];
-    for (const [field, kind] of dims) {
-      const m = p[field];
-      if (m && kindOfUnit(m.unit) !== kind) ctx.addIssue({ code: 'custom', path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
-      if (m && m.canonical <= 0) ctx.addIssue({ code: 'custom', path: [field, 'value'], message: `${field} must be greater than zero` });
-    }
-  });
+  kind: z.enum(GATE_KINDS),
+  leaves: z.enum(['single', 'double']),
+  /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
+  openingDirection: z.enum(['pull_to_open', 'push_to_open']).optional(),
+  usageClass: UsageClassSchema,
+  leafWidth: MeasuredValueSchema.optional(),
+  leafHeight: MeasuredValueSchema.optional(),
+  leafWeight: MeasuredValueSchema.optional(),
+  /** The operator is listed to the applicable safety standard (label seen or paperwork). */
+  operatorListed: z.boolean(),
+  automaticClosing: z.boolean(),
+  operatorManufacturedOn: z.iso.date({ message: 'must be a date written YYYY-MM-DD' }).optional(),
+}).superRefine((p, ctx) => {
+  if (p.kind === 'swing' && !p.openingDirection) {
+    ctx.addIssue({ code: 'custom', path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
+  }
+  const dims: Array<['leafWidth' | 'leafHeight' | 'leafWeight', string]> = [
+    ['leafWidth', 'length'],
+    ['leafHeight', 'length'],
+    ['leafWeight', 'mass'],
+  ];
+  for (const [field, kind] of dims) {
+    const m = p[field];
+    if (m && kindOfUnit(m.unit) !== kind) ctx.addIssue({ code: 'custom', path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
+    if (m && m.canonical <= 0) ctx.addIssue({ code: 'custom', path: [field, 'value'], message: `${field} must be greater than zero` });
+  }
+});
 export type GateProfile = z.infer<typeof GateProfileSchema>;
 
 /** Who is around the gate: drives which rules apply and the HRN likelihood, frequency and people. */
@@ -124,18 +136,21 @@ export const ForceSummarySchema = canonicalObject({
 
 /** One force measurement at one point: raw samples (time s, force N) or the meter's summary. */
 export const ForceTestSchema = canonicalObject({
-    location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
-    direction: z.enum(TRAVEL_DIRECTIONS),
-    /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
-    gapMm: nonNegativeMm,
-    heightMm: nonNegativeMm.optional(),
-    samples: z.array(canonicalObject({ t: finite, f: finite })).min(2).max(20_000).optional(),
-    summary: ForceSummarySchema.optional(),
-    note: note.optional(),
-  })
-  .superRefine((t, ctx) => {
-    if (!t.samples === !t.summary) ctx.addIssue({ code: 'custom', path: ['samples'], message: 'give either the samples or the summary of the trace, not both' });
-  });
+  location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
+  direction: z.enum(TRAVEL_DIRECTIONS),
+  /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
+  gapMm: nonNegativeMm,
+  heightMm: nonNegativeMm.optional(),
+  samples: z
+    .array(canonicalObject({ t: finite, f: finite }))
+    .min(2)
+    .max(20_000)
+    .optional(),
+  summary: ForceSummarySchema.optional(),
+  note: note.optional(),
+}).superRefine((t, ctx) => {
+  if (!t.samples === !t.summary) ctx.addIssue({ code: 'custom', path: ['samples'], message: 'give either the samples or the summary of the trace, not both' });
+});
 export type ForceTest = z.infer<typeof ForceTestSchema>;
 
 /**
@@ -144,20 +159,19 @@ export type ForceTest = z.infer<typeof ForceTestSchema>;
  * distance from the hinge, the ram's retracted length and stroke, the opening wanted.
  */
 export const SwingGeometryInputSchema = canonicalObject({
-    aMm: finite,
-    bMm: finite,
-    bracketFromHingeMm: finite.positive('must be greater than zero'),
-    retractedLengthMm: finite.positive('must be greater than zero'),
-    strokeMm: finite.positive('must be greater than zero'),
-    targetOpeningDeg: finite.gt(0, 'must be above 0°').lte(180, 'must be at most 180°'),
-    bracketOffsetMm: nonNegativeMm.optional(),
-    leafThicknessMm: nonNegativeMm.optional(),
-    operatorHalfWidthMm: nonNegativeMm.optional(),
-    operatorBodyLengthMm: finite.positive().optional(),
-  })
-  .superRefine((g, ctx) => {
-    if (g.aMm === 0 && g.bMm === 0) ctx.addIssue({ code: 'custom', path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' });
-  });
+  aMm: finite,
+  bMm: finite,
+  bracketFromHingeMm: finite.positive('must be greater than zero'),
+  retractedLengthMm: finite.positive('must be greater than zero'),
+  strokeMm: finite.positive('must be greater than zero'),
+  targetOpeningDeg: finite.gt(0, 'must be above 0°').lte(180, 'must be at most 180°'),
+  bracketOffsetMm: nonNegativeMm.optional(),
+  leafThicknessMm: nonNegativeMm.optional(),
+  operatorHalfWidthMm: nonNegativeMm.optional(),
+  operatorBodyLengthMm: finite.positive().optional(),
+}).superRefine((g, ctx) => {
+  if (g.aMm === 0 && g.bMm === 0) ctx.addIssue({ code: 'custom', path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' });
+});
 export type SwingGeometryInput = z.infer<typeof SwingGeometryInputSchema>;
 
 const hrnKey = z.string().regex(/^[a-z0-9_]{1,40}$/);

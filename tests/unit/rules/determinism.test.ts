@@ -1,7 +1,17 @@
 import { createHash } from 'node:crypto';
 import { configure } from 'safe-stable-stringify';
 import { describe, expect, it } from 'vitest';
-import { AnswerSchema, AssessmentInputSchema, canonicalJson, ChoiceSchema, HrnOverrideSchema, MeasuredValueSchema, canonicalWriterFor, resultSha256, score } from '@/lib/rules';
+import {
+  AnswerSchema,
+  AssessmentInputSchema,
+  canonicalJson,
+  ChoiceSchema,
+  HrnOverrideSchema,
+  MeasuredValueSchema,
+  resultSha256,
+  score,
+  scoreParsed,
+} from '@/lib/rules';
 import { euSwingGate } from './fixtures/european-powered-gate';
 import { naSwingGate } from './fixtures/north-american-gate';
 import { applyPatch, len, YES } from './support/inputs';
@@ -75,22 +85,25 @@ describe('scoring determinism', () => {
     expect(result.inputSha256).toBe(createHash('sha256').update(referenceJson(parsed)!, 'utf8').digest('hex'));
   });
 
-  it('writes generated inputs exactly as an independent deterministic writer does, with the schema-shaped writer and the generic one', () => {
-    const writeInput = canonicalWriterFor(AssessmentInputSchema);
+  it('hashes generated inputs as an independent deterministic writer writes them, through score() and scoreParsed()', () => {
+    const sha256 = (text: string) => createHash('sha256').update(text, 'utf8').digest('hex');
     const rng = createPrng(7_340_033);
     const rulesets = shippedRulesets();
     for (let i = 0; i < 300; i++) {
-      const input = AssessmentInputSchema.parse(generateInput(rng, rng.pick(rulesets).version));
+      const ruleset = rng.pick(rulesets);
+      const input = AssessmentInputSchema.parse(generateInput(rng, ruleset.version));
       if (i % 3 === 0) input.answers = { ...input.answers, zebraCrossing: { value: 'no', note: 'Quote " backslash \\ tab \t, é, 😀' } };
       if (i % 5 === 0 && input.measurements) {
         const [first] = Object.keys(input.measurements);
-        if (first) input.measurements[first] = { value: -0, unit: 'mm', canonical: -0 };
+        if (first) input.measurements[first] = { ...input.measurements[first]!, value: -0, canonical: -0 };
       }
-      const expected = referenceJson(input);
-      expect(writeInput(input)).toBe(expected);
+      const expected = referenceJson(input)!;
       expect(canonicalJson(input)).toBe(expected);
       // What score() hashes: the native writer over what the schema built (keys in canonical order).
       expect(JSON.stringify(AssessmentInputSchema.parse(input))).toBe(expected);
+      expect(score(input, ruleset).inputSha256).toBe(sha256(expected));
+      // What scoreParsed() hashes for an input handed over already parsed: the generic canonical writer.
+      expect(scoreParsed(input, ruleset).inputSha256).toBe(sha256(expected));
     }
   });
 
@@ -116,10 +129,9 @@ describe('scoring determinism', () => {
     expect(unsorted).toEqual([]);
   });
 
-  it('refuses a non-finite number in the schema-shaped writer too, naming where it is', () => {
-    const writeInput = canonicalWriterFor(AssessmentInputSchema);
+  it('refuses to hash a non-finite number in an input handed over already parsed, naming where it is', () => {
     const input = AssessmentInputSchema.parse(failing);
     input.measurements!.hingeGapMm!.canonical = Number.NaN;
-    expect(() => writeInput(input)).toThrow(/non-finite number at \$\.measurements\.hingeGapMm\.canonical/);
+    expect(() => scoreParsed(input, shipped('north-american-gate', '2026.1'))).toThrow(/non-finite number at \$\.measurements\.hingeGapMm\.canonical/);
   });
 });

@@ -16,7 +16,10 @@ const pairs = [
 const issuesOf = (result: { success: boolean; error?: z.ZodError }) =>
   result.success ? [] : result.error!.issues.map((issue) => ({ path: issue.path.map(String), message: issue.message }));
 
-const anyKey = fc.oneof(fc.constantFrom('hingeGapMm', 'signsBothSides', 'x', '1abc', 'toString', 'constructor', '__proto__', 'aB9'), fc.string({ maxLength: 6 }));
+const anyKey = fc.oneof(
+  fc.constantFrom('hingeGapMm', 'signsBothSides', 'x', '1abc', 'toString', 'constructor', '__proto__', 'aB9'),
+  fc.string({ maxLength: 6 }),
+);
 const anyAnswer = fc.oneof(
   fc.record({ value: fc.constantFrom('yes', 'no', 'na', 'maybe') }),
   fc.record({ value: fc.constantFrom('yes', 'no'), note: fc.string({ maxLength: 8 }) }),
