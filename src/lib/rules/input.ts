@@ -26,6 +26,27 @@ function canonicalObject<T extends z.core.$ZodLooseShape>(shape: T) {
   return z.strictObject(sorted);
 }
 
+/** A problem a cross-field check found: where, relative to the checked value, and what. */
+interface Problem {
+  path: PropertyKey[];
+  message: string;
+}
+
+/**
+ * Adds a cross-field check. zod's superRefine builds a fresh issue-reporting closure on every parse
+ * (with the measured values' check, about a tenth of scoring an assessment); here the check
+ * returns its problems (usually none, allocating nothing) and they become zod custom issues,
+ * with the same paths and messages.
+ */
+function withCheck<T extends z.ZodType>(schema: T, findProblems: (value: z.output<T>) => Problem[] | undefined): T {
+  const check: z.core.$ZodCheck<z.output<T>> = z.check<z.output<T>>((payload) => {
+    const problems = findProblems(payload.value);
+    if (problems)
+      for (const { path, message } of problems) payload.issues.push({ code: 'custom', input: payload.value, inst: check, continue: true, path, message });
+  });
+  return schema.check(check) as T;
+}
+
 const note = z.string().trim().max(2000, 'a note may be at most 2000 characters');
 const key = z.string().regex(KEY_PATTERN, 'keys are camelCase letters and digits, starting with a lower-case letter');
 const finite = z.number({ message: 'must be a number' }).finite('must be a finite number');
@@ -36,21 +57,16 @@ const nonNegativeMm = finite.nonnegative('must not be negative');
  * engine reads (mm, N, kg, m/s, s, V, A, deg, count). The canonical value must match the entered
  * one, so a form's conversion slip is caught here, not in a report.
  */
-export const MeasuredValueSchema = canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() }).superRefine(
-  (m, ctx) => {
+export const MeasuredValueSchema = withCheck(
+  canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() }),
+  (m) => {
     const kind = kindOfUnit(m.unit);
-    if (!kind) {
-      ctx.addIssue({ code: 'custom', path: ['unit'], message: `unknown unit "${m.unit}"` });
-      return;
-    }
+    if (!kind) return [{ path: ['unit'], message: `unknown unit "${m.unit}"` }];
     const expected = exactCanonicalValue(kind, m.value, m.unit);
     if (Math.abs(expected - m.canonical) > CANONICAL_TOLERANCE * Math.max(1, Math.abs(expected))) {
-      ctx.addIssue({
-        code: 'custom',
-        path: ['canonical'],
-        message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}`,
-      });
+      return [{ path: ['canonical'], message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}` }];
     }
+    return undefined;
   },
 );
 export type MeasuredValue = z.infer<typeof MeasuredValueSchema>;
@@ -59,35 +75,41 @@ export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3
   message: 'usage class must be 1, 2, 3 or 4',
 });
 
+/** The profile's dimensions and the kind of unit each must be entered in. */
+const PROFILE_DIMENSIONS: ReadonlyArray<readonly ['leafWidth' | 'leafHeight' | 'leafWeight', 'length' | 'mass']> = [
+  ['leafWidth', 'length'],
+  ['leafHeight', 'length'],
+  ['leafWeight', 'mass'],
+];
+
 /** The gate as recorded in the office: what it is, how it opens, who uses it. */
-export const GateProfileSchema = canonicalObject({
-  kind: z.enum(GATE_KINDS),
-  leaves: z.enum(['single', 'double']),
-  /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
-  openingDirection: z.enum(['pull_to_open', 'push_to_open']).optional(),
-  usageClass: UsageClassSchema,
-  leafWidth: MeasuredValueSchema.optional(),
-  leafHeight: MeasuredValueSchema.optional(),
-  leafWeight: MeasuredValueSchema.optional(),
-  /** The operator is listed to the applicable safety standard (label seen or paperwork). */
-  operatorListed: z.boolean(),
-  automaticClosing: z.boolean(),
-  operatorManufacturedOn: z.iso.date({ message: 'must be a date written YYYY-MM-DD' }).optional(),
-}).superRefine((p, ctx) => {
-  if (p.kind === 'swing' && !p.openingDirection) {
-    ctx.addIssue({ code: 'custom', path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
-  }
-  const dims: Array<['leafWidth' | 'leafHeight' | 'leafWeight', string]> = [
-    ['leafWidth', 'length'],
-    ['leafHeight', 'length'],
-    ['leafWeight', 'mass'],
-  ];
-  for (const [field, kind] of dims) {
-    const m = p[field];
-    if (m && kindOfUnit(m.unit) !== kind) ctx.addIssue({ code: 'custom', path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
-    if (m && m.canonical <= 0) ctx.addIssue({ code: 'custom', path: [field, 'value'], message: `${field} must be greater than zero` });
-  }
-});
+export const GateProfileSchema = withCheck(
+  canonicalObject({
+    kind: z.enum(GATE_KINDS),
+    leaves: z.enum(['single', 'double']),
+    /** Swing gates: pull_to_open opens toward the operator's side, push_to_open away from it. */
+    openingDirection: z.enum(['pull_to_open', 'push_to_open']).optional(),
+    usageClass: UsageClassSchema,
+    leafWidth: MeasuredValueSchema.optional(),
+    leafHeight: MeasuredValueSchema.optional(),
+    leafWeight: MeasuredValueSchema.optional(),
+    /** The operator is listed to the applicable safety standard (label seen or paperwork). */
+    operatorListed: z.boolean(),
+    automaticClosing: z.boolean(),
+    operatorManufacturedOn: z.iso.date({ message: 'must be a date written YYYY-MM-DD' }).optional(),
+  }),
+  (p) => {
+    let problems: Problem[] | undefined;
+    if (p.kind === 'swing' && !p.openingDirection) (problems ??= []).push({ path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
+    for (const [field, kind] of PROFILE_DIMENSIONS) {
+      const m = p[field];
+      if (!m) continue;
+      if (kindOfUnit(m.unit) !== kind) (problems ??= []).push({ path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
+      if (m.canonical <= 0) (problems ??= []).push({ path: [field, 'value'], message: `${field} must be greater than zero` });
+    }
+    return problems;
+  },
+);
 export type GateProfile = z.infer<typeof GateProfileSchema>;
 
 /** Who is around the gate: drives which rules apply and the HRN likelihood, frequency and people. */
@@ -135,22 +157,23 @@ export const ForceSummarySchema = canonicalObject({
 });
 
 /** One force measurement at one point: raw samples (time s, force N) or the meter's summary. */
-export const ForceTestSchema = canonicalObject({
-  location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
-  direction: z.enum(TRAVEL_DIRECTIONS),
-  /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
-  gapMm: nonNegativeMm,
-  heightMm: nonNegativeMm.optional(),
-  samples: z
-    .array(canonicalObject({ t: finite, f: finite }))
-    .min(2)
-    .max(20_000)
-    .optional(),
-  summary: ForceSummarySchema.optional(),
-  note: note.optional(),
-}).superRefine((t, ctx) => {
-  if (!t.samples === !t.summary) ctx.addIssue({ code: 'custom', path: ['samples'], message: 'give either the samples or the summary of the trace, not both' });
-});
+export const ForceTestSchema = withCheck(
+  canonicalObject({
+    location: z.enum(['closing_edge', 'opening_edge', 'hinge_side', 'post_gap', 'other']),
+    direction: z.enum(TRAVEL_DIRECTIONS),
+    /** Gap left at the measuring point, mm (EN 12445 points at 50, 300 and 500 mm). */
+    gapMm: nonNegativeMm,
+    heightMm: nonNegativeMm.optional(),
+    samples: z
+      .array(canonicalObject({ t: finite, f: finite }))
+      .min(2)
+      .max(20_000)
+      .optional(),
+    summary: ForceSummarySchema.optional(),
+    note: note.optional(),
+  }),
+  (t) => (!t.samples === !t.summary ? [{ path: ['samples'], message: 'give either the samples or the summary of the trace, not both' }] : undefined),
+);
 export type ForceTest = z.infer<typeof ForceTestSchema>;
 
 /**
@@ -158,20 +181,21 @@ export type ForceTest = z.infer<typeof ForceTestSchema>;
  * axis to the rear pivot, B across it (negative: operator on the far side), the leaf bracket's
  * distance from the hinge, the ram's retracted length and stroke, the opening wanted.
  */
-export const SwingGeometryInputSchema = canonicalObject({
-  aMm: finite,
-  bMm: finite,
-  bracketFromHingeMm: finite.positive('must be greater than zero'),
-  retractedLengthMm: finite.positive('must be greater than zero'),
-  strokeMm: finite.positive('must be greater than zero'),
-  targetOpeningDeg: finite.gt(0, 'must be above 0°').lte(180, 'must be at most 180°'),
-  bracketOffsetMm: nonNegativeMm.optional(),
-  leafThicknessMm: nonNegativeMm.optional(),
-  operatorHalfWidthMm: nonNegativeMm.optional(),
-  operatorBodyLengthMm: finite.positive().optional(),
-}).superRefine((g, ctx) => {
-  if (g.aMm === 0 && g.bMm === 0) ctx.addIssue({ code: 'custom', path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' });
-});
+export const SwingGeometryInputSchema = withCheck(
+  canonicalObject({
+    aMm: finite,
+    bMm: finite,
+    bracketFromHingeMm: finite.positive('must be greater than zero'),
+    retractedLengthMm: finite.positive('must be greater than zero'),
+    strokeMm: finite.positive('must be greater than zero'),
+    targetOpeningDeg: finite.gt(0, 'must be above 0°').lte(180, 'must be at most 180°'),
+    bracketOffsetMm: nonNegativeMm.optional(),
+    leafThicknessMm: nonNegativeMm.optional(),
+    operatorHalfWidthMm: nonNegativeMm.optional(),
+    operatorBodyLengthMm: finite.positive().optional(),
+  }),
+  (g) => (g.aMm === 0 && g.bMm === 0 ? [{ path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' }] : undefined),
+);
 export type SwingGeometryInput = z.infer<typeof SwingGeometryInputSchema>;
 
 const hrnKey = z.string().regex(/^[a-z0-9_]{1,40}$/);
@@ -185,22 +209,28 @@ export const HrnOverrideSchema = canonicalObject({
 });
 
 /** The whole assessment input scored against a ruleset version. */
-export const AssessmentInputSchema = canonicalObject({
-  profile: GateProfileSchema,
-  site: SiteContextSchema,
-  // Records keyed by question parse into dictionaries (null-prototype objects): see dictionary-record.ts.
-  answers: dictionaryRecord(key, AnswerSchema).optional(),
-  choices: dictionaryRecord(key, ChoiceSchema).optional(),
-  measurements: dictionaryRecord(key, MeasuredValueSchema).optional(),
-  entrapment: EntrapmentInputSchema.optional(),
-  forceTests: z.array(ForceTestSchema).max(50).optional(),
-  swingGeometry: SwingGeometryInputSchema.optional(),
-  hrnOverrides: dictionaryRecord(z.string().min(3).max(120), HrnOverrideSchema).optional(),
-}).superRefine((input, ctx) => {
-  for (const k of Object.keys(input.choices ?? {})) {
-    if (input.answers && Object.prototype.hasOwnProperty.call(input.answers, k)) {
-      ctx.addIssue({ code: 'custom', path: ['choices', k], message: `"${k}" is answered both as yes/no and as a choice` });
+export const AssessmentInputSchema = withCheck(
+  canonicalObject({
+    profile: GateProfileSchema,
+    site: SiteContextSchema,
+    // Records keyed by question parse into dictionaries (null-prototype objects): see dictionary-record.ts.
+    answers: dictionaryRecord(key, AnswerSchema).optional(),
+    choices: dictionaryRecord(key, ChoiceSchema).optional(),
+    measurements: dictionaryRecord(key, MeasuredValueSchema).optional(),
+    entrapment: EntrapmentInputSchema.optional(),
+    forceTests: z.array(ForceTestSchema).max(50).optional(),
+    swingGeometry: SwingGeometryInputSchema.optional(),
+    hrnOverrides: dictionaryRecord(z.string().min(3).max(120), HrnOverrideSchema).optional(),
+  }),
+  (input) => {
+    if (!input.choices || !input.answers) return undefined;
+    let problems: Problem[] | undefined;
+    for (const k of Object.keys(input.choices)) {
+      if (Object.prototype.hasOwnProperty.call(input.answers, k)) {
+        (problems ??= []).push({ path: ['choices', k], message: `"${k}" is answered both as yes/no and as a choice` });
+      }
     }
-  }
-});
+    return problems;
+  },
+);
 export type AssessmentInput = z.infer<typeof AssessmentInputSchema>;

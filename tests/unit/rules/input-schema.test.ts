@@ -43,6 +43,28 @@ describe('assessment input schema', () => {
     expect(issuesOf(input)).toEqual(['forceTests.0.samples: give either the samples or the summary of the trace, not both']);
   });
 
+  it('reports every cross-field problem with its path, and score() reports the same ones', () => {
+    const input = applyPatch(naSwingGate(), {
+      profile: { leafWidth: { value: 90, unit: 'kg', canonical: 90 } },
+      swingGeometry: { aMm: 0, bMm: 0 },
+      choices: { placardsLegible: choice('yes') },
+    });
+    const issues = issuesOf(input);
+    expect(issues).toEqual([
+      'profile.leafWidth.unit: leafWidth must be entered as a length',
+      'swingGeometry.bMm: the rear pivot cannot sit on the hinge axis',
+      'choices.placardsLegible: "placardsLegible" is answered both as yes/no and as a choice',
+    ]);
+    let thrown: unknown;
+    try {
+      score(input, shipped('north-american-gate', '2026.1'));
+    } catch (error) {
+      thrown = error;
+    }
+    expect(thrown).toBeInstanceOf(AssessmentInputError);
+    expect((thrown as AssessmentInputError).issues.map((i) => `${i.path}: ${i.message}`)).toEqual(issues);
+  });
+
   it('refuses, when scoring, a force entered for a length question and a choice it does not offer', () => {
     const input = applyPatch(naSwingGate(), { measurements: { hingeGapMm: force(10) }, choices: { wireGaugeAwg: choice('awg8') } });
     expect(() => score(input, shipped('north-american-gate', '2026.1'))).toThrowError(AssessmentInputError);
