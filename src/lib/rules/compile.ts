@@ -9,6 +9,7 @@ import { analyseLogic } from './json-logic-analysis';
 import { FACT_CATALOGUE } from './fact-catalogue';
 import { contentSha256 } from './hash';
 import { factKeyOfQuestion } from './ruleset-references';
+import { SITE_CODES } from './finding-hrn';
 import type { FindingHrn } from './result-types';
 import type { RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
 import { SEVERITIES, type GateKind, type HazardArea, type UsageClass } from './vocabulary';
@@ -138,7 +139,8 @@ function compileRule(rule: RulesetRule): CompiledRule {
     requiresAt: rule.requires.map((key) => indexIn(observed, key)),
     requiresAnswer: rule.requires.map((key) => key.split('.')[0] === 'answers'),
     appliesWhenRequiresAt: appliesWhenRequires.map((key) => indexIn(observed, key)),
-    ratings: [],
+    // Filled in place, one slot per site: a packed array, not a sparse one.
+    ratings: new Array<FindingHrn | undefined>(SITE_CODES).fill(undefined),
     paramValues,
     findingParams: Object.freeze(findingParams),
   };

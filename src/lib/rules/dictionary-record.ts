@@ -22,6 +22,22 @@ const isPlainRecord = (input: unknown): input is Record<string, unknown> => {
   return prototype === Object.prototype || prototype === null;
 };
 
+/** Up to this many keys, an insertion sort beats the built-in sort (a record holds a few dozen answers). */
+const SMALL_RECORD = 64;
+
+/** The record's own keys in code-unit order, as the default sort and canonicalJson order them. */
+function sortedKeys(record: object): string[] {
+  const keys = Object.keys(record);
+  if (keys.length > SMALL_RECORD) return keys.sort();
+  for (let i = 1; i < keys.length; i++) {
+    const key = keys[i]!;
+    let j = i - 1;
+    for (; j >= 0 && keys[j]! > key; j--) keys[j + 1] = keys[j]!;
+    keys[j + 1] = key;
+  }
+  return keys;
+}
+
 /** Keys remembered per record schema (a key schema is pure, so a remembered answer stays right). */
 const KNOWN_KEYS_LIMIT = 4096;
 
@@ -36,7 +52,7 @@ export function dictionaryRecord<K extends z.ZodType<string, string>, V extends 
       const out = Object.create(null) as Record<string, z.output<V>>;
       let valid = true;
       // Members go in sorted key order, as canonicalJson writes them (see canonicalObject in input.ts).
-      for (const name of Object.keys(input).sort()) {
+      for (const name of sortedKeys(input)) {
         // z.record leaves a `__proto__` member out; so does this.
         if (name === '__proto__') continue;
         let outKey = knownKeys.get(name);

@@ -67,7 +67,10 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   if (issues.length > 0) throw new AssessmentInputError(issues);
   const { facts, problems } = buildFacts(input);
   // compiled.rules is already in report order (severity, area, id).
-  const findings = compiled.rules.map((rule) => evaluateRule(rule, facts, input, compiled));
+  const rules = compiled.rules;
+  const skipped = notApplicableAt(compiled, input);
+  const findings = new Array<Finding>(rules.length);
+  for (let i = 0; i < rules.length; i++) findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled);
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (const f of findings) {
     if (f.outcome === 'pass') counts.pass += 1;
@@ -123,8 +126,8 @@ function makeFinding(
 }
 
 /**
- * A rule that does not apply to the gate's kind or class gives the same finding at every gate:
- * built once per compiled rule and shared, frozen (results are read-only data).
+ * A rule that does not apply to the gate's kind or usage class gives the same finding at every
+ * such gate: built once per compiled rule and shared, frozen (results are read-only data).
  */
 const notApplicableFindings = new WeakMap<CompiledRule, Finding>();
 
@@ -135,10 +138,27 @@ function notApplicable(compiledRule: CompiledRule, input: AssessmentInput, compi
   return finding;
 }
 
-function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
-  if (!compiledRule.gateKinds.has(input.profile.kind) || !compiledRule.usageClasses.has(input.profile.usageClass)) {
-    return notApplicable(compiledRule, input, compiled);
+/**
+ * Per version and (gate kind, usage class), in the version's rule order: the shared finding of each
+ * rule that does not apply there, null for each rule that does. Worked out on first use.
+ */
+const notApplicableByGate = new WeakMap<CompiledRuleset, Map<string, ReadonlyArray<Finding | null>>>();
+
+function notApplicableAt(compiled: CompiledRuleset, input: AssessmentInput): ReadonlyArray<Finding | null> {
+  const { kind, usageClass } = input.profile;
+  let byGate = notApplicableByGate.get(compiled);
+  if (!byGate) notApplicableByGate.set(compiled, (byGate = new Map()));
+  const gate = `${kind} ${usageClass}`;
+  let skipped = byGate.get(gate);
+  if (!skipped) {
+    skipped = compiled.rules.map((rule) => (rule.gateKinds.has(kind) && rule.usageClasses.has(usageClass) ? null : notApplicable(rule, input, compiled)));
+    byGate.set(gate, skipped);
   }
+  return skipped;
+}
+
+function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+  // The caller has already left out rules that do not apply to the gate's kind or usage class.
   // Each fact the rule looks at is read once: observed values, applicability and requirements share the reads.
   const paths = compiledRule.observed;
   const values = new Array<unknown>(paths.length);
@@ -178,7 +198,7 @@ function dedupe(items: MissingItem[]): MissingItem[] {
 /** Where a needed item sorts: questions in walk order first, then derived facts by key. */
 const needRanks = new WeakMap<CompiledRuleset, Map<string, number>>();
 
-function needRank(key: string, compiled: CompiledRuleset): number {
+function needRanksOf(compiled: CompiledRuleset): Map<string, number> {
   let ranks = needRanks.get(compiled);
   if (!ranks) {
     const order = compiled.version.questions.map((q, i) => ({ fact: factKeyOfQuestion(q), section: compiled.sectionRank.get(q.section) ?? 0, i }));
@@ -186,7 +206,7 @@ function needRank(key: string, compiled: CompiledRuleset): number {
     ranks = new Map(order.map((o, rank) => [o.fact, rank]));
     needRanks.set(compiled, ranks);
   }
-  return ranks.get(key) ?? Number.MAX_SAFE_INTEGER;
+  return ranks;
 }
 
 function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRuleset): NeedsInfoItem[] {
@@ -200,7 +220,11 @@ function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRulese
     }
   }
   if (!byKey) return [];
-  const items = [...byKey.values()];
-  for (const item of items) item.ruleIds.sort();
-  return items.sort((a, b) => needRank(a.key, compiled) - needRank(b.key, compiled) || (a.key < b.key ? -1 : a.key > b.key ? 1 : 0));
+  const ranks = needRanksOf(compiled);
+  const ranked = [...byKey.values()].map((item) => ({ item, rank: ranks.get(item.key) ?? Number.MAX_SAFE_INTEGER }));
+  ranked.sort((a, b) => a.rank - b.rank || (a.item.key < b.item.key ? -1 : a.item.key > b.item.key ? 1 : 0));
+  return ranked.map(({ item }) => {
+    item.ruleIds.sort();
+    return item;
+  });
 }

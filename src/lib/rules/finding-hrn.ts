@@ -31,6 +31,9 @@ function priceTable(hrn: HrnTable): PricedTable {
   return found;
 }
 
+/** How many distinct sites siteCode tells apart (four usage classes × three yes/no facts). */
+export const SITE_CODES = 32;
+
 /**
  * Ratings without an override depend only on the HRN table, the worst harm and four site facts
  * (usage class, children or pets, pedestrians, public access): 32 sites. A rule keeps its own

@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import { hash } from 'node:crypto';
 
 /**
  * Canonical JSON: object keys sorted by code unit, no whitespace, `-0` written as `0`,
@@ -90,9 +90,9 @@ function pathOfProblem(value: unknown, path: string): string | null {
   return null;
 }
 
-/** Hex SHA-256 of a string's UTF-8 bytes. */
+/** Hex SHA-256 of a string's UTF-8 bytes (one-shot: no Hash object per call, which cost more than the hashing). */
 export function sha256Hex(text: string): string {
-  return createHash('sha256').update(text, 'utf8').digest('hex');
+  return hash('sha256', text, 'hex');
 }
 
 /** SHA-256 of any JSON value's canonical form: the identity of a ruleset version or an input. */

@@ -1,3 +1,4 @@
+import { z } from 'zod';
 import { describe, expect, it } from 'vitest';
 import {
   applicableEntrapmentEdition,
@@ -46,6 +47,28 @@ describe('edition', () => {
   it('refuses a date that is not a real ISO date', () => {
     expect(() => applicableEntrapmentEdition('12/01/2016')).toThrow(RangeError);
     expect(() => applicableEntrapmentEdition('2016-02-30')).toThrow(RangeError);
+  });
+
+  it("knows a real calendar date as zod's ISO date schema does (leap years included)", () => {
+    // Reference: zod's z.iso.date() (ISO 8601 calendar dates, Gregorian leap rule: 2000 and 2024 leap, 1900 and 2100 not)
+    const reference = z.iso.date();
+    const pad = (n: number, width: number) => String(n).padStart(width, '0');
+    for (const year of [1900, 1996, 2000, 2015, 2016, 2023, 2024, 2100]) {
+      for (let month = 0; month <= 13; month++) {
+        for (let day = 0; day <= 32; day++) {
+          const date = `${pad(year, 4)}-${pad(month, 2)}-${pad(day, 2)}`;
+          const accepted = (() => {
+            try {
+              applicableEntrapmentEdition(date);
+              return true;
+            } catch {
+              return false;
+            }
+          })();
+          expect(accepted, date).toBe(reference.safeParse(date).success);
+        }
+      }
+    }
   });
 });
 

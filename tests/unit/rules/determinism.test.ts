@@ -10,6 +10,7 @@ import {
   MeasuredValueSchema,
   resultSha256,
   score,
+  sha256Hex,
   scoreParsed,
 } from '@/lib/rules';
 import { euSwingGate } from './fixtures/european-powered-gate';
@@ -38,6 +39,16 @@ describe('canonicalJson', () => {
     expect(canonicalJson([-0])).toBe('[0]');
     expect(() => canonicalJson({ peak: Number.NaN })).toThrow(/non-finite number at \$\.peak/);
     expect(() => canonicalJson([Infinity])).toThrow(/non-finite/);
+  });
+});
+
+describe('sha256Hex', () => {
+  it('matches the published SHA-256 test vectors', () => {
+    // FIPS 180-2, Appendix B.1 and B.2 (one-block and two-block messages)
+    expect(sha256Hex('abc')).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');
+    expect(sha256Hex('abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq')).toBe('248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1');
+    // UTF-8 bytes, as node's streaming Hash reads a string
+    expect(sha256Hex('Tür ⚠ 50 mm')).toBe(createHash('sha256').update(Buffer.from('Tür ⚠ 50 mm', 'utf8')).digest('hex'));
   });
 });
 

@@ -72,19 +72,20 @@ export function assessSignage(
   input: SignageInput,
   limits: Partial<{ minPerSide: number; minTotal: number }> = {},
 ): SignageResult {
-  const { minPerSide, minTotal } = { ...UL325_PLACARDS, ...limits };
+  const minPerSide = limits.minPerSide ?? UL325_PLACARDS.minPerSide;
+  const minTotal = limits.minTotal ?? UL325_PLACARDS.minTotal;
   const side1 = countOf('placardsGateSide1', input.placardsGateSide1);
   const side2 = countOf('placardsGateSide2', input.placardsGateSide2);
   const atLeast = (count: number | null, min: number) => (count === null ? null : count >= min);
   const total = side1 === null || side2 === null ? null : side1 + side2;
-  const result = {
-    side1: { count: side1, pass: atLeast(side1, minPerSide) },
-    side2: { count: side2, pass: atLeast(side2, minPerSide) },
-    // One side alone may already make up the total even while the other is still uncounted.
-    total: {
-      count: total,
-      pass: atLeast(total, minTotal) ?? (Math.max(side1 ?? 0, side2 ?? 0) >= minTotal ? true : null),
-    },
+  const side1Pass = atLeast(side1, minPerSide);
+  const side2Pass = atLeast(side2, minPerSide);
+  // One side alone may already make up the total even while the other is still uncounted.
+  const totalPass = atLeast(total, minTotal) ?? (Math.max(side1 ?? 0, side2 ?? 0) >= minTotal ? true : null);
+  return {
+    side1: { count: side1, pass: side1Pass },
+    side2: { count: side2, pass: side2Pass },
+    total: { count: total, pass: totalPass },
+    pass: combinePasses(side1Pass, side2Pass, totalPass),
   };
-  return { ...result, pass: combinePasses(result.side1.pass, result.side2.pass, result.total.pass) };
 }

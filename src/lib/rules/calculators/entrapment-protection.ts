@@ -127,19 +127,20 @@ export function applicableEntrapmentEdition(
   return manufactureDateIsValid(manufacturedOn) ? (manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016') : refuseDate(manufacturedOn);
 }
 
-/** Dates already checked (an operator's date recurs every time its gate is scored). */
-const checkedDates = new Map<string, boolean>();
-const CHECKED_DATES_LIMIT = 1024;
+/** Days in a month of the proleptic Gregorian calendar (ISO 8601 dates). */
+function daysInMonth(year: number, month: number): number {
+  if (month === 2) return year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0) ? 29 : 28;
+  return month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
+}
 
+/** A real calendar date in YYYY-MM-DD form (worked out by arithmetic: no Date object per check). */
 function manufactureDateIsValid(manufacturedOn: string): boolean {
-  let valid = checkedDates.get(manufacturedOn);
-  if (valid === undefined) {
-    const match = ISO_DATE.exec(manufacturedOn);
-    const day = match ? new Date(`${match[1]}-${match[2]}-${match[3]}T00:00:00Z`) : null;
-    valid = !!match && !!day && !Number.isNaN(day.getTime()) && day.toISOString().slice(0, 10) === manufacturedOn.slice(0, 10);
-    if (checkedDates.size < CHECKED_DATES_LIMIT) checkedDates.set(manufacturedOn, valid);
-  }
-  return valid;
+  const match = ISO_DATE.exec(manufacturedOn);
+  if (!match) return false;
+  const year = Number(match[1]);
+  const month = Number(match[2]);
+  const day = Number(match[3]);
+  return month >= 1 && month <= 12 && day >= 1 && day <= daysInMonth(year, month);
 }
 
 function refuseDate(manufacturedOn: string): never {
