@@ -202,6 +202,37 @@ function reachableRanges(layout: Layout, shortest: number, longest: number): Arr
   return ranges;
 }
 
+/**
+ * cos and sin of the leaf direction and of the bracket-offset direction (90° on) at every angle of
+ * the default grid, worked out once with the same expressions the sweep uses, so the sweep reads
+ * the very same numbers instead of calling four trigonometric functions per angle.
+ */
+interface GridTrig {
+  cos: Float64Array;
+  sin: Float64Array;
+  cosNormal: Float64Array;
+  sinNormal: Float64Array;
+}
+
+let defaultGrid: GridTrig | null = null;
+
+function defaultGridTrig(): GridTrig {
+  if (!defaultGrid) {
+    const count = Math.floor(SWEEP_MAX_DEG / SWING_GEOMETRY_ANGLE_STEP_DEG) + 1;
+    const grid: GridTrig = { cos: new Float64Array(count), sin: new Float64Array(count), cosNormal: new Float64Array(count), sinNormal: new Float64Array(count) };
+    for (let i = 0; i < count; i += 1) {
+      const angle = i * SWING_GEOMETRY_ANGLE_STEP_DEG;
+      grid.cos[i] = Math.cos(toRadians(angle));
+      grid.sin[i] = Math.sin(toRadians(angle));
+      grid.cosNormal[i] = Math.cos(toRadians(angle + 90));
+      grid.sinNormal[i] = Math.sin(toRadians(angle + 90));
+    }
+    defaultGrid = grid;
+  }
+  return defaultGrid;
+}
+
+/** i × step from 0 up to (not including) the target, then the target itself. */
 function sampledAngles(target: number, step: number): number[] {
   const angles: number[] = [];
   for (let i = 0; i * step < target - 1e-9; i += 1) angles.push(i * step);
@@ -262,12 +293,15 @@ function sweepSwing(
   const bracket = input.bracketFromHingeMm;
   const offset = layout.side * (input.bracketOffsetMm ?? 0);
   const bodyLengthMm = input.operatorBodyLengthMm ?? input.retractedLengthMm;
+  // Every angle but the last (the target) is i × step: on the default grid its cos and sin are in the table.
+  const grid = step === SWING_GEOMETRY_ANGLE_STEP_DEG ? defaultGridTrig() : null;
   for (let i = 0; i < angles.length; i += 1) {
     const angle = angles[i] as number;
-    const cos = Math.cos(toRadians(angle));
-    const sin = Math.sin(toRadians(angle));
-    const frontX = cos * bracket + Math.cos(toRadians(angle + 90)) * offset;
-    const frontY = sin * bracket + Math.sin(toRadians(angle + 90)) * offset;
+    const onGrid = grid !== null && i < angles.length - 1;
+    const cos = onGrid ? (grid.cos[i] as number) : Math.cos(toRadians(angle));
+    const sin = onGrid ? (grid.sin[i] as number) : Math.sin(toRadians(angle));
+    const frontX = cos * bracket + (onGrid ? (grid.cosNormal[i] as number) : Math.cos(toRadians(angle + 90))) * offset;
+    const frontY = sin * bracket + (onGrid ? (grid.sinNormal[i] as number) : Math.sin(toRadians(angle + 90))) * offset;
     const length = Math.hypot(frontX - rearX, frontY - rearY);
     const lever = Math.abs(rearX * frontY - rearY * frontX) / length;
     const bodyFraction = Math.min(bodyLengthMm, length) / length;
