@@ -219,7 +219,12 @@ let defaultGrid: GridTrig | null = null;
 function defaultGridTrig(): GridTrig {
   if (!defaultGrid) {
     const count = Math.floor(SWEEP_MAX_DEG / SWING_GEOMETRY_ANGLE_STEP_DEG) + 1;
-    const grid: GridTrig = { cos: new Float64Array(count), sin: new Float64Array(count), cosNormal: new Float64Array(count), sinNormal: new Float64Array(count) };
+    const grid: GridTrig = {
+      cos: new Float64Array(count),
+      sin: new Float64Array(count),
+      cosNormal: new Float64Array(count),
+      sinNormal: new Float64Array(count),
+    };
     for (let i = 0; i < count; i += 1) {
       const angle = i * SWING_GEOMETRY_ANGLE_STEP_DEG;
       grid.cos[i] = Math.cos(toRadians(angle));
