@@ -13,17 +13,19 @@ import type { Finding } from './result-types';
 /** Scores per area of the version, in the version's area order. */
 export function areaScores(findings: readonly Finding[], version: RulesetVersion): Record<string, number | null> {
   const weights = version.scoring.severityWeights;
-  const totals = new Map<string, { passed: number; applicable: number }>();
-  for (const area of version.areas) totals.set(area.key, { passed: 0, applicable: 0 });
+  const { areas } = version;
+  // Indexed by the area's place in the version (a few areas: a scan beats a map here).
+  const passed = new Array<number>(areas.length).fill(0);
+  const applicable = new Array<number>(areas.length).fill(0);
   for (const finding of findings) {
     if (finding.outcome === 'n/a') continue;
-    const total = totals.get(finding.area);
-    if (!total) continue;
+    const at = areas.findIndex((area) => area.key === finding.area);
+    if (at < 0) continue;
     const weight = weights[finding.severity];
-    total.applicable += weight;
-    if (finding.outcome === 'pass') total.passed += weight;
+    applicable[at]! += weight;
+    if (finding.outcome === 'pass') passed[at]! += weight;
   }
   const scores: Record<string, number | null> = {};
-  for (const [area, total] of totals) scores[area] = total.applicable === 0 ? null : Math.round((100 * total.passed) / total.applicable);
+  for (let i = 0; i < areas.length; i++) scores[areas[i]!.key] = applicable[i] === 0 ? null : Math.round((100 * passed[i]!) / applicable[i]!);
   return scores;
 }

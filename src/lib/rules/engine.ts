@@ -190,9 +190,11 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
   return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled);
 }
 
+/** The items with each key once, first kept (a finding misses a handful at most: a scan, no Set). */
 function dedupe(items: MissingItem[]): MissingItem[] {
-  const seen = new Set<string>();
-  return items.filter((item) => (seen.has(item.key) ? false : (seen.add(item.key), true)));
+  const kept: MissingItem[] = [];
+  for (const item of items) if (!kept.some((k) => k.key === item.key)) kept.push(item);
+  return kept;
 }
 
 /** Where a needed item sorts: questions in walk order first, then derived facts by key. */
