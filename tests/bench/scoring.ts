@@ -39,11 +39,14 @@ export interface ScoringBenchFigures {
   parsedMedianUs: number;
   /** Process CPU time per assessment over the whole scoring loop: less sensitive to a busy machine than wall time. */
   cpuMeanUs: number;
+  /** Medians of consecutive stretches of the scoring loop, in run order: shows the machine's speed drifting within a run. */
+  stretchMediansUs: number[];
   assessments: number;
   untranslatedRules: number;
 }
 
 const ASSESSMENTS = 10_000;
+const STRETCH = 2_000;
 const WARM_UP = 1_000;
 const SEED = 20_260_101;
 
@@ -89,6 +92,11 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
   }
   const cpu = process.cpuUsage(cpuBefore);
   const cpuMeanUs = (cpu.user + cpu.system) / cases.length;
+  const stretchMediansUs: number[] = [];
+  for (let from = 0; from < ours.length; from += STRETCH) {
+    const stretch = ours.slice(from, from + STRETCH).sort((a, b) => a - b);
+    stretchMediansUs.push(round2(percentile(stretch, 0.5)));
+  }
 
   const parsedInputs = cases.map((c) => AssessmentInputSchema.parse(c.input));
   const parsedTimes: number[] = [];
@@ -135,6 +143,7 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     conditionsRatio: round2(referenceMedianUs / conditionsMedianUs),
     parsedMedianUs: round2(percentile(parsedTimes, 0.5)),
     cpuMeanUs: round2(cpuMeanUs),
+    stretchMediansUs,
     assessments: cases.length,
     untranslatedRules: untranslated.length,
   };
@@ -142,6 +151,9 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
   console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; calibration ${calibration} µs per JSON.stringify of a 50-key object`);
   console.log(`Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`);
   console.log(`  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`);
+  console.log(
+    `  medians of each stretch of ${STRETCH.toLocaleString('en')}, in run order: ${stretchMediansUs.join(', ')} µs (a shared host can slow a stretch down)`,
+  );
   console.log(`  CPU time per assessment (mean, whole loop): ${figures.cpuMeanUs} µs`);
   console.log(`  input already parsed (scoreParsed): median ${figures.parsedMedianUs} µs`);
   console.log(`  conditions only:  median ${figures.conditionsMedianUs} µs (checksum ${sink})`);

@@ -55,12 +55,12 @@ export function buildFacts(input: AssessmentInput): FactsResult {
   // start (no per-subset hidden classes to build) and a key such as `constructor` reads nothing.
   const answers: Record<string, string> = Object.create(null) as Record<string, string>;
   const given = input.answers ?? {};
-  for (const key in given) answers[key] = (given[key] as { value: string }).value;
+  for (const key of Object.keys(given)) answers[key] = (given[key] as { value: string }).value;
   const choices = input.choices ?? {};
-  for (const key in choices) answers[key] = (choices[key] as { value: string }).value;
+  for (const key of Object.keys(choices)) answers[key] = (choices[key] as { value: string }).value;
   const m: Record<string, number> = Object.create(null) as Record<string, number>;
   const measurements = input.measurements ?? {};
-  for (const key in measurements) m[key] = (measurements[key] as { canonical: number }).canonical;
+  for (const key of Object.keys(measurements)) m[key] = (measurements[key] as { canonical: number }).canonical;
 
   const facts: Facts = { profile: profileFacts(input), site: { ...input.site }, answers, m, calc: {} };
   if (input.entrapment) facts.calc.entrapment = entrapmentFacts(input, input.entrapment);

@@ -41,19 +41,19 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
   const issues: InputIssue[] = [];
   const questions = compiled.questionByKey;
   const measurements = input.measurements ?? {};
-  for (const key in measurements) {
+  for (const key of Object.keys(measurements)) {
     const q = questions.get(key);
     if (!q) continue;
     const m = measurements[key] as { unit: string };
     if (!measured.has(q.answerType)) issues.push({ path: `measurements.${key}`, message: `"${key}" is answered as ${q.answerType}, not measured` });
     else if (kindOfUnit(m.unit) !== q.answerType) issues.push({ path: `measurements.${key}.unit`, message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it` });
   }
-  for (const key in input.answers ?? {}) {
+  for (const key of Object.keys(input.answers ?? {})) {
     const q = questions.get(key);
     if (q && q.answerType !== 'yes_no_na') issues.push({ path: `answers.${key}`, message: `"${key}" is answered as ${q.answerType}, not yes/no/na` });
   }
   const choices = input.choices ?? {};
-  for (const key in choices) {
+  for (const key of Object.keys(choices)) {
     const q = questions.get(key);
     if (!q) continue;
     const choice = choices[key] as { value: string };
