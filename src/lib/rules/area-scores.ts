@@ -14,7 +14,7 @@ import type { Finding } from './result-types';
 export function areaScores(findings: readonly Finding[], version: RulesetVersion): Record<string, number | null> {
   const weights = version.scoring.severityWeights;
   const { areas } = version;
-  // Indexed by the area's place in the version (a few areas: a scan beats a map here).
+  // Indexed by the area's place in the version: a handful of areas, found by a scan (no Map, no iterator).
   const passed = new Array<number>(areas.length).fill(0);
   const applicable = new Array<number>(areas.length).fill(0);
   for (const finding of findings) {
