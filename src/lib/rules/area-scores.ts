@@ -17,10 +17,12 @@ export function areaScores(findings: readonly Finding[], version: RulesetVersion
   // Indexed by the area's place in the version: a handful of areas, found by a scan (no Map, no iterator).
   const passed = new Array<number>(areas.length).fill(0);
   const applicable = new Array<number>(areas.length).fill(0);
-  for (const finding of findings) {
+  for (let f = 0; f < findings.length; f++) {
+    const finding = findings[f]!;
     if (finding.outcome === 'n/a') continue;
-    const at = areas.findIndex((area) => area.key === finding.area);
-    if (at < 0) continue;
+    let at = 0;
+    while (at < areas.length && areas[at]!.key !== finding.area) at++;
+    if (at === areas.length) continue;
     const weight = weights[finding.severity];
     applicable[at]! += weight;
     if (finding.outcome === 'pass') passed[at]! += weight;

@@ -72,7 +72,8 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   const findings = new Array<Finding>(rules.length);
   for (let i = 0; i < rules.length; i++) findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled);
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
-  for (const f of findings) {
+  for (let i = 0; i < findings.length; i++) {
+    const f = findings[i]!;
     if (f.outcome === 'pass') counts.pass += 1;
     else if (f.outcome === 'fail') {
       counts.fail += 1;
@@ -157,11 +158,15 @@ function notApplicableAt(compiled: CompiledRuleset, input: AssessmentInput): Rea
   return skipped;
 }
 
+/** The facts the rule being evaluated looks at, in `observed` order (see evaluateRule). */
+const factValues: unknown[] = [];
+
 function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
   // The caller has already left out rules that do not apply to the gate's kind or usage class.
   // Each fact the rule looks at is read once: observed values, applicability and requirements share the reads.
   const paths = compiledRule.observed;
-  const values = new Array<unknown>(paths.length);
+  // Scratch space reused by every rule (evaluateRule never re-enters itself): no array per rule.
+  const values = factValues;
   const observed: Record<string, unknown> = {};
   for (let i = 0; i < paths.length; i++) {
     const path = paths[i]!;
@@ -193,7 +198,12 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
 /** The items with each key once, first kept (a finding misses a handful at most: a scan, no Set). */
 function dedupe(items: MissingItem[]): MissingItem[] {
   const kept: MissingItem[] = [];
-  for (const item of items) if (!kept.some((k) => k.key === item.key)) kept.push(item);
+  for (let i = 0; i < items.length; i++) {
+    const item = items[i]!;
+    let seen = false;
+    for (let j = 0; j < kept.length && !seen; j++) seen = kept[j]!.key === item.key;
+    if (!seen) kept.push(item);
+  }
   return kept;
 }
 
@@ -213,7 +223,9 @@ function needRanksOf(compiled: CompiledRuleset): Map<string, number> {
 
 function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRuleset): NeedsInfoItem[] {
   let byKey: Map<string, NeedsInfoItem> | null = null;
-  for (const f of findings) {
+  for (let i = 0; i < findings.length; i++) {
+    const f = findings[i]!;
+    if (f.missing.length === 0) continue;
     for (const item of f.missing) {
       byKey ??= new Map();
       let entry = byKey.get(item.key);
