@@ -98,4 +98,28 @@ describe('public verification', () => {
     byId.set('document', draftCopyId);
     expect(await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text()).toContain('No match');
   });
+
+  it('throttles one address after 60 checks in 15 minutes, API and page alike, and leaves other addresses alone', async () => {
+    // Common practice, no source: a sliding-window limit per client address
+    const visitor = anonymousClient();
+    for (let i = 0; i < 60; i++) {
+      const answer = await visitor.fetch(`/api/verify?document=${signed.documentId}`);
+      expect(answer.status, `check ${i + 1}`).toBe(200);
+      await answer.arrayBuffer();
+    }
+    const refused = await visitor.fetch('/api/verify', { method: 'POST', body: pdfForm(signed.pdf!) });
+    expect(refused.status).toBe(429);
+    expect(refused.headers.get('content-type')).toContain('application/problem+json');
+    const retryAfter = Number(refused.headers.get('retry-after'));
+    expect(retryAfter).toBeGreaterThan(0);
+    expect(retryAfter).toBeLessThanOrEqual(15 * 60);
+    expect((await refused.json()).detail).toMatch(/^Too many reports checked from this address\. Try again in about \d+ minutes?\.$/);
+    const page = await visitor.fetch('/verify', { method: 'POST', body: pdfForm(signed.pdf!) });
+    expect(page.status).toBe(429);
+    expect(await page.text()).toContain('Too many reports checked from this address');
+    // Another address is not affected, and the refused checks did not count.
+    expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`))).toMatchObject({ match: true });
+    const counted = await testDb()('sign_in_attempts').where({ kind: 'verify', ip: visitor.address }).count<{ count: string }[]>('* as count');
+    expect(Number(counted[0]!.count)).toBe(60);
+  });
 });

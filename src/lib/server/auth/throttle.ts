@@ -6,10 +6,11 @@
  * - Password sign-ins count failures; a success resets the account's count (not the address's,
  *   so signing in to one's own account cannot unlock guessing at others).
  * - Link requests count every request, so nobody can flood a homeowner's inbox.
+ * - Public report checks (`verify`) count every check, per address only.
  */
 import type { Knex } from 'knex';
 
-export type AttemptKind = 'password' | 'link_request' | 'link';
+export type AttemptKind = 'password' | 'link_request' | 'link' | 'verify';
 
 export interface ThrottleLimits {
   windowMinutes: number;
@@ -20,6 +21,13 @@ export interface ThrottleLimits {
 /** Common practice (OWASP authentication cheat sheet: lock out after a few failures), no fixed standard. */
 export const passwordLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
 export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
+/**
+ * Public report checks (no account): generous for an office checking a batch of reports, tight
+ * enough that nobody can keep the server hashing 30 MB uploads. Common practice, no source.
+ */
+export const verifyLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 0, perAddress: 60 };
+
+const limitsOf = (kind: AttemptKind): ThrottleLimits => (kind === 'password' ? passwordLimits : kind === 'verify' ? verifyLimits : linkRequestLimits);
 
 export type ThrottleVerdict = { throttled: false } | { throttled: true; scope: 'account' | 'address'; retryAfterSeconds: number };
 
@@ -41,7 +49,7 @@ function verdict(scope: 'account' | 'address', until: Date | null): ThrottleVerd
 }
 
 export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null): Promise<ThrottleVerdict> {
-  const limits = kind === 'password' ? passwordLimits : linkRequestLimits;
+  const limits = limitsOf(kind);
   if (email) {
     const account = knex('sign_in_attempts').where({ kind, email });
     if (kind === 'password') {

@@ -1,8 +1,9 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { referenceOf, sha256Of, streamedSha256, verifyDocument } from '@/lib/server/document-verification';
+import { clientAddressOf } from '@/lib/server/auth/client-address';
+import { admitVerification, referenceOf, sha256Of, streamedSha256, verificationWaitMessage, verifyDocument } from '@/lib/server/document-verification';
 import { readMultipart } from '@/lib/server/http/multipart';
-import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
+import { handle, HttpProblem, parseQuery, problem } from '@/lib/server/http/problem';
 
 /** Signed reports are a few MB; anything far larger is not one of ours. */
 const MAX_PDF_BYTES = 30 * 1024 * 1024;
@@ -17,14 +18,26 @@ const QuerySchema = z.strictObject({
 
 const tooLarge = () => new HttpProblem(413, `A signed report is never larger than ${MAX_PDF_BYTES / 1024 / 1024} MB.`);
 
+/** 429 with Retry-After when this address has checked too many reports lately (before any upload is read). */
+async function throttled(context: { clientAddress: string }): Promise<Response | null> {
+  const admission = await admitVerification(clientAddressOf(context));
+  if (admission.admitted) return null;
+  return problem(429, verificationWaitMessage(admission.retryAfterSeconds), {}, { 'retry-after': String(admission.retryAfterSeconds) });
+}
+
 /** Public: is this document id or SHA-256 an archived signed report? */
-export const GET: APIRoute = handle(async ({ url }) => {
-  const { document } = parseQuery(QuerySchema, url);
+export const GET: APIRoute = handle(async (context) => {
+  const { document } = parseQuery(QuerySchema, context.url);
+  const refused = await throttled(context);
+  if (refused) return refused;
   return Response.json(await verifyDocument(referenceOf(document)!));
 });
 
 /** Public: is this PDF (multipart field `file`, or the raw body as application/pdf) an archived signed report? */
-export const POST: APIRoute = handle(async ({ request }) => {
+export const POST: APIRoute = handle(async (context) => {
+  const refused = await throttled(context);
+  if (refused) return refused;
+  const { request } = context;
   const type = request.headers.get('content-type') ?? '';
   if (/^application\/pdf\b/i.test(type)) {
     if (Number(request.headers.get('content-length') ?? 0) > MAX_PDF_BYTES) throw tooLarge();
