@@ -25,7 +25,7 @@ export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount
  * Public report checks (no account): generous for an office checking a batch of reports, tight
  * enough that nobody can keep the server hashing 30 MB uploads. Common practice, no source.
  */
-export const verifyLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 0, perAddress: 60 };
+export const verifyLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 0 /* no account: never checked */, perAddress: 60 };
 
 const limitsOf = (kind: AttemptKind): ThrottleLimits => (kind === 'password' ? passwordLimits : kind === 'verify' ? verifyLimits : linkRequestLimits);
 
@@ -50,7 +50,7 @@ function verdict(scope: 'account' | 'address', until: Date | null): ThrottleVerd
 
 export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null): Promise<ThrottleVerdict> {
   const limits = limitsOf(kind);
-  if (email) {
+  if (email && limits.perAccount > 0) {
     const account = knex('sign_in_attempts').where({ kind, email });
     if (kind === 'password') {
       account.where('succeeded', false).andWhere('created_at', '>', knex.raw(`coalesce((select max(created_at) from sign_in_attempts where kind = 'password' and email = ? and succeeded), '-infinity')`, [email]));
