@@ -47,6 +47,12 @@ describe('edition', () => {
   it('refuses a date that is not a real ISO date', () => {
     expect(() => applicableEntrapmentEdition('12/01/2016')).toThrow(RangeError);
     expect(() => applicableEntrapmentEdition('2016-02-30')).toThrow(RangeError);
+    // Gregorian leap rule (ISO 8601): 2000 and 2024 have 29 February, 1900 and 2100 do not
+    expect(applicableEntrapmentEdition('2000-02-29')).toBe('pre-2016');
+    expect(applicableEntrapmentEdition('2024-02-29T07:30:00Z')).toBe('2016');
+    expect(() => applicableEntrapmentEdition('1900-02-29')).toThrow(RangeError);
+    expect(() => applicableEntrapmentEdition('2100-02-29')).toThrow(RangeError);
+    expect(() => applicableEntrapmentEdition('2016-13-01')).toThrow(RangeError);
   });
 
   it("knows a real calendar date as zod's ISO date schema does (leap years included)", () => {

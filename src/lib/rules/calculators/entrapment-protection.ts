@@ -3,6 +3,7 @@
  * travel, under both UL 325 regimes (the pre-2016 primary/secondary table and the 2016 rules
  * of two independent, monitored means), and says which regime applies to this operator.
  */
+import { z } from 'zod';
 import type { GateKind, UsageClass } from './gate-kind';
 import {
   ENTRAPMENT_DEVICE_TYPES,
@@ -114,7 +115,8 @@ const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[
 const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] =>
   ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
 
-const ISO_DATE = /^(\d{4})-(\d{2})-(\d{2})(?:$|T)/;
+/** YYYY-MM-DD, alone or followed by a time (`T…`): only the date part is judged. */
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}(?:$|T)/;
 
 /** Picks the rule edition from an explicit choice or the operator's date of manufacture. */
 export function applicableEntrapmentEdition(
@@ -127,20 +129,11 @@ export function applicableEntrapmentEdition(
   return manufactureDateIsValid(manufacturedOn) ? (manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016') : refuseDate(manufacturedOn);
 }
 
-/** Days in a month of the proleptic Gregorian calendar (ISO 8601 dates). */
-function daysInMonth(year: number, month: number): number {
-  if (month === 2) return year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0) ? 29 : 28;
-  return month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
-}
+/** A real calendar date in YYYY-MM-DD form, leap years included: zod's ISO date check, as the input schema uses. */
+const CalendarDate = z.iso.date();
 
-/** A real calendar date in YYYY-MM-DD form (worked out by arithmetic: no Date object per check). */
 function manufactureDateIsValid(manufacturedOn: string): boolean {
-  const match = ISO_DATE.exec(manufacturedOn);
-  if (!match) return false;
-  const year = Number(match[1]);
-  const month = Number(match[2]);
-  const day = Number(match[3]);
-  return month >= 1 && month <= 12 && day >= 1 && day <= daysInMonth(year, month);
+  return ISO_DATE.test(manufacturedOn) && CalendarDate.safeParse(manufacturedOn.slice(0, 10)).success;
 }
 
 function refuseDate(manufacturedOn: string): never {
