@@ -8,7 +8,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
-import { checkThrottle, recordAttempt, verifyLimits, waitInWords } from './auth/throttle';
+import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
 import { iso } from './listing';
 
@@ -26,23 +26,13 @@ export function referenceOf(text: string): DocumentReference | null {
 
 /**
  * Admits one public check from this address, or says how long to wait. Checking is public and
- * takes uploads of up to 30 MB, so every check counts against the address (sliding window, see
- * throttle.ts); a check without a known address is admitted. Rows of this address older than the
- * window are dropped as the new one is written, so the log stays small.
+ * takes uploads of up to 30 MB, so every check counts against the address (throttle.ts, kind
+ * `verify`); a check without a known address is admitted.
  */
 export async function admitVerification(ip: string | null, knex: Knex = db()): Promise<{ admitted: true } | { admitted: false; retryAfterSeconds: number }> {
   if (!ip) return { admitted: true };
-  return knex.transaction(async (trx) => {
-    await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`verify:${ip}`]);
-    const verdict = await checkThrottle(trx, 'verify', null, ip);
-    if (verdict.throttled) return { admitted: false as const, retryAfterSeconds: verdict.retryAfterSeconds };
-    await trx('sign_in_attempts')
-      .where({ kind: 'verify', ip })
-      .andWhere('created_at', '<', trx.raw(`now() - make_interval(mins => ?)`, [verifyLimits.windowMinutes]))
-      .del();
-    await recordAttempt(trx, 'verify', null, ip, true);
-    return { admitted: true as const };
-  });
+  const verdict = await admitFromAddress(knex, 'verify', ip);
+  return verdict.throttled ? { admitted: false, retryAfterSeconds: verdict.retryAfterSeconds } : { admitted: true };
 }
 
 /** What a throttled visitor is told (API detail and page alike). */

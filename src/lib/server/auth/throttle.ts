@@ -71,6 +71,25 @@ export async function recordAttempt(knex: Knex, kind: AttemptKind, email: string
   await knex('sign_in_attempts').insert({ kind, email, ip, succeeded });
 }
 
+/**
+ * For kinds counted per address only (`verify`): admits one more event from this address, or says
+ * how long to wait. Checked and written in one transaction under a lock on the address, and the
+ * address's rows of this kind older than the window are dropped as the new one is written.
+ */
+export async function admitFromAddress(knex: Knex, kind: AttemptKind, ip: string): Promise<ThrottleVerdict> {
+  return knex.transaction(async (trx) => {
+    await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`${kind}:${ip}`]);
+    const verdict = await checkThrottle(trx, kind, null, ip);
+    if (verdict.throttled) return verdict;
+    await trx('sign_in_attempts')
+      .where({ kind, ip })
+      .andWhere('created_at', '<', trx.raw(`now() - make_interval(mins => ?)`, [limitsOf(kind).windowMinutes]))
+      .del();
+    await recordAttempt(trx, kind, null, ip, true);
+    return verdict;
+  });
+}
+
 /** "about 12 minutes" for a message a person reads. */
 export function waitInWords(seconds: number): string {
   const minutes = Math.ceil(seconds / 60);
