@@ -36,8 +36,6 @@ export interface CompiledRule {
   readonly observed: readonly FactPath[];
   /** Where each of `requires` sits in `observed` (each fact is read once per rule). */
   readonly requiresAt: readonly number[];
-  /** Which of `requires` are answers to questions (an `na` answer makes the rule not apply). */
-  readonly requiresAnswer: readonly boolean[];
   /** Where each of `appliesWhenRequires` sits in `observed`. */
   readonly appliesWhenRequiresAt: readonly number[];
   /**
@@ -137,7 +135,6 @@ function compileRule(rule: RulesetRule): CompiledRule {
     appliesWhenRequires: appliesWhenRequires.map(toPath),
     observed: observed.map(toPath),
     requiresAt: rule.requires.map((key) => indexIn(observed, key)),
-    requiresAnswer: rule.requires.map((key) => key.split('.')[0] === 'answers'),
     appliesWhenRequiresAt: appliesWhenRequires.map((key) => indexIn(observed, key)),
     // Filled in place, one slot per site: a packed array, not a sparse one.
     ratings: new Array<FindingHrn | undefined>(SITE_CODES).fill(undefined),

@@ -90,7 +90,7 @@ function pathOfProblem(value: unknown, path: string): string | null {
   return null;
 }
 
-/** Hex SHA-256 of a string's UTF-8 bytes (one-shot: no Hash object per call, which cost more than the hashing). */
+/** Hex SHA-256 of a string's UTF-8 bytes (one-shot `crypto.hash`, Node 20.12+: no Hash object per call, which cost more than the hashing). */
 export function sha256Hex(text: string): string {
   return hash('sha256', text, 'hex');
 }
