@@ -188,7 +188,8 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
   for (let i = 0; i < at.length; i++) {
     const value = values[at[i]!];
     // The auditor judged the question not to apply at this gate: so does the rule.
-    if (value === 'na' && compiledRule.requires[i]!.segments[0] === 'answers') return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
+    if (value === 'na' && compiledRule.requires[i]!.segments[0] === 'answers')
+      return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
     if (isMissing(value)) (missing ??= []).push(...explainMissing(compiledRule.requires[i]!, facts, compiled));
   }
   if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
