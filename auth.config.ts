@@ -1,11 +1,12 @@
 /**
  * Auth core configuration (auth-astro). Sessions are JWTs in an HttpOnly cookie holding only
- * the user id and their session_version; src/middleware.ts reloads the user row on every
+ * the user id, their session_version and a session id (`sid`, revoked at sign-out); src/middleware.ts reloads the user row on every
  * request, so deactivation and role changes apply at once. Two ways in, both "credentials"
  * to auth core: staff e-mail + password, and a homeowner's one-time e-mailed link (requested
  * through POST /api/auth/email-link, redeemed here). Endpoints live in
  * src/pages/api/auth/[...auth].ts, which runs auth core with the caller's address at hand.
  */
+import { randomUUID } from 'node:crypto';
 import { CredentialsSignin } from '@auth/core/errors';
 import Credentials from '@auth/core/providers/credentials';
 import { defineConfig } from 'auth-astro';
@@ -19,6 +20,8 @@ declare module '@auth/core/jwt' {
   interface JWT {
     /** users.session_version when the session was issued. */
     sessionVersion?: number;
+    /** This session's id, fixed at sign-in; signing out records it in revoked_sessions. */
+    sid?: string;
   }
 }
 
@@ -84,13 +87,14 @@ export default defineConfig({
     jwt({ token, user }) {
       if (user) {
         const sessionVersion = (user as { sessionVersion?: unknown }).sessionVersion;
-        return { sub: user.id, name: user.name, email: user.email, sessionVersion: typeof sessionVersion === 'number' ? sessionVersion : undefined };
+        return { sub: user.id, name: user.name, email: user.email, sessionVersion: typeof sessionVersion === 'number' ? sessionVersion : undefined, sid: randomUUID() };
       }
       return token;
     },
     /** GET /api/auth/session answers only while the session still holds, like every page. */
     async session({ session, token }) {
-      const current = token.sub && typeof token.sessionVersion === 'number' ? await loadSession(token.sub, token.sessionVersion) : null;
+      const current =
+        token.sub && typeof token.sessionVersion === 'number' && typeof token.sid === 'string' ? await loadSession(token.sub, token.sessionVersion, token.sid) : null;
       if (!current) return { expires: session.expires, user: undefined } as unknown as typeof session;
       return { ...session, user: { ...session.user, id: current.user.id, name: current.user.name, email: current.user.email } };
     },
@@ -98,7 +102,9 @@ export default defineConfig({
   events: {
     async signOut(message) {
       const token = 'token' in message ? message.token : null;
-      if (token?.sub) await recordSignOut(token.sub, currentSignInContext().ip);
+      if (!token?.sub) return;
+      const session = typeof token.sid === 'string' && typeof token.exp === 'number' ? { id: token.sid, expiresAt: new Date(token.exp * 1000) } : null;
+      await recordSignOut(token.sub, currentSignInContext().ip, session);
     },
   },
   logger: {

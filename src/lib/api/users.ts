@@ -56,6 +56,13 @@ export const PasswordSchema = z.string().min(PASSWORD_MIN, `must be at least ${P
 export const InvitationAcceptSchema = z.strictObject({ name: text(120), password: PasswordSchema });
 export type InvitationAccept = z.infer<typeof InvitationAcceptSchema>;
 
+/** POST /api/account/password: the person's own password, proven by the current one. */
+export const PasswordChangeSchema = z.strictObject({
+  currentPassword: z.string('is required').min(1, 'is required').max(256, 'must be at most 256 characters'),
+  newPassword: PasswordSchema,
+});
+export type PasswordChange = z.infer<typeof PasswordChangeSchema>;
+
 export interface Invitation {
   id: string;
   email: string;

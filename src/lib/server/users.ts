@@ -24,6 +24,8 @@ interface UserRow {
   created_at: Date;
 }
 
+const isUuid = (value: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(value);
+
 const columns = ['u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.client_id', 'u.last_signed_in_at', 'u.created_at'] as const;
 
 const sortColumns: Record<UserListQuery['sort']['field'], string> = {
@@ -49,12 +51,15 @@ function toUser(row: UserRow): User {
 
 /**
  * The signed-in person and their organisation, or null when the session no longer holds:
- * the user is gone or deactivated, or their session_version moved on.
+ * the user is gone or deactivated, their session_version moved on, or this session (the
+ * token's session id) was signed out.
  */
-export async function loadSession(userId: string, sessionVersion: number): Promise<{ user: SessionUser; organisation: SessionOrganisation } | null> {
+export async function loadSession(userId: string, sessionVersion: number, sessionId: string): Promise<{ user: SessionUser; organisation: SessionOrganisation } | null> {
+  if (!isUuid(sessionId) || !isUuid(userId)) return null;
   const row = await db()('users as u')
     .join('organisations as o', 'o.id', 'u.organisation_id')
     .where({ 'u.id': userId, 'u.active': true, 'u.session_version': sessionVersion })
+    .whereNotExists((q) => q.select(db().raw('1')).from('revoked_sessions as r').where('r.id', sessionId))
     .first<(OrganisationRow & { user_id: string; email: string; user_name: string; role: Role; client_id: string | null }) | undefined>(
       'u.id as user_id',
       'u.email',
