@@ -150,21 +150,37 @@ describe('staff sign-in with e-mail and password', () => {
 });
 
 describe('sign-in throttling', () => {
-  it('pauses an account after 5 failures, even for the right password, and says so', async () => {
+  it('pauses an account from an address after 5 failures there, even for the right password, and says so', async () => {
     const email = await newStaffMember('throttle-account');
-    for (let i = 0; i < 5; i++) expect((await attempt(email, `wrong-${i}-password`, someAddress())).response.status).toBe(401);
-    const { response, client } = await attempt(email, fixturePassword, someAddress());
+    const ip = someAddress();
+    for (let i = 0; i < 5; i++) expect((await attempt(email, `wrong-${i}-password`, ip)).response.status).toBe(401);
+    const { response, client } = await attempt(email, fixturePassword, ip);
     expect(response.status).toBe(429);
     expect(Number(response.headers.get('retry-after'))).toBeGreaterThan(0);
     expect((await response.json()).detail).toMatch(/Too many sign-in attempts/);
     expect(hasSession(client)).toBe(false);
 
-    const html = await attempt(email, fixturePassword, someAddress(), 'text/html');
+    const html = await attempt(email, fixturePassword, ip, 'text/html');
     const location = html.response.headers.get('location') ?? '';
     expect(new URLSearchParams(location.split('?')[1]).get('code')).toBe('throttled');
     const page = await (await fetch(new URL(location, inject('baseUrl')))).text();
     expect(page).toMatch(/Too many sign-in attempts/);
     expect(page).toMatch(/try again in about \d+ minutes/);
+  });
+
+  it("does not let a stranger's failures lock the owner out from another address", async () => {
+    const email = await newStaffMember('throttle-stranger');
+    const stranger = someAddress();
+    const owner = someAddress();
+    for (let i = 0; i < 6; i++) await attempt(email, `stranger-guess-${i}`, stranger);
+    const ownerSignIn = await attempt(email, fixturePassword, owner);
+    expect(hasSession(ownerSignIn.client)).toBe(true);
+    // The owner's success elsewhere does not reopen the stranger's address for this account.
+    const again = await attempt(email, fixturePassword, stranger);
+    expect(again.response.status).toBe(429);
+    expect(hasSession(again.client)).toBe(false);
+    const throttled = await testDb()('audit_events').where({ action: 'sign_in.throttled' }).whereRaw("detail->>'email' = ?", [email]).select('ip', 'detail');
+    expect(throttled.map((e) => [e.ip, e.detail.scope])).toEqual([[stranger, 'account']]);
   });
 
   it('throttles per account: another account from the same address still signs in', async () => {

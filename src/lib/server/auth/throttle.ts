@@ -3,8 +3,10 @@
  * window: once an account (or an address) has N counted events in the last 15 minutes, it
  * waits until the oldest of those N leaves the window.
  *
- * - Password sign-ins count failures; a success resets the account's count (not the address's,
- *   so signing in to one's own account cannot unlock guessing at others).
+ * - Password sign-ins count failures per (account, address) pair and per address. A stranger's
+ *   guesses therefore pause the stranger, not the owner signing in from elsewhere. A success
+ *   resets its pair's count (not the address's, so signing in to one's own account cannot
+ *   unlock guessing at others).
  * - Link requests count every request, so nobody can flood a homeowner's inbox.
  * - Public report checks (`verify`) count every check, per address only.
  */
@@ -18,7 +20,10 @@ export interface ThrottleLimits {
   perAddress: number;
 }
 
-/** Common practice (OWASP authentication cheat sheet: lock out after a few failures), no fixed standard. */
+/**
+ * Common practice (OWASP authentication cheat sheet: slow down after a few failures), no fixed
+ * standard. For passwords `perAccount` counts per account and address together.
+ */
 export const passwordLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
 export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
 /**
@@ -53,7 +58,12 @@ export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string
   if (email && limits.perAccount > 0) {
     const account = knex('sign_in_attempts').where({ kind, email });
     if (kind === 'password') {
-      account.where('succeeded', false).andWhere('created_at', '>', knex.raw(`coalesce((select max(created_at) from sign_in_attempts where kind = 'password' and email = ? and succeeded), '-infinity')`, [email]));
+      // Counted per account *and* address: a stranger's wrong guesses pause only the stranger,
+      // never the owner signing in from elsewhere. A success resets that pair's count.
+      const sameAddress = (q: Knex.QueryBuilder) => (ip ? q.where('ip', ip) : q.whereNull('ip'));
+      sameAddress(account);
+      const lastSuccess = sameAddress(knex('sign_in_attempts').where({ kind: 'password', email, succeeded: true })).max('created_at');
+      account.where('succeeded', false).andWhere('created_at', '>', knex.raw(`coalesce((?), '-infinity')`, [lastSuccess]));
     }
     const hit = verdict('account', await freedAt(knex, account, limits.perAccount, limits.windowMinutes));
     if (hit) return hit;
