@@ -102,6 +102,7 @@ const matrix: Row[] = [
   row('invitations/index',           'GET',    () => ({ path: '/api/invitations' }),                                                  s(200, 403, 403, 403, 401, 200)),
   row('invitations/index',           'POST',   (t) => ({ path: '/api/invitations', body: { email: t.uniqueEmail('invitee'), role: 'auditor' } }), s(201, 403, 403, 403, 401, 201)),
   row('invitations/[token]/accept',  'POST',   () => ({ path: '/api/invitations/no-such-token/accept', body: { name: 'Nobody', password: 'long-enough-pass' } }), s(404, 404, 404, 404, 404, 404)),
+  row('account/password',            'POST',   () => ({ path: '/api/account/password', body: {} }),                                  s(422, 422, 422, 403, 401, 422)),
 
   row('clients/index',               'GET',    () => ({ path: '/api/clients' }),                                                      s(200, 200, 200, 200, 401, 200)),
   row('clients/index',               'POST',   () => ({ path: '/api/clients', body: { name: 'Matrix Client', kind: 'business' } }),   s(201, 201, 201, 403, 401, 201)),

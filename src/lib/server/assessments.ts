@@ -296,9 +296,16 @@ export async function patchAssessment(viewer: SessionUser, id: string, expectedV
   return getAssessment(viewer, id, knex);
 }
 
-/** Discards a draft (and only a draft); audited. */
+/**
+ * Discards a draft (and only a draft); audited. A discarded revision puts the report it was
+ * to replace back to signed (the database allows superseded -> signed only once no revision
+ * names it), so a report is never left superseded with nothing in its place.
+ */
 export async function discardAssessment(viewer: SessionUser, id: string, request: RequestFacts): Promise<boolean> {
   return db().transaction(async (trx) => {
+    // Locked first, so the status checked below is the one the delete sees.
+    const draft = await trx('assessments').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('supersedes_id');
+    if (!draft) return false;
     const current = await getAssessment(viewer, id, trx);
     if (!current) return false;
     assertEditable(viewer, current, undefined);
@@ -308,16 +315,28 @@ export async function discardAssessment(viewer: SessionUser, id: string, request
       if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION) throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
       throw error;
     }
+    const actor = { organisationId: viewer.organisationId, actorUserId: viewer.id, actorLabel: viewer.email, ip: request.ip };
     await recordAudit(trx, {
-      organisationId: viewer.organisationId,
-      actorUserId: viewer.id,
-      actorLabel: viewer.email,
+      ...actor,
       action: 'assessment.discarded',
       entityType: 'assessment',
       entityId: id,
-      ip: request.ip,
-      detail: { gateId: current.gate.id, rowVersion: current.rowVersion },
+      detail: { gateId: current.gate.id, rowVersion: current.rowVersion, ...(draft.supersedes_id ? { supersedesId: draft.supersedes_id } : {}) },
     });
+    if (draft.supersedes_id) {
+      const restored = await trx('assessments')
+        .where({ id: draft.supersedes_id, organisation_id: viewer.organisationId, status: 'superseded' })
+        .update({ status: 'signed', updated_at: trx.fn.now() });
+      if (restored > 0) {
+        await recordAudit(trx, {
+          ...actor,
+          action: 'assessment.revision_discarded',
+          entityType: 'assessment',
+          entityId: draft.supersedes_id,
+          detail: { discardedRevisionId: id, restoredStatus: 'signed' },
+        });
+      }
+    }
     return true;
   });
 }

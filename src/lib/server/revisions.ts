@@ -2,6 +2,8 @@
  * Corrections to a signed assessment: the signed one stays as it is (the database refuses
  * any other change) and becomes `superseded`; a new draft copies its answers, measurements,
  * observations, photos and force traces, and points back at it through supersedes_id.
+ * Owner and office may revise any report, an auditor only their own. Discarding the draft
+ * revision (`discardAssessment`) puts the original back to signed.
  */
 import type { Knex } from 'knex';
 import { recordAudit } from './audit';
@@ -39,6 +41,10 @@ export async function reviseAssessment(
       .forUpdate()
       .first('id', 'status', 'gate_id', 'ruleset_version_id', 'auditor_id', 'purpose', 'answers', 'measurements', 'observations', 'visited_on');
     if (!old) throw new HttpProblem(404, 'That assessment was not found.');
+    // Owner and office revise any report; an auditor only a report they walked themselves.
+    if (viewer.role === 'auditor' && old.auditor_id !== viewer.id) {
+      throw new HttpProblem(403, "This is another auditor's report; only they, the office or the owner may revise it.");
+    }
     if (old.status === 'superseded') throw new HttpProblem(409, 'This assessment already has a newer revision.');
     if (old.status !== 'signed')
       throw new HttpProblem(409, `Only a signed assessment is revised; this one is ${old.status.replace(/_/g, ' ')} and can be changed directly.`);
