@@ -29,7 +29,7 @@ afterAll(async () => {
 
 /** A request with only the given cookie, as someone who copied it would send. */
 function withCookie(cookie: string, path: string) {
-  return fetch(`${baseUrl}${path}`, { headers: { cookie, accept: 'application/json' } });
+  return fetch(`${baseUrl}${path}`, { headers: { cookie, accept: 'application/json' }, redirect: 'manual' });
 }
 
 async function navSignOut(client: TestClient) {

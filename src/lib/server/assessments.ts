@@ -203,8 +203,8 @@ export interface RequestFacts {
 }
 
 /** Starts a draft pinned to the family's current published version; audited. */
-export async function createAssessment(viewer: SessionUser, input: AssessmentCreate, request: RequestFacts): Promise<Assessment> {
-  return db().transaction(async (trx) => {
+export async function createAssessment(viewer: SessionUser, input: AssessmentCreate, request: RequestFacts, knex: Knex = db()): Promise<Assessment> {
+  return knex.transaction(async (trx) => {
     const gate = await trx('gates').where({ id: input.gateId, organisation_id: viewer.organisationId }).forShare().first('id');
     if (!gate) throw invalid('gateId', 'no such gate in this organisation');
     const auditorId = await resolveAuditor(trx, viewer, input.auditorId);

@@ -75,8 +75,8 @@ export async function getClient(viewer: SessionUser, id: string, knex: Knex = db
   return row ? toClient(row) : null;
 }
 
-export async function createClient(viewer: SessionUser, input: ClientCreate): Promise<Client> {
-  const [row] = await db()('clients')
+export async function createClient(viewer: SessionUser, input: ClientCreate, knex: Knex = db()): Promise<Client> {
+  const [row] = await knex('clients')
     .insert({ ...toRow(input), organisation_id: viewer.organisationId })
     .returning<ClientRow[]>(returnedColumns);
   return toClient(row as ClientRow);

@@ -146,8 +146,8 @@ async function assertSiteInOrganisation(knex: Knex, viewer: SessionUser, siteId:
   if (!site) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'siteId', message: 'no such site in this organisation' }] });
 }
 
-export async function createGate(viewer: SessionUser, input: GateCreate): Promise<Gate> {
-  return db().transaction(async (trx) => {
+export async function createGate(viewer: SessionUser, input: GateCreate, knex: Knex = db()): Promise<Gate> {
+  return knex.transaction(async (trx) => {
     await assertSiteInOrganisation(trx, viewer, input.siteId);
     const [{ id }] = await trx('gates')
       .insert({ operator: '{}', ...toRow(input), organisation_id: viewer.organisationId })

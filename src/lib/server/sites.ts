@@ -128,8 +128,8 @@ async function assertClientInOrganisation(knex: Knex, viewer: SessionUser, clien
   if (!client) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'clientId', message: 'no such client in this organisation' }] });
 }
 
-export async function createSite(viewer: SessionUser, input: SiteCreate): Promise<Site> {
-  return db().transaction(async (trx) => {
+export async function createSite(viewer: SessionUser, input: SiteCreate, knex: Knex = db()): Promise<Site> {
+  return knex.transaction(async (trx) => {
     await assertClientInOrganisation(trx, viewer, input.clientId);
     const [{ id }] = await trx('sites')
       .insert({ ...toRow(input), organisation_id: viewer.organisationId })

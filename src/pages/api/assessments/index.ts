@@ -4,6 +4,7 @@ import { createAssessment, listAssessments } from '@/lib/server/assessments';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
+import { withIdempotency } from '@/lib/server/http/idempotency';
 import { etagOf } from '@/lib/server/http/row-version';
 import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 
@@ -13,13 +14,18 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
   return Response.json(await listAssessments(user, organisation.timeZone, parseQuery(AssessmentListQuerySchema, url)));
 });
 
-/** Starts a draft on a gate, pinned to the family's current published ruleset version. */
+/**
+ * Starts a draft on a gate, pinned to the family's current published ruleset version. An
+ * `Idempotency-Key` header makes a retry answer the first response instead of a second draft.
+ */
 export const POST: APIRoute = handle(async (context) => {
   const { user } = requireRole(context.locals, ...assessmentWorkers);
-  const input = await parseBody(AssessmentCreateSchema, context.request);
-  const created = await createAssessment(user, input, { ip: clientAddressOf(context) });
-  return Response.json(created, {
-    status: 201,
-    headers: { location: `/api/assessments/${created.id}`, etag: etagOf(created.rowVersion) },
+  return withIdempotency(user, context.request, async (knex, request) => {
+    const input = await parseBody(AssessmentCreateSchema, request);
+    const created = await createAssessment(user, input, { ip: clientAddressOf(context) }, knex);
+    return Response.json(created, {
+      status: 201,
+      headers: { location: `/api/assessments/${created.id}`, etag: etagOf(created.rowVersion) },
+    });
   });
 });

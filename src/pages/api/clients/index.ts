@@ -3,6 +3,7 @@ import { ClientCreateSchema, ClientListQuerySchema } from '@/lib/api/clients';
 import { createClient, listClients } from '@/lib/server/clients';
 import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
+import { withIdempotency } from '@/lib/server/http/idempotency';
 import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 
 /** The organisation's clients, filtered, sorted and paged (a homeowner sees only their own client's). */
@@ -11,8 +12,11 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
   return Response.json(await listClients(user, parseQuery(ClientListQuerySchema, url)));
 });
 
+/** Creates one; an `Idempotency-Key` header makes a retry answer the first response instead of creating again. */
 export const POST: APIRoute = handle(async ({ locals, request }) => {
   const { user } = requireRole(locals, ...directoryWriters);
-  const created = await createClient(user, await parseBody(ClientCreateSchema, request));
-  return Response.json(created, { status: 201, headers: { location: `/api/clients/${created.id}` } });
+  return withIdempotency(user, request, async (knex, body) => {
+    const created = await createClient(user, await parseBody(ClientCreateSchema, body), knex);
+    return Response.json(created, { status: 201, headers: { location: `/api/clients/${created.id}` } });
+  });
 });

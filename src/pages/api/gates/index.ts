@@ -3,6 +3,7 @@ import { GateCreateSchema, GateListQuerySchema } from '@/lib/api/gates';
 import { createGate, listGates } from '@/lib/server/gates';
 import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
+import { withIdempotency } from '@/lib/server/http/idempotency';
 import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 
 /** The organisation's gates, filtered, sorted and paged (a homeowner sees only their own client's). */
@@ -11,8 +12,11 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
   return Response.json(await listGates(user, parseQuery(GateListQuerySchema, url)));
 });
 
+/** Creates one; an `Idempotency-Key` header makes a retry answer the first response instead of creating again. */
 export const POST: APIRoute = handle(async ({ locals, request }) => {
   const { user } = requireRole(locals, ...directoryWriters);
-  const created = await createGate(user, await parseBody(GateCreateSchema, request));
-  return Response.json(created, { status: 201, headers: { location: `/api/gates/${created.id}` } });
+  return withIdempotency(user, request, async (knex, body) => {
+    const created = await createGate(user, await parseBody(GateCreateSchema, body), knex);
+    return Response.json(created, { status: 201, headers: { location: `/api/gates/${created.id}` } });
+  });
 });

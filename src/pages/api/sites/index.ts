@@ -3,6 +3,7 @@ import { SiteCreateSchema, SiteListQuerySchema } from '@/lib/api/sites';
 import { createSite, listSites } from '@/lib/server/sites';
 import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
+import { withIdempotency } from '@/lib/server/http/idempotency';
 import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 
 /** The organisation's sites, filtered, sorted and paged (a homeowner sees only their own client's). */
@@ -11,8 +12,11 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
   return Response.json(await listSites(user, parseQuery(SiteListQuerySchema, url)));
 });
 
+/** Creates one; an `Idempotency-Key` header makes a retry answer the first response instead of creating again. */
 export const POST: APIRoute = handle(async ({ locals, request }) => {
   const { user } = requireRole(locals, ...directoryWriters);
-  const created = await createSite(user, await parseBody(SiteCreateSchema, request));
-  return Response.json(created, { status: 201, headers: { location: `/api/sites/${created.id}` } });
+  return withIdempotency(user, request, async (knex, body) => {
+    const created = await createSite(user, await parseBody(SiteCreateSchema, body), knex);
+    return Response.json(created, { status: 201, headers: { location: `/api/sites/${created.id}` } });
+  });
 });
