@@ -66,14 +66,14 @@ export async function patchAssessment(id: string, rowVersion: number, patch: Jso
 
 export async function uploadPhoto(
   assessmentId: string,
-  photo: { clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob },
+  photo: { idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob },
 ): Promise<Answer<PhotoRecord>> {
   const form = new FormData();
   form.set('clientRef', photo.clientRef);
   form.set('itemKey', photo.itemKey);
   if (photo.takenAt) form.set('takenAt', photo.takenAt);
   form.set('photo', photo.blob, photo.fileName);
-  return answer(await call(`/api/assessments/${assessmentId}/photos`, { method: 'POST', body: form }));
+  return answer(await call(`/api/assessments/${assessmentId}/photos`, { method: 'POST', headers: { 'idempotency-key': photo.idempotencyKey }, body: form }));
 }
 
 export async function removePhoto(assessmentId: string, photoId: string): Promise<Answer<null>> {
@@ -83,6 +83,7 @@ export async function removePhoto(assessmentId: string, photoId: string): Promis
 export async function uploadTrace(
   assessmentId: string,
   trace: { clientRef: string; itemKey: string; fileName: string; csv: string; location: string; direction: string; gapMm: number },
+  idempotencyKey: string,
 ): Promise<Answer<TraceRecord>> {
   const query = new URLSearchParams({
     clientRef: trace.clientRef,
@@ -93,7 +94,7 @@ export async function uploadTrace(
     gapMm: String(trace.gapMm),
   });
   return answer(
-    await call(`/api/assessments/${assessmentId}/force-traces?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: trace.csv }),
+    await call(`/api/assessments/${assessmentId}/force-traces?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv', 'idempotency-key': idempotencyKey }, body: trace.csv }),
   );
 }
 

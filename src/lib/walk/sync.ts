@@ -14,11 +14,16 @@ import { composeMergePatches, type JsonObject } from './merge-patch';
 import * as outbox from './outbox';
 import type { OutboxOp, OutboxOpBody } from './outbox';
 
-/** One request the sync loop makes; the React side runs these through a react-query mutation. */
+/**
+ * One request the sync loop makes; the React side runs these through a react-query mutation.
+ * A create (photo, trace) carries the `Idempotency-Key` of its queued edit: the edit's own
+ * device id, stored with it in the outbox, so every retry of one edit sends the same key and
+ * a retry after a lost answer never makes a second row.
+ */
 export type SendJob =
   | { kind: 'patch'; assessmentId: string; rowVersion: number; patch: JsonObject }
-  | { kind: 'photo'; assessmentId: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob }
-  | { kind: 'trace'; assessmentId: string; op: Extract<OutboxOpBody, { kind: 'trace' }> }
+  | { kind: 'photo'; assessmentId: string; idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob }
+  | { kind: 'trace'; assessmentId: string; idempotencyKey: string; op: Extract<OutboxOpBody, { kind: 'trace' }> }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
 export type Sender = (job: SendJob) => Promise<Answer<unknown>>;
@@ -31,7 +36,7 @@ export const sendDirect: Sender = (job) => {
     case 'photo':
       return api.uploadPhoto(job.assessmentId, job);
     case 'trace':
-      return api.uploadTrace(job.assessmentId, job.op);
+      return api.uploadTrace(job.assessmentId, job.op, job.idempotencyKey);
     case 'removePhoto':
       return api.removePhoto(job.assessmentId, job.serverId);
     case 'removeTrace':
@@ -390,6 +395,7 @@ export class WalkSync {
       result = await this.sender({
         kind: 'photo',
         assessmentId: id,
+        idempotencyKey: head.clientRef,
         clientRef: head.clientRef,
         itemKey: head.itemKey,
         takenAt: head.takenAt,
@@ -399,7 +405,7 @@ export class WalkSync {
       if (result.ok) this.set({ photos: [...this.state.photos.filter((p) => p.clientRef !== head.clientRef), result.value as PhotoRecord] });
     } else if (head.kind === 'trace') {
       const { seq: _s, assessmentId: _a, createdAt: _c, ...op } = head;
-      result = await this.sender({ kind: 'trace', assessmentId: id, op });
+      result = await this.sender({ kind: 'trace', assessmentId: id, idempotencyKey: head.clientRef, op });
       if (result.ok) this.set({ traces: [...this.state.traces.filter((t) => t.clientRef !== head.clientRef), result.value as TraceRecord] });
     } else {
       result = head.serverId ? await this.sender({ kind: head.kind, assessmentId: id, serverId: head.serverId }) : { ok: true, value: null };

@@ -202,3 +202,53 @@ describe('the device outbox', () => {
     after.stop();
   });
 });
+
+describe('creates from the device outbox', () => {
+  const traceOp = (clientRef: string) => ({
+    kind: 'trace' as const,
+    clientRef,
+    itemKey: 'forceTest',
+    fileName: 'closing.csv',
+    csv: 'time (s),force (N)\n0,0',
+    location: 'closing_edge',
+    direction: 'closing' as const,
+    gapMm: 50,
+  });
+
+  it('sends one Idempotency-Key per queued create and the same key again on every retry', async () => {
+    const server = fakeServer();
+    const sync = await open(newId(), server);
+    server.state.offline = true;
+    await sync.addPhoto({ clientRef: '22222222-2222-4222-8222-222222222222', itemKey: 'closingEdge', fileName: 'a.jpg', takenAt: null }, new Blob(['a']));
+    await sync.addTrace(traceOp('33333333-3333-4333-8333-333333333333'));
+    await sync.flush();
+    await sync.flush();
+    server.state.offline = false;
+    await sync.flush();
+    const keysOf = (kind: 'photo' | 'trace') => server.calls.flatMap((c) => (c.kind === kind ? [c.idempotencyKey] : []));
+    // Tries that got no answer, then the one that went through: always the same key for one edit.
+    expect(keysOf('photo').length).toBeGreaterThanOrEqual(2);
+    expect(new Set(keysOf('photo'))).toEqual(new Set(['22222222-2222-4222-8222-222222222222']));
+    expect(new Set(keysOf('trace'))).toEqual(new Set(['33333333-3333-4333-8333-333333333333']));
+    expect(sync.getState().pendingCount).toBe(0);
+    sync.stop();
+  });
+
+  it('puts the key on the wire as the Idempotency-Key header', async () => {
+    const seen: Headers[] = [];
+    const realFetch = globalThis.fetch;
+    globalThis.fetch = (async (_input: RequestInfo | URL, init?: RequestInit) => {
+      seen.push(new Headers(init?.headers));
+      return new Response('{}', { status: 201, headers: { 'content-type': 'application/json' } });
+    }) as typeof fetch;
+    try {
+      const { sendDirect } = await import('@/lib/walk/sync');
+      const key = '44444444-4444-4444-8444-444444444444';
+      await sendDirect({ kind: 'trace', assessmentId: newId(), idempotencyKey: key, op: traceOp(key) });
+      await sendDirect({ kind: 'photo', assessmentId: newId(), idempotencyKey: key, clientRef: key, itemKey: 'closingEdge', takenAt: null, fileName: 'a.jpg', blob: new Blob(['a']) });
+    } finally {
+      globalThis.fetch = realFetch;
+    }
+    expect(seen.map((h) => h.get('idempotency-key'))).toEqual(['44444444-4444-4444-8444-444444444444', '44444444-4444-4444-8444-444444444444']);
+  });
+});

@@ -137,3 +137,20 @@ export async function withIdempotency(
     throw error;
   }
 }
+
+/**
+ * Photo and force-trace uploads are made idempotent by the device's own id for the file
+ * (`clientRef`, unique per assessment in the database), so their `Idempotency-Key` must be
+ * that id: the header stands in for a missing `clientRef`, and one that names another file is
+ * refused. (Their bodies cannot be fingerprinted: a multipart boundary changes on every retry.)
+ */
+export function uploadClientRef(request: Request, bodyRef: string | undefined, pattern: RegExp): string | null {
+  const key = idempotencyKeyOf(request);
+  const ref = bodyRef?.toLowerCase() ?? null;
+  if (key === null) return ref;
+  if (!pattern.test(key)) throw headerProblem(422, `The ${idempotencyHeader} of an upload is the device's id for the file.`, 'must be a UUID (the upload\'s clientRef)');
+  if (ref !== null && ref !== key.toLowerCase()) {
+    throw headerProblem(422, `The ${idempotencyHeader} and clientRef name different files.`, 'must equal clientRef when both are sent');
+  }
+  return key.toLowerCase();
+}

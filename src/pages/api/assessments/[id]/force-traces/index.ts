@@ -4,6 +4,7 @@ import { idFromPath } from '@/lib/api/common';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { addTrace, listTraces } from '@/lib/server/force-traces';
 import { found, requireRole } from '@/lib/server/http/guard';
+import { uploadClientRef, replayedHeader } from '@/lib/server/http/idempotency';
 import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
 import { MAX_TRACE_CSV_BYTES, megabytes, TRACE_LOCATIONS } from '@/lib/walk/records';
 import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/walk/upload-fields';
@@ -42,7 +43,8 @@ async function readCsv(request: Request): Promise<string> {
 
 /**
  * Uploads one force-meter CSV (the body) for a measuring point named in the query. 201 with
- * the samples and evaluation; 422 naming the line when the file cannot be read.
+ * the samples and evaluation; 422 naming the line when the file cannot be read. The same
+ * `clientRef` (or `Idempotency-Key`, taken as it) again answers 200 with the first trace.
  */
 export const POST: APIRoute = handle(async ({ locals, params, request, url }) => {
   const { user } = requireRole(locals, ...assessmentWorkers);
@@ -50,7 +52,7 @@ export const POST: APIRoute = handle(async ({ locals, params, request, url }) =>
   const query = parseQuery(TraceQuerySchema, url);
   const csv = await readCsv(request);
   const { trace, created } = await addTrace(user, id, {
-    clientRef: query.clientRef?.toLowerCase() ?? null,
+    clientRef: uploadClientRef(request, query.clientRef, CLIENT_REF_PATTERN),
     itemKey: query.itemKey,
     fileName: query.fileName || null,
     location: query.location,
@@ -58,5 +60,5 @@ export const POST: APIRoute = handle(async ({ locals, params, request, url }) =>
     gapMm: query.gapMm,
     csv,
   });
-  return Response.json(trace, { status: created ? 201 : 200 });
+  return Response.json(trace, { status: created ? 201 : 200, headers: created ? {} : { [replayedHeader]: 'true' } });
 });

@@ -4,6 +4,7 @@ import { idFromPath } from '@/lib/api/common';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { readMultipart } from '@/lib/server/http/multipart';
+import { uploadClientRef, replayedHeader } from '@/lib/server/http/idempotency';
 import { handle, HttpProblem, parseValue } from '@/lib/server/http/problem';
 import { addPhoto, listPhotos } from '@/lib/server/photos';
 import { MAX_PHOTO_BYTES, tooLargeProblem } from '@/lib/server/photos/process';
@@ -27,7 +28,8 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
 
 /**
  * Uploads one photo (multipart: `photo` plus `itemKey`, optional `clientRef`, `takenAt`,
- * `caption`). 201 when stored, 200 when the same `clientRef` was stored before.
+ * `caption`). 201 when stored, 200 when the same `clientRef` was stored before (marked
+ * `Idempotent-Replayed`). An `Idempotency-Key` header is taken as the `clientRef`.
  */
 export const POST: APIRoute = handle(async ({ locals, params, request }) => {
   const { user } = requireRole(locals, ...assessmentWorkers);
@@ -39,11 +41,11 @@ export const POST: APIRoute = handle(async ({ locals, params, request }) => {
   const fields = parseValue(PhotoFieldsSchema, Object.fromEntries([...form.entries()].filter(([key, value]) => key !== 'photo' && typeof value === 'string')));
   const { photo, created } = await addPhoto(user, id, {
     itemKey: fields.itemKey,
-    clientRef: fields.clientRef?.toLowerCase() ?? null,
+    clientRef: uploadClientRef(request, fields.clientRef, CLIENT_REF_PATTERN),
     caption: fields.caption || null,
     takenAt: fields.takenAt ? new Date(fields.takenAt) : null,
     fileName: file.name ? file.name.slice(0, 200) : null,
     bytes: Buffer.from(await file.arrayBuffer()),
   });
-  return Response.json(photo, { status: created ? 201 : 200, headers: { location: photo.displayUrl } });
+  return Response.json(photo, { status: created ? 201 : 200, headers: { location: photo.displayUrl, ...(created ? {} : { [replayedHeader]: 'true' }) } });
 });
