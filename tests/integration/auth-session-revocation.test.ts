@@ -55,7 +55,11 @@ describe('signing out ends the session on the server', () => {
     const page = await withCookie(copied, '/clients');
     expect(page.status).toBe(302);
     expect(page.headers.get('location')).toMatch(/^\/signin\?next=/);
-    expect(page.headers.getSetCookie().some((c) => /authjs\.session-token=;/.test(c) || /authjs\.session-token=[^;]*;.*(Max-Age=0|Expires=Thu, 01 Jan 1970)/i.test(c))).toBe(true);
+    expect(
+      page.headers
+        .getSetCookie()
+        .some((c) => /authjs\.session-token=;/.test(c) || /authjs\.session-token=[^;]*;.*(Max-Age=0|Expires=Thu, 01 Jan 1970)/i.test(c)),
+    ).toBe(true);
 
     expect((await phone.json('GET', '/api/organisation')).status).toBe(200);
     const revoked = await testDb()('revoked_sessions').where({ user_id: fresh.office.id }).select('expires_at');
@@ -68,7 +72,11 @@ describe('signing out ends the session on the server', () => {
     const auditor = await signIn(fresh.auditor.email, fixturePassword);
     const copied = auditor.cookie;
     const { csrfToken } = await (await auditor.fetch('/api/auth/csrf')).json();
-    const res = await auditor.fetch('/api/auth/signout', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams({ csrfToken }) });
+    const res = await auditor.fetch('/api/auth/signout', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ csrfToken }),
+    });
     expect(res.status).toBeGreaterThanOrEqual(300);
     expect(hasSession(auditor)).toBe(false);
     expect((await withCookie(copied, '/api/organisation')).status).toBe(401);
@@ -139,7 +147,8 @@ describe('changing one’s own password', () => {
   it('counts wrong current passwords like failed sign-ins: the sixth try is 429', async () => {
     const fresh = await createOrganisation('password-guess');
     const auditor = await signIn(fresh.auditor2.email, fixturePassword);
-    for (let i = 0; i < 5; i++) expect((await changePassword(auditor, { currentPassword: `guess-${i}-password`, newPassword: 'another-pass-2027' })).status).toBe(422);
+    for (let i = 0; i < 5; i++)
+      expect((await changePassword(auditor, { currentPassword: `guess-${i}-password`, newPassword: 'another-pass-2027' })).status).toBe(422);
     const sixth = await changePassword(auditor, { currentPassword: fixturePassword, newPassword: 'another-pass-2027' });
     expect(sixth.status).toBe(429);
     expect(Number(sixth.headers.get('retry-after'))).toBeGreaterThan(0);

@@ -97,7 +97,9 @@ describe('Idempotency-Key on POST /api/clients', () => {
     expect((await post(office, '/api/clients', { name, kind: 'business' }, key)).status).toBe(201);
     const stored = await testDb()('idempotency_keys').where({ user_id: org.office.id, key }).first('expires_at', 'created_at');
     expect(new Date(stored.expires_at).getTime() - new Date(stored.created_at).getTime()).toBe(24 * 3600_000);
-    await testDb()('idempotency_keys').where({ user_id: org.office.id, key }).update({ expires_at: testDb().raw("now() - interval '1 second'") });
+    await testDb()('idempotency_keys')
+      .where({ user_id: org.office.id, key })
+      .update({ expires_at: testDb().raw("now() - interval '1 second'") });
     const again = await post(office, '/api/clients', { name, kind: 'business' }, key);
     expect(again.status).toBe(201);
     expect(again.headers.get('idempotent-replayed')).toBeNull();
@@ -125,8 +127,16 @@ describe('Idempotency-Key on POST /api/clients', () => {
 
 describe('Idempotency-Key on the other creates', () => {
   const cases = [
-    { path: '/api/sites', table: 'sites', body: () => ({ clientId: dir.clientId, addressLine1: `${randomUUID().slice(0, 8)} Retry Road`, city: 'Eastholm', usageClass: 1 }) },
-    { path: '/api/gates', table: 'gates', body: () => ({ siteId: dir.siteId, label: `Retry gate ${randomUUID().slice(0, 8)}`, kind: 'slide', leaves: 'single' }) },
+    {
+      path: '/api/sites',
+      table: 'sites',
+      body: () => ({ clientId: dir.clientId, addressLine1: `${randomUUID().slice(0, 8)} Retry Road`, city: 'Eastholm', usageClass: 1 }),
+    },
+    {
+      path: '/api/gates',
+      table: 'gates',
+      body: () => ({ siteId: dir.siteId, label: `Retry gate ${randomUUID().slice(0, 8)}`, kind: 'slide', leaves: 'single' }),
+    },
     { path: '/api/assessments', table: 'assessments', body: () => ({ gateId: dir.gateId, family, purpose: 'inspection' }) },
   ] as const;
   for (const c of cases) {
@@ -148,10 +158,17 @@ describe('Idempotency-Key on the other creates', () => {
 });
 
 describe('uploads take the key as the device id of the file', () => {
-  const csv = ['time (s),force (N)', ...Array.from({ length: 3001 }, (_, i) => `${(i / 500).toFixed(3)},${(i < 200 ? i * 1.4 : Math.max(20, 280 - (i - 200) * 0.8)).toFixed(1)}`)].join('\n');
+  const csv = [
+    'time (s),force (N)',
+    ...Array.from({ length: 3001 }, (_, i) => `${(i / 500).toFixed(3)},${(i < 200 ? i * 1.4 : Math.max(20, 280 - (i - 200) * 0.8)).toFixed(1)}`),
+  ].join('\n');
   const query = 'itemKey=forceTest&location=closing_edge&direction=closing&gapMm=50';
   const upload = (draftId: string, key: string, extra = '') =>
-    auditor.fetch(`/api/assessments/${draftId}/force-traces?${query}${extra}`, { method: 'POST', headers: { 'content-type': 'text/csv', 'idempotency-key': key }, body: csv });
+    auditor.fetch(`/api/assessments/${draftId}/force-traces?${query}${extra}`, {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv', 'idempotency-key': key },
+      body: csv,
+    });
 
   it('stores one force trace for a retried upload and marks the replay', async () => {
     const version = await currentVersion(family);

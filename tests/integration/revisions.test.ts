@@ -17,9 +17,7 @@ beforeAll(async () => {
   dir = await seedDirectory(org);
   const [family] = await publishedFamilies();
   versionId = (await currentVersion(family as string)).id;
-  const [owner, office, auditor, auditor2] = await Promise.all(
-    [org.owner, org.office, org.auditor, org.auditor2].map((p) => signIn(p.email, fixturePassword)),
-  );
+  const [owner, office, auditor, auditor2] = await Promise.all([org.owner, org.office, org.auditor, org.auditor2].map((p) => signIn(p.email, fixturePassword)));
   clients = { owner, office, auditor, auditor2 };
 });
 afterAll(async () => {
@@ -41,7 +39,7 @@ function signedReport(): Promise<string> {
 const statusOf = async (id: string) => (await testDb()('assessments').where({ id }).first('status'))?.status;
 
 describe('starting a revision of a signed report', () => {
-  it("refuses another auditor with 403 and leaves the report signed, with no draft made", async () => {
+  it('refuses another auditor with 403 and leaves the report signed, with no draft made', async () => {
     const id = await signedReport();
     const res = await clients.auditor2.json('POST', `/api/assessments/${id}/revise`, {});
     expect(res.status).toBe(403);
@@ -70,7 +68,9 @@ describe('discarding a draft revision', () => {
     expect(res.status).toBe(204);
     expect(await statusOf(revision.id)).toBeUndefined();
     expect(await statusOf(id)).toBe('signed');
-    const events = await testDb()('audit_events').where({ organisation_id: org.id, action: 'assessment.revision_discarded', entity_id: id }).select('actor_user_id', 'detail');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: org.id, action: 'assessment.revision_discarded', entity_id: id })
+      .select('actor_user_id', 'detail');
     expect(events).toEqual([{ actor_user_id: org.auditor.id, detail: { discardedRevisionId: revision.id, restoredStatus: 'signed' } }]);
     // The restored report can be revised again.
     expect((await clients.office.json('POST', `/api/assessments/${id}/revise`, {})).status).toBe(201);

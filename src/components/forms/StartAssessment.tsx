@@ -1,6 +1,7 @@
 /** Starts a draft assessment of one gate, pinned to the chosen family's current version, and opens its walk-through. */
 import { useId, useState } from 'react';
 import type { Assessment } from '@/lib/api/assessments';
+import { createKey } from '@/lib/create-key';
 
 interface Props {
   gateId: string;
@@ -24,11 +25,15 @@ export default function StartAssessment({ gateId, families }: Props) {
     setBusy(true);
     setMessage(null);
     try {
+      const text = JSON.stringify({ gateId, family, purpose });
+      // A retry after a lost answer (or a double tap) reuses the key, so it never starts two drafts.
+      const create = createKey('/api/assessments', text);
       const response = await fetch('/api/assessments', {
         method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
-        body: JSON.stringify({ gateId, family, purpose }),
+        headers: { 'content-type': 'application/json', accept: 'application/json', 'idempotency-key': create.key },
+        body: text,
       });
+      if (response.ok) create.done();
       const body = await response.json().catch(() => null);
       if (!response.ok) throw new Error(body?.detail ?? `The server answered ${response.status}.`);
       window.location.assign(`/assessments/${(body as Assessment).id}/walk`);

@@ -7,6 +7,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useId, type ReactNode } from 'react';
 import type { FieldValues, Path, Resolver, UseFormSetError } from 'react-hook-form';
 import type { z } from 'zod';
+import { createKey } from '@/lib/create-key';
 
 /** Empty strings and NaN become "not given", so optional fields stay optional. */
 export function withoutBlanks(value: unknown): unknown {
@@ -41,15 +42,20 @@ export interface SendResult<T> {
   message: string | null;
 }
 
-/** Sends JSON; a 422 puts each field's message on the form (and returns ok: false). */
+/** Sends JSON (a POST with an Idempotency-Key); a 422 puts each field's message on the form (and returns ok: false). */
 export async function sendJson<T, F extends FieldValues>(method: string, url: string, body: unknown, setError: UseFormSetError<F>): Promise<SendResult<T>> {
   let response: Response;
+  const text = JSON.stringify(body);
+  const create = method === 'POST' ? createKey(url, text) : null;
   try {
-    response = await fetch(url, { method, headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify(body) });
+    const headers: Record<string, string> = { 'content-type': 'application/json', accept: 'application/json' };
+    if (create) headers['idempotency-key'] = create.key;
+    response = await fetch(url, { method, headers, body: text });
   } catch {
     return { ok: false, body: null, message: 'No connection to the server. Try again when you have signal.' };
   }
   const json = await response.json().catch(() => null);
+  if (response.ok) create?.done();
   if (response.ok) return { ok: true, body: json as T, message: null };
   for (const error of (json?.errors ?? []) as { field: string; message: string }[]) {
     if (error.field) setError(error.field as Path<F>, { type: 'server', message: error.message });

@@ -245,7 +245,16 @@ describe('creates from the device outbox', () => {
       const { sendDirect } = await import('@/lib/walk/sync');
       const key = '44444444-4444-4444-8444-444444444444';
       await sendDirect({ kind: 'trace', assessmentId: newId(), idempotencyKey: key, op: traceOp(key) });
-      await sendDirect({ kind: 'photo', assessmentId: newId(), idempotencyKey: key, clientRef: key, itemKey: 'closingEdge', takenAt: null, fileName: 'a.jpg', blob: new Blob(['a']) });
+      await sendDirect({
+        kind: 'photo',
+        assessmentId: newId(),
+        idempotencyKey: key,
+        clientRef: key,
+        itemKey: 'closingEdge',
+        takenAt: null,
+        fileName: 'a.jpg',
+        blob: new Blob(['a']),
+      });
     } finally {
       globalThis.fetch = realFetch;
     }

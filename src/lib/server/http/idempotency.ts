@@ -114,10 +114,16 @@ export async function withIdempotency(
         .returning('key');
       if (claimed.length === 0) {
         // Another request holds (or held) this key; the insert above waited for it to commit.
-        const row: StoredRow | undefined = await trx('idempotency_keys').where(scope).first('request_sha256', 'response_status', 'response_headers', 'response_body');
+        const row: StoredRow | undefined = await trx('idempotency_keys')
+          .where(scope)
+          .first('request_sha256', 'response_status', 'response_headers', 'response_body');
         if (!row) throw new HttpProblem(409, `A request with this ${idempotencyHeader} is still being handled; try again shortly.`);
         if (row.request_sha256 !== fingerprint) {
-          throw headerProblem(422, `This ${idempotencyHeader} was already used for a different request.`, 'was already used with a different request body or path; use a new key for a new request');
+          throw headerProblem(
+            422,
+            `This ${idempotencyHeader} was already used for a different request.`,
+            'was already used with a different request body or path; use a new key for a new request',
+          );
         }
         return replay(row);
       }
@@ -129,7 +135,9 @@ export async function withIdempotency(
         const value = response.headers.get(name);
         if (value !== null) headers[name] = value;
       }
-      await trx('idempotency_keys').where(scope).update({ response_status: response.status, response_headers: JSON.stringify(headers), response_body: text });
+      await trx('idempotency_keys')
+        .where(scope)
+        .update({ response_status: response.status, response_headers: JSON.stringify(headers), response_body: text });
       return new Response(text, { status: response.status, headers: response.headers });
     });
   } catch (error) {
@@ -148,7 +156,8 @@ export function uploadClientRef(request: Request, bodyRef: string | undefined, p
   const key = idempotencyKeyOf(request);
   const ref = bodyRef?.toLowerCase() ?? null;
   if (key === null) return ref;
-  if (!pattern.test(key)) throw headerProblem(422, `The ${idempotencyHeader} of an upload is the device's id for the file.`, 'must be a UUID (the upload\'s clientRef)');
+  if (!pattern.test(key))
+    throw headerProblem(422, `The ${idempotencyHeader} of an upload is the device's id for the file.`, "must be a UUID (the upload's clientRef)");
   if (ref !== null && ref !== key.toLowerCase()) {
     throw headerProblem(422, `The ${idempotencyHeader} and clientRef name different files.`, 'must equal clientRef when both are sent');
   }
