@@ -189,6 +189,9 @@ describe('uploads take the key as the device id of the file', () => {
     const res = await upload(draftId, randomUUID(), `&clientRef=${randomUUID()}`);
     expect(res.status).toBe(422);
     expect((await res.json()).errors).toEqual([expect.objectContaining({ field: 'Idempotency-Key' })]);
+    const notUuid = await upload(draftId, 'retry-1');
+    expect(notUuid.status).toBe(400);
+    expect((await notUuid.json()).errors).toEqual([expect.objectContaining({ field: 'Idempotency-Key' })]);
     expect(await testDb()('force_traces').where({ assessment_id: draftId }).count({ n: '*' })).toEqual([{ n: '0' }]);
   });
 });

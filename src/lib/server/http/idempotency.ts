@@ -157,7 +157,7 @@ export function uploadClientRef(request: Request, bodyRef: string | undefined, p
   const ref = bodyRef?.toLowerCase() ?? null;
   if (key === null) return ref;
   if (!pattern.test(key))
-    throw headerProblem(422, `The ${idempotencyHeader} of an upload is the device's id for the file.`, "must be a UUID (the upload's clientRef)");
+    throw headerProblem(400, `The ${idempotencyHeader} of an upload is the device's id for the file.`, "must be a UUID (the upload's clientRef)");
   if (ref !== null && ref !== key.toLowerCase()) {
     throw headerProblem(422, `The ${idempotencyHeader} and clientRef name different files.`, 'must equal clientRef when both are sent');
   }
