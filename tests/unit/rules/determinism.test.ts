@@ -26,7 +26,12 @@ const referenceJson = configure({ deterministic: true, bigint: false, circularVa
 /** The same object with every key order reversed, all the way down. */
 function reverseKeys(value: unknown): unknown {
   if (Array.isArray(value)) return value.map(reverseKeys);
-  if (value && typeof value === 'object') return Object.fromEntries(Object.entries(value).reverse().map(([k, v]) => [k, reverseKeys(v)]));
+  if (value && typeof value === 'object')
+    return Object.fromEntries(
+      Object.entries(value)
+        .reverse()
+        .map(([k, v]) => [k, reverseKeys(v)]),
+    );
   return value;
 }
 
