@@ -6,8 +6,7 @@
  * refuses (a force trace sampled too slowly, an impossible operator layout) is listed as a
  * problem with its input path instead of failing the whole assessment.
  */
-import { voltageDrop, type Awg, type ChargerSource } from './calculators/power-wiring';
-import { assessSignage } from './calculators/controls-signage';
+import { voltageDrop, type Awg } from './calculators/power-wiring';
 import { refusal, type EvidenceProblem } from './evidence';
 import { POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS } from './fact-catalogue';
 import type { CompiledImpliedZone } from './compile';
@@ -41,6 +40,9 @@ export interface FactsResult {
 
 /** Wire-gauge choice values (`awg10` … `awg18`) the power calculator has resistances for. */
 const AWG_BY_CHOICE: Readonly<Record<string, Awg>> = Object.freeze({ awg10: 10, awg12: 12, awg14: 14, awg16: 16, awg18: 18 });
+/** What charges the operator's battery. */
+type ChargerSource = 'transformer' | 'solar';
+
 /** Charging-source choice values and the sources each means. */
 const CHARGERS_BY_CHOICE: Readonly<Record<string, readonly ChargerSource[]>> = Object.freeze({
   transformer: ['transformer'],
@@ -158,7 +160,7 @@ function signageFacts(m: Record<string, number>): Record<string, unknown> | null
   const side1 = m[SIGNAGE_INPUT_KEYS.side1];
   const side2 = m[SIGNAGE_INPUT_KEYS.side2];
   if (side1 === undefined || side2 === undefined) return null;
+  // Whole, non-negative counts only; the limits per side and in all are the rule's params.
   if (!Number.isInteger(side1) || !Number.isInteger(side2) || side1 < 0 || side2 < 0) return null;
-  const total = assessSignage({ placardsGateSide1: side1, placardsGateSide2: side2 }).total.count;
-  return total === null ? null : { totalPlacards: total };
+  return { totalPlacards: side1 + side2 };
 }
