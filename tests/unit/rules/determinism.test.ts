@@ -121,7 +121,7 @@ describe('scoring determinism', () => {
       // What scoreParsed() hashes for an input handed over already parsed: the generic canonical writer.
       expect(scoreParsed(input, ruleset).inputSha256).toBe(sha256(expected));
     }
-  });
+  }, 30_000); // five shipped versions, 300 inputs each scored twice: seconds on a busy 2-core host
 
   it('declares every object of the input schema to zod in sorted key order, so parsed keys come out canonical', () => {
     const unsorted: string[] = [];
