@@ -24,7 +24,8 @@ interface Question {
   options?: { value: string }[];
 }
 
-const ruleset = JSON.parse(fs.readFileSync(path.resolve('rulesets/north-american-gate/2026.1.json'), 'utf8')) as { questions: Question[] };
+// The draft is pinned to the family's current version, so its questions are the ones shown.
+const ruleset = JSON.parse(fs.readFileSync(path.resolve('rulesets/north-american-gate/2026.2.json'), 'utf8')) as { questions: Question[] };
 const swingQuestions = ruleset.questions.filter((q) => q.gateKinds.includes('swing') && q.askWhen === undefined);
 /** Answered after the signal drops. */
 const offlineKeys = new Set(swingQuestions.filter((q) => q.section === 'handover').map((q) => q.key));

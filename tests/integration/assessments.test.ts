@@ -74,7 +74,7 @@ describe('an assessment from draft to scored', () => {
       result: null,
       resultSha256: null,
     });
-    expect(pinned.version).toBe('2026.1');
+    expect(pinned.version).toBe('2026.2');
     const events = await auditActions(id);
     expect(events).toEqual([expect.objectContaining({ action: 'assessment.created', actor_user_id: org.auditor.id })]);
     expect(events[0]?.detail).toMatchObject({ family, version: pinned.version, gateId: dir.gateId });
@@ -157,7 +157,7 @@ describe('an assessment from draft to scored', () => {
     expect(VERDICTS).toContain(scored.verdict);
     expect(scored.result.verdict).toBe(scored.verdict);
     expect(scored.result.findings.length).toBeGreaterThan(0);
-    expect(scored.result.ruleset).toMatchObject({ family, version: '2026.1' });
+    expect(scored.result.ruleset).toMatchObject({ family, version: '2026.2' });
     expect(scored.submittedAt).not.toBeNull();
     expect(scored.gateSnapshot).toMatchObject({ id: dir.gateId, kind: 'swing', widthMm: 3660, site: { id: dir.siteId, usageClass: 2 } });
 
@@ -187,7 +187,7 @@ describe('an assessment from draft to scored', () => {
     const events = await auditActions(id);
     expect(events.map((e) => e.action)).toEqual(['assessment.created', 'assessment.submitted']);
     const stored = await testDb()('assessments').where({ id }).first('result_sha256', 'verdict');
-    expect(events[1]?.detail).toMatchObject({ resultSha256: stored.result_sha256, verdict: stored.verdict, family, version: '2026.1' });
+    expect(events[1]?.detail).toMatchObject({ resultSha256: stored.result_sha256, verdict: stored.verdict, family, version: '2026.2' });
     // Only this organisation's part: another file may be testing a deliberately broken event elsewhere.
     expect((await verifyOrganisationTrail(org.id, testDb())).ok).toBe(true);
   });

@@ -47,7 +47,7 @@ describe('POST /api/score', () => {
     const res = await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() });
     expect(res.status).toBe(200);
     const result = await res.json();
-    expect(result.ruleset).toEqual({ family: NA, version: '2026.1', contentSha256: shipped('2026.1').contentSha256 });
+    expect(result.ruleset).toEqual({ family: NA, version: '2026.2', contentSha256: shipped('2026.2').contentSha256 });
     // ASTM F2200, swing gates: 16 in (406.4 mm) to fixed objects; the open leaf stops 12 in from the pier.
     const fixedObjects = findingOf(result, 'pinch.fixed-objects');
     expect(fixedObjects).toMatchObject({
@@ -137,14 +137,14 @@ describe('GET /api/rulesets', () => {
     expect(res.status).toBe(200);
     const { families } = await res.json();
     const na = families.find((f: { family: string }) => f.family === NA);
-    expect(na).toMatchObject({ local: false, current: '2026.1', basedOnFamily: null });
-    expect(na.versions.map((v: { version: string }) => v.version)).toEqual(['2026.1', '2015.1']);
+    expect(na).toMatchObject({ local: false, current: '2026.2', basedOnFamily: null });
+    expect(na.versions.map((v: { version: string }) => v.version)).toEqual(['2026.2', '2026.1', '2015.1']);
     const latest = na.versions[0];
     expect(latest).toMatchObject({
       status: 'published',
-      contentSha256: shipped('2026.1').contentSha256,
-      ruleCount: shipped('2026.1').version.rules.length,
-      effectiveFrom: '2026-01-01',
+      contentSha256: shipped('2026.2').contentSha256,
+      ruleCount: shipped('2026.2').version.rules.length,
+      effectiveFrom: '2026-12-07',
       derivedFrom: null,
     });
     expect(Date.parse(latest.publishedAt)).not.toBeNaN();

@@ -58,6 +58,16 @@ describe('ruleset pages', () => {
     expect(html).toContain('id="rule-pinch.fixed-objects"');
   });
 
+  it('shows which band a value exactly on an HRN band edge falls in, and the re-inspection plan', async () => {
+    // HRN bands as widely reprinted (secondary source); the edge convention and intervals are the version's (common practice, no source)
+    const newer = textOf((await page(auditor, `/rulesets/${NA}/2026.2`)).html);
+    expect(newer).toContain('A value exactly on an edge falls in the higher band');
+    expect(newer).toContain('from 50 up to but not including 100');
+    expect(newer).toContain('Withdraw: when the fixes are reported');
+    const older = textOf((await page(auditor, `/rulesets/${NA}/2026.1`)).html);
+    expect(older).toContain('A value exactly on an edge falls in the lower band');
+  });
+
   it('answers 404 for a version that does not exist', async () => {
     expect((await page(auditor, `/rulesets/${NA}/1999.1`)).status).toBe(404);
   });

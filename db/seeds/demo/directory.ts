@@ -16,6 +16,11 @@ export interface DemoGate {
   operatorManufacturedOn: string;
   installedOn: string;
   automaticClosing: boolean;
+  /**
+   * The auditor listed an edge where the photo-eye is and still answered that the photo-eye
+   * reverses the gate: accepted by older versions, a contradiction to resolve from 2026.2.
+   */
+  photoEyeNotListed?: boolean;
 }
 
 export interface DemoSite {
@@ -91,7 +96,7 @@ export const demoClients: DemoClient[] = [
         postalCode: '80999',
         usageClass: 1,
         context: family,
-        gates: [swing('Driveway gate', 'double', 'pull_to_open', 14, '2019-05-01')],
+        gates: [swing('Driveway gate', 'double', 'pull_to_open', 14, '2019-05-01', { photoEyeNotListed: true })],
       },
     ],
   },

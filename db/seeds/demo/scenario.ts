@@ -3,8 +3,10 @@
  * app itself would have written: clients, sites and gates; visits over the past two years by
  * two auditors; drafts, scored assessments, ones waiting for the owner's signature, signed
  * ones (rendered, digitally signed, mailed through the outbox) and a few corrected revisions.
- * Older visits are pinned to the earlier North American version, so publishing the current one
- * gives the ruleset impact list something to show.
+ * Last year's visits are pinned to the earliest North American version and this autumn's to the
+ * one before the newest, so the newest version's impact list has signed gates to re-score: a
+ * swing gate withdrawn for a wall near its open leaf, although a monitored edge protects that
+ * zone, clears under the newest version.
  *
  * Needs DATABASE_URL (and LATCHWELL_DATA_DIR for files) set for the target database before
  * this module is imported: the server modules read them.
@@ -70,8 +72,10 @@ export async function runDemoScenario(knex: Knex): Promise<number> {
     .select('rv.id', 'rv.version', 'rv.content', 'rv.content_sha256')) {
     versions.set(row.version, { id: row.id, content: loadRulesetFile(row.content).version, contentSha256: row.content_sha256 });
   }
-  const current = [...versions.keys()].sort().at(-1)!;
-  const earlier = [...versions.keys()].sort().at(0)!;
+  const labels = [...versions.keys()].sort();
+  // The newest version is "just published": the autumn's visits were made under the one before it.
+  const current = labels.length > 2 ? labels.at(-2)! : labels.at(-1)!;
+  const earlier = labels.at(0)!;
 
   let gateIndex = 0;
   let made = 0;
@@ -190,7 +194,13 @@ async function carryOut(knex: Knex, work: VisitWork): Promise<void> {
     );
     return built.ok ? scoreParsed(built.value, { version: version.content, contentSha256: version.contentSha256 }).verdict : 'invalid';
   };
-  const walk = walkFor(demoGate.kind, { ...site.context, openingDirection: demoGate.openingDirection }, visit.condition, verdictOf, seed);
+  const walk = walkFor(
+    demoGate.kind,
+    { ...site.context, openingDirection: demoGate.openingDirection, photoEyeNotListed: demoGate.photoEyeNotListed === true },
+    visit.condition,
+    verdictOf,
+    seed,
+  );
   if (visit.outcome === 'draft') {
     // Half-way round the gate: the first few sections only.
     const keep = (o: Record<string, unknown>) => Object.fromEntries(Object.entries(o).slice(0, Math.ceil(Object.keys(o).length / 2)));

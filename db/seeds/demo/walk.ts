@@ -87,7 +87,7 @@ export function soundWalk(kind: 'swing' | 'slide', context: WalkContext): WalkDo
       ],
       devices: [
         { type: 'A', direction: 'closing', zone: 'closing_edge', monitored: true },
-        { type: 'B1', direction: 'closing', zone: 'closing_edge', monitored: true },
+        { type: context.photoEyeNotListed ? 'B2' : 'B1', direction: 'closing', zone: 'closing_edge', monitored: true },
         { type: 'A', direction: 'opening', zone: kind === 'swing' ? 'open_side' : 'post_gap', monitored: true },
         { type: 'B2', direction: 'opening', zone: kind === 'swing' ? 'open_side' : 'post_gap', monitored: true },
       ],
@@ -101,6 +101,8 @@ export interface WalkContext {
   childrenOrPetsPresent: boolean;
   slopeAcrossSwing: boolean;
   openingDirection?: 'pull_to_open' | 'push_to_open';
+  /** Only an edge is listed on the closing edge, though the photo-eye answer says it reverses the gate. */
+  photoEyeNotListed?: boolean;
 }
 
 /**
@@ -154,7 +156,10 @@ export function walkFor(
 ): WalkDocuments {
   const walk = soundWalk(kind, context);
   const wanted = condition === 'sound' ? 'clear' : condition === 'needs_work' ? 'remedy' : 'withdraw';
-  const faults = condition === 'sound' ? [] : condition === 'needs_work' ? rotate(majorFaults, seed) : [...rotate(criticalFaults[kind], seed), ...majorFaults];
+  // A dangerous swing gate is first found with a wall near its open leaf (its open side carries a
+  // monitored edge, which the newest North American version counts as protecting that zone).
+  const critical = kind === 'swing' ? [criticalFaults.swing[0]!, ...rotate(criticalFaults.swing.slice(1), seed)] : rotate(criticalFaults.slide, seed);
+  const faults = condition === 'sound' ? [] : condition === 'needs_work' ? rotate(majorFaults, seed) : [...critical, ...majorFaults];
   for (const fault of faults) {
     if (verdictOf(walk) === wanted) break;
     fault(walk);

@@ -16,11 +16,13 @@ interface Props {
   value: MeasurementValue | undefined;
   units: UnitSystem;
   disabled?: boolean;
+  /** Units the question names for itself (a wire run in feet or metres); else the kind's usual pair. */
+  entryUnits?: readonly string[];
   onChange(value: MeasurementValue | null): void;
 }
 
 function otherSystem(kind: MeasuredAnswerType, canonical: number, unit: string): string | null {
-  const metricUnits = ['mm', 'N', 'kg', 'm/s'];
+  const metricUnits = ['mm', 'm', 'N', 'kg', 'm/s'];
   const other: UnitSystem = metricUnits.includes(unit) ? 'imperial' : 'metric';
   if (kind === 'length') return formatLength(canonical, other);
   if (kind === 'force') return formatForce(canonical, other);
@@ -29,8 +31,8 @@ function otherSystem(kind: MeasuredAnswerType, canonical: number, unit: string):
   return null;
 }
 
-export function MeasureInput({ kind, labelledBy, value, units, disabled, onChange }: Props) {
-  const options = unitsFor(kind, units);
+export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUnits, onChange }: Props) {
+  const options = unitsFor(kind, units, entryUnits);
   const [unit, setUnit] = useState(value?.unit ?? (options[0] as string));
   const [text, setText] = useState(value ? String(value.value) : '');
   const [error, setError] = useState<string | null>(null);

@@ -89,6 +89,7 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
         value={measurement}
         units={units}
         disabled={!editable}
+        {...(question.entryUnits ? { entryUnits: question.entryUnits } : {})}
         onChange={setMeasurement}
       />
     );

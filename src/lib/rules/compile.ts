@@ -11,7 +11,7 @@ import { contentSha256 } from './hash';
 import { factKeyOfQuestion } from './ruleset-references';
 import { SITE_CODES } from './finding-hrn';
 import type { FindingHrn } from './result-types';
-import type { RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
+import type { CrossCheck, ImpliedZone, RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
 import { SEVERITIES, type GateKind, type HazardArea, type UsageClass } from './vocabulary';
 
 /** A fact path ready to read: `calc.force.worst.peakN` → ['calc','force','worst','peakN']. */
@@ -49,8 +49,28 @@ export interface CompiledRule {
   readonly findingParams: Readonly<Record<string, { value: unknown; unit?: string }>>;
 }
 
+/** An implied entrapment zone with its condition compiled (its rule's params folded in). */
+export interface CompiledImpliedZone {
+  readonly zone: ImpliedZone['zone'];
+  readonly direction: ImpliedZone['direction'];
+  readonly gateKinds: ReadonlySet<GateKind>;
+  readonly when: CompiledLogic;
+}
+
+/** A cross-check with its condition compiled: true when the record contradicts itself. */
+export interface CompiledCrossCheck {
+  readonly check: CrossCheck;
+  readonly when: CompiledLogic;
+  /** The contradicted facts, pre-split (`answers.photoEyeTestReverses` → ['answers', …]). */
+  readonly facts: readonly FactPath[];
+}
+
 export interface CompiledRuleset {
   readonly version: RulesetVersion;
+  /** Zones measurements imply, when the version declares any (null: none). */
+  readonly impliedZones: readonly CompiledImpliedZone[] | null;
+  /** Cross-checks of the version (empty when none). */
+  readonly crossChecks: readonly CompiledCrossCheck[];
   readonly contentSha256: string;
   /** Enabled rules only, in the order findings are reported: severity, then area order, then id. */
   readonly rules: readonly CompiledRule[];
@@ -113,9 +133,28 @@ function indexIn(list: readonly string[], key: string): number {
   return at;
 }
 
-function compileRule(rule: RulesetRule): CompiledRule {
+function paramValuesOf(rule: RulesetRule | undefined): Record<string, unknown> {
   const paramValues: Record<string, unknown> = {};
-  for (const [name, param] of Object.entries(rule.params)) paramValues[name] = param.value;
+  for (const [name, param] of Object.entries(rule?.params ?? {})) paramValues[name] = param.value;
+  return paramValues;
+}
+
+function compileImpliedZone(zone: ImpliedZone, rules: readonly RulesetRule[]): CompiledImpliedZone {
+  const rule = rules.find((r) => r.id === zone.rule);
+  return {
+    zone: zone.zone,
+    direction: zone.direction,
+    gateKinds: new Set(zone.gateKinds),
+    when: compileLogic(zone.when, { constants: { prefix: 'params', values: paramValuesOf(rule) } }),
+  };
+}
+
+function compileCrossCheck(check: CrossCheck): CompiledCrossCheck {
+  return { check, when: compileLogic(check.when, { constants: { prefix: 'params', values: {} } }), facts: check.facts.map(toPath) };
+}
+
+function compileRule(rule: RulesetRule): CompiledRule {
+  const paramValues = paramValuesOf(rule);
   const constants = { prefix: 'params', values: paramValues };
   const findingParams: Record<string, { value: unknown; unit?: string }> = {};
   for (const [name, param] of Object.entries(rule.params)) {
@@ -170,7 +209,13 @@ export function compileRuleset(version: RulesetVersion, knownSha256?: string): C
     compiled = {
       version,
       contentSha256: sha,
-      rules: reportOrder(version.rules.filter((rule) => rule.enabled), areaRank).map(compileRule),
+      impliedZones:
+        version.impliedZones && version.impliedZones.length > 0 ? version.impliedZones.map((zone) => compileImpliedZone(zone, version.rules)) : null,
+      crossChecks: (version.crossChecks ?? []).map(compileCrossCheck),
+      rules: reportOrder(
+        version.rules.filter((rule) => rule.enabled),
+        areaRank,
+      ).map(compileRule),
       areaRank,
       questionByFact: new Map(version.questions.map((q) => [factKeyOfQuestion(q), q])),
       questionByKey: new Map(version.questions.map((q) => [q.key, q])),

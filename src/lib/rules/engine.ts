@@ -17,7 +17,7 @@ import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
 import { truthy } from './json-logic-compile';
 import { explainMissing, isMissing } from './missing-info';
-import type { Finding, MissingItem, NeedsInfoItem, ScoreResult } from './result-types';
+import type { Contradiction, Finding, MissingItem, NeedsInfoItem, Reinspection, ScoreResult } from './result-types';
 import { factKeyOfQuestion } from './ruleset-references';
 import type { RulesetVersion } from './ruleset-schema';
 import { verdictOf } from './verdict';
@@ -65,12 +65,13 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   const compiled = resolve(ruleset);
   const issues = checkInputAgainstRuleset(input, compiled);
   if (issues.length > 0) throw new AssessmentInputError(issues);
-  const { facts, problems } = buildFacts(input);
+  const { facts, problems } = buildFacts(input, compiled);
+  const contradictions = compiled.crossChecks.length > 0 ? crossCheck(facts, compiled) : null;
   // compiled.rules is already in report order (severity, area, id).
   const rules = compiled.rules;
   const skipped = notApplicableAt(compiled, input);
   const findings = new Array<Finding>(rules.length);
-  for (let i = 0; i < rules.length; i++) findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled);
+  for (let i = 0; i < rules.length; i++) findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled, contradictions);
   const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
   for (let i = 0; i < findings.length; i++) {
     const f = findings[i]!;
@@ -82,17 +83,56 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
     else counts.needsInfo += 1;
   }
   const { version } = compiled;
-  return {
+  const verdict = verdictOf(findings);
+  const result: ScoreResult = {
     ruleset: { family: version.family, version: version.version, contentSha256: compiled.contentSha256 },
     inputSha256: inputSha256(),
-    verdict: verdictOf(findings),
-    complete: counts.needsInfo === 0,
+    verdict,
+    complete: counts.needsInfo === 0 && (contradictions === null || contradictions.length === 0),
     findings,
     areaScores: areaScores(findings, version),
     counts,
     needsInfo: collectNeedsInfo(findings, compiled),
     evidenceProblems: problems,
   };
+  // Versions that declare them (older results keep their shape, and so their hashes).
+  if (contradictions !== null) result.contradictions = contradictions;
+  if (version.reinspection) result.reinspection = reinspectionOf(version.reinspection, verdict, input.profile.usageClass);
+  return result;
+}
+
+/** When the gate is seen again: by the verdict and the gate's usage class, from the version's data. */
+function reinspectionOf(
+  plan: NonNullable<CompiledRuleset['version']['reinspection']>,
+  verdict: ScoreResult['verdict'],
+  usageClass: 1 | 2 | 3 | 4,
+): Reinspection {
+  if (verdict === 'withdraw') return { when: 'fixes_reported' };
+  const days = verdict === 'remedy' ? plan.remedyAfterDays : plan.clearAfterDays;
+  return { when: 'after_days', afterDays: days[String(usageClass) as '1' | '2' | '3' | '4'] };
+}
+
+/**
+ * Runs the version's cross-checks. A contradicted fact is not accepted: it is taken out of the
+ * facts (the answers and measurements dictionaries are this scoring's own), so every rule
+ * reading it needs information, and the contradiction is listed for the auditor to resolve.
+ */
+function crossCheck(facts: Facts, compiled: CompiledRuleset): Contradiction[] {
+  const found: Contradiction[] = [];
+  const checks = compiled.crossChecks;
+  // All conditions see the record as entered: judge first, then take the contradicted facts out.
+  const hits = checks.map((c) => truthy(c.when(facts)));
+  for (let i = 0; i < checks.length; i++) {
+    if (!hits[i]) continue;
+    const { check, facts: paths } = checks[i]!;
+    for (const path of paths) {
+      const [group, name] = path.segments as [string, string];
+      const holder = (facts as unknown as Record<string, Record<string, unknown> | undefined>)[group];
+      if (holder && name in holder) delete holder[name];
+    }
+    found.push({ id: check.id, message: check.message, facts: [...check.facts] });
+  }
+  return found;
 }
 
 /** Shared empties for findings that looked at nothing or miss nothing (results are read-only data). */
@@ -122,7 +162,7 @@ function makeFinding(
     reference: rule.reference,
   };
   if (rule.local) result.local = true;
-  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, compiledRule.ratings);
+  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, compiledRule.ratings, rule.severity);
   return result;
 }
 
@@ -161,7 +201,13 @@ function notApplicableAt(compiled: CompiledRuleset, input: AssessmentInput): Rea
 /** The facts the rule being evaluated looks at, in `observed` order (see evaluateRule). */
 const factValues: unknown[] = [];
 
-function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+function evaluateRule(
+  compiledRule: CompiledRule,
+  facts: Facts,
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+  contradictions: Contradiction[] | null,
+): Finding {
   // The caller has already left out rules that do not apply to the gate's kind or usage class.
   // Each fact the rule looks at is read once: observed values, applicability and requirements share the reads.
   const paths = compiledRule.observed;
@@ -192,8 +238,17 @@ function evaluateRule(compiledRule: CompiledRule, facts: Facts, input: Assessmen
       return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
     if (isMissing(value)) (missing ??= []).push(...explainMissing(compiledRule.requires[i]!, facts, compiled));
   }
-  if (missing) return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
+  if (missing) {
+    if (contradictions && contradictions.length > 0) missing = missing.map((item) => asContradiction(item, contradictions));
+    return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
+  }
   return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled);
+}
+
+/** A missing item whose fact was given but contradicted: the prompt says what to resolve. */
+function asContradiction(item: MissingItem, contradictions: readonly Contradiction[]): MissingItem {
+  for (const c of contradictions) if (c.facts.includes(item.key)) return { key: item.key, prompt: `Resolve: ${c.message}` };
+  return item;
 }
 
 /** The items with each key once, first kept (a finding misses a handful at most: a scan, no Set). */

@@ -63,11 +63,17 @@ export const FACT_CATALOGUE: Readonly<Record<string, FactSpec>> = Object.freeze(
   'calc.entrapment.zonesWithoutExternalSensor': derived(ENTRAPMENT),
   'calc.entrapment.unmonitoredExternal': derived(ENTRAPMENT),
   'calc.entrapment.typeDWithAutoClose': derived(ENTRAPMENT),
+  'calc.entrapment.zonesFromMeasurements': derived(ENTRAPMENT),
+  'calc.entrapment.fixedObjectZoneProtected': derived('a monitored edge or photo-eye listed for the open side, opening direction (the fixed-object zone)'),
+  'calc.entrapment.photoEyes': derived(ENTRAPMENT),
+  'calc.entrapment.edges': derived(ENTRAPMENT),
   ...directionFacts('closing'),
   ...directionFacts('opening'),
 
   'calc.force.testCount': derived(FORCE),
   'calc.force.rejectedTraces': derived(FORCE),
+  'calc.force.largeGapTests': derived(FORCE),
+  'calc.force.acceptedGapsMm': derived(FORCE),
   'calc.force.smallGapMaxPeakN': derived('force tests at gaps of 50–500 mm'),
   'calc.force.largeGapMaxPeakN': derived('force tests at gaps over 500 mm'),
   'calc.force.worst.peakN': derived(FORCE),
@@ -79,15 +85,13 @@ export const FACT_CATALOGUE: Readonly<Record<string, FactSpec>> = Object.freeze(
   'calc.geometry.swingReachable': derived(GEOMETRY),
   'calc.geometry.passesDeadCentre': derived(GEOMETRY),
   'calc.geometry.minLeverArmMm': derived(GEOMETRY),
+  'calc.geometry.operatorLeafClearanceMm': derived(`operator-to-leaf clearance: measured on site, or from the ${GEOMETRY}`, ['m.operatorLeafClearanceMm']),
 
   'calc.power.dropPercent': derived('voltage drop on the low-voltage run', POWER_DROP),
   'calc.power.dropV': derived('voltage drop on the low-voltage run', POWER_DROP),
   'calc.power.chargingSourceCount': derived('charging source', [`answers.${POWER_INPUT_KEYS.chargingSource}`]),
 
-  'calc.signage.totalPlacards': derived('warning placards counted on both sides', [
-    `m.${SIGNAGE_INPUT_KEYS.side1}`,
-    `m.${SIGNAGE_INPUT_KEYS.side2}`,
-  ]),
+  'calc.signage.totalPlacards': derived('warning placards counted on both sides', [`m.${SIGNAGE_INPUT_KEYS.side1}`, `m.${SIGNAGE_INPUT_KEYS.side2}`]),
 });
 
 function directionFacts(direction: 'closing' | 'opening'): Record<string, FactSpec> {

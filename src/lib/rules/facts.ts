@@ -6,11 +6,12 @@
  * refuses (a force trace sampled too slowly, an impossible operator layout) is listed as a
  * problem with its input path instead of failing the whole assessment.
  */
-import { voltageDrop, type Awg, type ChargerSource } from './calculators/power-wiring';
-import { assessSignage } from './calculators/controls-signage';
+import { voltageDrop, type Awg } from './calculators/power-wiring';
 import { refusal, type EvidenceProblem } from './evidence';
 import { POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS } from './fact-catalogue';
-import { entrapmentFacts } from './facts-entrapment';
+import type { CompiledImpliedZone } from './compile';
+import { truthy } from './json-logic-compile';
+import { entrapmentFacts, type ZoneAtDirection } from './facts-entrapment';
 import { forceFacts } from './facts-force';
 import { geometryFacts } from './facts-geometry';
 import type { AssessmentInput } from './input';
@@ -39,6 +40,9 @@ export interface FactsResult {
 
 /** Wire-gauge choice values (`awg10` … `awg18`) the power calculator has resistances for. */
 const AWG_BY_CHOICE: Readonly<Record<string, Awg>> = Object.freeze({ awg10: 10, awg12: 12, awg14: 14, awg16: 16, awg18: 18 });
+/** What charges the operator's battery. */
+type ChargerSource = 'transformer' | 'solar';
+
 /** Charging-source choice values and the sources each means. */
 const CHARGERS_BY_CHOICE: Readonly<Record<string, readonly ChargerSource[]>> = Object.freeze({
   transformer: ['transformer'],
@@ -48,8 +52,13 @@ const CHARGERS_BY_CHOICE: Readonly<Record<string, readonly ChargerSource[]>> = O
 });
 const MILLIMETRES_PER_METRE = 1000;
 
+/** What a version adds to fact building: the zones its measurements imply. */
+export interface FactOptions {
+  impliedZones?: readonly CompiledImpliedZone[] | null;
+}
+
 /** Builds the facts for one input. Pure: same input, same facts. */
-export function buildFacts(input: AssessmentInput): FactsResult {
+export function buildFacts(input: AssessmentInput, options: FactOptions = {}): FactsResult {
   const problems: EvidenceProblem[] = [];
   // Keyed by question: each input answers a different subset, so these are dictionaries from the
   // start (no per-subset hidden classes to build) and a key such as `constructor` reads nothing.
@@ -63,17 +72,44 @@ export function buildFacts(input: AssessmentInput): FactsResult {
   for (const key of Object.keys(measurements)) m[key] = (measurements[key] as { canonical: number }).canonical;
 
   const facts: Facts = { profile: profileFacts(input), site: { ...input.site }, answers, m, calc: {} };
-  if (input.entrapment) facts.calc.entrapment = entrapmentFacts(input, input.entrapment);
+  if (input.entrapment) facts.calc.entrapment = entrapmentFacts(input, input.entrapment, impliedZonesOf(facts, input, options.impliedZones));
   if (input.forceTests && input.forceTests.length > 0) facts.calc.force = forceFacts(input.profile.kind, input.forceTests, problems);
   if (input.swingGeometry && input.profile.kind === 'swing') {
     const geometry = geometryFacts(input.swingGeometry, problems);
     if (geometry) facts.calc.geometry = geometry;
   }
+  const clearance = operatorClearanceMm(facts, m);
+  if (clearance !== null) (facts.calc.geometry ??= {}).operatorLeafClearanceMm = clearance;
   const power = powerFacts(answers, m, problems);
   if (power) facts.calc.power = power;
   const signage = signageFacts(m);
   if (signage) facts.calc.signage = signage;
   return { facts, problems };
+}
+
+/** The zones the version's implied-zone conditions find in what was entered (answers, measurements, profile, site). */
+function impliedZonesOf(facts: Facts, input: AssessmentInput, zones: readonly CompiledImpliedZone[] | null | undefined): ZoneAtDirection[] {
+  if (!zones) return [];
+  const found: ZoneAtDirection[] = [];
+  for (let i = 0; i < zones.length; i++) {
+    const z = zones[i]!;
+    if (z.gateKinds.has(input.profile.kind) && truthy(z.when(facts))) found.push({ zone: z.zone, direction: z.direction });
+  }
+  return found;
+}
+
+/** Question key of the operator-to-leaf clearance measured on site (the alternative to a full ram layout). */
+export const MEASURED_OPERATOR_CLEARANCE_KEY = 'operatorLeafClearanceMm';
+
+/**
+ * The smallest clearance between the operator and the leaf: the one measured on site, the one
+ * the ram layout gives, or the smaller of the two when both are known (the tighter one traps).
+ */
+function operatorClearanceMm(facts: Facts, m: Record<string, number>): number | null {
+  const measured = m[MEASURED_OPERATOR_CLEARANCE_KEY];
+  const fromLayout = facts.calc.geometry?.minClearanceMm as number | undefined;
+  if (measured === undefined) return fromLayout ?? null;
+  return fromLayout === undefined ? measured : Math.min(measured, fromLayout);
 }
 
 function profileFacts(input: AssessmentInput): Record<string, unknown> {
@@ -104,7 +140,13 @@ function powerFacts(answers: Record<string, string>, m: Record<string, number>, 
   const [run, current, supply] = [m[k.runLength], m[k.current], m[k.supply]];
   if (awg !== undefined && (conductor === 'solid' || conductor === 'stranded') && run !== undefined && current !== undefined && supply !== undefined) {
     try {
-      const drop = voltageDrop({ awg, stranded: conductor === 'stranded', oneWayLengthM: run / MILLIMETRES_PER_METRE, currentA: current, supplyVoltage: supply });
+      const drop = voltageDrop({
+        awg,
+        stranded: conductor === 'stranded',
+        oneWayLengthM: run / MILLIMETRES_PER_METRE,
+        currentA: current,
+        supplyVoltage: supply,
+      });
       facts.dropPercent = drop.dropPercent;
       facts.dropV = drop.dropV;
     } catch (error) {
@@ -118,7 +160,7 @@ function signageFacts(m: Record<string, number>): Record<string, unknown> | null
   const side1 = m[SIGNAGE_INPUT_KEYS.side1];
   const side2 = m[SIGNAGE_INPUT_KEYS.side2];
   if (side1 === undefined || side2 === undefined) return null;
+  // Whole, non-negative counts only; the limits per side and in all are the rule's params.
   if (!Number.isInteger(side1) || !Number.isInteger(side2) || side1 < 0 || side2 < 0) return null;
-  const total = assessSignage({ placardsGateSide1: side1, placardsGateSide2: side2 }).total.count;
-  return total === null ? null : { totalPlacards: total };
+  return { totalPlacards: side1 + side2 };
 }

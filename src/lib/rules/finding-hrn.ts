@@ -3,7 +3,16 @@
  * worst credible harm (the calculators' deriveHrnFactors), optionally overridden by the auditor
  * for that rule, priced with the ruleset version's own HRN table and bands.
  */
-import { calculateHrn, deriveHrnFactors, HRN_BANDS, type DerivedHrnFactors, type DphKey, type HrnTable as CalculatorHrnTable } from './calculators/hrn';
+import {
+  calculateHrn,
+  deriveHrnFactors,
+  HRN_BANDS,
+  type DerivedHrnFactors,
+  type DphKey,
+  type HrnTable as CalculatorHrnTable,
+  type LoKey,
+} from './calculators/hrn';
+import type { Severity } from './vocabulary';
 import type { AssessmentInput } from './input';
 import type { HrnTable } from './ruleset-schema';
 import type { FindingHrn } from './result-types';
@@ -46,23 +55,49 @@ function siteCode(input: AssessmentInput): number {
 }
 
 /** Rates one failing rule at this gate. */
-export function rateFinding(input: AssessmentInput, harm: string, ruleId: string, hrn: HrnTable, shared: Array<FindingHrn | undefined> = []): FindingHrn {
+export function rateFinding(
+  input: AssessmentInput,
+  harm: string,
+  ruleId: string,
+  hrn: HrnTable,
+  shared: Array<FindingHrn | undefined> = [],
+  severity: Severity = 'major',
+): FindingHrn {
   const override = input.hrnOverrides?.[ruleId];
-  if (override) return rate(input, harm, hrn, override);
+  if (override) return rate(input, harm, hrn, override, severity);
   const code = siteCode(input);
   let rating = shared[code];
-  if (!rating) shared[code] = rating = Object.freeze(rate(input, harm, hrn, null));
+  if (!rating) shared[code] = rating = Object.freeze(rate(input, harm, hrn, null, severity));
   return rating;
 }
 
-function rate(input: AssessmentInput, harm: string, hrn: HrnTable, override: NonNullable<AssessmentInput['hrnOverrides']>[string] | null): FindingHrn {
-  const derived = deriveHrnFactors({
+/**
+ * The likelihood the table's own scale gives after stepping `by` places from `from` (held at
+ * either end). The version's LO levels are listed least to most likely.
+ */
+function stepLikelihood(hrn: HrnTable, from: LoKey, by: number): LoKey {
+  if (by === 0) return from;
+  const at = hrn.lo.findIndex((level) => level.key === from);
+  if (at < 0) return from;
+  return hrn.lo[Math.max(0, Math.min(hrn.lo.length - 1, at + by))]!.key as LoKey;
+}
+
+function rate(
+  input: AssessmentInput,
+  harm: string,
+  hrn: HrnTable,
+  override: NonNullable<AssessmentInput['hrnOverrides']>[string] | null,
+  severity: Severity,
+): FindingHrn {
+  const base = deriveHrnFactors({
     usageClass: input.profile.usageClass,
     childrenOrPetsPresent: input.site.childrenOrPetsPresent,
     pedestriansUseDriveway: input.site.pedestriansUseDriveway,
     publicAccess: input.site.publicAccess,
     severity: harm as DphKey,
   });
+  // A version may step the likelihood by the rule's severity, so default ratings follow it.
+  const derived = { ...base, lo: stepLikelihood(hrn, base.lo, hrn.likelihoodStepBySeverity?.[severity] ?? 0) };
   const keys: DerivedHrnFactors = override
     ? {
         lo: (override.lo as DerivedHrnFactors['lo'] | undefined) ?? derived.lo,
@@ -75,7 +110,7 @@ function rate(input: AssessmentInput, harm: string, hrn: HrnTable, override: Non
   const cacheKey = `${keys.lo}|${keys.fe}|${keys.dph}|${keys.np}`;
   let rated = priced.rated.get(cacheKey);
   if (!rated) {
-    rated = calculateHrn(keys, priced.table, priced.bands);
+    rated = calculateHrn(keys, priced.table, priced.bands, hrn.bandEdges ?? 'upper_inclusive');
     priced.rated.set(cacheKey, rated);
   }
   const result: FindingHrn = {

@@ -46,6 +46,6 @@ export {
 } from './ruleset-schema';
 export { factKeyOfQuestion, type RulesetIssue } from './ruleset-references';
 export { questionsToAsk } from './questions-to-ask';
-export type { ScoreResult, Finding, FindingHrn, MissingItem, NeedsInfoItem, OutcomeCounts } from './result-types';
+export type { ScoreResult, Finding, FindingHrn, MissingItem, NeedsInfoItem, OutcomeCounts, Contradiction, Reinspection } from './result-types';
 export * from './vocabulary';
 export { CANONICAL_UNIT_OF, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from './measures';

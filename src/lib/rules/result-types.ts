@@ -55,6 +55,17 @@ export interface NeedsInfoItem extends MissingItem {
   ruleIds: string[];
 }
 
+/** Answers that contradict the rest of the record; their facts were not accepted. */
+export interface Contradiction {
+  id: string;
+  message: string;
+  /** The facts left out until resolved (`answers.photoEyeTestReverses`). */
+  facts: string[];
+}
+
+/** When the gate is to be seen again: after a number of days, or as soon as its fixes are reported. */
+export type Reinspection = { when: 'after_days'; afterDays: number } | { when: 'fixes_reported' };
+
 export interface ScoreResult {
   ruleset: { family: string; version: string; contentSha256: string };
   /** SHA-256 of the parsed input's canonical JSON: ties the result to exactly what was scored. */
@@ -69,4 +80,8 @@ export interface ScoreResult {
   needsInfo: NeedsInfoItem[];
   /** Evidence the calculators refused (e.g. a force trace sampled too slowly). */
   evidenceProblems: EvidenceProblem[];
+  /** Contradictions found by the version's cross-checks (versions that declare cross-checks). */
+  contradictions?: Contradiction[];
+  /** When to visit again, by verdict and usage class (versions that declare a re-inspection plan). */
+  reinspection?: Reinspection;
 }

@@ -8,7 +8,7 @@ import type { DphKey, FeKey, LoKey, NpKey } from './calculators/hrn';
 import { FACT_CATALOGUE } from './fact-catalogue';
 import { analyseLogic } from './json-logic-analysis';
 import { COMPILED_OPERATORS } from './json-logic-compile';
-import { CANONICAL_UNIT_OF, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from './measures';
+import { CANONICAL_UNIT_OF, kindOfUnit, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from './measures';
 import type { RulesetQuestion, RulesetRule, RulesetVersion } from './ruleset-schema';
 
 export interface RulesetIssue {
@@ -78,13 +78,39 @@ export function checkRulesetReferences(ruleset: RulesetVersion): RulesetIssue[] 
     if (isMeasured(q)) {
       const suffix = KEY_SUFFIX_OF[q.answerType as MeasuredAnswerType];
       if (suffix && !q.key.endsWith(suffix)) {
-        issues.push({ path: ['questions', i, 'key'], message: `a ${q.answerType} in ${CANONICAL_UNIT_OF[q.answerType as MeasuredAnswerType]} needs a key ending in "${suffix}"` });
+        issues.push({
+          path: ['questions', i, 'key'],
+          message: `a ${q.answerType} in ${CANONICAL_UNIT_OF[q.answerType as MeasuredAnswerType]} needs a key ending in "${suffix}"`,
+        });
       }
     }
     if (q.askWhen !== undefined) checkLogic(q.askWhen, ['questions', i, 'askWhen'], new Set(), knownFact, issues);
+    q.entryUnits?.forEach((unit, j) => {
+      if (!isMeasured(q) || kindOfUnit(unit) !== q.answerType)
+        issues.push({ path: ['questions', i, 'entryUnits', j], message: `"${unit}" is not a unit of a ${q.answerType} answer` });
+    });
   });
 
-  ruleset.rules.forEach((rule, i) => checkRule(rule, i, { areas, sources, questionByFact, knownFact, harm: new Set(ruleset.hrn.dph.map((d) => d.key)) }, issues));
+  const ruleById = new Map(ruleset.rules.map((rule) => [rule.id, rule]));
+  // Implied zones read what the auditor entered (never a derived fact: the entrapment facts are built from them).
+  const enteredFact = (fact: string): boolean => knownFact(fact) && !fact.startsWith('calc.');
+  ruleset.impliedZones?.forEach((zone, i) => {
+    const rule = ruleById.get(zone.rule);
+    if (!rule) issues.push({ path: ['impliedZones', i, 'rule'], message: `"${zone.rule}" is not a rule of this version` });
+    checkLogic(zone.when, ['impliedZones', i, 'when'], new Set(Object.keys(rule?.params ?? {})), enteredFact, issues);
+  });
+  duplicates(ruleset.crossChecks ?? [], (c) => c.id, 'crossChecks', issues);
+  ruleset.crossChecks?.forEach((check, i) => {
+    check.facts.forEach((fact, j) => {
+      if (!knownFact(fact) || fact.startsWith('calc.'))
+        issues.push({ path: ['crossChecks', i, 'facts', j], message: `"${fact}" is not an answer or measurement of this version` });
+    });
+    checkLogic(check.when, ['crossChecks', i, 'when'], new Set(), knownFact, issues);
+  });
+
+  ruleset.rules.forEach((rule, i) =>
+    checkRule(rule, i, { areas, sources, questionByFact, knownFact, harm: new Set(ruleset.hrn.dph.map((d) => d.key)) }, issues),
+  );
   checkHrn(ruleset, issues);
   return issues;
 }
@@ -100,7 +126,8 @@ interface RuleContext {
 function checkRule(rule: RulesetRule, i: number, ctx: RuleContext, issues: RulesetIssue[]): void {
   const at = (...path: Array<string | number>) => ['rules', i, ...path];
   if (!ctx.areas.has(rule.area)) issues.push({ path: at('area'), message: `area "${rule.area}" is not declared in areas` });
-  if (rule.reference.source && !ctx.sources.has(rule.reference.source)) issues.push({ path: at('reference', 'source'), message: `source "${rule.reference.source}" is not declared in sources` });
+  if (rule.reference.source && !ctx.sources.has(rule.reference.source))
+    issues.push({ path: at('reference', 'source'), message: `source "${rule.reference.source}" is not declared in sources` });
   if (!ctx.harm.has(rule.harm)) issues.push({ path: at('harm'), message: `harm "${rule.harm}" is not a DPH key of the HRN table` });
 
   const params = new Set(Object.keys(rule.params));
@@ -117,7 +144,10 @@ function checkRule(rule: RulesetRule, i: number, ctx: RuleContext, issues: Rules
   for (const fact of conditionVars) {
     const spec = FACT_CATALOGUE[fact];
     if (!declared.has(fact) && !spec?.always) {
-      issues.push({ path: at('condition'), message: `the condition reads "${fact}" but it is in neither requires nor optional (a missing value would read as null)` });
+      issues.push({
+        path: at('condition'),
+        message: `the condition reads "${fact}" but it is in neither requires nor optional (a missing value would read as null)`,
+      });
     }
   }
   if (rule.appliesWhen !== undefined) checkLogic(rule.appliesWhen, at('appliesWhen'), params, ctx.knownFact, issues);
@@ -127,23 +157,21 @@ function checkRule(rule: RulesetRule, i: number, ctx: RuleContext, issues: Rules
     if (question) {
       const uncovered = rule.appliesTo.gateKinds.filter((kind) => !question.gateKinds.includes(kind));
       if (uncovered.length > 0) {
-        issues.push({ path: at('appliesTo', 'gateKinds'), message: `rule reads "${fact}" but question "${question.key}" is not asked for ${uncovered.join(', ')} gates` });
+        issues.push({
+          path: at('appliesTo', 'gateKinds'),
+          message: `rule reads "${fact}" but question "${question.key}" is not asked for ${uncovered.join(', ')} gates`,
+        });
       }
     }
     for (const source of FACT_CATALOGUE[fact]?.from ?? []) {
-      if (!ctx.questionByFact.has(source)) issues.push({ path: at('requires'), message: `"${fact}" is worked out from "${source}", which this version never asks` });
+      if (!ctx.questionByFact.has(source))
+        issues.push({ path: at('requires'), message: `"${fact}" is worked out from "${source}", which this version never asks` });
     }
   }
 }
 
 /** Checks operators and vars of one expression; returns the fact vars it reads. */
-function checkLogic(
-  logic: unknown,
-  path: Array<string | number>,
-  params: Set<string>,
-  knownFact: (fact: string) => boolean,
-  issues: RulesetIssue[],
-): string[] {
+function checkLogic(logic: unknown, path: Array<string | number>, params: Set<string>, knownFact: (fact: string) => boolean, issues: RulesetIssue[]): string[] {
   const usage = analyseLogic(logic);
   for (const op of usage.operators) {
     if (!RULESET_OPERATORS.has(op)) issues.push({ path, message: `operator "${op}" is not supported in rulesets` });
@@ -174,7 +202,10 @@ function checkHrn(ruleset: RulesetVersion, issues: RulesetIssue[]): void {
   }
   const npKeys = new Set(hrn.np.map((row) => row.key));
   for (const needed of DERIVABLE_HRN_KEYS.np) if (!npKeys.has(needed)) issues.push({ path: ['hrn', 'np'], message: `the HRN table must price "${needed}"` });
-  for (const [name, rows] of [['np', hrn.np], ['bands', hrn.bands]] as const) {
+  for (const [name, rows] of [
+    ['np', hrn.np],
+    ['bands', hrn.bands],
+  ] as const) {
     rows.forEach((row, i) => {
       const last = i === rows.length - 1;
       if (last !== (row.upTo === null)) issues.push({ path: ['hrn', name, i, 'upTo'], message: 'only the last row has no upper bound (null)' });

@@ -9,9 +9,10 @@
  * so the hash of the file and of the parsed document are the same.
  */
 import { z } from 'zod';
-import { GATE_KINDS, HAZARD_AREAS, KEY_PATTERN, SEVERITIES, USAGE_CLASSES, WALK_SECTIONS } from './vocabulary';
+import { GATE_KINDS, HAZARD_AREAS, KEY_PATTERN, SEVERITIES, TRAVEL_DIRECTIONS, USAGE_CLASSES, WALK_SECTIONS } from './vocabulary';
 import { MEASURED_ANSWER_TYPES } from './measures';
 import { checkRulesetReferences } from './ruleset-references';
+import { ENTRAPMENT_ZONES } from './input';
 
 /** Marks the file format, so a later format can be told apart and migrated. */
 export const RULESET_FORMAT = 'latchwell.ruleset/1';
@@ -29,9 +30,7 @@ export const FamilySlugSchema = z
   .max(64);
 
 /** `2026.1`, or an amendment such as `2026.1-local.2`. */
-export const VersionLabelSchema = z
-  .string()
-  .regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must look like "2026.1" or "2026.1-local.2"');
+export const VersionLabelSchema = z.string().regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must look like "2026.1" or "2026.1-local.2"');
 
 export const SourceSchema = z.strictObject({
   id: key,
@@ -66,6 +65,12 @@ export const QuestionSchema = z
     options: z.array(ChoiceOptionSchema).min(2).optional(),
     gateKinds: z.array(z.enum(GATE_KINDS)).min(1),
     askWhen: JsonLogicSchema.optional(),
+    /**
+     * Units the walk-through offers for a measured answer, when the kind's usual pair does not
+     * fit (a wire run in feet or metres rather than inches or millimetres). Each must be a unit
+     * of the question's kind (checked with the cross-references).
+     */
+    entryUnits: z.array(z.string().min(1).max(8)).min(1).max(4).optional(),
   })
   .superRefine((q, ctx) => {
     if (q.answerType === 'choice' && !q.options) ctx.addIssue({ code: 'custom', path: ['options'], message: 'a choice question needs its options' });
@@ -124,13 +129,81 @@ export const HrnTableSchema = z.strictObject({
   lo: z.array(HrnLevelSchema).min(2),
   fe: z.array(HrnLevelSchema).min(2),
   dph: z.array(HrnLevelSchema).min(2),
-  np: z.array(z.strictObject({ key: z.string().regex(/^[a-z0-9_]+$/), label: text(80), upTo: z.number().int().positive().nullable(), value: z.number().positive() })).min(1),
+  np: z
+    .array(
+      z.strictObject({ key: z.string().regex(/^[a-z0-9_]+$/), label: text(80), upTo: z.number().int().positive().nullable(), value: z.number().positive() }),
+    )
+    .min(1),
   bands: z.array(z.strictObject({ key: z.string().regex(/^[a-z_]+$/), label: text(80), upTo: z.number().positive().nullable() })).min(2),
+  /**
+   * Which band a value exactly on an edge falls in: `upper_inclusive` (a band holds its `upTo`:
+   * 50 is "significant") or `lower_inclusive` (a band starts at the previous `upTo`: 50 is
+   * "high"). Versions without it read `upper_inclusive`, as the engine always did.
+   */
+  bandEdges: z.enum(['upper_inclusive', 'lower_inclusive']).optional(),
+  /**
+   * Steps up (or down) the likelihood scale by the failing rule's severity, so the default rating
+   * of a critical finding is never below a major one with the same harm at the same gate.
+   */
+  likelihoodStepBySeverity: z
+    .strictObject({ critical: z.number().int().min(-3).max(3), major: z.number().int().min(-3).max(3), minor: z.number().int().min(-3).max(3) })
+    .optional(),
 });
 
 export const ScoringSchema = z.strictObject({
   /** Weight of a rule in its area score by severity. */
   severityWeights: z.strictObject({ critical: z.number().positive(), major: z.number().positive(), minor: z.number().positive() }),
+  /** Highest score an area may show while it holds a failing critical rule (0–100). */
+  criticalFailureAreaCap: z.number().min(0).max(100).optional(),
+});
+
+/**
+ * An entrapment zone a measurement implies: when `when` holds (it reads answers, measurements,
+ * the profile and the site, and the params of `rule`, whose threshold it shares), the zone is
+ * added to the ones the auditor listed, in that direction, before the entrapment facts are
+ * worked out. So a measured clearance under the limit asks for protection by itself.
+ */
+export const ImpliedZoneSchema = z.strictObject({
+  zone: z.enum(ENTRAPMENT_ZONES),
+  direction: z.enum(TRAVEL_DIRECTIONS),
+  gateKinds: z.array(z.enum(GATE_KINDS)).min(1),
+  rule: z.string().min(3).max(120),
+  when: JsonLogicSchema,
+  note: text(300),
+});
+
+/**
+ * Answers that contradict the rest of the record ("the photo-eye reverses the gate" with no
+ * photo-eye listed). When `when` holds, each fact in `facts` is not accepted: rules reading it
+ * need information, and the result lists the contradiction to resolve.
+ */
+export const CrossCheckSchema = z.strictObject({
+  id: z.string().regex(/^[a-z]+(?:[.-][a-z0-9]+)+$/, 'must look like "sensing.photo-eye-listed"'),
+  facts: z.array(z.string().min(3).max(120)).min(1),
+  when: JsonLogicSchema,
+  message: text(300),
+});
+
+/**
+ * When the gate is visited again, by verdict: a cleared gate after the days its usage class
+ * gives, one to remedy after `remedyAfterDays`, a withdrawn one as soon as the fixes are
+ * reported (never on a calendar date while it stands out of automatic use).
+ */
+export const ReinspectionSchema = z.strictObject({
+  clearAfterDays: z.strictObject({
+    '1': z.number().int().positive(),
+    '2': z.number().int().positive(),
+    '3': z.number().int().positive(),
+    '4': z.number().int().positive(),
+  }),
+  remedyAfterDays: z.strictObject({
+    '1': z.number().int().positive(),
+    '2': z.number().int().positive(),
+    '3': z.number().int().positive(),
+    '4': z.number().int().positive(),
+  }),
+  withdraw: z.literal('when_fixes_reported'),
+  note: text(300),
 });
 
 const RulesetShapeSchema = z.strictObject({
@@ -150,6 +223,9 @@ const RulesetShapeSchema = z.strictObject({
   hrn: HrnTableSchema,
   questions: z.array(QuestionSchema),
   rules: z.array(RuleSchema).min(1),
+  impliedZones: z.array(ImpliedZoneSchema).optional(),
+  crossChecks: z.array(CrossCheckSchema).optional(),
+  reinspection: ReinspectionSchema.optional(),
 });
 
 /** A ruleset version, with every cross-reference checked (see ruleset-references.ts). */
@@ -163,3 +239,6 @@ export type RulesetQuestion = z.infer<typeof QuestionSchema>;
 export type RulesetParam = z.infer<typeof ParamSchema>;
 export type HrnTable = z.infer<typeof HrnTableSchema>;
 export type RulesetReference = z.infer<typeof ReferenceSchema>;
+export type ImpliedZone = z.infer<typeof ImpliedZoneSchema>;
+export type CrossCheck = z.infer<typeof CrossCheckSchema>;
+export type Reinspection = z.infer<typeof ReinspectionSchema>;

@@ -44,7 +44,7 @@ export async function loadWalk(viewer: SessionUser, assessmentId: string): Promi
     title: content.familyTitle,
     sections: content.sections,
     areas: content.areas,
-    questions: content.questions.map(({ key, section, area, prompt, whyItMatters, answerType, options, askWhen, gateKinds }) => ({
+    questions: content.questions.map(({ key, section, area, prompt, whyItMatters, answerType, options, askWhen, gateKinds, entryUnits }) => ({
       key,
       section,
       area,
@@ -54,6 +54,7 @@ export async function loadWalk(viewer: SessionUser, assessmentId: string): Promi
       gateKinds,
       ...(options ? { options } : {}),
       ...(askWhen !== undefined ? { askWhen } : {}),
+      ...(entryUnits ? { entryUnits } : {}),
     })),
   };
   const editable = assessment.status === 'draft' && viewer.role !== 'homeowner' && (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);

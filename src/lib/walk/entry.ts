@@ -26,8 +26,20 @@ export function parseEntered(text: string): number | null {
   return null;
 }
 
-/** Units offered for a kind, imperial first or metric first by the organisation's system; the first is the default. */
-export function unitsFor(kind: MeasuredAnswerType, system: UnitSystem): string[] {
+/** Imperial units of the kinds that have two systems; the others are metric (or have one unit). */
+const IMPERIAL_UNITS: ReadonlySet<string> = new Set(['in', 'ft', 'lbf', 'lb', 'ft/s']);
+
+/**
+ * Units offered for a kind, imperial first or metric first by the organisation's system; the
+ * first is the default. A question may name its own units (`entryUnits`, e.g. a wire run in feet
+ * or metres): those are offered instead, in the same system order.
+ */
+export function unitsFor(kind: MeasuredAnswerType, system: UnitSystem, entryUnits?: readonly string[]): string[] {
+  if (entryUnits && entryUnits.length > 0) {
+    const imperial = entryUnits.filter((u) => IMPERIAL_UNITS.has(u));
+    const metric = entryUnits.filter((u) => !IMPERIAL_UNITS.has(u));
+    return system === 'imperial' ? [...imperial, ...metric] : [...metric, ...imperial];
+  }
   const pairs: Partial<Record<MeasuredAnswerType, [string, string]>> = {
     length: ['in', 'mm'],
     force: ['lbf', 'N'],

@@ -9,7 +9,10 @@ import type { AnswerType, RulesetQuestion } from '@/lib/rules/ruleset-schema';
 import type { HazardArea, WalkSection } from '@/lib/rules/vocabulary';
 import type { WalkDocuments } from './documents';
 
-export type WalkQuestion = Pick<RulesetQuestion, 'key' | 'section' | 'area' | 'prompt' | 'whyItMatters' | 'answerType' | 'options' | 'askWhen' | 'gateKinds'>;
+export type WalkQuestion = Pick<
+  RulesetQuestion,
+  'key' | 'section' | 'area' | 'prompt' | 'whyItMatters' | 'answerType' | 'options' | 'askWhen' | 'gateKinds' | 'entryUnits'
+>;
 
 export interface WalkRuleset {
   family: string;

@@ -11,10 +11,7 @@ import { UL325_PRE2016_ENTRAPMENT_TABLE } from '@/lib/rules/calculators/ul325-en
 const device = (type: FittedDevice['type'], monitored = true): FittedDevice => ({ type, monitored });
 
 /** A residential slide gate with an entrapment zone when closing only. */
-function slideGate(
-  closing: FittedDevice[],
-  overrides: Partial<EntrapmentProtectionInput> = {},
-): EntrapmentProtectionInput {
+function slideGate(closing: FittedDevice[], overrides: Partial<EntrapmentProtectionInput> = {}): EntrapmentProtectionInput {
   return {
     gateKind: 'slide',
     usageClass: 1,
@@ -132,8 +129,7 @@ describe('2016 rules', () => {
   });
 
   it('reports a device that does not count even when the direction complies', () => {
-    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B2'), device('E')])).byEdition['2016']
-      .closing;
+    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B2'), device('E')])).byEdition['2016'].closing;
     expect(closing.compliant).toBe(true);
     expect(closing.reasons).toEqual(['type_e_not_counted']);
   });
@@ -203,10 +199,7 @@ describe('pre-2016 table', () => {
 
   it('counts an audio alarm as secondary on a class IV slide gate', () => {
     expect(old([device('A'), device('E')], { usageClass: 4 }).compliant).toBe(true);
-    expect(old([device('A'), device('E')], { usageClass: 1 }).byEdition['pre-2016'].closing.reasons).toEqual([
-      'needs_secondary',
-      'type_not_allowed_for_kind',
-    ]);
+    expect(old([device('A'), device('E')], { usageClass: 1 }).byEdition['pre-2016'].closing.reasons).toEqual(['needs_secondary', 'type_not_allowed_for_kind']);
   });
 
   it('accepts a class I swing gate with clutch and constant-pressure control', () => {

@@ -1,11 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  EN12445_MIN_SAMPLE_RATE_HZ,
-  EN12453_FORCE_LIMITS,
-  evaluateForceTrace,
-  ForceTraceError,
-  type ForceSample,
-} from '@/lib/rules/calculators/force-trace';
+import { EN12445_MIN_SAMPLE_RATE_HZ, EN12453_FORCE_LIMITS, evaluateForceTrace, ForceTraceError, type ForceSample } from '@/lib/rules/calculators/force-trace';
 
 type Corner = [timeS: number, forceN: number];
 
@@ -175,9 +169,7 @@ describe('evaluateForceTrace: each criterion can fail', () => {
 
   it("takes a ruleset's own limits", () => {
     const pulse = trace([0, 0], [0.1, 350], [0.6, 10]);
-    expect(
-      evaluateForceTrace(pulse, slideAt300, { peakDynamicN: { gap_50_500: 300, gap_over_500: 1400 } }).pass.peak,
-    ).toBe(false);
+    expect(evaluateForceTrace(pulse, slideAt300, { peakDynamicN: { gap_50_500: 300, gap_over_500: 1400 } }).pass.peak).toBe(false);
     expect(evaluateForceTrace(pulse, slideAt300, { maxDynamicDurationS: 0.3 }).pass.durationAbove150).toBe(false);
   });
 });

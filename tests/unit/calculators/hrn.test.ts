@@ -1,13 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  calculateHrn,
-  deriveHrnFactors,
-  HRN_TABLE_WIDELY_REPRINTED,
-  hrnBand,
-  npBand,
-  npKey,
-  type HrnTable,
-} from '@/lib/rules/calculators/hrn';
+import { calculateHrn, deriveHrnFactors, HRN_TABLE_WIDELY_REPRINTED, hrnBand, npBand, npKey, type HrnTable } from '@/lib/rules/calculators/hrn';
 
 describe('calculateHrn', () => {
   // HRN tables: one widely reprinted version, as in REFERENCES.md (secondary source, verify)
@@ -28,9 +20,7 @@ describe('calculateHrn', () => {
 
   it('keeps small ratings exact', () => {
     // 0.033 × 0.5 × 0.1 × 1 = 0.00165
-    expect(calculateHrn({ lo: 'almost_impossible', fe: 'annually', dph: 'scratch_bruise', np: '1_2' }).hrn).toBe(
-      0.00165,
-    );
+    expect(calculateHrn({ lo: 'almost_impossible', fe: 'annually', dph: 'scratch_bruise', np: '1_2' }).hrn).toBe(0.00165);
   });
 
   it('uses a table passed in', () => {

@@ -50,9 +50,9 @@ describe('roundTo', () => {
     // The definition the fast path must match: tame float noise to 15 significant digits
     // (IEEE 754 doubles carry 15–17), then round half up. common practice, no source
     const reference = (value: number, decimals: number) => Math.round(Number((value * 10 ** decimals).toPrecision(15))) / 10 ** decimals + 0;
-    const nearHalf = fc.tuple(fc.integer({ min: -10_000_000, max: 10_000_000 }), fc.integer({ min: 0, max: 4 }), fc.integer({ min: -3, max: 3 })).map(
-      ([n, decimals, ulps]) => [(n + 0.5) / 10 ** decimals + ulps * Number.EPSILON * Math.abs(n / 10 ** decimals), decimals] as const,
-    );
+    const nearHalf = fc
+      .tuple(fc.integer({ min: -10_000_000, max: 10_000_000 }), fc.integer({ min: 0, max: 4 }), fc.integer({ min: -3, max: 3 }))
+      .map(([n, decimals, ulps]) => [(n + 0.5) / 10 ** decimals + ulps * Number.EPSILON * Math.abs(n / 10 ** decimals), decimals] as const);
     const anyValue = fc.tuple(fc.double({ min: -1e9, max: 1e9, noNaN: true }), fc.integer({ min: 0, max: 6 }));
     fc.assert(
       fc.property(fc.oneof(nearHalf, anyValue), ([value, decimals]) => Object.is(roundTo(value, decimals), reference(value, decimals))),

@@ -1,10 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  assessPowerInstallation,
-  NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT,
-  voltageDrop,
-  type PowerInstallationInput,
-} from '@/lib/rules/calculators/power-wiring';
+import { NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT, voltageDrop } from '@/lib/rules/calculators/power-wiring';
 
 describe('voltageDrop', () => {
   it('reproduces the worked example: 100 ft of 1.02 Ω/1000 ft at 10 A drops 2.04 V', () => {
@@ -37,66 +32,11 @@ describe('voltageDrop', () => {
   });
 
   it('refuses a gauge it has no resistance for unless one is given', () => {
-    expect(() => voltageDrop({ awg: 8 as never, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 })).toThrow(
-      RangeError,
-    );
-    expect(
-      voltageDrop({ awg: 8 as never, ohmsPer1000Ft: 0.764, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 }).dropV,
-    ).toBe(0.015);
+    expect(() => voltageDrop({ awg: 8 as never, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 })).toThrow(RangeError);
+    expect(voltageDrop({ awg: 8 as never, ohmsPer1000Ft: 0.764, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 }).dropV).toBe(0.015);
   });
 
   it('refuses a run without a length', () => {
     expect(() => voltageDrop({ awg: 12, currentA: 1, supplyVoltage: 24 })).toThrow(/length/);
-  });
-});
-
-describe('assessPowerInstallation', () => {
-  // every limit here is common practice, no source
-  const good: PowerInstallationInput = {
-    chargerSources: ['solar'],
-    controlBoxHeightMm: 1000,
-    batteryBoxHeightMm: 950,
-    distanceToAcSourceMm: 1500,
-    lowVoltageWireDirectBurial: true,
-    conduitWhereLeavingGround: true,
-  };
-
-  it('passes a solar-charged installation with raised boxes and buried wire in conduit', () => {
-    expect(assessPowerInstallation(good).pass).toBe(true);
-  });
-
-  it('fails a battery charged by transformer and solar at once', () => {
-    const result = assessPowerInstallation({ ...good, chargerSources: ['transformer', 'solar'] });
-    expect(result.chargingSources).toEqual({ count: 2, pass: false });
-    expect(result.pass).toBe(false);
-  });
-
-  it('counts several solar panels on one charger as one source', () => {
-    expect(assessPowerInstallation({ ...good, chargerSources: ['solar', 'solar'] }).chargingSources.pass).toBe(true);
-  });
-
-  it('fails a battery box 600 mm above ground and passes one at exactly 3 ft', () => {
-    expect(assessPowerInstallation({ ...good, batteryBoxHeightMm: 600 }).batteryBoxHeight.pass).toBe(false);
-    expect(assessPowerInstallation({ ...good, batteryBoxHeightMm: 914.4 }).batteryBoxHeight.pass).toBe(true);
-    expect(assessPowerInstallation({ ...good, controlBoxHeightMm: 914.3 }).pass).toBe(false);
-  });
-
-  it('fails boxes within 3 ft of an AC source', () => {
-    expect(assessPowerInstallation({ ...good, distanceToAcSourceMm: 500 }).distanceToAcSource.pass).toBe(false);
-  });
-
-  it('fails wire not rated for burial and wire leaving the ground without conduit', () => {
-    expect(assessPowerInstallation({ ...good, lowVoltageWireDirectBurial: false }).pass).toBe(false);
-    expect(assessPowerInstallation({ ...good, conduitWhereLeavingGround: false }).pass).toBe(false);
-  });
-
-  it('leaves the charging check open on a mains-only operator without a charger', () => {
-    const result = assessPowerInstallation({ ...good, chargerSources: [] });
-    expect(result.chargingSources.pass).toBeNull();
-    expect(result.pass).toBe(true);
-  });
-
-  it("takes a ruleset's own limits", () => {
-    expect(assessPowerInstallation(good, { boxMinHeightMm: 1200 }).pass).toBe(false);
   });
 });

@@ -26,7 +26,12 @@ const referenceJson = configure({ deterministic: true, bigint: false, circularVa
 /** The same object with every key order reversed, all the way down. */
 function reverseKeys(value: unknown): unknown {
   if (Array.isArray(value)) return value.map(reverseKeys);
-  if (value && typeof value === 'object') return Object.fromEntries(Object.entries(value).reverse().map(([k, v]) => [k, reverseKeys(v)]));
+  if (value && typeof value === 'object')
+    return Object.fromEntries(
+      Object.entries(value)
+        .reverse()
+        .map(([k, v]) => [k, reverseKeys(v)]),
+    );
   return value;
 }
 
@@ -116,7 +121,7 @@ describe('scoring determinism', () => {
       // What scoreParsed() hashes for an input handed over already parsed: the generic canonical writer.
       expect(scoreParsed(input, ruleset).inputSha256).toBe(sha256(expected));
     }
-  });
+  }, 30_000); // five shipped versions, 300 inputs each scored twice: seconds on a busy 2-core host
 
   it('declares every object of the input schema to zod in sorted key order, so parsed keys come out canonical', () => {
     const unsorted: string[] = [];

@@ -23,6 +23,11 @@ describe('buildFacts', () => {
       zonesWithoutExternalSensor: 0,
       unmonitoredExternal: 0,
       typeDWithAutoClose: false,
+      zonesFromMeasurements: 0,
+      // a monitored edge (B2) is listed for the open side, opening: the fixed-object zone is protected
+      fixedObjectZoneProtected: true,
+      photoEyes: 1,
+      edges: 1,
       rules2016: true,
       closing: { zone: true, countedTypes2016: 2, externalSensors: 1, monitoredSensors: 1, compliantPre2016: true, compliant2016: true },
       opening: { zone: true, countedTypes2016: 2, externalSensors: 1, monitoredSensors: 1, compliantPre2016: true, compliant2016: true },
@@ -43,6 +48,9 @@ describe('buildFacts', () => {
     expect(facts.calc.force).toEqual({
       testCount: 4,
       rejectedTraces: 0,
+      largeGapTests: 1,
+      // EN 12445 measuring points (secondary source) with an accepted test, and the wide-gap point
+      acceptedGapsMm: [50, 300, 500, 1000],
       worst: { peakN: 900, durationAbove150S: 0.4, staticN: 90, residualAt5sN: 10 },
       smallGapMaxPeakN: 380,
       largeGapMaxPeakN: 900,
@@ -51,9 +59,11 @@ describe('buildFacts', () => {
 
   it('refuses a summary below the 50 mm measuring point as evidence, not as an error', () => {
     const input = euSwingGate();
-    input.forceTests = [{ location: 'closing_edge', direction: 'closing', gapMm: 30, summary: { peakN: 100, durationAbove150S: 0, staticN: 0, residualAt5sN: 0 } }];
+    input.forceTests = [
+      { location: 'closing_edge', direction: 'closing', gapMm: 30, summary: { peakN: 100, durationAbove150S: 0, staticN: 0, residualAt5sN: 0 } },
+    ];
     const { facts, problems } = buildFacts(input);
-    expect(facts.calc.force).toEqual({ testCount: 0, rejectedTraces: 1 });
+    expect(facts.calc.force).toEqual({ testCount: 0, rejectedTraces: 1, largeGapTests: 0, acceptedGapsMm: [] });
     expect(problems).toEqual([{ path: 'forceTests[0]', code: 'gap_not_covered', message: 'A 30 mm gap is below the 50 mm measuring point' }]);
   });
 

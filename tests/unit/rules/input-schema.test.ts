@@ -29,12 +29,17 @@ describe('assessment input schema', () => {
   });
 
   it('rejects an unknown unit and an answer other than yes, no or na', () => {
-    const input = applyPatch(naSwingGate(), { measurements: { hingeGapMm: { value: 1, unit: 'furlong', canonical: 1 } }, answers: { placardsLegible: { value: 'maybe' } } });
+    const input = applyPatch(naSwingGate(), {
+      measurements: { hingeGapMm: { value: 1, unit: 'furlong', canonical: 1 } },
+      answers: { placardsLegible: { value: 'maybe' } },
+    });
     expect(issuesOf(input)).toEqual(['answers.placardsLegible.value: answer yes, no or na', 'measurements.hingeGapMm.unit: unknown unit "furlong"']);
   });
 
   it('needs the opening direction of a swing gate', () => {
-    expect(issuesOf(applyPatch(naSwingGate(), { profile: { openingDirection: REMOVE } }))).toEqual(['profile.openingDirection: a swing gate needs its opening direction']);
+    expect(issuesOf(applyPatch(naSwingGate(), { profile: { openingDirection: REMOVE } }))).toEqual([
+      'profile.openingDirection: a swing gate needs its opening direction',
+    ]);
   });
 
   it('needs either samples or a summary for a force test, not both', () => {

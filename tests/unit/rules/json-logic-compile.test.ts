@@ -6,7 +6,38 @@ import { createPrng, type Prng } from './support/prng';
 // The reference is json-logic-js 2 (`jsonLogic.apply`); the compiled closure must agree with it
 // on every expression and data value, including JavaScript's loose comparisons and thrown errors.
 
-const OPS = ['==', '===', '!=', '!==', '<', '<=', '>', '>=', 'and', 'or', '!', '!!', 'if', 'in', '+', '-', '*', '/', '%', 'min', 'max', 'cat', 'merge', 'missing', 'missing_some', 'all', 'some', 'none', 'substr', 'map'];
+const OPS = [
+  '==',
+  '===',
+  '!=',
+  '!==',
+  '<',
+  '<=',
+  '>',
+  '>=',
+  'and',
+  'or',
+  '!',
+  '!!',
+  'if',
+  'in',
+  '+',
+  '-',
+  '*',
+  '/',
+  '%',
+  'min',
+  'max',
+  'cat',
+  'merge',
+  'missing',
+  'missing_some',
+  'all',
+  'some',
+  'none',
+  'substr',
+  'map',
+];
 const PATHS = ['a', 'b', 'n.x', 'n.y', 'n.deep.z', 'list', 'str', 'nothing', 'n.nothing', '', 'params.limit', 'flag'];
 
 function literal(rng: Prng): unknown {

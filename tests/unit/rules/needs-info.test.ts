@@ -14,7 +14,10 @@ describe('needs information', () => {
     const finding = findingOf(result.findings, 'pinch.fixed-objects');
     expect(finding.outcome).toBe('needs_info');
     expect(finding.missing).toEqual([
-      { key: 'm.fixedObjectClearanceMm', prompt: 'Elsewhere along the swing, what is the smallest distance between the gate and any fixed object (wall, pillar, tree)?' },
+      {
+        key: 'm.fixedObjectClearanceMm',
+        prompt: 'Elsewhere along the swing, what is the smallest distance between the gate and any fixed object (wall, pillar, tree)?',
+      },
     ]);
     expect(result.needsInfo).toEqual([{ ...finding.missing[0], ruleIds: ['pinch.fixed-objects'] }]);
     expect(result.complete).toBe(false);
@@ -44,7 +47,10 @@ describe('needs information', () => {
 
   it('asks for the leaf weight before judging a slide gate speed', () => {
     const result = score(applyPatch(naSlideGate(), { profile: { leafWeight: REMOVE } }), current);
-    expect(findingOf(result.findings, 'force.speed')).toMatchObject({ outcome: 'needs_info', missing: [{ key: 'profile.leafWeightKg', prompt: 'Leaf weight' }] });
+    expect(findingOf(result.findings, 'force.speed')).toMatchObject({
+      outcome: 'needs_info',
+      missing: [{ key: 'profile.leafWeightKg', prompt: 'Leaf weight' }],
+    });
   });
 
   it('treats a required answer of n/a as a rule that does not apply here', () => {
@@ -61,7 +67,17 @@ describe('needs information', () => {
   it('reports a refused force trace as an evidence problem with its input path', () => {
     const eu = shipped('european-powered-gate', '2026.1');
     const input = applyPatch(naSlideGate(), {});
-    input.forceTests = [{ location: 'closing_edge', direction: 'closing', gapMm: 300, samples: [{ t: 0, f: 0 }, { t: 0.5, f: 100 }] }];
+    input.forceTests = [
+      {
+        location: 'closing_edge',
+        direction: 'closing',
+        gapMm: 300,
+        samples: [
+          { t: 0, f: 0 },
+          { t: 0.5, f: 100 },
+        ],
+      },
+    ];
     const result = score(input, eu);
     // EN 12445 5.1.1: the meter samples at 200 Hz or faster
     expect(result.evidenceProblems).toEqual([

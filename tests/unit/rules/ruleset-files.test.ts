@@ -4,9 +4,15 @@ import { HAZARD_AREAS, validateRuleset } from '@/lib/rules';
 import { RULESETS_DIR, shippedRulesetFiles, shippedRulesets } from './support/shipped';
 
 describe('shipped ruleset files', () => {
-  it('ships two families, the North American one in two versions', () => {
+  it('ships two families: the North American one in three versions, the European one in two', () => {
     const versions = shippedRulesets().map((r) => `${r.version.family}@${r.version.version}`);
-    expect(versions).toEqual(['european-powered-gate@2026.1', 'north-american-gate@2015.1', 'north-american-gate@2026.1']);
+    expect(versions).toEqual([
+      'european-powered-gate@2026.1',
+      'european-powered-gate@2026.2',
+      'north-american-gate@2015.1',
+      'north-american-gate@2026.1',
+      'north-american-gate@2026.2',
+    ]);
   });
 
   it.each(shippedRulesetFiles().map((f) => [f.slice(RULESETS_DIR.length + 1), f]))('%s validates against the schema with no problems', (_name, file) => {
@@ -23,7 +29,10 @@ describe('shipped ruleset files', () => {
     expect(r.version.rules.length).toBeLessThanOrEqual(60);
     for (const kind of ['swing', 'slide'] as const) {
       const covered = new Set(r.version.rules.filter((rule) => rule.appliesTo.gateKinds.includes(kind)).map((rule) => rule.area));
-      expect([...HAZARD_AREAS].filter((area) => !covered.has(area)), `${kind} gates`).toEqual([]);
+      expect(
+        [...HAZARD_AREAS].filter((area) => !covered.has(area)),
+        `${kind} gates`,
+      ).toEqual([]);
     }
   });
 
@@ -43,8 +52,16 @@ describe('shipped ruleset files', () => {
 
   it.each(shippedRulesets().map((r) => [r.file, r]))('%s keeps numbers in params: no bare number in a condition', (_f, r) => {
     const bareNumbers = (node: unknown): number[] =>
-      typeof node === 'number' ? [node] : Array.isArray(node) ? node.flatMap(bareNumbers) : node && typeof node === 'object' ? Object.values(node).flatMap(bareNumbers) : [];
-    const offenders = r.version.rules.filter((rule) => bareNumbers(rule.condition).length > 0 || bareNumbers(rule.appliesWhen ?? null).length > 0).map((rule) => rule.id);
+      typeof node === 'number'
+        ? [node]
+        : Array.isArray(node)
+          ? node.flatMap(bareNumbers)
+          : node && typeof node === 'object'
+            ? Object.values(node).flatMap(bareNumbers)
+            : [];
+    const offenders = r.version.rules
+      .filter((rule) => bareNumbers(rule.condition).length > 0 || bareNumbers(rule.appliesWhen ?? null).length > 0)
+      .map((rule) => rule.id);
     expect(offenders).toEqual([]);
   });
 });

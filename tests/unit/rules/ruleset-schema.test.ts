@@ -68,14 +68,20 @@ describe('ruleset schema and cross-references', () => {
     const doc = base();
     doc.questions = doc.questions.filter((q) => q.key !== 'operatorCurrentA');
     const i = ruleIndex(doc, 'power.voltage-drop');
-    expect(problemsOf(doc)).toContainEqual({ path: `rules[${i}].requires`, message: '"calc.power.dropPercent" is worked out from "m.operatorCurrentA", which this version never asks' });
+    expect(problemsOf(doc)).toContainEqual({
+      path: `rules[${i}].requires`,
+      message: '"calc.power.dropPercent" is worked out from "m.operatorCurrentA", which this version never asks',
+    });
   });
 
   it('refuses a rule for slide gates reading a question only asked at swing gates', () => {
     const doc = base();
     const i = ruleIndex(doc, 'pinch.hinge-side');
     doc.rules[i]!.appliesTo.gateKinds = ['swing', 'slide'];
-    expect(problemsOf(doc)).toContainEqual({ path: `rules[${i}].appliesTo.gateKinds`, message: 'rule reads "m.hingeGapMm" but question "hingeGapMm" is not asked for slide gates' });
+    expect(problemsOf(doc)).toContainEqual({
+      path: `rules[${i}].appliesTo.gateKinds`,
+      message: 'rule reads "m.hingeGapMm" but question "hingeGapMm" is not asked for slide gates',
+    });
   });
 
   it('refuses a threshold without its unit', () => {

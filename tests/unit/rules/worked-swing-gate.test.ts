@@ -45,7 +45,12 @@ describe('worked example: residential swing gate', () => {
     // LO: unlikely + 2 steps (children, pedestrians) = even chance 5; FE: class I daily + 1 step
     // (pedestrians) = hourly 4; DPH fatality 15; NP 1–2 people 1 → 5 × 4 × 15 × 1 = 300 (100–500 very high)
     expect(finding('pinch.fixed-objects').hrn).toEqual({
-      lo: 5, fe: 4, dph: 15, np: 1, value: 300, band: 'very_high',
+      lo: 5,
+      fe: 4,
+      dph: 15,
+      np: 1,
+      value: 300,
+      band: 'very_high',
       keys: { lo: 'even_chance', fe: 'hourly', dph: 'fatality', np: '1_2' },
     });
     // DPH loss of one limb 6 → 120, very high; placards major fracture 4 → 80, high; wiring bruise 0.1 → 2, very low

@@ -1,10 +1,9 @@
 /**
  * Low-voltage power to the operator: voltage drop on the run from transformer or solar
- * charger (NEC Chapter 9 Table 8 resistances) and the installation practices that keep the
- * battery and wiring safe.
+ * charger (NEC Chapter 9 Table 8 resistances). The installation limits (box heights, distance
+ * from mains, charging sources) are rule params of the ruleset, judged by its conditions.
  */
-import { checkAtLeast, combinePasses, type LimitCheck } from './limit-check';
-import { optionalBoolean, optionalNonNegative, requireNonNegative, requirePositive, roundTo } from './numbers';
+import { requireNonNegative, requirePositive, roundTo } from './numbers';
 
 /** Wire gauges with a resistance in the default table. */
 export type Awg = 18 | 16 | 14 | 12 | 10;
@@ -13,14 +12,13 @@ export type Awg = 18 | 16 | 14 | 12 | 10;
  * DC resistance of uncoated copper at 75 °C, Ω per 1000 ft, solid / stranded.
  * NEC Chapter 9 Table 8 (as listed in our reference notes); verify against the current edition.
  */
-export const NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT: Readonly<Record<Awg, { solid: number; stranded: number }>> =
-  Object.freeze({
-    18: { solid: 7.77, stranded: 7.95 },
-    16: { solid: 4.89, stranded: 4.99 },
-    14: { solid: 3.07, stranded: 3.14 },
-    12: { solid: 1.93, stranded: 1.98 },
-    10: { solid: 1.21, stranded: 1.24 },
-  });
+export const NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT: Readonly<Record<Awg, { solid: number; stranded: number }>> = Object.freeze({
+  18: { solid: 7.77, stranded: 7.95 },
+  16: { solid: 4.89, stranded: 4.99 },
+  14: { solid: 3.07, stranded: 3.14 },
+  12: { solid: 1.93, stranded: 1.98 },
+  10: { solid: 1.21, stranded: 1.24 },
+});
 
 /** 1 ft = 0.3048 m exactly (NIST SP 811). */
 const METRES_PER_FOOT = 0.3048;
@@ -54,9 +52,7 @@ export interface VoltageDropResult {
  * and R in Ω per 1000 ft. Tells whether the operator still gets enough voltage at the far end.
  */
 export function voltageDrop(input: VoltageDropInput): VoltageDropResult {
-  const lengthFt =
-    input.oneWayLengthFt ??
-    (input.oneWayLengthM === null || input.oneWayLengthM === undefined ? null : input.oneWayLengthM / METRES_PER_FOOT);
+  const lengthFt = input.oneWayLengthFt ?? (input.oneWayLengthM === null || input.oneWayLengthM === undefined ? null : input.oneWayLengthM / METRES_PER_FOOT);
   if (lengthFt === null) throw new RangeError('Give the one-way run length in metres or feet');
   requireNonNegative('oneWayLength', lengthFt);
   const current = requireNonNegative('currentA', input.currentA);
@@ -64,8 +60,7 @@ export function voltageDrop(input: VoltageDropInput): VoltageDropResult {
 
   let ohms = input.ohmsPer1000Ft ?? null;
   if (ohms === null) {
-    const row =
-      input.awg === null || input.awg === undefined ? undefined : NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT[input.awg];
+    const row = input.awg === null || input.awg === undefined ? undefined : NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT[input.awg];
     if (!row) throw new RangeError(`No resistance for AWG ${input.awg}; pass ohmsPer1000Ft`);
     ohms = input.stranded ? row.stranded : row.solid;
   }
@@ -80,71 +75,5 @@ export function voltageDrop(input: VoltageDropInput): VoltageDropResult {
     dropV: roundTo(drop, 3),
     dropPercent: roundTo((drop / supply) * 100, 2),
     voltageAtOperatorV: roundTo(supply - drop, 3),
-  };
-}
-
-/** Control and battery boxes at least 3 ft (914.4 mm) above ground, clear of water and splash. */
-export const BOX_MIN_HEIGHT_ABOVE_GROUND_MM = 914.4; // 3 ft — common practice, no source
-/** Low-voltage boxes at least 3 ft (914.4 mm) from an AC source. */
-export const LOW_VOLTAGE_MIN_DISTANCE_FROM_AC_MM = 914.4; // 3 ft — common practice, no source
-/** Only one charging source connected at a time (not transformer and solar together). */
-export const MAX_CHARGING_SOURCES = 1; // common practice, no source
-
-/** What charges the operator's battery. */
-export type ChargerSource = 'transformer' | 'solar';
-
-/** What the auditor records about the power installation. */
-export interface PowerInstallationInput {
-  chargerSources: readonly ChargerSource[];
-  controlBoxHeightMm?: number | null;
-  batteryBoxHeightMm?: number | null;
-  distanceToAcSourceMm?: number | null;
-  lowVoltageWireDirectBurial?: boolean | null;
-  conduitWhereLeavingGround?: boolean | null;
-}
-
-/** Each installation check, for findings and the report. */
-export interface PowerInstallationResult {
-  /** Distinct kinds of charging source; several panels on one solar charger count once. Null check when none (no battery to charge). */
-  chargingSources: { count: number; pass: boolean | null };
-  controlBoxHeight: LimitCheck;
-  batteryBoxHeight: LimitCheck;
-  distanceToAcSource: LimitCheck;
-  directBurialWire: { pass: boolean | null };
-  conduitLeavingGround: { pass: boolean | null };
-  pass: boolean | null;
-}
-
-/** Judges the power installation against common installer practice (no published source). */
-export function assessPowerInstallation(
-  input: PowerInstallationInput,
-  limits: Partial<{ boxMinHeightMm: number; minDistanceFromAcMm: number; maxChargingSources: number }> = {},
-): PowerInstallationResult {
-  const count = new Set(input.chargerSources).size;
-  const maxSources = limits.maxChargingSources ?? MAX_CHARGING_SOURCES;
-  const boxHeight = limits.boxMinHeightMm ?? BOX_MIN_HEIGHT_ABOVE_GROUND_MM;
-  const result = {
-    chargingSources: { count, pass: count === 0 ? null : count <= maxSources },
-    controlBoxHeight: checkAtLeast(optionalNonNegative('controlBoxHeightMm', input.controlBoxHeightMm), boxHeight),
-    batteryBoxHeight: checkAtLeast(optionalNonNegative('batteryBoxHeightMm', input.batteryBoxHeightMm), boxHeight),
-    distanceToAcSource: checkAtLeast(
-      optionalNonNegative('distanceToAcSourceMm', input.distanceToAcSourceMm),
-      limits.minDistanceFromAcMm ?? LOW_VOLTAGE_MIN_DISTANCE_FROM_AC_MM,
-    ),
-    // low-voltage wire rated for direct burial — common practice, no source
-    directBurialWire: { pass: optionalBoolean(input.lowVoltageWireDirectBurial) },
-    // conduit where the wire leaves the ground — common practice, no source
-    conduitLeavingGround: { pass: optionalBoolean(input.conduitWhereLeavingGround) },
-  };
-  return {
-    ...result,
-    pass: combinePasses(
-      result.chargingSources.pass ?? true,
-      result.controlBoxHeight.pass,
-      result.batteryBoxHeight.pass,
-      result.distanceToAcSource.pass,
-      result.directBurialWire.pass,
-      result.conduitLeavingGround.pass,
-    ),
   };
 }
