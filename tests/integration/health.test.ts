@@ -86,8 +86,6 @@ describe('GET /api/health', () => {
       try {
         const first = await (await fetch(`${server.url}/api/health`)).json();
         expect(first.mail.ok).toBe(true);
-        expect(first.mail.ageMs).toBeGreaterThanOrEqual(0);
-        expect(Date.parse(first.mail.checkedAt)).not.toBeNaN();
 
         const before = sessions;
         const started = Date.now();
@@ -98,6 +96,9 @@ describe('GET /api/health', () => {
         const elapsed = Date.now() - started;
         // 200 calls; the background check may have run once per interval meanwhile, plus one at the edge.
         expect(sessions - before).toBeLessThanOrEqual(Math.floor(elapsed / intervalMs) + 1);
+        // The answer says how old it is.
+        expect(first.mail.ageMs).toBeGreaterThanOrEqual(0);
+        expect(Date.parse(first.mail.checkedAt)).not.toBeNaN();
 
         await new Promise<void>((resolve) => smtp.close(() => resolve()));
         smtpOpen = false;
