@@ -35,12 +35,6 @@ let expired: TestPkcs12;
 let notYetValid: TestPkcs12;
 let encipherOnly: TestPkcs12;
 
-/**
- * Lets the event loop see sockets the server closed while this test was busy on the CPU
- * (reading a PDF): otherwise the next fetch can reuse a dead keep-alive socket.
- */
-const settle = () => new Promise((resolve) => setTimeout(resolve, 50));
-
 const colons = (sha256: string) => (sha256.toUpperCase().match(/../g) ?? []).join(':');
 
 function certificateForm(p12: Buffer | string, passphrase?: string): FormData {
@@ -183,7 +177,6 @@ describe("the organisation's signing certificate", () => {
         fs.rmSync(dir, { recursive: true, force: true });
       }
       const text = (await extractPdfText(pdf)).replace(/\s+/g, '');
-      await settle();
       expect(text).toContain(colons(good.sha256));
       expect(text).toContain('TestIssuingAuthority');
     },
@@ -203,7 +196,6 @@ describe("the organisation's signing certificate", () => {
     expect(answer.certificate).toMatchObject({ sha256: overview.inUse.sha256, selfSigned: true });
     expect(pdfSignerSha256(pdf)).toBe(overview.inUse.sha256);
     const text = (await extractPdfText(pdf)).replace(/\s+/g, ' ');
-    await settle();
     expect(text).toContain('not issued by a public certificate authority');
     expect(text).toContain('unknown or not trusted');
     expect(text.replace(/\s+/g, '')).toContain(colons(overview.inUse.sha256));
