@@ -113,6 +113,10 @@ describe("the organisation's signing certificate", () => {
       const body = await res.json();
       expect(body.errors, name).toEqual([{ field, message: expect.stringMatching(message) }]);
     }
+    // The settings page's form says the same beside the field.
+    const page = await owner.fetch('/settings?certificate=upload', { method: 'POST', body: certificateForm(good.p12, 'not-the-passphrase') });
+    expect(page.status).toBe(422);
+    expect(await page.text()).toContain('The passphrase does not open this certificate file.');
     expect(await storedState()).toEqual(before);
   });
 
