@@ -109,4 +109,26 @@ describe('re-inspection', () => {
     expect(posted.status).toBe(303);
     expect(posted.headers.get('location')).toBe('/archive/reinspection?queued=0&clients=0&skipped=2');
   });
+
+  it('keeps a gate label with line breaks, commas and semicolons inside one escaped SUMMARY of the .ics', async () => {
+    const label = 'Rescheduled gate\rX-INJECTED:1\nBEGIN:VEVENT\r\nSUMMARY:Injected; a, b\\c\r\nEND:VEVENT';
+    const patched = await office.fetch(`/api/gates/${gates.Rescheduled}`, {
+      method: 'PATCH',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ label }),
+    });
+    expect(patched.status).toBe(200);
+    const res = await office.fetch(`/api/archive/gates/${gates.Rescheduled}/reinspection.ics`);
+    expect(res.status).toBe(200);
+    const ics = await res.text();
+    const raw = ics.slice(0, -2).split('\r\n');
+    // Every line is a property or a folded continuation; no CR or LF inside a line.
+    for (const line of raw) expect(line, JSON.stringify(line)).toMatch(/^(?:[A-Za-z0-9-]+(?:;[A-Za-z0-9-]+=[^:;]*)*:|[ \t])[^\r\n]*$/);
+    const lines = ics.replace(/\r\n[ \t]/g, '').split('\r\n');
+    expect(lines.filter((l) => l === 'BEGIN:VEVENT')).toHaveLength(1);
+    expect(lines.filter((l) => l.startsWith('X-INJECTED'))).toHaveLength(0);
+    expect(lines.filter((l) => l.startsWith('SUMMARY'))).toEqual([
+      'SUMMARY:Gate re-inspection due: Rescheduled gate\\nX-INJECTED:1\\nBEGIN:VEVENT\\nSUMMARY:Injected\\; a\\, b\\\\c\\nEND:VEVENT (Harbourview Moorings)',
+    ]);
+  });
 });

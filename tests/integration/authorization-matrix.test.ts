@@ -12,6 +12,7 @@ import path from 'node:path';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { anonymousClient, createOrganisation, fixturePassword, signIn, signInHomeowner, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import { makePkcs12, type TestPkcs12 } from './support/pkcs12';
 import { insertClient, insertDraft, insertGate, insertSite, publishedFamilies, currentVersion, seedDirectory, type Directory } from './support/domain';
 
 type Who = 'owner' | 'office' | 'auditor' | 'homeowner' | 'anonymous' | 'otherOrg';
@@ -87,6 +88,16 @@ async function freshAmendment(t: Targets): Promise<{ path: string; ruleId: strin
   return { path: `/api/rulesets/${draft.family}/${draft.version}`, ruleId: draft.content.rules[0].id };
 }
 
+/** A PKCS#12 the owner may upload as the signing certificate (made once; each call gets a new form). */
+let certificate: TestPkcs12 | undefined;
+async function certificateForm(): Promise<FormData> {
+  certificate ??= await makePkcs12();
+  const form = new FormData();
+  form.set('certificate', new Blob([new Uint8Array(certificate.p12)], { type: 'application/x-pkcs12' }), 'signing.p12');
+  form.set('passphrase', certificate.passphrase);
+  return form;
+}
+
 // prettier-ignore
 const matrix: Row[] = [
   //   route                          method    request                                                                              owner office auditor home anon other
@@ -96,6 +107,9 @@ const matrix: Row[] = [
   row('auth/email-link',             'POST',   () => ({ path: '/api/auth/email-link', body: {} }),                                    s(422, 422, 422, 422, 422, 422)),
   row('organisation',                'GET',    () => ({ path: '/api/organisation' }),                                                 s(200, 200, 200, 403, 401, 200)),
   row('organisation',                'PATCH',  () => ({ path: '/api/organisation', body: { remindClients: false } }),                 s(200, 403, 403, 403, 401, 200)),
+  row('organisation/certificate',    'GET',    () => ({ path: '/api/organisation/certificate' }),                                     s(200, 200, 403, 403, 401, 200)),
+  row('organisation/certificate',    'PUT',    async () => ({ path: '/api/organisation/certificate', multipart: await certificateForm() }), s(200, 403, 403, 403, 401, 200)),
+  row('organisation/certificate',    'DELETE', () => ({ path: '/api/organisation/certificate' }),                                     s(204, 403, 403, 403, 401, 204)),
   row('users/index',                 'GET',    () => ({ path: '/api/users' }),                                                        s(200, 200, 403, 403, 401, 200)),
   row('users/[id]',                  'GET',    (t) => ({ path: `/api/users/${t.org.auditor2.id}` }),                                  s(200, 200, 403, 403, 401, 404)),
   row('users/[id]',                  'PATCH',  (t) => ({ path: `/api/users/${t.org.auditor2.id}`, body: { name: 'Second auditor' } }), s(200, 403, 403, 403, 401, 404)),

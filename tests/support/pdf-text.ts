@@ -9,6 +9,10 @@ export async function extractPdfText(bytes: Uint8Array): Promise<string> {
     pages.push(content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? '\n' : '') : '')).join(''));
   }
   await doc.destroy();
+  // Parsing keeps the event loop busy for seconds on a loaded machine. Let it run once before
+  // the caller's next fetch, so undici sees keep-alive sockets the server closed meanwhile
+  // rather than sending on one ("other side closed").
+  await new Promise((resolve) => setTimeout(resolve, 20));
   // Collapse the renderer's line breaks so phrases can be searched whole.
   return pages.join('\n').replace(/\s+/g, ' ');
 }

@@ -1,7 +1,8 @@
 /**
  * Public verification of a signed report: given the SHA-256 of a PDF (or the PDF itself) or a
- * document id, say whether it is a signed report in the archive, when it was signed and by
- * which organisation — and nothing else: no client, address, findings or file.
+ * document id, say whether it is a signed report in the archive, when it was signed, by which
+ * organisation and with which certificate (its fingerprint, subject and issuer, read from the
+ * archived file) — and nothing else: no client, address, findings or file.
  *
  * Only final signed reports count. The signing copy a homeowner was shown is not "genuine" on
  * its own: it was never signed.
@@ -11,8 +12,14 @@ import type { Knex } from 'knex';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
 import { iso } from './listing';
+import { signerCertificateOfPdf, type CertificateFacts } from './pdf/certificate-facts';
+import { storage } from './storage';
 
-export type VerificationAnswer = { match: true; documentId: string; signedAt: string; organisation: string } | { match: false };
+/** The certificate that signed the file: what a reader's signature details show, to compare. */
+export type SigningCertificateAnswer = Pick<CertificateFacts, 'sha256' | 'subject' | 'issuer' | 'selfSigned'>;
+
+export type VerificationAnswer =
+  { match: true; documentId: string; signedAt: string; organisation: string; certificate?: SigningCertificateAnswer } | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
 
@@ -54,14 +61,20 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
   else query.andWhere('d.id', reference.documentId);
   const row = await query
     .orderBy('d.created_at')
-    .first<{ id: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
+    .first<{ id: string; sha256: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
       'd.id',
+      'd.sha256',
       'o.name as organisation',
       knex.raw('coalesce(s.signed_at, a.signed_at) as signed_at'),
       'd.created_at',
     );
   if (!row) return { match: false };
-  return { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
+  const answer: VerificationAnswer = { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
+  // Read from the archive's own copy, so the fingerprint is the one that signed the genuine file.
+  const pdf = await storage().get(row.sha256);
+  const signer = pdf ? signerCertificateOfPdf(pdf) : null;
+  if (signer) answer.certificate = { sha256: signer.sha256, subject: signer.subject, issuer: signer.issuer, selfSigned: signer.selfSigned };
+  return answer;
 }
 
 /** SHA-256 of a request body read chunk by chunk, refusing it past `limit` bytes. */

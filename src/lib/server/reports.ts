@@ -18,6 +18,7 @@ import {
 } from './pdf/report-model';
 import { renderReportPdf } from './pdf/render';
 import { storage } from './storage';
+import type { CertificateFacts } from './pdf/certificate-facts';
 
 export { ReportNotReady };
 
@@ -194,6 +195,8 @@ async function photosOf(knex: Knex, assessmentId: string): Promise<ReportPhoto[]
 export interface ReportSigning {
   assessor: { name: string; signedAt: Date };
   owner: OwnerSignature;
+  certificate?: CertificateFacts;
+  verifyUrl?: string;
 }
 
 /** Everything the report of `assessmentId` shows, ready for the renderer. */

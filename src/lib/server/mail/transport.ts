@@ -14,16 +14,3 @@ export function mailTransport(): Transporter {
   });
   return transport;
 }
-
-/** True when the SMTP server answers a connection and greeting (used by /api/health). */
-export async function mailReachable(timeoutMs = 2000): Promise<boolean> {
-  try {
-    await Promise.race([
-      mailTransport().verify(),
-      new Promise((_, reject) => setTimeout(() => reject(new Error('timed out')), timeoutMs)),
-    ]);
-    return true;
-  } catch {
-    return false;
-  }
-}

@@ -19,7 +19,10 @@ export interface SignatureDetails {
   signingTime: Date;
 }
 
-/** Room for the PKCS#7 blob: a 2048-bit RSA signature plus one certificate fits well in 8 KiB. */
+/**
+ * Room for the PKCS#7 blob: a 2048-bit RSA signature plus one certificate fits well in 8 KiB.
+ * An uploaded certificate may bring a chain: its PKCS#12 size plus 4 KiB is always enough.
+ */
 const SIGNATURE_LENGTH = 8192;
 
 export async function signPdfWithCertificate(pdf: Uint8Array, p12: Buffer, passphrase: string, details: SignatureDetails): Promise<Buffer> {
@@ -31,7 +34,7 @@ export async function signPdfWithCertificate(pdf: Uint8Array, p12: Buffer, passp
     name: details.name,
     location: details.location,
     signingTime: details.signingTime,
-    signatureLength: SIGNATURE_LENGTH,
+    signatureLength: Math.max(SIGNATURE_LENGTH, p12.length + 4096),
     appName: 'Latchwell',
   });
   // Classic cross-reference table, no object streams: the placeholder must stay findable as

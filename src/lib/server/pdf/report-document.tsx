@@ -6,6 +6,7 @@
  */
 import { Document, Image, Page, Text, View } from '@react-pdf/renderer';
 import type { ReactElement } from 'react';
+import { fingerprintInWords } from './certificate-facts';
 import { ForceTracePlot, SwingGeometryDiagram } from './diagrams';
 import { DISCLAIMER, verdictWords, type ReportModel, type ReportPhoto, type StoredFinding } from './report-model';
 import { styles } from './styles';
@@ -371,6 +372,14 @@ function Identity({ model }: { model: ReportModel }) {
       ['SHA-256 of the copy shown', owner.shownPdfSha256],
     );
   }
+  const certificate = model.signing?.certificate;
+  if (certificate) {
+    rows.push(
+      ['Signing certificate', certificate.subject],
+      ['Certificate issued by', certificate.selfSigned ? 'itself: made for this organisation, not by a public certificate authority' : certificate.issuer],
+      ['Certificate SHA-256', fingerprintInWords(certificate.sha256)],
+    );
+  }
   return (
     <View>
       {rows.map(([name, value]) => (
@@ -382,6 +391,11 @@ function Identity({ model }: { model: ReportModel }) {
       {model.kind === 'signed_report' ? (
         <Text style={[styles.small, { marginTop: 6 }]}>
           This file carries a digital signature of {pdfText(model.organisation.name)}; a PDF reader shows whether anything changed after signing.
+          {certificate?.selfSigned
+            ? ` The signing certificate was made for ${pdfText(model.organisation.name)} by its report software, not issued by a public certificate authority, so a reader shows the signer or issuer as unknown or not trusted. That says nothing about changes to the file. To check who signed it, compare the certificate's SHA-256 fingerprint in the reader's signature details with the one above and with the one the Verify page (${pdfText(model.signing?.verifyUrl ?? '/verify')}) shows for this file.`
+            : certificate
+              ? ` The signing certificate was issued by ${pdfText(certificate.issuer)}; a reader that trusts that authority names the signer. Its SHA-256 fingerprint is above, and the Verify page (${pdfText(model.signing?.verifyUrl ?? '/verify')}) shows it too.`
+              : ''}
         </Text>
       ) : null}
     </View>

@@ -7,6 +7,7 @@
  * report of an old assessment still renders after the engine's result grows new fields.
  */
 import { z } from 'zod';
+import type { CertificateFacts } from './certificate-facts';
 
 const SEVERITY_ORDER = ['critical', 'major', 'minor'] as const;
 export type Severity = (typeof SEVERITY_ORDER)[number];
@@ -138,6 +139,10 @@ export interface ReportSource {
   signing: {
     assessor: { name: string; signedAt: Date };
     owner: OwnerSignature;
+    /** The certificate whose key signs the final PDF, named in its record. */
+    certificate?: CertificateFacts;
+    /** Where anyone can check the signed file, e.g. https://reports.example/verify. */
+    verifyUrl?: string;
   } | null;
 }
 

@@ -13,7 +13,8 @@ import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { signPdfWithCertificate } from '../pdf/digital-signature';
-import { organisationCertificate } from '../pdf/organisation-certificate';
+import { signingCertificateFor } from '../signing-certificates';
+import { configuredOrigin } from '../auth/public-origin';
 import { cautionsOf, StoredResultSchema } from '../pdf/report-model';
 import { loadAssessmentForReport, renderAssessmentReport } from '../reports';
 import { storage } from '../storage';
@@ -103,6 +104,8 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
     if (!row) throw new HttpProblem(404, 'That assessment was not found.');
     const signedAt = new Date(signature.signed_at);
     const documentId = randomUUID();
+    // Chosen before rendering: the report names the certificate that signs it.
+    const certificate = await signingCertificateFor({ id: row.organisation_id, name: row.org_name }, trx);
     const pdf = await renderAssessmentReport(
       request.organisation_id,
       request.assessment_id,
@@ -124,12 +127,14 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
             intentText: INTENT_TEXT,
             cautionsAcknowledged: cautions.map((c) => ({ ruleId: c.ruleId, title: c.title })),
           },
+          certificate: certificate.facts,
+          // Only the configured public address: the signer's request must not name the host.
+          verifyUrl: `${configuredOrigin() ?? ''}/verify`,
         },
       },
       trx,
     );
     if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
-    const certificate = organisationCertificate({ id: row.organisation_id, name: row.org_name });
     const signedPdf = await signPdfWithCertificate(pdf, certificate.p12, certificate.passphrase, {
       reason: `Gate safety assessment ${row.id}, acknowledged by ${body.name}`,
       name: row.org_name,
