@@ -78,12 +78,13 @@ describe('a homeowner sign-in link posted with Origin: null', () => {
   it('is refused with a readable page when the post is cross-site, and the link stays usable', async () => {
     const link = new URL(await requestHomeownerLink(org.homeowner.email));
     const token = link.searchParams.get('token') ?? '';
-    for (const headers of [
+    const refused: Record<string, string>[] = [
       { origin: 'null', 'sec-fetch-site': 'cross-site' },
       { origin: 'null', 'sec-fetch-site': 'same-site' },
       { origin: 'null' },
       { origin: 'https://elsewhere.test', 'sec-fetch-site': 'same-origin' },
-    ]) {
+    ];
+    for (const headers of refused) {
       const client = anonymousClient();
       const res = await postCredentials(client, 'email-link', { token, callbackUrl: '/' }, { ...browserForm, ...headers });
       expect(res.status, JSON.stringify(headers)).toBe(403);
@@ -113,7 +114,8 @@ describe('an invitation accepted with Origin: null', () => {
 
   it('is refused when cross-site, and the invitation stays open', async () => {
     const { email, token } = await invitationToken();
-    for (const headers of [{ origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test' }, { origin: 'null' }]) {
+    const refused: Record<string, string>[] = [{ origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test' }, { origin: 'null' }];
+    for (const headers of refused) {
       const res = await acceptForm(anonymousClient(), token, headers);
       expect(res.status, JSON.stringify(headers)).toBe(403);
       expect(res.headers.get('content-type')).toMatch(/^text\/html/);
@@ -126,7 +128,8 @@ describe('an invitation accepted with Origin: null', () => {
 
 describe('an API write', () => {
   it('is refused with problem+json when Sec-Fetch-Site says cross-site, whatever Origin claims', async () => {
-    for (const headers of [{ 'sec-fetch-site': 'cross-site' }, { origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test', 'sec-fetch-site': 'same-origin' }]) {
+    const refused: Record<string, string>[] = [{ 'sec-fetch-site': 'cross-site' }, { origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test', 'sec-fetch-site': 'same-origin' }];
+    for (const headers of refused) {
       const res = await owner.fetch('/api/organisation', {
         method: 'PATCH',
         headers: { 'content-type': 'application/json', accept: 'application/json', ...headers },

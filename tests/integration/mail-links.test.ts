@@ -159,9 +159,10 @@ describe('mail while SMTP is unreachable', () => {
   it('queues a homeowner sign-in link instead of losing it', async () => {
     const res = await json(bare.url, 'POST', '/api/auth/email-link', { email: org.homeowner.email });
     expect(res.status, res.body).toBe(202);
-    const row = await until('a queued sign-in link message', async () =>
-      testDb()('outbox_messages').where({ channel }).whereRaw('? = any(to_addresses)', [org.homeowner.email]).first('kind', 'status', 'organisation_id'),
-    );
+    const row = await until('a queued sign-in link message', async () => {
+      const r = await testDb()('outbox_messages').where({ channel }).whereRaw('? = any(to_addresses)', [org.homeowner.email]).first('kind', 'status', 'organisation_id');
+      return r ? (r as { kind: string; status: string; organisation_id: string }) : undefined;
+    });
     expect(row).toMatchObject({ kind: 'sign_in_link', organisation_id: org.id });
     expect(row.status).not.toBe('sent');
   });
