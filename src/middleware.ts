@@ -66,7 +66,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
   }
   if (!signedIn && !api && isProtectedPage(path)) {
     const next = `${context.url.pathname}${context.url.search}`;
-    return withSecurityHeaders(context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303), false);
+    return withSecurityHeaders(
+      context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303),
+      false,
+    );
   }
   const response = await next();
   // An /api path with no route (or no handler for the method) answers like every other API error.

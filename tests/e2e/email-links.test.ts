@@ -6,7 +6,16 @@
  * their forms must still pass the server's same-site check.
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { caughtMailIds, createOrganisation, fixturePassword, linkIn, signIn, waitForMail, type FixtureOrganisation, type TestClient } from '../integration/support/fixtures';
+import {
+  caughtMailIds,
+  createOrganisation,
+  fixturePassword,
+  linkIn,
+  signIn,
+  waitForMail,
+  type FixtureOrganisation,
+  type TestClient,
+} from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 
@@ -51,6 +60,8 @@ describe('e-mailed links in a phone browser', () => {
     await page.waitForURL((url) => url.pathname === '/');
     await page.getByRole('link', { name: 'Open assessments' }).waitFor();
     expect(await hasSessionCookie()).toBe(true);
+    await page.getByText('Menu', { exact: true }).click();
+    await page.getByRole('button', { name: 'Sign out' }).last().waitFor();
     await screenshotBothWidths(page, 'links-02-homeowner-signed-in');
     // The link worked once: opening it again and pressing the button says so.
     await context.clearCookies();
@@ -87,6 +98,8 @@ describe('e-mailed links in a phone browser', () => {
     await page.getByRole('button', { name: 'Sign in', exact: true }).click();
     await page.waitForURL((url) => url.pathname === '/');
     expect(await hasSessionCookie()).toBe(true);
+    await page.getByText('Menu', { exact: true }).click();
+    await page.getByRole('link', { name: 'Archive' }).last().waitFor();
     await screenshotBothWidths(page, 'links-04-invited-signed-in');
   });
 });

@@ -69,7 +69,12 @@ describe('a homeowner sign-in link posted with Origin: null', () => {
     const link = new URL(await requestHomeownerLink(org.homeowner.email));
     const client = anonymousClient();
     expect((await client.fetch(link.pathname + link.search)).status).toBe(200);
-    const res = await postCredentials(client, 'email-link', { token: link.searchParams.get('token') ?? '', callbackUrl: '/' }, { ...browserForm, ...opaqueSameOrigin });
+    const res = await postCredentials(
+      client,
+      'email-link',
+      { token: link.searchParams.get('token') ?? '', callbackUrl: '/' },
+      { ...browserForm, ...opaqueSameOrigin },
+    );
     expect([302, 303], await res.clone().text()).toContain(res.status);
     expect(new URL(res.headers.get('location') ?? '', 'http://x').pathname).toBe('/');
     expect(hasSession(client)).toBe(true);
@@ -128,7 +133,11 @@ describe('an invitation accepted with Origin: null', () => {
 
 describe('an API write', () => {
   it('is refused with problem+json when Sec-Fetch-Site says cross-site, whatever Origin claims', async () => {
-    const refused: Record<string, string>[] = [{ 'sec-fetch-site': 'cross-site' }, { origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test', 'sec-fetch-site': 'same-origin' }];
+    const refused: Record<string, string>[] = [
+      { 'sec-fetch-site': 'cross-site' },
+      { origin: 'null', 'sec-fetch-site': 'cross-site' },
+      { origin: 'https://elsewhere.test', 'sec-fetch-site': 'same-origin' },
+    ];
     for (const headers of refused) {
       const res = await owner.fetch('/api/organisation', {
         method: 'PATCH',

@@ -53,7 +53,10 @@ export async function inviteStaff(organisationId: string, input: InvitationCreat
   const token = newLinkToken();
   const invitation = await db().transaction(async (trx) => {
     const existing = await trx('users').whereRaw('email = ?::citext', [input.email]).first('id');
-    if (existing) throw new HttpProblem(409, 'Someone with this e-mail address already has an account.', { errors: [{ field: 'email', message: 'already has an account' }] });
+    if (existing)
+      throw new HttpProblem(409, 'Someone with this e-mail address already has an account.', {
+        errors: [{ field: 'email', message: 'already has an account' }],
+      });
     const revoked = await trx('invitations')
       .where({ organisation_id: organisationId })
       .whereRaw('email = ?::citext', [input.email])

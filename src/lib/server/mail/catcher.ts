@@ -96,9 +96,7 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
 
   async function list(): Promise<CaughtMessageSummary[]> {
     const names = (await fs.readdir(options.dir)).filter((n) => n.endsWith('.json'));
-    const items = await Promise.all(
-      names.map(async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage),
-    );
+    const items = await Promise.all(names.map(async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage));
     return items
       .map(({ id, receivedAt, from, to, subject, attachments, outboxId }) => ({ id, receivedAt, from, to, subject, attachments, outboxId: outboxId ?? null }))
       .sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));

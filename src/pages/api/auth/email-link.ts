@@ -19,7 +19,12 @@ export const POST: APIRoute = handle(async (context) => {
   const { email } = await parseBody(EmailLinkRequestSchema, context.request, 4096);
   const result = await requestSignInLink(email, clientAddressOf(context));
   if (result.outcome === 'throttled') {
-    return problem(429, `Too many sign-in links asked for. Try again in ${waitInWords(result.retryAfterSeconds)}.`, {}, { 'retry-after': String(result.retryAfterSeconds) });
+    return problem(
+      429,
+      `Too many sign-in links asked for. Try again in ${waitInWords(result.retryAfterSeconds)}.`,
+      {},
+      { 'retry-after': String(result.retryAfterSeconds) },
+    );
   }
   return Response.json({ detail: 'If this address belongs to a homeowner or property manager we work for, a sign-in link is on its way.' }, { status: 202 });
 });
