@@ -5,7 +5,7 @@
  * security headers. Role checks per endpoint stay in the handlers (`requireRole`).
  */
 import { defineMiddleware } from 'astro:middleware';
-import { isCrossSiteWrite } from '@/lib/server/auth/origin';
+import { crossSiteRefusal, isCrossSiteWrite } from '@/lib/server/auth/origin';
 import { isApiPath, isProtectedPage, isPublicApiPath, normalisePath } from '@/lib/server/auth/paths';
 import { readSession } from '@/lib/server/auth/session';
 import { clearSessionCookies } from '@/lib/server/auth/sign-out';
@@ -41,10 +41,7 @@ export const onRequest = defineMiddleware(async (context, next) => {
   context.locals.user = null;
   context.locals.organisation = null;
 
-  if (isCrossSiteWrite(context.request)) {
-    const refusal = api ? problem(403, 'Requests from another site are refused.') : new Response('Requests from another site are refused.', { status: 403 });
-    return withSecurityHeaders(refusal, false);
-  }
+  if (isCrossSiteWrite(context.request)) return withSecurityHeaders(crossSiteRefusal(context.request), false);
 
   let session: Awaited<ReturnType<typeof readSession>>;
   try {
@@ -69,7 +66,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
   }
   if (!signedIn && !api && isProtectedPage(path)) {
     const next = `${context.url.pathname}${context.url.search}`;
-    return withSecurityHeaders(context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303), false);
+    return withSecurityHeaders(
+      context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303),
+      false,
+    );
   }
   const response = await next();
   // An /api path with no route (or no handler for the method) answers like every other API error.

@@ -2,6 +2,7 @@
 import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { ensureDatabase } from '../../db/launcher';
+import { listeningOrigin } from '../lib/server/auth/public-origin';
 import { startMailCatcher } from '../lib/server/mail/catcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
@@ -10,6 +11,8 @@ import { authSecret, dataDir, projectRoot } from './services';
 
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
+// E-mailed links point at the dev server unless AUTH_URL / PUBLIC_URL says otherwise.
+if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) process.env.PUBLIC_URL = listeningOrigin(process.env.HOST ?? '127.0.0.1', process.env.PORT ?? 4321);
 const db = await ensureDatabase();
 await migrateLatest(db.appUrl);
 await publishRulesetFiles(db.appUrl);

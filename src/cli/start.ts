@@ -5,6 +5,7 @@
 import path from 'node:path';
 import { ensureDatabase, stopDatabase } from '../../db/launcher';
 import { demoHomeownerEmail, demoPassword, demoStaff } from '../../db/seeds/demo/people';
+import { listeningOrigin } from '../lib/server/auth/public-origin';
 import { startMailCatcher, type RunningCatcher } from '../lib/server/mail/catcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
@@ -15,6 +16,8 @@ const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 4321);
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
+// E-mailed links (the demo seed's too) point here unless AUTH_URL / PUBLIC_URL says otherwise.
+if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) process.env.PUBLIC_URL = listeningOrigin(host, port);
 
 const db = await ensureDatabase();
 const applied = await migrateLatest(db.appUrl);

@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { freePort, startAppServer } from '../../src/cli/services';
 import {
   anonymousClient,
   closeTestDb,
@@ -46,7 +47,12 @@ describe('staff sign-in with e-mail and password', () => {
   it('redirects to the requested page after signing in', async () => {
     const { response, client } = await (async () => {
       const c = anonymousClient();
-      const r = await postCredentials(c, 'credentials', { email: org.office.email, password: fixturePassword, callbackUrl: '/clients?kind=business' }, { accept: 'text/html' });
+      const r = await postCredentials(
+        c,
+        'credentials',
+        { email: org.office.email, password: fixturePassword, callbackUrl: '/clients?kind=business' },
+        { accept: 'text/html' },
+      );
       return { response: r, client: c };
     })();
     expect(hasSession(client)).toBe(true);
@@ -56,7 +62,12 @@ describe('staff sign-in with e-mail and password', () => {
 
   it('does not follow a next target on another site', async () => {
     const c = anonymousClient();
-    const r = await postCredentials(c, 'credentials', { email: org.office.email, password: fixturePassword, callbackUrl: 'https://elsewhere.test/steal' }, { accept: 'text/html' });
+    const r = await postCredentials(
+      c,
+      'credentials',
+      { email: org.office.email, password: fixturePassword, callbackUrl: 'https://elsewhere.test/steal' },
+      { accept: 'text/html' },
+    );
     expect(hasSession(c)).toBe(true);
     expect(new URL(r.headers.get('location') ?? '').host).toBe(new URL(inject('baseUrl')).host);
   });
@@ -88,7 +99,12 @@ describe('staff sign-in with e-mail and password', () => {
 
   it('keeps the next target on the sign-in page after a refusal', async () => {
     const c = anonymousClient();
-    const r = await postCredentials(c, 'credentials', { email: org.owner.email, password: 'nope-nope-nope', callbackUrl: '/staff' }, { accept: 'text/html', 'x-forwarded-for': someAddress() });
+    const r = await postCredentials(
+      c,
+      'credentials',
+      { email: org.owner.email, password: 'nope-nope-nope', callbackUrl: '/staff' },
+      { accept: 'text/html', 'x-forwarded-for': someAddress() },
+    );
     expect(new URLSearchParams((r.headers.get('location') ?? '').split('?')[1]).get('next')).toBe('/staff');
   });
 
@@ -114,17 +130,29 @@ describe('staff sign-in with e-mail and password', () => {
   });
 
   it('marks the session cookie Secure (and __Secure-) when the public URL is https', async () => {
+    // A server whose configured public URL is https, as behind a TLS-terminating proxy.
+    const port = await freePort();
+    const publicUrl = `https://127.0.0.1:${port}`;
+    const server = await startAppServer({ port, quiet: true, env: { ...inject('serverEnv'), PUBLIC_URL: publicUrl, OUTBOX_WORKER: 'off' } });
+    try {
+      await expectSecureCookies(server.url, publicUrl);
+    } finally {
+      await server.stop();
+    }
+  });
+
+  async function expectSecureCookies(baseUrl: string, publicUrl: string) {
     const tls = { 'x-forwarded-proto': 'https' };
-    const csrfRes = await fetch(new URL('/api/auth/csrf', inject('baseUrl')), { headers: tls });
+    const csrfRes = await fetch(new URL('/api/auth/csrf', baseUrl), { headers: tls });
     const csrfCookie = csrfRes.headers.getSetCookie().find((c) => c.startsWith('__Host-authjs.csrf-token='));
     expect(csrfCookie).toMatch(/;\s*Secure/i);
     const { csrfToken } = await csrfRes.json();
-    const res = await fetch(new URL('/api/auth/callback/credentials', inject('baseUrl')), {
+    const res = await fetch(new URL('/api/auth/callback/credentials', baseUrl), {
       method: 'POST',
       redirect: 'manual',
       headers: {
         ...tls,
-        origin: inject('baseUrl').replace(/^http:/, 'https:'),
+        origin: publicUrl,
         'content-type': 'application/x-www-form-urlencoded',
         cookie: csrfCookie?.split(';')[0] ?? '',
       },
@@ -135,7 +163,7 @@ describe('staff sign-in with e-mail and password', () => {
     expect(session).toMatch(/;\s*Secure/i);
     expect(session).toMatch(/;\s*HttpOnly/i);
     expect(session).toMatch(/;\s*SameSite=Lax/i);
-  });
+  }
 
   it('refuses a sign-in post without the CSRF token', async () => {
     const client = anonymousClient();

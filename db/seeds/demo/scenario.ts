@@ -35,7 +35,6 @@ import { demoHomeownerEmail, demoOrganisation, demoPassword, demoStaff } from '.
 import { walkFor, type WalkDocuments } from './walk';
 
 const family = 'north-american-gate';
-const publicOrigin = process.env.PUBLIC_URL ?? `http://127.0.0.1:${process.env.PORT ?? 4321}`;
 
 type Outcome = 'draft' | 'scored' | 'awaiting_signature' | 'signed' | 'revised';
 
@@ -248,7 +247,7 @@ async function carryOut(knex: Knex, work: VisitWork): Promise<void> {
   if (!scored) throw new Error(`demo: could not submit ${draft.id}`);
   if (visit.outcome === 'scored') return;
 
-  const sent = await sendForSignature(office, draft.id, { origin: publicOrigin, ip: null, userAgent: 'Latchwell demo seed' });
+  const sent = await sendForSignature(office, draft.id, { ip: null, userAgent: 'Latchwell demo seed' });
   if (visit.outcome === 'awaiting_signature') return;
 
   const message = await knex('outbox_messages').where({ id: sent.outboxMessageId }).first('text_body');

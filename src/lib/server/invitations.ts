@@ -5,11 +5,13 @@
  */
 import { roleLabels, type Invitation, type InvitationAccept, type InvitationCreate, type StaffRole } from '@/lib/api/users';
 import { recordAudit } from './audit';
-import { sendInvitationMail } from './auth/mails';
+import { invitationMail } from './auth/mails';
+import { linkOrigin } from './auth/public-origin';
 import { hashLinkToken, looksLikeLinkToken, newLinkToken } from './auth/tokens';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { iso, pgErrorCode } from './listing';
+import { enqueueMail, wakeOutboxWorker } from './outbox';
 import { hashPassword } from './passwords';
 import type { Actor } from './users';
 
@@ -43,14 +45,18 @@ export async function listOpenInvitations(organisationId: string): Promise<Invit
 
 /**
  * Creates an invitation (replacing any open one of this organisation for the same address)
- * and e-mails the link. 409 when the address already has an account or another
+ * and queues the e-mail with its link in the same transaction (the outbox delivers it, and
+ * keeps it while SMTP is down). 409 when the address already has an account or another
  * organisation's open invitation.
  */
-export async function inviteStaff(organisationId: string, input: InvitationCreate, actor: Actor, origin: string): Promise<Invitation> {
+export async function inviteStaff(organisationId: string, input: InvitationCreate, actor: Actor): Promise<Invitation> {
   const token = newLinkToken();
-  const { invitation, organisationName } = await db().transaction(async (trx) => {
+  const invitation = await db().transaction(async (trx) => {
     const existing = await trx('users').whereRaw('email = ?::citext', [input.email]).first('id');
-    if (existing) throw new HttpProblem(409, 'Someone with this e-mail address already has an account.', { errors: [{ field: 'email', message: 'already has an account' }] });
+    if (existing)
+      throw new HttpProblem(409, 'Someone with this e-mail address already has an account.', {
+        errors: [{ field: 'email', message: 'already has an account' }],
+      });
     const revoked = await trx('invitations')
       .where({ organisation_id: organisationId })
       .whereRaw('email = ?::citext', [input.email])
@@ -87,9 +93,11 @@ export async function inviteStaff(organisationId: string, input: InvitationCreat
       detail: { email: input.email, role: input.role, replaced: revoked.length },
     });
     const org = await trx('organisations').where({ id: organisationId }).first('name');
-    return { invitation: row, organisationName: org.name as string };
+    const mail = invitationMail(org.name, actor.user.name, roleLabels[input.role], `${linkOrigin()}/invite/${token}`, invitationValidDays);
+    await enqueueMail(trx, { organisationId, kind: 'invitation', to: [input.email], ...mail, relatedType: 'invitation', relatedId: row.id });
+    return row;
   });
-  await sendInvitationMail(input.email, organisationName, actor.user.name, roleLabels[input.role], `${origin}/invite/${token}`, invitationValidDays);
+  wakeOutboxWorker();
   return toInvitation(invitation);
 }
 

@@ -101,8 +101,17 @@ export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessa
   return row.id;
 }
 
+/**
+ * Kinds whose body carries a one-time link (sign-in, invitation, signing). Once delivered, the
+ * body is replaced by a note, so the database (and its backups) keeps no usable token: the
+ * tables hold only the tokens' hashes.
+ */
+export const oneTimeLinkKinds: readonly string[] = ['sign_in_link', 'invitation', 'sign_request'];
+export const sentLinkNote = 'Sent. The one-time link in this message is not kept.';
+
 interface ClaimedMessage {
   id: string;
+  kind: string;
   to_addresses: string[];
   cc_addresses: string[];
   subject: string;
@@ -135,7 +144,7 @@ export async function claimDueMessages(knex: Knex, settings: OutboxSettings): Pr
         attempts: trx.raw('attempts + 1'),
         next_attempt_at: trx.raw(`now() + (? * interval '1 millisecond')`, [settings.leaseMs]),
       })
-      .returning(['id', 'to_addresses', 'cc_addresses', 'subject', 'text_body', 'html_body', 'attachments', 'attempts']) as Promise<ClaimedMessage[]>;
+      .returning(['id', 'kind', 'to_addresses', 'cc_addresses', 'subject', 'text_body', 'html_body', 'attachments', 'attempts']) as Promise<ClaimedMessage[]>;
   });
 }
 
@@ -171,7 +180,10 @@ export async function deliverDueMessages(knex: Knex = db(), settings = outboxSet
   for (const message of claimed) {
     try {
       await sendOne(message);
-      await knex('outbox_messages').where({ id: message.id }).update({ status: 'sent', sent_at: knex.fn.now(), last_error: null });
+      const redacted = oneTimeLinkKinds.includes(message.kind) ? { text_body: sentLinkNote, html_body: null } : {};
+      await knex('outbox_messages')
+        .where({ id: message.id })
+        .update({ status: 'sent', sent_at: knex.fn.now(), last_error: null, ...redacted });
       report.sent++;
     } catch (error) {
       const lastError = (error instanceof Error ? error.message : String(error)).slice(0, 1000);

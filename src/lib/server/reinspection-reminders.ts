@@ -8,6 +8,7 @@
 import type { Knex } from 'knex';
 import type { SessionOrganisation } from './session-user';
 import { recordAudit } from './audit';
+import { linkOrigin } from './auth/public-origin';
 import { db } from './db';
 import { calendarOf, type DueEvent } from './ics';
 import { enqueueMail, wakeOutboxWorker } from './outbox';
@@ -72,12 +73,12 @@ async function claim(trx: Knex.Transaction, organisationId: string, gates: DueGa
 }
 
 /** Queues reminders for every gate overdue or due within DUE_SOON_DAYS that has not had one. */
-export async function queueReinspectionReminders(organisation: SessionOrganisation, actor: ReminderActor, origin: string | null): Promise<ReminderOutcome> {
+export async function queueReinspectionReminders(organisation: SessionOrganisation, actor: ReminderActor): Promise<ReminderOutcome> {
   const knex = db();
   const due = await dueGates(organisation.id, DUE_SOON_DAYS, knex);
   const outcome: ReminderOutcome = { officeGates: 0, clientMessages: 0, alreadyReminded: 0 };
   if (!due.length) return outcome;
-  const dashboard = origin ? `${origin}/archive/reinspection` : null;
+  const dashboard = `${linkOrigin()}/archive/reinspection`;
 
   await knex.transaction(async (trx) => {
     const claimedOffice = await claim(trx, organisation.id, due, 'office');
@@ -100,7 +101,8 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
           ...officeGates.map(dueLine),
           '',
           'The attached calendar file has one all-day entry per gate.',
-          ...(dashboard ? ['', `Plan the visits: ${dashboard}`] : []),
+          '',
+          `Plan the visits: ${dashboard}`,
         ].join('\n'),
         attachments: [attachment],
         relatedType: 'organisation',

@@ -48,6 +48,8 @@ export default async function setup(project: TestProject) {
     MAIL_CATCHER_URL: catcherUrl,
     AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
     AUTH_TRUST_HOST: 'true',
+    // E-mailed links are built from this, never from the request's Host or X-Forwarded-* headers.
+    PUBLIC_URL: `http://127.0.0.1:${port}`,
     LATCHWELL_DATA_DIR: dataDir,
     LATCHWELL_ENV: 'test',
     // Each project has its own server and catcher on the one test database: keep their mail

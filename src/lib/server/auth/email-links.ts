@@ -1,11 +1,15 @@
 /**
  * Homeowners and property managers sign in with a one-time link. Asking for one always gets
- * the same answer whether or not the address is known, and the mail leaves in the background,
- * so neither the reply nor its timing tells who has an account.
+ * the same answer whether or not the address is known, and the mail is queued in the outbox
+ * (delivered by its worker, retried while SMTP is down), so neither the reply nor its timing
+ * tells who has an account. The link points at the configured public origin, never at the
+ * host the request names.
  */
 import { recordAudit } from '../audit';
 import { db } from '../db';
-import { sendSignInLinkMail } from './mails';
+import { enqueueMail, wakeOutboxWorker } from '../outbox';
+import { signInLinkMail } from './mails';
+import { linkOrigin } from './public-origin';
 import { checkThrottle, recordAttempt } from './throttle';
 import { hashLinkToken, newLinkToken } from './tokens';
 
@@ -14,7 +18,7 @@ export const signInLinkMinutes = 20;
 
 export type LinkRequestOutcome = { outcome: 'accepted' } | { outcome: 'throttled'; retryAfterSeconds: number };
 
-export async function requestSignInLink(email: string, ip: string | null, origin: string): Promise<LinkRequestOutcome> {
+export async function requestSignInLink(email: string, ip: string | null): Promise<LinkRequestOutcome> {
   const address = email.trim().toLowerCase();
   const prepared = await db().transaction(async (trx) => {
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`sign-in-link:${address}`]);
@@ -34,6 +38,15 @@ export async function requestSignInLink(email: string, ip: string | null, origin
       expires_at: new Date(Date.now() + signInLinkMinutes * 60_000),
       requested_ip: ip,
     });
+    const mail = signInLinkMail(person, person.organisation_name, `${linkOrigin()}/signin/link?token=${token}`, signInLinkMinutes);
+    await enqueueMail(trx, {
+      organisationId: person.organisation_id,
+      kind: 'sign_in_link',
+      to: [person.email],
+      ...mail,
+      relatedType: 'user',
+      relatedId: person.id,
+    });
     await recordAudit(trx, {
       organisationId: person.organisation_id,
       actorLabel: person.email,
@@ -42,14 +55,9 @@ export async function requestSignInLink(email: string, ip: string | null, origin
       entityId: person.id,
       ip,
     });
-    return { kind: 'send' as const, person, token };
+    return { kind: 'queued' as const };
   });
   if (prepared.kind === 'throttled') return { outcome: 'throttled', retryAfterSeconds: prepared.retryAfterSeconds };
-  if (prepared.kind === 'send') {
-    const link = `${origin}/signin/link?token=${prepared.token}`;
-    sendSignInLinkMail({ email: prepared.person.email, name: prepared.person.name }, prepared.person.organisation_name, link, signInLinkMinutes).catch((error: unknown) => {
-      console.error('[sign-in] could not send a sign-in link:', error instanceof Error ? error.message : error);
-    });
-  }
+  if (prepared.kind === 'queued') wakeOutboxWorker();
   return { outcome: 'accepted' };
 }

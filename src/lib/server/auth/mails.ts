@@ -1,8 +1,13 @@
 /**
  * The e-mails sign-in sends: a homeowner's one-time link and a staff invitation. Plain text
- * first (what the catcher and most phones show), with a simple HTML twin.
+ * first (what the catcher and most phones show), with a simple HTML twin. They are queued in
+ * the outbox by the transaction that creates the link (see outbox.ts).
  */
-import { mailTransport } from '../mail/transport';
+export interface LinkMail {
+  subject: string;
+  text: string;
+  html: string;
+}
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
@@ -13,29 +18,27 @@ function htmlBody(paragraphs: string[], link: string, button: string): string {
   return `<div style="font-family:sans-serif;font-size:16px;line-height:1.5">${text}<p><a href="${escapeHtml(link)}" style="display:inline-block;padding:12px 20px;background:#1d2c3f;color:#fff;border-radius:8px;text-decoration:none">${escapeHtml(button)}</a></p><p style="color:#3b5370;font-size:14px">${escapeHtml(link)}</p></div>`;
 }
 
-export async function sendSignInLinkMail(to: { email: string; name: string }, organisationName: string, link: string, validMinutes: number): Promise<void> {
+export function signInLinkMail(to: { name: string }, organisationName: string, link: string, validMinutes: number): LinkMail {
   const paragraphs = [
     `Hello ${to.name},`,
     `Here is your link to sign in to ${organisationName}'s gate safety reports on Latchwell. It works once and for ${validMinutes} minutes.`,
     `If you did not ask for it, you can ignore this e-mail.`,
   ];
-  await mailTransport().sendMail({
-    to: to.email,
+  return {
     subject: `Your sign-in link for ${organisationName}`,
     text: `${paragraphs.join('\n\n')}\n\nSign in: ${link}\n`,
     html: htmlBody(paragraphs, link, 'Sign in'),
-  });
+  };
 }
 
-export async function sendInvitationMail(to: string, organisationName: string, invitedBy: string, roleLabel: string, link: string, validDays: number): Promise<void> {
+export function invitationMail(organisationName: string, invitedBy: string, roleLabel: string, link: string, validDays: number): LinkMail {
   const paragraphs = [
     `${invitedBy} has invited you to join ${organisationName} on Latchwell as ${roleLabel}.`,
     `Open the link to choose your name and password. It works once and for ${validDays} days.`,
   ];
-  await mailTransport().sendMail({
-    to,
+  return {
     subject: `You're invited to ${organisationName} on Latchwell`,
     text: `${paragraphs.join('\n\n')}\n\nAccept the invitation: ${link}\n`,
     html: htmlBody(paragraphs, link, 'Accept the invitation'),
-  });
+  };
 }

@@ -29,6 +29,8 @@ export interface CaughtMessageSummary {
   to: string[];
   subject: string;
   attachments: CaughtAttachment[];
+  /** The app's outbox row this message was sent from (its X-Latchwell-Outbox-Id header), if any. */
+  outboxId: string | null;
 }
 
 export interface CaughtMessage extends CaughtMessageSummary {
@@ -43,6 +45,10 @@ function addresses(field: AddressObject | AddressObject[] | undefined): string[]
   return list.flatMap((a) => a.value.map((v) => v.address ?? '')).filter(Boolean);
 }
 
+function headerText(value: unknown): string | null {
+  return typeof value === 'string' && value.trim() ? value.trim() : null;
+}
+
 function summarise(id: string, receivedAt: string, parsed: ParsedMail): CaughtMessageSummary {
   return {
     id,
@@ -50,6 +56,7 @@ function summarise(id: string, receivedAt: string, parsed: ParsedMail): CaughtMe
     from: addresses(parsed.from)[0] ?? '',
     to: addresses(parsed.to),
     subject: parsed.subject ?? '',
+    outboxId: headerText(parsed.headers.get('x-latchwell-outbox-id')),
     attachments: parsed.attachments.map((a, index) => ({
       index,
       filename: a.filename ?? null,
@@ -89,11 +96,9 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
 
   async function list(): Promise<CaughtMessageSummary[]> {
     const names = (await fs.readdir(options.dir)).filter((n) => n.endsWith('.json'));
-    const items = await Promise.all(
-      names.map(async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage),
-    );
+    const items = await Promise.all(names.map(async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage));
     return items
-      .map(({ id, receivedAt, from, to, subject, attachments }) => ({ id, receivedAt, from, to, subject, attachments }))
+      .map(({ id, receivedAt, from, to, subject, attachments, outboxId }) => ({ id, receivedAt, from, to, subject, attachments, outboxId: outboxId ?? null }))
       .sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));
   }
 

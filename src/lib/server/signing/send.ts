@@ -5,6 +5,7 @@
  */
 import { randomBytes, randomUUID } from 'node:crypto';
 import { recordAudit } from '../audit';
+import { linkOrigin } from '../auth/public-origin';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
@@ -39,7 +40,7 @@ const statusesThatMaySend = ['scored', 'awaiting_signature'];
 export async function sendForSignature(
   viewer: SessionUser,
   assessmentId: string,
-  options: { expiresInDays?: number; origin: string } & RequestFacts,
+  options: { expiresInDays?: number } & RequestFacts,
 ): Promise<SentForSignature> {
   const knex = db();
   const before = await loadAssessmentForReport(knex, viewer.organisationId, assessmentId);
@@ -59,7 +60,8 @@ export async function sendForSignature(
   if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
   const token = randomBytes(32).toString('base64url');
   const days = options.expiresInDays ?? SIGN_LINK_DEFAULT_DAYS;
-  const link = `${options.origin}/sign/${token}`;
+  // Never the host the request names: see public-origin.ts.
+  const link = `${linkOrigin()}/sign/${token}`;
 
   const sent = await knex.transaction(async (trx) => {
     const locked = await trx('assessments').where({ id: assessmentId, organisation_id: viewer.organisationId }).forUpdate().first('status', 'result_sha256');

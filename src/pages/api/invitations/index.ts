@@ -4,7 +4,6 @@
  */
 import type { APIRoute } from 'astro';
 import { InvitationCreateSchema } from '@/lib/api/users';
-import { publicOrigin } from '@/lib/server/auth/public-origin';
 import { actorOf } from '@/lib/server/http/actor';
 import { requireRole } from '@/lib/server/http/guard';
 import { handle, parseBody } from '@/lib/server/http/problem';
@@ -18,6 +17,6 @@ export const GET: APIRoute = handle(async ({ locals }) => {
 export const POST: APIRoute = handle(async (context) => {
   const { user, organisation } = requireRole(context.locals, 'owner');
   const input = await parseBody(InvitationCreateSchema, context.request);
-  const invitation = await inviteStaff(organisation.id, input, actorOf(user, context), publicOrigin(context.request));
+  const invitation = await inviteStaff(organisation.id, input, actorOf(user, context));
   return Response.json(invitation, { status: 201 });
 });

@@ -1,7 +1,6 @@
 import type { APIRoute } from 'astro';
 import { idFromPath } from '@/lib/api/common';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
-import { publicOrigin } from '@/lib/server/auth/public-origin';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { handle, parseBody } from '@/lib/server/http/problem';
 import { SendForSignatureSchema, sendForSignature } from '@/lib/server/signing';
@@ -18,7 +17,6 @@ export const POST: APIRoute = handle(async (context) => {
   const body = hasBody ? await parseBody(SendForSignatureSchema, context.request) : {};
   const sent = await sendForSignature(user, id, {
     expiresInDays: body.expiresInDays,
-    origin: publicOrigin(context.request),
     ip: clientAddressOf(context),
     userAgent: context.request.headers.get('user-agent'),
   });
