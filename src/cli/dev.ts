@@ -11,9 +11,9 @@ import { authSecret, dataDir, projectRoot } from './services';
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
 const db = await ensureDatabase();
-await migrateLatest(db.appUrl);
-await publishRulesetFiles(db.appUrl);
-await seedIfEmpty(db.appUrl);
+await migrateLatest(db.migrationUrl, db.appRole);
+await publishRulesetFiles(db.migrationUrl);
+await seedIfEmpty(db.migrationUrl);
 const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort }).catch(() => undefined);
 
 const child = spawn(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'dev'], {
