@@ -8,11 +8,22 @@
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
+import { anchorOfPdf, anchorStateWords, checkAnchors, type AnchorState } from './audit-anchors';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
 import { iso } from './listing';
+import { storage } from './storage';
 
-export type VerificationAnswer = { match: true; documentId: string; signedAt: string; organisation: string } | { match: false };
+/** Whether the audit trail still holds the chain head the signed report recorded (audit-anchors.ts). */
+export interface TrailAnswer {
+  eventId: number;
+  state: AnchorState;
+  message: string;
+}
+
+export type VerificationAnswer =
+  | { match: true; documentId: string; signedAt: string; organisation: string; auditTrail: TrailAnswer | null }
+  | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
 
@@ -54,14 +65,36 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
   else query.andWhere('d.id', reference.documentId);
   const row = await query
     .orderBy('d.created_at')
-    .first<{ id: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
+    .first<{ id: string; sha256: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
       'd.id',
+      'd.sha256',
       'o.name as organisation',
       knex.raw('coalesce(s.signed_at, a.signed_at) as signed_at'),
       'd.created_at',
     );
   if (!row) return { match: false };
-  return { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
+  return {
+    match: true,
+    documentId: row.id,
+    signedAt: iso(row.signed_at ?? row.created_at),
+    organisation: row.organisation,
+    auditTrail: await trailAnswer(row.sha256, knex),
+  };
+}
+
+/**
+ * Checks the chain head the signed report carries against the trail. Read from the stored
+ * file (hash-checked, and the same bytes as any upload that matched); null for a report signed
+ * before reports carried one, or when the file cannot be read.
+ */
+async function trailAnswer(sha256: string, knex: Knex): Promise<TrailAnswer | null> {
+  const bytes = await storage()
+    .get(sha256)
+    .catch(() => null);
+  const anchor = bytes ? await anchorOfPdf(bytes) : null;
+  if (!anchor) return null;
+  const [state] = await checkAnchors(knex, [anchor]);
+  return { eventId: anchor.eventId, state: state!, message: anchorStateWords[state!] };
 }
 
 /** SHA-256 of a request body read chunk by chunk, refusing it past `limit` bytes. */

@@ -194,6 +194,8 @@ async function photosOf(knex: Knex, assessmentId: string): Promise<ReportPhoto[]
 export interface ReportSigning {
   assessor: { name: string; signedAt: Date };
   owner: OwnerSignature;
+  /** The audit trail's head when the report was signed (audit-anchors.ts). */
+  auditHead?: { eventId: number; hash: string } | null;
 }
 
 /** Everything the report of `assessmentId` shows, ready for the renderer. */

@@ -138,6 +138,8 @@ export interface ReportSource {
   signing: {
     assessor: { name: string; signedAt: Date };
     owner: OwnerSignature;
+    /** The audit trail's head when the report was signed: carried in the keywords and the signing record. */
+    auditHead?: { eventId: number; hash: string } | null;
   } | null;
 }
 

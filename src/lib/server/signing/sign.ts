@@ -8,6 +8,7 @@
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit';
+import { chainHead, recordAnchor } from '../audit-anchors';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
@@ -103,6 +104,8 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
     if (!row) throw new HttpProblem(404, 'That assessment was not found.');
     const signedAt = new Date(signature.signed_at);
     const documentId = randomUUID();
+    // The trail's head goes into the signed PDF, so the file itself can later show a trail cut short.
+    const auditHead = await chainHead(trx);
     const pdf = await renderAssessmentReport(
       request.organisation_id,
       request.assessment_id,
@@ -124,6 +127,7 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
             intentText: INTENT_TEXT,
             cautionsAcknowledged: cautions.map((c) => ({ ruleId: c.ruleId, title: c.title })),
           },
+          auditHead,
         },
       },
       trx,
@@ -146,6 +150,7 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
       filename: `gate-report-${row.id.slice(0, 8)}-signed.pdf`,
       createdBy: null,
     });
+    if (auditHead) await recordAnchor(trx, auditHead, { organisationId: row.organisation_id, kind: 'signed_report', reference: documentId });
     await trx('assessments')
       .where({ id: row.id })
       .update({ status: 'signed', signed_at: signedAt, row_version: trx.raw('row_version + 1'), updated_at: trx.fn.now() });
