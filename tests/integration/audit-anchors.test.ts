@@ -42,7 +42,7 @@ let signedAnchor: AuditAnchor;
 let exportAnchor: AuditAnchor;
 
 /** Sends a seeded assessment for signature and signs it with a typed name, as the homeowner would. */
-async function signOne(): Promise<{ documentId: string; sha256: string }> {
+async function signOne(): Promise<{ id: string; sha256: string }> {
   const seeded = await seedScoredAssessment(testDb(), { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir: inject('dataDir'), photos: 0 });
   const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
   const seen = await caughtMailIds(clientEmail);
@@ -78,7 +78,7 @@ beforeAll(async () => {
 /** Posts the PDF to the public check, as anyone holding it could. */
 async function publicCheck(pdf: Buffer): Promise<VerificationAnswer> {
   const form = new FormData();
-  form.set('file', new Blob([pdf], { type: 'application/pdf' }), 'report.pdf');
+  form.set('file', new Blob([new Uint8Array(pdf)], { type: 'application/pdf' }), 'report.pdf');
   return expectJson<VerificationAnswer>(await anonymousClient().fetch('/api/verify', { method: 'POST', body: form }));
 }
 
