@@ -22,7 +22,8 @@ export interface TrailAnswer {
 }
 
 export type VerificationAnswer =
-  | { match: true; documentId: string; signedAt: string; organisation: string; auditTrail: TrailAnswer | null }
+  /** `auditTrail` only for a report that carries the trail's head (signed since reports do). */
+  | { match: true; documentId: string; signedAt: string; organisation: string; auditTrail?: TrailAnswer }
   | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
@@ -73,12 +74,13 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
       'd.created_at',
     );
   if (!row) return { match: false };
+  const auditTrail = await trailAnswer(row.sha256, knex);
   return {
     match: true,
     documentId: row.id,
     signedAt: iso(row.signed_at ?? row.created_at),
     organisation: row.organisation,
-    auditTrail: await trailAnswer(row.sha256, knex),
+    ...(auditTrail ? { auditTrail } : {}),
   };
 }
 
