@@ -77,6 +77,8 @@ describe('archive export file check', () => {
       actor_label: org.office.email,
       detail: { assessmentId: altered.id, expectedSha256: altered.pdfSha256, actualSha256: actual },
     });
-    expect(await testDb()('audit_events').where({ organisation_id: org.id, action: 'archive.export_file_mismatch', entity_id: intact.documentId }).first()).toBeUndefined();
+    expect(
+      await testDb()('audit_events').where({ organisation_id: org.id, action: 'archive.export_file_mismatch', entity_id: intact.documentId }).first(),
+    ).toBeUndefined();
   });
 });

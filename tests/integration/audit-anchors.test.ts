@@ -43,7 +43,11 @@ let exportAnchor: AuditAnchor;
 
 /** Sends a seeded assessment for signature and signs it with a typed name, as the homeowner would. */
 async function signOne(): Promise<{ id: string; sha256: string }> {
-  const seeded = await seedScoredAssessment(testDb(), { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir: inject('dataDir'), photos: 0 });
+  const seeded = await seedScoredAssessment(
+    testDb(),
+    { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
+    { dataDir: inject('dataDir'), photos: 0 },
+  );
   const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
   const seen = await caughtMailIds(clientEmail);
   const sent = await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {});
@@ -126,7 +130,20 @@ describe('chain heads carried by signed reports and exports', () => {
         for (const e of events) {
           await admin.query(
             'insert into audit_events (id, organisation_id, actor_user_id, actor_label, action, entity_type, entity_id, ip, detail, created_at, prev_hash, hash) values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12) on conflict (id) do nothing',
-            [e.id, e.organisation_id, e.actor_user_id, e.actor_label, e.action, e.entity_type, e.entity_id, e.ip, JSON.stringify(e.detail), e.created_at, e.prev_hash, e.hash],
+            [
+              e.id,
+              e.organisation_id,
+              e.actor_user_id,
+              e.actor_label,
+              e.action,
+              e.entity_type,
+              e.entity_id,
+              e.ip,
+              JSON.stringify(e.detail),
+              e.created_at,
+              e.prev_hash,
+              e.hash,
+            ],
           );
         }
         for (const a of anchors) {

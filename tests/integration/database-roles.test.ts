@@ -63,7 +63,10 @@ describe('the database role the app runs as', () => {
       'drop trigger audit_events_append_only on audit_events',
       'drop table audit_anchors',
     ]) {
-      await expect(testDb().transaction((trx) => trx.raw(sql)), sql).rejects.toThrow(/must be owner/);
+      await expect(
+        testDb().transaction((trx) => trx.raw(sql)),
+        sql,
+      ).rejects.toThrow(/must be owner/);
     }
     await expect(
       testDb().transaction((trx) => trx.raw(`set local role "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`)),
@@ -81,7 +84,10 @@ describe('the database role the app runs as', () => {
       'truncate audit_anchors',
       'delete from knex_migrations',
     ]) {
-      await expect(testDb().transaction((trx) => trx.raw(sql)), sql).rejects.toThrow(/permission denied/);
+      await expect(
+        testDb().transaction((trx) => trx.raw(sql)),
+        sql,
+      ).rejects.toThrow(/permission denied/);
     }
     expect(await testDb()('audit_events').where({ id: eventId }).first('id')).toBeTruthy();
   });

@@ -23,8 +23,7 @@ export interface TrailAnswer {
 
 export type VerificationAnswer =
   /** `auditTrail` only for a report that carries the trail's head (signed since reports do). */
-  | { match: true; documentId: string; signedAt: string; organisation: string; auditTrail?: TrailAnswer }
-  | { match: false };
+  { match: true; documentId: string; signedAt: string; organisation: string; auditTrail?: TrailAnswer } | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
 
