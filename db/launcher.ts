@@ -244,6 +244,20 @@ async function handToOwner(name: string) {
   }
 }
 
+/** In the private cluster, hands `name` (made before the owner role, e.g. a bench database) to the owner role; a no-op when it already is. */
+export async function adoptDatabase(name: string): Promise<void> {
+  if (process.env.DATABASE_URL) return;
+  const client = new pg.Client({ connectionString: urlFor('postgres') });
+  await client.connect();
+  let owner: string | undefined;
+  try {
+    owner = (await client.query<{ owner: string }>('select pg_get_userbyid(datdba) as owner from pg_database where datname = $1', [name])).rows[0]?.owner;
+  } finally {
+    await client.end();
+  }
+  if (owner && owner !== ownerRole) await handToOwner(name);
+}
+
 async function ensureDatabases(names: string[]) {
   const client = new pg.Client({ connectionString: urlFor('postgres') });
   await client.connect();
