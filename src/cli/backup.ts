@@ -161,7 +161,8 @@ export async function restoreDatabase(options: RestoreOptions): Promise<RestoreR
     await admin.connect();
     try {
       await admin.query(`drop database if exists "${database}" with (force)`);
-      await admin.query(`create database "${database}"`);
+      // Owned by the role that restores into it (the owner role), as migrations expect.
+      await admin.query(`create database "${database}" owner "${decodeURIComponent(new URL(options.databaseUrl).username).replace(/"/g, '""')}"`);
     } finally {
       await admin.end();
     }

@@ -14,8 +14,8 @@ if (isMain(import.meta.url)) {
   const stamp = new Date().toISOString().replace(/[:.]/g, '-');
   const out = path.resolve(values.out ?? path.join(dataDir, 'backups', `latchwell-${stamp}.tar`));
   try {
-    const { appUrl } = await ensureDatabase();
-    const manifest = await backupDatabase({ databaseUrl: appUrl, dataDir, out });
+    const { migrationUrl } = await ensureDatabase();
+    const manifest = await backupDatabase({ databaseUrl: migrationUrl, dataDir, out });
     console.log(`backup written: ${out}`);
     console.log(`  database ${manifest.database} (PostgreSQL ${manifest.serverVersion}), dump ${manifest.dumpBytes} bytes, ${manifest.files} data file(s)`);
   } catch (error) {

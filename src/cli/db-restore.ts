@@ -7,6 +7,7 @@ import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { ensureDatabase } from '../../db/launcher';
 import { restoreDatabase } from './backup';
+import { migrateLatest } from './migrate';
 import { isMain } from './is-main';
 import { dataDir } from './services';
 
@@ -19,7 +20,7 @@ if (isMain(import.meta.url)) {
   }
   try {
     const endpoints = await ensureDatabase();
-    const target = new URL(endpoints.appUrl);
+    const target = new URL(endpoints.migrationUrl);
     if (values.database) target.pathname = `/${values.database}`;
     const name = target.pathname.slice(1);
     if (!values.yes) {
@@ -27,6 +28,8 @@ if (isMain(import.meta.url)) {
       process.exit(2);
     }
     const report = await restoreDatabase({ from: path.resolve(from), databaseUrl: target.toString(), adminUrl: endpoints.adminUrl, dataDir });
+    // The dump carries no owners or grants: bring the schema up to date and grant the app role again.
+    await migrateLatest(target.toString(), endpoints.appRole);
     console.log(`restored ${report.manifest.database} (backed up ${report.manifest.createdAt}) into "${name}"; ${report.filesRestored} data file(s)`);
     if (report.corruptFiles.length) {
       console.error(

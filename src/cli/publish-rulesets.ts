@@ -55,8 +55,8 @@ export async function publishRulesetFiles(connectionString: string, root = path.
 
 if (isMain(import.meta.url)) {
   try {
-    const { appUrl } = await ensureDatabase();
-    const published = await publishRulesetFiles(appUrl);
+    const { migrationUrl } = await ensureDatabase();
+    const published = await publishRulesetFiles(migrationUrl);
     console.log(published.length ? `published: ${published.join(', ')}` : 'all ruleset files are already published');
   } catch (error) {
     console.error(`[rulesets] ${(error as Error).message}`);

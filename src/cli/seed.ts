@@ -20,6 +20,6 @@ export async function seedIfEmpty(connectionString: string): Promise<boolean> {
 }
 
 if (isMain(import.meta.url)) {
-  const { appUrl } = await ensureDatabase();
-  console.log((await seedIfEmpty(appUrl)) ? 'seeded the demo scenario' : 'database already has data; nothing seeded');
+  const { migrationUrl } = await ensureDatabase();
+  console.log((await seedIfEmpty(migrationUrl)) ? 'seeded the demo scenario' : 'database already has data; nothing seeded');
 }

@@ -20,11 +20,11 @@ const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
 if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) process.env.PUBLIC_URL = listeningOrigin(host, port);
 
 const db = await ensureDatabase();
-const applied = await migrateLatest(db.appUrl);
+const applied = await migrateLatest(db.migrationUrl, db.appRole);
 if (applied.length) console.log(`[db] applied ${applied.length} migration(s)`);
-const published = await publishRulesetFiles(db.appUrl);
+const published = await publishRulesetFiles(db.migrationUrl);
 if (published.length) console.log(`[rulesets] published ${published.join(', ')}`);
-if (await seedIfEmpty(db.appUrl)) console.log('[db] seeded the demo scenario');
+if (await seedIfEmpty(db.migrationUrl)) console.log('[db] seeded the demo scenario');
 await ensureBuilt();
 
 let catcher: RunningCatcher | undefined;

@@ -9,7 +9,7 @@
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { dropDatabase, ensureDatabase, recreateTestDatabase, stopDatabase } from '../../db/launcher';
+import { appUrlFor, dropDatabase, ensureDatabase, recreateTestDatabase, stopDatabase } from '../../db/launcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
 import { dataDir, projectRoot, snapshotBuild } from './services';
@@ -24,7 +24,8 @@ const testUrl = await recreateTestDatabase(db);
 const snapshotDir = path.join(dataDir, 'test-builds', String(process.pid));
 let status = 1;
 try {
-  await migrateLatest(testUrl);
+  // Migrations and rulesets as the owner role; the server and the fixtures as the app role.
+  await migrateLatest(testUrl, db.appRole);
   await publishRulesetFiles(testUrl);
   const entry = only === 'unit' ? undefined : await snapshotBuild(snapshotDir);
   // Browser journeys run after the rest, not beside it: they share the test database with the
@@ -38,7 +39,8 @@ try {
       stdio: 'inherit',
       env: {
         ...process.env,
-        TEST_DATABASE_URL: testUrl,
+        TEST_DATABASE_URL: appUrlFor(db, testUrl),
+        TEST_MIGRATION_DATABASE_URL: testUrl,
         TEST_ADMIN_DATABASE_URL: db.adminUrl,
         ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
       },

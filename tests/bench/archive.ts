@@ -21,7 +21,7 @@ import { pathToFileURL } from 'node:url';
 import knex, { type Knex } from 'knex';
 import pg from 'pg';
 import { knexConfig } from '../../knexfile';
-import { ensureDatabase } from '../../db/launcher';
+import { adoptDatabase, appUrlFor, ensureDatabase } from '../../db/launcher';
 import { migrateLatest } from '../../src/cli/migrate';
 import { publishRulesetFiles } from '../../src/cli/publish-rulesets';
 import { ensureBuilt, freePort, startAppServer } from '../../src/cli/services';
@@ -64,10 +64,11 @@ async function scratchDatabase(adminUrl: string, appUrl: string, reseed: boolean
   try {
     if (reseed) await admin.query(`drop database if exists "${DATABASE}" with (force)`);
     const { rowCount } = await admin.query('select 1 from pg_database where datname = $1', [DATABASE]);
-    if (!rowCount) await admin.query(`create database "${DATABASE}"`);
+    if (!rowCount) await admin.query(`create database "${DATABASE}" owner "${decodeURIComponent(new URL(appUrl).username)}"`);
   } finally {
     await admin.end();
   }
+  await adoptDatabase(DATABASE); // kept from a run before the owner role existed
   const url = new URL(appUrl);
   url.pathname = `/${DATABASE}`;
   return url.toString();
@@ -289,8 +290,9 @@ async function timeGet(baseUrl: string, cookie: string, path: string): Promise<{
 export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
   process.env.LATCHWELL_QUIET ??= '1';
   const endpoints = await ensureDatabase();
-  const databaseUrl = await scratchDatabase(endpoints.adminUrl, endpoints.appUrl, process.env.ARCHIVE_BENCH_RESEED === '1');
-  await migrateLatest(databaseUrl);
+  // Migrated and seeded as the owner role; the server runs as the app role, as in production.
+  const databaseUrl = await scratchDatabase(endpoints.adminUrl, endpoints.migrationUrl, process.env.ARCHIVE_BENCH_RESEED === '1');
+  await migrateLatest(databaseUrl, endpoints.appRole);
   await publishRulesetFiles(databaseUrl);
   const db = knex({ ...knexConfig(databaseUrl), pool: { min: 0, max: 4 } });
   let server: Awaited<ReturnType<typeof startAppServer>> | undefined;
@@ -318,7 +320,7 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       port,
       quiet: true,
       env: {
-        DATABASE_URL: databaseUrl,
+        DATABASE_URL: appUrlFor(endpoints, databaseUrl),
         AUTH_SECRET: 'archive-bench-secret-0123456789abcdef',
         AUTH_TRUST_HOST: 'true',
         LATCHWELL_ENV: 'test',

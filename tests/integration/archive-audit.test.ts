@@ -1,14 +1,14 @@
 /**
  * The audit trail's verification over HTTP. One event of this file's organisation is edited
- * with raw SQL (the append-only trigger switched off inside that one transaction, as only a
- * superuser could) and verification must point at exactly that event; put back, the chain
+ * with raw SQL (the append-only trigger switched off inside that one transaction, through the
+ * owner role's connection: the app role can do neither) and verification must point at exactly that event; put back, the chain
  * verifies again. Other test files append events concurrently to the same chain, so the
  * assertions are about this organisation's events only; and since their own checks of the whole
  * chain would see the edit too, a row stays edited for one round of requests only.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AuditPage, TrailVerification } from '../../src/lib/server/audit-trail';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import { createOrganisation, fixturePassword, ownerTestDb, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
 import { expectJson } from './support/archive';
 
 let org: FixtureOrganisation;
@@ -16,9 +16,9 @@ let owner: TestClient;
 let otherOwner: TestClient;
 let restore: (() => Promise<void>) | null = null;
 
-/** Runs `sql` with the append-only trigger off, in one transaction: other sessions never see it off. */
+/** Runs `sql` with the append-only trigger off, in one transaction (as the tables' owner): other sessions never see it off. */
 async function withTriggerOff(sql: string, bindings: unknown[]): Promise<void> {
-  await testDb().transaction(async (trx) => {
+  await ownerTestDb().transaction(async (trx) => {
     await trx.raw('alter table audit_events disable trigger audit_events_append_only');
     await trx.raw(sql, bindings as never);
     await trx.raw('alter table audit_events enable trigger audit_events_append_only');
@@ -54,7 +54,9 @@ describe('audit trail', () => {
 
   it('refuses an ordinary UPDATE of an event: the trail is append-only', async () => {
     const [{ id }] = await testDb()('audit_events').where({ organisation_id: org.id }).orderBy('id').limit(1).select('id');
-    await expect(testDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(/append-only/);
+    // The app role holds no UPDATE on the trail at all; the tables' owner meets the trigger.
+    await expect(testDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(/permission denied/);
+    await expect(ownerTestDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(/append-only/);
   });
 
   it('points at the edited event when one row is changed with raw SQL, and verifies again once it is put back', async () => {

@@ -20,7 +20,7 @@ const sourceName = `latchwell_backup_src_${suffix}`;
 const targetName = `latchwell_backup_dst_${suffix}`;
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-backup-test-'));
 const urlFor = (name: string) => {
-  const url = new URL(inject('databaseUrl'));
+  const url = new URL(inject('migrationDatabaseUrl'));
   url.pathname = `/${name}`;
   return url.toString();
 };
@@ -58,7 +58,7 @@ let source: Knex;
 const documents: { id: string; sha256: string }[] = [];
 
 beforeAll(async () => {
-  await admin((c) => c.query(`create database "${sourceName}"`));
+  await admin((c) => c.query(`create database "${sourceName}" owner "${decodeURIComponent(new URL(urlFor(sourceName)).username)}"`));
   source = knex({ client: 'pg', connection: urlFor(sourceName), pool: { min: 0, max: 2 } });
   await migrate(source);
   const files = createDiskStorage(path.join(work, 'source', 'files'));

@@ -1,3 +1,4 @@
+import pg from 'pg';
 import { describe, expect, it } from 'vitest';
 import { spawnSync, execFileSync } from 'node:child_process';
 import fs from 'node:fs';
@@ -27,9 +28,31 @@ describe('the database launcher', () => {
       expect(first.stdout).toContain('initialising a private cluster');
       const url = first.stdout.trim().split('\n').at(-1)!;
       expect(url).toMatch(new RegExp(`^postgres://.*@127\\.0\\.0\\.1:${env.LATCHWELL_PG_PORT}/latchwell$`));
+      // What it prints is the app role's address, not the superuser's.
+      expect(new URL(url).username).toBe('latchwell_app');
+
+      // A database from before the owner role (the superuser owns it and its tables) is handed over on the next start.
+      const superuserUrl = new URL(url);
+      superuserUrl.username = 'latchwell';
+      superuserUrl.password = process.env.LATCHWELL_PG_PASSWORD ?? 'latchwell-local';
+      const su = new pg.Client({ connectionString: superuserUrl.toString() });
+      await su.connect();
+      await su.query('alter database latchwell owner to latchwell');
+      await su.query('create table legacy_probe (id serial primary key)');
+      await su.end();
 
       const second = launcher('start', env);
       expect(second.status, second.stderr).toBe(0);
+      expect(second.stdout).toContain('handing database latchwell to latchwell_owner');
+      const check = new pg.Client({ connectionString: superuserUrl.toString() });
+      await check.connect();
+      const owners = await check.query(
+        `select (select pg_get_userbyid(datdba) from pg_database where datname = 'latchwell') as db,
+                (select tableowner from pg_tables where tablename = 'legacy_probe') as tbl,
+                (select pg_get_userbyid(relowner) from pg_class where relname = 'legacy_probe_id_seq') as seq`,
+      );
+      await check.end();
+      expect(owners.rows[0]).toEqual({ db: 'latchwell_owner', tbl: 'latchwell_owner', seq: 'latchwell_owner' });
       expect(second.stdout).not.toContain('initialising');
       expect(second.stdout).not.toContain('starting PostgreSQL');
       expect(second.stdout.trim().split('\n').at(-1)).toBe(url);

@@ -16,9 +16,9 @@ beforeAll(async () => {
   databaseName = `latchwell_migration_${randomBytes(4).toString('hex')}`;
   const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
   await admin.connect();
-  await admin.query(`create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('databaseUrl')).username)}"`);
+  await admin.query(`create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`);
   await admin.end();
-  const url = new URL(inject('databaseUrl'));
+  const url = new URL(inject('migrationDatabaseUrl'));
   url.pathname = `/${databaseName}`;
   databaseUrl = url.toString();
 });

@@ -66,7 +66,8 @@ beforeAll(async () => {
   for (const script of ['src/cli/migrate.ts', 'src/cli/publish-rulesets.ts']) {
     const done = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/tsx/dist/cli.mjs'), script], {
       cwd: projectRoot,
-      env: { ...process.env, DATABASE_URL: databaseUrl },
+      // The cluster's own endpoints: migrations run as its owner role, the server as its app role.
+      env: { ...Object.fromEntries(Object.entries(process.env).filter(([k]) => k !== 'DATABASE_URL')), ...clusterEnv },
       encoding: 'utf8',
     });
     if (done.status !== 0) throw new Error(`${script} failed: ${done.stderr}`);

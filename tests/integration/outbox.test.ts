@@ -32,10 +32,10 @@ beforeAll(async () => {
   databaseName = `latchwell_outbox_${randomBytes(4).toString('hex')}`;
   const admin = new pg.Client({ connectionString: adminUrl });
   await admin.connect();
-  const appUser = new URL(inject('databaseUrl')).username;
+  const appUser = new URL(inject('migrationDatabaseUrl')).username;
   await admin.query(`create database "${databaseName}" owner "${decodeURIComponent(appUser)}"`);
   await admin.end();
-  const url = new URL(inject('databaseUrl'));
+  const url = new URL(inject('migrationDatabaseUrl'));
   url.pathname = `/${databaseName}`;
   databaseUrl = url.toString();
   // Knex loads the .ts migrations with Node's own import(), which a vitest worker cannot serve: migrate in a tsx child.

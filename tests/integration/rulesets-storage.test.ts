@@ -96,7 +96,7 @@ describe('npm run rulesets:publish', () => {
   afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
 
   it('publishes a new file once, and a second run changes nothing', async () => {
-    const url = inject('databaseUrl');
+    const url = inject('migrationDatabaseUrl');
     expect(await publishRulesetFiles(url, root)).toEqual([`${family} 2026.1`]);
     const before = await testDb()('ruleset_versions as rv')
       .join('rulesets as r', 'r.id', 'rv.ruleset_id')
@@ -113,11 +113,11 @@ describe('npm run rulesets:publish', () => {
   });
 
   it('publishing the repository files again is a no-op', async () => {
-    expect(await publishRulesetFiles(inject('databaseUrl'))).toEqual([]);
+    expect(await publishRulesetFiles(inject('migrationDatabaseUrl'))).toEqual([]);
   });
 
   it('refuses a changed file under a version number that is already published, naming the file and what to do', async () => {
-    const url = inject('databaseUrl');
+    const url = inject('migrationDatabaseUrl');
     await publishRulesetFiles(url, root);
     const original = fs.readFileSync(file, 'utf8');
     const changed = JSON.parse(original);
@@ -140,7 +140,7 @@ describe('npm run rulesets:publish', () => {
     const content = JSON.parse(fs.readFileSync(shippedFile, 'utf8'));
     fs.writeFileSync(broken, JSON.stringify({ ...content, family, version: '2026.2', rules: [{ ...content.rules[0], severity: 'catastrophic' }] }));
     try {
-      await expect(publishRulesetFiles(inject('databaseUrl'), root)).rejects.toThrow(/2026\.2\.json[\s\S]*rules\[0\]\.severity/);
+      await expect(publishRulesetFiles(inject('migrationDatabaseUrl'), root)).rejects.toThrow(/2026\.2\.json[\s\S]*rules\[0\]\.severity/);
     } finally {
       fs.rmSync(broken);
     }

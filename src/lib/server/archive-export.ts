@@ -8,13 +8,21 @@
  * stops reading when the download is slower than the disk (stream back-pressure). Everything
  * signed up to the moment the export starts is included, so the index and the files agree
  * even while new reports are being signed.
+ *
+ * Every file is hashed as its bytes go into the ZIP. A file whose bytes no longer give the
+ * SHA-256 recorded at signing is never passed off as the signed report: `index.csv` (written
+ * last, once every file has been checked) marks it `mismatch` with both hashes, and an
+ * `archive.export_file_mismatch` audit event is written. The export also carries the audit
+ * trail's head when it started (`audit-trail-head.json`, see audit-anchors.ts).
  */
-import { once } from 'node:events';
-import { Readable } from 'node:stream';
+import { createHash } from 'node:crypto';
+import { PassThrough, Readable } from 'node:stream';
 import { ZipArchive } from 'archiver';
 import type { Knex } from 'knex';
 import type { ArchiveFilter } from '@/lib/api/archive';
 import { applyArchiveFilter, archiveBase, archiveDateSql, archiveLookups } from './archive-filters';
+import { recordAudit } from './audit';
+import { anchorText, type AuditAnchor } from './audit-anchors';
 import { csvRow } from './csv';
 import { db } from './db';
 import { iso } from './listing';
@@ -105,6 +113,9 @@ const indexHeader = [
   'file',
   'document_id',
   'sha256',
+  // `ok`: the file's bytes give the recorded sha256; `mismatch`: they do not (file_sha256 is what they give); `missing`: no file in storage.
+  'file_check',
+  'file_sha256',
   'size_bytes',
   'assessment_id',
   'visit_date',
@@ -122,13 +133,19 @@ const indexHeader = [
   'auditor',
 ];
 
-async function* indexCsv(rows: AsyncGenerator<ExportRow>, timeZone: string): AsyncGenerator<string> {
+/** What hashing a file on its way into the ZIP found, for the files that did not check out. */
+type FileProblem = { check: 'mismatch'; actual: string } | { check: 'missing' };
+
+async function* indexCsv(rows: AsyncGenerator<ExportRow>, timeZone: string, problems: Map<string, FileProblem>): AsyncGenerator<string> {
   yield csvRow(indexHeader);
   for await (const row of rows) {
+    const problem = problems.get(row.document_id);
     yield csvRow([
-      pdfNameOf(row, timeZone),
+      problem?.check === 'missing' ? `${pdfNameOf(row, timeZone)}.MISSING.txt` : pdfNameOf(row, timeZone),
       row.document_id,
       row.sha256,
+      problem?.check ?? 'ok',
+      problem?.check === 'mismatch' ? problem.actual : problem ? null : row.sha256,
       row.size_bytes,
       row.assessment_id,
       iso(row.archive_date),
@@ -172,30 +189,86 @@ function entryDone(archive: ZipArchive): Promise<'entry' | 'closed'> {
   });
 }
 
+async function recordMismatch(knex: Knex, organisationId: string, row: ExportRow, actual: string, actor: ExportOptions['actor']): Promise<void> {
+  console.error(`[export] signed report ${row.document_id}: stored file gives SHA-256 ${actual}, recorded ${row.sha256}`);
+  await knex.transaction((trx) =>
+    recordAudit(trx, {
+      organisationId,
+      actorUserId: actor?.userId ?? null,
+      actorLabel: actor?.label ?? null,
+      action: 'archive.export_file_mismatch',
+      entityType: 'document',
+      entityId: row.document_id,
+      ip: actor?.ip ?? null,
+      detail: { assessmentId: row.assessment_id, expectedSha256: row.sha256, actualSha256: actual },
+    }),
+  );
+}
+
 export interface ExportStream {
   stream: ReadableStream<Uint8Array>;
   filename: string;
 }
 
+export interface ExportOptions {
+  /** The audit trail's head when the export started (its `archive.exported` event). */
+  auditHead?: AuditAnchor | null;
+  /** Who exported, for the audit event a mismatched file writes. */
+  actor?: { userId: string; label: string; ip: string | null };
+}
+
 /** Starts the export; the ZIP is produced as the caller reads the returned stream. */
-export async function exportSignedReports(organisationId: string, timeZone: string, filter: ArchiveFilter, knex: Knex = db()): Promise<ExportStream> {
+export async function exportSignedReports(
+  organisationId: string,
+  timeZone: string,
+  filter: ArchiveFilter,
+  knex: Knex = db(),
+  options: ExportOptions = {},
+): Promise<ExportStream> {
   const [{ now }] = (await knex.raw('select now()::text as now')).rows as { now: string }[];
   const archive = new ZipArchive({ zlib: { level: 6 } });
   let closed = false;
   archive.on('close', () => (closed = true));
   archive.on('warning', (warning) => console.warn('[export] zip warning:', warning.message));
 
+  const problems = new Map<string, FileProblem>();
   const fill = async () => {
-    archive.append(Readable.from(indexCsv(signedReportsFor(organisationId, timeZone, filter, now, knex), timeZone)), { name: 'index.csv' });
-    if ((await entryDone(archive)) === 'closed') return;
+    if (options.auditHead) {
+      const head = { eventId: options.auditHead.eventId, hash: options.auditHead.hash, anchor: anchorText(options.auditHead), exportedAt: now };
+      archive.append(`${JSON.stringify(head, null, 2)}\n`, { name: 'audit-trail-head.json' });
+      if ((await entryDone(archive)) === 'closed') return;
+    }
     for await (const row of signedReportsFor(organisationId, timeZone, filter, now, knex)) {
       if (closed) return;
       const name = pdfNameOf(row, timeZone);
       const file = await storage().stream(row.sha256);
-      if (file) archive.append(file, { name, store: true, date: row.signed_at ?? row.archive_date });
-      else archive.append(`The signed report ${row.document_id} (SHA-256 ${row.sha256}) is missing from file storage.\n`, { name: `${name}.MISSING.txt` });
+      if (!file) {
+        problems.set(row.document_id, { check: 'missing' });
+        archive.append(`The signed report ${row.document_id} (SHA-256 ${row.sha256}) is missing from file storage.\n`, { name: `${name}.MISSING.txt` });
+        if ((await entryDone(archive)) === 'closed') return;
+        continue;
+      }
+      // Hash the bytes exactly as they go into the ZIP.
+      const hash = createHash('sha256');
+      const tap = new PassThrough();
+      tap.on('data', (chunk: Buffer) => hash.update(chunk));
+      file.on('error', (error) => tap.destroy(error));
+      archive.append(file.pipe(tap), { name, store: true, date: row.signed_at ?? row.archive_date });
       if ((await entryDone(archive)) === 'closed') return;
+      const actual = hash.digest('hex');
+      if (actual !== row.sha256) {
+        problems.set(row.document_id, { check: 'mismatch', actual });
+        await recordMismatch(knex, organisationId, row, actual, options.actor);
+        archive.append(
+          `${name} is NOT the signed report as recorded: its bytes give SHA-256 ${actual}, but the report was signed with SHA-256 ${row.sha256}. The stored file was changed after signing.\n`,
+          { name: `${name}.SHA-256-MISMATCH.txt` },
+        );
+        if ((await entryDone(archive)) === 'closed') return;
+      }
     }
+    // The index goes last: only now is every file's check known.
+    archive.append(Readable.from(indexCsv(signedReportsFor(organisationId, timeZone, filter, now, knex), timeZone, problems)), { name: 'index.csv' });
+    if ((await entryDone(archive)) === 'closed') return;
     await archive.finalize();
   };
   fill().catch((error: unknown) => {

@@ -11,9 +11,15 @@
  *
  * An owner is told where their own organisation's events break, and only how many breaks
  * there are elsewhere: other organisations' rows are none of their business.
+ *
+ * A chain cannot show its newest events removed. So the walk also checks the anchors
+ * (audit-anchors.ts): the chain heads recorded by signed reports and exports, and any the
+ * caller supplies from a file it holds. An anchored event past the trail's last one means the
+ * trail was cut short; an anchored event with another hash means it was rewritten.
  */
 import type { Knex } from 'knex';
 import { auditHash, genesisHash } from './audit';
+import { checkAnchors, TRUNCATED_MESSAGE, type AuditAnchor } from './audit-anchors';
 import { db } from './db';
 import { iso } from './listing';
 
@@ -49,6 +55,12 @@ export interface TrailVerification {
   brokenBy: 'content' | 'link' | null;
   /** Broken rows belonging to other organisations or to no organisation (counted, not shown). */
   brokenElsewhere: number;
+  /** Anchors checked: the chain heads recorded by signed reports and exports, and those supplied. */
+  anchorsChecked: number;
+  /** Anchored events that are gone from the middle of the trail or carry another hash. */
+  anchorsBroken: number;
+  /** Set when the trail ends before an anchored event: its newest events were removed. */
+  truncated: { anchoredEventId: number; lastEventId: number | null; message: string } | null;
   verifiedAt: string;
 }
 
@@ -132,8 +144,12 @@ function recomputedHash(row: StoredRow): string {
 
 const BATCH = 2000;
 
-/** Walks the whole chain in one snapshot and reports on `organisationId`'s part of it. */
-export async function verifyOrganisationTrail(organisationId: string, knex: Knex = db()): Promise<TrailVerification> {
+/**
+ * Walks the whole chain in one snapshot and reports on `organisationId`'s part of it, and
+ * checks the stored anchors and `supplied` ones (from a signed report or an export's
+ * `audit-trail-head.json`) against it.
+ */
+export async function verifyOrganisationTrail(organisationId: string, knex: Knex = db(), supplied: AuditAnchor[] = []): Promise<TrailVerification> {
   return knex.transaction(
     async (trx) => {
       let previousHash = genesisHash;
@@ -163,7 +179,34 @@ export async function verifyOrganisationTrail(organisationId: string, knex: Knex
           chainLength++;
         }
       }
-      return { ok: firstBrokenId === null, checked, chainLength, firstBrokenId, brokenBy, brokenElsewhere, verifiedAt: new Date().toISOString() };
+      const lastEventId = chainLength ? lastId : null;
+      const [stored] = (
+        await trx.raw<{ rows: { anchors: string; latest: string | null; broken: string }[] }>(
+          `select count(*) as anchors, max(a.event_id) as latest,
+                  count(*) filter (where (e.id is null and a.event_id <= ?) or e.hash <> a.event_hash) as broken
+             from audit_anchors a left join audit_events e on e.id = a.event_id`,
+          [lastId],
+        )
+      ).rows;
+      const states = await checkAnchors(trx, supplied);
+      let anchoredEventId = stored?.latest == null ? 0 : Number(stored.latest);
+      supplied.forEach((anchor, i) => {
+        if (states[i] === 'truncated') anchoredEventId = Math.max(anchoredEventId, anchor.eventId);
+      });
+      const truncated = anchoredEventId > lastId ? { anchoredEventId, lastEventId, message: TRUNCATED_MESSAGE } : null;
+      const anchorsBroken = Number(stored?.broken ?? 0) + states.filter((s) => s === 'altered' || s === 'missing').length;
+      return {
+        ok: firstBrokenId === null && !truncated && anchorsBroken === 0,
+        checked,
+        chainLength,
+        firstBrokenId,
+        brokenBy,
+        brokenElsewhere,
+        anchorsChecked: Number(stored?.anchors ?? 0) + supplied.length,
+        anchorsBroken,
+        truncated,
+        verifiedAt: new Date().toISOString(),
+      };
     },
     { isolationLevel: 'repeatable read', readOnly: true },
   );

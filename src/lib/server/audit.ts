@@ -43,8 +43,8 @@ export function auditHash(prevHash: string, fields: StoredAuditFields): string {
   return createHash('sha256').update(prevHash).update('\n').update(canonical(fields)).digest('hex');
 }
 
-/** Appends one event; serialised by a transaction-scoped advisory lock so the chain never forks. */
-export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput): Promise<void> {
+/** Appends one event; serialised by a transaction-scoped advisory lock so the chain never forks. Returns its id and hash. */
+export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput): Promise<{ id: number; hash: string }> {
   await trx.raw('select pg_advisory_xact_lock(hashtext(?))', ['audit_events']);
   const last = await trx('audit_events').orderBy('id', 'desc').first('hash');
   const prevHash: string = last?.hash ?? genesisHash;
@@ -60,5 +60,7 @@ export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput)
     detail: event.detail ?? {},
     created_at: createdAt,
   };
-  await trx('audit_events').insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash: auditHash(prevHash, fields) });
+  const hash = auditHash(prevHash, fields);
+  const [row] = await trx('audit_events').insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash }).returning('id');
+  return { id: Number(row.id), hash };
 }

@@ -9,6 +9,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
+import { anchorOfPdf, anchorStateWords, checkAnchors, type AnchorState } from './audit-anchors';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
 import { iso } from './listing';
@@ -18,8 +19,24 @@ import { storage } from './storage';
 /** The certificate that signed the file: what a reader's signature details show, to compare. */
 export type SigningCertificateAnswer = Pick<CertificateFacts, 'sha256' | 'subject' | 'issuer' | 'selfSigned'>;
 
+/** Whether the audit trail still holds the chain head the signed report recorded (audit-anchors.ts). */
+export interface TrailAnswer {
+  eventId: number;
+  state: AnchorState;
+  message: string;
+}
+
 export type VerificationAnswer =
-  { match: true; documentId: string; signedAt: string; organisation: string; certificate?: SigningCertificateAnswer } | { match: false };
+  /** `auditTrail` only for a report that carries the trail's head (signed since reports do). */
+  | {
+      match: true;
+      documentId: string;
+      signedAt: string;
+      organisation: string;
+      certificate?: SigningCertificateAnswer;
+      auditTrail?: TrailAnswer;
+    }
+  | { match: false };
 
 export type DocumentReference = { sha256: string } | { documentId: string };
 
@@ -70,11 +87,26 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
     );
   if (!row) return { match: false };
   const answer: VerificationAnswer = { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
-  // Read from the archive's own copy, so the fingerprint is the one that signed the genuine file.
-  const pdf = await storage().get(row.sha256);
+  // Read from the archive's own copy, so the fingerprint and trail head are those of the genuine file.
+  const pdf = await storage()
+    .get(row.sha256)
+    .catch(() => null);
   const signer = pdf ? signerCertificateOfPdf(pdf) : null;
   if (signer) answer.certificate = { sha256: signer.sha256, subject: signer.subject, issuer: signer.issuer, selfSigned: signer.selfSigned };
+  const auditTrail = pdf ? await trailAnswer(pdf, knex) : null;
+  if (auditTrail) answer.auditTrail = auditTrail;
   return answer;
+}
+
+/**
+ * Checks the chain head the signed report carries against the trail; null for a report signed
+ * before reports carried one.
+ */
+async function trailAnswer(bytes: Buffer, knex: Knex): Promise<TrailAnswer | null> {
+  const anchor = await anchorOfPdf(bytes);
+  if (!anchor) return null;
+  const [state] = await checkAnchors(knex, [anchor]);
+  return { eventId: anchor.eventId, state: state!, message: anchorStateWords[state!] };
 }
 
 /** SHA-256 of a request body read chunk by chunk, refusing it past `limit` bytes. */

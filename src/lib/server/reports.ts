@@ -197,6 +197,8 @@ export interface ReportSigning {
   owner: OwnerSignature;
   certificate?: CertificateFacts;
   verifyUrl?: string;
+  /** The audit trail's head when the report was signed (audit-anchors.ts). */
+  auditHead?: { eventId: number; hash: string } | null;
 }
 
 /** Everything the report of `assessmentId` shows, ready for the renderer. */

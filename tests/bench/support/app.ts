@@ -4,7 +4,7 @@
  * over real HTTP that returns the session cookie.
  */
 import pg from 'pg';
-import { ensureDatabase } from '../../../db/launcher';
+import { adoptDatabase, appUrlFor, ensureDatabase } from '../../../db/launcher';
 import { migrateLatest } from '../../../src/cli/migrate';
 import { publishRulesetFiles } from '../../../src/cli/publish-rulesets';
 import { seedIfEmpty } from '../../../src/cli/seed';
@@ -22,14 +22,16 @@ export async function benchDatabase(name = 'latchwell_bench'): Promise<{ url: st
   const admin = new pg.Client({ connectionString: endpoints.adminUrl });
   await admin.connect();
   const exists = (await admin.query('select 1 from pg_database where datname = $1', [name])).rowCount;
-  if (!exists) await admin.query(`create database "${name}"`);
-  await admin.end();
-  const url = new URL(endpoints.appUrl);
+  const url = new URL(endpoints.migrationUrl);
   url.pathname = `/${name}`;
-  await migrateLatest(url.toString());
+  if (!exists) await admin.query(`create database "${name}" owner "${decodeURIComponent(url.username)}"`);
+  await admin.end();
+  await adoptDatabase(name); // kept from a run before the owner role existed
+  // Migrated and seeded as the owner role; the server gets the app role's address.
+  await migrateLatest(url.toString(), endpoints.appRole);
   await publishRulesetFiles(url.toString());
   if (await seedIfEmpty(url.toString())) console.log(`[bench] seeded the demo scenario into ${name}`);
-  return { url: url.toString(), adminUrl: endpoints.adminUrl };
+  return { url: appUrlFor(endpoints, url.toString()), adminUrl: endpoints.adminUrl };
 }
 
 export async function startBenchApp(env: Record<string, string> = {}): Promise<BenchApp> {

@@ -47,10 +47,24 @@ export function testDb(): Knex {
   return connection;
 }
 
-/** Closes the fixture connection; call from `afterAll` if a file opens many. Optional. */
+let ownerConnection: Knex | undefined;
+
+/**
+ * The test database as the owner (migration) role, which owns the tables and so can switch a
+ * trigger off. Only for tests that tamper with stored rows on purpose (an attacker with more
+ * than the app's powers, or corruption); everything else goes through `testDb()`, the app role.
+ */
+export function ownerTestDb(): Knex {
+  ownerConnection ??= knex({ client: 'pg', connection: inject('migrationDatabaseUrl'), pool: { min: 0, max: 2 } });
+  return ownerConnection;
+}
+
+/** Closes the fixture connections; call from `afterAll` if a file opens many. Optional. */
 export async function closeTestDb(): Promise<void> {
   await connection?.destroy();
+  await ownerConnection?.destroy();
   connection = undefined;
+  ownerConnection = undefined;
 }
 
 let passwordHash: Promise<string> | undefined;

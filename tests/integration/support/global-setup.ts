@@ -6,7 +6,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import type { TestProject } from 'vitest/node';
-import { ensureDatabase, recreateTestDatabase } from '../../../db/launcher';
+import { appUrlFor, ensureDatabase, recreateTestDatabase } from '../../../db/launcher';
 import { startMailCatcher } from '../../../src/lib/server/mail/catcher';
 import { migrateLatest } from '../../../src/cli/migrate';
 import { publishRulesetFiles } from '../../../src/cli/publish-rulesets';
@@ -17,7 +17,11 @@ declare module 'vitest' {
     baseUrl: string;
     catcherUrl: string;
     smtpUrl: string;
+    /** The run's test database as the app role: what the server under test connects as. */
     databaseUrl: string;
+    /** The same database as the owner (migration) role: for tests that tamper with tables on purpose. */
+    migrationDatabaseUrl: string;
+    /** The server's superuser, connected to the maintenance database: creating and dropping databases. */
     adminDatabaseUrl: string;
     dataDir: string;
     /** The environment the server under test runs with, for tests that start a second instance. */
@@ -27,13 +31,15 @@ declare module 'vitest' {
 
 export default async function setup(project: TestProject) {
   let databaseUrl = process.env.TEST_DATABASE_URL;
+  let migrationDatabaseUrl = process.env.TEST_MIGRATION_DATABASE_URL;
   let adminDatabaseUrl = process.env.TEST_ADMIN_DATABASE_URL;
   if (!databaseUrl) {
     // Run directly through vitest: do what `npm test` would have done.
     const endpoints = await ensureDatabase();
-    databaseUrl = await recreateTestDatabase(endpoints);
-    await migrateLatest(databaseUrl);
-    await publishRulesetFiles(databaseUrl);
+    migrationDatabaseUrl = await recreateTestDatabase(endpoints);
+    await migrateLatest(migrationDatabaseUrl, endpoints.appRole);
+    await publishRulesetFiles(migrationDatabaseUrl);
+    databaseUrl = appUrlFor(endpoints, migrationDatabaseUrl);
     adminDatabaseUrl = endpoints.adminUrl;
   }
   if (!process.env.LATCHWELL_SERVER_ENTRY) await ensureBuilt();
@@ -62,6 +68,7 @@ export default async function setup(project: TestProject) {
   project.provide('catcherUrl', catcherUrl);
   project.provide('smtpUrl', smtpUrl);
   project.provide('databaseUrl', databaseUrl);
+  project.provide('migrationDatabaseUrl', migrationDatabaseUrl ?? databaseUrl);
   project.provide('adminDatabaseUrl', adminDatabaseUrl ?? databaseUrl);
   project.provide('dataDir', dataDir);
 

@@ -30,7 +30,7 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
       subject={`Assessment ${model.assessment.id}`}
       creator="Latchwell"
       producer="Latchwell"
-      keywords={`latchwell document ${model.documentId}`}
+      keywords={`latchwell document ${model.documentId}${model.signing?.auditHead ? ` audit-head ${model.signing.auditHead.eventId}:${model.signing.auditHead.hash}` : ''}`}
     >
       <Page size="LETTER" style={styles.page}>
         <Chrome model={model} />
@@ -371,6 +371,8 @@ function Identity({ model }: { model: ReportModel }) {
       ['Browser', (owner.userAgent ?? 'not recorded').slice(0, 160)],
       ['SHA-256 of the copy shown', owner.shownPdfSha256],
     );
+    const head = model.signing?.auditHead;
+    if (head) rows.push(['Audit trail at signing', `event #${head.eventId}, hash ${head.hash}`]);
   }
   const certificate = model.signing?.certificate;
   if (certificate) {

@@ -143,6 +143,8 @@ export interface ReportSource {
     certificate?: CertificateFacts;
     /** Where anyone can check the signed file, e.g. https://reports.example/verify. */
     verifyUrl?: string;
+    /** The audit trail's head when the report was signed: carried in the keywords and the signing record. */
+    auditHead?: { eventId: number; hash: string } | null;
   } | null;
 }
 

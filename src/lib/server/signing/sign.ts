@@ -8,6 +8,7 @@
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit';
+import { chainHead, recordAnchor } from '../audit-anchors';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
@@ -106,6 +107,8 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
     const documentId = randomUUID();
     // Chosen before rendering: the report names the certificate that signs it.
     const certificate = await signingCertificateFor({ id: row.organisation_id, name: row.org_name }, trx);
+    // The trail's head goes into the signed PDF, so the file itself can later show a trail cut short.
+    const auditHead = await chainHead(trx);
     const pdf = await renderAssessmentReport(
       request.organisation_id,
       request.assessment_id,
@@ -130,6 +133,7 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
           certificate: certificate.facts,
           // Only the configured public address: the signer's request must not name the host.
           verifyUrl: `${configuredOrigin() ?? ''}/verify`,
+          auditHead,
         },
       },
       trx,
@@ -151,6 +155,7 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
       filename: `gate-report-${row.id.slice(0, 8)}-signed.pdf`,
       createdBy: null,
     });
+    if (auditHead) await recordAnchor(trx, auditHead, { organisationId: row.organisation_id, kind: 'signed_report', reference: documentId });
     await trx('assessments')
       .where({ id: row.id })
       .update({ status: 'signed', signed_at: signedAt, row_version: trx.raw('row_version + 1'), updated_at: trx.fn.now() });
