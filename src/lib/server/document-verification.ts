@@ -10,6 +10,7 @@ import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
+import { consumeBody, type TooLarge } from './http/body';
 import { iso } from './listing';
 
 export type VerificationAnswer = { match: true; documentId: string; signedAt: string; organisation: string } | { match: false };
@@ -64,22 +65,9 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
   return { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
 }
 
-/** SHA-256 of a request body read chunk by chunk, refusing it past `limit` bytes. */
-export async function streamedSha256(request: Request, limit: number, tooLarge: () => Error): Promise<string> {
+/** SHA-256 of a request body hashed as it streams in, refusing it past `limit` bytes (body.ts). */
+export async function streamedSha256(request: Request, limit: number, tooLarge: TooLarge): Promise<string> {
   const hash = createHash('sha256');
-  let size = 0;
-  if (request.body) {
-    const reader = request.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      size += value.byteLength;
-      if (size > limit) {
-        await reader.cancel();
-        throw tooLarge();
-      }
-      hash.update(value);
-    }
-  }
+  await consumeBody(request, limit, (chunk) => hash.update(chunk), tooLarge);
   return hash.digest('hex');
 }

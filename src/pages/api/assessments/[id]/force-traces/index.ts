@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { idFromPath } from '@/lib/api/common';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { addTrace, listTraces } from '@/lib/server/force-traces';
+import { readBodyText } from '@/lib/server/http/body';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
 import { MAX_TRACE_CSV_BYTES, megabytes, TRACE_LOCATIONS } from '@/lib/walk/records';
@@ -33,11 +34,9 @@ async function readCsv(request: Request): Promise<string> {
   const tooLarge = () =>
     new HttpProblem(413, `The file is larger than ${megabytes(MAX_TRACE_CSV_BYTES)}; export one measuring point per file.`, {
       errors: [{ field: 'csv', message: `must be at most ${megabytes(MAX_TRACE_CSV_BYTES)}` }],
+      limitBytes: MAX_TRACE_CSV_BYTES,
     });
-  if (Number(request.headers.get('content-length') ?? 0) > MAX_TRACE_CSV_BYTES) throw tooLarge();
-  const bytes = Buffer.from(await request.arrayBuffer());
-  if (bytes.byteLength > MAX_TRACE_CSV_BYTES) throw tooLarge();
-  return bytes.toString('utf8');
+  return readBodyText(request, MAX_TRACE_CSV_BYTES, tooLarge);
 }
 
 /**
