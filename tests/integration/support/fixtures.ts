@@ -61,7 +61,10 @@ let passwordHash: Promise<string> | undefined;
  * failures; a random suffix keeps every call unique.
  */
 export async function createOrganisation(label = 'org'): Promise<FixtureOrganisation> {
-  const tag = `${label.toLowerCase().replace(/[^a-z0-9]+/g, '-').slice(0, 24)}-${randomBytes(4).toString('hex')}`;
+  const tag = `${label
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .slice(0, 24)}-${randomBytes(4).toString('hex')}`;
   passwordHash ??= hashPassword(fixturePassword);
   const hash = await passwordHash;
   return testDb().transaction(async (trx) => {
@@ -106,9 +109,9 @@ export interface TestClient {
   /** The current `Cookie` header value (empty when signed out). */
   readonly cookie: string;
   /**
-   * The address this client appears to come from (sent as X-Forwarded-For, which the server
-   * takes as the client address), so per-address throttling in one test never spills into
-   * another. A made-up address from 198.18.0.0/15 (reserved for testing) unless given.
+   * The address this client appears to come from (sent as X-Forwarded-For, which the test
+   * server takes as the client address because it runs with TRUST_PROXY=1), so per-address
+   * throttling in one test never spills into another. A made-up address from 198.18.0.0/15 (reserved for testing) unless given.
    */
   readonly address: string;
   /**
@@ -185,7 +188,12 @@ async function csrfToken(client: TestClient): Promise<string> {
  * the raw response: a redirect on success; on refusal problem+json (401, 429) unless
  * `headers` asks for text/html, when it is a redirect back to /signin with the reason.
  */
-export async function postCredentials(client: TestClient, providerId: string, fields: Record<string, string>, headers: Record<string, string> = {}): Promise<Response> {
+export async function postCredentials(
+  client: TestClient,
+  providerId: string,
+  fields: Record<string, string>,
+  headers: Record<string, string> = {},
+): Promise<Response> {
   const form = new URLSearchParams({ ...fields, csrfToken: await csrfToken(client) });
   return client.fetch(`/api/auth/callback/${providerId}`, {
     method: 'POST',

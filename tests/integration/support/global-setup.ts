@@ -48,6 +48,10 @@ export default async function setup(project: TestProject) {
     MAIL_CATCHER_URL: catcherUrl,
     AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
     AUTH_TRUST_HOST: 'true',
+    // The test client plays one proxy: each TestClient sends its own made-up address as
+    // X-Forwarded-For, so throttles in one test never spill into another. The server that
+    // trusts no proxy is tested on its own instance (client-address.test.ts).
+    TRUST_PROXY: '1',
     LATCHWELL_DATA_DIR: dataDir,
     LATCHWELL_ENV: 'test',
     // Each project has its own server and catcher on the one test database: keep their mail

@@ -6,7 +6,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { boundedRequest, consumeBody, readBodyBytes, readFormBody, readPageForm } from '@/lib/server/http/body';
+import { bodyTooLarge, boundedRequest, consumeBody, readBodyBytes, readFormBody, readPageForm } from '@/lib/server/http/body';
 import { HttpProblem, parseBody } from '@/lib/server/http/problem';
 import { z } from 'zod';
 
@@ -88,14 +88,27 @@ describe('the bounded body reader', () => {
     expect((await readBodyBytes(request, 1000)).byteLength).toBe(1000);
   });
 
-  it('refuses one byte over the limit while streaming, with 413 naming the limit, and stops reading', async () => {
+  it('refuses one byte over the limit while streaming, with 413 naming the limit, having kept no more than the limit', async () => {
     const { request, pulled } = streamed(60 * 1024 * 1024);
-    const problem = await refusal(readBodyBytes(request, 256 * 1024));
+    let kept = 0;
+    let pulledAtRefusal = 0;
+    const problem = await refusal(
+      consumeBody(
+        request,
+        256 * 1024,
+        (chunk) => (kept += chunk.byteLength),
+        (declared) => {
+          pulledAtRefusal = pulled.bytes;
+          return bodyTooLarge(256 * 1024)(declared);
+        },
+      ),
+    );
     expect(problem.status).toBe(413);
     expect(problem.message).toContain('256 KiB');
     expect(problem.extra.limitBytes).toBe(256 * 1024);
-    // It stopped within a chunk or two of the limit, not at the end of 60 MB.
-    expect(pulled.bytes).toBeLessThan(256 * 1024 + 4 * 64 * 1024);
+    expect(kept).toBeLessThanOrEqual(256 * 1024);
+    // Refused within a chunk or two of the limit, not at the end of 60 MB.
+    expect(pulledAtRefusal).toBeLessThan(256 * 1024 + 3 * 64 * 1024);
     const edge = streamed(1001);
     expect((await refusal(readBodyBytes(edge.request, 1000))).status).toBe(413);
   });
@@ -103,21 +116,25 @@ describe('the bounded body reader', () => {
   it('refuses an announced Content-Length over the limit before reading anything', async () => {
     const { request, pulled } = streamed(2 * 1024 * 1024, { 'content-length': String(2 * 1024 * 1024) });
     let declared: number | null | undefined;
+    let pulledAtRefusal = -1;
+    let kept = 0;
     const problem = await refusal(
       consumeBody(
         request,
         1024 * 1024,
-        () => undefined,
+        (chunk) => (kept += chunk.byteLength),
         (bytes) => {
           declared = bytes;
+          pulledAtRefusal = pulled.bytes;
           return new HttpProblem(413, 'too big');
         },
       ),
     );
     expect(problem.status).toBe(413);
     expect(declared).toBe(2 * 1024 * 1024);
-    // At most the one chunk a stream fetches ahead on its own: the reader took nothing.
-    expect(pulled.bytes).toBeLessThanOrEqual(64 * 1024);
+    expect(kept).toBe(0);
+    // At most the one chunk a stream fetches ahead on its own.
+    expect(pulledAtRefusal).toBeLessThanOrEqual(64 * 1024);
   });
 
   it('parseBody refuses a chunked JSON body over its limit with 413', async () => {

@@ -42,8 +42,7 @@ function declaredLength(request: Request): number | null {
 
 /**
  * Streams the body into `onChunk`, refusing it once more than `limit` bytes have come (or
- * were announced). Returns the number of bytes read. On refusal the rest of the body is not
- * read: the stream is cancelled and the connection is left to the server.
+ * were announced). Returns the number of bytes read. The rest of a refused body is never read.
  */
 export async function consumeBody(
   request: Request,
@@ -56,19 +55,21 @@ export async function consumeBody(
   if (!request.body) return 0;
   const reader = request.body.getReader();
   let size = 0;
-  try {
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) return size;
-      size += value.byteLength;
-      if (size > limit) {
-        await reader.cancel().catch(() => undefined);
-        throw tooLarge(null);
-      }
-      onChunk(value);
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) {
+      reader.releaseLock();
+      return size;
     }
-  } finally {
-    reader.releaseLock();
+    size += value.byteLength;
+    if (size > limit) {
+      // Stop reading, and neither keep nor drain the rest: the answer goes out while the client
+      // is still sending, and node closes the connection when the client leaves or after its
+      // keep-alive timeout. (Cancelling would reset the connection before the 413 is read.)
+      reader.releaseLock();
+      throw tooLarge(null);
+    }
+    onChunk(value);
   }
 }
 
