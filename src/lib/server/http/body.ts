@@ -74,7 +74,7 @@ export async function consumeBody(
 }
 
 /** The whole body as bytes, at most `limit` of them. */
-export async function readBodyBytes(request: Request, limit: number, tooLarge?: TooLarge): Promise<Buffer> {
+export async function readBodyBytes(request: Request, limit: number, tooLarge?: TooLarge): Promise<Buffer<ArrayBuffer>> {
   const chunks: Uint8Array[] = [];
   const size = await consumeBody(request, limit, (chunk) => chunks.push(chunk), tooLarge);
   return Buffer.concat(chunks, size);
@@ -126,7 +126,7 @@ export async function boundedRequest(
   limit: number,
   url: string | URL = request.url,
   tooLarge?: TooLarge,
-): Promise<{ request: Request; bytes: Buffer }> {
+): Promise<{ request: Request; bytes: Buffer<ArrayBuffer> }> {
   const hasBody = request.method !== 'GET' && request.method !== 'HEAD';
   const bytes = hasBody ? await readBodyBytes(request, limit, tooLarge) : Buffer.alloc(0);
   const headers = new Headers(request.headers);
