@@ -12,6 +12,7 @@ import type { Knex } from 'knex';
 import { anchorOfPdf, anchorStateWords, checkAnchors, type AnchorState } from './audit-anchors';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
+import { consumeBody, type TooLarge } from './http/body';
 import { iso } from './listing';
 import { signerCertificateOfPdf, type CertificateFacts } from './pdf/certificate-facts';
 import { storage } from './storage';
@@ -109,22 +110,9 @@ async function trailAnswer(bytes: Buffer, knex: Knex): Promise<TrailAnswer | nul
   return { eventId: anchor.eventId, state: state!, message: anchorStateWords[state!] };
 }
 
-/** SHA-256 of a request body read chunk by chunk, refusing it past `limit` bytes. */
-export async function streamedSha256(request: Request, limit: number, tooLarge: () => Error): Promise<string> {
+/** SHA-256 of a request body hashed as it streams in, refusing it past `limit` bytes (body.ts). */
+export async function streamedSha256(request: Request, limit: number, tooLarge: TooLarge): Promise<string> {
   const hash = createHash('sha256');
-  let size = 0;
-  if (request.body) {
-    const reader = request.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      size += value.byteLength;
-      if (size > limit) {
-        await reader.cancel();
-        throw tooLarge();
-      }
-      hash.update(value);
-    }
-  }
+  await consumeBody(request, limit, (chunk) => hash.update(chunk), tooLarge);
   return hash.digest('hex');
 }

@@ -120,9 +120,9 @@ export interface TestClient {
   /** The current `Cookie` header value (empty when signed out). */
   readonly cookie: string;
   /**
-   * The address this client appears to come from (sent as X-Forwarded-For, which the server
-   * takes as the client address), so per-address throttling in one test never spills into
-   * another. A made-up address from 198.18.0.0/15 (reserved for testing) unless given.
+   * The address this client appears to come from (sent as X-Forwarded-For, which the test
+   * server takes as the client address because it runs with TRUST_PROXY=1), so per-address
+   * throttling in one test never spills into another. A made-up address from 198.18.0.0/15 (reserved for testing) unless given.
    */
   readonly address: string;
   /**

@@ -56,6 +56,10 @@ export default async function setup(project: TestProject) {
     AUTH_TRUST_HOST: 'true',
     // E-mailed links are built from this, never from the request's Host or X-Forwarded-* headers.
     PUBLIC_URL: `http://127.0.0.1:${port}`,
+    // The test client plays one proxy: each TestClient sends its own made-up address as
+    // X-Forwarded-For, so throttles in one test never spill into another. The server that
+    // trusts no proxy is tested on its own instance (client-address.test.ts).
+    TRUST_PROXY: '1',
     LATCHWELL_DATA_DIR: dataDir,
     LATCHWELL_ENV: 'test',
     // Each project has its own server and catcher on the one test database: keep their mail

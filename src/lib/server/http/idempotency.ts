@@ -16,6 +16,7 @@ import type { Knex } from 'knex';
 import { db } from '../db';
 import type { SessionUser } from '../session-user';
 import { HttpProblem, maxJsonBodyBytes } from './problem';
+import { readBodyBytes } from './body';
 
 export const idempotencyHeader = 'Idempotency-Key';
 export const replayedHeader = 'Idempotent-Replayed';
@@ -45,25 +46,6 @@ export function idempotencyKeyOf(request: Request): string | null {
   return key;
 }
 
-async function readBody(request: Request, limit: number): Promise<Buffer> {
-  if (Number(request.headers.get('content-length') ?? 0) > limit) throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
-  if (!request.body) return Buffer.alloc(0);
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let size = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    size += value.byteLength;
-    if (size > limit) {
-      await reader.cancel();
-      throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
-    }
-    chunks.push(value);
-  }
-  return Buffer.concat(chunks);
-}
-
 interface StoredRow {
   request_sha256: string;
   response_status: number;
@@ -88,7 +70,7 @@ export async function withIdempotency(
 ): Promise<Response> {
   const key = idempotencyKeyOf(request);
   if (key === null) return create(db(), request);
-  const body = await readBody(request, limit);
+  const body = await readBodyBytes(request, limit);
   const url = new URL(request.url);
   const fingerprint = createHash('sha256')
     .update(`${request.method}\n${url.pathname}${url.search}\n${request.headers.get('content-type') ?? ''}\n`)

@@ -3,6 +3,7 @@
  * `errors` and never a stack trace.
  */
 import { z } from 'zod';
+import { readBodyText } from './body';
 
 export interface FieldError {
   /** Dotted path of the field at fault, e.g. `gate.widthMm`; `''` for the body as a whole. */
@@ -79,20 +80,20 @@ export function zodFieldErrors(error: z.ZodError): FieldError[] {
   });
 }
 
+/** JSON bodies of the domain API. */
 export const maxJsonBodyBytes = 256 * 1024;
 
 /**
- * Reads a JSON body and parses it with a zod schema. Refuses a wrong content type (415), an
- * oversize body (413), malformed JSON (400) and invalid fields (422, each field named).
+ * Reads a JSON body (through body.ts, within `limit` bytes) and parses it with a zod schema.
+ * Refuses a wrong content type (415), an oversize body (413), malformed JSON (400) and
+ * invalid fields (422, each field named).
  */
 export async function parseBody<S extends z.ZodType>(schema: S, request: Request, limit = maxJsonBodyBytes): Promise<z.infer<S>> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^application\/(merge-patch\+)?json\b/i.test(type)) {
     throw new HttpProblem(415, 'Send the body as application/json.', { errors: [{ field: '', message: 'Content-Type must be application/json' }] });
   }
-  const declared = Number(request.headers.get('content-length') ?? 0);
-  if (declared > limit) throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
-  const text = await readLimited(request, limit);
+  const text = await readBodyText(request, limit);
   let json: unknown;
   try {
     json = JSON.parse(text);
@@ -117,24 +118,6 @@ export function parseQuery<S extends z.ZodType>(schema: S, url: URL): z.infer<S>
   const result = schema.safeParse(raw);
   if (!result.success) throw new HttpProblem(400, 'Some query parameters are invalid.', { errors: zodFieldErrors(result.error) });
   return result.data;
-}
-
-async function readLimited(request: Request, limit: number): Promise<string> {
-  if (!request.body) return '';
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let size = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    size += value.byteLength;
-    if (size > limit) {
-      await reader.cancel();
-      throw new HttpProblem(413, `The body is larger than ${limit} bytes.`);
-    }
-    chunks.push(value);
-  }
-  return Buffer.concat(chunks).toString('utf8');
 }
 
 /** Wraps an endpoint so thrown HttpProblems become responses and anything else a bare 500. */

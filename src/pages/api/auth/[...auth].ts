@@ -12,7 +12,8 @@ import { publicOrigin } from '@/lib/server/auth/public-origin';
 import { runAuthCore } from '@/lib/server/auth/core';
 import type { SignInContext } from '@/lib/server/auth/request-context';
 import { waitInWords } from '@/lib/server/auth/throttle';
-import { problem } from '@/lib/server/http/problem';
+import { boundedRequest, describeBytes } from '@/lib/server/http/body';
+import { HttpProblem, problem } from '@/lib/server/http/problem';
 
 export const prerender = false;
 
@@ -20,16 +21,27 @@ const actions = new Set(['providers', 'session', 'csrf', 'signin', 'signout', 'c
 
 /** Sign-in forms are tiny; anything bigger is not one. */
 const maxFormBytes = 16 * 1024;
+const tooLarge = () =>
+  new HttpProblem(413, `The sign-in form is larger than the limit of ${describeBytes(maxFormBytes)}.`, {
+    errors: [{ field: '', message: `must be at most ${maxFormBytes} bytes` }],
+    limitBytes: maxFormBytes,
+  });
 
-/** The same request, addressed to the public origin, with its (small) body buffered. */
+/**
+ * The same request, addressed to the public origin, with its body read within the limit
+ * (body.ts) and handed to auth core as a re-built request of those bytes.
+ */
 async function forAuthCore(request: Request): Promise<{ request: Request; form: URLSearchParams } | Response> {
   const url = new URL(request.url);
   const target = new URL(`${url.pathname}${url.search}`, publicOrigin(request));
-  if (request.method !== 'POST') return { request: new Request(target, { method: request.method, headers: request.headers }), form: new URLSearchParams() };
-  const body = await request.text();
-  if (Buffer.byteLength(body) > maxFormBytes) return problem(413, 'The sign-in form is too large.');
-  const isForm = (request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
-  return { request: new Request(target, { method: 'POST', headers: request.headers, body }), form: isForm ? new URLSearchParams(body) : new URLSearchParams() };
+  try {
+    const bounded = await boundedRequest(request, maxFormBytes, target, tooLarge);
+    const isForm = (request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
+    return { request: bounded.request, form: isForm ? new URLSearchParams(bounded.bytes.toString('utf8')) : new URLSearchParams() };
+  } catch (error) {
+    if (error instanceof HttpProblem) return error.toResponse();
+    throw error;
+  }
 }
 
 const refusals: Record<string, { status: number; detail: (ctx: SignInContext) => string }> = {

@@ -16,7 +16,11 @@ const QuerySchema = z.strictObject({
     .refine((v) => referenceOf(v) !== null, 'must be a document id (UUID) or a SHA-256 (64 hex digits)'),
 });
 
-const tooLarge = () => new HttpProblem(413, `A signed report is never larger than ${MAX_PDF_BYTES / 1024 / 1024} MB.`);
+const tooLarge = () =>
+  new HttpProblem(413, `A signed report is never larger than ${MAX_PDF_BYTES / 1024 / 1024} MB.`, {
+    errors: [{ field: 'file', message: `must be at most ${MAX_PDF_BYTES / 1024 / 1024} MB` }],
+    limitBytes: MAX_PDF_BYTES,
+  });
 
 /** 429 with Retry-After when this address has checked too many reports lately (before any upload is read). */
 async function throttled(context: { clientAddress: string }): Promise<Response | null> {
@@ -40,7 +44,6 @@ export const POST: APIRoute = handle(async (context) => {
   const { request } = context;
   const type = request.headers.get('content-type') ?? '';
   if (/^application\/pdf\b/i.test(type)) {
-    if (Number(request.headers.get('content-length') ?? 0) > MAX_PDF_BYTES) throw tooLarge();
     return Response.json(await verifyDocument({ sha256: await streamedSha256(request, MAX_PDF_BYTES, tooLarge) }));
   }
   const form = await readMultipart(request, MAX_PDF_BYTES, tooLarge);

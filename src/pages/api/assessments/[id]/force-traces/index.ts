@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { idFromPath } from '@/lib/api/common';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { addTrace, listTraces } from '@/lib/server/force-traces';
+import { readBodyText } from '@/lib/server/http/body';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { uploadClientRef, replayedHeader } from '@/lib/server/http/idempotency';
 import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
@@ -34,11 +35,9 @@ async function readCsv(request: Request): Promise<string> {
   const tooLarge = () =>
     new HttpProblem(413, `The file is larger than ${megabytes(MAX_TRACE_CSV_BYTES)}; export one measuring point per file.`, {
       errors: [{ field: 'csv', message: `must be at most ${megabytes(MAX_TRACE_CSV_BYTES)}` }],
+      limitBytes: MAX_TRACE_CSV_BYTES,
     });
-  if (Number(request.headers.get('content-length') ?? 0) > MAX_TRACE_CSV_BYTES) throw tooLarge();
-  const bytes = Buffer.from(await request.arrayBuffer());
-  if (bytes.byteLength > MAX_TRACE_CSV_BYTES) throw tooLarge();
-  return bytes.toString('utf8');
+  return readBodyText(request, MAX_TRACE_CSV_BYTES, tooLarge);
 }
 
 /**
