@@ -227,8 +227,11 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             A name, street, postal code or gate.
           </span>
         </label>
-        <details open={filtersOpen} onToggle={(e) => setFiltersOpen((e.target as HTMLDetailsElement).open)}>
+        <details className="group" open={filtersOpen} onToggle={(e) => setFiltersOpen((e.target as HTMLDetailsElement).open)}>
           <summary className="flex min-h-11 cursor-pointer items-center font-semibold text-iron-800">
+            <span aria-hidden="true" className="mr-2 inline-block transition-transform group-open:rotate-90">
+              ▸
+            </span>
             More filters{activeFilters > 0 ? ` (${activeFilters} in use)` : ''}
           </summary>
           <div className="mt-2 grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
