@@ -3,6 +3,7 @@
  * page cursor. Pure, so the page (server) and the island (browser) read a bookmarked URL the
  * same way. Unknown keys are dropped; values are validated by the API, not here.
  */
+import { VERDICT_WORDS } from './vocabulary';
 
 /** The archive's filters (src/lib/api/archive.ts parses each), in the order URLs write them. */
 export const ARCHIVE_FILTER_KEYS = [
@@ -73,21 +74,7 @@ export function viewParams(state: ArchiveViewState): URLSearchParams {
   return params;
 }
 
-export const GATE_KIND_LABELS: Record<string, string> = {
-  swing: 'Swing',
-  slide: 'Slide',
-  barrier_arm: 'Barrier arm',
-  vertical_lift: 'Vertical lift',
-  vertical_pivot: 'Vertical pivot',
-  overhead_pivot: 'Overhead pivot',
-};
+/** Labels for the filters and the table: the vocabulary's own. */
+export { GATE_KIND_LABEL as GATE_KIND_LABELS, STATUS_LABEL as STATUS_LABELS } from './vocabulary';
 
-export const STATUS_LABELS: Record<string, string> = {
-  draft: 'Draft',
-  scored: 'Submitted',
-  awaiting_signature: 'Awaiting signature',
-  signed: 'Signed',
-  superseded: 'Superseded',
-};
-
-export const VERDICT_LABELS: Record<string, string> = { clear: 'Clear', remedy: 'Remedy needed', withdraw: 'Withdraw' };
+export const VERDICT_LABELS: Record<string, string> = Object.fromEntries(Object.entries(VERDICT_WORDS).map(([k, w]) => [k, w.label]));

@@ -81,7 +81,7 @@ describe("the office's journey", () => {
     const needle = clientName.split(' ').at(-1)!.slice(0, 8);
     await page.getByLabel('Search client, address or gate').fill(needle);
     await page.waitForURL(/q=/);
-    await page.getByText('1 assessment match').waitFor();
+    await page.getByText('1 assessment matches').waitFor();
     expect(await page.getByRole('link', { name: /Driveway gate/ }).count()).toBeGreaterThan(0);
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'office-01-archive-search', { fullPage: true });

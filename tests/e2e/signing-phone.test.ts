@@ -54,7 +54,7 @@ describe('signing on a phone', () => {
     const { assessmentId, path, cautions } = await sentLink();
     const { page } = browser;
     await page.goto(path);
-    await page.getByRole('heading', { name: /Withdraw from automatic use/ }).waitFor();
+    await page.getByRole('heading', { name: /Take out of automatic use/ }).waitFor();
     await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
     expect(await seriousAxeViolations(page)).toEqual([]);
     // Nothing may force a sideways scroll on a 360 px screen.

@@ -276,6 +276,9 @@ describe('the auditor walks a swing gate on a phone', () => {
     await page.locator('[data-verdict]').first().waitFor({ timeout: 20_000 });
     await checkPage('walk-14-live-result');
     await page.getByRole('button', { name: 'Submit the assessment' }).click();
+    // Submitting cannot be undone: a dialog says so first.
+    await page.getByRole('dialog', { name: 'Submit this assessment?' }).waitFor();
+    await page.getByRole('button', { name: 'Submit and score' }).click();
     await page.getByText('Submitted result').waitFor({ timeout: 20_000 });
     const verdict = await page.locator('[data-verdict]').getAttribute('data-verdict');
     const stored = await testDb()('assessments').where({ id: assessmentId }).first();

@@ -126,7 +126,7 @@ describe('sending a scored assessment for signature and signing it', () => {
     clientEmail = opened.clientEmail;
     expect(opened.mail.parsed.to && 'value' in opened.mail.parsed.to ? opened.mail.parsed.to.value[0].address : '').toBe(clientEmail);
     expect(opened.mail.parsed.subject).toBe('Please read and sign: gate safety report for Driveway gate');
-    expect(opened.mail.parsed.text).toContain('Withdraw from automatic use');
+    expect(opened.mail.parsed.text).toContain('Take out of automatic use');
     expect(opened.sent.signRequest.recipient).toBe(clientEmail);
     const row = await testDb()('assessments').where({ id: assessment.assessmentId }).first('status');
     expect(row.status).toBe('awaiting_signature');
@@ -143,7 +143,7 @@ describe('sending a scored assessment for signature and signing it', () => {
     expect(res.headers.get('referrer-policy')).toBe('no-referrer');
     const html = await res.text();
     expect(html).toContain('name="viewport" content="width=device-width, initial-scale=1"');
-    expect(html).toContain('Withdraw from automatic use');
+    expect(html).toContain('Take out of automatic use');
     shownSha = /data-document-sha256>([0-9a-f]{64})</.exec(html)?.[1] ?? '';
     expect(shownSha).toMatch(/^[0-9a-f]{64}$/);
     cautionIds = assessment.result.findings.filter((f) => f.outcome === 'fail').map((f) => f.ruleId);
@@ -157,7 +157,7 @@ describe('sending a scored assessment for signature and signing it', () => {
     const pdf = new Uint8Array(await res.arrayBuffer());
     expect(sha256(pdf)).toBe(shownSha);
     const text = await extractPdfText(pdf);
-    expect(text).toContain('Withdraw from automatic use');
+    expect(text).toContain('Take out of automatic use');
     const failing = assessment.result.findings.filter((f) => f.outcome === 'fail');
     for (const f of failing) {
       expect(text).toContain(f.title);

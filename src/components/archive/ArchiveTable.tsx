@@ -21,6 +21,7 @@ import {
   type ArchiveSort,
   type ArchiveViewState,
 } from '@/lib/archive-query';
+import { count as countOf, rulesetLabel, usageClassLabel, VERDICT_WORDS, type VerdictCode } from '@/lib/vocabulary';
 import { fetchArchiveCount, fetchArchivePage } from './archive-api';
 
 export interface ArchiveOptions {
@@ -51,8 +52,25 @@ function sortingOf(sort: ArchiveSort): SortingState {
   return [{ id: sort.replace('-', ''), desc: sort.startsWith('-') }];
 }
 
-const verdictClass: Record<string, string> = { clear: 'bg-clear text-white', remedy: 'bg-remedy text-white', withdraw: 'bg-withdraw text-white' };
 const column = createColumnHelper<ArchiveItem>();
+
+/** Status as a chip and the verdict as coloured text with an icon: a status, not a button. */
+function Outcome({ item }: { item: ArchiveItem }) {
+  const tone = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' } as const;
+  const icon = { clear: '✓', remedy: '!', withdraw: '■' } as const;
+  const verdict = item.verdict as VerdictCode | null;
+  return (
+    <span className="inline-flex flex-wrap items-center gap-x-2 gap-y-1">
+      <span className="rounded bg-iron-100 px-2 py-0.5 text-xs font-semibold">{STATUS_LABELS[item.status as keyof typeof STATUS_LABELS] ?? 'Unknown'}</span>
+      {verdict && (
+        <span className={`inline-flex items-center gap-1 text-xs font-semibold ${tone[verdict]}`}>
+          <span aria-hidden="true">{icon[verdict]}</span>
+          {VERDICT_WORDS[verdict].short}
+        </span>
+      )}
+    </span>
+  );
+}
 
 function ArchiveTable({ initialSearch, options, timeZone }: Props) {
   const [state, setState] = useState<ArchiveViewState>(() => viewStateFrom(new URLSearchParams(initialSearch)));
@@ -111,13 +129,20 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
   });
 
   const dateFormat = useMemo(() => new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone }), [timeZone]);
+  const titleOf = useMemo(() => {
+    const titles = new Map(options.rulesets.map((r) => [r.family, r.title]));
+    return (family: string) => titles.get(family) ?? null;
+  }, [options.rulesets]);
+  // Filters start folded on phones (results first) and open on wider screens.
+  const [filtersOpen, setFiltersOpen] = useState(false);
+  useEffect(() => setFiltersOpen(window.matchMedia('(min-width: 768px)').matches), []);
   const columns = useMemo(
     () => [
       column.accessor('date', {
         header: 'Visit',
         sortDescFirst: true,
         cell: (c) => (
-          <a href={`/assessments/${c.row.original.id}`} className="whitespace-nowrap font-semibold">
+          <a href={`/assessments/${c.row.original.id}`} className="inline-flex min-h-11 items-center whitespace-nowrap font-semibold">
             {dateFormat.format(new Date(c.getValue()))}
           </a>
         ),
@@ -130,7 +155,7 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         cell: (c) => (
           <span>
             {c.getValue()}, {c.row.original.site.city}
-            <span className="block text-xs text-iron-600">Usage class {c.row.original.site.usageClass}</span>
+            <span className="block text-xs text-iron-600">{usageClassLabel(c.row.original.site.usageClass)}</span>
           </span>
         ),
       }),
@@ -139,7 +164,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         header: 'Gate',
         cell: (c) => (
           <span>
-            <a href={`/archive/gates/${c.row.original.gate.id}`}>{c.getValue()}</a>
+            <a href={`/archive/gates/${c.row.original.gate.id}`} className="inline-flex min-h-11 items-center">
+              {c.getValue()}
+            </a>
             <span className="block text-xs text-iron-600">{GATE_KIND_LABELS[c.row.original.gate.kind] ?? c.row.original.gate.kind}</span>
           </span>
         ),
@@ -147,18 +174,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
       column.display({
         id: 'outcome',
         header: 'Status',
-        cell: (c) => (
-          <span className="inline-flex flex-wrap gap-1">
-            <span className="rounded-full bg-iron-100 px-2 py-0.5 text-xs font-semibold">{STATUS_LABELS[c.row.original.status] ?? c.row.original.status}</span>
-            {c.row.original.verdict && (
-              <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[c.row.original.verdict]}`}>
-                {VERDICT_LABELS[c.row.original.verdict]}
-              </span>
-            )}
-          </span>
-        ),
+        cell: (c) => <Outcome item={c.row.original} />,
       }),
-      column.accessor((row) => `${row.ruleset.family} ${row.ruleset.version}`, {
+      column.accessor((row) => rulesetLabel({ ...row.ruleset, title: titleOf(row.ruleset.family) }), {
         id: 'ruleset',
         header: 'Ruleset',
         enableSorting: false,
@@ -166,7 +184,7 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
       }),
       column.accessor((row) => row.auditor.name, { id: 'auditor', header: 'Auditor', enableSorting: false }),
     ],
-    [dateFormat],
+    [dateFormat, titleOf],
   );
 
   const table = useReactTable({
@@ -189,93 +207,109 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
 
   const rulesetValue = state.filters.family ? `${state.filters.family}${state.filters.version ? ` ${state.filters.version}` : ''}` : '';
   const anyFilter = Object.values(state.filters).some(Boolean);
+  const activeFilters = Object.entries(state.filters).filter(([k, v]) => v && k !== 'q' && k !== 'version').length;
   const total = count.data?.total;
 
   return (
     <div className="mt-4 grid gap-4">
-      <form className="card grid gap-3 sm:grid-cols-2 lg:grid-cols-4" role="search" onSubmit={(e) => e.preventDefault()}>
-        <label className="sm:col-span-2">
+      <form className="card grid gap-3" role="search" onSubmit={(e) => e.preventDefault()}>
+        <label>
           <span className="label">Search client, address or gate</span>
           <input
             className="field"
             type="search"
             value={typed.q}
             onChange={(e) => setTyped({ ...typed, q: e.target.value })}
-            placeholder="e.g. Fennick, EH4, rear yard"
+            aria-describedby="archive-search-hint"
             autoComplete="off"
           />
+          <span id="archive-search-hint" className="mt-1 block text-sm text-iron-600">
+            A name, street, postal code or gate.
+          </span>
         </label>
-        <label>
-          <span className="label">Client name</span>
-          <input className="field" type="text" value={typed.client} onChange={(e) => setTyped({ ...typed, client: e.target.value })} autoComplete="off" />
-        </label>
-        <label>
-          <span className="label">Address</span>
-          <input className="field" type="text" value={typed.address} onChange={(e) => setTyped({ ...typed, address: e.target.value })} autoComplete="off" />
-        </label>
-        <Select label="Gate kind" value={state.filters.gateKind} onChange={(v) => setFilter('gateKind', v)} options={Object.entries(GATE_KIND_LABELS)} />
-        <Select
-          label="Usage class"
-          value={state.filters.usageClass}
-          onChange={(v) => setFilter('usageClass', v)}
-          options={['1', '2', '3', '4'].map((c) => [c, `Class ${c}`])}
-        />
-        <Select label="Status" value={state.filters.status} onChange={(v) => setFilter('status', v)} options={Object.entries(STATUS_LABELS)} />
-        <Select label="Verdict" value={state.filters.verdict} onChange={(v) => setFilter('verdict', v)} options={Object.entries(VERDICT_LABELS)} />
-        <label>
-          <span className="label">Ruleset</span>
-          <select
-            className="field"
-            value={rulesetValue}
-            onChange={(e) => {
-              const [family, version] = e.target.value.split(' ');
-              update({ filters: { ...state.filters, family: family || undefined, version: version || undefined } });
-            }}
-          >
-            <option value="">Any</option>
-            {options.rulesets.map((r) => [
-              <option key={r.family} value={r.family}>
-                {r.title}: any version
-              </option>,
-              ...r.versions.map((v) => (
-                <option key={`${r.family} ${v}`} value={`${r.family} ${v}`}>
-                  {r.title} {v}
-                </option>
-              )),
-            ])}
-          </select>
-        </label>
-        <Select
-          label="Auditor"
-          value={state.filters.auditorId}
-          onChange={(v) => setFilter('auditorId', v)}
-          options={options.auditors.map((a) => [a.id, a.name])}
-        />
-        <label>
-          <span className="label">Visited from</span>
-          <input className="field" type="date" value={state.filters.from ?? ''} onChange={(e) => setFilter('from', e.target.value)} />
-        </label>
-        <label>
-          <span className="label">Visited to</span>
-          <input className="field" type="date" value={state.filters.to ?? ''} onChange={(e) => setFilter('to', e.target.value)} />
-        </label>
-        <div className="flex flex-wrap items-end gap-2 sm:col-span-2 lg:col-span-4">
-          <button
-            type="button"
-            className="btn-secondary"
-            disabled={!anyFilter}
-            onClick={() => {
-              setTyped({ q: '', client: '', address: '' });
-              update({ filters: {} });
-            }}
-          >
-            Clear filters
-          </button>
+        <details className="group" open={filtersOpen} onToggle={(e) => setFiltersOpen((e.target as HTMLDetailsElement).open)}>
+          <summary className="flex min-h-11 cursor-pointer items-center font-semibold text-iron-800">
+            <span aria-hidden="true" className="mr-2 inline-block transition-transform group-open:rotate-90">
+              ▸
+            </span>
+            More filters{activeFilters > 0 ? ` (${activeFilters} in use)` : ''}
+          </summary>
+          <div className="mt-2 grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
+            <label>
+              <span className="label">Client name</span>
+              <input className="field" type="text" value={typed.client} onChange={(e) => setTyped({ ...typed, client: e.target.value })} autoComplete="off" />
+            </label>
+            <label>
+              <span className="label">Address</span>
+              <input className="field" type="text" value={typed.address} onChange={(e) => setTyped({ ...typed, address: e.target.value })} autoComplete="off" />
+            </label>
+            <Select label="Gate kind" value={state.filters.gateKind} onChange={(v) => setFilter('gateKind', v)} options={Object.entries(GATE_KIND_LABELS)} />
+            <Select
+              label="Usage class"
+              value={state.filters.usageClass}
+              onChange={(v) => setFilter('usageClass', v)}
+              options={['1', '2', '3', '4'].map((c) => [c, usageClassLabel(Number(c)).replace(/^u/, 'U')])}
+            />
+            <Select label="Status" value={state.filters.status} onChange={(v) => setFilter('status', v)} options={Object.entries(STATUS_LABELS)} />
+            <Select label="Verdict" value={state.filters.verdict} onChange={(v) => setFilter('verdict', v)} options={Object.entries(VERDICT_LABELS)} />
+            <label>
+              <span className="label">Ruleset</span>
+              <select
+                className="field"
+                value={rulesetValue}
+                onChange={(e) => {
+                  const [family, version] = e.target.value.split(' ');
+                  update({ filters: { ...state.filters, family: family || undefined, version: version || undefined } });
+                }}
+              >
+                <option value="">Any</option>
+                {options.rulesets.map((r) => [
+                  <option key={r.family} value={r.family}>
+                    {r.title}: any version
+                  </option>,
+                  ...r.versions.map((v) => (
+                    <option key={`${r.family} ${v}`} value={`${r.family} ${v}`}>
+                      {r.title} {v}
+                    </option>
+                  )),
+                ])}
+              </select>
+            </label>
+            <Select
+              label="Auditor"
+              value={state.filters.auditorId}
+              onChange={(v) => setFilter('auditorId', v)}
+              options={options.auditors.map((a) => [a.id, a.name])}
+            />
+            <label>
+              <span className="label">Visited from</span>
+              <input className="field" type="date" value={state.filters.from ?? ''} onChange={(e) => setFilter('from', e.target.value)} />
+            </label>
+            <label>
+              <span className="label">Visited to</span>
+              <input className="field" type="date" value={state.filters.to ?? ''} onChange={(e) => setFilter('to', e.target.value)} />
+            </label>
+          </div>
+          <div className="mt-3">
+            <button
+              type="button"
+              className="btn-secondary"
+              disabled={!anyFilter}
+              onClick={() => {
+                setTyped({ q: '', client: '', address: '' });
+                update({ filters: {} });
+              }}
+            >
+              Clear filters
+            </button>
+          </div>
+        </details>
+        <div className="flex flex-wrap items-end gap-2">
           <a className="btn" href={`/api/archive/export${filterQuery ? `?${filterQuery}` : ''}`} download>
             Export signed PDFs (ZIP)
           </a>
           <p className="text-sm text-iron-600" aria-live="polite">
-            {total === undefined ? 'Counting…' : `${total.toLocaleString('en-GB')} assessment${total === 1 ? '' : 's'} match`}
+            {total === undefined ? 'Counting…' : `${countOf(total, 'assessment')} ${total === 1 ? 'matches' : 'match'}`}
           </p>
         </div>
       </form>
@@ -286,7 +320,35 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         </p>
       )}
 
-      <div className="card overflow-x-auto p-0" aria-busy={page.isFetching}>
+      <ul className="grid gap-2 md:hidden" aria-label="Archived assessments" aria-busy={page.isFetching}>
+        {(page.data?.items ?? []).map((item) => (
+          <li key={item.id} className="card grid gap-1 p-3">
+            <div className="flex flex-wrap items-center justify-between gap-x-2">
+              <a href={`/assessments/${item.id}`} className="inline-flex min-h-11 items-center font-semibold">
+                {dateFormat.format(new Date(item.date))}
+              </a>
+              <Outcome item={item} />
+            </div>
+            <p className="font-semibold text-iron-900">{item.client.name}</p>
+            <p className="text-sm text-iron-700">
+              {item.site.addressLine1}, {item.site.city} · {usageClassLabel(item.site.usageClass)}
+            </p>
+            <p className="text-sm">
+              <a href={`/archive/gates/${item.gate.id}`} className="inline-flex min-h-11 items-center">
+                {item.gate.label}
+              </a>
+              <span className="text-iron-600"> · {GATE_KIND_LABELS[item.gate.kind] ?? 'Gate'}</span>
+            </p>
+            <p className="text-xs text-iron-600">
+              {rulesetLabel({ ...item.ruleset, title: titleOf(item.ruleset.family) })} · {item.auditor.name}
+            </p>
+          </li>
+        ))}
+        {page.isSuccess && page.data.items.length === 0 && <li className="card text-iron-600">Nothing in the archive matches these filters.</li>}
+        {page.isPending && <li className="card text-iron-600">Loading…</li>}
+      </ul>
+
+      <div className="card hidden overflow-x-auto p-0 md:block" aria-busy={page.isFetching}>
         <table className="w-full min-w-[52rem] border-collapse text-left text-sm">
           <caption className="sr-only">Archived assessments, {state.sort.includes('date') ? 'by visit date' : `by ${state.sort.replace('-', '')}`}</caption>
           <thead className="bg-iron-50">

@@ -7,6 +7,7 @@ import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-quer
 import { useEffect, useState } from 'react';
 import type { ImpactReport } from '@/lib/api/impact';
 import { VERDICT_LABELS } from '@/lib/archive-query';
+import { count, listOf, SEVERITY_LABEL } from '@/lib/vocabulary';
 import { getJson } from './archive-api';
 
 export interface ImpactCandidate {
@@ -33,7 +34,8 @@ export default function ImpactApp(props: Props) {
   );
 }
 
-const verdictClass: Record<string, string> = { clear: 'bg-clear text-white', remedy: 'bg-remedy text-white', withdraw: 'bg-withdraw text-white' };
+/** Verdicts as coloured text (a status), not filled pills that look like buttons. */
+const verdictClass: Record<string, string> = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' };
 const beforeWords: Record<string, string> = {
   pass: 'passed',
   fail: 'failed at a lower severity',
@@ -97,10 +99,11 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
         <>
           <section className="card" aria-live="polite">
             <h2 className="text-lg font-bold">
-              {data.target.family} {data.target.version} against {data.target.comparedWith.join(', ') || 'no earlier version'}
+              {candidates.find((c) => c.id === data.target.id)?.title ?? 'Ruleset'} {data.target.version} against{' '}
+              {listOf(data.target.comparedWith) || 'no earlier version'}
             </h2>
             <p className="mt-1">
-              {data.considered.toLocaleString('en-GB')} signed assessment(s) re-scored in {(data.durationMs / 1000).toFixed(1)} s:{' '}
+              {count(data.considered, 'signed assessment')} re-scored in {(data.durationMs / 1000).toFixed(1)} s:{' '}
               <strong className="text-withdraw">{data.worse} worse</strong>, {data.same} unchanged, {data.better} better
               {data.unscorable > 0 && `, ${data.unscorable} could not be re-scored (the new version needs answers they do not have)`}.
             </p>
@@ -117,25 +120,21 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                       {item.gateLabel}
                     </a>
                     <span className="text-sm text-iron-600">
-                      {item.address}, {item.city} · {item.clientName} · visited {day.format(new Date(item.visitDate))} ({data.target.family} {item.fromVersion})
+                      {item.address}, {item.city} · {item.clientName} · visited {day.format(new Date(item.visitDate))} (version {item.fromVersion})
                     </span>
                   </div>
                   <p className="mt-1 flex flex-wrap items-center gap-1 text-sm">
-                    <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[item.before]}`}>{VERDICT_LABELS[item.before]}</span>
+                    <span className={`text-sm font-semibold ${verdictClass[item.before]}`}>{VERDICT_LABELS[item.before]}</span>
                     <span aria-hidden="true">→</span>
                     <span className="sr-only">would become</span>
-                    {item.after && (
-                      <span className={`rounded-full px-2 py-0.5 text-xs font-semibold ${verdictClass[item.after]}`}>{VERDICT_LABELS[item.after]}</span>
-                    )}
+                    {item.after && <span className={`text-sm font-semibold ${verdictClass[item.after]}`}>{VERDICT_LABELS[item.after]}</span>}
                   </p>
                   <ul className="mt-2 list-disc pl-5 text-sm">
                     {item.rules.map((r) => (
                       <li key={r.ruleId}>
                         <strong>{r.title}</strong>{' '}
-                        <span className="text-iron-600">
-                          ({r.ruleId}, {r.severity})
-                        </span>
-                        : {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it {beforeWords[r.before] ?? r.before}.
+                        <span className="text-iron-600">({SEVERITY_LABEL[r.severity as keyof typeof SEVERITY_LABEL] ?? 'Other'})</span>:{' '}
+                        {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it {beforeWords[r.before] ?? r.before}.
                       </li>
                     ))}
                   </ul>

@@ -13,8 +13,18 @@ interface Values {
   region: string;
   postalCode: string;
   country: string;
-  usageClass: number;
+  /** As the radio buttons hold it ("1"…"4"); a number in the body sent to the API. */
+  usageClass: string;
   notes: string;
+}
+
+/**
+ * The body the API takes. Radio inputs always carry their value as text (react-hook-form does
+ * not apply `setValueAs` to radios), so the class becomes a number here, before the schema
+ * checks it and before it is sent.
+ */
+function toBody(values: Values): unknown {
+  return withoutBlanks({ ...values, usageClass: values.usageClass === '' ? undefined : Number(values.usageClass) });
 }
 
 export const USAGE_CLASS_TEXT = [
@@ -26,13 +36,13 @@ export const USAGE_CLASS_TEXT = [
 
 export default function SiteForm({ clientId }: { clientId: string }) {
   const { register, handleSubmit, setError, formState } = useForm<Values>({
-    resolver: apiResolver<Values>(SiteCreateSchema),
-    defaultValues: { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: 1, notes: '' },
+    resolver: apiResolver<Values>(SiteCreateSchema, toBody),
+    defaultValues: { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: '1', notes: '' },
   });
   const [message, setMessage] = useState<string | null>(null);
   const errors = formState.errors;
   const onSubmit = handleSubmit(async (values) => {
-    const sent = await sendJson<Site, Values>('POST', '/api/sites', withoutBlanks(values), setError);
+    const sent = await sendJson<Site, Values>('POST', '/api/sites', toBody(values), setError);
     setMessage(sent.message);
     if (sent.ok && sent.body) window.location.assign(`/sites/${sent.body.id}`);
   });
@@ -65,7 +75,7 @@ export default function SiteForm({ clientId }: { clientId: string }) {
               key={c.value}
               className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg border border-iron-200 bg-white p-3 has-checked:border-iron-800 has-checked:bg-iron-50"
             >
-              <input type="radio" className="mt-1 size-5 accent-iron-800" value={c.value} {...register('usageClass', { setValueAs: (v) => Number(v) })} />
+              <input type="radio" className="mt-1 size-5 accent-iron-800" value={String(c.value)} {...register('usageClass')} />
               <span>
                 <span className="block font-semibold text-iron-900">{c.title}</span>
                 <span className="block text-sm text-iron-600">{c.text}</span>

@@ -204,7 +204,10 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
         <label className="label mt-2" htmlFor="rule-filter">
           Find a rule
         </label>
-        <input id="rule-filter" className="field" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} placeholder="clearance, placard, pinch.hinge-side…" />
+        <input id="rule-filter" className="field" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} aria-describedby="rule-filter-hint" />
+        <p id="rule-filter-hint" className="mt-1 text-sm text-iron-600">
+          A word from its title or its code, for example clearance or placard.
+        </p>
         <div className="mt-3 grid gap-3">
           {areas.map((area) => {
             const changedHere = area.rules.filter((r) => edits[r.id] || problemsByRule.has(r.id)).length;

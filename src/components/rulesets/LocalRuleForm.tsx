@@ -96,7 +96,10 @@ export default function LocalRuleForm({ content, busy, onSubmit, onCancel }: Pro
       </h3>
       <p className="text-sm text-iron-600">A requirement of your local code or of the authority having jurisdiction. The walk-through will ask its question at every gate it applies to.</p>
       <Field id={`${id}-title`} label="Title" error={errorOf('title')}>
-        <input id={`${id}-title`} className="field" value={title} maxLength={160} onChange={(e) => setTitle(e.target.value)} placeholder="Fire service key switch at the gate" />
+        <input id={`${id}-title`} className="field" value={title} maxLength={160} onChange={(e) => setTitle(e.target.value)} aria-describedby={`${id}-title-hint`} />
+        <p id={`${id}-title-hint`} className="mt-1 text-sm text-iron-600">
+          For example “Fire service key switch at the gate”.
+        </p>
       </Field>
       <div className="grid gap-4 sm:grid-cols-2">
         <Field id={`${id}-area`} label="Hazard area" error={errorOf('area')}>
@@ -197,7 +200,10 @@ export default function LocalRuleForm({ content, busy, onSubmit, onCancel }: Pro
       </Field>
       <div className="grid gap-4 sm:grid-cols-2">
         <Field id={`${id}-standard`} label="Local code or authority" error={errorOf('reference.standard')}>
-          <input id={`${id}-standard`} className="field" value={standard} maxLength={200} onChange={(e) => setStandard(e.target.value)} placeholder="County fire code" />
+          <input id={`${id}-standard`} className="field" value={standard} maxLength={200} onChange={(e) => setStandard(e.target.value)} aria-describedby={`${id}-standard-hint`} />
+          <p id={`${id}-standard-hint`} className="mt-1 text-sm text-iron-600">
+            For example the county fire code.
+          </p>
         </Field>
         <Field id={`${id}-clause`} label="Section or clause" error={errorOf('reference.clause')}>
           <input id={`${id}-clause`} className="field" value={clause} maxLength={200} onChange={(e) => setClause(e.target.value)} />

@@ -24,6 +24,12 @@ interface Props {
   recipientEmail: string;
 }
 
+interface Problem {
+  /** The id of the field that fixes it, for a link from the summary. */
+  target: string | null;
+  text: string;
+}
+
 type Phase = { kind: 'editing' } | { kind: 'sending' } | { kind: 'signed'; documentSha256: string } | { kind: 'closed'; message: string };
 
 export default function SignatureForm({ token, cautions, consentText, intentText, documentSha256, recipientEmail }: Props) {
@@ -34,12 +40,16 @@ export default function SignatureForm({ token, cautions, consentText, intentText
   const [name, setName] = useState('');
   const [typedOnly, setTypedOnly] = useState(false);
   const [drawn, setDrawn] = useState(false);
-  const [errors, setErrors] = useState<string[]>([]);
+  /** Set by the first press of Sign: from then on the summary follows the form as it is fixed. */
+  const [attempted, setAttempted] = useState(false);
+  /** What the server (or the network) said about the last attempt; cleared by the next change. */
+  const [serverErrors, setServerErrors] = useState<string[]>([]);
   const [phase, setPhase] = useState<Phase>({ kind: 'editing' });
 
   useEffect(() => {
     const el = canvas.current;
     if (!el || typedOnly) return;
+    setDrawn(false);
     const instance = new SignaturePad(el, { penColor: '#121c29', backgroundColor: 'rgba(255,255,255,0)', minWidth: 0.8, maxWidth: 2.6 });
     const fit = () => {
       // Size the bitmap to the element and the screen's pixel ratio so strokes stay sharp.
@@ -62,6 +72,21 @@ export default function SignatureForm({ token, cautions, consentText, intentText
     };
   }, [typedOnly]);
 
+  /** What still stands between the person and signing, each with the field that fixes it. */
+  const localProblems = (): Problem[] => {
+    const problems: Problem[] = [];
+    const unticked = cautions.filter((c) => !ticked[c.ruleId]);
+    if (unticked.length) problems.push({ target: 'sign-cautions', text: `Tick each caution to show you have read it (${unticked.length} left).` });
+    if (!consent) problems.push({ target: 'sign-consent', text: 'Tick the box to agree to sign electronically.' });
+    if (name.trim().length < 2) problems.push({ target: 'signer-name', text: 'Type your full name.' });
+    if (!typedOnly && !drawn) problems.push({ target: 'sign-pad', text: 'Draw your signature in the box, or tick “use my typed name as my signature”.' });
+    return problems;
+  };
+  const errors: Problem[] = [...(attempted ? localProblems() : []), ...serverErrors.map((text) => ({ target: null, text }))];
+
+  // A change to the form makes the server's last answer out of date.
+  useEffect(() => setServerErrors([]), [ticked, consent, name, typedOnly, drawn]);
+
   const clear = () => {
     pad.current?.clear();
     setDrawn(false);
@@ -69,14 +94,9 @@ export default function SignatureForm({ token, cautions, consentText, intentText
 
   async function submit(event: FormEvent) {
     event.preventDefault();
-    const problems: string[] = [];
-    const unticked = cautions.filter((c) => !ticked[c.ruleId]);
-    if (unticked.length) problems.push(`Tick each caution to show you have read it (${unticked.length} left).`);
-    if (!consent) problems.push('Tick the box to agree to sign electronically.');
-    if (name.trim().length < 2) problems.push('Type your full name.');
-    if (!typedOnly && (!pad.current || pad.current.isEmpty())) problems.push('Draw your signature in the box, or tick “use my typed name as my signature”.');
-    setErrors(problems);
-    if (problems.length) return;
+    setAttempted(true);
+    setServerErrors([]);
+    if (localProblems().length) return;
     setPhase({ kind: 'sending' });
     const signature = typedOnly || !pad.current ? { method: 'typed' as const } : { method: 'drawn' as const, png: pad.current.toDataURL('image/png') };
     try {
@@ -95,10 +115,10 @@ export default function SignatureForm({ token, cautions, consentText, intentText
       const body = await res.json().catch(() => ({}));
       if (res.ok) return setPhase({ kind: 'signed', documentSha256: body.document?.sha256 ?? '' });
       if (body.linkState) return setPhase({ kind: 'closed', message: body.detail ?? 'This link can no longer be used.' });
-      setErrors([body.detail ?? 'Something went wrong; try again.', ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message)]);
+      setServerErrors([body.detail ?? 'Something went wrong; try again.', ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message)]);
       setPhase({ kind: 'editing' });
     } catch {
-      setErrors(['We could not reach the server. Check your connection and press Sign again; nothing was signed yet.']);
+      setServerErrors(['We could not reach the server. Check your connection and press Sign again; nothing was signed yet.']);
       setPhase({ kind: 'editing' });
     }
   }
@@ -126,7 +146,7 @@ export default function SignatureForm({ token, cautions, consentText, intentText
   return (
     <form onSubmit={submit} noValidate className="space-y-5" aria-describedby={errors.length ? 'sign-errors' : undefined}>
       {cautions.length ? (
-        <fieldset className="card space-y-3">
+        <fieldset id="sign-cautions" className="card space-y-3">
           <legend className="px-1 text-lg font-bold">Cautions to acknowledge</legend>
           <p className="text-sm text-iron-700">Until the fixes are done, please read each one and tick it.</p>
           {cautions.map((c) => (
@@ -149,7 +169,13 @@ export default function SignatureForm({ token, cautions, consentText, intentText
       <fieldset className="card space-y-4">
         <legend className="px-1 text-lg font-bold">Your signature</legend>
         <label className="flex min-h-11 cursor-pointer items-start gap-3">
-          <input type="checkbox" className="mt-1 size-5 shrink-0 accent-iron-800" checked={consent} onChange={(e) => setConsent(e.target.checked)} />
+          <input
+            id="sign-consent"
+            type="checkbox"
+            className="mt-1 size-5 shrink-0 accent-iron-800"
+            checked={consent}
+            onChange={(e) => setConsent(e.target.checked)}
+          />
           <span>{consentText}</span>
         </label>
         <div>
@@ -165,6 +191,8 @@ export default function SignatureForm({ token, cautions, consentText, intentText
             </span>
             <canvas
               ref={canvas}
+              id="sign-pad"
+              tabIndex={-1}
               aria-labelledby="pad-label"
               role="img"
               className="block h-40 w-full touch-none rounded-lg border-2 border-dashed border-iron-400 bg-white"
@@ -187,7 +215,15 @@ export default function SignatureForm({ token, cautions, consentText, intentText
         <div id="sign-errors" role="alert" className="rounded-lg border border-withdraw bg-white p-3 text-withdraw">
           <ul className="list-disc pl-5">
             {errors.map((e) => (
-              <li key={e}>{e}</li>
+              <li key={e.text}>
+                {e.target ? (
+                  <a className="inline-flex min-h-11 items-center text-withdraw" href={`#${e.target}`}>
+                    {e.text}
+                  </a>
+                ) : (
+                  e.text
+                )}
+              </li>
             ))}
           </ul>
         </div>

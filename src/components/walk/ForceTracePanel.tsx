@@ -241,14 +241,7 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
               Gap left at the point
             </label>
             <div className="flex gap-2">
-              <input
-                id={ids.gap}
-                className="field"
-                inputMode="decimal"
-                value={gapText}
-                onChange={(e) => setGapText(e.target.value)}
-                placeholder={units === 'metric' ? '300' : '12'}
-              />
+              <input id={ids.gap} className="field" inputMode="decimal" value={gapText} onChange={(e) => setGapText(e.target.value)} />
               <select aria-label="Gap unit" className="field w-24" value={gapUnit} onChange={(e) => setGapUnit(e.target.value)}>
                 {lengthUnits.map((u) => (
                   <option key={u} value={u}>

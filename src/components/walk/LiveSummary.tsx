@@ -1,7 +1,7 @@
 /** The live result at a glance, beside the questions on a wide screen: verdict, counts, area scores. */
 import type { ScoreResult } from '@/lib/rules/result-types';
 import type { WalkRuleset } from '@/lib/walk/model';
-import { VERDICT_CLASS, VERDICT_LABEL } from './labels';
+import { VERDICT_EXPLANATION, VERDICT_ICON, VERDICT_LABEL, VERDICT_TEXT_CLASS } from './labels';
 
 interface Props {
   result: ScoreResult | undefined;
@@ -20,7 +20,13 @@ export function LiveSummary({ result, ruleset, stale, toCheck, blockers, onOpen 
       </h2>
       {result ? (
         <>
-          <p className={`rounded-lg px-3 py-2 text-lg font-bold ${VERDICT_CLASS[result.verdict]}`}>{VERDICT_LABEL[result.verdict]}</p>
+          <div className={`border-l-4 border-current pl-3 ${VERDICT_TEXT_CLASS[result.verdict]}`}>
+            <p className="flex items-center gap-2 text-lg font-bold">
+              <span aria-hidden="true">{VERDICT_ICON[result.verdict]}</span>
+              {VERDICT_LABEL[result.verdict]}
+            </p>
+            <p className="text-sm text-iron-800">{VERDICT_EXPLANATION[result.verdict]}</p>
+          </div>
           <p className="text-sm font-semibold text-iron-800">
             {result.counts.fail} failing · {result.counts.pass} passing · {result.counts.needsInfo} waiting
           </p>

@@ -3,9 +3,12 @@
  * their remedy); then Submit, which scores on the server with the pinned version and shows
  * the stored verdict, the failing findings with remediation and what still needs information.
  */
+import { useState } from 'react';
 import type { Finding, ScoreResult } from '@/lib/rules/result-types';
+import { count } from '@/lib/vocabulary';
 import type { Problem } from '@/lib/walk/api';
 import { mergeNeeds, type WalkRuleset } from '@/lib/walk/model';
+import ConfirmDialog from '../ConfirmDialog';
 import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from './labels';
 
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
@@ -109,6 +112,7 @@ export interface ResultViewProps {
 
 export function ResultView(props: ResultViewProps) {
   const { ruleset, result, submitted } = props;
+  const [confirming, setConfirming] = useState(false);
   const areaTitle = (key: string) => ruleset.areas.find((a) => a.key === key)?.title ?? key;
   const needs = result ? mergeNeeds(result.needsInfo) : [];
   return (
@@ -192,9 +196,40 @@ export function ResultView(props: ResultViewProps) {
               )}
             </div>
           )}
-          <button type="button" className="btn mt-3 w-full sm:w-auto" disabled={Boolean(props.submitBlocked) || props.submitting} onClick={props.onSubmit}>
+          <button
+            type="button"
+            className="btn mt-3 w-full sm:w-auto"
+            disabled={Boolean(props.submitBlocked) || props.submitting}
+            onClick={() => setConfirming(true)}
+          >
             {props.submitting ? 'Submitting…' : 'Submit the assessment'}
           </button>
+          <p className="mt-3 text-sm text-iron-700">
+            Started by mistake?{' '}
+            <a className="inline-flex min-h-11 items-center" href={props.reportUrl}>
+              Discard the draft on its page
+            </a>
+          </p>
+          <ConfirmDialog
+            open={confirming}
+            title="Submit this assessment?"
+            confirmLabel="Submit and score"
+            cancelLabel="Keep editing"
+            onCancel={() => setConfirming(false)}
+            onConfirm={() => {
+              setConfirming(false);
+              props.onSubmit();
+            }}
+          >
+            <p>
+              The server scores it with {ruleset.title} {ruleset.version} and stores the result
+              {result ? ` (${VERDICT_LABEL[result.verdict].toLowerCase()} so far)` : ''}.
+            </p>
+            <p>After that the answers, measurements and photos cannot be changed; a correction later means starting a revision.</p>
+            {needs.length > 0 && (
+              <p className="font-semibold text-remedy">{count(needs.length, 'item')} still need information and will be reported as not checked.</p>
+            )}
+          </ConfirmDialog>
         </section>
       )}
     </div>

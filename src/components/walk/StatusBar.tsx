@@ -4,7 +4,7 @@
  */
 import type { Verdict } from '@/lib/rules/vocabulary';
 import type { SyncState } from '@/lib/walk/sync';
-import { VERDICT_CLASS, VERDICT_SHORT } from './labels';
+import { VERDICT_ICON, VERDICT_SHORT, VERDICT_TEXT_CLASS } from './labels';
 
 export type WalkView = 'walk' | 'check' | 'result';
 
@@ -59,13 +59,20 @@ export function StatusBar({ state, verdict, stale, toCheck, view, onView }: Prop
       <div className="flex flex-wrap items-center justify-between gap-2">
         <SaveState state={state} />
         {verdict ? (
+          // A status that opens the result, drawn as text with an icon so it never reads as an order.
           <button
             type="button"
             onClick={() => onView('result')}
-            className={`inline-flex min-h-9 items-center gap-1 rounded-full px-3 text-sm font-bold ${VERDICT_CLASS[verdict]}`}
+            data-live-verdict={verdict}
+            className={`inline-flex min-h-11 items-center gap-1.5 text-sm font-semibold ${VERDICT_TEXT_CLASS[verdict]}`}
           >
-            <span className="sr-only">Result: </span>
-            {VERDICT_SHORT[verdict]}
+            <span aria-hidden="true" className="inline-flex size-5 items-center justify-center rounded-full border-2 border-current text-xs">
+              {VERDICT_ICON[verdict]}
+            </span>
+            <span>
+              <span className="text-iron-700">Verdict so far: </span>
+              <span className="underline decoration-current underline-offset-2">{VERDICT_SHORT[verdict]}</span>
+            </span>
             {stale && <span aria-label="(updating)">…</span>}
           </button>
         ) : (

@@ -1,29 +1,23 @@
 /** Words the walk-through shows for the engine's codes (ours, in the trade's words). */
 import type { Verdict } from '@/lib/rules/vocabulary';
+import { VERDICT_WORDS } from '@/lib/vocabulary';
 
-export const VERDICT_LABEL: Record<Verdict, string> = {
-  clear: 'Clear',
-  remedy: 'Remedy needed',
-  withdraw: 'Withdraw from automatic use',
-};
+export { SEVERITY_LABEL, VERDICT_CLASS } from '@/lib/vocabulary';
+
+const each = (pick: (w: (typeof VERDICT_WORDS)[Verdict]) => string) =>
+  Object.fromEntries(Object.entries(VERDICT_WORDS).map(([k, w]) => [k, pick(w)])) as Record<Verdict, string>;
+
+export const VERDICT_LABEL = each((w) => w.label);
 
 /** Short forms for the status bar. */
-export const VERDICT_SHORT: Record<Verdict, string> = { clear: 'Clear', remedy: 'Remedy', withdraw: 'Withdraw' };
+export const VERDICT_SHORT = each((w) => w.short);
 
-export const VERDICT_EXPLANATION: Record<Verdict, string> = {
-  clear: 'Nothing above a minor item fails.',
-  remedy: 'Fix the failing items by an agreed date.',
-  withdraw: 'A critical item fails: switch the gate to manual until it is fixed.',
-};
+export const VERDICT_EXPLANATION = each((w) => w.explanation);
 
-/** Text and background classes with at least 4.5:1 contrast, for sunlight. */
-export const VERDICT_CLASS: Record<Verdict, string> = {
-  clear: 'bg-clear text-white',
-  remedy: 'bg-remedy text-white',
-  withdraw: 'bg-withdraw text-white',
-};
+/** The verdict as coloured text on white (a status, not a filled button). */
+export const VERDICT_TEXT_CLASS: Record<Verdict, string> = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' };
 
-export const SEVERITY_LABEL = { critical: 'Critical', major: 'Major', minor: 'Minor' } as const;
+export const VERDICT_ICON: Record<Verdict, string> = { clear: '✓', remedy: '!', withdraw: '■' };
 
 export const YES_NO_NA_LABEL = { yes: 'Yes', no: 'No', na: 'N/A' } as const;
 

@@ -4,13 +4,7 @@
  * assessments; a homeowner sees only those of their own client that were sent for signature.
  */
 import type { Knex } from 'knex';
-import type {
-  Assessment,
-  AssessmentCreate,
-  AssessmentListQuery,
-  AssessmentPatch,
-  AssessmentSummary,
-} from '@/lib/api/assessments';
+import type { Assessment, AssessmentCreate, AssessmentListQuery, AssessmentPatch, AssessmentSummary } from '@/lib/api/assessments';
 import type { Page } from '@/lib/api/common';
 import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
 import { mergeDocuments, type AssessmentDocuments } from './assessment-input';
@@ -255,7 +249,9 @@ function staleProblem(current: Assessment, expectedVersion: number): HttpProblem
 }
 
 async function pinnedQuestions(knex: Knex, rulesetVersionId: string): Promise<RulesetQuestion[]> {
-  const row = await knex('ruleset_versions').where({ id: rulesetVersionId }).first<{ questions: RulesetQuestion[] | null }>(knex.raw("content -> 'questions' as questions"));
+  const row = await knex('ruleset_versions')
+    .where({ id: rulesetVersionId })
+    .first<{ questions: RulesetQuestion[] | null }>(knex.raw("content -> 'questions' as questions"));
   return row?.questions ?? [];
 }
 
@@ -339,4 +335,15 @@ export async function discardAssessment(viewer: SessionUser, id: string, request
     }
     return true;
   });
+}
+
+/** The assessment this one revises and the one that replaced it, each only when the viewer may see it. */
+export async function revisionLinks(viewer: SessionUser, id: string, knex: Knex = db()): Promise<{ revises: string | null; replacedBy: string | null }> {
+  const own = await visibleAssessments(knex, viewer).andWhere('a.id', id).first<{ supersedes_id: string | null } | undefined>('a.supersedes_id');
+  if (!own) return { revises: null, replacedBy: null };
+  const [revises, replacedBy] = await Promise.all([
+    own.supersedes_id ? visibleAssessments(knex, viewer).andWhere('a.id', own.supersedes_id).first<{ id: string } | undefined>('a.id') : undefined,
+    visibleAssessments(knex, viewer).andWhere('a.supersedes_id', id).orderBy('a.created_at', 'desc').first<{ id: string } | undefined>('a.id'),
+  ]);
+  return { revises: revises?.id ?? null, replacedBy: replacedBy?.id ?? null };
 }

@@ -15,7 +15,7 @@ export interface GateVisit {
   date: string;
   status: string;
   verdict: 'clear' | 'remedy' | 'withdraw' | null;
-  ruleset: { family: string; version: string };
+  ruleset: { family: string; version: string; title: string };
   auditorName: string;
   /** 0–100 per hazard area, null where nothing applied; null when not scored yet. */
   areaScores: Record<string, number | null> | null;
@@ -50,6 +50,7 @@ interface VisitRow {
   status: string;
   verdict: GateVisit['verdict'];
   family: string;
+  ruleset_title: string;
   version: string;
   auditor_name: string;
   area_scores: Record<string, number | null> | null;
@@ -77,6 +78,7 @@ export async function gateHistory(organisationId: string, gateId: string, knex: 
       'a.status',
       'a.verdict',
       'r.family',
+      'r.title as ruleset_title',
       'rv.version',
       'u.name as auditor_name',
       knex.raw(`a.result -> 'areaScores' as area_scores`),
@@ -89,7 +91,7 @@ export async function gateHistory(organisationId: string, gateId: string, knex: 
     date: iso(row.archive_date),
     status: row.status,
     verdict: row.verdict,
-    ruleset: { family: row.family, version: row.version },
+    ruleset: { family: row.family, version: row.version, title: row.ruleset_title },
     auditorName: row.auditor_name,
     areaScores: row.area_scores,
     failedRuleIds: row.failed_rule_ids ?? [],

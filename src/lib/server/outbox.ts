@@ -284,3 +284,56 @@ export async function messagesAbout(knex: Knex, organisationId: string, relatedT
     sentAt: r.sent_at ? new Date(r.sent_at).toISOString() : null,
   }));
 }
+
+export interface UndeliveredMessage extends OutboxMessageStatus {
+  relatedType: string | null;
+  relatedId: string | null;
+}
+
+/**
+ * The organisation's mail that has not gone out: refused at least once and still waiting, or
+ * given up on. A message not tried yet is on its way, not undelivered. Newest first.
+ */
+export async function undeliveredMessages(knex: Knex, organisationId: string, limit = 20): Promise<{ items: UndeliveredMessage[]; total: number }> {
+  const base = () =>
+    knex('outbox_messages')
+      .where({ organisation_id: organisationId })
+      .andWhere((w) => w.where('status', 'failed').orWhere((q) => q.whereIn('status', ['queued', 'sending']).andWhere('attempts', '>', 0)));
+  const [rows, [{ n }]] = await Promise.all([
+    base()
+      .orderBy('created_at', 'desc')
+      .limit(limit)
+      .select(
+        'id',
+        'kind',
+        'to_addresses',
+        'subject',
+        'status',
+        'attempts',
+        'next_attempt_at',
+        'last_error',
+        'created_at',
+        'sent_at',
+        'related_type',
+        'related_id',
+      ),
+    base().count<{ n: string }[]>({ n: '*' }),
+  ]);
+  return {
+    total: Number(n),
+    items: rows.map((r) => ({
+      id: r.id,
+      kind: r.kind,
+      to: r.to_addresses,
+      subject: r.subject,
+      status: r.status,
+      attempts: r.attempts,
+      nextAttemptAt: r.status === 'failed' ? null : new Date(r.next_attempt_at).toISOString(),
+      lastError: r.last_error,
+      createdAt: new Date(r.created_at).toISOString(),
+      sentAt: null,
+      relatedType: r.related_type,
+      relatedId: r.related_id,
+    })),
+  };
+}

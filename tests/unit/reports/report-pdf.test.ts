@@ -41,7 +41,7 @@ describe('report PDF', () => {
     const pdf = await renderReportPdf(buildReportModel(source));
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
     const text = await extractPdfText(pdf);
-    expect(text).toContain('Withdraw from automatic use');
+    expect(text).toContain('Take out of automatic use');
     expect(text).toContain('At least one critical hazard was found.');
     for (const f of sampleResult(20).findings.filter((x) => x.outcome === 'fail')) {
       expect(text).toContain(f.title);

@@ -18,7 +18,7 @@ describe('signing e-mails', () => {
     const mail = signRequestMail(input);
     expect(mail.subject).toBe('Please read and sign: gate safety report for Driveway gate');
     expect(mail.text).toContain(input.link);
-    expect(mail.text).toContain('Verdict: Remedy.');
+    expect(mail.text).toContain('Verdict: Fix by a date.');
     expect(mail.text).toContain('expires on December 16, 2026');
   });
 

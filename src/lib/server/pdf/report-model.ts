@@ -8,6 +8,7 @@
  */
 import { z } from 'zod';
 import type { CertificateFacts } from './certificate-facts';
+import { VERDICT_WORDS } from '@/lib/vocabulary';
 
 const SEVERITY_ORDER = ['critical', 'major', 'minor'] as const;
 export type Severity = (typeof SEVERITY_ORDER)[number];
@@ -231,18 +232,18 @@ export function buildReportModel(source: ReportSource): ReportModel {
 /** The verdict in plain words, for the owner as much as the office. */
 export const verdictWords: Record<Verdict, { label: string; headline: string; meaning: string }> = {
   clear: {
-    label: 'Clear',
+    label: VERDICT_WORDS.clear.label,
     headline: 'No hazard above minor was found.',
     meaning: 'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
   },
   remedy: {
-    label: 'Remedy',
+    label: VERDICT_WORDS.remedy.label,
     headline: 'Hazards were found that must be fixed.',
     meaning:
       'The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.',
   },
   withdraw: {
-    label: 'Withdraw from automatic use',
+    label: VERDICT_WORDS.withdraw.label,
     headline: 'At least one critical hazard was found.',
     meaning: 'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
   },
