@@ -94,8 +94,9 @@ interface KeepMessage {
  */
 self.addEventListener('message', (event) => {
   const data = event.data as KeepMessage | undefined;
-  if (data?.type !== 'KEEP_WALK_PAGE' || typeof data.user !== 'string' || !data.user || typeof data.url !== 'string') return;
+  if (data?.type !== 'KEEP_WALK_PAGE') return;
   const reply = (kept: boolean) => event.ports[0]?.postMessage({ kept });
+  if (typeof data.user !== 'string' || !data.user || typeof data.url !== 'string') return reply(false);
   const page = new URL(data.url, self.location.origin);
   if (!isWalkPage(page)) return reply(false);
   const photos = (Array.isArray(data.photos) ? data.photos : [])
