@@ -145,13 +145,14 @@ describe('printing', () => {
       .getByRole('link', { name: /Mews entrance gate/ })
       .first()
       .waitFor();
-    const headers = (await page.locator('table thead th').allTextContents()).map((h) => h.trim()).filter(Boolean);
+    const headers = (await page.locator('table thead th').allTextContents()).map((h) => h.replace(/[^\p{L}\p{N} ]/gu, '').trim()).filter(Boolean);
     expect(headers.length).toBeGreaterThan(3);
     await page.emulateMedia({ media: 'print' });
     const pdf = await page.pdf({ format: 'A4', printBackground: false });
     fs.mkdirSync('test-results', { recursive: true });
     fs.writeFileSync('test-results/print-archive.pdf', pdf);
     const text = await extractPdfText(pdf);
+    // Sort arrows are drawn with symbols the PDF text does not carry: the words are what count.
     for (const header of headers) expect(text, header).toContain(header);
     expect(text).toContain('Brackenfold Mews Residents');
     expect(text).not.toContain('Search client, address or gate');

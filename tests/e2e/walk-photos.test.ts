@@ -110,6 +110,17 @@ describe('photos over a weak signal', () => {
     expect(uploaded.height).toBeGreaterThan(uploaded.width ?? 0);
   });
 
+  it('refuses a file over the limit that cannot be made smaller, naming the limit, and queues nothing', async () => {
+    const card = page.locator('#q-hingeSideGuarded');
+    const started = Date.now();
+    await card
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'huge.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(16 * 1024 * 1024, 1) }, { timeout: 60_000 });
+    await expect(card.getByRole('alert').textContent()).resolves.toMatch(/16 MB; the limit is 15 MB/);
+    console.log(`16 MB file refused after ${Date.now() - started} ms`);
+    await expect(card.getByText('waiting').count()).resolves.toBe(0);
+  });
+
   it('offers Retry when the server could not take a photo, and sends it again at once when asked', async () => {
     const sent: number[] = [];
     let lastFailure = 0;

@@ -19,8 +19,6 @@ export interface PreparedPhoto {
   source: { sha256: string; bytes: number; orientation: number | null } | null;
 }
 
-const REDUCIBLE = new Set(['image/jpeg', 'image/png', 'image/webp']);
-
 async function sha256Hex(blob: Blob): Promise<string | null> {
   // crypto.subtle exists only on HTTPS (and localhost); without it the server keeps the upload's own hash.
   if (!globalThis.crypto?.subtle) return null;
@@ -28,13 +26,23 @@ async function sha256Hex(blob: Blob): Promise<string | null> {
   return [...new Uint8Array(digest)].map((b) => b.toString(16).padStart(2, '0')).join('');
 }
 
+/** The picture type from the first bytes (never the name or the browser's claim), as the server does. */
+export function sniffReducibleType(head: Uint8Array): string | null {
+  const at = (i: number, ...bytes: number[]) => bytes.every((b, k) => head[i + k] === b);
+  if (at(0, 0xff, 0xd8, 0xff)) return 'image/jpeg';
+  if (at(0, 0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a)) return 'image/png';
+  if (at(0, 0x52, 0x49, 0x46, 0x46) && at(8, 0x57, 0x45, 0x42, 0x50)) return 'image/webp';
+  return null;
+}
+
 export async function preparePhoto(file: File): Promise<PreparedPhoto> {
   const fileTime = file.lastModified ? new Date(file.lastModified).toISOString() : null;
   const fileName = file.name || 'photo.jpg';
+  const type = sniffReducibleType(new Uint8Array(await file.slice(0, 16).arrayBuffer()));
+  // Sent unchanged (not a picture this page can redraw): the server judges it and hashes it itself.
+  if (!type) return { blob: file, fileName, takenAt: fileTime, source: null };
   const [exif, sha256] = await Promise.all([readCameraFacts(file), sha256Hex(file)]);
   const takenAt = exif.takenAt ?? fileTime;
-  const source = sha256 ? { sha256, bytes: file.size, orientation: exif.orientation } : null;
-  if (!REDUCIBLE.has(file.type)) return { blob: file, fileName, takenAt, source };
   let reduced: Blob | null = null;
   try {
     reduced = await imageCompression(file, {
@@ -45,8 +53,9 @@ export async function preparePhoto(file: File): Promise<PreparedPhoto> {
       useWebWorker: false,
     });
   } catch {
-    // Not decodable here (damaged, or a type this browser cannot draw): the server judges the file itself.
+    // Not decodable here (damaged): the server judges the file itself.
   }
-  if (!reduced || reduced.size >= file.size) return { blob: file, fileName, takenAt, source };
+  if (!reduced || reduced.size >= file.size) return { blob: file, fileName, takenAt, source: null };
+  const source = sha256 ? { sha256, bytes: file.size, orientation: exif.orientation } : null;
   return { blob: reduced, fileName: fileName.replace(/\.(png|webp|jpe?g)$/i, '') + '.jpg', takenAt, source };
 }
