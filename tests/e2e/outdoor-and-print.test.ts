@@ -97,7 +97,9 @@ async function expectPrintable(p: Page) {
       const r = el.getBoundingClientRect();
       return getComputedStyle(el).display !== 'none' && getComputedStyle(el).visibility !== 'hidden' && r.width > 0 && r.height > 0;
     };
-    for (const el of document.querySelectorAll('nav, button, .btn, .btn-secondary, input[type=file], [role=tablist], body > footer'))
+    for (const el of document.querySelectorAll(
+      'nav, button:not(th button), .btn, .btn-secondary, input[type=file], [role=tablist], [role=search], body > footer',
+    ))
       if (visible(el)) found.push(`visible in print: <${el.tagName.toLowerCase()}> ${el.textContent?.trim().slice(0, 40)}`);
     for (const el of document.querySelectorAll('main h1, main p, main td, main th, main li'))
       if (visible(el) && getComputedStyle(el).color !== 'rgb(0, 0, 0)') found.push(`not black: <${el.tagName.toLowerCase()}> ${getComputedStyle(el).color}`);
