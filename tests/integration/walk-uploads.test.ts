@@ -145,6 +145,54 @@ describe('photo uploads', () => {
     expect((await res.json()).errors.map((e: { field: string }) => e.field).sort()).toEqual(['clientRef', 'itemKey']);
   });
 
+  it("keeps the camera file's hash, size and orientation that the phone sends with a reduced copy", async () => {
+    const camera = await phonePhoto();
+    // What the phone uploads instead: upright already, smaller, without EXIF.
+    const reduced = await sharp(camera).rotate().resize({ width: 450 }).jpeg({ quality: 80 }).toBuffer();
+    const cameraSha = createHash('sha256').update(camera).digest('hex');
+    const res = await upload(
+      auditor,
+      photoForm(reduced, { sourceSha256: cameraSha, sourceBytes: String(camera.byteLength), orientation: '6', takenAt: '2026-11-30T09:15:00Z' }),
+    );
+    expect(res.status).toBe(201);
+    const photo = await res.json();
+    expect(photo).toMatchObject({ sourceSha256: cameraSha, sourceBytes: camera.byteLength, originalBytes: reduced.byteLength, width: 450, height: 600 });
+    expect(photo.takenAt).toBe('2026-11-30T09:15:00.000Z');
+    const row = await testDb()('assessment_photos').where({ id: photo.id }).first();
+    expect(row).toMatchObject({
+      source_sha256: cameraSha,
+      source_bytes: String(camera.byteLength),
+      source_orientation: 6,
+      original_sha256: createHash('sha256').update(reduced).digest('hex'),
+    });
+  });
+
+  it('takes the uploaded file as the camera file when the phone sent it unchanged', async () => {
+    const png = await sharp({ create: { width: 8, height: 8, channels: 3, background: '#123' } })
+      .png()
+      .toBuffer();
+    const photo = await (await upload(auditor, photoForm(png, {}, 'b.png', 'image/png'))).json();
+    expect(photo).toMatchObject({ sourceSha256: createHash('sha256').update(png).digest('hex'), sourceBytes: png.byteLength });
+  });
+
+  it('refuses malformed camera-file facts and stores nothing', async () => {
+    const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } })
+      .png()
+      .toBuffer();
+    const before = await testDb()('assessment_photos').where({ assessment_id: draftId }).count('* as n').first();
+    const bad = await upload(auditor, photoForm(png, { sourceSha256: 'ABC', sourceBytes: '-1', orientation: '9' }, 'a.png', 'image/png'));
+    expect(bad.status).toBe(422);
+    expect((await bad.json()).errors.map((e: { field: string }) => e.field).sort()).toEqual(['orientation', 'sourceBytes', 'sourceSha256']);
+    // A hash without its size (or the other way round) is half a fact.
+    const half = await upload(auditor, photoForm(png, { sourceSha256: 'a'.repeat(64) }, 'a.png', 'image/png'));
+    expect(half.status).toBe(422);
+    expect((await half.json()).errors).toEqual([{ field: 'sourceBytes', message: 'send sourceSha256 and sourceBytes together' }]);
+    // Orientation 8 is the last valid one; 1 the first.
+    const edge = await upload(auditor, photoForm(png, { sourceSha256: 'b'.repeat(64), sourceBytes: '1', orientation: '8' }, 'a.png', 'image/png'));
+    expect(edge.status).toBe(201);
+    expect(await testDb()('assessment_photos').where({ assessment_id: draftId }).count('* as n').first()).toEqual({ n: String(Number(before?.n) + 1) });
+  });
+
   it("keeps another auditor's hands off this draft's photos", async () => {
     const png = await sharp({ create: { width: 4, height: 4, channels: 3, background: '#000' } })
       .png()

@@ -5,6 +5,7 @@
  */
 import type { Assessment } from '@/lib/api/assessments';
 import type { JsonObject } from './merge-patch';
+import type { PhotoSource } from './outbox';
 import type { PhotoRecord, TraceRecord } from './records';
 
 export type { PhotoRecord, TraceRecord } from './records';
@@ -64,16 +65,45 @@ export async function patchAssessment(id: string, rowVersion: number, patch: Jso
   );
 }
 
-export async function uploadPhoto(
+/** How far an upload has got, in bytes. */
+export type UploadProgress = (sent: number, total: number) => void;
+
+/**
+ * Sends one photo (multipart) through XMLHttpRequest, the one browser API that reports upload
+ * progress. Like `call`: no answer, or a gateway's, is an OfflineError.
+ */
+export function uploadPhoto(
   assessmentId: string,
-  photo: { idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob },
+  photo: { idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob; source?: PhotoSource | null },
+  onProgress?: UploadProgress,
 ): Promise<Answer<PhotoRecord>> {
   const form = new FormData();
   form.set('clientRef', photo.clientRef);
   form.set('itemKey', photo.itemKey);
   if (photo.takenAt) form.set('takenAt', photo.takenAt);
+  if (photo.source) {
+    form.set('sourceSha256', photo.source.sha256);
+    form.set('sourceBytes', String(photo.source.bytes));
+    if (photo.source.orientation) form.set('orientation', String(photo.source.orientation));
+  }
   form.set('photo', photo.blob, photo.fileName);
-  return answer(await call(`/api/assessments/${assessmentId}/photos`, { method: 'POST', headers: { 'idempotency-key': photo.idempotencyKey }, body: form }));
+  return new Promise((resolve, reject) => {
+    const xhr = new XMLHttpRequest();
+    xhr.open('POST', `/api/assessments/${assessmentId}/photos`);
+    xhr.setRequestHeader('accept', 'application/json');
+    xhr.setRequestHeader('idempotency-key', photo.idempotencyKey);
+    xhr.withCredentials = true;
+    if (onProgress) xhr.upload.onprogress = (event) => onProgress(event.loaded, event.lengthComputable ? event.total : photo.blob.size);
+    const lost = () => reject(new OfflineError(new Error('The upload was interrupted')));
+    xhr.onerror = lost;
+    xhr.onabort = lost;
+    xhr.ontimeout = lost;
+    xhr.onload = () => {
+      if ([0, 502, 503, 504].includes(xhr.status)) return lost();
+      resolve(answer(new Response(xhr.responseText, { status: xhr.status, headers: { 'content-type': xhr.getResponseHeader('content-type') ?? '' } })));
+    };
+    xhr.send(form);
+  });
 }
 
 export async function removePhoto(assessmentId: string, photoId: string): Promise<Answer<null>> {

@@ -19,8 +19,16 @@ export interface PhotoOp {
   clientRef: string;
   itemKey: string;
   fileName: string;
-  /** When the file was made, from the device (the server prefers the camera's EXIF time). */
+  /** When the photo was taken: the camera's EXIF time read on the device, else the file's time. */
   takenAt: string | null;
+  /** The camera file's SHA-256, size and EXIF orientation, when the queued bytes are a reduced copy of it. */
+  source?: PhotoSource | null;
+}
+
+export interface PhotoSource {
+  sha256: string;
+  bytes: number;
+  orientation: number | null;
 }
 
 /** A force-meter CSV for one measuring point. */

@@ -9,6 +9,11 @@ export const MAX_PHOTO_BYTES = 15 * 1024 * 1024;
 /** The largest force-meter CSV accepted: 10 s at 1 kHz is about 200 kB. */
 export const MAX_TRACE_CSV_BYTES = 2 * 1024 * 1024;
 
+/** Longest side, px, of the copy the phone uploads (the report prints at most 1600 px). */
+export const UPLOAD_LONG_SIDE_PX = 2048;
+/** JPEG quality of that copy. */
+export const UPLOAD_JPEG_QUALITY = 0.8;
+
 export function megabytes(bytes: number): string {
   return `${(bytes / (1024 * 1024)).toFixed(1).replace(/\.0$/, '')} MB`;
 }
@@ -22,7 +27,11 @@ export interface PhotoRecord {
   width: number;
   height: number;
   displayBytes: number;
+  /** Size of the file the server received (the phone's reduced copy, or the camera's file). */
   originalBytes: number;
+  /** SHA-256 and size of the camera's file before the phone reduced it. */
+  sourceSha256: string;
+  sourceBytes: number;
   takenAt: string | null;
   createdAt: string;
   thumbUrl: string;

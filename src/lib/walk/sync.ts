@@ -7,12 +7,12 @@
  * sender (a react-query mutation).
  */
 import type { Assessment } from '@/lib/api/assessments';
-import { OfflineError, type Answer, type PhotoRecord, type Problem, type TraceRecord } from './api';
+import { OfflineError, type Answer, type PhotoRecord, type Problem, type TraceRecord, type UploadProgress } from './api';
 import * as api from './api';
 import { applyDocumentsPatch, asDocuments, changedFields, findConflicts, toJson, withoutField, type FieldConflict, type WalkDocuments } from './documents';
 import { composeMergePatches, type JsonObject } from './merge-patch';
 import * as outbox from './outbox';
-import type { OutboxOp, OutboxOpBody } from './outbox';
+import type { OutboxOp, OutboxOpBody, PhotoSource } from './outbox';
 
 /**
  * One request the sync loop makes; the React side runs these through a react-query mutation.
@@ -22,7 +22,18 @@ import type { OutboxOp, OutboxOpBody } from './outbox';
  */
 export type SendJob =
   | { kind: 'patch'; assessmentId: string; rowVersion: number; patch: JsonObject }
-  | { kind: 'photo'; assessmentId: string; idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob }
+  | {
+      kind: 'photo';
+      assessmentId: string;
+      idempotencyKey: string;
+      clientRef: string;
+      itemKey: string;
+      takenAt: string | null;
+      fileName: string;
+      blob: Blob;
+      source?: PhotoSource | null;
+      onProgress?: UploadProgress;
+    }
   | { kind: 'trace'; assessmentId: string; idempotencyKey: string; op: Extract<OutboxOpBody, { kind: 'trace' }> }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
@@ -34,7 +45,7 @@ export const sendDirect: Sender = (job) => {
     case 'patch':
       return api.patchAssessment(job.assessmentId, job.rowVersion, job.patch);
     case 'photo':
-      return api.uploadPhoto(job.assessmentId, job);
+      return api.uploadPhoto(job.assessmentId, job, job.onProgress);
     case 'trace':
       return api.uploadTrace(job.assessmentId, job.op, job.idempotencyKey);
     case 'removePhoto':
@@ -46,6 +57,13 @@ export const sendDirect: Sender = (job) => {
 
 /** `saved`: nothing waiting; `saving`: a request is out; `waiting`: edits kept on the device until the server answers. */
 export type SyncPhase = 'loading' | 'saved' | 'saving' | 'waiting' | 'conflict' | 'closed';
+
+/** A photo upload under way or stopped: bytes sent so far, and why it stopped (it stays queued). */
+export interface PhotoUpload {
+  sent: number;
+  total: number;
+  failed: string | null;
+}
 
 export interface RefusedEdit {
   id: number;
@@ -70,6 +88,8 @@ export interface SyncState {
   conflicts: FieldConflict[];
   /** Edits the server refused (kept out of the queue so the rest can go); shown until dismissed. */
   refused: RefusedEdit[];
+  /** Photo uploads by device id: progress of the one being sent, or why the last try stopped. */
+  uploads: Readonly<Record<string, PhotoUpload>>;
   lastSavedAt: string | null;
 }
 
@@ -112,6 +132,8 @@ export class WalkSync {
   private theirs: Assessment | null = null;
   private refusedSeq = 0;
   private inFlight = new Set<number>();
+  /** The photo being uploaded right now, by device id. */
+  private uploading: string | null = null;
   sender: Sender = sendDirect;
 
   constructor(
@@ -132,6 +154,7 @@ export class WalkSync {
       traces: initial.traces,
       conflicts: [],
       refused: [],
+      uploads: {},
       lastSavedAt: null,
     };
   }
@@ -240,7 +263,7 @@ export class WalkSync {
   }
 
   /** Queues a photo with its bytes; it shows as waiting until uploaded. */
-  addPhoto(photo: { clientRef: string; itemKey: string; fileName: string; takenAt: string | null }, blob: Blob): Promise<void> {
+  addPhoto(photo: { clientRef: string; itemKey: string; fileName: string; takenAt: string | null; source?: PhotoSource | null }, blob: Blob): Promise<void> {
     return this.serial(async () => {
       await outbox.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
       await this.reloadPending();
@@ -262,13 +285,29 @@ export class WalkSync {
   remove(kind: 'removePhoto' | 'removeTrace', clientRef: string, serverId: string | null): Promise<void> {
     return this.serial(async () => {
       const waiting = this.state.pending.find((op) => (op.kind === 'photo' || op.kind === 'trace') && op.clientRef === clientRef && !this.inFlight.has(op.seq));
-      if (waiting) await outbox.removeOps([waiting]);
-      else if (serverId) await outbox.enqueue(this.initial.id, { kind, clientRef, serverId });
+      if (waiting) {
+        await outbox.removeOps([waiting]);
+        this.setUpload(clientRef, null);
+      } else if (serverId) await outbox.enqueue(this.initial.id, { kind, clientRef, serverId });
       if (kind === 'removePhoto') this.set({ photos: this.state.photos.filter((p) => p.id !== serverId) });
       else this.set({ traces: this.state.traces.filter((t) => t.id !== serverId) });
       await this.reloadPending();
       this.scheduleFlush(0);
     });
+  }
+
+  /** The auditor's "Retry" on a stopped upload: try the queue again now instead of at the next timed retry. */
+  retryUploads(): Promise<void> {
+    const uploads = Object.fromEntries(Object.entries(this.state.uploads).map(([ref, u]) => [ref, { ...u, failed: null }]));
+    this.set({ uploads });
+    return this.flush();
+  }
+
+  private setUpload(clientRef: string, upload: PhotoUpload | null): void {
+    const uploads = { ...this.state.uploads };
+    if (upload) uploads[clientRef] = upload;
+    else delete uploads[clientRef];
+    this.set({ uploads });
   }
 
   dismissRefused(id: number): void {
@@ -348,10 +387,13 @@ export class WalkSync {
       }
     } catch (error) {
       if (!(error instanceof OfflineError)) throw error;
+      const stopped = this.uploading ? this.state.uploads[this.uploading] : undefined;
+      if (this.uploading && stopped) this.setUpload(this.uploading, { ...stopped, failed: 'The connection dropped; the photo is kept on this phone.' });
       this.set({ phase: 'waiting', online: false });
       this.scheduleRetry();
     } finally {
       this.inFlight.clear();
+      this.uploading = null;
     }
   }
 
@@ -392,16 +434,32 @@ export class WalkSync {
         await this.drop([head]);
         return true;
       }
+      const ref = head.clientRef;
+      this.uploading = ref;
+      this.setUpload(ref, { sent: 0, total: blob.size, failed: null });
       result = await this.sender({
         kind: 'photo',
         assessmentId: id,
-        idempotencyKey: head.clientRef,
-        clientRef: head.clientRef,
+        idempotencyKey: ref,
+        clientRef: ref,
         itemKey: head.itemKey,
         takenAt: head.takenAt,
         fileName: head.fileName,
         blob,
+        source: head.source ?? null,
+        onProgress: (sent, total) => {
+          if (this.uploading === ref) this.setUpload(ref, { sent, total, failed: null });
+        },
       });
+      this.uploading = null;
+      if (!result.ok && (result.problem.status >= 500 || result.problem.status === 429)) {
+        // The server could not take it just now: keep it queued (in order) and try again later.
+        this.setUpload(ref, { sent: 0, total: blob.size, failed: describeProblem(result.problem) });
+        this.set({ phase: 'waiting' });
+        this.scheduleRetry();
+        return false;
+      }
+      this.setUpload(ref, null);
       if (result.ok) this.set({ photos: [...this.state.photos.filter((p) => p.clientRef !== head.clientRef), result.value as PhotoRecord] });
     } else if (head.kind === 'trace') {
       const { seq: _s, assessmentId: _a, createdAt: _c, ...op } = head;

@@ -29,6 +29,8 @@ interface PhotoRow {
   original_content_type: string;
   display_sha256: string;
   thumb_sha256: string | null;
+  source_sha256: string | null;
+  source_bytes: string | number | null;
   taken_at: Date | null;
   created_at: Date;
 }
@@ -47,6 +49,8 @@ const columns = [
   'original_content_type',
   'display_sha256',
   'thumb_sha256',
+  'source_sha256',
+  'source_bytes',
   'taken_at',
   'created_at',
 ];
@@ -62,6 +66,9 @@ function toRecord(row: PhotoRow): PhotoRecord {
     height: row.height,
     displayBytes: row.display_bytes,
     originalBytes: row.original_bytes,
+    // Rows from before the phone reduced photos hold the camera's own file.
+    sourceSha256: row.source_sha256 ?? row.original_sha256,
+    sourceBytes: row.source_bytes === null ? row.original_bytes : Number(row.source_bytes),
     takenAt: row.taken_at ? iso(row.taken_at) : null,
     createdAt: iso(row.created_at),
     thumbUrl: `${base}?size=thumb`,
@@ -93,6 +100,12 @@ export interface NewPhoto {
   takenAt: Date | null;
   fileName: string | null;
   bytes: Buffer;
+  /**
+   * The camera's file, as the phone read it before reducing it: SHA-256, size and EXIF
+   * orientation. The device's word (the server never sees that file); absent when the file
+   * was sent unchanged.
+   */
+  source?: { sha256: string; bytes: number; orientation: number | null } | null;
 }
 
 /** Stores a photo for a draft the viewer may edit; `created` is false when the device had already sent it. */
@@ -130,6 +143,9 @@ export async function addPhoto(viewer: SessionUser, assessmentId: string, photo:
         height: processed.display.height,
         thumb_sha256: thumb.key,
         thumb_bytes: thumb.size,
+        source_sha256: photo.source?.sha256 ?? original.key,
+        source_bytes: photo.source?.bytes ?? original.size,
+        source_orientation: photo.source?.orientation ?? null,
         taken_at: processed.takenAt ?? photo.takenAt,
         uploaded_by: viewer.id,
       })

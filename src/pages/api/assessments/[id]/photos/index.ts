@@ -12,12 +12,29 @@ import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/walk/upload-fields';
 
 const what = 'That assessment';
 
-const PhotoFieldsSchema = z.strictObject({
-  itemKey: z.string().regex(ITEM_KEY_PATTERN, 'must be the key of a walk-through item'),
-  clientRef: z.string().regex(CLIENT_REF_PATTERN, "must be the device's id for the photo (a UUID)").optional(),
-  takenAt: z.iso.datetime({ offset: true, message: 'must be a date and time (ISO 8601)' }).optional(),
-  caption: z.string().trim().max(300, 'must be at most 300 characters').optional(),
-});
+const PhotoFieldsSchema = z
+  .strictObject({
+    itemKey: z.string().regex(ITEM_KEY_PATTERN, 'must be the key of a walk-through item'),
+    clientRef: z.string().regex(CLIENT_REF_PATTERN, "must be the device's id for the photo (a UUID)").optional(),
+    takenAt: z.iso.datetime({ offset: true, message: 'must be a date and time (ISO 8601)' }).optional(),
+    caption: z.string().trim().max(300, 'must be at most 300 characters').optional(),
+    // The camera's file before the phone reduced it: all three travel together.
+    sourceSha256: z
+      .string()
+      .regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in lowercase hex')
+      .optional(),
+    sourceBytes: z.coerce
+      .number()
+      .int('must be a whole number of bytes')
+      .positive('must be more than 0')
+      .max(2 ** 40, 'is too large')
+      .optional(),
+    orientation: z.coerce.number().int().min(1, 'must be an EXIF orientation, 1 to 8').max(8, 'must be an EXIF orientation, 1 to 8').optional(),
+  })
+  .refine((f) => (f.sourceSha256 === undefined) === (f.sourceBytes === undefined), {
+    message: 'send sourceSha256 and sourceBytes together',
+    path: ['sourceBytes'],
+  });
 
 /** The assessment's photos, oldest first, with their thumbnail and display URLs. */
 export const GET: APIRoute = handle(async ({ locals, params }) => {
@@ -28,8 +45,9 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
 
 /**
  * Uploads one photo (multipart: `photo` plus `itemKey`, optional `clientRef`, `takenAt`,
- * `caption`). 201 when stored, 200 when the same `clientRef` was stored before (marked
- * `Idempotent-Replayed`). An `Idempotency-Key` header is taken as the `clientRef`.
+ * `caption`, and for a copy the phone reduced: `sourceSha256`, `sourceBytes`, `orientation`
+ * of the camera's file). 201 when stored, 200 when the same `clientRef` was stored before
+ * (marked `Idempotent-Replayed`). An `Idempotency-Key` header is taken as the `clientRef`.
  */
 export const POST: APIRoute = handle(async ({ locals, params, request }) => {
   const { user } = requireRole(locals, ...assessmentWorkers);
@@ -46,6 +64,8 @@ export const POST: APIRoute = handle(async ({ locals, params, request }) => {
     takenAt: fields.takenAt ? new Date(fields.takenAt) : null,
     fileName: file.name ? file.name.slice(0, 200) : null,
     bytes: Buffer.from(await file.arrayBuffer()),
+    source:
+      fields.sourceSha256 && fields.sourceBytes ? { sha256: fields.sourceSha256, bytes: fields.sourceBytes, orientation: fields.orientation ?? null } : null,
   });
   return Response.json(photo, { status: created ? 201 : 200, headers: { location: photo.displayUrl, ...(created ? {} : { [replayedHeader]: 'true' }) } });
 });
