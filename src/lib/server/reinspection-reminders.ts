@@ -111,7 +111,14 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
         to: office,
         subject: `Re-inspection due: ${officeGates.length} gate${officeGates.length === 1 ? '' : 's'}`,
         text: [
-          ...(awaiting.length ? ['These gates were withdrawn from service and await their fixes (no date: re-visit when the fixes are reported):', '', ...awaiting.map(dueLine), ''] : []),
+          ...(awaiting.length
+            ? [
+                'These gates were withdrawn from service and await their fixes (no date: re-visit when the fixes are reported):',
+                '',
+                ...awaiting.map(dueLine),
+                '',
+              ]
+            : []),
           ...(dated.length ? ['These gates are due (or overdue) for their safety re-inspection:', '', ...dated.map(dueLine), ''] : []),
           attachments.length
             ? `The attached calendar file has one all-day entry per gate with a date${awaiting.length ? ' (none for gates awaiting fixes)' : ''}.`
