@@ -208,5 +208,5 @@ export function dueSourceWords(gate: Pick<GateReinspection, 'source' | 'resultAf
   if (gate.source === 'set') return 'Date set on the gate.';
   if (gate.state === 'awaiting_fixes') return `Withdrawn from service at the last signed visit (${gate.lastSignedVisit}): ${AWAITING_FIXES_WORDS}.`;
   if (gate.source === 'result') return `${gate.resultAfterDays} days after the last signed visit (${gate.lastSignedVisit}), as its result's ruleset asks.`;
-  return `${reinspectionMonths} months after the last signed visit (${gate.lastSignedVisit}): the organisation's setting, as its result's ruleset version gives no interval.`;
+  return `${reinspectionMonths} month${reinspectionMonths === 1 ? '' : 's'} after the last signed visit (${gate.lastSignedVisit}): the organisation's setting, as its result's ruleset version gives no interval.`;
 }
