@@ -51,7 +51,7 @@ describe('re-inspection', () => {
     expect(byId.get(gates.Overdue!)).toMatchObject({ state: 'overdue', source: 'interval', dueOn: plusYear(monthsFromNow(-13).day) });
     expect(byId.get(gates.Overdue!)!.daysLeft).toBeLessThan(0);
     expect(byId.get(gates.Soon!)).toMatchObject({ dueOn: plusYear(monthsFromNow(-12).day) });
-    expect(Math.abs(byId.get(gates.Soon!)!.daysLeft)).toBeLessThanOrEqual(31);
+    expect(Math.abs(byId.get(gates.Soon!)!.daysLeft!)).toBeLessThanOrEqual(31);
     expect(byId.has(gates.Later!)).toBe(false);
     expect(byId.has(gates.Rescheduled!)).toBe(false);
     expect(byId.has(gates.Unsigned!)).toBe(false);

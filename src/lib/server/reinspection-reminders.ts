@@ -4,6 +4,11 @@
  * message to each client about their own gates. Each carries an .ics calendar of the due
  * dates. A (gate, due date, recipient) is reminded once: `reinspection_reminders` has a unique
  * key and rows are claimed with ON CONFLICT DO NOTHING, so two runs at once never double-mail.
+ *
+ * A gate awaiting its fixes (withdrawn at its last signed visit) has no date: it is listed in
+ * words ("re-visit when the fixes are reported"), once per withdrawn visit (keyed by that visit's
+ * date, see reminderKeyOf), and gets no calendar entry: any date put in a calendar would be made
+ * up, and an all-day entry on a made-up day would read as a booked visit.
  */
 import type { Knex } from 'knex';
 import type { SessionOrganisation } from './session-user';
@@ -12,7 +17,8 @@ import { linkOrigin } from './auth/public-origin';
 import { db } from './db';
 import { calendarOf, type DueEvent } from './ics';
 import { enqueueMail, wakeOutboxWorker } from './outbox';
-import { DUE_SOON_DAYS, dueGates, type DueGate } from './reinspection';
+import { formatCalendarDate } from '@/lib/vocabulary';
+import { AWAITING_FIXES_WORDS, DUE_SOON_DAYS, dueGates, dueWordsOf, reminderKeyOf, type DueGate } from './reinspection';
 import { storage } from './storage';
 
 export interface ReminderActor {
@@ -30,10 +36,12 @@ export interface ReminderOutcome {
   alreadyReminded: number;
 }
 
+/** The calendar entry of a gate with a due date; null for one awaiting fixes (it has no date). */
 export function dueEventOf(
   gate: Pick<DueGate, 'gateId' | 'gateLabel' | 'siteAddress' | 'siteCity' | 'clientName' | 'dueOn'>,
   organisationName: string,
-): DueEvent {
+): DueEvent | null {
+  if (gate.dueOn === null) return null;
   return {
     uid: `reinspection-${gate.gateId}-${gate.dueOn}@latchwell`,
     date: gate.dueOn,
@@ -43,9 +51,18 @@ export function dueEventOf(
   };
 }
 
+const hasEvent = (event: DueEvent | null): event is DueEvent => event !== null;
+
 function dueLine(gate: DueGate): string {
-  const when = gate.daysLeft < 0 ? `overdue by ${-gate.daysLeft} day(s)` : gate.daysLeft === 0 ? 'due today' : `due in ${gate.daysLeft} day(s)`;
-  return `- ${gate.gateLabel}, ${gate.siteAddress}, ${gate.siteCity} (${gate.clientName}): ${gate.dueOn}, ${when}`;
+  if (gate.dueOn === null || gate.daysLeft === null)
+    return `- ${gate.gateLabel}, ${gate.siteAddress}, ${gate.siteCity} (${gate.clientName}): withdrawn from service on ${formatCalendarDate(gate.lastSignedVisit)}, ${AWAITING_FIXES_WORDS}`;
+  return `- ${gate.gateLabel}, ${gate.siteAddress}, ${gate.siteCity} (${gate.clientName}): ${formatCalendarDate(gate.dueOn)}, ${dueWordsOf(gate)}`;
+}
+
+/** The .ics attachment of the gates that have a date; none when every gate awaits fixes. */
+async function calendarAttachments(gates: DueGate[], organisationName: string, name: string) {
+  const events = gates.map((g) => dueEventOf(g, organisationName)).filter(hasEvent);
+  return events.length ? [await storeCalendar(events, name)] : [];
 }
 
 async function storeCalendar(events: DueEvent[], name: string) {
@@ -65,7 +82,7 @@ async function officeAddresses(knex: Knex, organisationId: string): Promise<stri
 async function claim(trx: Knex.Transaction, organisationId: string, gates: DueGate[], recipient: 'office' | 'client'): Promise<Set<string>> {
   if (!gates.length) return new Set();
   const rows = await trx('reinspection_reminders')
-    .insert(gates.map((g) => ({ organisation_id: organisationId, gate_id: g.gateId, due_on: g.dueOn, recipient })))
+    .insert(gates.map((g) => ({ organisation_id: organisationId, gate_id: g.gateId, due_on: reminderKeyOf(g), recipient })))
     .onConflict(['gate_id', 'due_on', 'recipient'])
     .ignore()
     .returning('gate_id');
@@ -86,25 +103,30 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
     outcome.alreadyReminded = due.length - officeGates.length;
     const office = await officeAddresses(trx, organisation.id);
     if (officeGates.length && office.length) {
-      const attachment = await storeCalendar(
-        officeGates.map((g) => dueEventOf(g, organisation.name)),
-        `${organisation.name}: re-inspections`,
-      );
+      const attachments = await calendarAttachments(officeGates, organisation.name, `${organisation.name}: re-inspections`);
+      const dated = officeGates.filter((g) => g.dueOn !== null);
+      const awaiting = officeGates.filter((g) => g.dueOn === null);
       const messageId = await enqueueMail(trx, {
         organisationId: organisation.id,
         kind: 'reinspection_reminder',
         to: office,
         subject: `Re-inspection due: ${officeGates.length} gate${officeGates.length === 1 ? '' : 's'}`,
         text: [
-          `These gates are due (or overdue) for their safety re-inspection:`,
-          '',
-          ...officeGates.map(dueLine),
-          '',
-          'The attached calendar file has one all-day entry per gate.',
-          '',
-          `Plan the visits: ${dashboard}`,
+          ...(awaiting.length
+            ? [
+                'These gates were withdrawn from service and await their fixes (no date: re-visit when the fixes are reported):',
+                '',
+                ...awaiting.map(dueLine),
+                '',
+              ]
+            : []),
+          ...(dated.length ? ['These gates are due (or overdue) for their safety re-inspection:', '', ...dated.map(dueLine), ''] : []),
+          attachments.length
+            ? `The attached calendar file has one all-day entry per gate with a date${awaiting.length ? ' (none for gates awaiting fixes)' : ''}.`
+            : 'No calendar file: none of these gates has a date yet.',
+          ...(dashboard ? ['', `Plan the visits: ${dashboard}`] : []),
         ].join('\n'),
-        attachments: [attachment],
+        attachments,
         relatedType: 'organisation',
         relatedId: organisation.id,
       });
@@ -123,10 +145,9 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
       for (const gate of withEmail.filter((g) => claimedClient.has(g.gateId))) byClient.set(gate.clientId, [...(byClient.get(gate.clientId) ?? []), gate]);
       for (const gates of byClient.values()) {
         const first = gates[0]!;
-        const attachment = await storeCalendar(
-          gates.map((g) => dueEventOf(g, organisation.name)),
-          `${organisation.name}: gate re-inspection`,
-        );
+        const attachments = await calendarAttachments(gates, organisation.name, `${organisation.name}: gate re-inspection`);
+        const dated = gates.filter((g) => g.dueOn !== null);
+        const awaiting = gates.filter((g) => g.dueOn === null);
         const messageId = await enqueueMail(trx, {
           organisationId: organisation.id,
           kind: 'reinspection_reminder_client',
@@ -135,15 +156,27 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
           text: [
             `Hello ${first.clientName},`,
             '',
-            `${organisation.name} inspected your automatic gate${gates.length === 1 ? '' : 's'} and recommends a safety re-inspection by:`,
-            '',
-            ...gates.map((g) => `- ${g.gateLabel}, ${g.siteAddress}, ${g.siteCity}: ${g.dueOn}`),
-            '',
-            'Reply to this message or call us to book a visit. The attached calendar file adds the date to your calendar.',
+            ...(dated.length
+              ? [
+                  `${organisation.name} inspected your automatic gate${dated.length === 1 ? '' : 's'} and recommends a safety re-inspection by:`,
+                  '',
+                  ...dated.map((g) => `- ${g.gateLabel}, ${g.siteAddress}, ${g.siteCity}: ${g.dueOn}`),
+                  '',
+                ]
+              : []),
+            ...(awaiting.length
+              ? [
+                  `${awaiting.length === 1 ? 'This gate was' : 'These gates were'} withdrawn from service at the last inspection; we re-visit when the fixes are reported:`,
+                  '',
+                  ...awaiting.map((g) => `- ${g.gateLabel}, ${g.siteAddress}, ${g.siteCity}: ${AWAITING_FIXES_WORDS}`),
+                  '',
+                ]
+              : []),
+            `Reply to this message or call us to book a visit.${attachments.length ? ' The attached calendar file adds the date to your calendar.' : ''}`,
             '',
             organisation.name,
           ].join('\n'),
-          attachments: [attachment],
+          attachments,
           relatedType: 'client',
           relatedId: first.clientId,
         });
