@@ -254,6 +254,6 @@ describe('gate history', () => {
     expect(gatePage.status).toBe(200);
     const html = await gatePage.text();
     expect(html).toContain('Front drive swing');
-    expect(html).toContain('2027-03-12');
+    expect(html).toContain('Mar 12, 2027');
   });
 });

@@ -237,10 +237,35 @@ describe('creates from the device outbox', () => {
   it('puts the key on the wire as the Idempotency-Key header', async () => {
     const seen: Headers[] = [];
     const realFetch = globalThis.fetch;
+    const realXhr = globalThis.XMLHttpRequest;
     globalThis.fetch = (async (_input: RequestInfo | URL, init?: RequestInit) => {
       seen.push(new Headers(init?.headers));
       return new Response('{}', { status: 201, headers: { 'content-type': 'application/json' } });
     }) as typeof fetch;
+    // Photos go through XMLHttpRequest (the one browser API with upload progress): a stand-in
+    // that records its headers and answers 201.
+    class RecordingXhr {
+      headers = new Headers();
+      upload = {};
+      status = 0;
+      responseText = '';
+      withCredentials = false;
+      onload: (() => void) | null = null;
+      open() {}
+      setRequestHeader(name: string, value: string) {
+        this.headers.set(name, value);
+      }
+      getResponseHeader(name: string) {
+        return name.toLowerCase() === 'content-type' ? 'application/json' : null;
+      }
+      send() {
+        seen.push(this.headers);
+        this.status = 201;
+        this.responseText = '{}';
+        queueMicrotask(() => this.onload?.());
+      }
+    }
+    globalThis.XMLHttpRequest = RecordingXhr as unknown as typeof XMLHttpRequest;
     try {
       const { sendDirect } = await import('@/lib/walk/sync');
       const key = '44444444-4444-4444-8444-444444444444';
@@ -257,6 +282,7 @@ describe('creates from the device outbox', () => {
       });
     } finally {
       globalThis.fetch = realFetch;
+      globalThis.XMLHttpRequest = realXhr;
     }
     expect(seen.map((h) => h.get('idempotency-key'))).toEqual(['44444444-4444-4444-8444-444444444444', '44444444-4444-4444-8444-444444444444']);
   });
