@@ -4,7 +4,8 @@
  * the ceiling. Prints requests/s, p50/p95/p99 latency and errors, and the ratio to health.
  * Bounded in time; traffic goes to 127.0.0.1 only.
  *
- * `npx tsx tests/bench/load.ts [seconds]` (default 30).
+ * `npx tsx tests/bench/load.ts [seconds]` (default 30, or LOAD_SECONDS). Non-2xx answers are
+ * counted by status; for the autosave the first body of each status is printed too.
  */
 import autocannon, { type Result } from 'autocannon';
 import fs from 'node:fs';
@@ -22,13 +23,31 @@ interface Figures {
   p95: number;
   p99: number;
   errors: number;
+  /** How many answers had each status other than 2xx, e.g. { 409: 12 }. */
+  non2xxByStatus: Record<string, number>;
+  /** Connection errors and timeouts (no status at all). */
+  connectionErrors: number;
+  timeouts: number;
 }
 
 /** autocannon's histogram has p97.5 and p99; p95 is interpolated between p90 and p97.5. */
 function figures(result: Result): Figures {
   const l = result.latency as unknown as Record<string, number>;
   const p95 = l.p90 + ((l.p97_5 - l.p90) * (95 - 90)) / (97.5 - 90);
-  return { rps: result.requests.average, p50: l.p50, p95, p99: l.p99, errors: result.errors + result.timeouts + result.non2xx };
+  const non2xxByStatus: Record<string, number> = {};
+  for (const [status, { count }] of Object.entries(result.statusCodeStats ?? {})) {
+    if (!status.startsWith('2')) non2xxByStatus[status] = count ?? 0;
+  }
+  return {
+    rps: result.requests.average,
+    p50: l.p50,
+    p95,
+    p99: l.p99,
+    errors: result.errors + result.timeouts + result.non2xx,
+    non2xxByStatus,
+    connectionErrors: result.errors,
+    timeouts: result.timeouts,
+  };
 }
 
 function run(options: autocannon.Options): Promise<Result> {
@@ -50,17 +69,27 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
     const readId: string = list.items[0].id;
     const gates = await (await fetch(`${base}/api/gates?kind=swing&pageSize=50`, { headers: headers(auditor) })).json();
 
-    // One draft per connection, so autosaves exercise the row-version protocol without colliding.
+    // Drafts of their own for the autosaving virtual users: twice the connections, so a
+    // request lost to a timeout (whose draft is never handed back) does not leave one short.
     const drafts: Array<{ id: string; version: number }> = [];
-    for (let i = 0; i < connections; i++) {
+    for (let i = 0; i < connections * 2; i++) {
       const res = await fetch(`${base}/api/assessments`, {
         method: 'POST',
         headers: { ...headers(auditor), 'content-type': 'application/json' },
         body: JSON.stringify({ gateId: gates.items[i % gates.items.length].id, family: 'north-american-gate', purpose: 'service' }),
       });
+      if (!res.ok) throw new Error(`creating a bench draft answered ${res.status}: ${await res.text()}`);
       const draft = await res.json();
       drafts.push({ id: draft.id, version: draft.rowVersion });
     }
+    if (new Set(drafts.map((d) => d.id)).size !== drafts.length) throw new Error('the bench drafts are not all distinct');
+    // Drafts not in flight. A connection takes one when it builds a save and hands it back when
+    // the answer arrives (with the new row version on a 200), so no two saves in flight ever
+    // share a draft. autocannon clears a connection's context after every answer, hence the
+    // pool; taking from the top of a stack, a connection gets back the draft it just returned.
+    const idle = [...drafts].reverse();
+    // The first answer of each non-2xx status, so the report can say what it was.
+    const autosaveSamples: Record<string, string> = {};
     const scoreBody = fs.readFileSync(path.join(projectRoot, 'tests/bench/support/score-body.json'), 'utf8');
 
     const targets: Record<string, autocannon.Options> = {
@@ -74,10 +103,10 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
         requests: [
           {
             method: 'PATCH',
-            // Each connection keeps its own draft and row version in its context.
             setupRequest: (req, context) => {
               const own = context as { draft?: { id: string; version: number } };
-              own.draft ??= drafts[autosaveNext++ % drafts.length];
+              own.draft ??= idle.pop();
+              if (!own.draft) throw new Error('every bench draft is in flight or lost to a timeout');
               return {
                 ...req,
                 path: `/api/assessments/${own.draft.id}`,
@@ -86,15 +115,18 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
               };
             },
             onResponse: (status, body, context) => {
-              const own = context as { draft?: { version: number } };
-              if (status === 200 && own.draft) own.draft.version = JSON.parse(body).rowVersion;
+              const own = context as { draft?: { id: string; version: number } };
+              if (!own.draft) return;
+              if (status === 200) own.draft.version = JSON.parse(body).rowVersion;
+              else autosaveSamples[status] ??= body.slice(0, 300);
+              idle.push(own.draft);
+              own.draft = undefined;
             },
           },
         ],
       },
       health: { url: `${base}/api/health` },
     };
-    let autosaveNext = 0;
 
     const out: Record<string, number> = {};
     for (const [name, options] of Object.entries(targets)) {
@@ -105,9 +137,16 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
       out[`${name}P95Ms`] = f.p95;
       out[`${name}P99Ms`] = f.p99;
       out[`${name}Errors`] = f.errors;
+      for (const [status, count] of Object.entries(f.non2xxByStatus)) out[`${name}Status${status}`] = count;
+      const kinds = [
+        ...Object.entries(f.non2xxByStatus).map(([status, count]) => `${status}×${count}`),
+        ...(f.connectionErrors ? [`connection errors×${f.connectionErrors}`] : []),
+        ...(f.timeouts ? [`timeouts×${f.timeouts}`] : []),
+      ];
       console.log(
-        `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}`,
+        `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`,
       );
+      if (name === 'autosave') for (const [status, body] of Object.entries(autosaveSamples)) console.log(`          first ${status}: ${body}`);
     }
     for (const name of ['archive', 'read', 'score', 'autosave']) out[`${name}VsHealth`] = out[`${name}Rps`] / out.healthRps;
     return out;

@@ -12,7 +12,11 @@ describe('applyMergePatch (RFC 7396)', () => {
     [{ a: 'c' }, { a: ['b'] }, { a: ['b'] }],
     [{ a: { b: 'c' } }, { a: { b: 'd', c: null } }, { a: { b: 'd' } }],
     [{ a: [{ b: 'c' }] }, { a: [1] }, { a: [1] }],
-    [['a', 'b'], ['c', 'd'], ['c', 'd']],
+    [
+      ['a', 'b'],
+      ['c', 'd'],
+      ['c', 'd'],
+    ],
     [{ a: 'b' }, ['c'], ['c']],
     [{ a: 'foo' }, null, null],
     [{ a: 'foo' }, 'bar', 'bar'],
@@ -30,5 +34,15 @@ describe('applyMergePatch (RFC 7396)', () => {
     const before = JSON.stringify([target, patch]);
     applyMergePatch(target, patch);
     expect(JSON.stringify([target, patch])).toBe(before);
+  });
+});
+
+describe('applyMergePatch on hostile keys', () => {
+  it('never gives the result (or any object) a prototype from the patch', () => {
+    const patch = JSON.parse('{"__proto__": {"isAdmin": true}}') as unknown;
+    const result = applyMergePatch({ a: 1 }, patch) as Record<string, unknown>;
+    expect(Object.getPrototypeOf(result)).toBe(Object.prototype);
+    expect(result.isAdmin).toBeUndefined();
+    expect(({} as Record<string, unknown>).isAdmin).toBeUndefined();
   });
 });

@@ -3,6 +3,7 @@
  * spreadsheets differ: comma, semicolon or tab separated; decimal point or decimal comma;
  * time in s or ms; with or without a header line.
  */
+import Papa from 'papaparse';
 import { toNewtons } from '../../units';
 import { ForceTraceError } from './force-trace-error';
 import type { ForceSample } from './force-trace';
@@ -32,25 +33,37 @@ const TIME_UNITS: Record<string, 's' | 'ms'> = {
 };
 const FORCE_UNITS: Record<string, ForceUnitInFile> = { n: 'N', kn: 'kN', lbf: 'lbf', kgf: 'kgf' };
 
-/** Splits one line on the separator, honouring double quotes ("0,005";"12,5"). */
-function splitFields(line: string, separator: string): string[] {
-  const fields: string[] = [];
-  let field = '';
-  let quoted = false;
-  for (let i = 0; i < line.length; i += 1) {
-    const char = line[i];
-    if (char === '"') {
-      if (quoted && line[i + 1] === '"') {
-        field += '"';
-        i += 1;
-      } else quoted = !quoted;
-    } else if (char === separator && !quoted) {
-      fields.push(field.trim());
-      field = '';
-    } else field += char;
-  }
-  fields.push(field.trim());
-  return fields;
+interface Row {
+  fields: string[];
+  /** The row as written, for error messages. */
+  raw: string;
+  /** 1-based line number where the row starts. */
+  line: number;
+}
+
+/**
+ * Splits the text into rows with papaparse (double quotes honoured: "0,005";"12,5"), fields
+ * trimmed, each with the line it starts on. Blank lines and lines starting with # are skipped.
+ */
+function readRows(text: string, separator: string): Row[] {
+  const rows: Row[] = [];
+  let start = 0;
+  let line = 1;
+  Papa.parse<string[]>(text, {
+    delimiter: separator,
+    newline: '\n',
+    quoteChar: '"',
+    escapeChar: '"',
+    step(result) {
+      const end = result.meta.cursor;
+      const raw = text.slice(start, end).trim();
+      const fields = result.data.map((field) => field.trim());
+      if (raw !== '' && !raw.startsWith('#')) rows.push({ fields, raw, line });
+      for (let i = start; i < end; i += 1) if (text[i] === '\n') line += 1;
+      start = end;
+    },
+  });
+  return rows;
 }
 
 function parseNumber(field: string, decimalComma: boolean): number | null {
@@ -86,16 +99,16 @@ function toNewtonsFrom(value: number, unit: ForceUnitInFile): number {
  * `evaluateForceTrace`.
  */
 export function parseForceTraceCsv(text: string, options: ForceTraceCsvOptions = {}): ForceSample[] {
-  const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/);
-  const content = lines
-    .map((raw, index) => ({ raw: raw.trim(), line: index + 1 }))
-    .filter(({ raw }) => raw !== '' && !raw.startsWith('#'));
+  const normalised = text.replace(/^\uFEFF/, '').replace(/\r\n|\r/g, '\n');
+  // The separator is read off the first line that holds data: a semicolon or tab wins over a comma.
+  const firstLine = normalised.split('\n').find((raw) => raw.trim() !== '' && !raw.trim().startsWith('#'));
+  if (firstLine === undefined) throw new ForceTraceError('empty_trace', 'The file holds no samples');
+  const separator = firstLine.includes(';') ? ';' : firstLine.includes('\t') ? '\t' : ',';
+  const decimalComma = separator !== ',';
+  const content = readRows(normalised, separator);
   const first = content[0];
   if (!first) throw new ForceTraceError('empty_trace', 'The file holds no samples');
-
-  const separator = first.raw.includes(';') ? ';' : first.raw.includes('\t') ? '\t' : ',';
-  const decimalComma = separator !== ',';
-  const firstFields = splitFields(first.raw, separator);
+  const firstFields = first.fields;
   const hasHeader = firstFields.some((field) => parseNumber(field, decimalComma) === null);
 
   let timeColumn = 0;
@@ -112,8 +125,7 @@ export function parseForceTraceCsv(text: string, options: ForceTraceCsvOptions =
 
   const columns = hasHeader ? firstFields.length : 2;
   const samples: ForceSample[] = [];
-  for (const { raw, line } of hasHeader ? content.slice(1) : content) {
-    const fields = splitFields(raw, separator);
+  for (const { fields, raw, line } of hasHeader ? content.slice(1) : content) {
     const t = parseNumber(fields[timeColumn] ?? '', decimalComma);
     const f = parseNumber(fields[forceColumn] ?? '', decimalComma);
     // Every row has as many columns as the header (or, without one, exactly time and force):
