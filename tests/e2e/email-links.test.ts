@@ -58,7 +58,7 @@ describe('e-mailed links in a phone browser', () => {
 
     await page.getByRole('button', { name: 'Continue to my reports' }).click();
     await page.waitForURL((url) => url.pathname === '/');
-    await page.getByRole('link', { name: 'Open assessments' }).waitFor();
+    await page.getByRole('heading', { name: 'Your gate reports' }).waitFor();
     expect(await hasSessionCookie()).toBe(true);
     await page.getByText('Menu', { exact: true }).click();
     await page.getByRole('button', { name: 'Sign out' }).last().waitFor();
