@@ -40,12 +40,12 @@ async function resetLinkFor(email: string): Promise<string> {
 }
 
 /** Opens the link page as a browser would, then posts the new password. */
-async function useResetLink(link: string, password: string, client: TestClient = anonymousClient()): Promise<Response> {
+async function useResetLink(link: string, password: string, client: TestClient = anonymousClient(), confirm = password): Promise<Response> {
   const url = new URL(link);
   const page = await client.fetch(url.pathname + url.search);
   expect(page.status).toBe(200);
   const token = url.searchParams.get('token') ?? '';
-  return client.fetch('/signin/reset', { method: 'POST', headers: form, body: new URLSearchParams({ token, password }) });
+  return client.fetch('/signin/reset', { method: 'POST', headers: form, body: new URLSearchParams({ token, password, confirm }) });
 }
 
 async function resetMailsTo(email: string): Promise<number> {
@@ -164,12 +164,15 @@ describe('staff forgot password', () => {
     expect((await useResetLink(reset, newPassword)).status).toBe(303);
   });
 
-  it('refuses a 9-character password without using the link up, then takes one of exactly 10', async () => {
+  it('refuses a 9-character password or a differing second copy without using the link up, then takes one of exactly 10', async () => {
     const org = await createOrganisation('reset-short');
     const link = await resetLinkFor(org.auditor2.email);
     const short = await useResetLink(link, '123456789');
     expect(short.status).toBe(422);
     expect(await short.text()).toContain('at least 10 characters');
+    const differing = await useResetLink(link, '1234567890', anonymousClient(), '1234567891');
+    expect(differing.status).toBe(422);
+    expect(await differing.text()).toContain('not the same');
     expect(await passwordWorks(org.auditor2.email, fixturePassword)).toBe(true);
     expect((await useResetLink(link, '1234567890')).status).toBe(303);
     expect(await passwordWorks(org.auditor2.email, '1234567890')).toBe(true);
