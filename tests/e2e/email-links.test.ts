@@ -102,4 +102,36 @@ describe('e-mailed links in a phone browser', () => {
     await page.getByRole('link', { name: 'Archive' }).last().waitFor();
     await screenshotBothWidths(page, 'links-04-invited-signed-in');
   });
+
+  it('lets a staff member who forgot their password choose a new one from the e-mailed link', async () => {
+    const { page, context } = browser;
+    await context.clearCookies();
+    await page.goto('/signin');
+    await page.getByRole('link', { name: 'Forgot your password?' }).click();
+    await page.waitForURL((url) => url.pathname === '/signin/forgot');
+    const seen = await caughtMailIds(org.auditor.email);
+    await page.getByLabel('E-mail').fill(org.auditor.email);
+    await page.getByRole('button', { name: 'E-mail me a reset link' }).click();
+    await page.getByText('Check your inbox.').waitFor();
+    const link = linkIn((await waitForMail(org.auditor.email, seen)).text, '/signin/reset');
+    expect(new URL(link).origin).toBe(inject('baseUrl'));
+
+    const landing = await page.goto(link);
+    expect(landing?.headers()['referrer-policy']).toBe('same-origin');
+    await page.getByRole('heading', { name: 'Choose a new password' }).waitFor();
+    expect(await seriousAxeViolations(page)).toEqual([]);
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
+    await page.getByLabel('New password').fill('orchard-bollard-tide');
+    await page.getByLabel('Type it again').fill('orchard-bollard-tide');
+    await screenshotBothWidths(page, 'links-05-password-reset');
+    await page.getByRole('button', { name: 'Save the new password' }).click();
+
+    await page.waitForURL((url) => url.pathname === '/signin' && url.searchParams.has('reset'));
+    await page.getByText('Your password is changed').waitFor();
+    await page.getByLabel('E-mail').first().fill(org.auditor.email);
+    await page.getByLabel('Password').fill('orchard-bollard-tide');
+    await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await page.waitForURL((url) => url.pathname === '/');
+    expect(await hasSessionCookie()).toBe(true);
+  });
 });

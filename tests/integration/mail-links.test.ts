@@ -239,6 +239,23 @@ describe('links in e-mails ignore the host a request claims', () => {
     }
   });
 
+  it('in a staff password-reset link', async () => {
+    for (const server of servers()) {
+      for (const forged of forgeries) {
+        const staff = await createOrganisation('forged-reset');
+        const res = await raw(server.base, '/signin/forgot', {
+          method: 'POST',
+          headers: { 'content-type': 'application/x-www-form-urlencoded', ...forged.headers },
+          body: new URLSearchParams({ email: staff.office.email }).toString(),
+        });
+        expect(res.status, `${server.name}, ${forged.name}`).toBe(200);
+        const { links } = await onlyMailTo(server.catcherUrl, staff.office.email);
+        for (const link of links) expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
+        expect(links.some((u) => u.pathname === '/signin/reset')).toBe(true);
+      }
+    }
+  });
+
   it('in an invitation', async () => {
     for (const server of servers()) {
       const cookie = await staffCookie(org.owner.email);

@@ -106,7 +106,7 @@ export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessa
  * body is replaced by a note, so the database (and its backups) keeps no usable token: the
  * tables hold only the tokens' hashes.
  */
-export const oneTimeLinkKinds: readonly string[] = ['sign_in_link', 'invitation', 'sign_request'];
+export const oneTimeLinkKinds: readonly string[] = ['sign_in_link', 'password_reset', 'invitation', 'sign_request'];
 export const sentLinkNote = 'Sent. The one-time link in this message is not kept.';
 
 interface ClaimedMessage {

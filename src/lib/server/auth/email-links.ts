@@ -34,6 +34,7 @@ export async function requestSignInLink(email: string, ip: string | null): Promi
     const token = newLinkToken();
     await trx('sign_in_links').insert({
       user_id: person.id,
+      purpose: 'sign_in',
       token_hash: hashLinkToken(token),
       expires_at: new Date(Date.now() + signInLinkMinutes * 60_000),
       requested_ip: ip,

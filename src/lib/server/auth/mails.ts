@@ -42,3 +42,16 @@ export function invitationMail(organisationName: string, invitedBy: string, role
     html: htmlBody(paragraphs, link, 'Accept the invitation'),
   };
 }
+
+export function passwordResetMail(to: { name: string }, organisationName: string, link: string, validMinutes: number): LinkMail {
+  const paragraphs = [
+    `Hello ${to.name},`,
+    `Someone asked to reset your password for ${organisationName} on Latchwell. Open the link to choose a new one. It works once and for ${validMinutes} minutes, and signs you out everywhere.`,
+    `If you did not ask for it, ignore this e-mail: your password stays as it is.`,
+  ];
+  return {
+    subject: `Reset your Latchwell password for ${organisationName}`,
+    text: `${paragraphs.join('\n\n')}\n\nChoose a new password: ${link}\n`,
+    html: htmlBody(paragraphs, link, 'Choose a new password'),
+  };
+}

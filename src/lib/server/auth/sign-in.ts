@@ -122,7 +122,7 @@ export async function signInWithLink(token: unknown, ip: string | null, userAgen
   if (!looksLikeLinkToken(token)) return { outcome: 'invalid' };
   return db().transaction(async (trx) => {
     const [link] = await trx('sign_in_links')
-      .where({ token_hash: hashLinkToken(token) })
+      .where({ token_hash: hashLinkToken(token), purpose: 'sign_in' })
       .whereNull('used_at')
       .andWhere('expires_at', '>', trx.fn.now())
       .update({ used_at: trx.fn.now() })

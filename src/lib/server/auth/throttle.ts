@@ -7,12 +7,13 @@
  *   guesses therefore pause the stranger, not the owner signing in from elsewhere. A success
  *   resets its pair's count (not the address's, so signing in to one's own account cannot
  *   unlock guessing at others).
- * - Link requests count every request, so nobody can flood a homeowner's inbox.
+ * - Link requests and staff password-reset requests (`reset_request`) count every request,
+ *   so nobody can flood an inbox.
  * - Public report checks (`verify`) count every check, per address only.
  */
 import type { Knex } from 'knex';
 
-export type AttemptKind = 'password' | 'link_request' | 'link' | 'verify';
+export type AttemptKind = 'password' | 'link_request' | 'link' | 'verify' | 'reset_request';
 
 export interface ThrottleLimits {
   windowMinutes: number;
