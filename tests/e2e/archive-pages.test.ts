@@ -82,7 +82,9 @@ describe('archive pages', () => {
     await page.goto('/archive/impact');
     await page.getByRole('heading', { name: 'Ruleset impact' }).waitFor();
     await page.getByText(/re-scored in/).waitFor({ timeout: 30_000 });
-    expect(await page.getByRole('link', { name: /Service gate/ }).count()).toBeGreaterThan(0);
+    // The demo's driveway gate answers that its photo-eye reverses the gate with no photo-eye
+    // listed: the newest versions flag the contradiction, so it reads worse there.
+    expect(await page.getByRole('link', { name: /Driveway gate/ }).count()).toBeGreaterThan(0);
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'archive-02-impact', { fullPage: true });
   });

@@ -156,7 +156,8 @@ describe('printing', () => {
     const text = await extractPdfText(pdf);
     // Sort arrows are drawn with symbols the PDF text does not carry: the words are what count.
     for (const header of headers) expect(text, header).toContain(header);
-    expect(text).toContain('Brackenfold Mews Residents');
+    // A narrow print column may wrap a long name inside a word: compare without the spaces.
+    expect(text.replace(/\s+/g, '')).toContain('BrackenfoldMewsResidents');
     expect(text).not.toContain('Search client, address or gate');
     await page.emulateMedia({ media: 'screen' });
   });
