@@ -135,7 +135,9 @@ export async function updateClient(viewer: SessionUser, id: string, patch: Clien
         });
       }
     }
-    const changed = Object.keys(toRow(patch)).filter((key) => (before as unknown as Record<string, unknown>)[key] !== (row as unknown as Record<string, unknown>)[key]);
+    const changed = Object.keys(toRow(patch)).filter(
+      (key) => (before as unknown as Record<string, unknown>)[key] !== (row as unknown as Record<string, unknown>)[key],
+    );
     if (changed.length) {
       await recordAudit(trx, {
         organisationId: viewer.organisationId,
@@ -171,7 +173,9 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
     if (Number(assessments) > 0) {
       throw new HttpProblem(409, `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`);
     }
-    const [{ count: accounts }] = await trx('users').where({ organisation_id: viewer.organisationId, client_id: id }).count<{ count: string }[]>({ count: '*' });
+    const [{ count: accounts }] = await trx('users')
+      .where({ organisation_id: viewer.organisationId, client_id: id })
+      .count<{ count: string }[]>({ count: '*' });
     if (Number(accounts) > 0) {
       throw new HttpProblem(409, `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`);
     }

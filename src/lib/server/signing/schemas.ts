@@ -30,12 +30,7 @@ export const SendForSignatureSchema = z.strictObject({
    * Who receives the signing link: one of the client's contacts or an address the office types.
    * Absent: the client's contact e-mail.
    */
-  recipient: z
-    .string('must be text')
-    .trim()
-    .max(254, 'must be at most 254 characters')
-    .pipe(z.email('must be an e-mail address'))
-    .optional(),
+  recipient: z.string('must be text').trim().max(254, 'must be at most 254 characters').pipe(z.email('must be an e-mail address')).optional(),
 });
 
 const pngDataUrl = z
