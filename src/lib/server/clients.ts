@@ -185,3 +185,24 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
     return true;
   });
 }
+
+/**
+ * The addresses the office may pick to receive an assessment's signing link: the client's
+ * contact e-mail and the e-mails of the client's active sign-in accounts, without repeats.
+ */
+export async function signingContactsOfAssessment(organisationId: string, assessmentId: string, knex: Knex = db()): Promise<string[]> {
+  const client = await knex('assessments as a')
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .where({ 'a.id': assessmentId, 'a.organisation_id': organisationId })
+    .first<{ id: string; contact_email: string | null } | undefined>('c.id', 'c.contact_email');
+  if (!client) return [];
+  const accounts = await knex('users').where({ organisation_id: organisationId, client_id: client.id, active: true }).orderBy('email').pluck<string[]>('email');
+  const seen = new Set<string>();
+  return [client.contact_email, ...accounts].filter((email): email is string => {
+    if (!email || seen.has(email.toLowerCase())) return false;
+    seen.add(email.toLowerCase());
+    return true;
+  });
+}
