@@ -62,4 +62,27 @@ describe('client contacts in the browser', () => {
     const requests = await testDb()('sign_requests').where({ assessment_id: seeded.assessmentId }).select('recipient_email');
     expect(requests).toEqual([{ recipient_email: chosen }]);
   });
+
+  it("corrects a site's address from the site page", async () => {
+    const { page } = browser;
+    await page.goto(`/sites/${seeded.siteId}`);
+    await page.getByText('Correct the site’s address').click();
+    await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
+    await page.getByLabel('Street address').fill('14 Corrected Lane');
+    await page.getByLabel('Town or city').fill('');
+    await page.getByRole('button', { name: 'Save the changes' }).click();
+    await page
+      .getByText('Town or city')
+      .locator('..')
+      .getByText(/must|required|at least/i)
+      .first()
+      .waitFor();
+    await page.getByLabel('Town or city').fill('Eastholm');
+    await page.getByRole('button', { name: 'Save the changes' }).click();
+    await page.getByRole('heading', { name: /14 Corrected Lane/ }).waitFor();
+    expect(await testDb()('sites').where({ id: seeded.siteId }).first('address_line1', 'city')).toEqual({
+      address_line1: '14 Corrected Lane',
+      city: 'Eastholm',
+    });
+  });
 });
