@@ -30,7 +30,6 @@ describe('client contacts in the browser', () => {
     const { page } = browser;
     const corrected = `fixed.${org.homeowner.email}`;
     await page.goto(`/clients/${org.clientId}`);
-    // The form wakes when it comes into view, once the details are opened.
     await page.getByText('Correct the client’s details').click();
     await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
     const email = page.getByLabel('E-mail for reports and signing');
