@@ -1,7 +1,7 @@
 /** A new site for a client: where gates stand, with the UL 325 usage class that sets the rules. */
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
-import { SiteCreateSchema, type Site } from '@/lib/api/sites';
+import { SiteCreateSchema, SitePatchSchema, type Site } from '@/lib/api/sites';
 import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
 
 interface Values {
@@ -34,14 +34,47 @@ export const USAGE_CLASS_TEXT = [
   { value: 4, title: 'Class IV · restricted, supervised', text: 'Guarded entries: prisons, airport security.' },
 ] as const;
 
-export default function SiteForm({ clientId }: { clientId: string }) {
+const TEXT_FIELDS = ['name', 'addressLine1', 'addressLine2', 'city', 'region', 'postalCode', 'country', 'notes'] as const;
+
+/** For an edit: the fields that differ from the stored site; a blanked optional one is sent as null. */
+function changes(site: Site, values: Values): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const key of TEXT_FIELDS) {
+    const next = values[key].trim();
+    if (next !== ((site[key] as string | null) ?? '')) out[key] = next === '' && key !== 'addressLine1' && key !== 'city' && key !== 'country' ? null : next;
+  }
+  if (Number(values.usageClass) !== site.usageClass) out.usageClass = Number(values.usageClass);
+  return out;
+}
+
+/** A new site for `clientId`, or, given `site`, the same form to correct that site (PATCH of the changed fields). */
+export default function SiteForm({ clientId, site }: { clientId: string; site?: Site }) {
   const { register, handleSubmit, setError, formState } = useForm<Values>({
-    resolver: apiResolver<Values>(SiteCreateSchema, toBody),
-    defaultValues: { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: '1', notes: '' },
+    resolver: site ? apiResolver<Values>(SitePatchSchema, (values) => changes(site, values)) : apiResolver<Values>(SiteCreateSchema, toBody),
+    defaultValues: site
+      ? {
+          clientId,
+          name: site.name ?? '',
+          addressLine1: site.addressLine1,
+          addressLine2: site.addressLine2 ?? '',
+          city: site.city ?? '',
+          region: site.region ?? '',
+          postalCode: site.postalCode ?? '',
+          country: site.country ?? 'US',
+          usageClass: String(site.usageClass),
+          notes: site.notes ?? '',
+        }
+      : { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: '1', notes: '' },
   });
   const [message, setMessage] = useState<string | null>(null);
   const errors = formState.errors;
   const onSubmit = handleSubmit(async (values) => {
+    if (site) {
+      const sent = await sendJson<Site, Values>('PATCH', `/api/sites/${site.id}`, changes(site, values), setError);
+      setMessage(sent.message);
+      if (sent.ok) window.location.reload();
+      return;
+    }
     const sent = await sendJson<Site, Values>('POST', '/api/sites', toBody(values), setError);
     setMessage(sent.message);
     if (sent.ok && sent.body) window.location.assign(`/sites/${sent.body.id}`);
@@ -91,7 +124,7 @@ export default function SiteForm({ clientId }: { clientId: string }) {
       <div className="grid gap-2 sm:col-span-2">
         <FormMessage message={message} />
         <button type="submit" className="btn w-full sm:w-auto" disabled={formState.isSubmitting}>
-          {formState.isSubmitting ? 'Saving…' : 'Add the site'}
+          {formState.isSubmitting ? 'Saving…' : site ? 'Save the changes' : 'Add the site'}
         </button>
       </div>
     </form>

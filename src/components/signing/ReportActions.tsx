@@ -9,10 +9,20 @@ interface Props {
   canSend: boolean;
   resend: boolean;
   canRevise: boolean;
+  /** The client's contact e-mail: who gets the link unless the office picks another. */
   recipient: string | null;
+  /** Addresses to pick from: the client's contact e-mail and its sign-in accounts. */
+  contacts?: string[];
 }
 
-export default function ReportActions({ assessmentId, canSend, resend, canRevise, recipient }: Props) {
+const OTHER = '__other__';
+
+export default function ReportActions({ assessmentId, canSend, resend, canRevise, recipient, contacts = [] }: Props) {
+  const choices = contacts.length ? contacts : recipient ? [recipient] : [];
+  const [choice, setChoice] = useState(choices[0] ?? OTHER);
+  const [typed, setTyped] = useState('');
+  const [fieldError, setFieldError] = useState<string | null>(null);
+  const to = choice === OTHER ? typed.trim() : choice;
   const [busy, setBusy] = useState(false);
   const [message, setMessage] = useState<string | null>(null);
   const [days, setDays] = useState(14);
@@ -31,10 +41,13 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
   }
 
   async function send() {
-    const res = await post(`/api/assessments/${assessmentId}/send-for-signature`, { expiresInDays: days });
+    setFieldError(null);
+    const res = await post(`/api/assessments/${assessmentId}/send-for-signature`, { expiresInDays: days, recipient: to });
     if (!res) return;
     if (res.ok) return window.location.reload();
     const problem = await res.json().catch(() => ({}));
+    const recipientError = (problem.errors as { field: string; message: string }[] | undefined)?.find((e) => e.field === 'recipient');
+    if (recipientError) setFieldError(`The address ${recipientError.message}.`);
     setMessage(problem.detail ?? `Sending failed (${res.status}).`);
   }
 
@@ -54,6 +67,36 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
       {canSend ? (
         <div className="flex flex-wrap items-end gap-3">
           <label className="block">
+            <span className="label">Send the link to</span>
+            <select className="field" value={choice} onChange={(e) => setChoice(e.target.value)}>
+              {choices.map((c) => (
+                <option key={c} value={c}>
+                  {c}
+                </option>
+              ))}
+              <option value={OTHER}>Another address…</option>
+            </select>
+          </label>
+          {choice === OTHER ? (
+            <label className="block">
+              <span className="label">E-mail address</span>
+              <input
+                className="field"
+                type="email"
+                autoComplete="off"
+                value={typed}
+                onChange={(e) => setTyped(e.target.value)}
+                aria-invalid={fieldError ? true : undefined}
+                aria-describedby={fieldError ? 'recipient-error' : undefined}
+              />
+              {fieldError ? (
+                <span id="recipient-error" className="block text-sm text-withdraw">
+                  {fieldError}
+                </span>
+              ) : null}
+            </label>
+          ) : null}
+          <label className="block">
             <span className="label">Link valid for</span>
             <select className="field" value={days} onChange={(e) => setDays(Number(e.target.value))}>
               {[3, 7, 14, 30].map((d) => (
@@ -63,10 +106,10 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
               ))}
             </select>
           </label>
-          <button type="button" className="btn" onClick={send} disabled={busy || !recipient}>
+          <button type="button" className="btn" onClick={send} disabled={busy || !to}>
             {resend ? 'Send a new link' : 'Send for signature'}
           </button>
-          <span className="text-sm text-iron-700">{recipient ? `To ${recipient}` : 'The client has no e-mail address yet.'}</span>
+          <span className="text-sm text-iron-700">{to ? `The link goes only to ${to}.` : 'Choose who receives the link.'}</span>
         </div>
       ) : null}
       {canRevise ? (

@@ -5,6 +5,7 @@
 import type { Knex } from 'knex';
 import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/api/clients';
 import type { Page } from '@/lib/api/common';
+import { recordAudit } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -82,12 +83,79 @@ export async function createClient(viewer: SessionUser, input: ClientCreate, kne
   return toClient(row as ClientRow);
 }
 
-export async function updateClient(viewer: SessionUser, id: string, patch: ClientPatch): Promise<Client | null> {
-  const [row] = await db()('clients')
-    .where({ id, organisation_id: viewer.organisationId })
-    .update({ ...toRow(patch), updated_at: db().fn.now() })
-    .returning<ClientRow[]>(returnedColumns);
-  return row ? toClient(row) : null;
+/**
+ * Changes a client. When the contact e-mail is corrected, the homeowner sign-in account of this
+ * client that used the old address follows it, in the same transaction: its e-mail changes, its
+ * session_version moves on (every session of that account ends), its unused sign-in links are
+ * used up (the old address can no longer sign in), and an audit event names both addresses.
+ * A new address that already belongs to another account is refused (409, nothing changes).
+ * Clearing the contact e-mail leaves the account as it is.
+ */
+export async function updateClient(viewer: SessionUser, id: string, patch: ClientPatch, options: { ip?: string | null } = {}): Promise<Client | null> {
+  return db().transaction(async (trx) => {
+    const before = await trx('clients').where({ id, organisation_id: viewer.organisationId }).forUpdate().first<ClientRow | undefined>(returnedColumns);
+    if (!before) return null;
+    const oldEmail = before.contact_email;
+    const newEmail = patch.contactEmail;
+    const emailChanged = newEmail !== undefined && (newEmail ?? '').toLowerCase() !== (oldEmail ?? '').toLowerCase();
+    const [row] = await trx('clients')
+      .where({ id, organisation_id: viewer.organisationId })
+      .update({ ...toRow(patch), updated_at: trx.fn.now() })
+      .returning<ClientRow[]>(returnedColumns);
+    const followers: { id: string; email: string }[] = [];
+    if (emailChanged && oldEmail && newEmail) {
+      const accounts = await trx('users')
+        .where({ organisation_id: viewer.organisationId, client_id: id, role: 'homeowner' })
+        .andWhereRaw('email = ?::citext', [oldEmail])
+        .forUpdate()
+        .select<{ id: string; email: string }[]>('id', 'email');
+      if (accounts.length) {
+        const taken = await trx('users').whereRaw('email = ?::citext', [newEmail]).first('id');
+        if (taken) {
+          throw new HttpProblem(409, 'Another sign-in account already uses that e-mail address; the client was not changed.', {
+            errors: [{ field: 'contactEmail', message: 'already belongs to another sign-in account' }],
+          });
+        }
+      }
+      for (const account of accounts) {
+        await trx('users')
+          .where({ id: account.id })
+          .update({ email: newEmail, session_version: trx.raw('session_version + 1'), updated_at: trx.fn.now() });
+        await trx('sign_in_links').where({ user_id: account.id }).whereNull('used_at').update({ used_at: trx.fn.now() });
+        followers.push(account);
+        await recordAudit(trx, {
+          organisationId: viewer.organisationId,
+          actorUserId: viewer.id,
+          actorLabel: viewer.email,
+          action: 'user.email_changed',
+          entityType: 'user',
+          entityId: account.id,
+          ip: options.ip ?? null,
+          detail: { from: account.email, to: newEmail, clientId: id, reason: 'client contact e-mail corrected', sessionsEnded: true },
+        });
+      }
+    }
+    const changed = Object.keys(toRow(patch)).filter(
+      (key) => (before as unknown as Record<string, unknown>)[key] !== (row as unknown as Record<string, unknown>)[key],
+    );
+    if (changed.length) {
+      await recordAudit(trx, {
+        organisationId: viewer.organisationId,
+        actorUserId: viewer.id,
+        actorLabel: viewer.email,
+        action: 'client.updated',
+        entityType: 'client',
+        entityId: id,
+        ip: options.ip ?? null,
+        detail: {
+          fields: changed,
+          ...(emailChanged ? { contactEmail: { from: oldEmail, to: newEmail ?? null } } : {}),
+          accountsFollowed: followers.map((f) => f.id),
+        },
+      });
+    }
+    return toClient(row);
+  });
 }
 
 /**
@@ -105,13 +173,36 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
     if (Number(assessments) > 0) {
       throw new HttpProblem(409, `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`);
     }
-    const [{ count: accounts }] = await trx('users').where({ organisation_id: viewer.organisationId, client_id: id }).count<{ count: string }[]>({ count: '*' });
+    const [{ count: accounts }] = await trx('users')
+      .where({ organisation_id: viewer.organisationId, client_id: id })
+      .count<{ count: string }[]>({ count: '*' });
     if (Number(accounts) > 0) {
       throw new HttpProblem(409, `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`);
     }
     await trx('gates').whereIn('id', gateIds).delete();
     await trx('sites').where({ organisation_id: viewer.organisationId, client_id: id }).delete();
     await trx('clients').where({ organisation_id: viewer.organisationId, id }).delete();
+    return true;
+  });
+}
+
+/**
+ * The addresses the office may pick to receive an assessment's signing link: the client's
+ * contact e-mail and the e-mails of the client's active sign-in accounts, without repeats.
+ */
+export async function signingContactsOfAssessment(organisationId: string, assessmentId: string, knex: Knex = db()): Promise<string[]> {
+  const client = await knex('assessments as a')
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .where({ 'a.id': assessmentId, 'a.organisation_id': organisationId })
+    .first<{ id: string; contact_email: string | null } | undefined>('c.id', 'c.contact_email');
+  if (!client) return [];
+  const accounts = await knex('users').where({ organisation_id: organisationId, client_id: client.id, active: true }).orderBy('email').pluck<string[]>('email');
+  const seen = new Set<string>();
+  return [client.contact_email, ...accounts].filter((email): email is string => {
+    if (!email || seen.has(email.toLowerCase())) return false;
+    seen.add(email.toLowerCase());
     return true;
   });
 }

@@ -26,6 +26,11 @@ export const SendForSignatureSchema = z.strictObject({
     .min(1, 'must be at least 1 day')
     .max(SIGN_LINK_MAX_DAYS, `must be at most ${SIGN_LINK_MAX_DAYS} days`)
     .optional(),
+  /**
+   * Who receives the signing link: one of the client's contacts or an address the office types.
+   * Absent: the client's contact e-mail.
+   */
+  recipient: z.string('must be text').trim().max(254, 'must be at most 254 characters').pipe(z.email('must be an e-mail address')).optional(),
 });
 
 const pngDataUrl = z

@@ -40,7 +40,7 @@ const statusesThatMaySend = ['scored', 'awaiting_signature'];
 export async function sendForSignature(
   viewer: SessionUser,
   assessmentId: string,
-  options: { expiresInDays?: number } & RequestFacts,
+  options: { expiresInDays?: number; recipient?: string } & RequestFacts,
 ): Promise<SentForSignature> {
   const knex = db();
   const before = await loadAssessmentForReport(knex, viewer.organisationId, assessmentId);
@@ -49,10 +49,11 @@ export async function sendForSignature(
   if (!statusesThatMaySend.includes(before.status)) {
     throw new HttpProblem(409, `Only a scored assessment can be sent for signature; this one is ${before.status.replace(/_/g, ' ')}.`);
   }
-  const recipient = before.client_contact_email;
+  const chosen = options.recipient?.trim() || null;
+  const recipient = chosen ?? before.client_contact_email;
   if (!recipient) {
     throw new HttpProblem(422, 'The client has no contact e-mail address to send the link to.', {
-      errors: [{ field: 'client.contactEmail', message: 'add the client’s e-mail address first' }],
+      errors: [{ field: 'recipient', message: 'choose who receives the link, or add the client’s e-mail address first' }],
     });
   }
   const documentId = randomUUID();
@@ -124,6 +125,8 @@ export async function sendForSignature(
       detail: {
         signRequestId: request.id,
         recipient,
+        recipientChosen: chosen !== null,
+        clientContactEmail: before.client_contact_email ?? null,
         expiresAt: new Date(request.expires_at).toISOString(),
         documentId: document.id,
         documentSha256: document.sha256,

@@ -8,7 +8,9 @@ import { SendForSignatureSchema, sendForSignature } from '@/lib/server/signing';
 /**
  * Sends a scored assessment to the client's contact for signature: renders and stores the
  * copy they will read, opens a single-use link (default 14 days) and queues the e-mail. Sending
- * again while it awaits a signature replaces the earlier link. Body: `{ "expiresInDays"?: n }`.
+ * again while it awaits a signature replaces the earlier link. Body:
+ * `{ "expiresInDays"?: n, "recipient"?: "e-mail" }`; the link goes only to `recipient` when given
+ * (stored on the sign request and audited), else to the client's contact e-mail.
  */
 export const POST: APIRoute = handle(async (context) => {
   const { user } = requireRole(context.locals, 'owner', 'office', 'auditor');
@@ -17,6 +19,7 @@ export const POST: APIRoute = handle(async (context) => {
   const body = hasBody ? await parseBody(SendForSignatureSchema, context.request) : {};
   const sent = await sendForSignature(user, id, {
     expiresInDays: body.expiresInDays,
+    recipient: body.recipient,
     ip: clientAddressOf(context),
     userAgent: context.request.headers.get('user-agent'),
   });
