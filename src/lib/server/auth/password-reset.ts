@@ -11,63 +11,30 @@
  */
 import { recordAudit } from '../audit';
 import { db } from '../db';
-import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { hashPassword } from '../passwords';
 import { staffRoles } from '../session-user';
+import { mailOneTimeLink, type LinkRequestOutcome, type OneTimeLinkKind } from './email-links';
 import { passwordResetMail } from './mails';
-import { linkOrigin } from './public-origin';
-import { checkThrottle, recordAttempt } from './throttle';
-import { hashLinkToken, looksLikeLinkToken, newLinkToken } from './tokens';
+import { hashLinkToken, looksLikeLinkToken } from './tokens';
 
 /** Long enough to find the mail; short enough that an old mail in an inbox is useless. */
 export const passwordResetMinutes = 30;
 
-export type ResetRequestOutcome = { outcome: 'accepted' } | { outcome: 'throttled'; retryAfterSeconds: number };
+export type ResetRequestOutcome = LinkRequestOutcome;
 
-export async function requestPasswordReset(email: string, ip: string | null): Promise<ResetRequestOutcome> {
-  const address = email.trim().toLowerCase();
-  const prepared = await db().transaction(async (trx) => {
-    await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`password-reset:${address}`]);
-    const throttle = await checkThrottle(trx, 'reset_request', address, ip);
-    if (throttle.throttled) return { kind: 'throttled' as const, retryAfterSeconds: throttle.retryAfterSeconds };
-    const person = await trx('users as u')
-      .join('organisations as o', 'o.id', 'u.organisation_id')
-      .whereRaw('u.email = ?::citext', [address])
-      .andWhere({ 'u.active': true })
-      .whereIn('u.role', staffRoles as string[])
-      .first('u.id', 'u.email', 'u.name', 'u.organisation_id', 'o.name as organisation_name');
-    await recordAttempt(trx, 'reset_request', address, ip, Boolean(person));
-    if (!person) return { kind: 'unknown' as const };
-    const token = newLinkToken();
-    await trx('sign_in_links').insert({
-      user_id: person.id,
-      purpose: 'password_reset',
-      token_hash: hashLinkToken(token),
-      expires_at: new Date(Date.now() + passwordResetMinutes * 60_000),
-      requested_ip: ip,
-    });
-    const mail = passwordResetMail(person, person.organisation_name, `${linkOrigin()}/signin/reset?token=${token}`, passwordResetMinutes);
-    await enqueueMail(trx, {
-      organisationId: person.organisation_id,
-      kind: 'password_reset',
-      to: [person.email],
-      ...mail,
-      relatedType: 'user',
-      relatedId: person.id,
-    });
-    await recordAudit(trx, {
-      organisationId: person.organisation_id,
-      actorLabel: person.email,
-      action: 'password.reset_requested',
-      entityType: 'user',
-      entityId: person.id,
-      ip,
-    });
-    return { kind: 'queued' as const };
-  });
-  if (prepared.kind === 'throttled') return { outcome: 'throttled', retryAfterSeconds: prepared.retryAfterSeconds };
-  if (prepared.kind === 'queued') wakeOutboxWorker();
-  return { outcome: 'accepted' };
+const passwordResetLink: OneTimeLinkKind = {
+  purpose: 'password_reset',
+  throttleKind: 'reset_request',
+  roles: staffRoles,
+  validMinutes: passwordResetMinutes,
+  path: '/signin/reset',
+  mail: passwordResetMail,
+  mailKind: 'password_reset',
+  auditAction: 'password.reset_requested',
+};
+
+export function requestPasswordReset(email: string, ip: string | null): Promise<ResetRequestOutcome> {
+  return mailOneTimeLink(passwordResetLink, email, ip);
 }
 
 /**
