@@ -87,14 +87,22 @@ export default defineConfig({
     jwt({ token, user }) {
       if (user) {
         const sessionVersion = (user as { sessionVersion?: unknown }).sessionVersion;
-        return { sub: user.id, name: user.name, email: user.email, sessionVersion: typeof sessionVersion === 'number' ? sessionVersion : undefined, sid: randomUUID() };
+        return {
+          sub: user.id,
+          name: user.name,
+          email: user.email,
+          sessionVersion: typeof sessionVersion === 'number' ? sessionVersion : undefined,
+          sid: randomUUID(),
+        };
       }
       return token;
     },
     /** GET /api/auth/session answers only while the session still holds, like every page. */
     async session({ session, token }) {
       const current =
-        token.sub && typeof token.sessionVersion === 'number' && typeof token.sid === 'string' ? await loadSession(token.sub, token.sessionVersion, token.sid) : null;
+        token.sub && typeof token.sessionVersion === 'number' && typeof token.sid === 'string'
+          ? await loadSession(token.sub, token.sessionVersion, token.sid)
+          : null;
       if (!current) return { expires: session.expires, user: undefined } as unknown as typeof session;
       return { ...session, user: { ...session.user, id: current.user.id, name: current.user.name, email: current.user.email } };
     },

@@ -307,8 +307,15 @@ export async function ensureDatabase(): Promise<DatabaseEndpoints> {
     fs.writeFileSync(pwFile, password, { mode: 0o600 });
     if (account.uid !== undefined) fs.chownSync(pwFile, account.uid, account.gid!);
     const init = runAs(account, path.join(bin, 'initdb'), [
-      '-D', dirs.data, '-U', superuser, `--pwfile=${pwFile}`,
-      '--auth-local=scram-sha-256', '--auth-host=scram-sha-256', '--encoding=UTF8', '--locale=C.UTF-8',
+      '-D',
+      dirs.data,
+      '-U',
+      superuser,
+      `--pwfile=${pwFile}`,
+      '--auth-local=scram-sha-256',
+      '--auth-host=scram-sha-256',
+      '--encoding=UTF8',
+      '--locale=C.UTF-8',
     ]);
     fs.rmSync(pwFile, { force: true });
     if (init.status !== 0) throw new Error(`initdb failed:\n${init.stdout}\n${init.stderr}`);
@@ -320,9 +327,12 @@ export async function ensureDatabase(): Promise<DatabaseEndpoints> {
     clearStalePidFile(dirs.data);
     log(`starting PostgreSQL on 127.0.0.1:${port}`);
     const options = `-c listen_addresses=127.0.0.1 -p ${port} -k ${dirs.run} -c max_connections=200 -c shared_buffers=256MB -c fsync=${process.env.LATCHWELL_PG_FSYNC ?? 'on'}`;
-    const started = runAs(account, path.join(bin, 'pg_ctl'), [
-      'start', '-D', dirs.data, '-l', path.join(dirs.data, 'server.log'), '-w', '-t', '60', '-o', options,
-    ], { stdio: ['ignore', 'pipe', 'pipe'] });
+    const started = runAs(
+      account,
+      path.join(bin, 'pg_ctl'),
+      ['start', '-D', dirs.data, '-l', path.join(dirs.data, 'server.log'), '-w', '-t', '60', '-o', options],
+      { stdio: ['ignore', 'pipe', 'pipe'] },
+    );
     if (started.status !== 0) {
       const tail = fs.existsSync(path.join(dirs.data, 'server.log'))
         ? fs.readFileSync(path.join(dirs.data, 'server.log'), 'utf8').split('\n').slice(-15).join('\n')

@@ -58,7 +58,9 @@ export async function down(knex: Knex): Promise<void> {
   await knex.raw('drop index if exists gates_organisation_kind');
   await knex.raw('drop index if exists sites_address_trgm');
   await knex.raw('drop index if exists clients_name_trgm');
-  await knex.raw('alter table gates drop constraint if exists gates_width_positive, drop constraint if exists gates_height_positive, drop constraint if exists gates_weight_positive');
+  await knex.raw(
+    'alter table gates drop constraint if exists gates_width_positive, drop constraint if exists gates_height_positive, drop constraint if exists gates_weight_positive',
+  );
   await knex.schema.alterTable('gates', (t) => {
     t.dropColumn('entered');
   });

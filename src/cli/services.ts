@@ -117,7 +117,13 @@ export interface RunningServer {
 }
 
 /** Starts the built server and resolves once /api/health answers (any status). */
-export async function startAppServer(options: { port: number; host?: string; env: Record<string, string>; quiet?: boolean; entry?: string }): Promise<RunningServer> {
+export async function startAppServer(options: {
+  port: number;
+  host?: string;
+  env: Record<string, string>;
+  quiet?: boolean;
+  entry?: string;
+}): Promise<RunningServer> {
   const host = options.host ?? '127.0.0.1';
   const child = spawn(process.execPath, [options.entry ?? process.env.LATCHWELL_SERVER_ENTRY ?? serverEntry], {
     cwd: projectRoot,
@@ -132,7 +138,10 @@ export async function startAppServer(options: { port: number; host?: string; env
   const deadline = Date.now() + 30_000;
   for (;;) {
     if (child.exitCode !== null || child.signalCode !== null) throw new Error(`server exited with ${child.exitCode ?? child.signalCode}: ${stderr}`);
-    const ok = await fetch(`${url}/api/health`).then(() => true, () => false);
+    const ok = await fetch(`${url}/api/health`).then(
+      () => true,
+      () => false,
+    );
     if (ok) break;
     if (Date.now() > deadline) {
       child.kill('SIGKILL');

@@ -31,7 +31,12 @@ try {
   // Browser journeys run after the rest, not beside it: they share the test database with the
   // integration files (some of which briefly tamper with shared tables on purpose) and the
   // machine's two cores with everything else.
-  const phases = only ? [['--project', only]] : [['--project', 'unit', '--project', 'integration'], ['--project', 'e2e']];
+  const phases = only
+    ? [['--project', only]]
+    : [
+        ['--project', 'unit', '--project', 'integration'],
+        ['--project', 'e2e'],
+      ];
   status = 0;
   for (const phase of phases) {
     const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), 'run', ...phase, ...passthrough], {

@@ -198,9 +198,7 @@ export function formatLength(mm: number, system: UnitSystem, options: FormatLeng
 
 /** Formats a stored force (N) as newtons or pounds-force, 0.1 precision. */
 export function formatForce(newtons: number, system: UnitSystem): string {
-  return system === 'metric'
-    ? `${trimmed(finite(newtons, 'Force'), 1)} N`
-    : `${trimmed(fromNewtons(newtons, 'lbf'), 1)} lbf`;
+  return system === 'metric' ? `${trimmed(finite(newtons, 'Force'), 1)} N` : `${trimmed(fromNewtons(newtons, 'lbf'), 1)} lbf`;
 }
 
 /** Formats a stored mass (kg) as kilograms or pounds, 0.1 precision. */
@@ -210,9 +208,7 @@ export function formatMass(kg: number, system: UnitSystem): string {
 
 /** Formats a stored speed (m/s) as m/s or ft/s, 0.01 precision. */
 export function formatSpeed(metresPerSecond: number, system: UnitSystem): string {
-  return system === 'metric'
-    ? `${trimmed(finite(metresPerSecond, 'Speed'), 2)} m/s`
-    : `${trimmed(fromMetresPerSecond(metresPerSecond, 'ft/s'), 2)} ft/s`;
+  return system === 'metric' ? `${trimmed(finite(metresPerSecond, 'Speed'), 2)} m/s` : `${trimmed(fromMetresPerSecond(metresPerSecond, 'ft/s'), 2)} ft/s`;
 }
 
 /** Shows a measurement exactly as the technician entered it ("16 in"). */

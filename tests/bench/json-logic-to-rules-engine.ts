@@ -92,7 +92,8 @@ export function referenceEngineFor(version: RulesetVersion): ReferenceEngine {
       untranslated.push(rule.id);
       continue;
     }
-    const conditions: TopLevelCondition = 'all' in condition || 'any' in condition || 'not' in condition ? (condition as TopLevelCondition) : { all: [condition] };
+    const conditions: TopLevelCondition =
+      'all' in condition || 'any' in condition || 'not' in condition ? (condition as TopLevelCondition) : { all: [condition] };
     engine.addRule({ name: rule.id, conditions, event: { type: rule.id } });
     translated += 1;
   }

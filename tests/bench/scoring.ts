@@ -11,16 +11,7 @@
 import { readFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import {
-  AssessmentInputSchema,
-  buildFacts,
-  compileRuleset,
-  loadRulesetFile,
-  score,
-  scoreParsed,
-  type AssessmentInput,
-  type LoadedRuleset,
-} from '@/lib/rules';
+import { AssessmentInputSchema, buildFacts, compileRuleset, loadRulesetFile, score, scoreParsed, type AssessmentInput, type LoadedRuleset } from '@/lib/rules';
 import { generateInput } from '../unit/rules/support/generate-input';
 import { createPrng } from '../unit/rules/support/prng';
 import { shippedRulesetFiles } from '../unit/rules/support/shipped';
@@ -148,7 +139,11 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     untranslatedRules: untranslated.length,
   };
 
-  console.log(`Machine: load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; calibration ${calibration} µs per JSON.stringify of a 50-key object`);
+  console.log(
+    `Machine: load average ${loadavg()
+      .map((l) => l.toFixed(1))
+      .join(' ')}; calibration ${calibration} µs per JSON.stringify of a 50-key object`,
+  );
   console.log(`Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`);
   console.log(`  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`);
   console.log(

@@ -124,7 +124,10 @@ describe('an assessment from draft to scored', () => {
       const res = await patch(auditor, id, 3, body);
       expect(res.status, field).toBe(422);
       const problem = await res.json();
-      expect(problem.errors.map((e: { field: string }) => e.field), field).toContain(field);
+      expect(
+        problem.errors.map((e: { field: string }) => e.field),
+        field,
+      ).toContain(field);
     }
     expect((await testDb()('assessments').where({ id }).first('row_version')).row_version).toBe(3);
   });
@@ -161,7 +164,9 @@ describe('an assessment from draft to scored', () => {
     expect(scored.submittedAt).not.toBeNull();
     expect(scored.gateSnapshot).toMatchObject({ id: dir.gateId, kind: 'swing', widthMm: 3660, site: { id: dir.siteId, usageClass: 2 } });
 
-    const stored = await testDb()('assessments').where({ id }).first('result', 'result_sha256', 'verdict', 'status', 'answers', 'measurements', 'observations', 'ruleset_version_id');
+    const stored = await testDb()('assessments')
+      .where({ id })
+      .first('result', 'result_sha256', 'verdict', 'status', 'answers', 'measurements', 'observations', 'ruleset_version_id');
     expect(stored.result_sha256).toMatch(/^[0-9a-f]{64}$/);
     // What jsonb kept hashes to what was stored…
     expect(resultSha256(stored.result)).toBe(stored.result_sha256);
@@ -193,7 +198,11 @@ describe('an assessment from draft to scored', () => {
   });
 
   it('keeps a scored record fixed in the database itself', async () => {
-    await expect(testDb()('assessments').where({ id }).update({ verdict: 'clear', result_sha256: '0'.repeat(64) })).rejects.toThrow(/scored record cannot change/);
+    await expect(
+      testDb()('assessments')
+        .where({ id })
+        .update({ verdict: 'clear', result_sha256: '0'.repeat(64) }),
+    ).rejects.toThrow(/scored record cannot change/);
     await expect(testDb()('assessments').where({ id }).delete()).rejects.toThrow(/cannot be deleted/);
   });
 });

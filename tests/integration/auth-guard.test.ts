@@ -85,17 +85,29 @@ describe('cross-site writes', () => {
 
   it('refuse a write whose only Referer is another site', async () => {
     const headers = new Headers({ referer: 'https://elsewhere.test/page', 'content-type': 'application/json' });
-    const res = await fetch(`${baseUrl}/api/organisation`, { method: 'PATCH', headers: { ...Object.fromEntries(headers), cookie: owner.cookie }, body: JSON.stringify({ name: 'Taken over' }) });
+    const res = await fetch(`${baseUrl}/api/organisation`, {
+      method: 'PATCH',
+      headers: { ...Object.fromEntries(headers), cookie: owner.cookie },
+      body: JSON.stringify({ name: 'Taken over' }),
+    });
     expect(res.status).toBe(403);
   });
 
   it('refuse an opaque (null) Origin', async () => {
-    const res = await owner.fetch('/api/organisation', { method: 'PATCH', headers: { origin: 'null', 'content-type': 'application/json' }, body: JSON.stringify({ name: 'Taken over' }) });
+    const res = await owner.fetch('/api/organisation', {
+      method: 'PATCH',
+      headers: { origin: 'null', 'content-type': 'application/json' },
+      body: JSON.stringify({ name: 'Taken over' }),
+    });
     expect(res.status).toBe(403);
   });
 
   it('refuse a cross-site form post to sign out', async () => {
-    const res = await owner.fetch('/auth/signout', { method: 'POST', headers: { origin: 'https://elsewhere.test', 'content-type': 'application/x-www-form-urlencoded' }, body: '' });
+    const res = await owner.fetch('/auth/signout', {
+      method: 'POST',
+      headers: { origin: 'https://elsewhere.test', 'content-type': 'application/x-www-form-urlencoded' },
+      body: '',
+    });
     expect(res.status).toBe(403);
     expect(hasSession(owner)).toBe(true);
     expect((await owner.json('GET', '/api/organisation')).status).toBe(200);
@@ -164,7 +176,11 @@ describe('signing out', () => {
     const fresh = await createOrganisation('sign-out-core');
     const auditor = await signIn(fresh.auditor.email, fixturePassword);
     const { csrfToken } = await (await auditor.fetch('/api/auth/csrf')).json();
-    const res = await auditor.fetch('/api/auth/signout', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams({ csrfToken }) });
+    const res = await auditor.fetch('/api/auth/signout', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ csrfToken }),
+    });
     expect(res.status).toBeGreaterThanOrEqual(300);
     expect(hasSession(auditor)).toBe(false);
     const events = await testDb()('audit_events').where({ organisation_id: fresh.id, action: 'sign_out' }).count({ n: '*' });

@@ -70,7 +70,10 @@ describe('homeowner sign-in by e-mailed link', () => {
   it('refuses an expired link and says so on the sign-in page', async () => {
     const fresh = await createOrganisation('link-expired');
     const link = await requestHomeownerLink(fresh.homeowner.email);
-    await testDb()('sign_in_links').where({ user_id: fresh.homeowner.id }).whereNull('used_at').update({ expires_at: new Date(Date.now() - 1000) });
+    await testDb()('sign_in_links')
+      .where({ user_id: fresh.homeowner.id })
+      .whereNull('used_at')
+      .update({ expires_at: new Date(Date.now() - 1000) });
     const client = anonymousClient();
     const page = await client.fetch(new URL(link).pathname + new URL(link).search);
     const csrfToken = /name="csrfToken" value="([^"]+)"/.exec(await page.text())?.[1] ?? '';

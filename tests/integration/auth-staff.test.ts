@@ -64,9 +64,12 @@ describe('invitations', () => {
     const me = await (await owner.json('GET', `/api/users/${created.id}`)).json();
     expect(me).toMatchObject({ email, name: 'Rowan Tessaly', role: 'office', active: true });
 
-    const actions = (await testDb()('audit_events').where({ organisation_id: org.id }).whereIn('action', ['invitation.created', 'invitation.accepted']).select('action', 'detail')).filter(
-      (e) => e.detail.email === email || e.detail.role === 'office',
-    );
+    const actions = (
+      await testDb()('audit_events')
+        .where({ organisation_id: org.id })
+        .whereIn('action', ['invitation.created', 'invitation.accepted'])
+        .select('action', 'detail')
+    ).filter((e) => e.detail.email === email || e.detail.role === 'office');
     expect(actions.map((e) => e.action).sort()).toEqual(['invitation.accepted', 'invitation.created']);
   });
 
@@ -83,7 +86,9 @@ describe('invitations', () => {
   it('refuse an expired or withdrawn link', async () => {
     const expiredEmail = newAddress();
     const expiredToken = new URL(await invite(expiredEmail, 'auditor')).pathname.split('/').pop();
-    await testDb()('invitations').whereRaw('email = ?::citext', [expiredEmail]).update({ expires_at: new Date(Date.now() - 1000) });
+    await testDb()('invitations')
+      .whereRaw('email = ?::citext', [expiredEmail])
+      .update({ expires_at: new Date(Date.now() - 1000) });
     expect((await anonymousClient().json('POST', `/api/invitations/${expiredToken}/accept`, { name: 'Late', password: 'late-password-1' })).status).toBe(404);
     expect((await anonymousClient().fetch(`/invite/${expiredToken}`)).status).toBe(404);
 
@@ -172,14 +177,23 @@ describe('the people API', () => {
     const freshOwner = await signIn(fresh.owner.email, fixturePassword);
     await freshOwner.json('PATCH', `/api/users/${fresh.auditor.id}`, { role: 'office' });
     await freshOwner.json('PATCH', `/api/users/${fresh.auditor2.id}`, { active: false });
-    const events = await testDb()('audit_events').where({ organisation_id: fresh.id }).whereIn('action', ['user.role_changed', 'user.deactivated']).orderBy('id').select('action', 'entity_id', 'actor_user_id', 'detail');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: fresh.id })
+      .whereIn('action', ['user.role_changed', 'user.deactivated'])
+      .orderBy('id')
+      .select('action', 'entity_id', 'actor_user_id', 'detail');
     expect(events).toEqual([
-      { action: 'user.role_changed', entity_id: fresh.auditor.id, actor_user_id: fresh.owner.id, detail: { email: fresh.auditor.email, from: 'auditor', to: 'office' } },
+      {
+        action: 'user.role_changed',
+        entity_id: fresh.auditor.id,
+        actor_user_id: fresh.owner.id,
+        detail: { email: fresh.auditor.email, from: 'auditor', to: 'office' },
+      },
       { action: 'user.deactivated', entity_id: fresh.auditor2.id, actor_user_id: fresh.owner.id, detail: { email: fresh.auditor2.email } },
     ]);
   });
 
-  it("refuses a staff role for a homeowner", async () => {
+  it('refuses a staff role for a homeowner', async () => {
     const res = await owner.json('PATCH', `/api/users/${org.homeowner.id}`, { role: 'office' });
     expect(res.status).toBe(422);
   });
@@ -194,7 +208,10 @@ describe('organisation settings', () => {
     const changed = await owner.json('PATCH', '/api/organisation', { displayUnits: 'imperial', timeZone: 'America/Denver', remindClients: true });
     expect(changed.status).toBe(200);
     expect(await changed.json()).toMatchObject({ displayUnits: 'imperial', timeZone: 'America/Denver', remindClients: true });
-    const event = await testDb()('audit_events').where({ organisation_id: org.id, action: 'organisation.settings_changed' }).orderBy('id', 'desc').first('detail');
+    const event = await testDb()('audit_events')
+      .where({ organisation_id: org.id, action: 'organisation.settings_changed' })
+      .orderBy('id', 'desc')
+      .first('detail');
     expect(event.detail.timeZone).toEqual({ from: 'UTC', to: 'America/Denver' });
   });
 
@@ -221,7 +238,11 @@ describe('the owner pages', () => {
   it('invite through the staff page form', async () => {
     const email = newAddress();
     const seen = await caughtMailIds(email);
-    const res = await owner.fetch('/staff', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams({ intent: 'invite', email, role: 'auditor' }) });
+    const res = await owner.fetch('/staff', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ intent: 'invite', email, role: 'auditor' }),
+    });
     expect(res.status).toBe(303);
     expect(res.headers.get('location')).toBe('/staff?done=invited');
     const mail = await waitForMail(email, seen);
@@ -237,10 +258,18 @@ describe('the owner pages', () => {
   });
 
   it('save settings through the settings form and show field errors', async () => {
-    const bad = await owner.fetch('/settings', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Nowhere/Special', reinspectionMonths: '12' }) });
+    const bad = await owner.fetch('/settings', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Nowhere/Special', reinspectionMonths: '12' }),
+    });
     expect(bad.status).toBe(422);
     expect(await bad.text()).toContain('Time zone must be a time zone name');
-    const good = await owner.fetch('/settings', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Europe/Dublin', reinspectionMonths: '24', remindClients: 'on' }) });
+    const good = await owner.fetch('/settings', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Europe/Dublin', reinspectionMonths: '24', remindClients: 'on' }),
+    });
     expect(good.status).toBe(303);
     const row = await testDb()('organisations').where({ id: org.id }).first('time_zone', 'reinspection_months', 'remind_clients');
     expect(row).toEqual({ time_zone: 'Europe/Dublin', reinspection_months: 24, remind_clients: true });

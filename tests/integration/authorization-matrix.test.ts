@@ -11,7 +11,16 @@ import fs from 'node:fs';
 import path from 'node:path';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { anonymousClient, createOrganisation, fixturePassword, signIn, signInHomeowner, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  anonymousClient,
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  signInHomeowner,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { makePkcs12, type TestPkcs12 } from './support/pkcs12';
 import { insertClient, insertDraft, insertGate, insertSite, publishedFamilies, currentVersion, seedDirectory, type Directory } from './support/domain';
 
@@ -183,7 +192,9 @@ const matrix: Row[] = [
 /** An 8 × 8 grey PNG, made on the spot. */
 let png: Buffer | undefined;
 async function photoForm(): Promise<FormData> {
-  png ??= await sharp({ create: { width: 8, height: 8, channels: 3, background: '#8a8a8a' } }).png().toBuffer();
+  png ??= await sharp({ create: { width: 8, height: 8, channels: 3, background: '#8a8a8a' } })
+    .png()
+    .toBuffer();
   const form = new FormData();
   form.set('photo', new Blob([new Uint8Array(png)], { type: 'image/png' }), 'gate.png');
   form.set('itemKey', 'closingEdge');
@@ -208,11 +219,16 @@ function declaredRoutes(): string[] {
   const found: string[] = [];
   for (const file of fs.readdirSync(apiRoot, { recursive: true, encoding: 'utf8' })) {
     if (!/\.(ts|js|mjs)$/.test(file)) continue;
-    const route = file.replace(/\.(ts|js|mjs)$/, '').split(path.sep).join('/');
+    const route = file
+      .replace(/\.(ts|js|mjs)$/, '')
+      .split(path.sep)
+      .join('/');
     const source = fs.readFileSync(path.join(apiRoot, file), 'utf8');
     const methods = new Set<string>();
-    for (const m of source.matchAll(/export\s+(?:const|async\s+function|function)\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(m[1] as string);
-    for (const m of source.matchAll(/export\s*\{([^}]*)\}/g)) for (const name of (m[1] as string).matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(name[1] as string);
+    for (const m of source.matchAll(/export\s+(?:const|async\s+function|function)\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g))
+      methods.add(m[1] as string);
+    for (const m of source.matchAll(/export\s*\{([^}]*)\}/g))
+      for (const name of (m[1] as string).matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(name[1] as string);
     for (const method of methods) found.push(`${route} ${method}`);
   }
   return found.sort();
@@ -224,9 +240,18 @@ let sentDocument: Promise<string> | undefined;
 
 async function send(client: TestClient, method: string, call: Call): Promise<Response> {
   if (call.multipart) return client.fetch(call.path, { method, headers: { accept: 'application/json', ...call.headers }, body: call.multipart });
-  if (call.raw) return client.fetch(call.path, { method, headers: { accept: 'application/json', 'content-type': call.raw.contentType, ...call.headers }, body: call.raw.text });
+  if (call.raw)
+    return client.fetch(call.path, {
+      method,
+      headers: { accept: 'application/json', 'content-type': call.raw.contentType, ...call.headers },
+      body: call.raw.text,
+    });
   if (call.form !== undefined) {
-    return client.fetch(call.path, { method, headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json', ...call.headers }, body: call.form });
+    return client.fetch(call.path, {
+      method,
+      headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json', ...call.headers },
+      body: call.form,
+    });
   }
   const headers: Record<string, string> = { accept: 'application/json', ...call.headers };
   if (call.body !== undefined) headers['content-type'] = 'application/json';
@@ -290,7 +315,10 @@ beforeAll(async () => {
     },
     async freshTrace() {
       const draftId = await targets.freshDraft();
-      const res = await send(clients.owner, 'POST', { path: `/api/assessments/${draftId}/force-traces?${traceQuery}`, raw: { contentType: 'text/csv', text: forceTraceCsv } });
+      const res = await send(clients.owner, 'POST', {
+        path: `/api/assessments/${draftId}/force-traces?${traceQuery}`,
+        raw: { contentType: 'text/csv', text: forceTraceCsv },
+      });
       if (res.status !== 201) throw new Error(`trace upload answered ${res.status}: ${await res.text()}`);
       return { draftId, traceId: (await res.json()).id };
     },
@@ -309,8 +337,14 @@ describe('authorization matrix', () => {
   it('has a row for every route and method under src/pages/api, and none for routes that are gone', () => {
     const declared = declaredRoutes();
     const covered = matrix.map((r) => `${r.route} ${r.method}`);
-    expect(declared.filter((k) => !covered.includes(k)), 'routes without a matrix row').toEqual([]);
-    expect(covered.filter((k) => !declared.includes(k)), 'matrix rows for routes that do not exist').toEqual([]);
+    expect(
+      declared.filter((k) => !covered.includes(k)),
+      'routes without a matrix row',
+    ).toEqual([]);
+    expect(
+      covered.filter((k) => !declared.includes(k)),
+      'matrix rows for routes that do not exist',
+    ).toEqual([]);
     expect(new Set(covered).size, 'each route and method once').toBe(covered.length);
   });
 

@@ -75,7 +75,9 @@ describe('saving a draft from two devices', () => {
 
   it('lets a submit and a save from the same version race without losing either silently', async () => {
     const id = await newDraft();
-    const ready = await save(tablet, id, 1, { observations: { site: { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false } } });
+    const ready = await save(tablet, id, 1, {
+      observations: { site: { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false } },
+    });
     expect(ready.status).toBe(200);
     const [submitted, saved] = await Promise.all([
       tablet.fetch(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'if-match': '"2"', accept: 'application/json' } }),

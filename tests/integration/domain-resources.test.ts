@@ -29,7 +29,12 @@ beforeAll(async () => {
 
 describe('clients', () => {
   it('creates a client and reads it back, with its location', async () => {
-    const res = await office.json('POST', '/api/clients', { name: 'Hollowbrook Estates', kind: 'business', contactEmail: 'gates@hollowbrook.test', phone: '+1 555 0142' });
+    const res = await office.json('POST', '/api/clients', {
+      name: 'Hollowbrook Estates',
+      kind: 'business',
+      contactEmail: 'gates@hollowbrook.test',
+      phone: '+1 555 0142',
+    });
     expect(res.status).toBe(201);
     const created = await res.json();
     expect(created).toMatchObject({ name: 'Hollowbrook Estates', kind: 'business', contactEmail: 'gates@hollowbrook.test', phone: '+1 555 0142', notes: null });
@@ -163,7 +168,13 @@ describe('gates', () => {
     // 12 ft = 3657.6 mm; 300 lb = 136.08 kg (NIST SP 811 exact factors), stored whole.
     expect(gate).toMatchObject({ widthMm: 3658, heightMm: 1830, weightKg: 136, installedOn: '2021-04-12', nextInspectionDue: '2027-04-12' });
     expect(gate.entered).toEqual({ width: { value: 12, unit: 'ft' }, height: { value: 1830, unit: 'mm' }, weight: { value: 300, unit: 'lb' } });
-    const patched = await (await office.json('PATCH', `/api/gates/${gate.id}`, { widthMm: null, height: { value: 6, unit: 'ft' }, operator: { automaticClosing: false, model: null } })).json();
+    const patched = await (
+      await office.json('PATCH', `/api/gates/${gate.id}`, {
+        widthMm: null,
+        height: { value: 6, unit: 'ft' },
+        operator: { automaticClosing: false, model: null },
+      })
+    ).json();
     expect(patched).toMatchObject({ widthMm: null, heightMm: 1829, weightKg: 136 });
     // Operator facts merge: the ones not sent stay, null removes one.
     expect(patched.operator).toEqual({ listed: true, automaticClosing: false, manufacturedOn: '2021-03-01', mounting: 'pad', power: 'mains_ac' });
@@ -177,7 +188,13 @@ describe('gates', () => {
     expect((await both.json()).errors).toEqual([{ field: 'width', message: 'send either widthMm or width, not both' }]);
     const stone = await owner.json('POST', '/api/gates', { ...gate, weight: { value: 2, unit: 'stone' } });
     expect((await stone.json()).errors).toEqual([{ field: 'weight.unit', message: 'must be one of: kg, lb' }]);
-    const tooWide = await owner.json('POST', '/api/gates', { siteId: dir.siteId, label: 'x', kind: 'swing', leaves: 'single', width: { value: 300, unit: 'm' } });
+    const tooWide = await owner.json('POST', '/api/gates', {
+      siteId: dir.siteId,
+      label: 'x',
+      kind: 'swing',
+      leaves: 'single',
+      width: { value: 300, unit: 'm' },
+    });
     expect((await tooWide.json()).errors).toEqual([{ field: 'width', message: expect.stringMatching(/between 100 and 60000 mm/) }]);
   });
 

@@ -28,7 +28,11 @@ async function snapshot() {
   for (const table of ['users', 'ruleset_versions', 'outbox_messages']) {
     extra[table] =
       table === 'ruleset_versions'
-        ? await testDb()('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where('r.organisation_id', org.id).orderBy('rv.id').select('rv.*')
+        ? await testDb()('ruleset_versions as rv')
+            .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+            .where('r.organisation_id', org.id)
+            .orderBy('rv.id')
+            .select('rv.*')
         : await testDb()(table).where({ organisation_id: org.id }).orderBy('id').select('*');
   }
   extra.organisation = await testDb()('organisations').where({ id: org.id }).first();
@@ -63,14 +67,39 @@ const hostileJson = fc.oneof(
   fc.jsonValue().filter((v) => v === null || typeof v !== 'object' || Array.isArray(v)),
   fc
     .record({
-      known: fc.dictionary(fc.constantFrom('name', 'kind', 'gateId', 'family', 'answers', 'measurements', 'role', 'email', 'input', 'siteId', 'clientId', 'usageClass', 'timeZone'), fc.jsonValue(), { maxKeys: 5 }),
+      known: fc.dictionary(
+        fc.constantFrom(
+          'name',
+          'kind',
+          'gateId',
+          'family',
+          'answers',
+          'measurements',
+          'role',
+          'email',
+          'input',
+          'siteId',
+          'clientId',
+          'usageClass',
+          'timeZone',
+        ),
+        fc.jsonValue(),
+        { maxKeys: 5 },
+      ),
       unknown: fc.string({ minLength: 1, maxLength: 12 }).map((s) => `zz${s.replace(/[^a-zA-Z0-9]/g, '')}x`),
       value: fc.jsonValue(),
     })
     .map(({ known, unknown, value }) => ({ ...known, [unknown]: value })),
 );
 
-const sqlish = fc.constantFrom("'; drop table clients; --", "Robert'); DELETE FROM users;--", '" OR 1=1 --', '\\x00\u0000', '${7*7}', '<script>alert(1)</script>');
+const sqlish = fc.constantFrom(
+  "'; drop table clients; --",
+  "Robert'); DELETE FROM users;--",
+  '" OR 1=1 --',
+  '\\x00\u0000',
+  '${7*7}',
+  '<script>alert(1)</script>',
+);
 
 describe('hostile input', () => {
   it('answers random JSON bodies on every write endpoint with 4xx and changes nothing', { timeout: 120_000 }, async () => {
@@ -99,12 +128,16 @@ describe('hostile input', () => {
     const bodies = fc.oneof(fc.string({ maxLength: 200 }), fc.constantFrom('{', '{"name":', '[1,2', 'null null', '\u0000\u0001'));
     for (const endpoint of writeEndpoints()) {
       await fc.assert(
-        fc.asyncProperty(bodies, fc.constantFrom('application/json', 'text/plain', 'application/x-www-form-urlencoded', 'multipart/form-data; boundary=x'), async (body, type) => {
-          const res = await owner.fetch(endpoint.path, { method: endpoint.method, headers: { 'content-type': type, ...(endpoint.headers ?? {}) }, body });
-          await res.arrayBuffer();
-          expect(res.status, `${endpoint.method} ${endpoint.path} as ${type}: ${JSON.stringify(body)}`).toBeGreaterThanOrEqual(400);
-          expect(res.status).toBeLessThan(500);
-        }),
+        fc.asyncProperty(
+          bodies,
+          fc.constantFrom('application/json', 'text/plain', 'application/x-www-form-urlencoded', 'multipart/form-data; boundary=x'),
+          async (body, type) => {
+            const res = await owner.fetch(endpoint.path, { method: endpoint.method, headers: { 'content-type': type, ...(endpoint.headers ?? {}) }, body });
+            await res.arrayBuffer();
+            expect(res.status, `${endpoint.method} ${endpoint.path} as ${type}: ${JSON.stringify(body)}`).toBeGreaterThanOrEqual(400);
+            expect(res.status).toBeLessThan(500);
+          },
+        ),
         { numRuns: 6 },
       );
     }
@@ -134,7 +167,11 @@ describe('hostile input', () => {
     await fc.assert(
       fc.asyncProperty(bytes, names, async (content, name) => {
         const query = new URLSearchParams({ itemKey: 'forceTest', location: 'closing_edge', direction: 'closing', gapMm: '300', fileName: name });
-        const res = await owner.fetch(`/api/assessments/${draftId}/force-traces?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: content });
+        const res = await owner.fetch(`/api/assessments/${draftId}/force-traces?${query}`, {
+          method: 'POST',
+          headers: { 'content-type': 'text/csv' },
+          body: content,
+        });
         const text = await res.text();
         expect(res.status, `trace ${name}: ${text.slice(0, 300)}`).toBeGreaterThanOrEqual(400);
         expect(res.status).toBeLessThan(500);

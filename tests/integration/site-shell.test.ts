@@ -7,7 +7,10 @@ const baseUrl = inject('baseUrl');
 
 /** Every file under a folder, recursively. */
 function filesUnder(dir: string): string[] {
-  return fs.readdirSync(dir, { recursive: true, encoding: 'utf8' }).map((f) => path.join(dir, f)).filter((f) => fs.statSync(f).isFile());
+  return fs
+    .readdirSync(dir, { recursive: true, encoding: 'utf8' })
+    .map((f) => path.join(dir, f))
+    .filter((f) => fs.statSync(f).isFile());
 }
 
 describe('the public shell', () => {
@@ -37,7 +40,9 @@ describe('the public shell', () => {
     for (const file of files.filter((f) => /\.(css|js|mjs|html)$/.test(f))) {
       const text = fs.readFileSync(file, 'utf8');
       // A request to another host would appear as url(...), an import, a src/href attribute or a fetch of an absolute URL.
-      const external = text.match(/url\(\s*["']?https?:\/\/|import\s*\(?\s*["']https?:\/\/|from\s*["']https?:\/\/|(?:src|href)=["']https?:\/\/|fetch\(\s*["']https?:\/\//);
+      const external = text.match(
+        /url\(\s*["']?https?:\/\/|import\s*\(?\s*["']https?:\/\/|from\s*["']https?:\/\/|(?:src|href)=["']https?:\/\/|fetch\(\s*["']https?:\/\//,
+      );
       expect(external, `${path.relative(projectRoot, file)} references ${external?.[0]}`).toBeNull();
     }
   });

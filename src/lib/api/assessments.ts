@@ -9,14 +9,7 @@
  * (RFC 7396): a key set to null is removed, objects merge, arrays are replaced.
  */
 import { z } from 'zod';
-import {
-  EntrapmentInputSchema,
-  ForceTestSchema,
-  HrnOverrideSchema,
-  SiteContextSchema,
-  SwingGeometryInputSchema,
-  type MeasuredValue,
-} from '@/lib/rules/input';
+import { EntrapmentInputSchema, ForceTestSchema, HrnOverrideSchema, SiteContextSchema, SwingGeometryInputSchema, type MeasuredValue } from '@/lib/rules/input';
 import { IdSchema, IsoDateSchema, boundedJson, pagingShape, sortSchema } from './common';
 import { GATE_KIND_VALUES } from './gates';
 
@@ -32,7 +25,11 @@ export const ASSESSMENT_LIMITS = { answers: 500, measurements: 500 } as const;
 
 const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
 const questionKey = z.string().regex(/^[a-z][a-zA-Z0-9]{1,63}$/, 'must be a question key (camelCase letters and digits)');
-const note = z.string().trim().max(2000, 'must be at most 2000 characters').refine((s) => !s.includes('\u0000'), 'must not contain NUL characters');
+const note = z
+  .string()
+  .trim()
+  .max(2000, 'must be at most 2000 characters')
+  .refine((s) => !s.includes('\u0000'), 'must not contain NUL characters');
 const familySlug = z
   .string()
   .max(64, 'must be at most 64 characters')
@@ -100,21 +97,23 @@ export const AssessmentPatchSchema = z
   .refine((patch) => Object.keys(patch).length > 0, 'send at least one field to change');
 export type AssessmentPatch = z.infer<typeof AssessmentPatchSchema>;
 
-export const AssessmentListQuerySchema = z.strictObject({
-  status: enumOf(ASSESSMENT_STATUSES).optional(),
-  verdict: enumOf(VERDICT_VALUES).optional(),
-  gateKind: enumOf(GATE_KIND_VALUES).optional(),
-  auditorId: IdSchema.optional(),
-  gateId: IdSchema.optional(),
-  siteId: IdSchema.optional(),
-  clientId: IdSchema.optional(),
-  purpose: enumOf(ASSESSMENT_PURPOSES).optional(),
-  /** Visit date range, inclusive, as dates in the organisation's time zone. */
-  from: IsoDateSchema.optional(),
-  to: IsoDateSchema.optional(),
-  sort: sortSchema(['visitedOn', 'createdAt', 'updatedAt', 'submittedAt'], '-visitedOn'),
-  ...pagingShape,
-}).refine((q) => !q.from || !q.to || q.from <= q.to, { path: ['to'], message: 'must not be before from' });
+export const AssessmentListQuerySchema = z
+  .strictObject({
+    status: enumOf(ASSESSMENT_STATUSES).optional(),
+    verdict: enumOf(VERDICT_VALUES).optional(),
+    gateKind: enumOf(GATE_KIND_VALUES).optional(),
+    auditorId: IdSchema.optional(),
+    gateId: IdSchema.optional(),
+    siteId: IdSchema.optional(),
+    clientId: IdSchema.optional(),
+    purpose: enumOf(ASSESSMENT_PURPOSES).optional(),
+    /** Visit date range, inclusive, as dates in the organisation's time zone. */
+    from: IsoDateSchema.optional(),
+    to: IsoDateSchema.optional(),
+    sort: sortSchema(['visitedOn', 'createdAt', 'updatedAt', 'submittedAt'], '-visitedOn'),
+    ...pagingShape,
+  })
+  .refine((q) => !q.from || !q.to || q.from <= q.to, { path: ['to'], message: 'must not be before from' });
 export type AssessmentListQuery = z.infer<typeof AssessmentListQuerySchema>;
 
 export interface AssessmentSummary {

@@ -10,12 +10,7 @@ const noNul = (value: string) => !value.includes('\u0000');
 
 /** Required, trimmed, non-empty text of at most `max` characters. */
 export const text = (max: number) =>
-  z
-    .string('must be text')
-    .trim()
-    .min(1, 'must not be empty')
-    .max(max, `must be at most ${max} characters`)
-    .refine(noNul, 'must not contain NUL characters');
+  z.string('must be text').trim().min(1, 'must not be empty').max(max, `must be at most ${max} characters`).refine(noNul, 'must not contain NUL characters');
 
 /** Optional text that may also be cleared with null (or an empty string, stored as null). */
 export const optionalText = (max: number) =>

@@ -94,8 +94,18 @@ export function diffRulesets(a: RulesetVersion, b: RulesetVersion): RulesetDiff 
   return {
     from: { family: a.family, version: a.version },
     to: { family: b.family, version: b.version },
-    rules: diffItems(rulesA, rulesB, (r) => r.id, (r) => r.title),
-    questions: diffItems(questionsA, questionsB, (q) => q.key, (q) => q.prompt),
+    rules: diffItems(
+      rulesA,
+      rulesB,
+      (r) => r.id,
+      (r) => r.title,
+    ),
+    questions: diffItems(
+      questionsA,
+      questionsB,
+      (q) => q.key,
+      (q) => q.prompt,
+    ),
     version: fieldChanges(restA, restB),
   };
 }

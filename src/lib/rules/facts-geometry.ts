@@ -15,7 +15,18 @@ const geometryMemo = new Map<string, Record<string, unknown> | EvidenceProblem>(
 
 /** The geometry facts of one layout, or null (and a problem) when the layout is impossible. */
 export function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, problems: EvidenceProblem[]): Record<string, unknown> | null {
-  const key = [g.aMm, g.bMm, g.bracketFromHingeMm, g.retractedLengthMm, g.strokeMm, g.targetOpeningDeg, g.bracketOffsetMm, g.leafThicknessMm, g.operatorHalfWidthMm, g.operatorBodyLengthMm].join('|');
+  const key = [
+    g.aMm,
+    g.bMm,
+    g.bracketFromHingeMm,
+    g.retractedLengthMm,
+    g.strokeMm,
+    g.targetOpeningDeg,
+    g.bracketOffsetMm,
+    g.leafThicknessMm,
+    g.operatorHalfWidthMm,
+    g.operatorBodyLengthMm,
+  ].join('|');
   let found = geometryMemo.get(key);
   if (!found) {
     try {
@@ -33,4 +44,3 @@ export function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, 
   }
   return { ...found };
 }
-

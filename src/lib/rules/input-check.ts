@@ -46,7 +46,8 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
     if (!q) continue;
     const m = measurements[key] as { unit: string };
     if (!measured.has(q.answerType)) issues.push({ path: `measurements.${key}`, message: `"${key}" is answered as ${q.answerType}, not measured` });
-    else if (kindOfUnit(m.unit) !== q.answerType) issues.push({ path: `measurements.${key}.unit`, message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it` });
+    else if (kindOfUnit(m.unit) !== q.answerType)
+      issues.push({ path: `measurements.${key}.unit`, message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it` });
   }
   for (const key of Object.keys(input.answers ?? {})) {
     const q = questions.get(key);

@@ -22,8 +22,36 @@ export interface CompileOptions {
  * meaning never drifts from the reference library.
  */
 export const COMPILED_OPERATORS: ReadonlySet<string> = new Set([
-  'var', 'missing', 'missing_some', '==', '===', '!=', '!==', '<', '<=', '>', '>=', 'and', 'or', '!',
-  '!!', 'if', '?:', 'in', '+', '-', '*', '/', '%', 'min', 'max', 'cat', 'merge', 'all', 'some', 'none',
+  'var',
+  'missing',
+  'missing_some',
+  '==',
+  '===',
+  '!=',
+  '!==',
+  '<',
+  '<=',
+  '>',
+  '>=',
+  'and',
+  'or',
+  '!',
+  '!!',
+  'if',
+  '?:',
+  'in',
+  '+',
+  '-',
+  '*',
+  '/',
+  '%',
+  'min',
+  'max',
+  'cat',
+  'merge',
+  'all',
+  'some',
+  'none',
 ]);
 
 /** JSON Logic truthiness: like JavaScript, except an empty array is false. */
@@ -63,15 +91,24 @@ function compileNode(node: unknown, constants: Constants): CompiledLogic {
     case '?:':
       return compileIf(values.map((v) => compileNode(v, constants)));
     case 'and':
-      return compileAndOr(values.map((v) => compileNode(v, constants)), false);
+      return compileAndOr(
+        values.map((v) => compileNode(v, constants)),
+        false,
+      );
     case 'or':
-      return compileAndOr(values.map((v) => compileNode(v, constants)), true);
+      return compileAndOr(
+        values.map((v) => compileNode(v, constants)),
+        true,
+      );
     case 'all':
     case 'some':
     case 'none':
       return compileQuantifier(op, values, constants);
     default:
-      return compileOperation(op, values.map((v) => compileNode(v, constants)));
+      return compileOperation(
+        op,
+        values.map((v) => compileNode(v, constants)),
+      );
   }
 }
 
@@ -263,5 +300,9 @@ function compileOperation(op: string, args: CompiledLogic[]): CompiledLogic {
     return op === '!' ? (data) => !truthy(only(data)) : (data) => truthy(only(data));
   }
   const operation = OPERATIONS[op] as Operation;
-  return (data) => operation(data, args.map((arg) => arg(data)));
+  return (data) =>
+    operation(
+      data,
+      args.map((arg) => arg(data)),
+    );
 }

@@ -5,13 +5,7 @@
  * as per-field messages named the way the API client knows the fields.
  */
 import { z } from 'zod';
-import {
-  DraftObservationsSchema,
-  type AnswerEntry,
-  type AssessmentPatch,
-  type DraftObservations,
-  type MeasurementEntry,
-} from '@/lib/api/assessments';
+import { DraftObservationsSchema, type AnswerEntry, type AssessmentPatch, type DraftObservations, type MeasurementEntry } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
 import {

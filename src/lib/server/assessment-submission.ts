@@ -22,7 +22,12 @@ function apiField(path: string): string {
   return path;
 }
 
-export async function submitAssessment(viewer: SessionUser, id: string, expectedVersion: number | undefined, request: RequestFacts): Promise<Assessment | null> {
+export async function submitAssessment(
+  viewer: SessionUser,
+  id: string,
+  expectedVersion: number | undefined,
+  request: RequestFacts,
+): Promise<Assessment | null> {
   return db().transaction(async (trx) => {
     const locked = await trx('assessments').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
     if (!locked) return null;
@@ -32,8 +37,12 @@ export async function submitAssessment(viewer: SessionUser, id: string, expected
 
     const gate = (await getGate(viewer, current.gate.id, trx)) as Gate;
     await trx('gates').where({ id: gate.id }).forShare().first('id');
-    const site = await trx('sites').where({ id: gate.siteId }).first<{ usage_class: number; address_line1: string; city: string; name: string | null }>('usage_class', 'address_line1', 'city', 'name');
-    const pinned = await trx('ruleset_versions').where({ id: current.ruleset.versionId }).first<{ content: RulesetVersion; content_sha256: string }>('content', 'content_sha256');
+    const site = await trx('sites')
+      .where({ id: gate.siteId })
+      .first<{ usage_class: number; address_line1: string; city: string; name: string | null }>('usage_class', 'address_line1', 'city', 'name');
+    const pinned = await trx('ruleset_versions')
+      .where({ id: current.ruleset.versionId })
+      .first<{ content: RulesetVersion; content_sha256: string }>('content', 'content_sha256');
     const { content, content_sha256: contentSha256 } = pinned as { content: RulesetVersion; content_sha256: string };
 
     const built = buildEngineInput({ ...gate, usageClass: site?.usage_class ?? 0 }, current, content.questions);
@@ -43,7 +52,9 @@ export async function submitAssessment(viewer: SessionUser, id: string, expected
       result = scoreParsed(built.value, { version: content, contentSha256 });
     } catch (error) {
       if (error instanceof AssessmentInputError) {
-        throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: error.issues.map((i) => ({ field: apiField(i.path), message: i.message })) });
+        throw new HttpProblem(422, 'The assessment is not ready to submit.', {
+          errors: error.issues.map((i) => ({ field: apiField(i.path), message: i.message })),
+        });
       }
       throw error;
     }

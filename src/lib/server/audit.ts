@@ -35,7 +35,9 @@ interface StoredAuditFields {
 function canonical(value: unknown): string {
   if (value === null || typeof value !== 'object') return JSON.stringify(value ?? null);
   if (Array.isArray(value)) return `[${value.map(canonical).join(',')}]`;
-  const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+  const entries = Object.entries(value as Record<string, unknown>)
+    .filter(([, v]) => v !== undefined)
+    .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
   return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`).join(',')}}`;
 }
 
@@ -61,6 +63,8 @@ export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput)
     created_at: createdAt,
   };
   const hash = auditHash(prevHash, fields);
-  const [row] = await trx('audit_events').insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash }).returning('id');
+  const [row] = await trx('audit_events')
+    .insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash })
+    .returning('id');
   return { id: Number(row.id), hash };
 }

@@ -115,9 +115,7 @@ function withoutUndefined<T extends object>(value: T): T {
 
 /** The gates a viewer may see, joined to their site (for the client). */
 function visibleGates(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  const query = knex('gates as g')
-    .join('sites as s', 's.id', 'g.site_id')
-    .where('g.organisation_id', viewer.organisationId);
+  const query = knex('gates as g').join('sites as s', 's.id', 'g.site_id').where('g.organisation_id', viewer.organisationId);
   if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId);
   return query;
 }

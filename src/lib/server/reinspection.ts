@@ -207,7 +207,9 @@ export function dueWordsOf(gate: Pick<GateReinspection, 'daysLeft'>): string {
 /** Where the gate's date (or state) comes from, in words, for the archive pages. */
 export function dueSourceWords(gate: Pick<GateReinspection, 'source' | 'resultAfterDays' | 'lastSignedVisit' | 'state'>, reinspectionMonths: number): string {
   if (gate.source === 'set') return 'Date set on the gate.';
-  if (gate.state === 'awaiting_fixes') return `Withdrawn from service at the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}): ${AWAITING_FIXES_WORDS}.`;
-  if (gate.source === 'result') return `${gate.resultAfterDays} days after the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}), as its result's ruleset asks.`;
+  if (gate.state === 'awaiting_fixes')
+    return `Withdrawn from service at the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}): ${AWAITING_FIXES_WORDS}.`;
+  if (gate.source === 'result')
+    return `${gate.resultAfterDays} days after the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}), as its result's ruleset asks.`;
   return `${reinspectionMonths} month${reinspectionMonths === 1 ? '' : 's'} after the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}): the organisation's setting, as its result's ruleset version gives no interval.`;
 }

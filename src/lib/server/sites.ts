@@ -89,9 +89,7 @@ function toRow(input: SiteCreate | SitePatch): WritableSiteRow {
 
 /** The sites a viewer may see, joined to their client. */
 function visibleSites(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  const query = knex('sites as s')
-    .join('clients as c', 'c.id', 's.client_id')
-    .where('s.organisation_id', viewer.organisationId);
+  const query = knex('sites as s').join('clients as c', 'c.id', 's.client_id').where('s.organisation_id', viewer.organisationId);
   if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId);
   return query;
 }
@@ -125,7 +123,8 @@ export async function getSite(viewer: SessionUser, id: string, knex: Knex = db()
 /** A client id in a body must name a client of the viewer's organisation (422 otherwise). */
 async function assertClientInOrganisation(knex: Knex, viewer: SessionUser, clientId: string): Promise<void> {
   const client = await knex('clients').where({ id: clientId, organisation_id: viewer.organisationId }).forShare().first('id');
-  if (!client) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'clientId', message: 'no such client in this organisation' }] });
+  if (!client)
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'clientId', message: 'no such client in this organisation' }] });
 }
 
 export async function createSite(viewer: SessionUser, input: SiteCreate, knex: Knex = db()): Promise<Site> {

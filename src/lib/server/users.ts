@@ -54,7 +54,11 @@ function toUser(row: UserRow): User {
  * the user is gone or deactivated, their session_version moved on, or this session (the
  * token's session id) was signed out.
  */
-export async function loadSession(userId: string, sessionVersion: number, sessionId: string): Promise<{ user: SessionUser; organisation: SessionOrganisation } | null> {
+export async function loadSession(
+  userId: string,
+  sessionVersion: number,
+  sessionId: string,
+): Promise<{ user: SessionUser; organisation: SessionOrganisation } | null> {
   if (!isUuid(sessionId) || !isUuid(userId)) return null;
   const row = await db()('users as u')
     .join('organisations as o', 'o.id', 'u.organisation_id')
@@ -128,7 +132,16 @@ export async function updateUser(organisationId: string, id: string, patch: User
     await trx('users').where({ organisation_id: organisationId, id }).update(changes);
 
     const audit = (action: string, detail: Record<string, unknown>) =>
-      recordAudit(trx, { organisationId, actorUserId: actor.user.id, actorLabel: actor.user.email, action, entityType: 'user', entityId: id, ip: actor.ip, detail });
+      recordAudit(trx, {
+        organisationId,
+        actorUserId: actor.user.id,
+        actorLabel: actor.user.email,
+        action,
+        entityType: 'user',
+        entityId: id,
+        ip: actor.ip,
+        detail,
+      });
     if (roleChanged) await audit('user.role_changed', { email: before.email, from: before.role, to: role });
     if (activeChanged) await audit(active ? 'user.reactivated' : 'user.deactivated', { email: before.email });
     if (changes.name !== undefined) await audit('user.renamed', { from: before.name, to: patch.name });

@@ -124,7 +124,11 @@ export async function uploadTrace(
     gapMm: String(trace.gapMm),
   });
   return answer(
-    await call(`/api/assessments/${assessmentId}/force-traces?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv', 'idempotency-key': idempotencyKey }, body: trace.csv }),
+    await call(`/api/assessments/${assessmentId}/force-traces?${query}`, {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv', 'idempotency-key': idempotencyKey },
+      body: trace.csv,
+    }),
   );
 }
 

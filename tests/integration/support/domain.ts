@@ -10,14 +10,27 @@ const suffix = () => randomBytes(3).toString('hex');
 
 export async function insertClient(organisationId: string, fields: Record<string, unknown> = {}): Promise<string> {
   const [row] = await testDb()('clients')
-    .insert({ organisation_id: organisationId, name: `Tallowmere Lettings ${suffix()}`, kind: 'property_manager', contact_email: `desk.${suffix()}@lettings.test`, ...fields })
+    .insert({
+      organisation_id: organisationId,
+      name: `Tallowmere Lettings ${suffix()}`,
+      kind: 'property_manager',
+      contact_email: `desk.${suffix()}@lettings.test`,
+      ...fields,
+    })
     .returning('id');
   return row.id;
 }
 
 export async function insertSite(organisationId: string, clientId: string, fields: Record<string, unknown> = {}): Promise<string> {
   const [row] = await testDb()('sites')
-    .insert({ organisation_id: organisationId, client_id: clientId, address_line1: `${Math.floor(Math.random() * 900) + 10} Brackenfold Road`, city: 'Eastholm', usage_class: 1, ...fields })
+    .insert({
+      organisation_id: organisationId,
+      client_id: clientId,
+      address_line1: `${Math.floor(Math.random() * 900) + 10} Brackenfold Road`,
+      city: 'Eastholm',
+      usage_class: 1,
+      ...fields,
+    })
     .returning('id');
   return row.id;
 }
@@ -67,9 +80,23 @@ export async function publishedFamilies(): Promise<string[]> {
   return rows.map((r) => r.family);
 }
 
-export async function insertDraft(organisationId: string, gateId: string, auditorId: string, rulesetVersionId: string, fields: Record<string, unknown> = {}): Promise<string> {
+export async function insertDraft(
+  organisationId: string,
+  gateId: string,
+  auditorId: string,
+  rulesetVersionId: string,
+  fields: Record<string, unknown> = {},
+): Promise<string> {
   const [row] = await testDb()('assessments')
-    .insert({ organisation_id: organisationId, gate_id: gateId, auditor_id: auditorId, ruleset_version_id: rulesetVersionId, purpose: 'inspection', visited_on: testDb().fn.now(), ...fields })
+    .insert({
+      organisation_id: organisationId,
+      gate_id: gateId,
+      auditor_id: auditorId,
+      ruleset_version_id: rulesetVersionId,
+      purpose: 'inspection',
+      visited_on: testDb().fn.now(),
+      ...fields,
+    })
     .returning('id');
   return row.id;
 }
@@ -94,7 +121,10 @@ export async function seedDirectory(org: FixtureOrganisation): Promise<Directory
 }
 
 /** Every row of the tables, in a stable order, for before/after comparisons. */
-export async function snapshotTables(organisationId: string, tables = ['clients', 'sites', 'gates', 'assessments'] as const): Promise<Record<string, unknown[]>> {
+export async function snapshotTables(
+  organisationId: string,
+  tables = ['clients', 'sites', 'gates', 'assessments'] as const,
+): Promise<Record<string, unknown[]>> {
   const out: Record<string, unknown[]> = {};
   for (const table of tables) out[table] = await testDb()(table).where({ organisation_id: organisationId }).orderBy('id').select('*');
   const [{ count }] = await testDb()('audit_events').where({ organisation_id: organisationId }).count({ count: '*' });

@@ -75,7 +75,10 @@ let passwordHash: Promise<string> | undefined;
  * failures; a random suffix keeps every call unique.
  */
 export async function createOrganisation(label = 'org'): Promise<FixtureOrganisation> {
-  const tag = `${label.toLowerCase().replace(/[^a-z0-9]+/g, '-').slice(0, 24)}-${randomBytes(4).toString('hex')}`;
+  const tag = `${label
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .slice(0, 24)}-${randomBytes(4).toString('hex')}`;
   passwordHash ??= hashPassword(fixturePassword);
   const hash = await passwordHash;
   return testDb().transaction(async (trx) => {
@@ -199,7 +202,12 @@ async function csrfToken(client: TestClient): Promise<string> {
  * the raw response: a redirect on success; on refusal problem+json (401, 429) unless
  * `headers` asks for text/html, when it is a redirect back to /signin with the reason.
  */
-export async function postCredentials(client: TestClient, providerId: string, fields: Record<string, string>, headers: Record<string, string> = {}): Promise<Response> {
+export async function postCredentials(
+  client: TestClient,
+  providerId: string,
+  fields: Record<string, string>,
+  headers: Record<string, string> = {},
+): Promise<Response> {
   const form = new URLSearchParams({ ...fields, csrfToken: await csrfToken(client) });
   return client.fetch(`/api/auth/callback/${providerId}`, {
     method: 'POST',

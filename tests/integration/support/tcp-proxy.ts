@@ -48,5 +48,12 @@ export async function startTcpProxy(targetHost: string, targetPort: number): Pro
     });
 
   await listen();
-  return { get port() { return port; }, cut: stop, restore: listen, close: stop };
+  return {
+    get port() {
+      return port;
+    },
+    cut: stop,
+    restore: listen,
+    close: stop,
+  };
 }

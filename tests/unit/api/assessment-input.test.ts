@@ -13,7 +13,12 @@ const question = (key: string, answerType: RulesetQuestion['answerType'], option
   ...(options ? { options: options.map((value) => ({ value, label: value })) } : {}),
 });
 
-const questions = [question('hingeSideGuarded', 'yes_no_na'), question('hingeGapMm', 'length'), question('wireGaugeAwg', 'choice', ['awg12', 'awg14']), question('installedOn', 'date')];
+const questions = [
+  question('hingeSideGuarded', 'yes_no_na'),
+  question('hingeGapMm', 'length'),
+  question('wireGaugeAwg', 'choice', ['awg12', 'awg14']),
+  question('installedOn', 'date'),
+];
 const empty: AssessmentDocuments = { answers: {}, measurements: {}, observations: {} };
 const site = { pedestriansUseDriveway: false, childrenOrPetsPresent: true, publicAccess: false, slopeAcrossSwing: false };
 
@@ -31,12 +36,20 @@ const gate: GateForScoring = {
 
 describe('mergeDocuments', () => {
   it('merges answers, removes nulls and computes canonical measurements', () => {
-    const first = mergeDocuments(empty, { answers: { hingeSideGuarded: { value: 'no' } }, measurements: { hingeGapMm: { value: 1.5, unit: 'in' } } }, questions);
+    const first = mergeDocuments(
+      empty,
+      { answers: { hingeSideGuarded: { value: 'no' } }, measurements: { hingeGapMm: { value: 1.5, unit: 'in' } } },
+      questions,
+    );
     expect(first.ok).toBe(true);
     if (!first.ok) return;
     // 1.5 in = 38.1 mm exactly (NIST SP 811).
     expect(first.value.measurements.hingeGapMm).toEqual({ value: 1.5, unit: 'in', canonical: 38.1 });
-    const second = mergeDocuments(first.value, { answers: { hingeSideGuarded: null, wireGaugeAwg: { value: 'awg14' } }, measurements: { hingeGapMm: null } }, questions);
+    const second = mergeDocuments(
+      first.value,
+      { answers: { hingeSideGuarded: null, wireGaugeAwg: { value: 'awg14' } }, measurements: { hingeGapMm: null } },
+      questions,
+    );
     expect(second.ok && second.value).toEqual({ answers: { wireGaugeAwg: { value: 'awg14' } }, measurements: {}, observations: {} });
   });
 
@@ -44,7 +57,13 @@ describe('mergeDocuments', () => {
     const result = mergeDocuments(
       empty,
       {
-        answers: { hingeSideGuarded: { value: 'sometimes' }, wireGaugeAwg: { value: 'awg99' }, installedOn: { value: '2024-02-30' }, unknownThing: { value: 'yes' }, hingeGapMm: { value: 'yes' } },
+        answers: {
+          hingeSideGuarded: { value: 'sometimes' },
+          wireGaugeAwg: { value: 'awg99' },
+          installedOn: { value: '2024-02-30' },
+          unknownThing: { value: 'yes' },
+          hingeGapMm: { value: 'yes' },
+        },
         measurements: { hingeSideGuarded: { value: 1, unit: 'mm' }, hingeGapMm: { value: 10, unit: 'kg' } },
       },
       questions,
@@ -63,7 +82,11 @@ describe('mergeDocuments', () => {
   });
 
   it('merges observations and checks the merged whole in the engine’s shapes', () => {
-    const merged = mergeDocuments({ ...empty, observations: { site: { publicAccess: true } } }, { observations: { site: { slopeAcrossSwing: true } } }, questions);
+    const merged = mergeDocuments(
+      { ...empty, observations: { site: { publicAccess: true } } },
+      { observations: { site: { slopeAcrossSwing: true } } },
+      questions,
+    );
     expect(merged.ok && merged.value.observations).toEqual({ site: { publicAccess: true, slopeAcrossSwing: true } });
     const wrong = mergeDocuments(empty, { observations: { site: { publicAccess: 'yes' } } }, questions);
     expect(!wrong.ok && wrong.errors.map((e) => e.field)).toEqual(['observations.site.publicAccess']);
@@ -72,11 +95,20 @@ describe('mergeDocuments', () => {
 
 describe('buildEngineInput', () => {
   it('takes the profile from the gate, with each dimension as entered and in canonical units', () => {
-    const built = buildEngineInput(gate, { ...empty, answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } }, observations: { site } }, questions);
+    const built = buildEngineInput(
+      gate,
+      { ...empty, answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } }, observations: { site } },
+      questions,
+    );
     expect(built.ok).toBe(true);
     if (!built.ok) return;
     // 12 ft = 3657.6 mm exactly: the canonical value follows what was entered, not the rounded column.
-    expect(built.value.profile).toMatchObject({ kind: 'swing', usageClass: 1, leafWidth: { value: 12, unit: 'ft', canonical: 3657.6 }, leafHeight: { value: 1500, unit: 'mm', canonical: 1500 } });
+    expect(built.value.profile).toMatchObject({
+      kind: 'swing',
+      usageClass: 1,
+      leafWidth: { value: 12, unit: 'ft', canonical: 3657.6 },
+      leafHeight: { value: 1500, unit: 'mm', canonical: 1500 },
+    });
     expect(built.value.profile.leafWeight).toBeUndefined();
     expect(built.value.answers).toEqual({ hingeSideGuarded: { value: 'yes' } });
     expect(built.value.choices).toEqual({ wireGaugeAwg: { value: 'awg12' } });

@@ -16,7 +16,9 @@ describe('problem details', () => {
     const schema = z.strictObject({ name: z.string(), site: z.strictObject({ city: z.string() }) });
     const result = schema.safeParse({ name: 'x', status: 1, rowVersion: 2, site: { city: 'y', zip: 'z' } });
     expect(result.success).toBe(false);
-    const fields = zodFieldErrors(result.error!).map((e) => e.field).sort();
+    const fields = zodFieldErrors(result.error!)
+      .map((e) => e.field)
+      .sort();
     expect(fields).toEqual(['rowVersion', 'site.zip', 'status']);
   });
 

@@ -112,8 +112,7 @@ const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[
   return ENTRAPMENT_DEVICE_TYPES.filter((type) => present.has(type));
 };
 
-const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] =>
-  ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
+const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] => ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
 
 /** YYYY-MM-DD, alone or followed by a time (`T…`): only the date part is judged. */
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}(?:$|T)/;
@@ -140,11 +139,7 @@ function refuseDate(manufacturedOn: string): never {
   throw new RangeError(`manufacturedOn must be an ISO date (YYYY-MM-DD), got "${manufacturedOn}"`);
 }
 
-function judgePre2016(
-  input: EntrapmentProtectionInput,
-  direction: TravelDirection,
-  rules: EntrapmentRules,
-): DirectionJudgement {
+function judgePre2016(input: EntrapmentProtectionInput, direction: TravelDirection, rules: EntrapmentRules): DirectionJudgement {
   const entrapmentZone = input.entrapmentZones[direction];
   const reasons = new Set<EntrapmentReason>();
   const group = UL325_KIND_GROUP[input.gateKind];
@@ -163,8 +158,7 @@ function judgePre2016(
   const usable = new Set<EntrapmentDeviceType>();
   for (const device of fitted) {
     if (device.type === 'D' && input.automaticClosing) reasons.add('d_with_auto_close');
-    else if (!row.primary.includes(device.type) && !row.secondary.includes(device.type))
-      reasons.add('type_not_allowed_for_kind');
+    else if (!row.primary.includes(device.type) && !row.secondary.includes(device.type)) reasons.add('type_not_allowed_for_kind');
     else usable.add(device.type);
   }
   const countedTypes = sortTypes(usable);
@@ -193,11 +187,7 @@ function judgePre2016(
   };
 }
 
-function judge2016(
-  input: EntrapmentProtectionInput,
-  direction: TravelDirection,
-  rules: EntrapmentRules,
-): DirectionJudgement {
+function judge2016(input: EntrapmentProtectionInput, direction: TravelDirection, rules: EntrapmentRules): DirectionJudgement {
   const entrapmentZone = input.entrapmentZones[direction];
   const reasons = new Set<EntrapmentReason>();
   const group = UL325_KIND_GROUP[input.gateKind];
@@ -238,10 +228,7 @@ function combine(opening: DirectionJudgement, closing: DirectionJudgement): Edit
  * Judges fitted entrapment protection per direction under both editions and gives the verdict
  * under the one that applies. A direction without an entrapment zone needs no protection.
  */
-export function assessEntrapmentProtection(
-  input: EntrapmentProtectionInput,
-  rules: Partial<EntrapmentRules> = {},
-): EntrapmentProtectionResult {
+export function assessEntrapmentProtection(input: EntrapmentProtectionInput, rules: Partial<EntrapmentRules> = {}): EntrapmentProtectionResult {
   const merged: EntrapmentRules = { ...DEFAULT_RULES, ...rules };
   const applicableEdition = applicableEntrapmentEdition(input.manufacturedOn, input.edition, merged.effectiveDate2016);
   const byEdition: Record<EntrapmentEdition, EditionJudgement> = {

@@ -123,10 +123,7 @@ function layoutOf(input: SwingOperatorGeometryInput): Layout {
 
 function frontPivotAt(layout: Layout, angleDeg: number): Point {
   const { bracketFromHingeMm, bracketOffsetMm = 0 } = layout.input;
-  return add(
-    scale(direction(angleDeg), bracketFromHingeMm),
-    scale(direction(angleDeg + 90), layout.side * bracketOffsetMm),
-  );
+  return add(scale(direction(angleDeg), bracketFromHingeMm), scale(direction(angleDeg + 90), layout.side * bracketOffsetMm));
 }
 
 /** Pivot-to-pivot distance at an opening angle (0 = closed), mm, unrounded. */
@@ -179,12 +176,7 @@ function reachableRanges(layout: Layout, shortest: number, longest: number): Arr
   const r = layout.frontRadius;
   // Law of cosines: L² = r² + R² − 2·r·R·cos ψ, so the angle where L hits a stroke end is ψ = ±acos(...).
   const gamma = (L: number) => toDegrees(Math.acos(Math.min(1, Math.max(-1, (r * r + R * R - L * L) / (2 * r * R)))));
-  const cuts = [
-    0,
-    SWEEP_MAX_DEG,
-    ...anglesWhereSeparationIs(layout, gamma(shortest)),
-    ...anglesWhereSeparationIs(layout, gamma(longest)),
-  ]
+  const cuts = [0, SWEEP_MAX_DEG, ...anglesWhereSeparationIs(layout, gamma(shortest)), ...anglesWhereSeparationIs(layout, gamma(longest))]
     .sort((a, b) => a - b)
     .filter((angle, i, all) => i === 0 || angle - (all[i - 1] as number) > 1e-9);
   const lengthAt = (angle: number) => distance(frontPivotAt(layout, angle), layout.rearPivot);
@@ -249,10 +241,7 @@ function sampledAngles(target: number, step: number): number[] {
 export type SwingOperatorGeometrySummary = Omit<SwingOperatorGeometryResult, 'chart'>;
 
 /** Works out ram length, reach, leverage and body clearance over the swing from closed to the target opening. */
-export function assessSwingOperatorGeometry(
-  input: SwingOperatorGeometryInput,
-  limits: { minClearanceMm?: number } = {},
-): SwingOperatorGeometryResult {
+export function assessSwingOperatorGeometry(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number } = {}): SwingOperatorGeometryResult {
   const chart: SwingGeometryChart = { angleDeg: [], pivotToPivotMm: [], extensionMm: [], leverArmMm: [], clearanceMm: [] };
   return { ...sweepSwing(input, limits, chart), chart };
 }
@@ -261,18 +250,11 @@ export function assessSwingOperatorGeometry(
  * The same figures as assessSwingOperatorGeometry without building the chart: scoring reads
  * only the summary and re-scores after every answer, so it skips a thousand rounded samples.
  */
-export function summariseSwingOperatorGeometry(
-  input: SwingOperatorGeometryInput,
-  limits: { minClearanceMm?: number } = {},
-): SwingOperatorGeometrySummary {
+export function summariseSwingOperatorGeometry(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number } = {}): SwingOperatorGeometrySummary {
   return sweepSwing(input, limits, null);
 }
 
-function sweepSwing(
-  input: SwingOperatorGeometryInput,
-  limits: { minClearanceMm?: number },
-  chart: SwingGeometryChart | null,
-): SwingOperatorGeometrySummary {
+function sweepSwing(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number }, chart: SwingGeometryChart | null): SwingOperatorGeometrySummary {
   const layout = layoutOf(input);
   const target = requireFinite('targetOpeningDeg', input.targetOpeningDeg);
   if (target <= 0 || target > SWEEP_MAX_DEG) throw new RangeError('targetOpeningDeg must be above 0 and at most 180');
@@ -311,7 +293,16 @@ function sweepSwing(
     const lever = Math.abs(rearX * frontY - rearY * frontX) / length;
     const bodyFraction = Math.min(bodyLengthMm, length) / length;
     const clearance =
-      segmentDistanceXY(rearX, rearY, rearX + (frontX - rearX) * bodyFraction, rearY + (frontY - rearY) * bodyFraction, 0, 0, cos * leafLength, sin * leafLength) -
+      segmentDistanceXY(
+        rearX,
+        rearY,
+        rearX + (frontX - rearX) * bodyFraction,
+        rearY + (frontY - rearY) * bodyFraction,
+        0,
+        0,
+        cos * leafLength,
+        sin * leafLength,
+      ) -
       (input.leafThicknessMm ?? 0) / 2 -
       (input.operatorHalfWidthMm ?? 0);
     if (i === 0) {
@@ -338,8 +329,7 @@ function sweepSwing(
   }
 
   const ranges = reachableRanges(layout, shortest, longest);
-  const within = (angle: number) =>
-    ranges.some((range) => range.fromDeg <= angle + 1e-9 && angle - 1e-9 <= range.toDeg);
+  const within = (angle: number) => ranges.some((range) => range.fromDeg <= angle + 1e-9 && angle - 1e-9 <= range.toDeg);
   const deadCentres = anglesWhereSeparationIs(layout, 0, 180).sort((a, b) => a - b);
   const deadCentre = deadCentres[0] ?? null;
   const minClearanceLimit = limits.minClearanceMm ?? OPERATOR_LEAF_MIN_CLEARANCE_MM;

@@ -21,10 +21,7 @@ export interface SignedInPerson {
   sessionVersion: number;
 }
 
-export type SignInOutcome =
-  | { outcome: 'signed_in'; person: SignedInPerson }
-  | { outcome: 'invalid' }
-  | { outcome: 'throttled'; retryAfterSeconds: number };
+export type SignInOutcome = { outcome: 'signed_in'; person: SignedInPerson } | { outcome: 'invalid' } | { outcome: 'throttled'; retryAfterSeconds: number };
 
 interface PersonRow {
   id: string;

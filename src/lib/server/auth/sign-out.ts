@@ -24,7 +24,15 @@ export async function recordSignOut(userId: string, ip: string | null, session: 
       // Revoked ids are only needed until their token would have expired anyway.
       await trx('revoked_sessions').where('expires_at', '<', trx.fn.now()).del();
     }
-    await recordAudit(trx, { organisationId: user.organisation_id, actorUserId: user.id, actorLabel: user.email, action: 'sign_out', entityType: 'user', entityId: user.id, ip });
+    await recordAudit(trx, {
+      organisationId: user.organisation_id,
+      actorUserId: user.id,
+      actorLabel: user.email,
+      action: 'sign_out',
+      entityType: 'user',
+      entityId: user.id,
+      ip,
+    });
   });
 }
 

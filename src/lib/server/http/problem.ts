@@ -36,12 +36,7 @@ const titles: Record<number, string> = {
   503: 'Service unavailable',
 };
 
-export function problem(
-  status: number,
-  detail?: string,
-  extra: Partial<ProblemBody> & Record<string, unknown> = {},
-  headers: HeadersInit = {},
-): Response {
+export function problem(status: number, detail?: string, extra: Partial<ProblemBody> & Record<string, unknown> = {}, headers: HeadersInit = {}): Response {
   const body: ProblemBody = {
     type: `https://latchwell.invalid/problems/${status}`,
     title: titles[status] ?? 'Error',

@@ -118,7 +118,8 @@ export function generateInput(rng: Prng, version: RulesetVersion): AssessmentInp
   if (rng.chance(0.8)) input.profile.leafWidth = measure('length', rng.int(2000, 9000), 'mm');
   if (rng.chance(0.8)) input.profile.leafHeight = measure('length', rng.int(48, 96), 'in');
   if (rng.chance(0.8)) input.profile.leafWeight = measure('mass', rng.int(20, 600), 'kg');
-  if (rng.chance(0.9)) input.profile.operatorManufacturedOn = `${rng.int(2005, 2025)}-${String(rng.int(1, 12)).padStart(2, '0')}-${String(rng.int(1, 28)).padStart(2, '0')}`;
+  if (rng.chance(0.9))
+    input.profile.operatorManufacturedOn = `${rng.int(2005, 2025)}-${String(rng.int(1, 12)).padStart(2, '0')}-${String(rng.int(1, 28)).padStart(2, '0')}`;
 
   for (const q of version.questions) {
     if (!q.gateKinds.includes(kind) || rng.chance(0.12)) continue;
