@@ -12,7 +12,13 @@ import walkServiceWorker from './src/integrations/walk-service-worker.ts';
 export default defineConfig({
   output: 'server',
   adapter: node({ mode: 'standalone' }),
-  integrations: [react(), auth({ injectEndpoints: false }), outboxWorker(), clientAddress(), walkServiceWorker()],
+  integrations: [
+    react(),
+    auth({ injectEndpoints: false }),
+    outboxWorker(),
+    clientAddress(),
+    walkServiceWorker(),
+  ],
   server: { host: process.env.HOST ?? '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
   // Cross-site writes (forms and JSON alike) are refused by src/middleware.ts, which compares
   // Origin with the Host the browser used. Astro's own check compares with Astro.url, whose host

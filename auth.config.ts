@@ -62,7 +62,10 @@ export default defineConfig({
     Credentials({
       id: 'credentials',
       name: 'E-mail and password',
-      credentials: { email: { label: 'E-mail', type: 'email' }, password: { label: 'Password', type: 'password' } },
+      credentials: {
+        email: { label: 'E-mail', type: 'email' },
+        password: { label: 'Password', type: 'password' },
+      },
       async authorize(credentials) {
         const email = text(credentials.email, 254).trim();
         const password = text(credentials.password, 256);
@@ -104,21 +107,28 @@ export default defineConfig({
           ? await loadSession(token.sub, token.sessionVersion, token.sid)
           : null;
       if (!current) return { expires: session.expires, user: undefined } as unknown as typeof session;
-      return { ...session, user: { ...session.user, id: current.user.id, name: current.user.name, email: current.user.email } };
+      return {
+        ...session,
+        user: { ...session.user, id: current.user.id, name: current.user.name, email: current.user.email },
+      };
     },
   },
   events: {
     async signOut(message) {
       const token = 'token' in message ? message.token : null;
       if (!token?.sub) return;
-      const session = typeof token.sid === 'string' && typeof token.exp === 'number' ? { id: token.sid, expiresAt: new Date(token.exp * 1000) } : null;
+      const session =
+        typeof token.sid === 'string' && typeof token.exp === 'number'
+          ? { id: token.sid, expiresAt: new Date(token.exp * 1000) }
+          : null;
       await recordSignOut(token.sub, currentSignInContext().ip, session);
     },
   },
   logger: {
     error(error) {
       // A refused sign-in is an expected answer, already in the audit trail; not a server error.
-      if (error instanceof CredentialsSignin || (error as { type?: string }).type === 'CredentialsSignin') return;
+      if (error instanceof CredentialsSignin || (error as { type?: string }).type === 'CredentialsSignin')
+        return;
       console.error('[auth]', error);
     },
     warn(code) {

@@ -5,7 +5,8 @@
 import type { Knex } from 'knex';
 
 export function knexConfig(connectionString = process.env.DATABASE_URL): Knex.Config {
-  if (!connectionString) throw new Error('DATABASE_URL is not set (run through npm start / npm test, or set it in .env)');
+  if (!connectionString)
+    throw new Error('DATABASE_URL is not set (run through npm start / npm test, or set it in .env)');
   return {
     client: 'pg',
     connection: { connectionString, application_name: 'latchwell' },

@@ -13,7 +13,10 @@ export default defineConfig({
   resolve: { alias },
   test: {
     projects: [
-      { resolve: { alias }, test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' } },
+      {
+        resolve: { alias },
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
+      },
       {
         resolve: { alias },
         test: {

@@ -48,7 +48,8 @@ export const ownerRole = 'latchwell_owner';
 /** What the server runs as. */
 export const appRole = 'latchwell_app';
 /** Each role's password is derived from the superuser's, so holding the app's cannot give the others. */
-const rolePassword = (role: string) => createHmac('sha256', password).update(`latchwell role ${role}`).digest('base64url');
+const rolePassword = (role: string) =>
+  createHmac('sha256', password).update(`latchwell role ${role}`).digest('base64url');
 const appDatabase = process.env.LATCHWELL_DB_NAME ?? 'latchwell';
 const testDatabase = `${appDatabase}_test`;
 const serviceUser = process.env.LATCHWELL_PG_USER ?? 'postgres';
@@ -83,9 +84,13 @@ function ensureServerBin(): string {
   log('installing Debian package postgresql (apt-get)…');
   const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
   execFileSync('apt-get', ['update'], { stdio: 'inherit', env });
-  execFileSync('apt-get', ['install', '-y', '--no-install-recommends', 'postgresql'], { stdio: 'inherit', env });
+  execFileSync('apt-get', ['install', '-y', '--no-install-recommends', 'postgresql'], {
+    stdio: 'inherit',
+    env,
+  });
   const installed = findServerBin();
-  if (!installed) throw new Error('apt-get installed postgresql but no initdb was found under /usr/lib/postgresql');
+  if (!installed)
+    throw new Error('apt-get installed postgresql but no initdb was found under /usr/lib/postgresql');
   return installed;
 }
 
@@ -205,7 +210,9 @@ async function ensureRoles(client: pg.Client) {
     const verb = rowCount ? 'alter' : 'create';
     if (!rowCount) log(`creating role ${role}`);
     // No superuser, no role or database creation, no replication, no row-security bypass.
-    await client.query(`${verb} role "${role}" login nosuperuser nocreatedb nocreaterole noreplication nobypassrls password '${rolePassword(role)}'`);
+    await client.query(
+      `${verb} role "${role}" login nosuperuser nocreatedb nocreaterole noreplication nobypassrls password '${rolePassword(role)}'`,
+    );
   }
 }
 
@@ -251,7 +258,12 @@ export async function adoptDatabase(name: string): Promise<void> {
   await client.connect();
   let owner: string | undefined;
   try {
-    owner = (await client.query<{ owner: string }>('select pg_get_userbyid(datdba) as owner from pg_database where datname = $1', [name])).rows[0]?.owner;
+    owner = (
+      await client.query<{ owner: string }>(
+        'select pg_get_userbyid(datdba) as owner from pg_database where datname = $1',
+        [name],
+      )
+    ).rows[0]?.owner;
   } finally {
     await client.end();
   }
@@ -265,7 +277,10 @@ async function ensureDatabases(names: string[]) {
   try {
     await ensureRoles(client);
     for (const name of names) {
-      const { rows } = await client.query<{ owner: string }>('select pg_get_userbyid(datdba) as owner from pg_database where datname = $1', [name]);
+      const { rows } = await client.query<{ owner: string }>(
+        'select pg_get_userbyid(datdba) as owner from pg_database where datname = $1',
+        [name],
+      );
       if (!rows.length) {
         log(`creating database ${name}`);
         await client.query(`create database "${name}" owner "${ownerRole}"`);
@@ -290,8 +305,19 @@ export async function ensureDatabase(): Promise<DatabaseEndpoints> {
     const adminUrl = migrationUrl.replace(/\/([^/?]+)(\?|$)/, '/postgres$2');
     const appUser = decodeURIComponent(new URL(appUrl).username);
     const sameRole = appUser === decodeURIComponent(new URL(migrationUrl).username);
-    if (sameRole) log('DATABASE_URL and MIGRATION_DATABASE_URL use one role: the app can alter its own tables (see README, Security)');
-    return { appUrl, migrationUrl, appRole: sameRole ? null : appUser, testUrl, adminUrl, managed: false, startedHere: false };
+    if (sameRole)
+      log(
+        'DATABASE_URL and MIGRATION_DATABASE_URL use one role: the app can alter its own tables (see README, Security)',
+      );
+    return {
+      appUrl,
+      migrationUrl,
+      appRole: sameRole ? null : appUser,
+      testUrl,
+      adminUrl,
+      managed: false,
+      startedHere: false,
+    };
   }
   const bin = ensureServerBin();
   const account = ensureServiceAccount();
@@ -371,14 +397,20 @@ export function stopDatabase(): void {
  * its own database (`latchwell_test_<pid>`) so parallel runs never drop each other's; the
  * databases of runs whose process is gone are dropped on the way. Returns its URL.
  */
-export async function recreateTestDatabase(endpoints: DatabaseEndpoints, runId = process.pid): Promise<string> {
+export async function recreateTestDatabase(
+  endpoints: DatabaseEndpoints,
+  runId = process.pid,
+): Promise<string> {
   const base = new URL(endpoints.testUrl);
   const prefix = base.pathname.slice(1);
   const name = `${prefix}_${runId}`;
   const client = new pg.Client({ connectionString: endpoints.adminUrl });
   await client.connect();
   try {
-    const { rows } = await client.query<{ datname: string }>('select datname from pg_database where datname like $1', [`${prefix}\\_%`]);
+    const { rows } = await client.query<{ datname: string }>(
+      'select datname from pg_database where datname like $1',
+      [`${prefix}\\_%`],
+    );
     for (const { datname } of rows) {
       const pid = Number(datname.slice(prefix.length + 1));
       if (!Number.isInteger(pid) || pid === runId) continue;
@@ -411,7 +443,8 @@ export async function dropDatabase(endpoints: DatabaseEndpoints, url: string): P
   }
 }
 
-const invokedDirectly = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
+const invokedDirectly =
+  process.argv[1] && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
 if (invokedDirectly) {
   const command = process.argv[2] ?? 'start';
   const run = async () => {

@@ -26,12 +26,19 @@ export async function grantAppRole(knex: Knex, appRole: string): Promise<void> {
     await trx.raw(`grant select, insert, update, delete on all tables in schema public to ${role}`);
     await trx.raw(`grant usage, select on all sequences in schema public to ${role}`);
     // Tables and sequences the owner creates later get the same grants.
-    await trx.raw(`alter default privileges in schema public grant select, insert, update, delete on tables to ${role}`);
+    await trx.raw(
+      `alter default privileges in schema public grant select, insert, update, delete on tables to ${role}`,
+    );
     await trx.raw(`alter default privileges in schema public grant usage, select on sequences to ${role}`);
-    const { rows } = await trx.raw<{ rows: { table_name: string }[] }>(`select table_name from information_schema.tables where table_schema = 'public'`);
+    const { rows } = await trx.raw<{ rows: { table_name: string }[] }>(
+      `select table_name from information_schema.tables where table_schema = 'public'`,
+    );
     const present = new Set(rows.map((r) => r.table_name));
     for (const table of appendOnlyTables) {
-      if (present.has(table)) await trx.raw(`revoke update, delete, truncate, references, trigger on ${quoteIdent(table)} from ${role}`);
+      if (present.has(table))
+        await trx.raw(
+          `revoke update, delete, truncate, references, trigger on ${quoteIdent(table)} from ${role}`,
+        );
     }
     for (const table of ownerOnlyTables) {
       if (present.has(table)) await trx.raw(`revoke all on ${quoteIdent(table)} from ${role}`);

@@ -20,7 +20,8 @@ const securityHeaders: Record<string, string> = {
 
 function withSecurityHeaders(response: Response, signedIn: boolean): Response {
   const apply = (headers: Headers) => {
-    for (const [name, value] of Object.entries(securityHeaders)) if (!headers.has(name)) headers.set(name, value);
+    for (const [name, value] of Object.entries(securityHeaders))
+      if (!headers.has(name)) headers.set(name, value);
     // Pages and answers for a signed-in person are theirs alone: no shared or back-button caches.
     if (signedIn && !headers.has('cache-control')) headers.set('cache-control', 'private, no-store');
   };
@@ -50,7 +51,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
     if (!isDatabaseUnavailable(error)) throw error;
     const unavailable = api
       ? problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' })
-      : new Response('Latchwell cannot reach its database right now. Try again in a moment.', { status: 503, headers: { 'retry-after': '5' } });
+      : new Response('Latchwell cannot reach its database right now. Try again in a moment.', {
+          status: 503,
+          headers: { 'retry-after': '5' },
+        });
     return withSecurityHeaders(unavailable, false);
   }
   if (session.state === 'active') {
@@ -67,7 +71,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
   if (!signedIn && !api && isProtectedPage(path)) {
     const next = `${context.url.pathname}${context.url.search}`;
     return withSecurityHeaders(
-      context.redirect(`/signin?next=${encodeURIComponent(next)}`, context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303),
+      context.redirect(
+        `/signin?next=${encodeURIComponent(next)}`,
+        context.request.method === 'GET' || context.request.method === 'HEAD' ? 302 : 303,
+      ),
       false,
     );
   }

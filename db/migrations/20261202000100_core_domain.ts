@@ -49,7 +49,9 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('updated_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.index(['organisation_id', 'role']);
   });
-  await knex.raw(`alter table users add constraint users_homeowner_has_client check ((role = 'homeowner') = (client_id is not null))`);
+  await knex.raw(
+    `alter table users add constraint users_homeowner_has_client check ((role = 'homeowner') = (client_id is not null))`,
+  );
 
   await knex.schema.createTable('sites', (t) => {
     t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));
@@ -74,7 +76,9 @@ export async function up(knex: Knex): Promise<void> {
     t.uuid('organisation_id').notNullable().references('organisations.id').onDelete('restrict');
     t.uuid('site_id').notNullable().references('sites.id').onDelete('restrict');
     t.text('label').notNullable();
-    t.text('kind').notNullable().checkIn(['swing', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot']);
+    t.text('kind')
+      .notNullable()
+      .checkIn(['swing', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot']);
     t.text('leaves').notNullable().defaultTo('single').checkIn(['single', 'double']);
     t.text('opening_direction').checkIn(['pull_to_open', 'push_to_open']);
     t.integer('width_mm');
@@ -101,7 +105,9 @@ export async function up(knex: Knex): Promise<void> {
     t.text('based_on_family');
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
   });
-  await knex.raw(`create unique index rulesets_family_unique on rulesets (coalesce(organisation_id, '00000000-0000-0000-0000-000000000000'::uuid), family)`);
+  await knex.raw(
+    `create unique index rulesets_family_unique on rulesets (coalesce(organisation_id, '00000000-0000-0000-0000-000000000000'::uuid), family)`,
+  );
 
   await knex.schema.createTable('ruleset_versions', (t) => {
     t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));
@@ -149,7 +155,10 @@ export async function up(knex: Knex): Promise<void> {
     t.uuid('gate_id').notNullable().references('gates.id').onDelete('restrict');
     t.uuid('ruleset_version_id').notNullable().references('ruleset_versions.id').onDelete('restrict');
     t.uuid('auditor_id').notNullable().references('users.id').onDelete('restrict');
-    t.text('status').notNullable().defaultTo('draft').checkIn(['draft', 'scored', 'awaiting_signature', 'signed', 'superseded']);
+    t.text('status')
+      .notNullable()
+      .defaultTo('draft')
+      .checkIn(['draft', 'scored', 'awaiting_signature', 'signed', 'superseded']);
     t.text('purpose').notNullable().defaultTo('inspection').checkIn(['handover', 'service', 'inspection']);
     t.jsonb('answers').notNullable().defaultTo('{}');
     t.jsonb('measurements').notNullable().defaultTo('{}');

@@ -43,7 +43,9 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.index(['organisation_id', 'created_at']);
   });
-  await knex.raw(`create unique index invitations_one_open_per_email on invitations (email) where accepted_at is null and revoked_at is null`);
+  await knex.raw(
+    `create unique index invitations_one_open_per_email on invitations (email) where accepted_at is null and revoked_at is null`,
+  );
 
   await knex.schema.alterTable('users', (t) => {
     t.timestamp('last_signed_in_at', { useTz: true });

@@ -20,8 +20,12 @@ export async function up(knex: Knex): Promise<void> {
   await knex.raw('create index clients_name_trgm on clients using gin (name gin_trgm_ops)');
   await knex.raw('create index sites_address_trgm on sites using gin (address_line1 gin_trgm_ops)');
   await knex.raw('create index gates_organisation_kind on gates (organisation_id, kind)');
-  await knex.raw('create index assessments_organisation_created on assessments (organisation_id, created_at, id)');
-  await knex.raw('create index assessments_organisation_verdict on assessments (organisation_id, verdict) where verdict is not null');
+  await knex.raw(
+    'create index assessments_organisation_created on assessments (organisation_id, created_at, id)',
+  );
+  await knex.raw(
+    'create index assessments_organisation_verdict on assessments (organisation_id, verdict) where verdict is not null',
+  );
 
   // Once scored, an assessment is a record: what was found and what it scored stay as they
   // were while it goes through the signing flow (it may only go back to draft as a whole).

@@ -26,9 +26,13 @@ export async function up(knex: Knex): Promise<void> {
     t.index(['organisation_id', 'created_at']);
     t.index(['assessment_id']);
   });
-  await knex.raw(`alter table documents add constraint documents_sha256_hex check (${sha256Check('sha256')} and storage_key = sha256)`);
+  await knex.raw(
+    `alter table documents add constraint documents_sha256_hex check (${sha256Check('sha256')} and storage_key = sha256)`,
+  );
   // One final document per assessment: a correction is a new assessment (revision).
-  await knex.raw(`create unique index documents_one_signed_report on documents (assessment_id) where kind = 'signed_report'`);
+  await knex.raw(
+    `create unique index documents_one_signed_report on documents (assessment_id) where kind = 'signed_report'`,
+  );
 
   await knex.schema.createTable('sign_requests', (t) => {
     t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));
@@ -48,8 +52,12 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.index(['assessment_id', 'created_at']);
   });
-  await knex.raw(`alter table sign_requests add constraint sign_requests_token_hash_hex check (${sha256Check('token_hash')})`);
-  await knex.raw(`create unique index sign_requests_one_open on sign_requests (assessment_id) where used_at is null and revoked_at is null`);
+  await knex.raw(
+    `alter table sign_requests add constraint sign_requests_token_hash_hex check (${sha256Check('token_hash')})`,
+  );
+  await knex.raw(
+    `create unique index sign_requests_one_open on sign_requests (assessment_id) where used_at is null and revoked_at is null`,
+  );
 
   await knex.schema.createTable('signatures', (t) => {
     t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));
@@ -80,7 +88,9 @@ export async function up(knex: Knex): Promise<void> {
   await knex.raw(
     `alter table signatures add constraint signatures_hashes_hex check (${sha256Check('shown_pdf_sha256')} and (signature_image_key is null or ${sha256Check('signature_image_key')}))`,
   );
-  await knex.raw(`alter table signatures add constraint signatures_drawn_has_image check ((signature_method = 'drawn') = (signature_image_key is not null))`);
+  await knex.raw(
+    `alter table signatures add constraint signatures_drawn_has_image check ((signature_method = 'drawn') = (signature_image_key is not null))`,
+  );
 
   await knex.schema.createTable('assessment_photos', (t) => {
     t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));

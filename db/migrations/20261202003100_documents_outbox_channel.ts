@@ -10,8 +10,12 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.alterTable('outbox_messages', (t) => {
     t.text('channel').notNullable().defaultTo('default');
   });
-  await knex.raw(`alter table outbox_messages add constraint outbox_messages_channel_shape check (channel ~ '^[a-z0-9][a-z0-9_-]{0,39}$')`);
-  await knex.raw("create index outbox_messages_due on outbox_messages (channel, next_attempt_at) where status in ('queued', 'sending')");
+  await knex.raw(
+    `alter table outbox_messages add constraint outbox_messages_channel_shape check (channel ~ '^[a-z0-9][a-z0-9_-]{0,39}$')`,
+  );
+  await knex.raw(
+    "create index outbox_messages_due on outbox_messages (channel, next_attempt_at) where status in ('queued', 'sending')",
+  );
 }
 
 export async function down(knex: Knex): Promise<void> {

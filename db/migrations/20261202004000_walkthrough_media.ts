@@ -13,7 +13,9 @@ export async function up(knex: Knex): Promise<void> {
     t.integer('thumb_bytes');
     t.text('original_filename');
   });
-  await knex.raw('create unique index assessment_photos_client_ref on assessment_photos (assessment_id, client_ref) where client_ref is not null');
+  await knex.raw(
+    'create unique index assessment_photos_client_ref on assessment_photos (assessment_id, client_ref) where client_ref is not null',
+  );
 
   await knex.schema.alterTable('force_traces', (t) => {
     t.uuid('client_ref');
@@ -23,7 +25,9 @@ export async function up(knex: Knex): Promise<void> {
     t.double('gap_mm');
     t.text('original_filename');
   });
-  await knex.raw('create unique index force_traces_client_ref on force_traces (assessment_id, client_ref) where client_ref is not null');
+  await knex.raw(
+    'create unique index force_traces_client_ref on force_traces (assessment_id, client_ref) where client_ref is not null',
+  );
 }
 
 export async function down(knex: Knex): Promise<void> {

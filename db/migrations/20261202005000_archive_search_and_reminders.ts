@@ -20,11 +20,19 @@ const visitDateExpression = `(coalesce(visited_on, created_at))`;
 export async function up(knex: Knex): Promise<void> {
   await knex.raw('create extension if not exists pg_trgm');
   await knex.raw('create index gates_label_trgm on gates using gin (label gin_trgm_ops)');
-  await knex.raw(`create index sites_archive_address_trgm on sites using gin (${addressExpression} gin_trgm_ops)`);
-  await knex.raw(`create index assessments_archive_date on assessments (organisation_id, ${visitDateExpression} desc, id desc)`);
-  await knex.raw(`create index assessments_archive_gate_date on assessments (gate_id, ${visitDateExpression} desc, id desc)`);
+  await knex.raw(
+    `create index sites_archive_address_trgm on sites using gin (${addressExpression} gin_trgm_ops)`,
+  );
+  await knex.raw(
+    `create index assessments_archive_date on assessments (organisation_id, ${visitDateExpression} desc, id desc)`,
+  );
+  await knex.raw(
+    `create index assessments_archive_gate_date on assessments (gate_id, ${visitDateExpression} desc, id desc)`,
+  );
   await knex.raw('create index assessments_archive_version on assessments (ruleset_version_id, status, id)');
-  await knex.raw(`create index assessments_archive_signed_gate on assessments (organisation_id, gate_id, ${visitDateExpression} desc) where status = 'signed'`);
+  await knex.raw(
+    `create index assessments_archive_signed_gate on assessments (organisation_id, gate_id, ${visitDateExpression} desc) where status = 'signed'`,
+  );
   await knex.raw(`create index documents_signed_sha256 on documents (sha256) where kind = 'signed_report'`);
   await knex.raw('create index audit_events_organisation_id on audit_events (organisation_id, id)');
 

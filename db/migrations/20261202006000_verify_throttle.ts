@@ -13,10 +13,13 @@ async function allowKinds(knex: Knex, kinds: string[]): Promise<void> {
     `select conname from pg_constraint
       where conrelid = 'sign_in_attempts'::regclass and contype = 'c' and pg_get_constraintdef(oid) like '%kind%'`,
   );
-  for (const { conname } of rows) await knex.raw('alter table sign_in_attempts drop constraint ??', [conname]);
+  for (const { conname } of rows)
+    await knex.raw('alter table sign_in_attempts drop constraint ??', [conname]);
   // DDL takes no bound parameters; the kinds are this file's own constants.
   const list = kinds.map((kind) => `'${kind}'`).join(', ');
-  await knex.raw(`alter table sign_in_attempts add constraint sign_in_attempts_kind_check check (kind in (${list}))`);
+  await knex.raw(
+    `alter table sign_in_attempts add constraint sign_in_attempts_kind_check check (kind in (${list}))`,
+  );
 }
 
 export async function up(knex: Knex): Promise<void> {

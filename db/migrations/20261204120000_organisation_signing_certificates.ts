@@ -22,8 +22,12 @@ export async function up(knex: Knex): Promise<void> {
     t.text('uploaded_by_label');
     t.timestamp('uploaded_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
   });
-  await knex.raw(`alter table organisation_signing_certificates add constraint organisation_signing_certificates_sha256_hex check (sha256 ~ '^[0-9a-f]{64}$')`);
-  await knex.raw(`alter table organisation_signing_certificates add constraint organisation_signing_certificates_size check (octet_length(p12) <= 262144)`);
+  await knex.raw(
+    `alter table organisation_signing_certificates add constraint organisation_signing_certificates_sha256_hex check (sha256 ~ '^[0-9a-f]{64}$')`,
+  );
+  await knex.raw(
+    `alter table organisation_signing_certificates add constraint organisation_signing_certificates_size check (octet_length(p12) <= 262144)`,
+  );
 }
 
 export async function down(knex: Knex): Promise<void> {

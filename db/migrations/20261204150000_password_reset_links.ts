@@ -15,15 +15,21 @@ async function allowKinds(knex: Knex, kinds: string[]): Promise<void> {
     `select conname from pg_constraint
       where conrelid = 'sign_in_attempts'::regclass and contype = 'c' and pg_get_constraintdef(oid) like '%kind%'`,
   );
-  for (const { conname } of rows) await knex.raw('alter table sign_in_attempts drop constraint ??', [conname]);
+  for (const { conname } of rows)
+    await knex.raw('alter table sign_in_attempts drop constraint ??', [conname]);
   // DDL takes no bound parameters; the kinds are this file's own constants.
   const list = kinds.map((kind) => `'${kind}'`).join(', ');
-  await knex.raw(`alter table sign_in_attempts add constraint sign_in_attempts_kind_check check (kind in (${list}))`);
+  await knex.raw(
+    `alter table sign_in_attempts add constraint sign_in_attempts_kind_check check (kind in (${list}))`,
+  );
 }
 
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.alterTable('sign_in_links', (t) => {
-    t.text('purpose').notNullable().defaultTo('sign_in').checkIn(['sign_in', 'password_reset'], 'sign_in_links_purpose_check');
+    t.text('purpose')
+      .notNullable()
+      .defaultTo('sign_in')
+      .checkIn(['sign_in', 'password_reset'], 'sign_in_links_purpose_check');
   });
   await allowKinds(knex, KINDS_AFTER);
 }

@@ -36,7 +36,11 @@ function run(command: string, args: string[], env: NodeJS.ProcessEnv = process.e
     let stderr = '';
     child.stderr.on('data', (chunk: Buffer) => (stderr = (stderr + chunk.toString()).slice(-4000)));
     child.on('error', reject);
-    child.on('close', (code) => (code === 0 ? resolve() : reject(new Error(`${path.basename(command)} exited with ${code}: ${stderr.trim()}`))));
+    child.on('close', (code) =>
+      code === 0
+        ? resolve()
+        : reject(new Error(`${path.basename(command)} exited with ${code}: ${stderr.trim()}`)),
+    );
   });
 }
 
@@ -54,7 +58,9 @@ export function libpqEnv(databaseUrl: string): NodeJS.ProcessEnv {
 }
 
 /** The server's version, and the bin folder of matching client tools (PATH as a last resort). */
-export async function serverTools(databaseUrl: string): Promise<{ serverVersion: string; bin: (tool: string) => string }> {
+export async function serverTools(
+  databaseUrl: string,
+): Promise<{ serverVersion: string; bin: (tool: string) => string }> {
   const client = new pg.Client({ connectionString: databaseUrl });
   await client.connect();
   let serverVersion: string;
@@ -85,7 +91,9 @@ async function sha256File(file: string): Promise<string> {
 /** Every file under `dir` (relative paths); empty when it does not exist. */
 async function filesUnder(dir: string): Promise<string[]> {
   const entries = await fs.readdir(dir, { recursive: true, withFileTypes: true }).catch(() => []);
-  return entries.filter((e) => e.isFile() && !e.name.endsWith('.tmp')).map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
+  return entries
+    .filter((e) => e.isFile() && !e.name.endsWith('.tmp'))
+    .map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
 }
 
 export interface BackupOptions {
@@ -102,7 +110,11 @@ export async function backupDatabase(options: BackupOptions): Promise<BackupMani
   const work = await fs.mkdtemp(path.join(os.tmpdir(), 'latchwell-backup-'));
   try {
     const dump = path.join(work, 'database.dump');
-    await run(bin('pg_dump'), ['--format=custom', '--no-owner', '--no-privileges', `--file=${dump}`], libpqEnv(options.databaseUrl));
+    await run(
+      bin('pg_dump'),
+      ['--format=custom', '--no-owner', '--no-privileges', `--file=${dump}`],
+      libpqEnv(options.databaseUrl),
+    );
     const filesDir = path.join(options.dataDir, 'files');
     const files = await filesUnder(filesDir);
     const manifest: BackupManifest = {
@@ -150,24 +162,35 @@ export async function restoreDatabase(options: RestoreOptions): Promise<RestoreR
   const work = await fs.mkdtemp(path.join(os.tmpdir(), 'latchwell-restore-'));
   try {
     await run('tar', ['-xf', options.from, '-C', work]);
-    const manifest = JSON.parse(await fs.readFile(path.join(work, 'manifest.json'), 'utf8')) as BackupManifest;
-    if (manifest.format !== 'latchwell-backup/1') throw new Error(`${options.from} is not a Latchwell backup (format ${String(manifest.format)})`);
+    const manifest = JSON.parse(
+      await fs.readFile(path.join(work, 'manifest.json'), 'utf8'),
+    ) as BackupManifest;
+    if (manifest.format !== 'latchwell-backup/1')
+      throw new Error(`${options.from} is not a Latchwell backup (format ${String(manifest.format)})`);
     const dump = path.join(work, 'database.dump');
-    if ((await sha256File(dump)) !== manifest.dumpSha256) throw new Error('the database dump in the backup does not match its recorded SHA-256');
+    if ((await sha256File(dump)) !== manifest.dumpSha256)
+      throw new Error('the database dump in the backup does not match its recorded SHA-256');
 
     const database = decodeURIComponent(new URL(options.databaseUrl).pathname.slice(1));
-    if (!/^[A-Za-z0-9_]+$/.test(database)) throw new Error(`refusing to restore into a database named ${JSON.stringify(database)}`);
+    if (!/^[A-Za-z0-9_]+$/.test(database))
+      throw new Error(`refusing to restore into a database named ${JSON.stringify(database)}`);
     const admin = new pg.Client({ connectionString: options.adminUrl });
     await admin.connect();
     try {
       await admin.query(`drop database if exists "${database}" with (force)`);
       // Owned by the role that restores into it (the owner role), as migrations expect.
-      await admin.query(`create database "${database}" owner "${decodeURIComponent(new URL(options.databaseUrl).username).replace(/"/g, '""')}"`);
+      await admin.query(
+        `create database "${database}" owner "${decodeURIComponent(new URL(options.databaseUrl).username).replace(/"/g, '""')}"`,
+      );
     } finally {
       await admin.end();
     }
     const { bin } = await serverTools(options.databaseUrl);
-    await run(bin('pg_restore'), ['--no-owner', '--no-privileges', '--exit-on-error', `--dbname=${database}`, dump], libpqEnv(options.databaseUrl));
+    await run(
+      bin('pg_restore'),
+      ['--no-owner', '--no-privileges', '--exit-on-error', `--dbname=${database}`, dump],
+      libpqEnv(options.databaseUrl),
+    );
 
     const restoredFiles = path.join(work, 'files');
     const files = await filesUnder(restoredFiles);

@@ -17,7 +17,9 @@ if (isMain(import.meta.url)) {
     const { migrationUrl } = await ensureDatabase();
     const manifest = await backupDatabase({ databaseUrl: migrationUrl, dataDir, out });
     console.log(`backup written: ${out}`);
-    console.log(`  database ${manifest.database} (PostgreSQL ${manifest.serverVersion}), dump ${manifest.dumpBytes} bytes, ${manifest.files} data file(s)`);
+    console.log(
+      `  database ${manifest.database} (PostgreSQL ${manifest.serverVersion}), dump ${manifest.dumpBytes} bytes, ${manifest.files} data file(s)`,
+    );
   } catch (error) {
     console.error(`[backup] ${error instanceof Error ? error.message : String(error)}`);
     process.exit(1);

@@ -12,7 +12,10 @@ import { isMain } from './is-main';
 import { dataDir } from './services';
 
 if (isMain(import.meta.url)) {
-  const { values, positionals } = parseArgs({ allowPositionals: true, options: { yes: { type: 'boolean' }, database: { type: 'string' } } });
+  const { values, positionals } = parseArgs({
+    allowPositionals: true,
+    options: { yes: { type: 'boolean' }, database: { type: 'string' } },
+  });
   const from = positionals[0];
   if (!from) {
     console.error('usage: npm run db:restore -- <backup.tar> --yes [--database <name>]');
@@ -24,13 +27,22 @@ if (isMain(import.meta.url)) {
     if (values.database) target.pathname = `/${values.database}`;
     const name = target.pathname.slice(1);
     if (!values.yes) {
-      console.error(`This replaces the database "${name}" and adds the backup's files to ${path.join(dataDir, 'files')}. Run again with --yes to go ahead.`);
+      console.error(
+        `This replaces the database "${name}" and adds the backup's files to ${path.join(dataDir, 'files')}. Run again with --yes to go ahead.`,
+      );
       process.exit(2);
     }
-    const report = await restoreDatabase({ from: path.resolve(from), databaseUrl: target.toString(), adminUrl: endpoints.adminUrl, dataDir });
+    const report = await restoreDatabase({
+      from: path.resolve(from),
+      databaseUrl: target.toString(),
+      adminUrl: endpoints.adminUrl,
+      dataDir,
+    });
     // The dump carries no owners or grants: bring the schema up to date and grant the app role again.
     await migrateLatest(target.toString(), endpoints.appRole);
-    console.log(`restored ${report.manifest.database} (backed up ${report.manifest.createdAt}) into "${name}"; ${report.filesRestored} data file(s)`);
+    console.log(
+      `restored ${report.manifest.database} (backed up ${report.manifest.createdAt}) into "${name}"; ${report.filesRestored} data file(s)`,
+    );
     if (report.corruptFiles.length) {
       console.error(
         `[restore] ${report.corruptFiles.length} file(s) in the backup do not match their SHA-256 and were not restored:\n  ${report.corruptFiles.join('\n  ')}`,

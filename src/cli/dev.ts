@@ -12,12 +12,15 @@ import { authSecret, dataDir, projectRoot } from './services';
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
 // E-mailed links point at the dev server unless AUTH_URL / PUBLIC_URL says otherwise.
-if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) process.env.PUBLIC_URL = listeningOrigin(process.env.HOST ?? '127.0.0.1', process.env.PORT ?? 4321);
+if (!process.env.AUTH_URL && !process.env.PUBLIC_URL)
+  process.env.PUBLIC_URL = listeningOrigin(process.env.HOST ?? '127.0.0.1', process.env.PORT ?? 4321);
 const db = await ensureDatabase();
 await migrateLatest(db.migrationUrl, db.appRole);
 await publishRulesetFiles(db.migrationUrl);
 await seedIfEmpty(db.migrationUrl);
-const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort }).catch(() => undefined);
+const catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort }).catch(
+  () => undefined,
+);
 
 const child = spawn(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'dev'], {
   cwd: projectRoot,

@@ -13,7 +13,8 @@ export async function migrateLatest(connectionString: string, appRole?: string |
   const instance = knex(knexConfig(connectionString));
   try {
     const [, applied] = (await instance.migrate.latest()) as [number, string[]];
-    if (appRole && appRole !== decodeURIComponent(new URL(connectionString).username)) await grantAppRole(instance, appRole);
+    if (appRole && appRole !== decodeURIComponent(new URL(connectionString).username))
+      await grantAppRole(instance, appRole);
     return applied;
   } finally {
     await instance.destroy();
@@ -23,5 +24,9 @@ export async function migrateLatest(connectionString: string, appRole?: string |
 if (isMain(import.meta.url)) {
   const { migrationUrl, appRole } = await ensureDatabase();
   const applied = await migrateLatest(migrationUrl, appRole);
-  console.log(applied.length ? `applied ${applied.length} migration(s):\n  ${applied.join('\n  ')}` : 'database is up to date');
+  console.log(
+    applied.length
+      ? `applied ${applied.length} migration(s):\n  ${applied.join('\n  ')}`
+      : 'database is up to date',
+  );
 }

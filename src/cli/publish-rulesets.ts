@@ -26,7 +26,10 @@ export function rulesetFiles(root = path.join(projectRoot, 'rulesets')): string[
  * Publishes all shipped files (those under `root`, the repository's rulesets/ unless a test
  * names another folder); returns the "family version" labels newly published.
  */
-export async function publishRulesetFiles(connectionString: string, root = path.join(projectRoot, 'rulesets')): Promise<string[]> {
+export async function publishRulesetFiles(
+  connectionString: string,
+  root = path.join(projectRoot, 'rulesets'),
+): Promise<string[]> {
   const instance = knex(knexConfig(connectionString));
   const published: string[] = [];
   try {
@@ -40,7 +43,14 @@ export async function publishRulesetFiles(connectionString: string, root = path.
       }
       const { version: ruleset, contentSha256 } = loaded;
       const outcome = await publishShippedVersion(
-        { family: ruleset.family, title: ruleset.familyTitle, region: ruleset.region, version: ruleset.version, content: ruleset, contentSha256 },
+        {
+          family: ruleset.family,
+          title: ruleset.familyTitle,
+          region: ruleset.region,
+          version: ruleset.version,
+          content: ruleset,
+          contentSha256,
+        },
         instance,
       ).catch((error: Error) => {
         throw new Error(`${relative}: ${error.message}`);
@@ -57,7 +67,9 @@ if (isMain(import.meta.url)) {
   try {
     const { migrationUrl } = await ensureDatabase();
     const published = await publishRulesetFiles(migrationUrl);
-    console.log(published.length ? `published: ${published.join(', ')}` : 'all ruleset files are already published');
+    console.log(
+      published.length ? `published: ${published.join(', ')}` : 'all ruleset files are already published',
+    );
   } catch (error) {
     console.error(`[rulesets] ${(error as Error).message}`);
     process.exit(1);

@@ -21,5 +21,9 @@ export async function seedIfEmpty(connectionString: string): Promise<boolean> {
 
 if (isMain(import.meta.url)) {
   const { migrationUrl } = await ensureDatabase();
-  console.log((await seedIfEmpty(migrationUrl)) ? 'seeded the demo scenario' : 'database already has data; nothing seeded');
+  console.log(
+    (await seedIfEmpty(migrationUrl))
+      ? 'seeded the demo scenario'
+      : 'database already has data; nothing seeded',
+  );
 }

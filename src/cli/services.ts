@@ -13,14 +13,24 @@ export const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.u
 export const dataDir = path.resolve(process.env.LATCHWELL_DATA_DIR ?? path.join(projectRoot, '.data'));
 const distDir = path.join(projectRoot, 'dist');
 const serverEntry = path.join(distDir, 'server/entry.mjs');
-const buildInputs = ['src', 'public', 'astro.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json', 'knexfile.ts', 'auth.config.ts'];
+const buildInputs = [
+  'src',
+  'public',
+  'astro.config.mjs',
+  'package.json',
+  'package-lock.json',
+  'tsconfig.json',
+  'knexfile.ts',
+  'auth.config.ts',
+];
 
 function newestMtime(target: string): number {
   if (!fs.existsSync(target)) return 0;
   const stat = fs.statSync(target);
   if (!stat.isDirectory()) return stat.mtimeMs;
   let newest = stat.mtimeMs;
-  for (const entry of fs.readdirSync(target)) newest = Math.max(newest, newestMtime(path.join(target, entry)));
+  for (const entry of fs.readdirSync(target))
+    newest = Math.max(newest, newestMtime(path.join(target, entry)));
   return newest;
 }
 
@@ -34,7 +44,10 @@ export function buildIsStale(): boolean {
  * Runs `astro build` when the build is missing or older than its sources. Concurrent callers
  * (several test runs on one machine) take turns through a lock folder.
  */
-export async function ensureBuilt(log = console.log, quiet = process.env.LATCHWELL_QUIET === '1'): Promise<void> {
+export async function ensureBuilt(
+  log = console.log,
+  quiet = process.env.LATCHWELL_QUIET === '1',
+): Promise<void> {
   const lock = path.join(dataDir, 'build.lock');
   fs.mkdirSync(dataDir, { recursive: true });
   const deadline = Date.now() + 5 * 60_000;
@@ -61,13 +74,20 @@ export async function ensureBuilt(log = console.log, quiet = process.env.LATCHWE
     if (!buildIsStale()) return;
     log('[build] building the app (sources changed or no build yet)…');
     const started = performance.now();
-    const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/astro/astro.js'), 'build'], {
-      cwd: projectRoot,
-      stdio: quiet ? 'pipe' : 'inherit',
-      encoding: 'utf8',
-      maxBuffer: 64 * 1024 * 1024,
-    });
-    if (result.status !== 0) throw new Error(`astro build failed${result.stderr ? `:\n${result.stdout?.slice(-4000)}\n${result.stderr}` : ''}`);
+    const result = spawnSync(
+      process.execPath,
+      [path.join(projectRoot, 'node_modules/astro/astro.js'), 'build'],
+      {
+        cwd: projectRoot,
+        stdio: quiet ? 'pipe' : 'inherit',
+        encoding: 'utf8',
+        maxBuffer: 64 * 1024 * 1024,
+      },
+    );
+    if (result.status !== 0)
+      throw new Error(
+        `astro build failed${result.stderr ? `:\n${result.stdout?.slice(-4000)}\n${result.stderr}` : ''}`,
+      );
     log(`[build] done in ${((performance.now() - started) / 1000).toFixed(1)} s`);
   } finally {
     fs.rmSync(lock, { recursive: true, force: true });
@@ -125,11 +145,15 @@ export async function startAppServer(options: {
   entry?: string;
 }): Promise<RunningServer> {
   const host = options.host ?? '127.0.0.1';
-  const child = spawn(process.execPath, [options.entry ?? process.env.LATCHWELL_SERVER_ENTRY ?? serverEntry], {
-    cwd: projectRoot,
-    env: { ...process.env, ...options.env, HOST: host, PORT: String(options.port) },
-    stdio: options.quiet ? ['ignore', 'ignore', 'pipe'] : ['ignore', 'inherit', 'inherit'],
-  });
+  const child = spawn(
+    process.execPath,
+    [options.entry ?? process.env.LATCHWELL_SERVER_ENTRY ?? serverEntry],
+    {
+      cwd: projectRoot,
+      env: { ...process.env, ...options.env, HOST: host, PORT: String(options.port) },
+      stdio: options.quiet ? ['ignore', 'ignore', 'pipe'] : ['ignore', 'inherit', 'inherit'],
+    },
+  );
   let stderr = '';
   child.stderr?.on('data', (chunk: Buffer) => {
     stderr = (stderr + chunk.toString()).slice(-4000);
@@ -137,7 +161,8 @@ export async function startAppServer(options: {
   const url = `http://${host}:${options.port}`;
   const deadline = Date.now() + 30_000;
   for (;;) {
-    if (child.exitCode !== null || child.signalCode !== null) throw new Error(`server exited with ${child.exitCode ?? child.signalCode}: ${stderr}`);
+    if (child.exitCode !== null || child.signalCode !== null)
+      throw new Error(`server exited with ${child.exitCode ?? child.signalCode}: ${stderr}`);
     const ok = await fetch(`${url}/api/health`).then(
       () => true,
       () => false,

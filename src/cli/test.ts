@@ -9,7 +9,13 @@
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { appUrlFor, dropDatabase, ensureDatabase, recreateTestDatabase, stopDatabase } from '../../db/launcher';
+import {
+  appUrlFor,
+  dropDatabase,
+  ensureDatabase,
+  recreateTestDatabase,
+  stopDatabase,
+} from '../../db/launcher';
 import { migrateLatest } from './migrate';
 import { publishRulesetFiles } from './publish-rulesets';
 import { dataDir, projectRoot, snapshotBuild } from './services';
@@ -39,17 +45,21 @@ try {
       ];
   status = 0;
   for (const phase of phases) {
-    const result = spawnSync(process.execPath, [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), 'run', ...phase, ...passthrough], {
-      cwd: projectRoot,
-      stdio: 'inherit',
-      env: {
-        ...process.env,
-        TEST_DATABASE_URL: appUrlFor(db, testUrl),
-        TEST_MIGRATION_DATABASE_URL: testUrl,
-        TEST_ADMIN_DATABASE_URL: db.adminUrl,
-        ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
+    const result = spawnSync(
+      process.execPath,
+      [path.join(projectRoot, 'node_modules/vitest/vitest.mjs'), 'run', ...phase, ...passthrough],
+      {
+        cwd: projectRoot,
+        stdio: 'inherit',
+        env: {
+          ...process.env,
+          TEST_DATABASE_URL: appUrlFor(db, testUrl),
+          TEST_MIGRATION_DATABASE_URL: testUrl,
+          TEST_ADMIN_DATABASE_URL: db.adminUrl,
+          ...(entry ? { LATCHWELL_SERVER_ENTRY: entry } : {}),
+        },
       },
-    });
+    );
     if ((result.status ?? 1) !== 0) status = result.status ?? 1;
   }
 } finally {

@@ -18,7 +18,17 @@ interface Props {
   onCancel(): void;
 }
 
-export default function ConfirmDialog({ open, title, children, confirmLabel, cancelLabel, tone = 'normal', busy = false, onConfirm, onCancel }: Props) {
+export default function ConfirmDialog({
+  open,
+  title,
+  children,
+  confirmLabel,
+  cancelLabel,
+  tone = 'normal',
+  busy = false,
+  onConfirm,
+  onCancel,
+}: Props) {
   const dialog = useRef<HTMLDialogElement>(null);
   const cancel = useRef<HTMLButtonElement>(null);
   const id = useId();
@@ -52,7 +62,12 @@ export default function ConfirmDialog({ open, title, children, confirmLabel, can
           <button ref={cancel} type="button" className="btn-secondary" onClick={onCancel} disabled={busy}>
             {cancelLabel}
           </button>
-          <button type="button" className={tone === 'danger' ? 'btn bg-withdraw hover:bg-withdraw/90' : 'btn'} onClick={onConfirm} disabled={busy}>
+          <button
+            type="button"
+            className={tone === 'danger' ? 'btn bg-withdraw hover:bg-withdraw/90' : 'btn'}
+            onClick={onConfirm}
+            disabled={busy}
+          >
             {busy ? 'Working…' : confirmLabel}
           </button>
         </div>

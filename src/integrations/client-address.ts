@@ -35,7 +35,9 @@ export default function clientAddress(): AstroIntegration {
       },
       'astro:build:done': () => {
         if (!applied)
-          throw new Error('latchwell-client-address: the node adapter server entry was not found; the client address hook is missing from the build.');
+          throw new Error(
+            'latchwell-client-address: the node adapter server entry was not found; the client address hook is missing from the build.',
+          );
       },
     },
   };

@@ -10,7 +10,10 @@ export default function outboxWorker(): AstroIntegration {
     name: 'latchwell-outbox-worker',
     hooks: {
       'astro:config:setup': ({ addMiddleware }) => {
-        addMiddleware({ entrypoint: new URL('../lib/server/outbox-middleware.ts', import.meta.url), order: 'pre' });
+        addMiddleware({
+          entrypoint: new URL('../lib/server/outbox-middleware.ts', import.meta.url),
+          order: 'pre',
+        });
       },
     },
   };

@@ -77,4 +77,6 @@ export function viewParams(state: ArchiveViewState): URLSearchParams {
 /** Labels for the filters and the table: the vocabulary's own. */
 export { GATE_KIND_LABEL as GATE_KIND_LABELS, STATUS_LABEL as STATUS_LABELS } from './vocabulary';
 
-export const VERDICT_LABELS: Record<string, string> = Object.fromEntries(Object.entries(VERDICT_WORDS).map(([k, w]) => [k, w.label]));
+export const VERDICT_LABELS: Record<string, string> = Object.fromEntries(
+  Object.entries(VERDICT_WORDS).map(([k, w]) => [k, w.label]),
+);

@@ -18,7 +18,8 @@ export function setOutdoorMode(on: boolean): void {
   } catch {
     // Storage refused (private mode): the choice lasts for this page only.
   }
-  for (const button of document.querySelectorAll<HTMLButtonElement>('[data-outdoor-toggle]')) button.setAttribute('aria-pressed', String(on));
+  for (const button of document.querySelectorAll<HTMLButtonElement>('[data-outdoor-toggle]'))
+    button.setAttribute('aria-pressed', String(on));
 }
 
 export function wireOutdoorToggles(): void {

@@ -26,9 +26,15 @@ function exactInSixteenths(mm: number): boolean {
 export function formatParam(param: ParamLike, system: UnitSystem = 'metric'): string {
   const { value, unit } = param;
   if (typeof value !== 'number') return Array.isArray(value) ? value.join(', ') : String(value);
-  const stored = unit === 'count' || unit === undefined ? trimmed(value) : unit === 'deg' ? `${trimmed(value)}°` : `${trimmed(value)} ${unit}`;
+  const stored =
+    unit === 'count' || unit === undefined
+      ? trimmed(value)
+      : unit === 'deg'
+        ? `${trimmed(value)}°`
+        : `${trimmed(value)} ${unit}`;
   let other: string | null = null;
-  if (unit === 'mm') other = `${exactInSixteenths(value) ? '' : 'about '}${formatLength(value, 'imperial', { fractionDenominator: 16 })}`;
+  if (unit === 'mm')
+    other = `${exactInSixteenths(value) ? '' : 'about '}${formatLength(value, 'imperial', { fractionDenominator: 16 })}`;
   else if (unit === 'N') other = `about ${formatForce(value, 'imperial')}`;
   else if (unit === 'kg') other = `about ${formatMass(value, 'imperial')}`;
   else if (unit === 'm/s') other = `about ${formatSpeed(value, 'imperial')}`;
@@ -98,20 +104,33 @@ function words(node: unknown, ctx: WordsContext): string {
   }
   if (op in COMPARISONS) {
     // A three-argument < or <= reads as a range: "between a and c".
-    if ((op === '<' || op === '<=') && args.length === 3) return `${words(args[1], ctx)} is between ${words(args[0], ctx)} and ${words(args[2], ctx)}`;
+    if ((op === '<' || op === '<=') && args.length === 3)
+      return `${words(args[1], ctx)} is between ${words(args[0], ctx)} and ${words(args[2], ctx)}`;
     const [a, b] = args;
     // Yes/no facts and answers read as the answer itself: "hinge side guarded: yes".
     const answer =
-      b === true ? 'yes' : b === false ? 'no' : typeof b === 'string' && ['yes', 'no', 'na'].includes(b) ? (b === 'na' ? 'not applicable' : b) : null;
+      b === true
+        ? 'yes'
+        : b === false
+          ? 'no'
+          : typeof b === 'string' && ['yes', 'no', 'na'].includes(b)
+            ? b === 'na'
+              ? 'not applicable'
+              : b
+            : null;
     if (answer && (op === '==' || op === '===')) return `${words(a, ctx)}: ${answer}`;
     if (answer && (op === '!=' || op === '!==')) return `${words(a, ctx)}: not ${answer}`;
     return `${words(a, ctx)} ${COMPARISONS[op]} ${words(b, ctx)}`;
   }
   switch (op) {
     case 'and':
-      return args.length === 1 ? words(args[0], ctx) : `all of: ${args.map((a) => `(${words(a, ctx)})`).join(' and ')}`;
+      return args.length === 1
+        ? words(args[0], ctx)
+        : `all of: ${args.map((a) => `(${words(a, ctx)})`).join(' and ')}`;
     case 'or':
-      return args.length === 1 ? words(args[0], ctx) : `any of: ${args.map((a) => `(${words(a, ctx)})`).join(' or ')}`;
+      return args.length === 1
+        ? words(args[0], ctx)
+        : `any of: ${args.map((a) => `(${words(a, ctx)})`).join(' or ')}`;
     case '!':
       return `not (${words(args[0], ctx)})`;
     case '!!':
@@ -121,7 +140,8 @@ function words(node: unknown, ctx: WordsContext): string {
     case 'if':
     case '?:': {
       const parts: string[] = [];
-      for (let i = 0; i + 1 < args.length; i += 2) parts.push(`${i === 0 ? 'if' : 'else if'} ${words(args[i], ctx)} then ${words(args[i + 1], ctx)}`);
+      for (let i = 0; i + 1 < args.length; i += 2)
+        parts.push(`${i === 0 ? 'if' : 'else if'} ${words(args[i], ctx)} then ${words(args[i + 1], ctx)}`);
       if (args.length % 2 === 1) parts.push(`otherwise ${words(args[args.length - 1], ctx)}`);
       return parts.join(', ');
     }
@@ -148,6 +168,10 @@ function words(node: unknown, ctx: WordsContext): string {
 }
 
 /** A rule's condition (true when the gate passes) as a sentence. */
-export function describeCondition(logic: unknown, params: Readonly<Record<string, ParamLike>>, system: UnitSystem = 'metric'): string {
+export function describeCondition(
+  logic: unknown,
+  params: Readonly<Record<string, ParamLike>>,
+  system: UnitSystem = 'metric',
+): string {
   return words(logic, { params, system });
 }

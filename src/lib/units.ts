@@ -87,7 +87,8 @@ function factorFor(kind: MeasureKind, unit: string): number {
 }
 
 function finite(value: number, what: string): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new RangeError(`${what} must be a finite number`);
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    throw new RangeError(`${what} must be a finite number`);
   return value;
 }
 
@@ -193,22 +194,30 @@ export function formatLength(mm: number, system: UnitSystem, options: FormatLeng
   const feet = Math.floor(totalParts / (12 * denominator));
   const restInches = (totalParts - feet * 12 * denominator) / denominator;
   const sign = inches < 0 ? '-' : '';
-  return restInches === 0 ? `${sign}${feet} ft` : `${sign}${feet} ft ${inchesWithFraction(restInches, denominator)} in`;
+  return restInches === 0
+    ? `${sign}${feet} ft`
+    : `${sign}${feet} ft ${inchesWithFraction(restInches, denominator)} in`;
 }
 
 /** Formats a stored force (N) as newtons or pounds-force, 0.1 precision. */
 export function formatForce(newtons: number, system: UnitSystem): string {
-  return system === 'metric' ? `${trimmed(finite(newtons, 'Force'), 1)} N` : `${trimmed(fromNewtons(newtons, 'lbf'), 1)} lbf`;
+  return system === 'metric'
+    ? `${trimmed(finite(newtons, 'Force'), 1)} N`
+    : `${trimmed(fromNewtons(newtons, 'lbf'), 1)} lbf`;
 }
 
 /** Formats a stored mass (kg) as kilograms or pounds, 0.1 precision. */
 export function formatMass(kg: number, system: UnitSystem): string {
-  return system === 'metric' ? `${trimmed(finite(kg, 'Mass'), 1)} kg` : `${trimmed(fromKilograms(kg, 'lb'), 1)} lb`;
+  return system === 'metric'
+    ? `${trimmed(finite(kg, 'Mass'), 1)} kg`
+    : `${trimmed(fromKilograms(kg, 'lb'), 1)} lb`;
 }
 
 /** Formats a stored speed (m/s) as m/s or ft/s, 0.01 precision. */
 export function formatSpeed(metresPerSecond: number, system: UnitSystem): string {
-  return system === 'metric' ? `${trimmed(finite(metresPerSecond, 'Speed'), 2)} m/s` : `${trimmed(fromMetresPerSecond(metresPerSecond, 'ft/s'), 2)} ft/s`;
+  return system === 'metric'
+    ? `${trimmed(finite(metresPerSecond, 'Speed'), 2)} m/s`
+    : `${trimmed(fromMetresPerSecond(metresPerSecond, 'ft/s'), 2)} ft/s`;
 }
 
 /** Shows a measurement exactly as the technician entered it ("16 in"). */

@@ -15,13 +15,17 @@ export function formatDay(iso: string | Date | null, timeZone: string): string {
 
 export function formatDayTime(iso: string | Date | null, timeZone: string): string {
   if (!iso) return '—';
-  return new Intl.DateTimeFormat('en-US', { timeZone, dateStyle: 'medium', timeStyle: 'short' }).format(new Date(iso));
+  return new Intl.DateTimeFormat('en-US', { timeZone, dateStyle: 'medium', timeStyle: 'short' }).format(
+    new Date(iso),
+  );
 }
 
 /** A calendar date stored as `YYYY-MM-DD` (no time zone of its own), e.g. a due date: "Nov 17, 2027". */
 export function formatCalendarDate(isoDate: string | null): string {
   if (!isoDate) return '—';
-  return new Intl.DateTimeFormat('en-US', { timeZone: 'UTC', dateStyle: 'medium' }).format(new Date(`${isoDate.slice(0, 10)}T00:00:00Z`));
+  return new Intl.DateTimeFormat('en-US', { timeZone: 'UTC', dateStyle: 'medium' }).format(
+    new Date(`${isoDate.slice(0, 10)}T00:00:00Z`),
+  );
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -71,25 +75,33 @@ export function statusLabel(status: string): string {
  * The verdict as a status, never as an order on a button: its label says what happens to the
  * gate, and the explanation says why and what to do.
  */
-export const VERDICT_WORDS: Record<VerdictCode, { label: string; short: string; explanation: string; owner: string }> = {
+export const VERDICT_WORDS: Record<
+  VerdictCode,
+  { label: string; short: string; explanation: string; owner: string }
+> = {
   clear: {
     label: 'No hazard found above minor',
     short: 'No hazard above minor',
-    explanation: 'Nothing above a minor item fails. Keep the gate maintained and check it again when it is due.',
-    owner: 'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
+    explanation:
+      'Nothing above a minor item fails. Keep the gate maintained and check it again when it is due.',
+    owner:
+      'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
   },
   remedy: {
     label: 'Fix by a date',
     short: 'Fix by a date',
-    explanation: 'Hazards were found that must be fixed. The gate may stay in use, following the cautions, while the fixes are arranged by an agreed date.',
+    explanation:
+      'Hazards were found that must be fixed. The gate may stay in use, following the cautions, while the fixes are arranged by an agreed date.',
     owner:
       'The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.',
   },
   withdraw: {
     label: 'Take out of automatic use',
     short: 'Out of automatic use',
-    explanation: 'A critical hazard was found. Switch the operator off or to manual release until the critical fixes are done and checked.',
-    owner: 'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
+    explanation:
+      'A critical hazard was found. Switch the operator off or to manual release until the critical fixes are done and checked.',
+    owner:
+      'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
   },
 };
 
@@ -104,7 +116,11 @@ export const VERDICT_CLASS: Record<VerdictCode, string> = {
   withdraw: 'bg-withdraw text-white',
 };
 
-export const SEVERITY_LABEL: Record<'critical' | 'major' | 'minor', string> = { critical: 'Critical', major: 'Major', minor: 'Minor' };
+export const SEVERITY_LABEL: Record<'critical' | 'major' | 'minor', string> = {
+  critical: 'Critical',
+  major: 'Major',
+  minor: 'Minor',
+};
 
 export const OUTCOME_LABEL: Record<'pass' | 'fail' | 'n/a' | 'needs_info', string> = {
   pass: 'Passes',
@@ -113,7 +129,11 @@ export const OUTCOME_LABEL: Record<'pass' | 'fail' | 'n/a' | 'needs_info', strin
   needs_info: 'Needs information',
 };
 
-export const PURPOSE_LABEL: Record<string, string> = { inspection: 'Inspection', service: 'Service visit', handover: 'Handover of a new install' };
+export const PURPOSE_LABEL: Record<string, string> = {
+  inspection: 'Inspection',
+  service: 'Service visit',
+  handover: 'Handover of a new install',
+};
 
 /** Hazard areas, for when the ruleset's own titles are not at hand. */
 export const AREA_LABEL: Record<string, string> = {
@@ -151,9 +171,18 @@ export function usageClassLabel(usageClass: number | null | undefined): string {
   return usageClass ? `usage class ${ROMAN[usageClass] ?? usageClass}` : 'usage class not set';
 }
 
-export const CLIENT_KIND_LABEL: Record<string, string> = { homeowner: 'Homeowner', property_manager: 'Property manager', business: 'Business' };
+export const CLIENT_KIND_LABEL: Record<string, string> = {
+  homeowner: 'Homeowner',
+  property_manager: 'Property manager',
+  business: 'Business',
+};
 
-export const ROLE_LABEL: Record<string, string> = { owner: 'Owner', office: 'Office', auditor: 'Auditor', homeowner: 'Homeowner or manager' };
+export const ROLE_LABEL: Record<string, string> = {
+  owner: 'Owner',
+  office: 'Office',
+  auditor: 'Auditor',
+  homeowner: 'Homeowner or manager',
+};
 
 /** A ruleset as people name it: "North American automated vehicular gates 2026.1". */
 export function rulesetLabel(ruleset: { title?: string | null; family: string; version: string }): string {

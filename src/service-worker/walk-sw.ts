@@ -46,16 +46,28 @@ const walkPages = new NetworkFirst({
   cacheName: PAGES,
   // A weak signal that answers nothing for this long is treated as none.
   networkTimeoutSeconds: 10,
-  plugins: [new CacheableResponsePlugin({ statuses: [200] }), notRedirected, new ExpirationPlugin({ maxEntries: 40, maxAgeSeconds: 30 * 24 * 3600 })],
+  plugins: [
+    new CacheableResponsePlugin({ statuses: [200] }),
+    notRedirected,
+    new ExpirationPlugin({ maxEntries: 40, maxAgeSeconds: 30 * 24 * 3600 }),
+  ],
 });
 
 const photoFiles = new CacheFirst({
   cacheName: PHOTOS,
-  plugins: [new CacheableResponsePlugin({ statuses: [200] }), notRedirected, new ExpirationPlugin({ maxEntries: 400, maxAgeSeconds: 30 * 24 * 3600 })],
+  plugins: [
+    new CacheableResponsePlugin({ statuses: [200] }),
+    notRedirected,
+    new ExpirationPlugin({ maxEntries: 400, maxAgeSeconds: 30 * 24 * 3600 }),
+  ],
 });
 
-const isWalkPage = (url: URL) => url.origin === self.location.origin && WALK_PAGE.test(url.pathname) && url.search === '';
-const isPhotoFile = (url: URL) => url.origin === self.location.origin && PHOTO_FILE.test(url.pathname) && /^\?size=(thumb|display)$/.test(url.search);
+const isWalkPage = (url: URL) =>
+  url.origin === self.location.origin && WALK_PAGE.test(url.pathname) && url.search === '';
+const isPhotoFile = (url: URL) =>
+  url.origin === self.location.origin &&
+  PHOTO_FILE.test(url.pathname) &&
+  /^\?size=(thumb|display)$/.test(url.search);
 
 registerRoute(({ url, request }) => request.method === 'GET' && isWalkPage(url), walkPages);
 registerRoute(({ url, request }) => request.method === 'GET' && isPhotoFile(url), photoFiles);
@@ -75,7 +87,11 @@ async function adoptOwner(user: string): Promise<void> {
 
 self.addEventListener('fetch', (event) => {
   const url = new URL(event.request.url);
-  if (event.request.method !== 'GET' && url.origin === self.location.origin && SESSION_CHANGE.test(url.pathname)) {
+  if (
+    event.request.method !== 'GET' &&
+    url.origin === self.location.origin &&
+    SESSION_CHANGE.test(url.pathname)
+  ) {
     // Not answered here: the request goes on to the server as usual.
     event.waitUntil(forgetPerson());
   }
@@ -107,8 +123,16 @@ self.addEventListener('message', (event) => {
   event.waitUntil(
     (async () => {
       await adoptOwner(data.user);
-      const response = await walkPages.handle({ event, request: new Request(page.href, { credentials: 'same-origin' }) }).catch(() => null);
-      await Promise.all(photos.map((u) => photoFiles.handle({ event, request: new Request(u.href, { credentials: 'same-origin' }) }).catch(() => null)));
+      const response = await walkPages
+        .handle({ event, request: new Request(page.href, { credentials: 'same-origin' }) })
+        .catch(() => null);
+      await Promise.all(
+        photos.map((u) =>
+          photoFiles
+            .handle({ event, request: new Request(u.href, { credentials: 'same-origin' }) })
+            .catch(() => null),
+        ),
+      );
       reply(Boolean(response?.ok && !response.redirected));
     })(),
   );

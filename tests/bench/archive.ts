@@ -56,7 +56,8 @@ const PASSWORD = 'bench-gate-pass-2026';
 const REPEATS = 25;
 
 const round2 = (n: number) => Math.round(n * 100) / 100;
-const percentile = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] ?? NaN;
+const percentile = (sorted: number[], p: number) =>
+  sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] ?? NaN;
 
 async function scratchDatabase(adminUrl: string, appUrl: string, reseed: boolean): Promise<string> {
   const admin = new pg.Client({ connectionString: adminUrl });
@@ -64,7 +65,10 @@ async function scratchDatabase(adminUrl: string, appUrl: string, reseed: boolean
   try {
     if (reseed) await admin.query(`drop database if exists "${DATABASE}" with (force)`);
     const { rowCount } = await admin.query('select 1 from pg_database where datname = $1', [DATABASE]);
-    if (!rowCount) await admin.query(`create database "${DATABASE}" owner "${decodeURIComponent(new URL(appUrl).username)}"`);
+    if (!rowCount)
+      await admin.query(
+        `create database "${DATABASE}" owner "${decodeURIComponent(new URL(appUrl).username)}"`,
+      );
   } finally {
     await admin.end();
   }
@@ -93,7 +97,16 @@ const CLIENT_WORDS = [
   'Linden',
   'Marsh',
 ];
-const CLIENT_KINDS = ['Lettings', 'Household', 'Storage', 'Residents', 'Estates', 'Logistics', 'Farm', 'Court Association'];
+const CLIENT_KINDS = [
+  'Lettings',
+  'Household',
+  'Storage',
+  'Residents',
+  'Estates',
+  'Logistics',
+  'Farm',
+  'Court Association',
+];
 const STREETS = [
   'Fennick Row',
   'Tollbar Yard',
@@ -108,7 +121,16 @@ const STREETS = [
   'Ashby Mews',
   'Linden Crescent',
 ];
-const CITIES = ['Eastholm', 'Westmarch', 'Saltmere', 'Northwick', 'Brookhaven', 'Hollins', 'Greyford', 'Marlow Cross'];
+const CITIES = [
+  'Eastholm',
+  'Westmarch',
+  'Saltmere',
+  'Northwick',
+  'Brookhaven',
+  'Hollins',
+  'Greyford',
+  'Marlow Cross',
+];
 const GATE_LABELS = [
   'Front drive gate',
   'Rear yard slider',
@@ -122,7 +144,9 @@ const GATE_LABELS = [
 
 const sqlArray = (values: string[]) => `array[${values.map((v) => `'${v.replace(/'/g, "''")}'`).join(',')}]`;
 
-async function seed(db: Knex): Promise<{ organisationId: string; officeEmail: string; auditorIds: string[] }> {
+async function seed(
+  db: Knex,
+): Promise<{ organisationId: string; officeEmail: string; auditorIds: string[] }> {
   const started = performance.now();
   const [v2015] = await db('ruleset_versions as rv')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
@@ -139,8 +163,13 @@ async function seed(db: Knex): Promise<{ organisationId: string; officeEmail: st
     const usageClass = 1 + (p % 4);
     for (let v = 0; v < VARIANTS; v++) {
       const documents = sampleDocuments(prng, loaded.version, 0.97);
-      const built = buildEngineInput({ ...gate, usageClass } as never, documents as never, loaded.version.questions);
-      if (!built.ok) throw new Error(`generated record does not build: ${JSON.stringify(built.errors).slice(0, 300)}`);
+      const built = buildEngineInput(
+        { ...gate, usageClass } as never,
+        documents as never,
+        loaded.version.questions,
+      );
+      if (!built.ok)
+        throw new Error(`generated record does not build: ${JSON.stringify(built.errors).slice(0, 300)}`);
       const result = scoreParsed(built.value, loaded);
       pool.push({
         profile: p,
@@ -157,15 +186,23 @@ async function seed(db: Knex): Promise<{ organisationId: string; officeEmail: st
       });
     }
   }
-  console.log(`  scored ${pool.length} walk-through records in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  console.log(
+    `  scored ${pool.length} walk-through records in ${((performance.now() - started) / 1000).toFixed(1)} s`,
+  );
 
   const hash = await hashPassword(PASSWORD);
   return db.transaction(async (trx) => {
-    const [org] = await trx('organisations').insert({ name: 'Benchmark Gate Works', slug: SEED_MARK, time_zone: 'UTC' }).returning('id');
+    const [org] = await trx('organisations')
+      .insert({ name: 'Benchmark Gate Works', slug: SEED_MARK, time_zone: 'UTC' })
+      .returning('id');
     const staff = [
       { email: 'owner@bench-archive.test', name: 'Bench Owner', role: 'owner' },
       { email: 'office@bench-archive.test', name: 'Bench Office', role: 'office' },
-      ...Array.from({ length: 8 }, (_, i) => ({ email: `auditor${i + 1}@bench-archive.test`, name: `Bench Auditor ${i + 1}`, role: 'auditor' })),
+      ...Array.from({ length: 8 }, (_, i) => ({
+        email: `auditor${i + 1}@bench-archive.test`,
+        name: `Bench Auditor ${i + 1}`,
+        role: 'auditor',
+      })),
     ];
     const users = await trx('users')
       .insert(staff.map((s) => ({ ...s, organisation_id: org.id, password_hash: hash })))
@@ -264,7 +301,9 @@ async function signInCookie(baseUrl: string, email: string): Promise<string> {
     }
   };
   const cookie = () => [...jar].map(([k, v]) => `${k}=${v}`).join('; ');
-  const csrf = await fetch(`${baseUrl}/api/auth/csrf`, { headers: { accept: 'application/json', origin: baseUrl } });
+  const csrf = await fetch(`${baseUrl}/api/auth/csrf`, {
+    headers: { accept: 'application/json', origin: baseUrl },
+  });
   keep(csrf);
   const { csrfToken } = (await csrf.json()) as { csrfToken: string };
   const res = await fetch(`${baseUrl}/api/auth/callback/credentials`, {
@@ -274,13 +313,20 @@ async function signInCookie(baseUrl: string, email: string): Promise<string> {
     body: new URLSearchParams({ email, password: PASSWORD, csrfToken, callbackUrl: '/' }),
   });
   keep(res);
-  if (![...jar.keys()].some((k) => k.includes('session-token'))) throw new Error(`bench sign-in failed: ${res.status} ${res.headers.get('location')}`);
+  if (![...jar.keys()].some((k) => k.includes('session-token')))
+    throw new Error(`bench sign-in failed: ${res.status} ${res.headers.get('location')}`);
   return cookie();
 }
 
-async function timeGet(baseUrl: string, cookie: string, path: string): Promise<{ ms: number; body: unknown }> {
+async function timeGet(
+  baseUrl: string,
+  cookie: string,
+  path: string,
+): Promise<{ ms: number; body: unknown }> {
   const started = performance.now();
-  const res = await fetch(`${baseUrl}${path}`, { headers: { cookie, accept: 'application/json', origin: baseUrl } });
+  const res = await fetch(`${baseUrl}${path}`, {
+    headers: { cookie, accept: 'application/json', origin: baseUrl },
+  });
   const body = await res.json();
   const ms = performance.now() - started;
   if (!res.ok) throw new Error(`${path} answered ${res.status}: ${JSON.stringify(body).slice(0, 300)}`);
@@ -291,7 +337,11 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
   process.env.LATCHWELL_QUIET ??= '1';
   const endpoints = await ensureDatabase();
   // Migrated and seeded as the owner role; the server runs as the app role, as in production.
-  const databaseUrl = await scratchDatabase(endpoints.adminUrl, endpoints.migrationUrl, process.env.ARCHIVE_BENCH_RESEED === '1');
+  const databaseUrl = await scratchDatabase(
+    endpoints.adminUrl,
+    endpoints.migrationUrl,
+    process.env.ARCHIVE_BENCH_RESEED === '1',
+  );
   await migrateLatest(databaseUrl, endpoints.appRole);
   await publishRulesetFiles(databaseUrl);
   const db = knex({ ...knexConfig(databaseUrl), pool: { min: 0, max: 4 } });
@@ -301,7 +351,9 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     if (!org) {
       if (await db('organisations').where('slug', SEED_MARK).first('id'))
         throw new Error(`${DATABASE} holds a half-finished seed: run with ARCHIVE_BENCH_RESEED=1`);
-      console.log(`Seeding ${DATABASE}: ${GATES.toLocaleString('en-GB')} gates, ${(GATES * VISITS_PER_GATE).toLocaleString('en-GB')} assessments…`);
+      console.log(
+        `Seeding ${DATABASE}: ${GATES.toLocaleString('en-GB')} gates, ${(GATES * VISITS_PER_GATE).toLocaleString('en-GB')} assessments…`,
+      );
       const started = performance.now();
       await seed(db);
       await db.raw('analyze');
@@ -309,9 +361,14 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       org = await db('organisations').where('slug', `${SEED_MARK}-done`).first('id');
     }
     const organisationId = org.id as string;
-    const [{ n: assessments }] = await db('assessments').where('organisation_id', organisationId).count({ n: '*' });
+    const [{ n: assessments }] = await db('assessments')
+      .where('organisation_id', organisationId)
+      .count({ n: '*' });
     const [{ n: gates }] = await db('gates').where('organisation_id', organisationId).count({ n: '*' });
-    const auditor = await db('users').where({ organisation_id: organisationId, role: 'auditor' }).orderBy('email').first('id');
+    const auditor = await db('users')
+      .where({ organisation_id: organisationId, role: 'auditor' })
+      .orderBy('email')
+      .first('id');
 
     // The list API, over HTTP, as the office.
     await ensureBuilt(console.log, true);
@@ -365,7 +422,8 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     }
     all.sort((a, b) => a - b);
     const counts: number[] = [];
-    for (let r = 0; r < 10; r++) counts.push((await timeGet(server.url, cookie, '/api/archive/count?gateKind=slide&status=signed')).ms);
+    for (let r = 0; r < 10; r++)
+      counts.push((await timeGet(server.url, cookie, '/api/archive/count?gateKind=slide&status=signed')).ms);
     counts.sort((a, b) => a - b);
     await server.stop();
     server = undefined;
@@ -405,12 +463,16 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
         .map((l) => l.toFixed(1))
         .join(' ')}`,
     );
-    console.log(`Archive of ${figures.assessments.toLocaleString('en-GB')} assessments across ${figures.gates.toLocaleString('en-GB')} gates (${DATABASE})`);
+    console.log(
+      `Archive of ${figures.assessments.toLocaleString('en-GB')} assessments across ${figures.gates.toLocaleString('en-GB')} gates (${DATABASE})`,
+    );
     console.log(
       `  list API over HTTP, ${REPEATS} rounds of ${Object.keys(filters).length} typical filters: p50 ${figures.listP50Ms} ms, p95 ${figures.listP95Ms} ms (target p95 < 50 ms)`,
     );
     for (const [name, f] of Object.entries(perFilter))
-      console.log(`    ${name.padEnd(24)} p50 ${String(f.p50).padStart(7)} ms   p95 ${String(f.p95).padStart(7)} ms`);
+      console.log(
+        `    ${name.padEnd(24)} p50 ${String(f.p50).padStart(7)} ms   p95 ${String(f.p95).padStart(7)} ms`,
+      );
     console.log(`  count (kind + status): p95 ${figures.countP95Ms} ms`);
     console.log(
       `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each, ${report.workers ? `${report.workers} worker threads` : 'one thread'}; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,

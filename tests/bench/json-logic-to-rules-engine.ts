@@ -9,7 +9,16 @@ import type { RulesetVersion } from '@/lib/rules';
 
 type Condition = NestedCondition;
 
-const FLIP: Record<string, string> = { '<': '>', '<=': '>=', '>': '<', '>=': '<=', '==': '==', '===': '===', '!=': '!=', '!==': '!==' };
+const FLIP: Record<string, string> = {
+  '<': '>',
+  '<=': '>=',
+  '>': '<',
+  '>=': '<=',
+  '==': '==',
+  '===': '===',
+  '!=': '!=',
+  '!==': '!==',
+};
 const OPERATOR: Record<string, { operator: string; negate?: true }> = {
   '==': { operator: 'looseEqual' },
   '===': { operator: 'equal' },
@@ -21,7 +30,8 @@ const OPERATOR: Record<string, { operator: string; negate?: true }> = {
   '>=': { operator: 'greaterThanInclusive' },
 };
 
-const isLogic = (n: unknown): n is Record<string, unknown> => typeof n === 'object' && n !== null && !Array.isArray(n) && Object.keys(n).length === 1;
+const isLogic = (n: unknown): n is Record<string, unknown> =>
+  typeof n === 'object' && n !== null && !Array.isArray(n) && Object.keys(n).length === 1;
 
 function translate(node: unknown, params: Record<string, unknown>): Condition | null {
   if (!isLogic(node)) return null;
@@ -56,7 +66,12 @@ function side(node: unknown, params: Record<string, unknown>): { fact: string } 
   return { value: node };
 }
 
-function compare(op: string, left: unknown, right: unknown, params: Record<string, unknown>): Condition | null {
+function compare(
+  op: string,
+  left: unknown,
+  right: unknown,
+  params: Record<string, unknown>,
+): Condition | null {
   let a = side(left, params);
   let b = side(right, params);
   if (!a || !b) return null;
@@ -93,7 +108,9 @@ export function referenceEngineFor(version: RulesetVersion): ReferenceEngine {
       continue;
     }
     const conditions: TopLevelCondition =
-      'all' in condition || 'any' in condition || 'not' in condition ? (condition as TopLevelCondition) : { all: [condition] };
+      'all' in condition || 'any' in condition || 'not' in condition
+        ? (condition as TopLevelCondition)
+        : { all: [condition] };
     engine.addRule({ name: rule.id, conditions, event: { type: rule.id } });
     translated += 1;
   }
@@ -101,7 +118,11 @@ export function referenceEngineFor(version: RulesetVersion): ReferenceEngine {
 }
 
 /** Facts as json-rules-engine reads them: one fact per dotted path (`m.hingeGapMm`). */
-export function flattenFacts(facts: unknown, prefix = '', out: Record<string, unknown> = {}): Record<string, unknown> {
+export function flattenFacts(
+  facts: unknown,
+  prefix = '',
+  out: Record<string, unknown> = {},
+): Record<string, unknown> {
   if (facts && typeof facts === 'object' && !Array.isArray(facts)) {
     for (const [k, v] of Object.entries(facts)) flattenFacts(v, prefix ? `${prefix}.${k}` : k, out);
   } else if (prefix) {

@@ -57,7 +57,9 @@ function run(options: autocannon.Options): Promise<Result> {
   });
 }
 
-export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 30)): Promise<Record<string, number>> {
+export async function runLoadBench(
+  seconds = Number(process.env.LOAD_SECONDS ?? 30),
+): Promise<Record<string, number>> {
   const app = await startBenchApp();
   const base = app.server.url;
   try {
@@ -65,9 +67,13 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
     const auditor = await signInCookie(base, 'auditor@quillmoor.test', demoPassword);
     const headers = (cookie: string) => ({ cookie, origin: base, accept: 'application/json' });
 
-    const list = await (await fetch(`${base}/api/assessments?status=signed&pageSize=5`, { headers: headers(office) })).json();
+    const list = await (
+      await fetch(`${base}/api/assessments?status=signed&pageSize=5`, { headers: headers(office) })
+    ).json();
     const readId: string = list.items[0].id;
-    const gates = await (await fetch(`${base}/api/gates?kind=swing&pageSize=50`, { headers: headers(auditor) })).json();
+    const gates = await (
+      await fetch(`${base}/api/gates?kind=swing&pageSize=50`, { headers: headers(auditor) })
+    ).json();
 
     // Drafts of their own for the autosaving virtual users: twice the connections, so a
     // request lost to a timeout (whose draft is never handed back) does not leave one short.
@@ -76,13 +82,18 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
       const res = await fetch(`${base}/api/assessments`, {
         method: 'POST',
         headers: { ...headers(auditor), 'content-type': 'application/json' },
-        body: JSON.stringify({ gateId: gates.items[i % gates.items.length].id, family: 'north-american-gate', purpose: 'service' }),
+        body: JSON.stringify({
+          gateId: gates.items[i % gates.items.length].id,
+          family: 'north-american-gate',
+          purpose: 'service',
+        }),
       });
       if (!res.ok) throw new Error(`creating a bench draft answered ${res.status}: ${await res.text()}`);
       const draft = await res.json();
       drafts.push({ id: draft.id, version: draft.rowVersion });
     }
-    if (new Set(drafts.map((d) => d.id)).size !== drafts.length) throw new Error('the bench drafts are not all distinct');
+    if (new Set(drafts.map((d) => d.id)).size !== drafts.length)
+      throw new Error('the bench drafts are not all distinct');
     // Drafts not in flight. A connection takes one when it builds a save and hands it back when
     // the answer arrives (with the new row version on a 200), so no two saves in flight ever
     // share a draft. autocannon clears a connection's context after every answer, hence the
@@ -95,7 +106,12 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
     const targets: Record<string, autocannon.Options> = {
       archive: { url: `${base}/api/archive?verdict=remedy&sort=-date&limit=25`, headers: headers(office) },
       read: { url: `${base}/api/assessments/${readId}`, headers: headers(office) },
-      score: { url: `${base}/api/score`, method: 'POST', headers: { ...headers(auditor), 'content-type': 'application/json' }, body: scoreBody },
+      score: {
+        url: `${base}/api/score`,
+        method: 'POST',
+        headers: { ...headers(auditor), 'content-type': 'application/json' },
+        body: scoreBody,
+      },
       autosave: {
         url: base,
         headers: { ...headers(auditor), 'content-type': 'application/json' },
@@ -111,7 +127,9 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
                 ...req,
                 path: `/api/assessments/${own.draft.id}`,
                 headers: { ...req.headers, 'if-match': `"${own.draft.version}"` },
-                body: JSON.stringify({ answers: { latchFitted: { value: 'no', note: `autosave ${Date.now()}` } } }),
+                body: JSON.stringify({
+                  answers: { latchFitted: { value: 'no', note: `autosave ${Date.now()}` } },
+                }),
               };
             },
             onResponse: (status, body, context) => {
@@ -146,9 +164,12 @@ export async function runLoadBench(seconds = Number(process.env.LOAD_SECONDS ?? 
       console.log(
         `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`,
       );
-      if (name === 'autosave') for (const [status, body] of Object.entries(autosaveSamples)) console.log(`          first ${status}: ${body}`);
+      if (name === 'autosave')
+        for (const [status, body] of Object.entries(autosaveSamples))
+          console.log(`          first ${status}: ${body}`);
     }
-    for (const name of ['archive', 'read', 'score', 'autosave']) out[`${name}VsHealth`] = out[`${name}Rps`] / out.healthRps;
+    for (const name of ['archive', 'read', 'score', 'autosave'])
+      out[`${name}VsHealth`] = out[`${name}Rps`] / out.healthRps;
     return out;
   } finally {
     await app.server.stop();

@@ -52,19 +52,28 @@ function staticClosure(entries: string[]): Set<string> {
 /** The island's entry: the WalkThrough chunk that re-exports the component as `default`. */
 function walkEntry(files: string[]): string {
   const candidates = files.filter((f) => /^WalkThrough\.[\w-]+\.js$/.test(f));
-  const entry = candidates.find((f) => /export\s*\{[^}]*\bas default\b|export default/.test(fs.readFileSync(path.join(assetsDir, f), 'utf8')));
-  if (!entry) throw new Error(`no WalkThrough entry chunk among ${candidates.join(', ') || 'the build files'}`);
+  const entry = candidates.find((f) =>
+    /export\s*\{[^}]*\bas default\b|export default/.test(fs.readFileSync(path.join(assetsDir, f), 'utf8')),
+  );
+  if (!entry)
+    throw new Error(`no WalkThrough entry chunk among ${candidates.join(', ') || 'the build files'}`);
   return entry;
 }
 
 /** The React renderer's hydration script (`@astrojs/react/client.js`), the one chunk that holds react-dom's client. */
 function reactRenderer(files: string[]): string {
-  const renderer = files.find((f) => /^client\.[\w-]+\.js$/.test(f) && /hydrateRoot|createRoot/.test(fs.readFileSync(path.join(assetsDir, f), 'utf8')));
+  const renderer = files.find(
+    (f) =>
+      /^client\.[\w-]+\.js$/.test(f) &&
+      /hydrateRoot|createRoot/.test(fs.readFileSync(path.join(assetsDir, f), 'utf8')),
+  );
   if (!renderer) throw new Error('no React renderer chunk (client.*.js) in the build');
   return renderer;
 }
 
-export async function runPageWeightBench(log: (line: string) => void = console.log): Promise<PageWeightFigures> {
+export async function runPageWeightBench(
+  log: (line: string) => void = console.log,
+): Promise<PageWeightFigures> {
   await ensureBuilt(() => {});
   const files = fs.readdirSync(assetsDir);
   const entry = walkEntry(files);
@@ -72,9 +81,13 @@ export async function runPageWeightBench(log: (line: string) => void = console.l
   const pageScripts = files.filter((f) => /^walk\.astro_astro_type_script/.test(f));
   const initial = staticClosure([entry, renderer, ...pageScripts]);
   const lazy = new Set<string>();
-  for (const file of initial) for (const target of importsOf(file, DYNAMIC_IMPORT)) for (const f of staticClosure([target])) if (!initial.has(f)) lazy.add(f);
+  for (const file of initial)
+    for (const target of importsOf(file, DYNAMIC_IMPORT))
+      for (const f of staticClosure([target])) if (!initial.has(f)) lazy.add(f);
 
-  const sized = [...initial].map((f) => ({ f, raw: fs.statSync(path.join(assetsDir, f)).size, gz: gzip(f) })).sort((a, b) => b.gz - a.gz);
+  const sized = [...initial]
+    .map((f) => ({ f, raw: fs.statSync(path.join(assetsDir, f)).size, gz: gzip(f) }))
+    .sort((a, b) => b.gz - a.gz);
   const lazySized = [...lazy].map((f) => ({ f, gz: gzip(f) })).sort((a, b) => b.gz - a.gz);
   const css = files.filter((f) => f.endsWith('.css')).map((f) => gzip(f));
   const figures: PageWeightFigures = {

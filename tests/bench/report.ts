@@ -29,7 +29,8 @@ export interface ReportBenchFigures {
 
 const RUNS = 9;
 
-const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)] as number;
+const median = (values: number[]) =>
+  [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)] as number;
 const round1 = (n: number) => Math.round(n * 10) / 10;
 const cpuMs = (since: NodeJS.CpuUsage) => {
   const used = process.cpuUsage(since);
@@ -56,8 +57,17 @@ export async function runReportBench(): Promise<ReportBenchFigures> {
   const signTimes: number[] = [];
   const signCpu: number[] = [];
   try {
-    const certificate = organisationCertificate({ id: source.organisation.id, name: source.organisation.name });
-    const details = { reason: 'Benchmark', name: source.organisation.name, contactInfo: 'bench@latchwell.test', location: 'Bench', signingTime: new Date() };
+    const certificate = organisationCertificate({
+      id: source.organisation.id,
+      name: source.organisation.name,
+    });
+    const details = {
+      reason: 'Benchmark',
+      name: source.organisation.name,
+      contactInfo: 'bench@latchwell.test',
+      location: 'Bench',
+      signingTime: new Date(),
+    };
     await signPdfWithCertificate(pdf, certificate.p12, certificate.passphrase, details);
     for (let i = 0; i < RUNS; i++) {
       const cpu = process.cpuUsage();

@@ -25,7 +25,14 @@ interface Bench {
   rows: Check;
 }
 
-const row = (bench: string, figure: string, value: number | undefined, unit: string, target: string, ok: (v: number) => boolean | null): Row => ({
+const row = (
+  bench: string,
+  figure: string,
+  value: number | undefined,
+  unit: string,
+  target: string,
+  ok: (v: number) => boolean | null,
+): Row => ({
   bench,
   figure,
   value: value ?? null,
@@ -50,7 +57,14 @@ const benches: Bench[] = [
     module: './report',
     fn: 'runReportBench',
     rows: (f) => [
-      row('report', 'render 20 findings + 12 photos (median)', f.renderMedianMs, 'ms', '< 1000 ms', (v) => v < 1000),
+      row(
+        'report',
+        'render 20 findings + 12 photos (median)',
+        f.renderMedianMs,
+        'ms',
+        '< 1000 ms',
+        (v) => v < 1000,
+      ),
       row('report', 'sign the PDF (median)', f.signMedianMs, 'ms', '< 1000 ms', (v) => v < 1000),
     ],
   },
@@ -58,7 +72,16 @@ const benches: Bench[] = [
     name: 'page-weight',
     module: './page-weight',
     fn: 'runPageWeightBench',
-    rows: (f) => [row('page-weight', 'walk-through JS (gzip)', f.walkthroughGzipKb, 'KiB', 'reported (keep small)', () => null)],
+    rows: (f) => [
+      row(
+        'page-weight',
+        'walk-through JS (gzip)',
+        f.walkthroughGzipKb,
+        'KiB',
+        'reported (keep small)',
+        () => null,
+      ),
+    ],
   },
   {
     name: 'archive',
@@ -80,13 +103,20 @@ const benches: Bench[] = [
         if (f[`${target}Rps`] === undefined) continue;
         out.push(row('load', `${target} requests/s`, f[`${target}Rps`], 'req/s', 'reported', () => null));
         out.push(
-          row('load', `${target} p95`, f[`${target}P95Ms`], 'ms', target === 'autosave' || target === 'score' ? 'reported' : '< 50 ms', (v) =>
-            target === 'autosave' || target === 'score' ? null : v < 50,
+          row(
+            'load',
+            `${target} p95`,
+            f[`${target}P95Ms`],
+            'ms',
+            target === 'autosave' || target === 'score' ? 'reported' : '< 50 ms',
+            (v) => (target === 'autosave' || target === 'score' ? null : v < 50),
           ),
         );
         out.push(row('load', `${target} errors`, f[`${target}Errors`], '', '0', (v) => v === 0));
         if (target !== 'health' && f[`${target}VsHealth`] !== undefined)
-          out.push(row('load', `${target} ÷ health throughput`, f[`${target}VsHealth`], '×', 'reported', () => null));
+          out.push(
+            row('load', `${target} ÷ health throughput`, f[`${target}VsHealth`], '×', 'reported', () => null),
+          );
       }
       return out;
     },
@@ -109,13 +139,24 @@ for (const bench of benches) {
   }
 }
 
-const fmt = (v: number | null) => (v === null ? '—' : v >= 100 ? v.toFixed(0) : v >= 10 ? v.toFixed(1) : v.toFixed(2));
+const fmt = (v: number | null) =>
+  v === null ? '—' : v >= 100 ? v.toFixed(0) : v >= 10 ? v.toFixed(1) : v.toFixed(2);
 const table = [
   ['bench', 'figure', 'value', 'target', 'holds'],
-  ...rows.map((r) => [r.bench, r.figure, `${fmt(r.value)} ${r.unit}`.trim(), r.target, r.holds === null ? '·' : r.holds ? 'yes' : 'NO']),
+  ...rows.map((r) => [
+    r.bench,
+    r.figure,
+    `${fmt(r.value)} ${r.unit}`.trim(),
+    r.target,
+    r.holds === null ? '·' : r.holds ? 'yes' : 'NO',
+  ]),
 ];
 const widths = table[0].map((_, i) => Math.max(...table.map((r) => r[i].length)));
 console.log('\n' + table.map((r) => r.map((c, i) => c.padEnd(widths[i])).join('  ')).join('\n'));
 const failing = rows.filter((r) => r.holds === false);
-console.log(failing.length ? `\n${failing.length} figure(s) miss their target.` : '\nEvery target with a threshold holds.');
+console.log(
+  failing.length
+    ? `\n${failing.length} figure(s) miss their target.`
+    : '\nEvery target with a threshold holds.',
+);
 process.exit(0);

@@ -11,7 +11,16 @@
 import { readFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import { AssessmentInputSchema, buildFacts, compileRuleset, loadRulesetFile, score, scoreParsed, type AssessmentInput, type LoadedRuleset } from '@/lib/rules';
+import {
+  AssessmentInputSchema,
+  buildFacts,
+  compileRuleset,
+  loadRulesetFile,
+  score,
+  scoreParsed,
+  type AssessmentInput,
+  type LoadedRuleset,
+} from '@/lib/rules';
 import { generateInput } from '../unit/rules/support/generate-input';
 import { createPrng } from '../unit/rules/support/prng';
 import { shippedRulesetFiles } from '../unit/rules/support/shipped';
@@ -41,7 +50,8 @@ const STRETCH = 2_000;
 const WARM_UP = 1_000;
 const SEED = 20_260_101;
 
-const percentile = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] as number;
+const percentile = (sorted: number[], p: number) =>
+  sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] as number;
 const micros = (start: bigint) => Number(process.hrtime.bigint() - start) / 1000;
 const round2 = (n: number) => Math.round(n * 100) / 100;
 
@@ -60,7 +70,9 @@ function generateCases(rulesets: LoadedRuleset[]): Case[] {
 
 /** A fixed piece of work, so figures from a busy machine can be read against an idle one. */
 function calibrationUs(): number {
-  const sample = Object.fromEntries(Array.from({ length: 50 }, (_, i) => [`key${i}`, { value: i * 1.5, unit: 'mm' }]));
+  const sample = Object.fromEntries(
+    Array.from({ length: 50 }, (_, i) => [`key${i}`, { value: i * 1.5, unit: 'mm' }]),
+  );
   const runs = 20_000;
   const start = process.hrtime.bigint();
   for (let i = 0; i < runs; i++) JSON.stringify(sample);
@@ -144,8 +156,12 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
       .map((l) => l.toFixed(1))
       .join(' ')}; calibration ${calibration} µs per JSON.stringify of a 50-key object`,
   );
-  console.log(`Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`);
-  console.log(`  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`);
+  console.log(
+    `Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`,
+  );
+  console.log(
+    `  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`,
+  );
   console.log(
     `  medians of each stretch of ${STRETCH.toLocaleString('en')}, in run order: ${stretchMediansUs.join(', ')} µs (a shared host can slow a stretch down)`,
   );
@@ -153,8 +169,12 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
   console.log(`  input already parsed (scoreParsed): median ${figures.parsedMedianUs} µs`);
   console.log(`  conditions only:  median ${figures.conditionsMedianUs} µs (checksum ${sink})`);
   console.log(`  json-rules-engine, same conditions and facts: median ${figures.referenceMedianUs} µs`);
-  console.log(`  ratio json-rules-engine ÷ ours: ${figures.ratio}× whole assessment, ${figures.conditionsRatio}× conditions only`);
-  console.log(`  not translatable to json-rules-engine (need if/min arithmetic): ${[...new Set(untranslated)].join(', ') || 'none'}`);
+  console.log(
+    `  ratio json-rules-engine ÷ ours: ${figures.ratio}× whole assessment, ${figures.conditionsRatio}× conditions only`,
+  );
+  console.log(
+    `  not translatable to json-rules-engine (need if/min arithmetic): ${[...new Set(untranslated)].join(', ') || 'none'}`,
+  );
   return figures;
 }
 

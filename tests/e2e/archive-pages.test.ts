@@ -8,8 +8,18 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
-import { createOrganisation, fixturePassword, type FixtureOrganisation } from '../integration/support/fixtures';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
+import {
+  createOrganisation,
+  fixturePassword,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 
@@ -21,7 +31,10 @@ let impactVersionId: string;
 
 beforeAll(async () => {
   org = await createOrganisation('archive-pages');
-  const [v2015, v2026] = await Promise.all([publishedVersion('north-american-gate', '2015.1'), publishedVersion('north-american-gate', '2026.1')]);
+  const [v2015, v2026] = await Promise.all([
+    publishedVersion('north-american-gate', '2015.1'),
+    publishedVersion('north-american-gate', '2026.1'),
+  ]);
   impactVersionId = v2026.id;
   const prng = createPrng(5150);
   const gate = { ...sampleGate(prng), kind: 'swing' as const, openingDirection: 'pull_to_open' as const };
@@ -29,12 +42,31 @@ beforeAll(async () => {
   const site = await addSite(org.id, client, '12 Marrowfield Court', 'Eastholm', 2);
   gateId = await addGate(org.id, site, 'Courtyard swing gate', gate);
   const base = { organisationId: org.id, auditorId: org.auditor.id, gateId, gate, usageClass: 2 };
-  await fileAssessment({ ...base, version: v2015, visitedOn: '2024-05-02T10:00:00Z', documents: sampleDocuments(prng, v2015.loaded.version, 0.9) });
-  await fileAssessment({ ...base, version: v2015, visitedOn: '2025-05-06T10:00:00Z', documents: sampleDocuments(prng, v2015.loaded.version, 0.95) });
-  await fileAssessment({ ...base, version: v2026, visitedOn: '2026-05-04T10:00:00Z', documents: sampleDocuments(prng, v2026.loaded.version, 0.93) });
+  await fileAssessment({
+    ...base,
+    version: v2015,
+    visitedOn: '2024-05-02T10:00:00Z',
+    documents: sampleDocuments(prng, v2015.loaded.version, 0.9),
+  });
+  await fileAssessment({
+    ...base,
+    version: v2015,
+    visitedOn: '2025-05-06T10:00:00Z',
+    documents: sampleDocuments(prng, v2015.loaded.version, 0.95),
+  });
+  await fileAssessment({
+    ...base,
+    version: v2026,
+    visitedOn: '2026-05-04T10:00:00Z',
+    documents: sampleDocuments(prng, v2026.loaded.version, 0.93),
+  });
   // A few gates last signed under 2015.1, so the impact list has something to show.
   const rank = { clear: 0, remedy: 1, withdraw: 2 } as const;
-  const verdict = (v: typeof v2015, g: ReturnType<typeof sampleGate>, d: ReturnType<typeof sampleDocuments>) => {
+  const verdict = (
+    v: typeof v2015,
+    g: ReturnType<typeof sampleGate>,
+    d: ReturnType<typeof sampleDocuments>,
+  ) => {
     const built = buildEngineInput({ ...g, usageClass: 1 } as never, d as never, v.loaded.version.questions);
     return built.ok ? scoreParsed(built.value, v.loaded).verdict : null;
   };

@@ -7,7 +7,12 @@
  */
 import fs from 'node:fs';
 import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'vitest';
-import { createOrganisation, signInHomeowner, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  signInHomeowner,
+  testDb,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { seedScoredAssessment, type SeededAssessment } from '../integration/support/signing-seed';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -20,8 +25,15 @@ let othersAssessment: SeededAssessment;
 let browser: BrowserSession;
 
 beforeAll(async () => {
-  [org, other] = await Promise.all([createOrganisation('assessment page'), createOrganisation('assessment page other')]);
-  seeded = await seedScoredAssessment(testDb(), { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir: inject('dataDir'), photos: 1 });
+  [org, other] = await Promise.all([
+    createOrganisation('assessment page'),
+    createOrganisation('assessment page other'),
+  ]);
+  seeded = await seedScoredAssessment(
+    testDb(),
+    { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
+    { dataDir: inject('dataDir'), photos: 1 },
+  );
   othersAssessment = await seedScoredAssessment(
     testDb(),
     { id: other.id, auditorId: other.auditor.id, clientId: other.clientId },
@@ -37,7 +49,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await browser?.page.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await browser?.page
+      .screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 
@@ -55,7 +72,9 @@ describe("an assessment's page", () => {
     expect(await first.textContent()).toMatch(/Fix\s*Fit a guard/);
     expect(await first.textContent()).toMatch(/Source\s*UL 325-2016, 32\.1\./);
     // The hazard area by its title in the ruleset, never the code.
-    expect(await first.textContent()).toMatch(/Pinch and crush points|Gaps and openings|Signs|Force and reversal|Entrapment sensing|Controls/);
+    expect(await first.textContent()).toMatch(
+      /Pinch and crush points|Gaps and openings|Signs|Force and reversal|Entrapment sensing|Controls/,
+    );
     const pdf = await page.request.get(
       await page
         .getByRole('link', { name: 'Download the report (PDF)' })

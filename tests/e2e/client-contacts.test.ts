@@ -16,7 +16,11 @@ let browser: BrowserSession;
 
 beforeAll(async () => {
   org = await createOrganisation('client contacts');
-  seeded = await seedScoredAssessment(testDb(), { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir: inject('dataDir'), photos: 0 });
+  seeded = await seedScoredAssessment(
+    testDb(),
+    { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
+    { dataDir: inject('dataDir'), photos: 0 },
+  );
   browser = await launchBrowser(inject('baseUrl'));
   await signInThroughForm(browser.page, org.office.email, `/clients/${org.clientId}`);
 });
@@ -42,7 +46,9 @@ describe('client contacts in the browser', () => {
     await screenshotBothWidths(page, 'contacts-01-correct-client', { fullPage: true });
     await page.getByRole('button', { name: 'Save the changes' }).click();
     await page.getByText(corrected).first().waitFor();
-    expect((await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email).toBe(corrected);
+    expect((await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email).toBe(
+      corrected,
+    );
     expect((await testDb()('users').where({ id: org.homeowner.id }).first('email')).email).toBe(corrected);
   });
 
@@ -58,7 +64,9 @@ describe('client contacts in the browser', () => {
     await screenshotBothWidths(page, 'contacts-02-choose-recipient');
     await page.getByRole('button', { name: 'Send for signature' }).click();
     await page.getByText(`Waiting for ${chosen} to sign`).waitFor({ timeout: 20_000 });
-    const requests = await testDb()('sign_requests').where({ assessment_id: seeded.assessmentId }).select('recipient_email');
+    const requests = await testDb()('sign_requests')
+      .where({ assessment_id: seeded.assessmentId })
+      .select('recipient_email');
     expect(requests).toEqual([{ recipient_email: chosen }]);
   });
 

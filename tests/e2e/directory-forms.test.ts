@@ -32,7 +32,9 @@ describe('client, site and gate forms', () => {
     await page.getByRole('button', { name: 'Add the client' }).click();
     await page.waitForURL(/\/clients\/[0-9a-f-]+$/);
     await page.getByRole('heading', { name: 'Harrowgate Mews Residents' }).waitFor();
-    const row = await testDb()('clients').where({ organisation_id: org.id, name: 'Harrowgate Mews Residents' }).first('kind', 'contact_email');
+    const row = await testDb()('clients')
+      .where({ organisation_id: org.id, name: 'Harrowgate Mews Residents' })
+      .first('kind', 'contact_email');
     expect(row).toEqual({ kind: 'property_manager', contact_email: 'mews@clients.test' });
   });
 
@@ -67,7 +69,9 @@ describe('client, site and gate forms', () => {
 
   it('adds a gate and keeps its operator facts through an edit', async () => {
     const { page } = browser;
-    const site = await testDb()('sites').where({ organisation_id: org.id, address_line1: "3 Tanner's Row" }).first('id');
+    const site = await testDb()('sites')
+      .where({ organisation_id: org.id, address_line1: "3 Tanner's Row" })
+      .first('id');
     await page.goto(`/sites/${site.id}`);
     await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
     await page.getByLabel('Name of the gate').fill('Yard slide gate');
@@ -79,7 +83,9 @@ describe('client, site and gate forms', () => {
     await page.getByLabel('Power').selectOption('mains_ac');
     await page.getByRole('button', { name: 'Add the gate' }).click();
     await page.waitForURL(/\/sites\/[0-9a-f-]+\?gate=/);
-    const gate = await testDb()('gates').where({ organisation_id: org.id, label: 'Yard slide gate' }).first('id', 'kind', 'width_mm', 'operator');
+    const gate = await testDb()('gates')
+      .where({ organisation_id: org.id, label: 'Yard slide gate' })
+      .first('id', 'kind', 'width_mm', 'operator');
     expect(gate).toMatchObject({ kind: 'slide', width_mm: 6500 });
     expect(gate.operator).toMatchObject({ listed: true, automaticClosing: false, power: 'mains_ac' });
 

@@ -7,7 +7,14 @@
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from '../integration/support/fixtures';
 import { readZip } from '../integration/support/archive';
 import { seedScoredAssessment } from '../integration/support/signing-seed';
 import { launchBrowser, type BrowserSession } from './support/browser';
@@ -27,20 +34,36 @@ async function signedAssessment(): Promise<string> {
     { dataDir: inject('dataDir'), photos: 1 },
   );
   const since = Date.now() - 50;
-  expect((await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {})).status).toBe(202);
+  expect(
+    (await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {})).status,
+  ).toBe(202);
   const catcher = inject('catcherUrl');
   let link: URL | undefined;
-  for (const deadline = Date.now() + 15_000; !link && Date.now() < deadline; await new Promise((r) => setTimeout(r, 150))) {
-    const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{ id: string; subject: string; receivedAt: string }>;
-    const mail = list.find((m) => m.subject.startsWith('Please read and sign') && Date.parse(m.receivedAt) >= since);
+  for (
+    const deadline = Date.now() + 15_000;
+    !link && Date.now() < deadline;
+    await new Promise((r) => setTimeout(r, 150))
+  ) {
+    const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{
+      id: string;
+      subject: string;
+      receivedAt: string;
+    }>;
+    const mail = list.find(
+      (m) => m.subject.startsWith('Please read and sign') && Date.parse(m.receivedAt) >= since,
+    );
     if (mail)
       link = new URL(
-        /https?:\/\/\S+\/sign\/[A-Za-z0-9_-]{43}/.exec(((await (await fetch(`${catcher}/messages/${mail.id}`)).json()) as { text: string }).text)![0],
+        /https?:\/\/\S+\/sign\/[A-Za-z0-9_-]{43}/.exec(
+          ((await (await fetch(`${catcher}/messages/${mail.id}`)).json()) as { text: string }).text,
+        )![0],
       );
   }
   if (!link) throw new Error('the signing e-mail did not arrive');
   const token = link.pathname.split('/').at(-1)!;
-  const shown = Buffer.from(await (await fetch(`${inject('baseUrl')}/api/sign/${token}/report.pdf`)).arrayBuffer());
+  const shown = Buffer.from(
+    await (await fetch(`${inject('baseUrl')}/api/sign/${token}/report.pdf`)).arrayBuffer(),
+  );
   const res = await fetch(`${inject('baseUrl')}/api/sign/${token}/submit`, {
     method: 'POST',
     headers: { 'content-type': 'application/json', origin: inject('baseUrl') },
@@ -89,13 +112,18 @@ describe("the office's journey", () => {
 
   it('exports the filtered set as a ZIP holding the signed PDF and a CSV index', async () => {
     const { page } = browser;
-    const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export signed PDFs (ZIP)' }).click()]);
+    const [download] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('link', { name: 'Export signed PDFs (ZIP)' }).click(),
+    ]);
     const zip = readZip(fs.readFileSync((await download.path())!));
     const names = [...zip.keys()];
     expect(names.some((n) => n.endsWith('.csv'))).toBe(true);
     const pdfName = names.find((n) => n.endsWith('.pdf'))!;
     expect(pdfName).toBeDefined();
-    const stored = await testDb()('documents').where({ assessment_id: assessmentId, kind: 'signed_report' }).first('sha256');
+    const stored = await testDb()('documents')
+      .where({ assessment_id: assessmentId, kind: 'signed_report' })
+      .first('sha256');
     const pdf = zip.get(pdfName)!;
     expect(createHash('sha256').update(pdf).digest('hex')).toBe(stored.sha256);
     fs.writeFileSync(`${inject('dataDir')}/office-journey.pdf`, pdf);

@@ -10,8 +10,18 @@ import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'v
 import type { Page } from 'playwright-core';
 import { createPrng, sampleGate } from '../support/archive-samples';
 import { extractPdfText } from '../support/pdf-text';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
-import { createOrganisation, fixturePassword, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
+import {
+  createOrganisation,
+  fixturePassword,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { desktopViewport, launchBrowser, phoneViewport, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 
@@ -23,13 +33,22 @@ let ids: { client: string; site: string; gate: string; signed: string; draft: st
 beforeAll(async () => {
   org = await createOrganisation('outdoor print e2e');
   const version = await publishedVersion('north-american-gate', '2026.1');
-  const gate = { ...sampleGate(createPrng(4242)), kind: 'swing' as const, openingDirection: 'pull_to_open' as const };
+  const gate = {
+    ...sampleGate(createPrng(4242)),
+    kind: 'swing' as const,
+    openingDirection: 'pull_to_open' as const,
+  };
   const client = await addClient(org.id, 'Brackenfold Mews Residents');
   const site = await addSite(org.id, client, '4 Brackenfold Mews', 'Westerby', 2);
   const gateId = await addGate(org.id, site, 'Mews entrance gate with a long descriptive label', gate);
   const base = { organisationId: org.id, auditorId: org.auditor.id, gateId, gate, usageClass: 2, version };
   const signed = await fileAssessment({ ...base, visitedOn: '2026-05-04T10:00:00Z', prng: createPrng(7) });
-  const draft = await fileAssessment({ ...base, visitedOn: '2026-11-20T10:00:00Z', status: 'draft', prng: createPrng(8) });
+  const draft = await fileAssessment({
+    ...base,
+    visitedOn: '2026-11-20T10:00:00Z',
+    status: 'draft',
+    prng: createPrng(8),
+  });
   ids = { client, site, gate: gateId, signed: signed.id, draft: draft.id };
   session = await launchBrowser(inject('baseUrl'));
   page = session.page;
@@ -47,7 +66,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await page?.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await page
+      ?.screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 
@@ -65,7 +89,9 @@ describe('outdoor mode', () => {
     const mutedBefore = await color(page, 'footer p', 'color');
     await toggle.click();
     await expect(toggle.getAttribute('aria-pressed')).resolves.toBe('true');
-    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(true);
+    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(
+      true,
+    );
     // The footer's muted grey-blue text becomes near black; the paper becomes white.
     expect(mutedBefore).toBe('rgb(59, 83, 112)');
     await expect(color(page, 'footer p', 'color')).resolves.toBe('rgb(11, 19, 32)');
@@ -76,14 +102,20 @@ describe('outdoor mode', () => {
     // Another page, after a reload: still on, before any script of the page runs.
     await page.goto(`/assessments/${ids.draft}/walk`);
     await page.locator('[data-save-state]').waitFor();
-    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(true);
-    await expect(page.getByRole('button', { name: 'High contrast' }).first().getAttribute('aria-pressed')).resolves.toBe('true');
+    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(
+      true,
+    );
+    await expect(
+      page.getByRole('button', { name: 'High contrast' }).first().getAttribute('aria-pressed'),
+    ).resolves.toBe('true');
     expect(await seriousAxeViolations(page, ['header', '#q-latchFitted'])).toEqual([]);
     await screenshotBothWidths(page, 'outdoor-02-walk');
 
     await page.getByRole('button', { name: 'High contrast' }).first().click();
     await page.reload();
-    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(false);
+    await expect(page.evaluate(() => document.documentElement.classList.contains('outdoor'))).resolves.toBe(
+      false,
+    );
     await expect(page.evaluate(() => localStorage.getItem('latchwell:outdoor'))).resolves.toBeNull();
   });
 });
@@ -95,22 +127,34 @@ async function expectPrintable(p: Page) {
     const found: string[] = [];
     const visible = (el: Element) => {
       const r = el.getBoundingClientRect();
-      return getComputedStyle(el).display !== 'none' && getComputedStyle(el).visibility !== 'hidden' && r.width > 0 && r.height > 0;
+      return (
+        getComputedStyle(el).display !== 'none' &&
+        getComputedStyle(el).visibility !== 'hidden' &&
+        r.width > 0 &&
+        r.height > 0
+      );
     };
     for (const el of document.querySelectorAll(
       'nav, button:not(th button), .btn, .btn-secondary, input[type=file], [role=tablist], [role=search], body > footer',
     ))
-      if (visible(el)) found.push(`visible in print: <${el.tagName.toLowerCase()}> ${el.textContent?.trim().slice(0, 40)}`);
+      if (visible(el))
+        found.push(`visible in print: <${el.tagName.toLowerCase()}> ${el.textContent?.trim().slice(0, 40)}`);
     for (const el of document.querySelectorAll('main h1, main p, main td, main th, main li'))
-      if (visible(el) && getComputedStyle(el).color !== 'rgb(0, 0, 0)') found.push(`not black: <${el.tagName.toLowerCase()}> ${getComputedStyle(el).color}`);
-    if (getComputedStyle(document.body).backgroundColor !== 'rgb(255, 255, 255)' && getComputedStyle(document.body).backgroundColor !== 'rgba(0, 0, 0, 0)')
+      if (visible(el) && getComputedStyle(el).color !== 'rgb(0, 0, 0)')
+        found.push(`not black: <${el.tagName.toLowerCase()}> ${getComputedStyle(el).color}`);
+    if (
+      getComputedStyle(document.body).backgroundColor !== 'rgb(255, 255, 255)' &&
+      getComputedStyle(document.body).backgroundColor !== 'rgba(0, 0, 0, 0)'
+    )
       found.push(`body background ${getComputedStyle(document.body).backgroundColor}`);
     const pageWidth = document.documentElement.clientWidth;
     for (const table of document.querySelectorAll('table')) {
       const r = table.getBoundingClientRect();
-      if (r.right > pageWidth + 1 || table.scrollWidth > Math.ceil(r.width) + 1) found.push(`table cut off: ${Math.round(r.right)} > ${pageWidth}`);
+      if (r.right > pageWidth + 1 || table.scrollWidth > Math.ceil(r.width) + 1)
+        found.push(`table cut off: ${Math.round(r.right)} > ${pageWidth}`);
     }
-    if (document.documentElement.scrollWidth > pageWidth + 1) found.push(`page wider than paper: ${document.documentElement.scrollWidth} > ${pageWidth}`);
+    if (document.documentElement.scrollWidth > pageWidth + 1)
+      found.push(`page wider than paper: ${document.documentElement.scrollWidth} > ${pageWidth}`);
     return found;
   });
   expect(problems).toEqual([]);
@@ -147,7 +191,9 @@ describe('printing', () => {
       .getByRole('link', { name: /Mews entrance gate/ })
       .first()
       .waitFor();
-    const headers = (await page.locator('table thead th').allTextContents()).map((h) => h.replace(/[^\p{L}\p{N} ]/gu, '').trim()).filter(Boolean);
+    const headers = (await page.locator('table thead th').allTextContents())
+      .map((h) => h.replace(/[^\p{L}\p{N} ]/gu, '').trim())
+      .filter(Boolean);
     expect(headers.length).toBeGreaterThan(3);
     await page.emulateMedia({ media: 'print' });
     const pdf = await page.pdf({ format: 'A4', printBackground: false });

@@ -8,7 +8,13 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
 import { createOrganisation, type FixtureOrganisation } from '../integration/support/fixtures';
 import { launchBrowser, phoneViewport, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -23,16 +29,22 @@ let assessmentId: string;
 /** Visible tap targets shorter than 44 px: buttons, menus, fields, navigation and download links. */
 async function smallTargets(page: Page): Promise<string[]> {
   return page.evaluate(() => {
-    const selector = 'main button, main summary, main select, main a[download], main nav a, main .crumbs a, header a, header button, header summary';
+    const selector =
+      'main button, main summary, main select, main a[download], main nav a, main .crumbs a, header a, header button, header summary';
     return [...document.querySelectorAll<HTMLElement>(selector)]
       .filter((el) => el.offsetParent !== null)
       .filter((el) => el.getBoundingClientRect().height < 44)
-      .map((el) => `${el.tagName.toLowerCase()} "${(el.textContent ?? '').trim().slice(0, 40)}" ${Math.round(el.getBoundingClientRect().height)}px`);
+      .map(
+        (el) =>
+          `${el.tagName.toLowerCase()} "${(el.textContent ?? '').trim().slice(0, 40)}" ${Math.round(el.getBoundingClientRect().height)}px`,
+      );
   });
 }
 
 async function noSidewaysScroll(page: Page): Promise<void> {
-  expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phoneViewport.width);
+  expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(
+    phoneViewport.width,
+  );
 }
 
 beforeAll(async () => {
@@ -90,7 +102,11 @@ describe('lists and tap targets on a phone', () => {
   it('shows the audit trail as cards', async () => {
     const { page } = browser;
     await page.goto('/archive/audit');
-    await page.getByRole('list', { name: 'Audit events, newest first' }).getByRole('listitem').first().waitFor();
+    await page
+      .getByRole('list', { name: 'Audit events, newest first' })
+      .getByRole('listitem')
+      .first()
+      .waitFor();
     await noSidewaysScroll(page);
     expect(await smallTargets(page)).toEqual([]);
     expect(await seriousAxeViolations(page)).toEqual([]);
@@ -99,7 +115,13 @@ describe('lists and tap targets on a phone', () => {
 
   it('keeps breadcrumbs, download links and buttons at least 44 px tall', async () => {
     const { page } = browser;
-    for (const path of [`/sites/${siteId}`, `/assessments/${assessmentId}`, `/archive/gates/${gateId}`, '/archive/reinspection?within=365', '/assessments']) {
+    for (const path of [
+      `/sites/${siteId}`,
+      `/assessments/${assessmentId}`,
+      `/archive/gates/${gateId}`,
+      '/archive/reinspection?within=365',
+      '/assessments',
+    ]) {
       await page.goto(path);
       await page.waitForLoadState('networkidle');
       expect(await smallTargets(page), path).toEqual([]);

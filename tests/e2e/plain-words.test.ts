@@ -6,7 +6,13 @@
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
 import { createOrganisation, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -86,7 +92,14 @@ describe('plain words on the pages', () => {
 
   it('shows re-inspections, the archive, the home page and the staff page without codes or slips', async () => {
     const { page } = browser;
-    for (const path of ['/archive/reinspection?within=365', '/archive', '/', '/staff', '/assessments', '/clients']) {
+    for (const path of [
+      '/archive/reinspection?within=365',
+      '/archive',
+      '/',
+      '/staff',
+      '/assessments',
+      '/clients',
+    ]) {
       await page.goto(path);
       await page.waitForLoadState('networkidle');
       expect(await mainText(), path).not.toMatch(machineWords);

@@ -7,7 +7,13 @@
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
 import { createOrganisation, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -24,11 +30,19 @@ beforeAll(async () => {
   const gate = { ...sampleGate(prng), kind: 'swing' as const, openingDirection: 'pull_to_open' as const };
   const client = await addClient(org.id, 'Brackenridge Stables');
   const site = await addSite(org.id, client, '9 Brackenridge Lane', 'Eastholm', 1);
-  const gates = await Promise.all(['Yard gate', 'Paddock gate', 'Lane gate'].map((label) => addGate(org.id, site, label, gate)));
+  const gates = await Promise.all(
+    ['Yard gate', 'Paddock gate', 'Lane gate'].map((label) => addGate(org.id, site, label, gate)),
+  );
   const base = { organisationId: org.id, auditorId: org.auditor.id, gate, usageClass: 1, version };
   const docs = () => sampleDocuments(prng, version.loaded.version, 0.9);
   // Today's draft of the auditor; one waiting for a signature; a gate last signed 14 months ago.
-  await fileAssessment({ ...base, gateId: gates[0], status: 'draft', visitedOn: new Date().toISOString(), documents: docs() });
+  await fileAssessment({
+    ...base,
+    gateId: gates[0],
+    status: 'draft',
+    visitedOn: new Date().toISOString(),
+    documents: docs(),
+  });
   ({ id: awaitingId } = await fileAssessment({
     ...base,
     gateId: gates[1],
@@ -36,7 +50,12 @@ beforeAll(async () => {
     visitedOn: new Date(Date.now() - 3 * 86_400_000).toISOString(),
     documents: docs(),
   }));
-  await fileAssessment({ ...base, gateId: gates[2], visitedOn: new Date(Date.now() - 425 * 86_400_000).toISOString(), documents: docs() });
+  await fileAssessment({
+    ...base,
+    gateId: gates[2],
+    visitedOn: new Date(Date.now() - 425 * 86_400_000).toISOString(),
+    documents: docs(),
+  });
   // A sign request the mail server refused until the outbox gave up.
   await testDb()('outbox_messages').insert({
     organisation_id: org.id,
@@ -86,7 +105,12 @@ describe('each role lands on its own home', () => {
     await page.getByRole('heading', { name: 'The office today', level: 1 }).waitFor();
     const titles = await sectionTitles();
     expect(titles).toEqual(
-      expect.arrayContaining(['Awaiting signature (1)', 'Re-inspections overdue (1)', 'Mail not delivered (1)', 'Drafts in progress (1)']),
+      expect.arrayContaining([
+        'Awaiting signature (1)',
+        'Re-inspections overdue (1)',
+        'Mail not delivered (1)',
+        'Drafts in progress (1)',
+      ]),
     );
     expect(titles.some((t) => t === 'Staff' || t === 'Rulesets')).toBe(false);
     await page.locator('[data-home="mail"]').getByText('Given up after 8 tries.').waitFor();
@@ -101,7 +125,15 @@ describe('each role lands on its own home', () => {
     await signInThroughForm(page, org.owner.email);
     await page.getByRole('heading', { name: /today$/, level: 1 }).waitFor();
     const titles = await sectionTitles();
-    expect(titles).toEqual(expect.arrayContaining(['Awaiting signature (1)', 'Re-inspections overdue (1)', 'Mail not delivered (1)', 'Staff', 'Rulesets']));
+    expect(titles).toEqual(
+      expect.arrayContaining([
+        'Awaiting signature (1)',
+        'Re-inspections overdue (1)',
+        'Mail not delivered (1)',
+        'Staff',
+        'Rulesets',
+      ]),
+    );
     await page
       .locator('[data-home="staff"]')
       .getByText(/4 people can sign in/)

@@ -6,7 +6,11 @@
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { createOrganisation, fixturePassword, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 
@@ -17,7 +21,10 @@ let page: Page;
 async function checkPage(name: string, options: { fullPage?: boolean } = {}) {
   expect(await seriousAxeViolations(page), `axe on ${name}`).toEqual([]);
   // Nothing may push the page sideways at phone width.
-  expect(await page.evaluate(() => document.documentElement.scrollWidth), `${name} fits 360 px`).toBeLessThanOrEqual(360);
+  expect(
+    await page.evaluate(() => document.documentElement.scrollWidth),
+    `${name} fits 360 px`,
+  ).toBeLessThanOrEqual(360);
   await screenshotBothWidths(page, name, options);
 }
 
@@ -44,7 +51,9 @@ describe('an owner amends the North American ruleset on a phone', () => {
 
   it('reads the shipped version in plain words', async () => {
     await page.goto('/rulesets/north-american-gate/2026.1');
-    await expect(page.locator('#rule-pinch\\.fixed-objects').innerText()).resolves.toContain('fixed object clearance is at least 406.4 mm (16 in)');
+    await expect(page.locator('#rule-pinch\\.fixed-objects').innerText()).resolves.toContain(
+      'fixed object clearance is at least 406.4 mm (16 in)',
+    );
     await checkPage('rulesets-02-version');
   });
 
@@ -75,15 +84,25 @@ describe('an owner amends the North American ruleset on a phone', () => {
     await page.getByRole('button', { name: 'Add to the draft' }).click();
     await page.getByText('must not be empty').first().waitFor();
     await checkPage('rulesets-05-local-form-errors');
-    await page.getByLabel('The question the auditor is asked').fill('Is a fire service key switch fitted at the gate, and does it open the gate?');
-    await page.getByLabel('Why it matters (shown beside the question)').fill('Fire crews must get through a closed gate without waiting for anyone.');
-    await page.getByLabel('Remedy').fill('Fit the key switch the fire service specifies beside the entry lane.');
-    await page.getByLabel('Caution shown to the homeowner').fill('Do not remove or disable the fire service key switch.');
+    await page
+      .getByLabel('The question the auditor is asked')
+      .fill('Is a fire service key switch fitted at the gate, and does it open the gate?');
+    await page
+      .getByLabel('Why it matters (shown beside the question)')
+      .fill('Fire crews must get through a closed gate without waiting for anyone.');
+    await page
+      .getByLabel('Remedy')
+      .fill('Fit the key switch the fire service specifies beside the entry lane.');
+    await page
+      .getByLabel('Caution shown to the homeowner')
+      .fill('Do not remove or disable the fire service key switch.');
     await page.getByLabel('Local code or authority').fill('Eastholm County fire code');
     await page.getByLabel('Section or clause').fill('§ 5.12 Emergency access');
     await page.getByRole('button', { name: 'Add to the draft' }).click();
     await page.getByText('“Fire service key switch at the gate” added to the draft.').waitFor();
-    await expect(page.locator('section[aria-labelledby="local-heading"]').innerText()).resolves.toContain('Fire service key switch at the gate');
+    await expect(page.locator('section[aria-labelledby="local-heading"]').innerText()).resolves.toContain(
+      'Fire service key switch at the gate',
+    );
   });
 
   it('publishes, and the version reads as published with the amendments in it', async () => {

@@ -5,7 +5,14 @@
  * Screenshots into tests/e2e/screenshots/signing-errors-*.png.
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from '../integration/support/fixtures';
 import { seedScoredAssessment } from '../integration/support/signing-seed';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -24,13 +31,21 @@ beforeAll(async () => {
     { dataDir: inject('dataDir'), photos: 0 },
   );
   const since = Date.now() - 50;
-  expect((await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {})).status).toBe(202);
+  expect(
+    (await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {})).status,
+  ).toBe(202);
   const deadline = Date.now() + 15_000;
   for (;;) {
-    const list = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as Array<{ id: string; to: string[]; receivedAt: string }>;
+    const list = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as Array<{
+      id: string;
+      to: string[];
+      receivedAt: string;
+    }>;
     const mail = list.find((m) => m.to.includes(org.homeowner.email) && Date.parse(m.receivedAt) >= since);
     if (mail) {
-      const { text } = (await (await fetch(`${inject('catcherUrl')}/messages/${mail.id}`)).json()) as { text: string };
+      const { text } = (await (await fetch(`${inject('catcherUrl')}/messages/${mail.id}`)).json()) as {
+        text: string;
+      };
       linkPath = new URL(/https?:\/\/\S+\/sign\/[A-Za-z0-9_-]{43}/.exec(text)![0]).pathname;
       break;
     }
@@ -54,7 +69,9 @@ describe("the signing form's error summary", () => {
     await summary.waitFor();
     const items = () => summary.locator('li').allInnerTexts();
     expect(await items()).toHaveLength(4);
-    expect(await summary.getByRole('link', { name: 'Type your full name.' }).getAttribute('href')).toBe('#signer-name');
+    expect(await summary.getByRole('link', { name: 'Type your full name.' }).getAttribute('href')).toBe(
+      '#signer-name',
+    );
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'signing-errors-01-summary', { focus: '#sign-errors' });
 

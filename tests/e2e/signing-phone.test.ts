@@ -5,7 +5,14 @@
  * using the typed name as the mark. No serious or critical axe violations on the page.
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from '../integration/support/fixtures';
 import { seedScoredAssessment } from '../integration/support/signing-seed';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -37,12 +44,22 @@ async function sentLink(): Promise<{ assessmentId: string; path: string; caution
   const catcher = inject('catcherUrl');
   const deadline = Date.now() + 15_000;
   for (;;) {
-    const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{ id: string; subject: string; receivedAt: string }>;
-    const mail = list.find((m) => m.subject.startsWith('Please read and sign') && Date.parse(m.receivedAt) >= since);
+    const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{
+      id: string;
+      subject: string;
+      receivedAt: string;
+    }>;
+    const mail = list.find(
+      (m) => m.subject.startsWith('Please read and sign') && Date.parse(m.receivedAt) >= since,
+    );
     if (mail) {
       const { text } = (await (await fetch(`${catcher}/messages/${mail.id}`)).json()) as { text: string };
       const url = new URL(/https?:\/\/\S+\/sign\/[A-Za-z0-9_-]{43}/.exec(text)![0]);
-      return { assessmentId: seeded.assessmentId, path: url.pathname, cautions: seeded.result.findings.filter((f) => f.outcome === 'fail').length };
+      return {
+        assessmentId: seeded.assessmentId,
+        path: url.pathname,
+        cautions: seeded.result.findings.filter((f) => f.outcome === 'fail').length,
+      };
     }
     if (Date.now() > deadline) throw new Error('the signing e-mail did not arrive');
     await new Promise((r) => setTimeout(r, 150));
@@ -72,7 +89,8 @@ describe('signing on a phone', () => {
     const box = (await pad.boundingBox())!;
     await page.mouse.move(box.x + 20, box.y + box.height * 0.7);
     await page.mouse.down();
-    for (let x = 20; x < box.width - 20; x += 12) await page.mouse.move(box.x + x, box.y + box.height * (0.5 + 0.3 * Math.sin(x / 25)));
+    for (let x = 20; x < box.width - 20; x += 12)
+      await page.mouse.move(box.x + x, box.y + box.height * (0.5 + 0.3 * Math.sin(x / 25)));
     await page.mouse.up();
     await page.getByText('Signature drawn.').waitFor();
 
@@ -80,20 +98,34 @@ describe('signing on a phone', () => {
     await page.getByRole('heading', { name: 'Signed. Thank you.' }).waitFor({ timeout: 30_000 });
     await screenshotBothWidths(page, 'signing-02-signed');
 
-    const signature = await testDb()('signatures').where({ assessment_id: assessmentId }).first('signature_method', 'signature_image_key', 'user_agent');
+    const signature = await testDb()('signatures')
+      .where({ assessment_id: assessmentId })
+      .first('signature_method', 'signature_image_key', 'user_agent');
     expect(signature.signature_method).toBe('drawn');
     expect(signature.signature_image_key).toMatch(/^[0-9a-f]{64}$/);
     expect(signature.user_agent).toMatch(/Chrome/);
     expect((await testDb()('assessments').where({ id: assessmentId }).first('status')).status).toBe('signed');
 
     // The journey ends in the owner's mailbox: the signed PDF, byte for byte the archived one.
-    const stored = await testDb()('documents').where({ assessment_id: assessmentId, kind: 'signed_report' }).first('sha256');
-    const contact = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+    const stored = await testDb()('documents')
+      .where({ assessment_id: assessmentId, kind: 'signed_report' })
+      .first('sha256');
+    const contact = (await testDb()('clients').where({ id: org.clientId }).first('contact_email'))
+      .contact_email as string;
     const catcher = inject('catcherUrl');
     let delivered = false;
-    for (const deadline = Date.now() + 20_000; !delivered && Date.now() < deadline; await new Promise((r) => setTimeout(r, 200))) {
-      const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{ to: string[]; attachments: Array<{ sha256: string }> }>;
-      delivered = list.some((m) => m.to.includes(contact) && m.attachments.some((a) => a.sha256 === stored.sha256));
+    for (
+      const deadline = Date.now() + 20_000;
+      !delivered && Date.now() < deadline;
+      await new Promise((r) => setTimeout(r, 200))
+    ) {
+      const list = (await (await fetch(`${catcher}/messages`)).json()) as Array<{
+        to: string[];
+        attachments: Array<{ sha256: string }>;
+      }>;
+      delivered = list.some(
+        (m) => m.to.includes(contact) && m.attachments.some((a) => a.sha256 === stored.sha256),
+      );
     }
     expect(delivered, `signed PDF ${stored.sha256} in ${contact}'s mailbox`).toBe(true);
   });
@@ -118,8 +150,14 @@ describe('signing on a phone', () => {
     await page.getByRole('button', { name: 'Sign the report' }).focus();
     await page.keyboard.press('Enter');
     await page.getByRole('heading', { name: 'Signed. Thank you.' }).waitFor({ timeout: 30_000 });
-    const signature = await testDb()('signatures').where({ assessment_id: assessmentId }).first('signature_method', 'signature_image_key', 'signer_name');
-    expect(signature).toMatchObject({ signature_method: 'typed', signature_image_key: null, signer_name: 'Orrin Quillfeather' });
+    const signature = await testDb()('signatures')
+      .where({ assessment_id: assessmentId })
+      .first('signature_method', 'signature_image_key', 'signer_name');
+    expect(signature).toMatchObject({
+      signature_method: 'typed',
+      signature_image_key: null,
+      signer_name: 'Orrin Quillfeather',
+    });
   });
 
   it('shows the office the signed report, its documents and the delivered e-mails', async () => {

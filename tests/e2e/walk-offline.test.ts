@@ -10,7 +10,12 @@ import fs from 'node:fs';
 import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { currentVersion, insertDraft, seedDirectory } from '../integration/support/domain';
-import { createOrganisation, fixturePassword, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  testDb,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 import { cameraJpeg } from './support/samples';
@@ -26,7 +31,9 @@ function cachedUrls(p: Page): Promise<Record<string, string[]>> {
   return p.evaluate(async () => {
     const out: Record<string, string[]> = {};
     for (const name of await caches.keys())
-      out[name] = (await (await caches.open(name)).keys()).map((r) => `${r.method} ${new URL(r.url).pathname}${new URL(r.url).search}`);
+      out[name] = (await (await caches.open(name)).keys()).map(
+        (r) => `${r.method} ${new URL(r.url).pathname}${new URL(r.url).search}`,
+      );
     return out;
   });
 }
@@ -35,7 +42,9 @@ beforeAll(async () => {
   org = await createOrganisation('walk offline e2e');
   const dir = await seedDirectory(org);
   const version = await currentVersion('north-american-gate');
-  draftId = await insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { answers: { latchFitted: { value: 'no' } } });
+  draftId = await insertDraft(org.id, dir.gateId, org.auditor.id, version.id, {
+    answers: { latchFitted: { value: 'no' } },
+  });
   walkUrl = `/assessments/${draftId}/walk`;
   session = await launchBrowser(inject('baseUrl'));
   page = session.page;
@@ -53,7 +62,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await page?.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await page
+      ?.screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 
@@ -67,7 +81,9 @@ describe('the walk-through without signal', () => {
     expect(all).toContain(`GET ${walkUrl}`);
     // Every module script the page loaded is in the precache.
     const scripts = await page.evaluate(() =>
-      [...document.querySelectorAll('script[type=module][src]')].map((s) => new URL((s as HTMLScriptElement).src).pathname),
+      [...document.querySelectorAll('script[type=module][src]')].map(
+        (s) => new URL((s as HTMLScriptElement).src).pathname,
+      ),
     );
     for (const script of scripts) expect(all.some((u) => u.startsWith(`GET ${script}`))).toBe(true);
     // No other page, no API answer but photo files, never a POST.
@@ -98,11 +114,15 @@ describe('the walk-through without signal', () => {
     await page.locator('#q-positiveStopClosed').locator('label', { hasText: /^Yes$/ }).click();
     const stop = page.locator('#q-positiveStopClosed');
     // The photo reducer is loaded on demand: from the precache too.
-    await stop.locator('input[data-photo-pick]').setInputFiles({ name: 'stop.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg('#3b5370') });
+    await stop
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'stop.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg('#3b5370') });
     await stop.getByText('waiting').waitFor();
     await page.locator('[data-save-state="waiting"]').waitFor();
     await screenshotBothWidths(page, 'walk-offline-edit-waiting', { focus: '#q-positiveStopClosed' });
-    expect((await testDb()('assessments').where({ id: draftId }).first()).answers.positiveStopClosed).toBeUndefined();
+    expect(
+      (await testDb()('assessments').where({ id: draftId }).first()).answers.positiveStopClosed,
+    ).toBeUndefined();
 
     await session.context.setOffline(false);
     await page.locator('[data-save-state="saved"]').waitFor({ timeout: 30_000 });
@@ -110,16 +130,27 @@ describe('the walk-through without signal', () => {
     const stored = await testDb()('assessments').where({ id: draftId }).first();
     expect(stored.answers.positiveStopClosed).toEqual({ value: 'yes' });
     expect(stored.answers.latchFitted).toEqual({ value: 'no' });
-    expect(await testDb()('assessment_photos').where({ assessment_id: draftId, item_key: 'positiveStopClosed' }).count('* as n').first()).toEqual({ n: '1' });
+    expect(
+      await testDb()('assessment_photos')
+        .where({ assessment_id: draftId, item_key: 'positiveStopClosed' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
   });
 
   it('drops the kept pages and photos when the person signs out', async () => {
     await page.reload();
     await page.locator('#walk-offline').waitFor({ state: 'visible', timeout: 60_000 });
     expect(Object.keys(await cachedUrls(page))).toContain('latchwell-walk-pages');
-    await page.evaluate(() => (document.querySelector('form[action="/auth/signout"]') as HTMLFormElement).submit());
+    await page.evaluate(() =>
+      (document.querySelector('form[action="/auth/signout"]') as HTMLFormElement).submit(),
+    );
     await page.waitForURL((url) => !url.pathname.endsWith('/walk'));
-    await expect.poll(async () => Object.keys(await cachedUrls(page)).filter((name) => name.startsWith('latchwell-walk-'))).toEqual([]);
+    await expect
+      .poll(async () =>
+        Object.keys(await cachedUrls(page)).filter((name) => name.startsWith('latchwell-walk-')),
+      )
+      .toEqual([]);
     // Without signal the draft is no longer there for whoever holds the phone next.
     await session.context.setOffline(true);
     const next = await session.context.newPage();

@@ -11,7 +11,12 @@ import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'v
 import type { Page } from 'playwright-core';
 import sharp from 'sharp';
 import { currentVersion, insertDraft, seedDirectory } from '../integration/support/domain';
-import { createOrganisation, fixturePassword, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  testDb,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 
@@ -68,7 +73,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await page?.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await page
+      ?.screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 
@@ -79,22 +89,39 @@ describe('photos over a weak signal', () => {
     const cdp = await session.context.newCDPSession(page);
     await cdp.send('Network.enable');
     // About 0.4 Mbit/s up, 2 Mbit/s down, 300 ms round trips: a weak signal at the gate.
-    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 300, downloadThroughput: 250_000, uploadThroughput: 50_000 });
+    await cdp.send('Network.emulateNetworkConditions', {
+      offline: false,
+      latency: 300,
+      downloadThroughput: 250_000,
+      uploadThroughput: 50_000,
+    });
 
     const card = page.locator('#q-hingeGapMm');
-    await card.locator('input[data-photo-pick]').setInputFiles({ name: 'IMG_2041.jpg', mimeType: 'image/jpeg', buffer: camera });
+    await card
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'IMG_2041.jpg', mimeType: 'image/jpeg', buffer: camera });
     const progress = card.locator('[data-upload-progress]');
     await progress.waitFor({ timeout: 60_000 });
     // Part of it sent, not all: the bar moves while the photo goes.
     await expect
-      .poll(async () => Number((await progress.getAttribute('data-upload-progress').catch(() => null)) ?? -1), { timeout: 30_000, interval: 100 })
+      .poll(
+        async () => Number((await progress.getAttribute('data-upload-progress').catch(() => null)) ?? -1),
+        { timeout: 30_000, interval: 100 },
+      )
       .toBeGreaterThan(0);
     await screenshotBothWidths(page, 'walk-photo-progress', { focus: '#q-hingeGapMm' });
     expect(await seriousAxeViolations(page, ['#q-hingeGapMm'])).toEqual([]);
     await card.locator('img[src*="size=thumb"]').waitFor({ timeout: 90_000 });
-    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await cdp.send('Network.emulateNetworkConditions', {
+      offline: false,
+      latency: 0,
+      downloadThroughput: -1,
+      uploadThroughput: -1,
+    });
 
-    const row = await testDb()('assessment_photos').where({ assessment_id: draftId, item_key: 'hingeGapMm' }).first();
+    const row = await testDb()('assessment_photos')
+      .where({ assessment_id: draftId, item_key: 'hingeGapMm' })
+      .first();
     expect(row.source_sha256).toBe(createHash('sha256').update(camera).digest('hex'));
     expect(Number(row.source_bytes)).toBe(camera.byteLength);
     expect(row.source_orientation).toBe(6);
@@ -105,7 +132,11 @@ describe('photos over a weak signal', () => {
     expect(new Date(row.taken_at).toISOString()).toBe('2026-11-30T09:15:00.000Z');
     // Upright: the sideways 4000×3000 file is 3000×4000 standing, fitted into the display size.
     expect(row.height).toBeGreaterThan(row.width);
-    const uploaded = await sharp(Buffer.from(await (await page.request.get(`/api/assessments/${draftId}/photos/${row.id}?size=original`)).body())).metadata();
+    const uploaded = await sharp(
+      Buffer.from(
+        await (await page.request.get(`/api/assessments/${draftId}/photos/${row.id}?size=original`)).body(),
+      ),
+    ).metadata();
     expect(Math.max(uploaded.width ?? 0, uploaded.height ?? 0)).toBe(2048);
     expect(uploaded.height).toBeGreaterThan(uploaded.width ?? 0);
   });
@@ -115,7 +146,10 @@ describe('photos over a weak signal', () => {
     const started = Date.now();
     await card
       .locator('input[data-photo-pick]')
-      .setInputFiles({ name: 'huge.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(16 * 1024 * 1024, 1) }, { timeout: 60_000 });
+      .setInputFiles(
+        { name: 'huge.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(16 * 1024 * 1024, 1) },
+        { timeout: 60_000 },
+      );
     await expect(card.getByRole('alert').textContent()).resolves.toMatch(/16 MB; the limit is 15 MB/);
     console.log(`16 MB file refused after ${Date.now() - started} ms`);
     await expect(card.getByText('waiting').count()).resolves.toBe(0);
@@ -133,17 +167,25 @@ describe('photos over a weak signal', () => {
       return route.fulfill({
         status: 500,
         contentType: 'application/problem+json',
-        body: JSON.stringify({ status: 500, title: 'Server error', detail: 'Something went wrong on the server.' }),
+        body: JSON.stringify({
+          status: 500,
+          title: 'Server error',
+          detail: 'Something went wrong on the server.',
+        }),
       });
     });
     const card = page.locator('#q-latchFitted');
     const photo = await sharp({ create: { width: 800, height: 600, channels: 3, background: '#3b5370' } })
       .jpeg()
       .toBuffer();
-    await card.locator('input[data-photo-pick]').setInputFiles({ name: 'latch.jpg', mimeType: 'image/jpeg', buffer: photo });
+    await card
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'latch.jpg', mimeType: 'image/jpeg', buffer: photo });
     const stopped = card.locator('[data-upload-failed]');
     await stopped.waitFor({ timeout: 30_000 });
-    await expect(stopped.textContent()).resolves.toMatch(/Photo not sent yet\. Something went wrong on the server\./);
+    await expect(stopped.textContent()).resolves.toMatch(
+      /Photo not sent yet\. Something went wrong on the server\./,
+    );
     // Kept on the phone meanwhile, still shown as waiting.
     await expect(card.getByText('waiting').isVisible()).resolves.toBe(true);
     expect(await seriousAxeViolations(page, ['#q-latchFitted'])).toEqual([]);
@@ -159,6 +201,11 @@ describe('photos over a weak signal', () => {
     // Sent on the tap, well before the next timed retry.
     expect((sent.at(-1) as number) - lastFailure).toBeLessThan(9_000);
     await page.unroute('**/api/assessments/*/photos');
-    expect(await testDb()('assessment_photos').where({ assessment_id: draftId, item_key: 'latchFitted' }).count('* as n').first()).toEqual({ n: '1' });
+    expect(
+      await testDb()('assessment_photos')
+        .where({ assessment_id: draftId, item_key: 'latchFitted' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
   });
 });

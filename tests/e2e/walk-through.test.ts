@@ -10,7 +10,12 @@ import path from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'vitest';
 import type { Locator, Page } from 'playwright-core';
 import { currentVersion, insertDraft, seedDirectory } from '../integration/support/domain';
-import { createOrganisation, fixturePassword, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  testDb,
+  type FixtureOrganisation,
+} from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 import { cameraJpeg, damagedTraceCsv, passingTraceCsv } from './support/samples';
@@ -25,8 +30,12 @@ interface Question {
 }
 
 // The draft is pinned to the family's current version, so its questions are the ones shown.
-const ruleset = JSON.parse(fs.readFileSync(path.resolve('rulesets/north-american-gate/2026.2.json'), 'utf8')) as { questions: Question[] };
-const swingQuestions = ruleset.questions.filter((q) => q.gateKinds.includes('swing') && q.askWhen === undefined);
+const ruleset = JSON.parse(
+  fs.readFileSync(path.resolve('rulesets/north-american-gate/2026.2.json'), 'utf8'),
+) as { questions: Question[] };
+const swingQuestions = ruleset.questions.filter(
+  (q) => q.gateKinds.includes('swing') && q.askWhen === undefined,
+);
 /** Answered after the signal drops. */
 const offlineKeys = new Set(swingQuestions.filter((q) => q.section === 'handover').map((q) => q.key));
 
@@ -35,7 +44,10 @@ let session: BrowserSession;
 let page: Page;
 
 /** axe-core (the whole page, or the parts a step changed) and screenshots at both widths. */
-async function checkPage(name: string, options: { fullPage?: boolean; focus?: string; only?: string[] } = {}) {
+async function checkPage(
+  name: string,
+  options: { fullPage?: boolean; focus?: string; only?: string[] } = {},
+) {
   expect(await seriousAxeViolations(page, options.only), `axe on ${name}`).toEqual([]);
   await screenshotBothWidths(page, name, options);
 }
@@ -62,7 +74,9 @@ beforeAll(async () => {
   // A draft from yesterday's visit elsewhere, so the auditor's list is not empty on first sight.
   const dir = await seedDirectory(org);
   const version = await currentVersion('north-american-gate');
-  await insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { visited_on: new Date(Date.now() - 86_400_000) });
+  await insertDraft(org.id, dir.gateId, org.auditor.id, version.id, {
+    visited_on: new Date(Date.now() - 86_400_000),
+  });
   session = await launchBrowser(inject('baseUrl'));
   page = session.page;
 });
@@ -75,7 +89,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await page?.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await page
+      ?.screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 
@@ -89,7 +108,9 @@ describe('the auditor walks a swing gate on a phone', () => {
     await page.locator('#password').fill(fixturePassword);
     await page.getByRole('button', { name: 'Sign in', exact: true }).click();
     await page.waitForURL(/\/assessments$/);
-    await expect(page.getByRole('heading', { name: 'Assessments', level: 1 }).isVisible()).resolves.toBe(true);
+    await expect(page.getByRole('heading', { name: 'Assessments', level: 1 }).isVisible()).resolves.toBe(
+      true,
+    );
     await checkPage('walk-02-assessments');
   });
 
@@ -117,7 +138,12 @@ describe('the auditor walks a swing gate on a phone', () => {
     await page.getByRole('heading', { name: 'Driveway gate' }).waitFor();
     await checkPage('walk-05-site-with-gate');
     const gate = await testDb()('gates').where({ organisation_id: org.id, label: 'Driveway gate' }).first();
-    expect(gate).toMatchObject({ kind: 'swing', opening_direction: 'pull_to_open', width_mm: 3658, weight_kg: 136 });
+    expect(gate).toMatchObject({
+      kind: 'swing',
+      opening_direction: 'pull_to_open',
+      width_mm: 3658,
+      weight_kg: 136,
+    });
     expect(gate.entered.width).toEqual({ value: 12, unit: 'ft' });
   });
 
@@ -149,14 +175,22 @@ describe('the auditor walks a swing gate on a phone', () => {
     await expect.poll(() => page.locator('#q-placardsLegible input[value=yes]').isChecked()).toBe(true);
 
     const hinge = page.locator('#q-hingeGapMm');
-    await hinge.locator('input[data-photo-pick]').setInputFiles({ name: 'hinge.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg() });
+    await hinge
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'hinge.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg() });
     await hinge.locator('img[src*="size=thumb"]').waitFor({ timeout: 20_000 });
     // Handing 16 MB to the browser takes a while on a busy machine.
     await hinge
       .locator('input[data-photo-pick]')
-      .setInputFiles({ name: 'huge.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(16 * 1024 * 1024, 1) }, { timeout: 60_000 });
+      .setInputFiles(
+        { name: 'huge.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(16 * 1024 * 1024, 1) },
+        { timeout: 60_000 },
+      );
     await expect(hinge.getByRole('alert').textContent()).resolves.toMatch(/16 MB; the limit is 15 MB/);
-    await checkPage('walk-07-measurement-and-photo', { focus: '#q-hingeGapMm', only: ['#q-hingeGapMm', '[role=tablist]'] });
+    await checkPage('walk-07-measurement-and-photo', {
+      focus: '#q-hingeGapMm',
+      only: ['#q-hingeGapMm', '[role=tablist]'],
+    });
 
     const sensing = page.locator('#item-entrapment');
     await sensing.getByRole('button', { name: '+ Add a zone' }).click();
@@ -167,9 +201,17 @@ describe('the auditor walks a swing gate on a phone', () => {
 
     const force = page.locator('#item-force');
     await force.getByLabel('Gap left at the point').fill('12');
-    await force.locator('input[type=file]').setInputFiles({ name: 'damaged.csv', mimeType: 'text/csv', buffer: Buffer.from(damagedTraceCsv()) });
+    await force
+      .locator('input[type=file]')
+      .setInputFiles({ name: 'damaged.csv', mimeType: 'text/csv', buffer: Buffer.from(damagedTraceCsv()) });
     await expect(force.getByRole('alert').textContent()).resolves.toMatch(/Line 4: .*"0.004,zz"/);
-    await force.locator('input[type=file]').setInputFiles({ name: 'closing-edge-300.csv', mimeType: 'text/csv', buffer: Buffer.from(passingTraceCsv()) });
+    await force
+      .locator('input[type=file]')
+      .setInputFiles({
+        name: 'closing-edge-300.csv',
+        mimeType: 'text/csv',
+        buffer: Buffer.from(passingTraceCsv()),
+      });
     await force.getByText('Within the limits').waitFor();
     await force.locator('canvas').first().waitFor();
     await checkPage('walk-09-force-trace', { focus: '#item-force li', only: ['#item-force'] });
@@ -185,13 +227,21 @@ describe('the auditor walks a swing gate on a phone', () => {
     for (const [label, value] of figures) await geometry.getByLabel(label).fill(value);
     await geometry.getByText(/Closest the ram comes to the leaf/).waitFor();
     await geometry.locator('svg[role=img]').first().waitFor();
-    await checkPage('walk-10-swing-geometry', { focus: '#item-geometry svg[role=img]', only: ['#item-geometry'] });
+    await checkPage('walk-10-swing-geometry', {
+      focus: '#item-geometry svg[role=img]',
+      only: ['#item-geometry'],
+    });
 
     await waitSaved();
     const stored = await testDb()('assessments').where({ id: assessmentId }).first();
     expect(stored.answers.hingeSideGuarded).toEqual({ value: 'yes' });
     expect(stored.measurements.hingeGapMm).toMatchObject({ value: 2.25, unit: 'in', canonical: 57.15 });
-    expect(stored.observations.site).toEqual({ pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false });
+    expect(stored.observations.site).toEqual({
+      pedestriansUseDriveway: false,
+      childrenOrPetsPresent: false,
+      publicAccess: false,
+      slopeAcrossSwing: false,
+    });
     expect(stored.observations.forceTests).toHaveLength(1);
     expect(stored.observations.swingGeometry).toMatchObject({ aMm: 152.4, bMm: 177.8, targetOpeningDeg: 90 });
     expect(stored.observations.entrapment).toEqual({
@@ -201,7 +251,9 @@ describe('the auditor walks a swing gate on a phone', () => {
         { type: 'B2', zone: 'closing_edge', direction: 'closing', monitored: true },
       ],
     });
-    expect(await testDb()('force_traces').where({ assessment_id: assessmentId }).count('* as n').first()).toEqual({ n: '1' });
+    expect(
+      await testDb()('force_traces').where({ assessment_id: assessmentId }).count('* as n').first(),
+    ).toEqual({ n: '1' });
   });
 
   it('keeps answering without signal, survives a reload offline, and syncs when the signal returns', async () => {
@@ -210,7 +262,9 @@ describe('the auditor walks a swing gate on a phone', () => {
       async () => {
         const registration = await navigator.serviceWorker.getRegistration('/assessments/');
         if (!registration?.active) return false;
-        const scripts = [...document.querySelectorAll('script[type=module][src]')].map((s) => (s as HTMLScriptElement).src);
+        const scripts = [...document.querySelectorAll('script[type=module][src]')].map(
+          (s) => (s as HTMLScriptElement).src,
+        );
         const page = await caches.match(location.href, { ignoreSearch: true });
         const cached = await Promise.all(scripts.map((src) => caches.match(src)));
         return Boolean(page) && cached.every(Boolean);
@@ -220,27 +274,40 @@ describe('the auditor walks a swing gate on a phone', () => {
     );
 
     await session.context.setOffline(true);
-    for (const q of swingQuestions.filter((x) => offlineKeys.has(x.key))) await answer(page.locator(`#q-${q.key}`), q);
+    for (const q of swingQuestions.filter((x) => offlineKeys.has(x.key)))
+      await answer(page.locator(`#q-${q.key}`), q);
     const stop = page.locator('#q-positiveStopClosed');
-    await stop.locator('input[data-photo-pick]').setInputFiles({ name: 'stop.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg('#3b5370') });
+    await stop
+      .locator('input[data-photo-pick]')
+      .setInputFiles({ name: 'stop.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg('#3b5370') });
     await stop.getByText('waiting').waitFor();
     await page.locator('[data-save-state="waiting"]').waitFor();
-    await expect(page.locator('[data-save-state]').textContent()).resolves.toMatch(/changes? on this phone · offline/);
-    await checkPage('walk-11-offline-waiting', { focus: '#q-positiveStopClosed', only: ['#q-positiveStopClosed', '[data-save-state]'] });
+    await expect(page.locator('[data-save-state]').textContent()).resolves.toMatch(
+      /changes? on this phone · offline/,
+    );
+    await checkPage('walk-11-offline-waiting', {
+      focus: '#q-positiveStopClosed',
+      only: ['#q-positiveStopClosed', '[data-save-state]'],
+    });
 
     await page.reload();
     // Waiting, not loading: the island has read the device's outbox.
     await page.locator('[data-save-state="waiting"]').waitFor();
-    for (const key of offlineKeys) await expect(page.locator(`#q-${key} input[value=yes]`).isChecked()).resolves.toBe(true);
+    for (const key of offlineKeys)
+      await expect(page.locator(`#q-${key} input[value=yes]`).isChecked()).resolves.toBe(true);
     await page.locator('#q-positiveStopClosed').getByText('waiting').waitFor();
-    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.forceSetLowest).toBeUndefined();
+    expect(
+      (await testDb()('assessments').where({ id: assessmentId }).first()).answers.forceSetLowest,
+    ).toBeUndefined();
 
     await session.context.setOffline(false);
     await waitSaved();
     await page.locator('#q-positiveStopClosed img[src*="size=thumb"]').waitFor({ timeout: 20_000 });
     const synced = await testDb()('assessments').where({ id: assessmentId }).first();
     for (const key of offlineKeys) expect(synced.answers[key], key).toEqual({ value: 'yes' });
-    expect(await testDb()('assessment_photos').where({ assessment_id: assessmentId }).count('* as n').first()).toEqual({ n: '2' });
+    expect(
+      await testDb()('assessment_photos').where({ assessment_id: assessmentId }).count('* as n').first(),
+    ).toEqual({ n: '2' });
   });
 
   it('shows a change saved elsewhere that clashes with one made here, and keeps the value the auditor picks', async () => {
@@ -249,27 +316,36 @@ describe('the auditor walks a swing gate on a phone', () => {
     // Meanwhile the office corrects the same answer from another device.
     await testDb()('assessments')
       .where({ id: assessmentId })
-      .update({ answers: testDb().raw(`jsonb_set(answers, '{latchFitted}', '{"value":"na"}')`), row_version: testDb().raw('row_version + 1') });
+      .update({
+        answers: testDb().raw(`jsonb_set(answers, '{latchFitted}', '{"value":"na"}')`),
+        row_version: testDb().raw('row_version + 1'),
+      });
     await session.context.setOffline(false);
 
     const dialog = page.getByRole('dialog', { name: 'Saved elsewhere in the meantime' });
     await dialog.waitFor({ timeout: 30_000 });
     await expect(dialog.getByText('On this phone').isVisible()).resolves.toBe(true);
     await expect(page.locator('[data-save-state]').getAttribute('data-save-state')).resolves.toBe('conflict');
-    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({ value: 'na' });
+    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({
+      value: 'na',
+    });
     await checkPage('walk-12-conflict', { only: ['dialog'] });
 
     await dialog.getByRole('radio', { name: /On this phone/ }).check();
     await dialog.getByRole('button', { name: 'Keep these values' }).click();
     await waitSaved();
-    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({ value: 'no' });
+    expect((await testDb()('assessments').where({ id: assessmentId }).first()).answers.latchFitted).toEqual({
+      value: 'no',
+    });
   });
 
   it('shows the live result and what is left, then submits and shows the verdict', async () => {
     // The views are tabs: arrow keys move between them.
     await page.getByRole('tab', { name: 'Walk' }).focus();
     await page.keyboard.press('ArrowRight');
-    await expect(page.getByRole('tab', { name: /To check/ }).getAttribute('aria-selected')).resolves.toBe('true');
+    await expect(page.getByRole('tab', { name: /To check/ }).getAttribute('aria-selected')).resolves.toBe(
+      'true',
+    );
     await checkPage('walk-13-to-check', { only: ['#panel-check'] });
     // One tap from the list to the item, with focus on it.
     await page.locator('#panel-check button').first().click();

@@ -9,7 +9,13 @@
 import fs from 'node:fs';
 import { afterAll, beforeAll, beforeEach, describe, expect, inject, it } from 'vitest';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion } from '../integration/support/archive';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+} from '../integration/support/archive';
 import { createOrganisation, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
@@ -28,9 +34,21 @@ beforeAll(async () => {
   const client = await addClient(org.id, 'Tallowby Farm');
   const site = await addSite(org.id, client, '4 Tallowby Lane', 'Eastholm', 1);
   const gateId = await addGate(org.id, site, 'Farm gate', gate);
-  const base = { organisationId: org.id, auditorId: org.auditor.id, gateId, gate, usageClass: 1, version, status: 'draft' as const };
+  const base = {
+    organisationId: org.id,
+    auditorId: org.auditor.id,
+    gateId,
+    gate,
+    usageClass: 1,
+    version,
+    status: 'draft' as const,
+  };
   // Answers with gaps, so the live result has something to say and something left to check.
-  ({ id: draftId } = await fileAssessment({ ...base, visitedOn: new Date().toISOString(), documents: sampleDocuments(prng, version.loaded.version, 0.8) }));
+  ({ id: draftId } = await fileAssessment({
+    ...base,
+    visitedOn: new Date().toISOString(),
+    documents: sampleDocuments(prng, version.loaded.version, 0.8),
+  }));
   ({ id: mistakeId } = await fileAssessment({
     ...base,
     visitedOn: new Date().toISOString(),
@@ -47,7 +65,12 @@ afterAll(async () => {
 beforeEach(({ task, onTestFailed }) => {
   onTestFailed(async () => {
     fs.mkdirSync('test-results', { recursive: true });
-    await browser?.page.screenshot({ path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`, fullPage: true }).catch(() => {});
+    await browser?.page
+      .screenshot({
+        path: `test-results/${task.name.replace(/[^a-z0-9]+/gi, '-').slice(0, 60)}.png`,
+        fullPage: true,
+      })
+      .catch(() => {});
   });
 });
 

@@ -8,7 +8,15 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AuditPage, TrailVerification } from '../../src/lib/server/audit-trail';
-import { createOrganisation, fixturePassword, ownerTestDb, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  ownerTestDb,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { expectJson } from './support/archive';
 
 let org: FixtureOrganisation;
@@ -28,7 +36,10 @@ async function withTriggerOff(sql: string, bindings: unknown[]): Promise<void> {
 beforeAll(async () => {
   org = await createOrganisation('audit');
   const other = await createOrganisation('audit-other');
-  [owner, otherOwner] = await Promise.all([signIn(org.owner.email, fixturePassword), signIn(other.owner.email, fixturePassword)]);
+  [owner, otherOwner] = await Promise.all([
+    signIn(org.owner.email, fixturePassword),
+    signIn(other.owner.email, fixturePassword),
+  ]);
   // Three audited changes of our own, made the ordinary way.
   for (const remindClients of [true, false, true]) {
     const res = await owner.json('PATCH', '/api/organisation', { remindClients });
@@ -47,16 +58,26 @@ describe('audit trail', () => {
     expect(page.items[0]!.id).toBeGreaterThan(page.items[1]!.id);
     expect(page.items[0]).toMatchObject({ actorLabel: org.owner.email, entityId: org.id });
     expect(page.nextBefore).toBe(page.items[1]!.id);
-    const older = await expectJson<AuditPage>(await owner.fetch(`/api/archive/audit?before=${page.nextBefore}`));
+    const older = await expectJson<AuditPage>(
+      await owner.fetch(`/api/archive/audit?before=${page.nextBefore}`),
+    );
     expect(older.items.every((e) => e.id < page.nextBefore!)).toBe(true);
     expect((await owner.fetch('/api/archive/audit?limit=0')).status).toBe(400);
   });
 
   it('refuses an ordinary UPDATE of an event: the trail is append-only', async () => {
-    const [{ id }] = await testDb()('audit_events').where({ organisation_id: org.id }).orderBy('id').limit(1).select('id');
+    const [{ id }] = await testDb()('audit_events')
+      .where({ organisation_id: org.id })
+      .orderBy('id')
+      .limit(1)
+      .select('id');
     // The app role holds no UPDATE on the trail at all; the tables' owner meets the trigger.
-    await expect(testDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(/permission denied/);
-    await expect(ownerTestDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(/append-only/);
+    await expect(testDb()('audit_events').where({ id }).update({ actor_label: 'nobody' })).rejects.toThrow(
+      /permission denied/,
+    );
+    await expect(
+      ownerTestDb()('audit_events').where({ id }).update({ actor_label: 'nobody' }),
+    ).rejects.toThrow(/append-only/);
   });
 
   it('points at the edited event when one row is changed with raw SQL, and verifies again once it is put back', async () => {
@@ -64,15 +85,22 @@ describe('audit trail', () => {
     expect(intact).toMatchObject({ ok: true, firstBrokenId: null });
     expect(intact.checked).toBeGreaterThanOrEqual(3);
 
-    const events = await testDb()('audit_events').where({ organisation_id: org.id }).orderBy('id').select('id', 'actor_label');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: org.id })
+      .orderBy('id')
+      .select('id', 'actor_label');
     const target = events[1]!;
-    restore = () => withTriggerOff('update audit_events set actor_label = ? where id = ?', [target.actor_label, target.id]);
+    restore = () =>
+      withTriggerOff('update audit_events set actor_label = ? where id = ?', [target.actor_label, target.id]);
     // The chain is shared by every test file, so the row stays edited only for one round of requests.
     let broken: TrailVerification;
     let page: string;
     let elsewhere: TrailVerification;
     try {
-      await withTriggerOff('update audit_events set actor_label = ? where id = ?', ['someone else', target.id]);
+      await withTriggerOff('update audit_events set actor_label = ? where id = ?', [
+        'someone else',
+        target.id,
+      ]);
       [broken, page, elsewhere] = await Promise.all([
         owner.fetch('/api/archive/audit/verify').then((r) => expectJson<TrailVerification>(r)),
         owner.fetch('/archive/audit?verify=1').then((r) => r.text()),
@@ -95,8 +123,15 @@ describe('audit trail', () => {
   it('points at the event after a removed one: its link to the previous hash is gone', async () => {
     // Append one more event, then remove the one before it, and put it back afterwards.
     expect((await owner.json('PATCH', '/api/organisation', { remindClients: false })).status).toBe(200);
-    const [last, previous] = await testDb()('audit_events').where({ organisation_id: org.id }).orderBy('id', 'desc').limit(2).select('*');
-    const between = await testDb()('audit_events').where('id', '>', previous.id).andWhere('id', '<', last.id).count({ n: '*' });
+    const [last, previous] = await testDb()('audit_events')
+      .where({ organisation_id: org.id })
+      .orderBy('id', 'desc')
+      .limit(2)
+      .select('*');
+    const between = await testDb()('audit_events')
+      .where('id', '>', previous.id)
+      .andWhere('id', '<', last.id)
+      .count({ n: '*' });
     if (Number(between[0]!.n) > 0) return; // another file's event sits between ours: the link test needs adjacent rows
     const saved = { ...previous };
     restore = () =>
@@ -125,6 +160,8 @@ describe('audit trail', () => {
       await restore();
       restore = null;
     }
-    expect((await expectJson<TrailVerification>(await owner.fetch('/api/archive/audit/verify'))).ok).toBe(true);
+    expect((await expectJson<TrailVerification>(await owner.fetch('/api/archive/audit/verify'))).ok).toBe(
+      true,
+    );
   });
 });

@@ -58,7 +58,11 @@ let source: Knex;
 const documents: { id: string; sha256: string }[] = [];
 
 beforeAll(async () => {
-  await admin((c) => c.query(`create database "${sourceName}" owner "${decodeURIComponent(new URL(urlFor(sourceName)).username)}"`));
+  await admin((c) =>
+    c.query(
+      `create database "${sourceName}" owner "${decodeURIComponent(new URL(urlFor(sourceName)).username)}"`,
+    ),
+  );
   source = knex({ client: 'pg', connection: urlFor(sourceName), pool: { min: 0, max: 2 } });
   await migrate(source);
   const files = createDiskStorage(path.join(work, 'source', 'files'));
@@ -68,12 +72,24 @@ beforeAll(async () => {
   const [user] = await source('users')
     .insert({ organisation_id: org.id, email: `owner.${suffix}@backstay.test`, name: 'Owner', role: 'owner' })
     .returning('id');
-  const [client] = await source('clients').insert({ organisation_id: org.id, name: 'Pennine Court', kind: 'business' }).returning('id');
-  const [site] = await source('sites')
-    .insert({ organisation_id: org.id, client_id: client.id, address_line1: '9 Pennine Court', city: 'Hollins', usage_class: 3 })
+  const [client] = await source('clients')
+    .insert({ organisation_id: org.id, name: 'Pennine Court', kind: 'business' })
     .returning('id');
-  const [gate] = await source('gates').insert({ organisation_id: org.id, site_id: site.id, label: 'Yard gate', kind: 'slide' }).returning('id');
-  const [ruleset] = await source('rulesets').insert({ organisation_id: org.id, family: 'backup-check', title: 'Backup check' }).returning('id');
+  const [site] = await source('sites')
+    .insert({
+      organisation_id: org.id,
+      client_id: client.id,
+      address_line1: '9 Pennine Court',
+      city: 'Hollins',
+      usage_class: 3,
+    })
+    .returning('id');
+  const [gate] = await source('gates')
+    .insert({ organisation_id: org.id, site_id: site.id, label: 'Yard gate', kind: 'slide' })
+    .returning('id');
+  const [ruleset] = await source('rulesets')
+    .insert({ organisation_id: org.id, family: 'backup-check', title: 'Backup check' })
+    .returning('id');
   const [version] = await source('ruleset_versions')
     .insert({ ruleset_id: ruleset.id, version: '1', content: '{}', content_sha256: '0'.repeat(64) })
     .returning('id');
@@ -89,7 +105,11 @@ beforeAll(async () => {
         signed_at: new Date().toISOString(),
       })
       .returning('id');
-    const pdf = Buffer.concat([Buffer.from(`%PDF-1.7\n% backup round trip ${i}\n`), randomBytes(2048), Buffer.from('\n%%EOF\n')]);
+    const pdf = Buffer.concat([
+      Buffer.from(`%PDF-1.7\n% backup round trip ${i}\n`),
+      randomBytes(2048),
+      Buffer.from('\n%%EOF\n'),
+    ]);
     const stored = await files.put(pdf, 'application/pdf');
     const [doc] = await source('documents')
       .insert({
@@ -118,7 +138,11 @@ afterAll(async () => {
 describe('backup and restore', () => {
   it('round-trips a database with signed reports and their files; every file still matches its recorded SHA-256', async () => {
     const out = path.join(work, 'backups', 'latchwell.tar');
-    const manifest = await backupDatabase({ databaseUrl: urlFor(sourceName), dataDir: path.join(work, 'source'), out });
+    const manifest = await backupDatabase({
+      databaseUrl: urlFor(sourceName),
+      dataDir: path.join(work, 'source'),
+      out,
+    });
     expect(manifest).toMatchObject({ format: 'latchwell-backup/1', database: sourceName, files: 3 });
     expect(manifest.serverVersion).toMatch(/^\d+/);
 
@@ -132,8 +156,13 @@ describe('backup and restore', () => {
 
     const restored = knex({ client: 'pg', connection: urlFor(targetName), pool: { min: 0, max: 1 } });
     try {
-      const rows = await restored('documents').where({ kind: 'signed_report' }).orderBy('id').select('id', 'sha256', 'storage_key');
-      expect(rows.map((r) => ({ id: r.id, sha256: r.sha256 }))).toEqual([...documents].sort((a, b) => a.id.localeCompare(b.id)));
+      const rows = await restored('documents')
+        .where({ kind: 'signed_report' })
+        .orderBy('id')
+        .select('id', 'sha256', 'storage_key');
+      expect(rows.map((r) => ({ id: r.id, sha256: r.sha256 }))).toEqual(
+        [...documents].sort((a, b) => a.id.localeCompare(b.id)),
+      );
       const files = createDiskStorage(path.join(work, 'restored', 'files'));
       for (const row of rows) {
         const bytes = await files.get(row.storage_key);
@@ -141,7 +170,9 @@ describe('backup and restore', () => {
         expect(createHash('sha256').update(bytes!).digest('hex')).toBe(row.sha256);
       }
       // The schema came back whole: triggers still guard the signed archive.
-      await expect(restored('documents').where({ id: rows[0]!.id }).update({ filename: 'renamed.pdf' })).rejects.toThrow(/signed archive/);
+      await expect(
+        restored('documents').where({ id: rows[0]!.id }).update({ filename: 'renamed.pdf' }),
+      ).rejects.toThrow(/signed archive/);
       const [{ n }] = await restored('knex_migrations').count({ n: '*' });
       const [{ m }] = await source('knex_migrations').count({ m: '*' });
       expect(Number(n)).toBe(Number(m));
@@ -155,7 +186,12 @@ describe('backup and restore', () => {
     fs.writeFileSync(path.join(work, 'manifest.json'), JSON.stringify({ format: 'something-else' }));
     execFileSync('tar', ['-cf', bogus, '-C', work, 'manifest.json']);
     await expect(
-      restoreDatabase({ from: bogus, databaseUrl: urlFor(targetName), adminUrl: inject('adminDatabaseUrl'), dataDir: path.join(work, 'nowhere') }),
+      restoreDatabase({
+        from: bogus,
+        databaseUrl: urlFor(targetName),
+        adminUrl: inject('adminDatabaseUrl'),
+        dataDir: path.join(work, 'nowhere'),
+      }),
     ).rejects.toThrow(/not a Latchwell backup/);
   });
 });

@@ -9,8 +9,23 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPrng, sampleGate } from '../support/archive-samples';
-import { addClient, addGate, addSite, fileAssessment, publishedVersion, readZip, type FiledAssessment } from './support/archive';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  fileAssessment,
+  publishedVersion,
+  readZip,
+  type FiledAssessment,
+} from './support/archive';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 
 const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex');
 
@@ -29,13 +44,24 @@ beforeAll(async () => {
   const site = await addSite(org.id, client, '5 Larchmere Yard', 'Northwick', 3);
   const gate = { ...sampleGate(prng), kind: 'slide' as const, openingDirection: null };
   const gateId = await addGate(org.id, site, 'Yard slider', gate);
-  const common = { organisationId: org.id, gateId, auditorId: org.auditor.id, version, gate, usageClass: 3, prng };
+  const common = {
+    organisationId: org.id,
+    gateId,
+    auditorId: org.auditor.id,
+    version,
+    gate,
+    usageClass: 3,
+    prng,
+  };
   intact = await fileAssessment({ ...common, visitedOn: '2026-05-04T09:00:00Z' });
   altered = await fileAssessment({ ...common, visitedOn: '2026-06-04T09:00:00Z' });
   // Change the signed report's bytes where the server keeps them (disk storage, sharded by hash).
   storedFile = path.join(inject('dataDir'), 'files', altered.pdfSha256!.slice(0, 2), altered.pdfSha256!);
   fs.chmodSync(storedFile, 0o644);
-  fs.writeFileSync(storedFile, Buffer.concat([altered.pdf!, Buffer.from('% quietly appended after signing\n')]));
+  fs.writeFileSync(
+    storedFile,
+    Buffer.concat([altered.pdf!, Buffer.from('% quietly appended after signing\n')]),
+  );
 });
 
 afterAll(() => {
@@ -71,14 +97,24 @@ describe('archive export file check', () => {
     expect(note).toContain(altered.pdfSha256!);
 
     const event = await testDb()('audit_events')
-      .where({ organisation_id: org.id, action: 'archive.export_file_mismatch', entity_id: altered.documentId })
+      .where({
+        organisation_id: org.id,
+        action: 'archive.export_file_mismatch',
+        entity_id: altered.documentId,
+      })
       .first('detail', 'actor_label');
     expect(event).toMatchObject({
       actor_label: org.office.email,
       detail: { assessmentId: altered.id, expectedSha256: altered.pdfSha256, actualSha256: actual },
     });
     expect(
-      await testDb()('audit_events').where({ organisation_id: org.id, action: 'archive.export_file_mismatch', entity_id: intact.documentId }).first(),
+      await testDb()('audit_events')
+        .where({
+          organisation_id: org.id,
+          action: 'archive.export_file_mismatch',
+          entity_id: intact.documentId,
+        })
+        .first(),
     ).toBeUndefined();
   });
 });

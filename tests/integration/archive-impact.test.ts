@@ -9,9 +9,30 @@ import { freePort, startAppServer } from '../../src/cli/services';
 import type { ImpactReport } from '../../src/lib/api/impact';
 import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
-import { createPrng, sampleDocuments, sampleGate, type SampleDocuments, type SampleGate } from '../support/archive-samples';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion, type PublishedVersion } from './support/archive';
+import {
+  createPrng,
+  sampleDocuments,
+  sampleGate,
+  type SampleDocuments,
+  type SampleGate,
+} from '../support/archive-samples';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  expectJson,
+  fileAssessment,
+  publishedVersion,
+  type PublishedVersion,
+} from './support/archive';
 
 const rank = { clear: 0, remedy: 1, withdraw: 2 } as const;
 let org: FixtureOrganisation;
@@ -27,7 +48,11 @@ interface Case {
 }
 
 function verdictUnder(version: PublishedVersion, c: Case) {
-  const built = buildEngineInput({ ...c.gate, usageClass: 1 } as never, c.documents as never, version.loaded.version.questions);
+  const built = buildEngineInput(
+    { ...c.gate, usageClass: 1 } as never,
+    c.documents as never,
+    version.loaded.version.questions,
+  );
   return built.ok ? scoreParsed(built.value, version.loaded).verdict : null;
 }
 
@@ -44,14 +69,20 @@ function findCases(): { worse: Case; same: Case } {
     if (!worse && rank[after] > rank[before]) worse = c;
     if (!same && after === before && before !== 'withdraw') same = c;
   }
-  if (!worse || !same) throw new Error('no generated record gets worse under north-american-gate 2026.1; the rulesets may have converged');
+  if (!worse || !same)
+    throw new Error(
+      'no generated record gets worse under north-american-gate 2026.1; the rulesets may have converged',
+    );
   return { worse, same };
 }
 
 beforeAll(async () => {
   org = await createOrganisation('impact');
   office = await signIn(org.office.email, fixturePassword);
-  [v2015, v2026] = await Promise.all([publishedVersion('north-american-gate', '2015.1'), publishedVersion('north-american-gate', '2026.1')]);
+  [v2015, v2026] = await Promise.all([
+    publishedVersion('north-american-gate', '2015.1'),
+    publishedVersion('north-american-gate', '2026.1'),
+  ]);
   const { worse, same } = findCases();
   const client = await addClient(org.id, 'Fieldfare Close Association');
   const site = await addSite(org.id, client, '1 Fieldfare Close', 'Brookhaven', 1);
@@ -60,25 +91,65 @@ beforeAll(async () => {
   gates.same = await addGate(org.id, site, 'South gate', same.gate);
   gates.revisited = await addGate(org.id, site, 'Service gate', worse.gate);
   filed.worse = (
-    await fileAssessment({ ...base, gateId: gates.worse, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2025-04-01T10:00:00Z' })
+    await fileAssessment({
+      ...base,
+      gateId: gates.worse,
+      gate: worse.gate,
+      version: v2015,
+      documents: worse.documents,
+      visitedOn: '2025-04-01T10:00:00Z',
+    })
   ).id;
   filed.same = (
-    await fileAssessment({ ...base, gateId: gates.same, gate: same.gate, version: v2015, documents: same.documents, visitedOn: '2025-04-01T11:00:00Z' })
+    await fileAssessment({
+      ...base,
+      gateId: gates.same,
+      gate: same.gate,
+      version: v2015,
+      documents: same.documents,
+      visitedOn: '2025-04-01T11:00:00Z',
+    })
   ).id;
   // Visited under the old version, then again under the new one: its standing record is already current.
   filed.revisitedOld = (
-    await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2015, documents: worse.documents, visitedOn: '2024-04-01T10:00:00Z' })
+    await fileAssessment({
+      ...base,
+      gateId: gates.revisited,
+      gate: worse.gate,
+      version: v2015,
+      documents: worse.documents,
+      visitedOn: '2024-04-01T10:00:00Z',
+    })
   ).id;
   filed.revisitedNew = (
-    await fileAssessment({ ...base, gateId: gates.revisited, gate: worse.gate, version: v2026, documents: worse.documents, visitedOn: '2026-04-01T10:00:00Z' })
+    await fileAssessment({
+      ...base,
+      gateId: gates.revisited,
+      gate: worse.gate,
+      version: v2026,
+      documents: worse.documents,
+      visitedOn: '2026-04-01T10:00:00Z',
+    })
   ).id;
 });
 
 describe('ruleset impact', () => {
   it('lists the gates whose last signed visit would get a worse verdict, with the rules responsible, without touching stored results', async () => {
-    const stored = await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at');
-    const report = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}`));
-    expect(report).toMatchObject({ basis: 'latest', considered: 2, worse: 1, same: 1, unscorable: 0, truncated: false });
+    const stored = await testDb()('assessments')
+      .where({ organisation_id: org.id })
+      .orderBy('id')
+      .select('id', 'result_sha256', 'verdict', 'updated_at');
+    const report = await expectJson<ImpactReport>(
+      await office.fetch(`/api/archive/impact?versionId=${v2026.id}`),
+    );
+    expect(report).toMatchObject({
+      basis: 'latest',
+      considered: 2,
+      worse: 1,
+      same: 1,
+      unscorable: 0,
+      truncated: false,
+    });
     expect(report.target).toMatchObject({ family: 'north-american-gate', version: '2026.1' });
     expect(report.target.comparedWith).toContain('2015.1');
     const [item] = report.items;
@@ -95,23 +166,32 @@ describe('ruleset impact', () => {
     // Every rule named really drives the new verdict, and was not already failing that badly.
     for (const rule of item!.rules) {
       expect(['fail', 'needs_info']).toContain(rule.outcome);
-      expect(rule.severity === 'critical' || (rule.severity === 'major' && rule.outcome === 'fail')).toBe(true);
+      expect(rule.severity === 'critical' || (rule.severity === 'major' && rule.outcome === 'fail')).toBe(
+        true,
+      );
       expect(rule.before === 'fail' && rule.beforeSeverity === rule.severity).toBe(false);
     }
-    expect(await testDb()('assessments').where({ organisation_id: org.id }).orderBy('id').select('id', 'result_sha256', 'verdict', 'updated_at')).toEqual(
-      stored,
-    );
+    expect(
+      await testDb()('assessments')
+        .where({ organisation_id: org.id })
+        .orderBy('id')
+        .select('id', 'result_sha256', 'verdict', 'updated_at'),
+    ).toEqual(stored);
   });
 
   it('re-scores every signed visit with basis=all, and exports the list as CSV', async () => {
-    const all = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`));
+    const all = await expectJson<ImpactReport>(
+      await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
+    );
     expect(all).toMatchObject({ considered: 3, worse: 2, same: 1 });
     expect(all.items.map((i) => i.assessmentId).sort()).toEqual([filed.worse, filed.revisitedOld].sort());
 
     const csv = await office.fetch(`/api/archive/impact.csv?versionId=${v2026.id}`);
     expect(csv.status).toBe(200);
     expect(csv.headers.get('content-type')).toBe('text/csv; charset=utf-8');
-    expect(csv.headers.get('content-disposition')).toBe('attachment; filename="impact-north-american-gate-2026.1.csv"');
+    expect(csv.headers.get('content-disposition')).toBe(
+      'attachment; filename="impact-north-american-gate-2026.1.csv"',
+    );
     const lines = (await csv.text()).trim().split('\r\n');
     expect(lines[0]).toMatch(/^client,address,city,gate,/);
     expect(lines).toHaveLength(2);
@@ -120,7 +200,9 @@ describe('ruleset impact', () => {
   });
 
   it('gives the same list when the built server spreads the re-scoring over worker threads', async () => {
-    const here = await expectJson<ImpactReport>(await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`));
+    const here = await expectJson<ImpactReport>(
+      await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
+    );
     const server = await startAppServer({
       port: await freePort(),
       quiet: true,
@@ -153,7 +235,9 @@ describe('ruleset impact', () => {
   }, 60_000);
 
   it('refuses a version that is not published or not visible, and a bad query', async () => {
-    expect((await office.fetch('/api/archive/impact?versionId=00000000-0000-4000-8000-000000000000')).status).toBe(404);
+    expect(
+      (await office.fetch('/api/archive/impact?versionId=00000000-0000-4000-8000-000000000000')).status,
+    ).toBe(404);
     expect((await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=some`)).status).toBe(400);
     const page = await office.fetch('/archive/impact');
     expect(page.status).toBe(200);

@@ -6,7 +6,16 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { DueGate } from '../../src/lib/server/reinspection';
 import { createPrng, sampleGate } from '../support/archive-samples';
-import { caughtMailIds, createOrganisation, fixturePassword, signIn, testDb, waitForMail, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  caughtMailIds,
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  waitForMail,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion } from './support/archive';
 
 let org: FixtureOrganisation;
@@ -24,7 +33,9 @@ const plusYear = (day: string) => `${Number(day.slice(0, 4)) + 1}${day.slice(4)}
 
 beforeAll(async () => {
   org = await createOrganisation('reinspection');
-  await testDb()('organisations').where({ id: org.id }).update({ remind_clients: true, reinspection_months: 12 });
+  await testDb()('organisations')
+    .where({ id: org.id })
+    .update({ remind_clients: true, reinspection_months: 12 });
   office = await signIn(org.office.email, fixturePassword);
   const version = await publishedVersion('north-american-gate', '2026.1');
   const prng = createPrng(4242);
@@ -34,7 +45,16 @@ beforeAll(async () => {
     const gate = sampleGate(prng);
     gates[name] = await addGate(org.id, site, `${name} gate`, gate, fields);
     if (visit)
-      await fileAssessment({ organisationId: org.id, gateId: gates[name]!, auditorId: org.auditor.id, version, gate, usageClass: 2, visitedOn: visit, prng });
+      await fileAssessment({
+        organisationId: org.id,
+        gateId: gates[name]!,
+        auditorId: org.auditor.id,
+        version,
+        gate,
+        usageClass: 2,
+        visitedOn: visit,
+        prng,
+      });
   };
   await file('Overdue', monthsFromNow(-13).at);
   // Due on this month's 15th: within a month either side of today.
@@ -46,9 +66,15 @@ beforeAll(async () => {
 
 describe('re-inspection', () => {
   it('lists overdue and soon-due gates with their due date, 12 months after the last signed visit unless a later date is set', async () => {
-    const { gates: due } = await expectJson<{ gates: DueGate[] }>(await office.fetch('/api/archive/reinspection'));
+    const { gates: due } = await expectJson<{ gates: DueGate[] }>(
+      await office.fetch('/api/archive/reinspection'),
+    );
     const byId = new Map(due.map((g) => [g.gateId, g]));
-    expect(byId.get(gates.Overdue!)).toMatchObject({ state: 'overdue', source: 'interval', dueOn: plusYear(monthsFromNow(-13).day) });
+    expect(byId.get(gates.Overdue!)).toMatchObject({
+      state: 'overdue',
+      source: 'interval',
+      dueOn: plusYear(monthsFromNow(-13).day),
+    });
     expect(byId.get(gates.Overdue!)!.daysLeft).toBeLessThan(0);
     expect(byId.get(gates.Soon!)).toMatchObject({ dueOn: plusYear(monthsFromNow(-12).day) });
     expect(Math.abs(byId.get(gates.Soon!)!.daysLeft!)).toBeLessThanOrEqual(31);
@@ -56,12 +82,21 @@ describe('re-inspection', () => {
     expect(byId.has(gates.Rescheduled!)).toBe(false);
     expect(byId.has(gates.Unsigned!)).toBe(false);
     // A wider window shows the rescheduled gate with the date set on it.
-    const wide = await expectJson<{ gates: DueGate[] }>(await office.fetch('/api/archive/reinspection?within=365'));
-    expect(wide.gates.find((g) => g.gateId === gates.Rescheduled)).toMatchObject({ source: 'set', dueOn: monthsFromNow(6).day, state: 'later' });
+    const wide = await expectJson<{ gates: DueGate[] }>(
+      await office.fetch('/api/archive/reinspection?within=365'),
+    );
+    expect(wide.gates.find((g) => g.gateId === gates.Rescheduled)).toMatchObject({
+      source: 'set',
+      dueOn: monthsFromNow(6).day,
+      state: 'later',
+    });
   });
 
   it('queues one office digest and one client message through the outbox, and never twice for the same due date', async () => {
-    const [seenOffice, seenClient] = await Promise.all([caughtMailIds(org.office.email), caughtMailIds(clientEmail)]);
+    const [seenOffice, seenClient] = await Promise.all([
+      caughtMailIds(org.office.email),
+      caughtMailIds(clientEmail),
+    ]);
     const first = await expectJson<{ officeGates: number; clientMessages: number; alreadyReminded: number }>(
       await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }),
       202,
@@ -82,9 +117,14 @@ describe('re-inspection', () => {
     const clientMail = await waitForMail(clientEmail, seenClient, 15_000);
     expect(clientMail.text).toContain('2 Quayside Walk');
 
-    const second = await expectJson(await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }), 202);
+    const second = await expectJson(
+      await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }),
+      202,
+    );
     expect(second).toEqual({ officeGates: 0, clientMessages: 0, alreadyReminded: 2 });
-    const audit = await testDb()('audit_events').where({ organisation_id: org.id, action: 'reinspection.reminders_queued' }).count({ n: '*' });
+    const audit = await testDb()('audit_events')
+      .where({ organisation_id: org.id, action: 'reinspection.reminders_queued' })
+      .count({ n: '*' });
     expect(Number(audit[0]!.n)).toBe(1);
   });
 
@@ -97,7 +137,9 @@ describe('re-inspection', () => {
     expect(ics).toMatch(/^BEGIN:VCALENDAR\r\n/);
     expect(ics).toContain(`DTSTART;VALUE=DATE:${due}\r\n`);
     expect(ics).toContain(`UID:reinspection-${gates.Overdue}-`);
-    expect(ics.replace(/\r\n /g, '')).toContain('SUMMARY:Gate re-inspection due: Overdue gate (Harbourview Moorings)');
+    expect(ics.replace(/\r\n /g, '')).toContain(
+      'SUMMARY:Gate re-inspection due: Overdue gate (Harbourview Moorings)',
+    );
     expect((await office.fetch(`/api/archive/gates/${gates.Unsigned}/reinspection.ics`)).status).toBe(404);
   });
 
@@ -123,7 +165,10 @@ describe('re-inspection', () => {
     const ics = await res.text();
     const raw = ics.slice(0, -2).split('\r\n');
     // Every line is a property or a folded continuation; no CR or LF inside a line.
-    for (const line of raw) expect(line, JSON.stringify(line)).toMatch(/^(?:[A-Za-z0-9-]+(?:;[A-Za-z0-9-]+=[^:;]*)*:|[ \t])[^\r\n]*$/);
+    for (const line of raw)
+      expect(line, JSON.stringify(line)).toMatch(
+        /^(?:[A-Za-z0-9-]+(?:;[A-Za-z0-9-]+=[^:;]*)*:|[ \t])[^\r\n]*$/,
+      );
     const lines = ics.replace(/\r\n[ \t]/g, '').split('\r\n');
     expect(lines.filter((l) => l === 'BEGIN:VEVENT')).toHaveLength(1);
     expect(lines.filter((l) => l.startsWith('X-INJECTED'))).toHaveLength(0);

@@ -7,7 +7,15 @@ import { createHash } from 'node:crypto';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { createPrng, sampleGate } from '../support/archive-samples';
 import { anonymousClient, createOrganisation, testDb, type FixtureOrganisation } from './support/fixtures';
-import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion, type FiledAssessment } from './support/archive';
+import {
+  addClient,
+  addGate,
+  addSite,
+  expectJson,
+  fileAssessment,
+  publishedVersion,
+  type FiledAssessment,
+} from './support/archive';
 
 let org: FixtureOrganisation;
 let signed: FiledAssessment;
@@ -59,12 +67,21 @@ function pdfForm(bytes: Buffer): FormData {
 
 describe('public verification', () => {
   it('confirms an uploaded signed PDF with when it was signed and by which organisation, and nothing else', async () => {
-    const answer = await expectJson<Record<string, unknown>>(await anonymousClient().fetch('/api/verify', { method: 'POST', body: pdfForm(signed.pdf!) }));
-    expect(answer).toEqual({ match: true, documentId: signed.documentId, signedAt: '2026-10-02T11:00:00.000Z', organisation: org.name });
+    const answer = await expectJson<Record<string, unknown>>(
+      await anonymousClient().fetch('/api/verify', { method: 'POST', body: pdfForm(signed.pdf!) }),
+    );
+    expect(answer).toEqual({
+      match: true,
+      documentId: signed.documentId,
+      signedAt: '2026-10-02T11:00:00.000Z',
+      organisation: org.name,
+    });
   });
 
   it('confirms by document id, and by the raw PDF body', async () => {
-    expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`))).toMatchObject({ match: true, organisation: org.name });
+    expect(
+      await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`)),
+    ).toMatchObject({ match: true, organisation: org.name });
     const raw = await anonymousClient().fetch('/api/verify', {
       method: 'POST',
       headers: { 'content-type': 'application/pdf' },
@@ -76,9 +93,19 @@ describe('public verification', () => {
   it('says no match for a PDF changed by one byte, a signing copy or an unknown id', async () => {
     const changed = Buffer.from(signed.pdf!);
     changed[changed.length - 2] ^= 1;
-    expect(await expectJson(await anonymousClient().fetch('/api/verify', { method: 'POST', body: pdfForm(changed) }))).toEqual({ match: false });
-    expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${draftCopyId}`))).toEqual({ match: false });
-    expect(await expectJson(await anonymousClient().fetch('/api/verify?document=00000000-0000-4000-8000-000000000000'))).toEqual({ match: false });
+    expect(
+      await expectJson(
+        await anonymousClient().fetch('/api/verify', { method: 'POST', body: pdfForm(changed) }),
+      ),
+    ).toEqual({ match: false });
+    expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${draftCopyId}`))).toEqual({
+      match: false,
+    });
+    expect(
+      await expectJson(
+        await anonymousClient().fetch('/api/verify?document=00000000-0000-4000-8000-000000000000'),
+      ),
+    ).toEqual({ match: false });
     const bad = await anonymousClient().fetch('/api/verify?document=not-an-id');
     expect(bad.status).toBe(400);
     expect((await bad.json()).errors[0].field).toBe('document');
@@ -96,7 +123,9 @@ describe('public verification', () => {
     expect(html).not.toContain('Larkspur');
     const byId = new FormData();
     byId.set('document', draftCopyId);
-    expect(await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text()).toContain('No match');
+    expect(await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text()).toContain(
+      'No match',
+    );
   });
 
   it('throttles one address after 60 checks in 15 minutes, API and page alike, and leaves other addresses alone', async () => {
@@ -113,13 +142,19 @@ describe('public verification', () => {
     const retryAfter = Number(refused.headers.get('retry-after'));
     expect(retryAfter).toBeGreaterThan(0);
     expect(retryAfter).toBeLessThanOrEqual(15 * 60);
-    expect((await refused.json()).detail).toMatch(/^Too many reports checked from this address\. Try again in about \d+ minutes?\.$/);
+    expect((await refused.json()).detail).toMatch(
+      /^Too many reports checked from this address\. Try again in about \d+ minutes?\.$/,
+    );
     const page = await visitor.fetch('/verify', { method: 'POST', body: pdfForm(signed.pdf!) });
     expect(page.status).toBe(429);
     expect(await page.text()).toContain('Too many reports checked from this address');
     // Another address is not affected, and the refused checks did not count.
-    expect(await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`))).toMatchObject({ match: true });
-    const counted = await testDb()('sign_in_attempts').where({ kind: 'verify', ip: visitor.address }).count<{ count: string }[]>('* as count');
+    expect(
+      await expectJson(await anonymousClient().fetch(`/api/verify?document=${signed.documentId}`)),
+    ).toMatchObject({ match: true });
+    const counted = await testDb()('sign_in_attempts')
+      .where({ kind: 'verify', ip: visitor.address })
+      .count<{ count: string }[]>('* as count');
     expect(Number(counted[0]!.count)).toBe(60);
   });
 });

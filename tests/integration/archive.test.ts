@@ -7,8 +7,24 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { ArchiveItem, ArchivePage } from '../../src/lib/api/archive';
 import type { GateHistory } from '../../src/lib/server/gate-history';
 import { createPrng, sampleGate } from '../support/archive-samples';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion, readZip, type FiledAssessment } from './support/archive';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  expectJson,
+  fileAssessment,
+  publishedVersion,
+  readZip,
+  type FiledAssessment,
+} from './support/archive';
 
 let org: FixtureOrganisation;
 let office: TestClient;
@@ -19,8 +35,14 @@ const gates: Record<string, string> = {};
 beforeAll(async () => {
   org = await createOrganisation('archive');
   const other = await createOrganisation('archive-other');
-  [office, stranger] = await Promise.all([signIn(org.office.email, fixturePassword), signIn(other.owner.email, fixturePassword)]);
-  const [v2015, v2026] = await Promise.all([publishedVersion('north-american-gate', '2015.1'), publishedVersion('north-american-gate', '2026.1')]);
+  [office, stranger] = await Promise.all([
+    signIn(org.office.email, fixturePassword),
+    signIn(other.owner.email, fixturePassword),
+  ]);
+  const [v2015, v2026] = await Promise.all([
+    publishedVersion('north-american-gate', '2015.1'),
+    publishedVersion('north-american-gate', '2026.1'),
+  ]);
   const prng = createPrng(20261202);
 
   const lettings = await addClient(org.id, 'Harrowgate Lettings');
@@ -40,9 +62,30 @@ beforeAll(async () => {
   gates.courtyard = await addGate(org.id, close, 'Courtyard gate', swingB);
 
   const base = { organisationId: org.id, auditorId: org.auditor.id, prng };
-  filed.front2025 = await fileAssessment({ ...base, gateId: gates.frontDrive, gate: swingA, usageClass: 1, version: v2015, visitedOn: '2025-03-10T10:00:00Z' });
-  filed.front2026 = await fileAssessment({ ...base, gateId: gates.frontDrive, gate: swingA, usageClass: 1, version: v2026, visitedOn: '2026-03-12T10:00:00Z' });
-  filed.rear = await fileAssessment({ ...base, gateId: gates.rearYard, gate: slideA, usageClass: 1, version: v2026, visitedOn: '2026-05-01T09:00:00Z' });
+  filed.front2025 = await fileAssessment({
+    ...base,
+    gateId: gates.frontDrive,
+    gate: swingA,
+    usageClass: 1,
+    version: v2015,
+    visitedOn: '2025-03-10T10:00:00Z',
+  });
+  filed.front2026 = await fileAssessment({
+    ...base,
+    gateId: gates.frontDrive,
+    gate: swingA,
+    usageClass: 1,
+    version: v2026,
+    visitedOn: '2026-03-12T10:00:00Z',
+  });
+  filed.rear = await fileAssessment({
+    ...base,
+    gateId: gates.rearYard,
+    gate: slideA,
+    usageClass: 1,
+    version: v2026,
+    visitedOn: '2026-05-01T09:00:00Z',
+  });
   filed.depot = await fileAssessment({
     ...base,
     auditorId: org.auditor2.id,
@@ -80,18 +123,29 @@ beforeAll(async () => {
   });
 });
 
-const list = async (client: TestClient, query: string) => expectJson<ArchivePage>(await client.fetch(`/api/archive?${query}`));
+const list = async (client: TestClient, query: string) =>
+  expectJson<ArchivePage>(await client.fetch(`/api/archive?${query}`));
 const idsOf = (items: ArchiveItem[]) => items.map((i) => i.id).sort();
 const ids = (...keys: string[]) => keys.map((k) => filed[k]!.id).sort();
 /** Newest visit first, as the default sort files them. */
-const byDateDesc = ['depotDraft', 'courtyardScored', 'depot', 'rear', 'front2026', 'front2025', 'courtyard2024'];
+const byDateDesc = [
+  'depotDraft',
+  'courtyardScored',
+  'depot',
+  'rear',
+  'front2026',
+  'front2025',
+  'courtyard2024',
+];
 
 describe('archive search', () => {
   it('finds assessments by a few letters of an address, a gate label or a client name, across all three at once', async () => {
     expect(idsOf((await list(office, 'q=fennick')).items)).toEqual(ids('front2025', 'front2026', 'rear'));
     expect(idsOf((await list(office, 'q=courtY')).items)).toEqual(ids('courtyardScored', 'courtyard2024'));
     // "Harrowgate" is one client's name and another client's street.
-    expect(idsOf((await list(office, 'q=harrowgate')).items)).toEqual(ids('front2025', 'front2026', 'rear', 'courtyardScored', 'courtyard2024'));
+    expect(idsOf((await list(office, 'q=harrowgate')).items)).toEqual(
+      ids('front2025', 'front2026', 'rear', 'courtyardScored', 'courtyard2024'),
+    );
     expect(idsOf((await list(office, 'q=EH4')).items)).toEqual(ids('front2025', 'front2026', 'rear'));
     expect((await list(office, 'q=%25')).items).toEqual([]);
   });
@@ -100,11 +154,17 @@ describe('archive search', () => {
     expect(idsOf((await list(office, 'client=quarry')).items)).toEqual(ids('depot', 'depotDraft'));
     expect(idsOf((await list(office, 'address=tollbar')).items)).toEqual(ids('depot', 'depotDraft'));
     expect(idsOf((await list(office, 'gateKind=slide')).items)).toEqual(ids('rear', 'depot', 'depotDraft'));
-    expect(idsOf((await list(office, 'usageClass=2')).items)).toEqual(ids('courtyardScored', 'courtyard2024'));
+    expect(idsOf((await list(office, 'usageClass=2')).items)).toEqual(
+      ids('courtyardScored', 'courtyard2024'),
+    );
     expect(idsOf((await list(office, 'status=draft')).items)).toEqual(ids('depotDraft'));
-    expect(idsOf((await list(office, 'family=north-american-gate&version=2015.1')).items)).toEqual(ids('front2025'));
+    expect(idsOf((await list(office, 'family=north-american-gate&version=2015.1')).items)).toEqual(
+      ids('front2025'),
+    );
     expect(idsOf((await list(office, `auditorId=${org.auditor2.id}`)).items)).toEqual(ids('depot'));
-    expect(idsOf((await list(office, 'from=2026-03-12&to=2026-06-15')).items)).toEqual(ids('front2026', 'rear', 'depot'));
+    expect(idsOf((await list(office, 'from=2026-03-12&to=2026-06-15')).items)).toEqual(
+      ids('front2026', 'rear', 'depot'),
+    );
     const verdict = filed.rear!.verdict!;
     const withVerdict = Object.keys(filed).filter((k) => filed[k]!.verdict === verdict);
     expect(idsOf((await list(office, `verdict=${verdict}`)).items)).toEqual(ids(...withVerdict));
@@ -161,7 +221,8 @@ describe('archive search', () => {
       const whole = (await list(office, `sort=${sort}&limit=100`)).items.map((i) => i.id);
       expect(whole).toHaveLength(7);
       const pages: ArchivePage[] = [await list(office, `sort=${sort}&limit=2`)];
-      while (pages.at(-1)!.nextCursor) pages.push(await list(office, `sort=${sort}&limit=2&after=${pages.at(-1)!.nextCursor}`));
+      while (pages.at(-1)!.nextCursor)
+        pages.push(await list(office, `sort=${sort}&limit=2&after=${pages.at(-1)!.nextCursor}`));
       expect(
         pages.flatMap((p) => p.items.map((i) => i.id)),
         sort,
@@ -187,9 +248,13 @@ describe('archive search', () => {
 
   it('counts what a filter matches', async () => {
     expect(await expectJson(await office.fetch('/api/archive/count'))).toEqual({ total: 7 });
-    expect(await expectJson(await office.fetch('/api/archive/count?q=harrowgate&status=signed'))).toEqual({ total: 4 });
+    expect(await expectJson(await office.fetch('/api/archive/count?q=harrowgate&status=signed'))).toEqual({
+      total: 4,
+    });
     expect(await expectJson(await office.fetch('/api/archive/count?gateKind=slide'))).toEqual({ total: 3 });
-    expect(await expectJson(await office.fetch('/api/archive/count?status=signed&family=north-american-gate'))).toEqual({ total: 5 });
+    expect(
+      await expectJson(await office.fetch('/api/archive/count?status=signed&family=north-american-gate')),
+    ).toEqual({ total: 5 });
   });
 
   it("never shows another organisation's assessments, whatever the filter", async () => {
@@ -205,7 +270,9 @@ describe('archive export', () => {
     const res = await office.fetch('/api/archive/export?gateKind=slide');
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toBe('application/zip');
-    expect(res.headers.get('content-disposition')).toMatch(/^attachment; filename="latchwell-signed-reports-\d{4}-\d\d-\d\d\.zip"$/);
+    expect(res.headers.get('content-disposition')).toMatch(
+      /^attachment; filename="latchwell-signed-reports-\d{4}-\d\d-\d\d\.zip"$/,
+    );
     const entries = readZip(Buffer.from(await res.arrayBuffer()));
     const index = entries.get('index.csv')!.toString('utf8').trim().split('\r\n');
     expect(index[0]).toMatch(/^file,document_id,sha256,/);
@@ -218,19 +285,30 @@ describe('archive export', () => {
       expect(entries.get(file)?.equals(filed[key]!.pdf!)).toBe(true);
     }
     expect([...entries.keys()].filter((n) => n.endsWith('.pdf'))).toHaveLength(2);
-    const audit = await testDb()('audit_events').where({ organisation_id: org.id, action: 'archive.exported' }).orderBy('id', 'desc').first('detail');
+    const audit = await testDb()('audit_events')
+      .where({ organisation_id: org.id, action: 'archive.exported' })
+      .orderBy('id', 'desc')
+      .first('detail');
     expect(audit.detail).toEqual({ filter: { gateKind: 'slide' } });
   });
 });
 
 describe('gate history', () => {
   it("lists every visit of a gate in order with verdicts and area scores, and the last visit's open findings", async () => {
-    const history = await expectJson<GateHistory>(await office.fetch(`/api/archive/gates/${gates.frontDrive}`));
-    expect(history.gate).toMatchObject({ label: 'Front drive swing', address: '14 Fennick Row', clientName: 'Harrowgate Lettings' });
+    const history = await expectJson<GateHistory>(
+      await office.fetch(`/api/archive/gates/${gates.frontDrive}`),
+    );
+    expect(history.gate).toMatchObject({
+      label: 'Front drive swing',
+      address: '14 Fennick Row',
+      clientName: 'Harrowgate Lettings',
+    });
     expect(history.visits.map((v) => v.assessmentId)).toEqual([filed.front2025!.id, filed.front2026!.id]);
     expect(history.visits.map((v) => v.ruleset.version)).toEqual(['2015.1', '2026.1']);
     expect(history.visits[1]!.verdict).toBe(filed.front2026!.verdict);
-    expect(Object.keys(history.visits[1]!.areaScores ?? {})).toEqual(expect.arrayContaining(['pinch', 'gaps', 'force']));
+    expect(Object.keys(history.visits[1]!.areaScores ?? {})).toEqual(
+      expect.arrayContaining(['pinch', 'gaps', 'force']),
+    );
     expect(history.lastVisit?.assessmentId).toBe(filed.front2026!.id);
 
     const { result } = await testDb()('assessments').where({ id: filed.front2026!.id }).first('result');
@@ -243,7 +321,11 @@ describe('gate history', () => {
       expect(finding.visitsFailing, finding.ruleId).toBe(earlierFails.includes(finding.ruleId) ? 2 : 1);
     }
     // Signed 2026-03-12, the organisation's interval is 12 months.
-    expect(history.reinspection).toMatchObject({ dueOn: '2027-03-12', source: 'interval', lastSignedAssessmentId: filed.front2026!.id });
+    expect(history.reinspection).toMatchObject({
+      dueOn: '2027-03-12',
+      source: 'interval',
+      lastSignedAssessmentId: filed.front2026!.id,
+    });
   });
 
   it('shows the archive and gate history pages to the office', async () => {

@@ -7,11 +7,24 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { resultSha256, scoreParsed, VERDICTS, type RulesetVersion } from '@/lib/rules';
 import { buildEngineInput } from '@/lib/server/assessment-input';
 import { verifyOrganisationTrail } from '@/lib/server/audit-trail';
-import { createOrganisation, fixturePassword, signIn, signInHomeowner, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  signInHomeowner,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { currentVersion, insertGate, insertSite, seedDirectory, type Directory } from './support/domain';
 
 const family = 'north-american-gate';
-const siteContext = { pedestriansUseDriveway: true, childrenOrPetsPresent: true, publicAccess: false, slopeAcrossSwing: false };
+const siteContext = {
+  pedestriansUseDriveway: true,
+  childrenOrPetsPresent: true,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
 
 let org: FixtureOrganisation;
 let other: FixtureOrganisation;
@@ -37,19 +50,32 @@ beforeAll(async () => {
 });
 
 async function startDraft(client: TestClient, gateId = dir.gateId, extra: Record<string, unknown> = {}) {
-  const res = await client.json('POST', '/api/assessments', { gateId, family, purpose: 'inspection', ...extra });
+  const res = await client.json('POST', '/api/assessments', {
+    gateId,
+    family,
+    purpose: 'inspection',
+    ...extra,
+  });
   expect(res.status, await res.clone().text()).toBe(201);
   return res.json();
 }
 
 function patch(client: TestClient, id: string, version: number | null, body: unknown) {
-  const headers: Record<string, string> = { 'content-type': 'application/merge-patch+json', accept: 'application/json' };
+  const headers: Record<string, string> = {
+    'content-type': 'application/merge-patch+json',
+    accept: 'application/json',
+  };
   if (version !== null) headers['if-match'] = `"${version}"`;
   return client.fetch(`/api/assessments/${id}`, { method: 'PATCH', headers, body: JSON.stringify(body) });
 }
 
-async function auditActions(entityId: string): Promise<{ action: string; detail: Record<string, unknown>; actor_user_id: string }[]> {
-  return testDb()('audit_events').where({ entity_type: 'assessment', entity_id: entityId }).orderBy('id').select('action', 'detail', 'actor_user_id');
+async function auditActions(
+  entityId: string,
+): Promise<{ action: string; detail: Record<string, unknown>; actor_user_id: string }[]> {
+  return testDb()('audit_events')
+    .where({ entity_type: 'assessment', entity_id: entityId })
+    .orderBy('id')
+    .select('action', 'detail', 'actor_user_id');
 }
 
 describe('an assessment from draft to scored', () => {
@@ -76,7 +102,9 @@ describe('an assessment from draft to scored', () => {
     });
     expect(pinned.version).toBe('2026.2');
     const events = await auditActions(id);
-    expect(events).toEqual([expect.objectContaining({ action: 'assessment.created', actor_user_id: org.auditor.id })]);
+    expect(events).toEqual([
+      expect.objectContaining({ action: 'assessment.created', actor_user_id: org.auditor.id }),
+    ]);
     expect(events[0]?.detail).toMatchObject({ family, version: pinned.version, gateId: dir.gateId });
   });
 
@@ -88,7 +116,11 @@ describe('an assessment from draft to scored', () => {
 
   it('saves answers, measurements and observations as a merge patch over the row version', async () => {
     const res = await patch(auditor, id, 1, {
-      answers: { latchFitted: { value: 'yes' }, placardsLegible: { value: 'no', note: 'Faded on the street side' }, wireGaugeAwg: { value: 'awg14' } },
+      answers: {
+        latchFitted: { value: 'yes' },
+        placardsLegible: { value: 'no', note: 'Faded on the street side' },
+        wireGaugeAwg: { value: 'awg14' },
+      },
       measurements: { hingeGapMm: { value: 4, unit: 'in' }, placardsSide1: { value: 1, unit: 'count' } },
       observations: { site: siteContext },
     });
@@ -100,7 +132,10 @@ describe('an assessment from draft to scored', () => {
     expect(saved.measurements.hingeGapMm).toEqual({ value: 4, unit: 'in', canonical: 101.6 });
     expect(saved.answers.placardsLegible).toEqual({ value: 'no', note: 'Faded on the street side' });
 
-    const second = await patch(auditor, id, 2, { answers: { latchFitted: null, ownerShown: { value: 'na' } }, observations: { site: { publicAccess: true } } });
+    const second = await patch(auditor, id, 2, {
+      answers: { latchFitted: null, ownerShown: { value: 'na' } },
+      observations: { site: { publicAccess: true } },
+    });
     expect(second.status).toBe(200);
     const merged = await second.json();
     expect(Object.keys(merged.answers).sort()).toEqual(['ownerShown', 'placardsLegible', 'wireGaugeAwg']);
@@ -115,10 +150,16 @@ describe('an assessment from draft to scored', () => {
       [{ answers: { notAQuestionHere: { value: 'yes' } } }, 'answers.notAQuestionHere'],
       [{ answers: { hingeGapMm: { value: 'yes' } } }, 'answers.hingeGapMm'],
       [{ measurements: { hingeGapMm: { value: 4, unit: 'N' } } }, 'measurements.hingeGapMm.unit'],
-      [{ measurements: { hingeGapMm: { value: 4, unit: 'in', canonical: 100 } } }, 'measurements.hingeGapMm.canonical'],
+      [
+        { measurements: { hingeGapMm: { value: 4, unit: 'in', canonical: 100 } } },
+        'measurements.hingeGapMm.canonical',
+      ],
       [{ measurements: { latchFitted: { value: 1, unit: 'count' } } }, 'measurements.latchFitted'],
       [{ observations: { site: { publicAccess: 'often' } } }, 'observations.site.publicAccess'],
-      [{ observations: { entrapment: { zones: [{ zone: 'moat', direction: 'closing' }], devices: [] } } }, 'observations.entrapment.zones.0.zone'],
+      [
+        { observations: { entrapment: { zones: [{ zone: 'moat', direction: 'closing' }], devices: [] } } },
+        'observations.entrapment.zones.0.zone',
+      ],
     ];
     for (const [body, field] of cases) {
       const res = await patch(auditor, id, 3, body);
@@ -152,7 +193,10 @@ describe('an assessment from draft to scored', () => {
   });
 
   it('submits: scores with the pinned version and stores the result with the engine’s SHA-256', async () => {
-    const res = await auditor.fetch(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'if-match': '"4"', accept: 'application/json' } });
+    const res = await auditor.fetch(`/api/assessments/${id}/submit`, {
+      method: 'POST',
+      headers: { 'if-match': '"4"', accept: 'application/json' },
+    });
     expect(res.status, await res.clone().text()).toBe(200);
     expect(res.headers.get('etag')).toBe('"5"');
     const scored = await res.json();
@@ -162,20 +206,45 @@ describe('an assessment from draft to scored', () => {
     expect(scored.result.findings.length).toBeGreaterThan(0);
     expect(scored.result.ruleset).toMatchObject({ family, version: '2026.2' });
     expect(scored.submittedAt).not.toBeNull();
-    expect(scored.gateSnapshot).toMatchObject({ id: dir.gateId, kind: 'swing', widthMm: 3660, site: { id: dir.siteId, usageClass: 2 } });
+    expect(scored.gateSnapshot).toMatchObject({
+      id: dir.gateId,
+      kind: 'swing',
+      widthMm: 3660,
+      site: { id: dir.siteId, usageClass: 2 },
+    });
 
     const stored = await testDb()('assessments')
       .where({ id })
-      .first('result', 'result_sha256', 'verdict', 'status', 'answers', 'measurements', 'observations', 'ruleset_version_id');
+      .first(
+        'result',
+        'result_sha256',
+        'verdict',
+        'status',
+        'answers',
+        'measurements',
+        'observations',
+        'ruleset_version_id',
+      );
     expect(stored.result_sha256).toMatch(/^[0-9a-f]{64}$/);
     // What jsonb kept hashes to what was stored…
     expect(resultSha256(stored.result)).toBe(stored.result_sha256);
     // …and the engine, run again on the same gate, documents and version, gives the same bytes.
-    const version = await testDb()('ruleset_versions').where({ id: stored.ruleset_version_id }).first('content', 'content_sha256');
-    const gate = (await (await auditor.json('GET', `/api/gates/${dir.gateId}`)).json()) as Parameters<typeof buildEngineInput>[0];
-    const input = buildEngineInput({ ...gate, usageClass: 2 }, stored, (version.content as RulesetVersion).questions);
+    const version = await testDb()('ruleset_versions')
+      .where({ id: stored.ruleset_version_id })
+      .first('content', 'content_sha256');
+    const gate = (await (await auditor.json('GET', `/api/gates/${dir.gateId}`)).json()) as Parameters<
+      typeof buildEngineInput
+    >[0];
+    const input = buildEngineInput(
+      { ...gate, usageClass: 2 },
+      stored,
+      (version.content as RulesetVersion).questions,
+    );
     if (!input.ok) throw new Error(JSON.stringify(input.errors));
-    const again = scoreParsed(input.value, { version: version.content as RulesetVersion, contentSha256: version.content_sha256 });
+    const again = scoreParsed(input.value, {
+      version: version.content as RulesetVersion,
+      contentSha256: version.content_sha256,
+    });
     expect(resultSha256(again)).toBe(stored.result_sha256);
   });
 
@@ -192,7 +261,12 @@ describe('an assessment from draft to scored', () => {
     const events = await auditActions(id);
     expect(events.map((e) => e.action)).toEqual(['assessment.created', 'assessment.submitted']);
     const stored = await testDb()('assessments').where({ id }).first('result_sha256', 'verdict');
-    expect(events[1]?.detail).toMatchObject({ resultSha256: stored.result_sha256, verdict: stored.verdict, family, version: '2026.2' });
+    expect(events[1]?.detail).toMatchObject({
+      resultSha256: stored.result_sha256,
+      verdict: stored.verdict,
+      family,
+      version: '2026.2',
+    });
     // Only this organisation's part: another file may be testing a deliberately broken event elsewhere.
     expect((await verifyOrganisationTrail(org.id, testDb())).ok).toBe(true);
   });
@@ -209,12 +283,27 @@ describe('an assessment from draft to scored', () => {
 
 describe('starting and submitting, refused', () => {
   it('refuses an unknown family, a foreign gate, and an auditor starting for someone else', async () => {
-    const unknownFamily = await owner.json('POST', '/api/assessments', { gateId: dir.gateId, family: 'no-such-family', purpose: 'service' });
-    expect((await unknownFamily.json()).errors).toEqual([{ field: 'family', message: expect.stringMatching(/no published version/) }]);
-    const foreignGate = await otherOwner.json('POST', '/api/assessments', { gateId: dir.gateId, family, purpose: 'service' });
+    const unknownFamily = await owner.json('POST', '/api/assessments', {
+      gateId: dir.gateId,
+      family: 'no-such-family',
+      purpose: 'service',
+    });
+    expect((await unknownFamily.json()).errors).toEqual([
+      { field: 'family', message: expect.stringMatching(/no published version/) },
+    ]);
+    const foreignGate = await otherOwner.json('POST', '/api/assessments', {
+      gateId: dir.gateId,
+      family,
+      purpose: 'service',
+    });
     expect(foreignGate.status).toBe(422);
     expect((await foreignGate.json()).errors).toEqual([{ field: 'gateId', message: expect.any(String) }]);
-    const forSomeoneElse = await auditor.json('POST', '/api/assessments', { gateId: dir.gateId, family, purpose: 'service', auditorId: org.auditor2.id });
+    const forSomeoneElse = await auditor.json('POST', '/api/assessments', {
+      gateId: dir.gateId,
+      family,
+      purpose: 'service',
+      auditorId: org.auditor2.id,
+    });
     expect(forSomeoneElse.status).toBe(403);
   });
 
@@ -231,7 +320,13 @@ describe('starting and submitting, refused', () => {
     const res = await auditor.json('POST', `/api/assessments/${draft.id}/submit`);
     expect(res.status).toBe(422);
     const fields = (await res.json()).errors.map((e: { field: string }) => e.field);
-    expect(fields).toEqual(expect.arrayContaining(['gate.operator.listed', 'gate.operator.automaticClosing', 'observations.site.pedestriansUseDriveway']));
+    expect(fields).toEqual(
+      expect.arrayContaining([
+        'gate.operator.listed',
+        'gate.operator.automaticClosing',
+        'observations.site.pedestriansUseDriveway',
+      ]),
+    );
     expect((await testDb()('assessments').where({ id: draft.id }).first('status')).status).toBe('draft');
   });
 
@@ -239,7 +334,10 @@ describe('starting and submitting, refused', () => {
     const draft = await startDraft(auditor);
     expect((await auditor2.json('DELETE', `/api/assessments/${draft.id}`)).status).toBe(403);
     expect((await auditor.json('DELETE', `/api/assessments/${draft.id}`)).status).toBe(204);
-    expect((await auditActions(draft.id)).map((e) => e.action)).toEqual(['assessment.created', 'assessment.discarded']);
+    expect((await auditActions(draft.id)).map((e) => e.action)).toEqual([
+      'assessment.created',
+      'assessment.discarded',
+    ]);
   });
 });
 
@@ -249,7 +347,11 @@ describe('the assessment list', () => {
 
   beforeAll(async () => {
     const siteId = await insertSite(org.id, dir.clientId);
-    const slideGate = await insertGate(org.id, siteId, { kind: 'slide', leaves: 'single', opening_direction: null });
+    const slideGate = await insertGate(org.id, siteId, {
+      kind: 'slide',
+      leaves: 'single',
+      opening_direction: null,
+    });
     const draft = await startDraft(auditor2, slideGate, { visitedOn: '2026-03-10T16:00:00Z' });
     draftId = draft.id;
     const toScore = await startDraft(auditor, dir.homeGateId, { visitedOn: '2026-03-12T09:30:00Z' });
@@ -282,7 +384,8 @@ describe('the assessment list', () => {
   it('pages in a stable order', async () => {
     const all = await ids(owner, 'sort=-createdAt&pageSize=100');
     const paged: string[] = [];
-    for (let page = 1; page <= Math.ceil(all.length / 2); page++) paged.push(...(await ids(owner, `sort=-createdAt&pageSize=2&page=${page}`)));
+    for (let page = 1; page <= Math.ceil(all.length / 2); page++)
+      paged.push(...(await ids(owner, `sort=-createdAt&pageSize=2&page=${page}`)));
     expect(paged).toEqual(all);
   });
 

@@ -48,13 +48,16 @@ async function signOne(): Promise<{ id: string; sha256: string }> {
     { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
     { dataDir: inject('dataDir'), photos: 0 },
   );
-  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email'))
+    .contact_email as string;
   const seen = await caughtMailIds(clientEmail);
   const sent = await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {});
   expect(sent.status, await sent.clone().text()).toBe(202);
   const mail = await waitForMail(clientEmail, seen, 20_000);
   const token = /\/sign\/([A-Za-z0-9_-]{43})/.exec(mail.text)![1]!;
-  const shown = new Uint8Array(await (await anonymousClient().fetch(`/api/sign/${token}/report.pdf`)).arrayBuffer());
+  const shown = new Uint8Array(
+    await (await anonymousClient().fetch(`/api/sign/${token}/report.pdf`)).arrayBuffer(),
+  );
   const res = await anonymousClient().json('POST', `/api/sign/${token}/submit`, {
     name: 'Orla Wetherby',
     consent: true,
@@ -69,12 +72,19 @@ async function signOne(): Promise<{ id: string; sha256: string }> {
 
 beforeAll(async () => {
   org = await createOrganisation('anchors');
-  [owner, office] = await Promise.all([signIn(org.owner.email, fixturePassword), signIn(org.office.email, fixturePassword)]);
+  [owner, office] = await Promise.all([
+    signIn(org.owner.email, fixturePassword),
+    signIn(org.office.email, fixturePassword),
+  ]);
   const document = await signOne();
   signedPdf = (await serverStorage().get(document.sha256))!;
   signedAnchor = (await anchorOfPdf(signedPdf))!;
   const zip = readZip(Buffer.from(await (await office.fetch('/api/archive/export')).arrayBuffer()));
-  const head = JSON.parse(zip.get('audit-trail-head.json')!.toString('utf8')) as { eventId: number; hash: string; anchor: string };
+  const head = JSON.parse(zip.get('audit-trail-head.json')!.toString('utf8')) as {
+    eventId: number;
+    hash: string;
+    anchor: string;
+  };
   exportAnchor = { eventId: head.eventId, hash: head.hash };
   expect(head.anchor).toBe(`${head.eventId}:${head.hash}`);
 }, 60_000);
@@ -83,7 +93,9 @@ beforeAll(async () => {
 async function publicCheck(pdf: Buffer): Promise<VerificationAnswer> {
   const form = new FormData();
   form.set('file', new Blob([new Uint8Array(pdf)], { type: 'application/pdf' }), 'report.pdf');
-  return expectJson<VerificationAnswer>(await anonymousClient().fetch('/api/verify', { method: 'POST', body: form }));
+  return expectJson<VerificationAnswer>(
+    await anonymousClient().fetch('/api/verify', { method: 'POST', body: form }),
+  );
 }
 
 describe('chain heads carried by signed reports and exports', () => {
@@ -94,22 +106,35 @@ describe('chain heads carried by signed reports and exports', () => {
     const text = await extractPdfText(signedPdf);
     expect(text).toContain('Audit trail at signing');
     expect(text).toContain(`event #${signedAnchor.eventId}`);
-    const stored = await testDb()('audit_anchors').where({ organisation_id: org.id, kind: 'signed_report' }).first('event_id', 'event_hash');
+    const stored = await testDb()('audit_anchors')
+      .where({ organisation_id: org.id, kind: 'signed_report' })
+      .first('event_id', 'event_hash');
     expect({ eventId: Number(stored.event_id), hash: stored.event_hash }).toEqual(signedAnchor);
   });
 
   it("puts the export's own archive.exported event into the ZIP as the head", async () => {
-    const event = await testDb()('audit_events').where({ id: exportAnchor.eventId }).first('action', 'organisation_id', 'hash');
-    expect(event).toMatchObject({ action: 'archive.exported', organisation_id: org.id, hash: exportAnchor.hash });
+    const event = await testDb()('audit_events')
+      .where({ id: exportAnchor.eventId })
+      .first('action', 'organisation_id', 'hash');
+    expect(event).toMatchObject({
+      action: 'archive.exported',
+      organisation_id: org.id,
+      hash: exportAnchor.hash,
+    });
     expect(exportAnchor.eventId).toBeGreaterThan(signedAnchor.eventId);
   });
 
   it('verifies with every head present, and refuses a head that is not one', async () => {
-    const intact = await expectJson<TrailVerification>(await owner.fetch(`/api/archive/audit/verify?anchor=${exportAnchor.eventId}:${exportAnchor.hash}`));
+    const intact = await expectJson<TrailVerification>(
+      await owner.fetch(`/api/archive/audit/verify?anchor=${exportAnchor.eventId}:${exportAnchor.hash}`),
+    );
     expect(intact.truncated).toBeNull();
     expect(intact.anchorsChecked).toBeGreaterThanOrEqual(3);
     const answer = await publicCheck(signedPdf);
-    expect(answer).toMatchObject({ match: true, auditTrail: { eventId: signedAnchor.eventId, state: 'present' } });
+    expect(answer).toMatchObject({
+      match: true,
+      auditTrail: { eventId: signedAnchor.eventId, state: 'present' },
+    });
     expect((await owner.fetch('/api/archive/audit/verify?anchor=12:abc')).status).toBe(400);
   });
 
@@ -119,9 +144,18 @@ describe('chain heads carried by signed reports and exports', () => {
     try {
       // Hold the lock every append takes, so nothing joins the chain while its end is missing.
       await admin.query(`select pg_advisory_lock(hashtext('audit_events'))`);
-      const events = (await admin.query('select * from audit_events where id >= $1 order by id', [signedAnchor.eventId])).rows;
-      const anchors = (await admin.query('select * from audit_anchors where event_id >= $1 order by id', [signedAnchor.eventId])).rows;
-      const lastKept = Number((await admin.query('select max(id) as id from audit_events where id < $1', [signedAnchor.eventId])).rows[0].id);
+      const events = (
+        await admin.query('select * from audit_events where id >= $1 order by id', [signedAnchor.eventId])
+      ).rows;
+      const anchors = (
+        await admin.query('select * from audit_anchors where event_id >= $1 order by id', [
+          signedAnchor.eventId,
+        ])
+      ).rows;
+      const lastKept = Number(
+        (await admin.query('select max(id) as id from audit_events where id < $1', [signedAnchor.eventId]))
+          .rows[0].id,
+      );
       expect(events.length).toBeGreaterThanOrEqual(2);
       const putBack = async () => {
         await admin.query('begin');
@@ -167,7 +201,10 @@ describe('chain heads carried by signed reports and exports', () => {
         // What is left still links up; the stored anchors give it away.
         const cut = await expectJson<TrailVerification>(await owner.fetch('/api/archive/audit/verify'));
         expect(cut.firstBrokenId).toBeNull();
-        expect(cut).toMatchObject({ ok: false, truncated: { lastEventId: lastKept, message: TRUNCATED_MESSAGE } });
+        expect(cut).toMatchObject({
+          ok: false,
+          truncated: { lastEventId: lastKept, message: TRUNCATED_MESSAGE },
+        });
         expect(cut.truncated!.anchoredEventId).toBeGreaterThanOrEqual(exportAnchor.eventId);
         const page = await (await owner.fetch('/archive/audit?verify=1')).text();
         expect(page).toContain(TRUNCATED_MESSAGE);
@@ -178,20 +215,31 @@ describe('chain heads carried by signed reports and exports', () => {
         await admin.query('delete from audit_anchors where event_id >= $1', [signedAnchor.eventId]);
         await admin.query('alter table audit_anchors enable trigger audit_anchors_append_only');
         await admin.query('commit');
-        const withoutStored = await expectJson<TrailVerification>(await owner.fetch('/api/archive/audit/verify'));
+        const withoutStored = await expectJson<TrailVerification>(
+          await owner.fetch('/api/archive/audit/verify'),
+        );
         expect(withoutStored.truncated).toBeNull(); // the database alone no longer shows it
         const fromExport = await expectJson<TrailVerification>(
           await owner.fetch(`/api/archive/audit/verify?anchor=${exportAnchor.eventId}:${exportAnchor.hash}`),
         );
         expect(fromExport).toMatchObject({
           ok: false,
-          truncated: { anchoredEventId: exportAnchor.eventId, lastEventId: lastKept, message: TRUNCATED_MESSAGE },
+          truncated: {
+            anchoredEventId: exportAnchor.eventId,
+            lastEventId: lastKept,
+            message: TRUNCATED_MESSAGE,
+          },
         });
         const answer = await publicCheck(signedPdf);
-        expect(answer).toMatchObject({ match: true, auditTrail: { eventId: signedAnchor.eventId, state: 'truncated', message: TRUNCATED_MESSAGE } });
+        expect(answer).toMatchObject({
+          match: true,
+          auditTrail: { eventId: signedAnchor.eventId, state: 'truncated', message: TRUNCATED_MESSAGE },
+        });
         const typed = new FormData();
         typed.set('document', sha256(signedPdf));
-        const verifyPage = await (await anonymousClient().fetch('/verify', { method: 'POST', body: typed })).text();
+        const verifyPage = await (
+          await anonymousClient().fetch('/verify', { method: 'POST', body: typed })
+        ).text();
         expect(verifyPage).toContain('data-audit-trail="truncated"');
       } finally {
         await admin.query('rollback').catch(() => {});
@@ -201,7 +249,9 @@ describe('chain heads carried by signed reports and exports', () => {
       await admin.query(`select pg_advisory_unlock(hashtext('audit_events'))`).catch(() => {});
       await admin.end();
     }
-    const restored = await expectJson<TrailVerification>(await owner.fetch(`/api/archive/audit/verify?anchor=${exportAnchor.eventId}:${exportAnchor.hash}`));
+    const restored = await expectJson<TrailVerification>(
+      await owner.fetch(`/api/archive/audit/verify?anchor=${exportAnchor.eventId}:${exportAnchor.hash}`),
+    );
     expect(restored.truncated).toBeNull();
     expect(restored.anchorsBroken).toBe(0);
   });

@@ -1,5 +1,14 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { closeTestDb, createOrganisation, fixturePassword, hasSession, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  closeTestDb,
+  createOrganisation,
+  fixturePassword,
+  hasSession,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 
 const baseUrl = inject('baseUrl');
 let org: FixtureOrganisation;
@@ -45,7 +54,17 @@ describe('signed-out callers', () => {
     expect((await fetch(`${baseUrl}/api/auth/csrf`)).status).toBe(200);
   });
 
-  const pageVariants = ['/staff', '/settings', '/assessments', '/clients/', '/CLIENTS', '/%73taff', '/archive//x', '/gates/123', '/walk/abc'];
+  const pageVariants = [
+    '/staff',
+    '/settings',
+    '/assessments',
+    '/clients/',
+    '/CLIENTS',
+    '/%73taff',
+    '/archive//x',
+    '/gates/123',
+    '/walk/abc',
+  ];
   for (const path of pageVariants) {
     it(`are sent to sign-in from ${path}, with where they were going`, async () => {
       const res = await fetch(`${baseUrl}${path}`, { redirect: 'manual' });
@@ -57,7 +76,8 @@ describe('signed-out callers', () => {
   }
 
   it('can open the public pages', async () => {
-    for (const path of ['/', '/signin']) expect((await fetch(`${baseUrl}${path}`, { redirect: 'manual' })).status, path).toBe(200);
+    for (const path of ['/', '/signin'])
+      expect((await fetch(`${baseUrl}${path}`, { redirect: 'manual' })).status, path).toBe(200);
   });
 
   it('get the security headers on every answer', async () => {
@@ -84,7 +104,10 @@ describe('cross-site writes', () => {
   });
 
   it('refuse a write whose only Referer is another site', async () => {
-    const headers = new Headers({ referer: 'https://elsewhere.test/page', 'content-type': 'application/json' });
+    const headers = new Headers({
+      referer: 'https://elsewhere.test/page',
+      'content-type': 'application/json',
+    });
     const res = await fetch(`${baseUrl}/api/organisation`, {
       method: 'PATCH',
       headers: { ...Object.fromEntries(headers), cookie: owner.cookie },
@@ -126,13 +149,17 @@ describe('sessions follow the user row', () => {
     const freshOwner = await signIn(fresh.owner.email, fixturePassword);
     const auditor = await signIn(fresh.auditor.email, fixturePassword);
     expect((await auditor.json('GET', '/api/organisation')).status).toBe(200);
-    expect((await freshOwner.json('PATCH', `/api/users/${fresh.auditor.id}`, { active: false })).status).toBe(200);
+    expect((await freshOwner.json('PATCH', `/api/users/${fresh.auditor.id}`, { active: false })).status).toBe(
+      200,
+    );
     expect((await auditor.json('GET', '/api/organisation')).status).toBe(401);
     expect((await auditor.fetch('/staff')).status).toBe(302);
     // and they cannot sign in again while switched off
     await expect(signIn(fresh.auditor.email, fixturePassword)).rejects.toThrow(/401/);
     // reactivation lets them sign in afresh, but the old session stays ended
-    expect((await freshOwner.json('PATCH', `/api/users/${fresh.auditor.id}`, { active: true })).status).toBe(200);
+    expect((await freshOwner.json('PATCH', `/api/users/${fresh.auditor.id}`, { active: true })).status).toBe(
+      200,
+    );
     expect((await auditor.json('GET', '/api/organisation')).status).toBe(401);
     const again = await signIn(fresh.auditor.email, fixturePassword);
     expect((await again.json('GET', '/api/organisation')).status).toBe(200);
@@ -154,7 +181,9 @@ describe('sessions follow the user row', () => {
   });
 
   it('refuse a forged session cookie', async () => {
-    const res = await fetch(`${baseUrl}/api/organisation`, { headers: { cookie: 'authjs.session-token=not-a-real-token' } });
+    const res = await fetch(`${baseUrl}/api/organisation`, {
+      headers: { cookie: 'authjs.session-token=not-a-real-token' },
+    });
     expect(res.status).toBe(401);
   });
 });
@@ -163,12 +192,18 @@ describe('signing out', () => {
   it('ends the session through the navigation button and records it', async () => {
     const fresh = await createOrganisation('sign-out');
     const office = await signIn(fresh.office.email, fixturePassword);
-    const res = await office.fetch('/auth/signout', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: '' });
+    const res = await office.fetch('/auth/signout', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: '',
+    });
     expect(res.status).toBe(303);
     expect(res.headers.get('location')).toBe('/signin?signedOut=1');
     expect(hasSession(office)).toBe(false);
     expect((await office.json('GET', '/api/organisation')).status).toBe(401);
-    const events = await testDb()('audit_events').where({ organisation_id: fresh.id, action: 'sign_out' }).select('entity_id');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: fresh.id, action: 'sign_out' })
+      .select('entity_id');
     expect(events.map((e) => e.entity_id)).toEqual([fresh.office.id]);
   });
 
@@ -183,7 +218,9 @@ describe('signing out', () => {
     });
     expect(res.status).toBeGreaterThanOrEqual(300);
     expect(hasSession(auditor)).toBe(false);
-    const events = await testDb()('audit_events').where({ organisation_id: fresh.id, action: 'sign_out' }).count({ n: '*' });
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: fresh.id, action: 'sign_out' })
+      .count({ n: '*' });
     expect(Number(events[0].n)).toBe(1);
   });
 });

@@ -80,7 +80,11 @@ describe('homeowner sign-in by e-mailed link', () => {
     const res = await client.fetch('/api/auth/callback/email-link', {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' },
-      body: new URLSearchParams({ csrfToken, token: new URL(link).searchParams.get('token') ?? '', callbackUrl: '/' }),
+      body: new URLSearchParams({
+        csrfToken,
+        token: new URL(link).searchParams.get('token') ?? '',
+        callbackUrl: '/',
+      }),
     });
     expect(hasSession(client)).toBe(false);
     const location = res.headers.get('location') ?? '';
@@ -90,7 +94,9 @@ describe('homeowner sign-in by e-mailed link', () => {
   });
 
   it('refuses a made-up token', async () => {
-    const { client, response } = await followHomeownerLink(`${inject('baseUrl')}/signin/link?token=${'A'.repeat(43)}`);
+    const { client, response } = await followHomeownerLink(
+      `${inject('baseUrl')}/signin/link?token=${'A'.repeat(43)}`,
+    );
     expect(hasSession(client)).toBe(false);
     expect(response.status).toBe(401);
   });
@@ -99,7 +105,9 @@ describe('homeowner sign-in by e-mailed link', () => {
     const unknown = `stranger-${Date.now()}@fixtures.test`;
     const res = await anonymousClient().json('POST', '/api/auth/email-link', { email: unknown });
     expect(res.status).toBe(202);
-    const known = await anonymousClient().json('POST', '/api/auth/email-link', { email: await newHomeowner('link-known') });
+    const known = await anonymousClient().json('POST', '/api/auth/email-link', {
+      email: await newHomeowner('link-known'),
+    });
     expect(await res.json()).toEqual(await known.json());
     await new Promise((r) => setTimeout(r, 500));
     expect(await mailCountTo(unknown)).toBe(0);
@@ -113,7 +121,10 @@ describe('homeowner sign-in by e-mailed link', () => {
   });
 
   it('rejects a malformed request naming the field', async () => {
-    const res = await anonymousClient().json('POST', '/api/auth/email-link', { email: 'not-an-address', extra: 1 });
+    const res = await anonymousClient().json('POST', '/api/auth/email-link', {
+      email: 'not-an-address',
+      extra: 1,
+    });
     expect(res.status).toBe(422);
     const fields = (await res.json()).errors.map((e: { field: string }) => e.field);
     expect(fields).toContain('email');
@@ -122,7 +133,8 @@ describe('homeowner sign-in by e-mailed link', () => {
 
   it('stops sending links to one address after 5 requests in 15 minutes', async () => {
     const email = await newHomeowner('link-flood');
-    for (let i = 0; i < 5; i++) expect((await anonymousClient().json('POST', '/api/auth/email-link', { email })).status).toBe(202);
+    for (let i = 0; i < 5; i++)
+      expect((await anonymousClient().json('POST', '/api/auth/email-link', { email })).status).toBe(202);
     const sixth = await anonymousClient().json('POST', '/api/auth/email-link', { email });
     expect(sixth.status).toBe(429);
     expect(Number(sixth.headers.get('retry-after'))).toBeGreaterThan(0);

@@ -28,7 +28,11 @@ afterAll(async () => {
 const form = { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' };
 
 function askForReset(email: string, client: TestClient = anonymousClient()): Promise<Response> {
-  return client.fetch('/signin/forgot', { method: 'POST', headers: form, body: new URLSearchParams({ email }) });
+  return client.fetch('/signin/forgot', {
+    method: 'POST',
+    headers: form,
+    body: new URLSearchParams({ email }),
+  });
 }
 
 async function resetLinkFor(email: string): Promise<string> {
@@ -40,16 +44,28 @@ async function resetLinkFor(email: string): Promise<string> {
 }
 
 /** Opens the link page as a browser would, then posts the new password. */
-async function useResetLink(link: string, password: string, client: TestClient = anonymousClient(), confirm = password): Promise<Response> {
+async function useResetLink(
+  link: string,
+  password: string,
+  client: TestClient = anonymousClient(),
+  confirm = password,
+): Promise<Response> {
   const url = new URL(link);
   const page = await client.fetch(url.pathname + url.search);
   expect(page.status).toBe(200);
   const token = url.searchParams.get('token') ?? '';
-  return client.fetch('/signin/reset', { method: 'POST', headers: form, body: new URLSearchParams({ token, password, confirm }) });
+  return client.fetch('/signin/reset', {
+    method: 'POST',
+    headers: form,
+    body: new URLSearchParams({ token, password, confirm }),
+  });
 }
 
 async function resetMailsTo(email: string): Promise<number> {
-  const list = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as { to: string[]; subject: string }[];
+  const list = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as {
+    to: string[];
+    subject: string;
+  }[];
   return list.filter((m) => m.to.includes(email) && /reset/i.test(m.subject)).length;
 }
 
@@ -98,11 +114,15 @@ describe('staff forgot password', () => {
     const org = await createOrganisation('reset-twice');
     const link = await resetLinkFor(org.auditor.email);
     expect((await useResetLink(link, newPassword)).status).toBe(303);
-    const before = await testDb()('users').where({ id: org.auditor.id }).first('password_hash', 'session_version');
+    const before = await testDb()('users')
+      .where({ id: org.auditor.id })
+      .first('password_hash', 'session_version');
     const second = await useResetLink(link, 'yet-another-pass-2028');
     expect(second.status).toBe(410);
     expect(await second.text()).toContain('expired or was already used');
-    expect(await testDb()('users').where({ id: org.auditor.id }).first('password_hash', 'session_version')).toEqual(before);
+    expect(
+      await testDb()('users').where({ id: org.auditor.id }).first('password_hash', 'session_version'),
+    ).toEqual(before);
     expect(await passwordWorks(org.auditor.email, 'yet-another-pass-2028')).toBe(false);
   });
 
@@ -120,7 +140,9 @@ describe('staff forgot password', () => {
     const org = await createOrganisation('reset-hash');
     const before = Date.now();
     const token = new URL(await resetLinkFor(org.office.email)).searchParams.get('token') ?? '';
-    const rows = await testDb()('sign_in_links').where({ user_id: org.office.id }).select('token_hash', 'purpose', 'expires_at');
+    const rows = await testDb()('sign_in_links')
+      .where({ user_id: org.office.id })
+      .select('token_hash', 'purpose', 'expires_at');
     expect(rows).toHaveLength(1);
     expect(rows[0].purpose).toBe('password_reset');
     expect(rows[0].token_hash).toMatch(/^[0-9a-f]{64}$/);
@@ -136,7 +158,9 @@ describe('staff forgot password', () => {
     const known = await askForReset(org.office.email);
     const stranger = await askForReset(unknown);
     expect(stranger.status).toBe(known.status);
-    expect((await stranger.text()).replaceAll(unknown, '@')).toBe((await known.text()).replaceAll(org.office.email, '@'));
+    expect((await stranger.text()).replaceAll(unknown, '@')).toBe(
+      (await known.text()).replaceAll(org.office.email, '@'),
+    );
     await new Promise((r) => setTimeout(r, 800));
     expect(await resetMailsTo(unknown)).toBe(0);
     expect(await resetMailsTo(org.office.email)).toBe(1);
@@ -149,16 +173,23 @@ describe('staff forgot password', () => {
     expect(await res.text()).toContain('Check your inbox');
     await new Promise((r) => setTimeout(r, 800));
     expect(await resetMailsTo(org.homeowner.email)).toBe(0);
-    expect(await testDb()('sign_in_links').where({ user_id: org.homeowner.id }).count({ n: '*' }).first()).toEqual({ n: '0' });
+    expect(
+      await testDb()('sign_in_links').where({ user_id: org.homeowner.id }).count({ n: '*' }).first(),
+    ).toEqual({ n: '0' });
   });
 
   it('keeps reset and sign-in links apart', async () => {
     const org = await createOrganisation('reset-purpose');
     const reset = await resetLinkFor(org.office.email);
-    const asSignIn = await followHomeownerLink(`${inject('baseUrl')}/signin/link?token=${new URL(reset).searchParams.get('token')}`);
+    const asSignIn = await followHomeownerLink(
+      `${inject('baseUrl')}/signin/link?token=${new URL(reset).searchParams.get('token')}`,
+    );
     expect(hasSession(asSignIn.client)).toBe(false);
     const signInLink = await requestHomeownerLink(org.homeowner.email);
-    const asReset = await useResetLink(`${inject('baseUrl')}/signin/reset?token=${new URL(signInLink).searchParams.get('token')}`, newPassword);
+    const asReset = await useResetLink(
+      `${inject('baseUrl')}/signin/reset?token=${new URL(signInLink).searchParams.get('token')}`,
+      newPassword,
+    );
     expect(asReset.status).toBe(410);
     // Neither attempt used the other link up.
     expect((await useResetLink(reset, newPassword)).status).toBe(303);
@@ -191,7 +222,8 @@ describe('staff forgot password', () => {
 
   it('stops one client address after 20 requests in 15 minutes, whatever addresses it names', async () => {
     const client = anonymousClient();
-    for (let i = 0; i < 20; i++) expect((await askForReset(`flood-${i}-${Date.now()}@fixtures.test`, client)).status).toBe(200);
+    for (let i = 0; i < 20; i++)
+      expect((await askForReset(`flood-${i}-${Date.now()}@fixtures.test`, client)).status).toBe(200);
     expect((await askForReset(`flood-last-${Date.now()}@fixtures.test`, client)).status).toBe(429);
     expect((await askForReset(`flood-other-${Date.now()}@fixtures.test`)).status).toBe(200);
   });

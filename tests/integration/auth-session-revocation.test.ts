@@ -33,7 +33,11 @@ function withCookie(cookie: string, path: string) {
 }
 
 async function navSignOut(client: TestClient) {
-  return client.fetch('/auth/signout', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: '' });
+  return client.fetch('/auth/signout', {
+    method: 'POST',
+    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    body: '',
+  });
 }
 
 async function changePassword(client: TestClient, body: unknown) {
@@ -58,11 +62,17 @@ describe('signing out ends the session on the server', () => {
     expect(
       page.headers
         .getSetCookie()
-        .some((c) => /authjs\.session-token=;/.test(c) || /authjs\.session-token=[^;]*;.*(Max-Age=0|Expires=Thu, 01 Jan 1970)/i.test(c)),
+        .some(
+          (c) =>
+            /authjs\.session-token=;/.test(c) ||
+            /authjs\.session-token=[^;]*;.*(Max-Age=0|Expires=Thu, 01 Jan 1970)/i.test(c),
+        ),
     ).toBe(true);
 
     expect((await phone.json('GET', '/api/organisation')).status).toBe(200);
-    const revoked = await testDb()('revoked_sessions').where({ user_id: fresh.office.id }).select('expires_at');
+    const revoked = await testDb()('revoked_sessions')
+      .where({ user_id: fresh.office.id })
+      .select('expires_at');
     expect(revoked).toHaveLength(1);
     expect(new Date(revoked[0].expires_at).getTime()).toBeGreaterThan(Date.now() + 6 * 24 * 3600_000);
   });
@@ -116,22 +126,35 @@ describe('changing one’s own password', () => {
     expect((await here.json('GET', '/api/organisation')).status).toBe(200);
     expect((await elsewhere.json('GET', '/api/organisation')).status).toBe(401);
 
-    const old = await postCredentials(anonymousClient(), 'credentials', { email: fresh.auditor.email, password: fixturePassword, callbackUrl: '/' });
+    const old = await postCredentials(anonymousClient(), 'credentials', {
+      email: fresh.auditor.email,
+      password: fixturePassword,
+      callbackUrl: '/',
+    });
     expect(old.status).toBe(401);
     await signIn(fresh.auditor.email, newPassword);
-    const events = await testDb()('audit_events').where({ organisation_id: fresh.id, action: 'password.changed' }).select('entity_id');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: fresh.id, action: 'password.changed' })
+      .select('entity_id');
     expect(events.map((e) => e.entity_id)).toEqual([fresh.auditor.id]);
   });
 
   it('refuses a wrong current password with 422 naming the field, and changes nothing', async () => {
     const fresh = await createOrganisation('password-wrong');
     const office = await signIn(fresh.office.email, fixturePassword);
-    const before = await testDb()('users').where({ id: fresh.office.id }).first('password_hash', 'session_version');
-    const res = await changePassword(office, { currentPassword: 'not-the-password', newPassword: 'another-pass-2027' });
+    const before = await testDb()('users')
+      .where({ id: fresh.office.id })
+      .first('password_hash', 'session_version');
+    const res = await changePassword(office, {
+      currentPassword: 'not-the-password',
+      newPassword: 'another-pass-2027',
+    });
     expect(res.status).toBe(422);
     expect(res.headers.get('content-type')).toMatch(/problem\+json/);
     expect((await res.json()).errors).toEqual([{ field: 'currentPassword', message: 'is not right' }]);
-    expect(await testDb()('users').where({ id: fresh.office.id }).first('password_hash', 'session_version')).toEqual(before);
+    expect(
+      await testDb()('users').where({ id: fresh.office.id }).first('password_hash', 'session_version'),
+    ).toEqual(before);
     expect((await office.json('GET', '/api/organisation')).status).toBe(200);
   });
 
@@ -141,23 +164,40 @@ describe('changing one’s own password', () => {
     const short = await changePassword(owner, { currentPassword: fixturePassword, newPassword: '123456789' });
     expect(short.status).toBe(422);
     expect((await short.json()).errors.map((e: { field: string }) => e.field)).toEqual(['newPassword']);
-    expect((await changePassword(owner, { currentPassword: fixturePassword, newPassword: '1234567890' })).status).toBe(204);
+    expect(
+      (await changePassword(owner, { currentPassword: fixturePassword, newPassword: '1234567890' })).status,
+    ).toBe(204);
   });
 
   it('counts wrong current passwords like failed sign-ins: the sixth try is 429', async () => {
     const fresh = await createOrganisation('password-guess');
     const auditor = await signIn(fresh.auditor2.email, fixturePassword);
     for (let i = 0; i < 5; i++)
-      expect((await changePassword(auditor, { currentPassword: `guess-${i}-password`, newPassword: 'another-pass-2027' })).status).toBe(422);
-    const sixth = await changePassword(auditor, { currentPassword: fixturePassword, newPassword: 'another-pass-2027' });
+      expect(
+        (
+          await changePassword(auditor, {
+            currentPassword: `guess-${i}-password`,
+            newPassword: 'another-pass-2027',
+          })
+        ).status,
+      ).toBe(422);
+    const sixth = await changePassword(auditor, {
+      currentPassword: fixturePassword,
+      newPassword: 'another-pass-2027',
+    });
     expect(sixth.status).toBe(429);
     expect(Number(sixth.headers.get('retry-after'))).toBeGreaterThan(0);
   });
 
   it('is for staff only (a homeowner has no password) and needs a session', async () => {
     const homeowner = await signInHomeowner(org.homeowner.email);
-    expect((await changePassword(homeowner, { currentPassword: 'x', newPassword: 'another-pass-2027' })).status).toBe(403);
-    expect((await changePassword(anonymousClient(), { currentPassword: 'x', newPassword: 'another-pass-2027' })).status).toBe(401);
+    expect(
+      (await changePassword(homeowner, { currentPassword: 'x', newPassword: 'another-pass-2027' })).status,
+    ).toBe(403);
+    expect(
+      (await changePassword(anonymousClient(), { currentPassword: 'x', newPassword: 'another-pass-2027' }))
+        .status,
+    ).toBe(401);
   });
 
   it('works from the account page form too', async () => {

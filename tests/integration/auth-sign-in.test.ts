@@ -25,7 +25,12 @@ const someAddress = testAddress;
 
 async function attempt(email: string, password: string, ip: string, accept = 'application/json') {
   const client = anonymousClient();
-  const response = await postCredentials(client, 'credentials', { email, password, callbackUrl: '/' }, { 'x-forwarded-for': ip, accept });
+  const response = await postCredentials(
+    client,
+    'credentials',
+    { email, password, callbackUrl: '/' },
+    { 'x-forwarded-for': ip, accept },
+  );
   return { client, response };
 }
 
@@ -57,7 +62,10 @@ describe('staff sign-in with e-mail and password', () => {
     })();
     expect(hasSession(client)).toBe(true);
     expect(response.status).toBe(302);
-    expect(new URL(response.headers.get('location') ?? '').pathname + new URL(response.headers.get('location') ?? '').search).toBe('/clients?kind=business');
+    expect(
+      new URL(response.headers.get('location') ?? '').pathname +
+        new URL(response.headers.get('location') ?? '').search,
+    ).toBe('/clients?kind=business');
   });
 
   it('does not follow a next target on another site', async () => {
@@ -120,7 +128,12 @@ describe('staff sign-in with e-mail and password', () => {
     const res = await client.fetch('/api/auth/callback/credentials', {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded' },
-      body: new URLSearchParams({ email: org.auditor.email, password: fixturePassword, csrfToken: csrf, callbackUrl: '/' }),
+      body: new URLSearchParams({
+        email: org.auditor.email,
+        password: fixturePassword,
+        csrfToken: csrf,
+        callbackUrl: '/',
+      }),
     });
     const cookie = res.headers.getSetCookie().find((c) => c.startsWith('authjs.session-token='));
     expect(cookie).toBeDefined();
@@ -133,7 +146,11 @@ describe('staff sign-in with e-mail and password', () => {
     // A server whose configured public URL is https, as behind a TLS-terminating proxy.
     const port = await freePort();
     const publicUrl = `https://127.0.0.1:${port}`;
-    const server = await startAppServer({ port, quiet: true, env: { ...inject('serverEnv'), PUBLIC_URL: publicUrl, OUTBOX_WORKER: 'off' } });
+    const server = await startAppServer({
+      port,
+      quiet: true,
+      env: { ...inject('serverEnv'), PUBLIC_URL: publicUrl, OUTBOX_WORKER: 'off' },
+    });
     try {
       await expectSecureCookies(server.url, publicUrl);
     } finally {
@@ -156,7 +173,12 @@ describe('staff sign-in with e-mail and password', () => {
         'content-type': 'application/x-www-form-urlencoded',
         cookie: csrfCookie?.split(';')[0] ?? '',
       },
-      body: new URLSearchParams({ email: org.auditor.email, password: fixturePassword, csrfToken, callbackUrl: '/' }),
+      body: new URLSearchParams({
+        email: org.auditor.email,
+        password: fixturePassword,
+        csrfToken,
+        callbackUrl: '/',
+      }),
     });
     const session = res.headers.getSetCookie().find((c) => c.startsWith('__Secure-authjs.session-token='));
     expect(session).toBeDefined();
@@ -181,7 +203,8 @@ describe('sign-in throttling', () => {
   it('pauses an account from an address after 5 failures there, even for the right password, and says so', async () => {
     const email = await newStaffMember('throttle-account');
     const ip = someAddress();
-    for (let i = 0; i < 5; i++) expect((await attempt(email, `wrong-${i}-password`, ip)).response.status).toBe(401);
+    for (let i = 0; i < 5; i++)
+      expect((await attempt(email, `wrong-${i}-password`, ip)).response.status).toBe(401);
     const { response, client } = await attempt(email, fixturePassword, ip);
     expect(response.status).toBe(429);
     expect(Number(response.headers.get('retry-after'))).toBeGreaterThan(0);
@@ -207,7 +230,10 @@ describe('sign-in throttling', () => {
     const again = await attempt(email, fixturePassword, stranger);
     expect(again.response.status).toBe(429);
     expect(hasSession(again.client)).toBe(false);
-    const throttled = await testDb()('audit_events').where({ action: 'sign_in.throttled' }).whereRaw("detail->>'email' = ?", [email]).select('ip', 'detail');
+    const throttled = await testDb()('audit_events')
+      .where({ action: 'sign_in.throttled' })
+      .whereRaw("detail->>'email' = ?", [email])
+      .select('ip', 'detail');
     // The stranger's sixth guess and the later try were throttled; nothing from the owner's address was.
     expect(throttled.map((e) => [e.ip, e.detail.scope])).toEqual([
       [stranger, 'account'],
@@ -235,7 +261,10 @@ describe('sign-in throttling', () => {
 
   it('throttles per address: 20 failures from one address pause it for every account', async () => {
     const ip = someAddress();
-    for (let i = 0; i < 20; i++) expect((await attempt(`guess-${i}-${Date.now()}@fixtures.test`, 'guess-password', ip)).response.status).toBe(401);
+    for (let i = 0; i < 20; i++)
+      expect(
+        (await attempt(`guess-${i}-${Date.now()}@fixtures.test`, 'guess-password', ip)).response.status,
+      ).toBe(401);
     const email = await newStaffMember('throttle-ip');
     const blocked = await attempt(email, fixturePassword, ip);
     expect(blocked.response.status).toBe(429);
@@ -250,7 +279,10 @@ describe('the sign-in audit trail', () => {
     const secretGuess = `guess-${Date.now()}-secret`;
     await attempt(fresh.office.email, secretGuess, someAddress());
     await signIn(fresh.office.email, fixturePassword);
-    const events = await testDb()('audit_events').where({ organisation_id: fresh.id }).orderBy('id').select('action', 'actor_label', 'entity_id', 'detail');
+    const events = await testDb()('audit_events')
+      .where({ organisation_id: fresh.id })
+      .orderBy('id')
+      .select('action', 'actor_label', 'entity_id', 'detail');
     const failed = events.find((e) => e.action === 'sign_in.failed');
     const succeeded = events.find((e) => e.action === 'sign_in.succeeded');
     expect(failed?.detail.email).toBe(fresh.office.email);

@@ -54,7 +54,10 @@ describe('invitations', () => {
     expect(html).toContain(org.name);
     expect(html).toContain(email);
 
-    const accepted = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, { name: 'Rowan Tessaly', password: 'a-long-enough-pass' });
+    const accepted = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, {
+      name: 'Rowan Tessaly',
+      password: 'a-long-enough-pass',
+    });
     expect(accepted.status).toBe(201);
     const created = await accepted.json();
     expect(created.role).toBe('office');
@@ -76,8 +79,18 @@ describe('invitations', () => {
   it('accept a link once only', async () => {
     const email = newAddress();
     const token = new URL(await invite(email, 'auditor')).pathname.split('/').pop();
-    expect((await anonymousClient().json('POST', `/api/invitations/${token}/accept`, { name: 'First Try', password: 'first-password-1' })).status).toBe(201);
-    const again = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, { name: 'Second Try', password: 'second-password-2' });
+    expect(
+      (
+        await anonymousClient().json('POST', `/api/invitations/${token}/accept`, {
+          name: 'First Try',
+          password: 'first-password-1',
+        })
+      ).status,
+    ).toBe(201);
+    const again = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, {
+      name: 'Second Try',
+      password: 'second-password-2',
+    });
     expect(again.status).toBe(404);
     const rows = await testDb()('users').whereRaw('email = ?::citext', [email]).select('name');
     expect(rows).toEqual([{ name: 'First Try' }]);
@@ -89,14 +102,30 @@ describe('invitations', () => {
     await testDb()('invitations')
       .whereRaw('email = ?::citext', [expiredEmail])
       .update({ expires_at: new Date(Date.now() - 1000) });
-    expect((await anonymousClient().json('POST', `/api/invitations/${expiredToken}/accept`, { name: 'Late', password: 'late-password-1' })).status).toBe(404);
+    expect(
+      (
+        await anonymousClient().json('POST', `/api/invitations/${expiredToken}/accept`, {
+          name: 'Late',
+          password: 'late-password-1',
+        })
+      ).status,
+    ).toBe(404);
     expect((await anonymousClient().fetch(`/invite/${expiredToken}`)).status).toBe(404);
 
     const withdrawnEmail = newAddress();
     const withdrawnToken = new URL(await invite(withdrawnEmail, 'auditor')).pathname.split('/').pop();
-    const open = (await (await owner.json('GET', '/api/invitations')).json()).items.find((i: { email: string }) => i.email === withdrawnEmail);
+    const open = (await (await owner.json('GET', '/api/invitations')).json()).items.find(
+      (i: { email: string }) => i.email === withdrawnEmail,
+    );
     expect((await owner.json('DELETE', `/api/invitations/${open.id}`)).status).toBe(204);
-    expect((await anonymousClient().json('POST', `/api/invitations/${withdrawnToken}/accept`, { name: 'Gone', password: 'gone-password-1' })).status).toBe(404);
+    expect(
+      (
+        await anonymousClient().json('POST', `/api/invitations/${withdrawnToken}/accept`, {
+          name: 'Gone',
+          password: 'gone-password-1',
+        })
+      ).status,
+    ).toBe(404);
   });
 
   it('refuse an address that already has an account', async () => {
@@ -105,22 +134,36 @@ describe('invitations', () => {
   });
 
   it('are for the owner only', async () => {
-    expect((await office.json('POST', '/api/invitations', { email: newAddress(), role: 'auditor' })).status).toBe(403);
-    expect((await auditor.json('POST', '/api/invitations', { email: newAddress(), role: 'auditor' })).status).toBe(403);
+    expect(
+      (await office.json('POST', '/api/invitations', { email: newAddress(), role: 'auditor' })).status,
+    ).toBe(403);
+    expect(
+      (await auditor.json('POST', '/api/invitations', { email: newAddress(), role: 'auditor' })).status,
+    ).toBe(403);
   });
 
   it('reject unknown fields, naming them, and a homeowner role', async () => {
-    const res = await owner.json('POST', '/api/invitations', { email: newAddress(), role: 'auditor', isAdmin: true });
+    const res = await owner.json('POST', '/api/invitations', {
+      email: newAddress(),
+      role: 'auditor',
+      isAdmin: true,
+    });
     expect(res.status).toBe(422);
     expect((await res.json()).errors.map((e: { field: string }) => e.field)).toContain('isAdmin');
-    const homeowner = await owner.json('POST', '/api/invitations', { email: newAddress(), role: 'homeowner' });
+    const homeowner = await owner.json('POST', '/api/invitations', {
+      email: newAddress(),
+      role: 'homeowner',
+    });
     expect(homeowner.status).toBe(422);
     expect((await homeowner.json()).errors[0].field).toBe('role');
   });
 
   it('ask for a password of at least 10 characters', async () => {
     const token = new URL(await invite(newAddress(), 'auditor')).pathname.split('/').pop();
-    const res = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, { name: 'Short', password: 'short' });
+    const res = await anonymousClient().json('POST', `/api/invitations/${token}/accept`, {
+      name: 'Short',
+      password: 'short',
+    });
     expect(res.status).toBe(422);
     expect((await res.json()).errors[0].field).toBe('password');
   });
@@ -134,7 +177,9 @@ describe('the people API', () => {
     expect(body.total).toBeGreaterThanOrEqual(2);
     expect(body.items).toHaveLength(1);
     expect(body.items[0].role).toBe('auditor');
-    const all = (await (await office.json('GET', '/api/users?role=auditor&active=true&sort=-email')).json()).items.map((u: { email: string }) => u.email);
+    const all = (
+      await (await office.json('GET', '/api/users?role=auditor&active=true&sort=-email')).json()
+    ).items.map((u: { email: string }) => u.email);
     expect(all).toEqual([...all].sort().reverse());
     expect(body.items[0].email).toBe(all[1]);
   });
@@ -160,7 +205,10 @@ describe('the people API', () => {
   });
 
   it('rejects unknown fields in a change, naming them', async () => {
-    const res = await owner.json('PATCH', `/api/users/${org.auditor2.id}`, { name: 'New Name', passwordHash: 'x' });
+    const res = await owner.json('PATCH', `/api/users/${org.auditor2.id}`, {
+      name: 'New Name',
+      passwordHash: 'x',
+    });
     expect(res.status).toBe(422);
     expect((await res.json()).errors.map((e: { field: string }) => e.field)).toContain('passwordHash');
   });
@@ -189,7 +237,12 @@ describe('the people API', () => {
         actor_user_id: fresh.owner.id,
         detail: { email: fresh.auditor.email, from: 'auditor', to: 'office' },
       },
-      { action: 'user.deactivated', entity_id: fresh.auditor2.id, actor_user_id: fresh.owner.id, detail: { email: fresh.auditor2.email } },
+      {
+        action: 'user.deactivated',
+        entity_id: fresh.auditor2.id,
+        actor_user_id: fresh.owner.id,
+        detail: { email: fresh.auditor2.email },
+      },
     ]);
   });
 
@@ -205,9 +258,17 @@ describe('organisation settings', () => {
     expect(read.status).toBe(200);
     expect(await read.json()).toMatchObject({ id: org.id, displayUnits: 'metric', timeZone: 'UTC' });
     expect((await office.json('PATCH', '/api/organisation', { displayUnits: 'imperial' })).status).toBe(403);
-    const changed = await owner.json('PATCH', '/api/organisation', { displayUnits: 'imperial', timeZone: 'America/Denver', remindClients: true });
+    const changed = await owner.json('PATCH', '/api/organisation', {
+      displayUnits: 'imperial',
+      timeZone: 'America/Denver',
+      remindClients: true,
+    });
     expect(changed.status).toBe(200);
-    expect(await changed.json()).toMatchObject({ displayUnits: 'imperial', timeZone: 'America/Denver', remindClients: true });
+    expect(await changed.json()).toMatchObject({
+      displayUnits: 'imperial',
+      timeZone: 'America/Denver',
+      remindClients: true,
+    });
     const event = await testDb()('audit_events')
       .where({ organisation_id: org.id, action: 'organisation.settings_changed' })
       .orderBy('id', 'desc')
@@ -216,7 +277,10 @@ describe('organisation settings', () => {
   });
 
   it('reject an unknown time zone and an interval out of range, naming each field', async () => {
-    const res = await owner.json('PATCH', '/api/organisation', { timeZone: 'Mars/Olympus', reinspectionMonths: 0 });
+    const res = await owner.json('PATCH', '/api/organisation', {
+      timeZone: 'Mars/Olympus',
+      reinspectionMonths: 0,
+    });
     expect(res.status).toBe(422);
     const fields = (await res.json()).errors.map((e: { field: string }) => e.field).sort();
     expect(fields).toEqual(['reinspectionMonths', 'timeZone']);
@@ -250,7 +314,11 @@ describe('the owner pages', () => {
     const form = await anonymousClient().fetch(new URL(link).pathname, {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded' },
-      body: new URLSearchParams({ name: 'Page Invitee', password: 'page-invitee-pass', confirm: 'page-invitee-pass' }),
+      body: new URLSearchParams({
+        name: 'Page Invitee',
+        password: 'page-invitee-pass',
+        confirm: 'page-invitee-pass',
+      }),
     });
     expect(form.status).toBe(303);
     expect(form.headers.get('location')).toBe('/signin?invited');
@@ -261,17 +329,30 @@ describe('the owner pages', () => {
     const bad = await owner.fetch('/settings', {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded' },
-      body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Nowhere/Special', reinspectionMonths: '12' }),
+      body: new URLSearchParams({
+        name: org.name,
+        displayUnits: 'metric',
+        timeZone: 'Nowhere/Special',
+        reinspectionMonths: '12',
+      }),
     });
     expect(bad.status).toBe(422);
     expect(await bad.text()).toContain('Time zone must be a time zone name');
     const good = await owner.fetch('/settings', {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded' },
-      body: new URLSearchParams({ name: org.name, displayUnits: 'metric', timeZone: 'Europe/Dublin', reinspectionMonths: '24', remindClients: 'on' }),
+      body: new URLSearchParams({
+        name: org.name,
+        displayUnits: 'metric',
+        timeZone: 'Europe/Dublin',
+        reinspectionMonths: '24',
+        remindClients: 'on',
+      }),
     });
     expect(good.status).toBe(303);
-    const row = await testDb()('organisations').where({ id: org.id }).first('time_zone', 'reinspection_months', 'remind_clients');
+    const row = await testDb()('organisations')
+      .where({ id: org.id })
+      .first('time_zone', 'reinspection_months', 'remind_clients');
     expect(row).toEqual({ time_zone: 'Europe/Dublin', reinspection_months: 24, remind_clients: true });
   });
 });

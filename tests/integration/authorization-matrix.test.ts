@@ -22,13 +22,29 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { makePkcs12, type TestPkcs12 } from './support/pkcs12';
-import { insertClient, insertDraft, insertGate, insertSite, publishedFamilies, currentVersion, seedDirectory, type Directory } from './support/domain';
+import {
+  insertClient,
+  insertDraft,
+  insertGate,
+  insertSite,
+  publishedFamilies,
+  currentVersion,
+  seedDirectory,
+  type Directory,
+} from './support/domain';
 
 type Who = 'owner' | 'office' | 'auditor' | 'homeowner' | 'anonymous' | 'otherOrg';
 const callers: readonly Who[] = ['owner', 'office', 'auditor', 'homeowner', 'anonymous', 'otherOrg'];
 
 /** Expected statuses, in the column order of the table below. */
-const s = (owner: number, office: number, auditor: number, homeowner: number, anonymous: number, otherOrg: number): Record<Who, number> => ({
+const s = (
+  owner: number,
+  office: number,
+  auditor: number,
+  homeowner: number,
+  anonymous: number,
+  otherOrg: number,
+): Record<Who, number> => ({
   owner,
   office,
   auditor,
@@ -84,15 +100,29 @@ interface Row {
   expect: Record<Who, number>;
 }
 
-const row = (route: string, method: Row['method'], call: Row['call'], expected: Record<Who, number>): Row => ({ route, method, call, expect: expected });
+const row = (
+  route: string,
+  method: Row['method'],
+  call: Row['call'],
+  expected: Record<Who, number>,
+): Row => ({ route, method, call, expect: expected });
 
-const siteContext = { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false };
+const siteContext = {
+  pedestriansUseDriveway: false,
+  childrenOrPetsPresent: false,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
 
 /** A fresh draft amendment of the family's current version, derived by the subject organisation's owner. */
 async function freshAmendment(t: Targets): Promise<{ path: string; ruleId: string }> {
   const from = await currentVersion(t.family);
-  const res = await send(clients.owner, 'POST', { path: '/api/rulesets/amendments', body: { fromFamily: t.family, fromVersion: from.version } });
-  if (res.status !== 201) throw new Error(`deriving an amendment answered ${res.status}: ${await res.text()}`);
+  const res = await send(clients.owner, 'POST', {
+    path: '/api/rulesets/amendments',
+    body: { fromFamily: t.family, fromVersion: from.version },
+  });
+  if (res.status !== 201)
+    throw new Error(`deriving an amendment answered ${res.status}: ${await res.text()}`);
   const draft = await res.json();
   return { path: `/api/rulesets/${draft.family}/${draft.version}`, ruleId: draft.content.rules[0].id };
 }
@@ -102,7 +132,11 @@ let certificate: TestPkcs12 | undefined;
 async function certificateForm(): Promise<FormData> {
   certificate ??= await makePkcs12();
   const form = new FormData();
-  form.set('certificate', new Blob([new Uint8Array(certificate.p12)], { type: 'application/x-pkcs12' }), 'signing.p12');
+  form.set(
+    'certificate',
+    new Blob([new Uint8Array(certificate.p12)], { type: 'application/x-pkcs12' }),
+    'signing.p12',
+  );
   form.set('passphrase', certificate.passphrase);
   return form;
 }
@@ -225,10 +259,13 @@ function declaredRoutes(): string[] {
       .join('/');
     const source = fs.readFileSync(path.join(apiRoot, file), 'utf8');
     const methods = new Set<string>();
-    for (const m of source.matchAll(/export\s+(?:const|async\s+function|function)\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g))
+    for (const m of source.matchAll(
+      /export\s+(?:const|async\s+function|function)\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g,
+    ))
       methods.add(m[1] as string);
     for (const m of source.matchAll(/export\s*\{([^}]*)\}/g))
-      for (const name of (m[1] as string).matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g)) methods.add(name[1] as string);
+      for (const name of (m[1] as string).matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE|OPTIONS|HEAD|ALL)\b/g))
+        methods.add(name[1] as string);
     for (const method of methods) found.push(`${route} ${method}`);
   }
   return found.sort();
@@ -239,7 +276,12 @@ let targets: Targets;
 let sentDocument: Promise<string> | undefined;
 
 async function send(client: TestClient, method: string, call: Call): Promise<Response> {
-  if (call.multipart) return client.fetch(call.path, { method, headers: { accept: 'application/json', ...call.headers }, body: call.multipart });
+  if (call.multipart)
+    return client.fetch(call.path, {
+      method,
+      headers: { accept: 'application/json', ...call.headers },
+      body: call.multipart,
+    });
   if (call.raw)
     return client.fetch(call.path, {
       method,
@@ -249,13 +291,21 @@ async function send(client: TestClient, method: string, call: Call): Promise<Res
   if (call.form !== undefined) {
     return client.fetch(call.path, {
       method,
-      headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json', ...call.headers },
+      headers: {
+        'content-type': 'application/x-www-form-urlencoded',
+        accept: 'application/json',
+        ...call.headers,
+      },
       body: call.form,
     });
   }
   const headers: Record<string, string> = { accept: 'application/json', ...call.headers };
   if (call.body !== undefined) headers['content-type'] = 'application/json';
-  return client.fetch(call.path, { method, headers, body: call.body === undefined ? undefined : JSON.stringify(call.body) });
+  return client.fetch(call.path, {
+    method,
+    headers,
+    body: call.body === undefined ? undefined : JSON.stringify(call.body),
+  });
 }
 
 beforeAll(async () => {
@@ -272,7 +322,10 @@ beforeAll(async () => {
     freshClient: () => insertClient(org.id),
     freshSite: () => insertSite(org.id, dir.clientId),
     freshGate: () => insertGate(org.id, dir.siteId),
-    freshDraft: () => insertDraft(org.id, dir.gateId, org.auditor.id, version.id, { observations: JSON.stringify({ site: siteContext }) }),
+    freshDraft: () =>
+      insertDraft(org.id, dir.gateId, org.auditor.id, version.id, {
+        observations: JSON.stringify({ site: siteContext }),
+      }),
     uniqueEmail: (prefix) => `${prefix}.${Date.now()}.${emails++}@matrix.test`,
     versionId: version.id,
     async freshScored() {
@@ -295,7 +348,9 @@ beforeAll(async () => {
         const id = await targets.freshScored();
         const sent = await send(clients.owner, 'POST', { path: `/api/assessments/${id}/send-for-signature` });
         if (sent.status !== 202) throw new Error(`sending answered ${sent.status}: ${await sent.text()}`);
-        const signing = await (await send(clients.owner, 'GET', { path: `/api/assessments/${id}/signing` })).json();
+        const signing = await (
+          await send(clients.owner, 'GET', { path: `/api/assessments/${id}/signing` })
+        ).json();
         const documentId = signing.documents?.[0]?.id;
         if (!documentId) throw new Error(`no document after sending: ${JSON.stringify(signing)}`);
         return documentId as string;
@@ -303,13 +358,19 @@ beforeAll(async () => {
       return sentDocument;
     },
     async freshInvitation() {
-      const res = await send(clients.owner, 'POST', { path: '/api/invitations', body: { email: targets.uniqueEmail('withdrawn'), role: 'office' } });
+      const res = await send(clients.owner, 'POST', {
+        path: '/api/invitations',
+        body: { email: targets.uniqueEmail('withdrawn'), role: 'office' },
+      });
       if (res.status !== 201) throw new Error(`inviting answered ${res.status}: ${await res.text()}`);
       return (await res.json()).id;
     },
     async freshPhoto() {
       const draftId = await targets.freshDraft();
-      const res = await send(clients.owner, 'POST', { path: `/api/assessments/${draftId}/photos`, multipart: await photoForm() });
+      const res = await send(clients.owner, 'POST', {
+        path: `/api/assessments/${draftId}/photos`,
+        multipart: await photoForm(),
+      });
       if (res.status !== 201) throw new Error(`photo upload answered ${res.status}: ${await res.text()}`);
       return { draftId, photoId: (await res.json()).id };
     },
@@ -348,19 +409,28 @@ describe('authorization matrix', () => {
     expect(new Set(covered).size, 'each route and method once').toBe(covered.length);
   });
 
-  it.each(matrix.map((r) => [`${r.method} ${r.route}`, r] as const))('%s answers each caller as the table says', async (_name, r) => {
-    const actual = {} as Record<Who, number>;
-    for (const who of callers) {
-      const res = await send(clients[who], r.method, await r.call(targets));
-      actual[who] = res.status;
-      const text = await res.text();
-      if (res.status >= 400) expect(text, `${who}: an error never carries a stack trace`).not.toMatch(/\bat .+:\d+:\d+/);
-    }
-    expect(actual).toEqual(r.expect);
-  });
+  it.each(matrix.map((r) => [`${r.method} ${r.route}`, r] as const))(
+    '%s answers each caller as the table says',
+    async (_name, r) => {
+      const actual = {} as Record<Who, number>;
+      for (const who of callers) {
+        const res = await send(clients[who], r.method, await r.call(targets));
+        actual[who] = res.status;
+        const text = await res.text();
+        if (res.status >= 400)
+          expect(text, `${who}: an error never carries a stack trace`).not.toMatch(/\bat .+:\d+:\d+/);
+      }
+      expect(actual).toEqual(r.expect);
+    },
+  );
 
   it("lists never show another organisation's rows", async () => {
-    for (const list of ['/api/clients?pageSize=100', '/api/sites?pageSize=100', '/api/gates?pageSize=100', '/api/assessments?pageSize=100']) {
+    for (const list of [
+      '/api/clients?pageSize=100',
+      '/api/sites?pageSize=100',
+      '/api/gates?pageSize=100',
+      '/api/assessments?pageSize=100',
+    ]) {
       const body = await (await send(clients.otherOrg, 'GET', { path: list })).text();
       for (const id of Object.values(targets.dir)) expect(body, list).not.toContain(id);
     }
@@ -378,7 +448,11 @@ describe('path variants of protected routes', () => {
   ];
 
   it('refuses a signed-out visitor however the path is spelled', async () => {
-    for (const variant of [...spellings('/api/clients'), ...spellings(`/api/gates/${targets.dir.gateId}`), ...spellings('/api/users')]) {
+    for (const variant of [
+      ...spellings('/api/clients'),
+      ...spellings(`/api/gates/${targets.dir.gateId}`),
+      ...spellings('/api/users'),
+    ]) {
       const res = await send(clients.anonymous, 'GET', { path: variant });
       expect(res.status, variant).toBe(401);
     }
@@ -408,6 +482,8 @@ describe('path variants of protected routes', () => {
       const res = await send(clients.anonymous, 'DELETE', { path: variant });
       expect(res.status, variant).toBe(401);
     }
-    expect((await send(clients.owner, 'GET', { path: `/api/clients/${targets.dir.clientId}` })).status).toBe(200);
+    expect((await send(clients.owner, 'GET', { path: `/api/clients/${targets.dir.clientId}` })).status).toBe(
+      200,
+    );
   });
 });

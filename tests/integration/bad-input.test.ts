@@ -5,7 +5,13 @@
  * trace, and the database is exactly as it was (row counts and every column of every row).
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { currentVersion, insertDraft, seedDirectory, snapshotTables, type Directory } from './support/domain';
 
 interface BadRequest {
@@ -111,7 +117,11 @@ describe('bad input', () => {
       const text = await res.text();
       expect(text, `${c.name}: no stack trace`).not.toMatch(/\n\s+at |\.(ts|js|mjs):\d+/);
       const problem = JSON.parse(text);
-      expect(problem, c.name).toMatchObject({ status: c.status, title: expect.any(String), type: expect.any(String) });
+      expect(problem, c.name).toMatchObject({
+        status: c.status,
+        title: expect.any(String),
+        type: expect.any(String),
+      });
       const named = (problem.errors ?? []).map((e: { field: string }) => e.field);
       for (const field of c.fields) expect(named, `${c.name} names ${field || 'the body'}`).toContain(field);
       for (const error of problem.errors ?? []) expect(error.message, c.name).toEqual(expect.any(String));
@@ -120,7 +130,12 @@ describe('bad input', () => {
   });
 
   it('answers an unknown id as not found, whatever it looks like', async () => {
-    for (const path of ['/api/clients/not-a-uuid', "/api/gates/1'%20or%20'1'='1", '/api/sites/00000000-0000-4000-8000-000000000000', '/api/assessments/%00']) {
+    for (const path of [
+      '/api/clients/not-a-uuid',
+      "/api/gates/1'%20or%20'1'='1",
+      '/api/sites/00000000-0000-4000-8000-000000000000',
+      '/api/assessments/%00',
+    ]) {
       const res = await owner.json('GET', path);
       expect(res.status, path).toBe(404);
       expect(res.headers.get('content-type')).toContain('application/problem+json');

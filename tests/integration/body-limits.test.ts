@@ -11,7 +11,13 @@
 import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer, type RunningServer } from '../../src/cli/services';
-import { createOrganisation, fixturePassword, signIn, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { currentVersion, insertDraft, seedDirectory } from './support/domain';
 import { rawRequest } from './support/raw-http';
 
@@ -31,7 +37,8 @@ let draftId: string;
 
 function memoryOf(pid: number): { rss: number; peak: number } {
   const status = fs.readFileSync(`/proc/${pid}/status`, 'utf8');
-  const kib = (name: string) => Number(new RegExp(`^${name}:\\s+(\\d+) kB`, 'm').exec(status)?.[1] ?? NaN) * 1024;
+  const kib = (name: string) =>
+    Number(new RegExp(`^${name}:\\s+(\\d+) kB`, 'm').exec(status)?.[1] ?? NaN) * 1024;
   return { rss: kib('VmRSS'), peak: kib('VmHWM') };
 }
 
@@ -68,10 +75,19 @@ const photoPrefix = Buffer.from(
 );
 
 beforeAll(async () => {
-  server = await startAppServer({ port: await freePort(), quiet: true, env: { ...inject('serverEnv'), OUTBOX_WORKER: 'off' } });
+  server = await startAppServer({
+    port: await freePort(),
+    quiet: true,
+    env: { ...inject('serverEnv'), OUTBOX_WORKER: 'off' },
+  });
   org = await createOrganisation('body limits');
   const dir = await seedDirectory(org);
-  draftId = await insertDraft(org.id, dir.gateId, org.auditor.id, (await currentVersion('north-american-gate')).id);
+  draftId = await insertDraft(
+    org.id,
+    dir.gateId,
+    org.auditor.id,
+    (await currentVersion('north-american-gate')).id,
+  );
   auditor = await signIn(org.auditor.email, fixturePassword);
   // Load each route's code once, so its first-use cost is not counted against the body.
   await rawRequest(new URL('/api/auth/callback/credentials', server.url), {
@@ -86,7 +102,11 @@ beforeAll(async () => {
   });
   await rawRequest(new URL(`/api/assessments/${draftId}/photos`, server.url), {
     method: 'POST',
-    headers: { origin: server.url, cookie: auditor.cookie, 'content-type': `multipart/form-data; boundary=${boundary}` },
+    headers: {
+      origin: server.url,
+      cookie: auditor.cookie,
+      'content-type': `multipart/form-data; boundary=${boundary}`,
+    },
     body: 'x',
   });
 }, 90_000);
@@ -97,9 +117,13 @@ afterAll(async () => {
 
 describe('a 60 MB chunked body is refused while it streams', () => {
   it('at the sign-in callback: 413 problem+json naming the 16 KiB limit, memory within a few MB', async () => {
-    const { result, growth } = await measured(() => stream('/api/auth/callback/credentials', { 'content-type': 'application/x-www-form-urlencoded' }));
+    const { result, growth } = await measured(() =>
+      stream('/api/auth/callback/credentials', { 'content-type': 'application/x-www-form-urlencoded' }),
+    );
     expect(result.status).toBe(413);
-    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(allowedGrowth(16 * 1024));
+    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(
+      allowedGrowth(16 * 1024),
+    );
     expect(result.headers['content-type']).toBe('application/problem+json');
     const problem = result.json();
     expect(problem.detail).toContain('16 KiB');
@@ -109,10 +133,15 @@ describe('a 60 MB chunked body is refused while it streams', () => {
 
   it('at the force-trace upload: 413 problem+json naming the 2 MB limit, memory within twice the limit and a few MB', async () => {
     const { result, growth } = await measured(() =>
-      stream(`/api/assessments/${draftId}/force-traces?${traceQuery}`, { cookie: auditor.cookie, 'content-type': 'text/csv' }),
+      stream(`/api/assessments/${draftId}/force-traces?${traceQuery}`, {
+        cookie: auditor.cookie,
+        'content-type': 'text/csv',
+      }),
     );
     expect(result.status).toBe(413);
-    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(allowedGrowth(2 * MiB));
+    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(
+      allowedGrowth(2 * MiB),
+    );
     expect(result.headers['content-type']).toBe('application/problem+json');
     const problem = result.json();
     expect(problem.detail).toContain('2 MB');
@@ -122,10 +151,16 @@ describe('a 60 MB chunked body is refused while it streams', () => {
 
   it('at the photo upload: 413 problem+json naming the 15 MB limit, memory within twice the limit and a few MB', async () => {
     const { result, growth } = await measured(() =>
-      stream(`/api/assessments/${draftId}/photos`, { cookie: auditor.cookie, 'content-type': `multipart/form-data; boundary=${boundary}` }, photoPrefix),
+      stream(
+        `/api/assessments/${draftId}/photos`,
+        { cookie: auditor.cookie, 'content-type': `multipart/form-data; boundary=${boundary}` },
+        photoPrefix,
+      ),
     );
     expect(result.status).toBe(413);
-    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(allowedGrowth(15 * MiB));
+    expect(growth, `peak memory grew by ${(growth / MiB).toFixed(1)} MiB`).toBeLessThan(
+      allowedGrowth(15 * MiB),
+    );
     expect(result.headers['content-type']).toBe('application/problem+json');
     const problem = result.json();
     expect(problem.detail).toContain('15 MB');
@@ -136,7 +171,12 @@ describe('a 60 MB chunked body is refused while it streams', () => {
     // Claims 60 MB but sends a few bytes: the answer comes at once, without waiting for the rest.
     const result = await rawRequest(new URL('/api/auth/callback/credentials', server.url), {
       method: 'POST',
-      headers: { origin: server.url, accept: 'application/json', 'content-type': 'application/x-www-form-urlencoded', 'content-length': String(bodyBytes) },
+      headers: {
+        origin: server.url,
+        accept: 'application/json',
+        'content-type': 'application/x-www-form-urlencoded',
+        'content-length': String(bodyBytes),
+      },
       streamBytes: 10,
     });
     expect(result.status).toBe(413);

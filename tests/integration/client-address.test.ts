@@ -31,7 +31,11 @@ let office: TestClient;
 
 beforeAll(async () => {
   const { TRUST_PROXY: _trusted, ...env } = inject('serverEnv');
-  untrusted = await startAppServer({ port: await freePort(), quiet: true, env: { ...env, OUTBOX_WORKER: 'off' } });
+  untrusted = await startAppServer({
+    port: await freePort(),
+    quiet: true,
+    env: { ...env, OUTBOX_WORKER: 'off' },
+  });
   org = await createOrganisation('client address');
   office = await signIn(org.office.email, fixturePassword);
 }, 90_000);
@@ -59,7 +63,12 @@ async function caller(base: string, localAddress = loopbackAddress()) {
           'content-type': 'application/x-www-form-urlencoded',
           ...(forwardedFor === null ? {} : { 'x-forwarded-for': forwardedFor }),
         },
-        body: new URLSearchParams({ email, password: 'not-the-password', csrfToken, callbackUrl: '/' }).toString(),
+        body: new URLSearchParams({
+          email,
+          password: 'not-the-password',
+          csrfToken,
+          callbackUrl: '/',
+        }).toString(),
       });
     },
   };
@@ -69,7 +78,9 @@ const unknownEmail = () => `nobody.${Math.random().toString(36).slice(2)}@client
 
 /** The addresses recorded for these e-mails' sign-in attempts. */
 async function recordedAddresses(emails: string[]): Promise<string[]> {
-  const rows = await testDb()('sign_in_attempts').whereIn('email', emails).select(testDb().raw('host(ip) as ip'));
+  const rows = await testDb()('sign_in_attempts')
+    .whereIn('email', emails)
+    .select(testDb().raw('host(ip) as ip'));
   return [...new Set(rows.map((r: { ip: string | null }) => r.ip ?? 'null'))];
 }
 
@@ -112,7 +123,8 @@ describe('without TRUST_PROXY the socket address counts, whatever X-Forwarded-Fo
       { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
       { dataDir: inject('dataDir'), photos: 0 },
     );
-    const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+    const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email'))
+      .contact_email as string;
     const seen = await caughtMailIds(clientEmail);
     const sent = await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {});
     expect(sent.status, await sent.clone().text()).toBe(202);
@@ -127,7 +139,12 @@ describe('without TRUST_PROXY the socket address counts, whatever X-Forwarded-Fo
     const res = await rawRequest(new URL(`/api/sign/${token}/submit`, untrusted.url), {
       method: 'POST',
       localAddress,
-      headers: { origin: untrusted.url, 'content-type': 'application/json', accept: 'application/json', 'x-forwarded-for': forged },
+      headers: {
+        origin: untrusted.url,
+        'content-type': 'application/json',
+        accept: 'application/json',
+        'x-forwarded-for': forged,
+      },
       body: JSON.stringify({
         name: 'Imke Quillfeather',
         consent: true,
@@ -138,7 +155,9 @@ describe('without TRUST_PROXY the socket address counts, whatever X-Forwarded-Fo
       }),
     });
     expect(res.status, res.text()).toBe(201);
-    const signature = await testDb()('signatures').where({ assessment_id: seeded.assessmentId }).first(testDb().raw('host(ip) as ip'));
+    const signature = await testDb()('signatures')
+      .where({ assessment_id: seeded.assessmentId })
+      .first(testDb().raw('host(ip) as ip'));
     expect(signature.ip).toBe(localAddress);
 
     const pdf = await office.fetch(`/api/documents/${res.json().document.id}/file`);

@@ -45,7 +45,11 @@ describe('correcting a client', () => {
     const pendingLink = await requestHomeownerLink(oldEmail);
     const before = await testDb()('users').where({ id: org.homeowner.id }).first('session_version');
 
-    const res = await office.json('PATCH', `/api/clients/${org.clientId}`, { contactEmail: newEmail, phone: '+1 555 0100', name: 'Household corrected' });
+    const res = await office.json('PATCH', `/api/clients/${org.clientId}`, {
+      contactEmail: newEmail,
+      phone: '+1 555 0100',
+      name: 'Household corrected',
+    });
     expect(res.status).toBe(200);
     const body = await res.json();
     expect(body).toMatchObject({ contactEmail: newEmail, phone: '+1 555 0100', name: 'Household corrected' });
@@ -59,7 +63,9 @@ describe('correcting a client', () => {
     expect(events).toHaveLength(1);
     expect(events[0].actor_user_id).toBe(org.office.id);
     expect(events[0].detail).toMatchObject({ from: oldEmail, to: newEmail, clientId: org.clientId });
-    const clientEvent = await testDb()('audit_events').where({ organisation_id: org.id, action: 'client.updated', entity_id: org.clientId }).first('detail');
+    const clientEvent = await testDb()('audit_events')
+      .where({ organisation_id: org.id, action: 'client.updated', entity_id: org.clientId })
+      .first('detail');
     expect(clientEvent.detail.contactEmail).toEqual({ from: oldEmail, to: newEmail });
 
     // The session opened under the old address is over.
@@ -68,12 +74,18 @@ describe('correcting a client', () => {
     const followed = await followHomeownerLink(pendingLink);
     expect(hasSession(followed.client)).toBe(false);
     // Asking for a link with the old address sends nothing (same 202, no account behind it).
-    const linksBefore = await testDb()('sign_in_links').where({ user_id: org.homeowner.id }).count<{ count: string }[]>({ count: '*' });
+    const linksBefore = await testDb()('sign_in_links')
+      .where({ user_id: org.homeowner.id })
+      .count<{ count: string }[]>({ count: '*' });
     const oldSeen = await caughtMailIds(oldEmail);
-    expect((await anonymousClient().json('POST', '/api/auth/email-link', { email: oldEmail })).status).toBe(202);
+    expect((await anonymousClient().json('POST', '/api/auth/email-link', { email: oldEmail })).status).toBe(
+      202,
+    );
     await new Promise((r) => setTimeout(r, 1500));
     expect(await caughtMailIds(oldEmail)).toEqual(oldSeen);
-    const linksAfter = await testDb()('sign_in_links').where({ user_id: org.homeowner.id }).count<{ count: string }[]>({ count: '*' });
+    const linksAfter = await testDb()('sign_in_links')
+      .where({ user_id: org.homeowner.id })
+      .count<{ count: string }[]>({ count: '*' });
     expect(linksAfter[0].count).toBe(linksBefore[0].count);
     // The corrected address signs in to the same account.
     const fresh = await signInHomeowner(newEmail);
@@ -84,24 +96,36 @@ describe('correcting a client', () => {
     const victim = await createOrganisation('contacts-conflict');
     const before = await clientRow(victim.clientId);
     const owner = await signIn(victim.owner.email, fixturePassword);
-    const res = await owner.json('PATCH', `/api/clients/${victim.clientId}`, { contactEmail: victim.office.email.toUpperCase(), phone: '555 0199' });
+    const res = await owner.json('PATCH', `/api/clients/${victim.clientId}`, {
+      contactEmail: victim.office.email.toUpperCase(),
+      phone: '555 0199',
+    });
     expect(res.status).toBe(409);
     expect((await res.json()).errors).toEqual([expect.objectContaining({ field: 'contactEmail' })]);
     expect(await clientRow(victim.clientId)).toEqual(before);
-    expect((await testDb()('users').where({ id: victim.homeowner.id }).first('email')).email).toBe(victim.homeowner.email);
+    expect((await testDb()('users').where({ id: victim.homeowner.id }).first('email')).email).toBe(
+      victim.homeowner.email,
+    );
   });
 
   it("answers 404 for another organisation's client and changes nothing", async () => {
     const before = await clientRow(other.clientId);
-    const res = await office.json('PATCH', `/api/clients/${other.clientId}`, { contactEmail: `taken.${other.homeowner.email}` });
+    const res = await office.json('PATCH', `/api/clients/${other.clientId}`, {
+      contactEmail: `taken.${other.homeowner.email}`,
+    });
     expect(res.status).toBe(404);
     expect(await clientRow(other.clientId)).toEqual(before);
-    expect((await testDb()('users').where({ id: other.homeowner.id }).first('email')).email).toBe(other.homeowner.email);
+    expect((await testDb()('users').where({ id: other.homeowner.id }).first('email')).email).toBe(
+      other.homeowner.email,
+    );
   });
 
   it('refuses a malformed e-mail with 422 naming the field, changing nothing', async () => {
     const before = await clientRow(org.clientId);
-    const res = await office.json('PATCH', `/api/clients/${org.clientId}`, { contactEmail: 'home at example', name: 'Changed name' });
+    const res = await office.json('PATCH', `/api/clients/${org.clientId}`, {
+      contactEmail: 'home at example',
+      name: 'Changed name',
+    });
     expect(res.status).toBe(422);
     expect(res.headers.get('content-type')).toContain('application/problem+json');
     expect((await res.json()).errors).toEqual([expect.objectContaining({ field: 'contactEmail' })]);
@@ -121,14 +145,22 @@ describe('choosing who receives the signing link', () => {
     );
     const chosen = `manager.${target.slug}@fixtures.test`;
 
-    const bad = await staff.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, { recipient: 'manager@' });
+    const bad = await staff.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {
+      recipient: 'manager@',
+    });
     expect(bad.status).toBe(422);
     expect((await bad.json()).errors).toEqual([expect.objectContaining({ field: 'recipient' })]);
-    expect(await testDb()('sign_requests').where({ assessment_id: seeded.assessmentId }).count<{ count: string }[]>({ count: '*' })).toEqual([{ count: '0' }]);
+    expect(
+      await testDb()('sign_requests')
+        .where({ assessment_id: seeded.assessmentId })
+        .count<{ count: string }[]>({ count: '*' }),
+    ).toEqual([{ count: '0' }]);
 
     const contactSeen = await caughtMailIds(contact);
     const chosenSeen = await caughtMailIds(chosen);
-    const res = await staff.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, { recipient: `  ${chosen}  ` });
+    const res = await staff.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {
+      recipient: `  ${chosen}  `,
+    });
     expect(res.status).toBe(202);
     const body = await res.json();
     expect(body.signRequest.recipient).toBe(chosen);
@@ -136,12 +168,22 @@ describe('choosing who receives the signing link', () => {
     const mail = await waitForMail(chosen, chosenSeen, 20_000);
     const link = new URL(linkIn(mail.text, '/sign/'));
     expect((await anonymousClient().fetch(link.pathname)).status).toBe(200);
-    const stored = await testDb()('sign_requests').where({ id: body.signRequest.id }).first('recipient_email');
+    const stored = await testDb()('sign_requests')
+      .where({ id: body.signRequest.id })
+      .first('recipient_email');
     expect(stored.recipient_email).toBe(chosen);
     const event = await testDb()('audit_events')
-      .where({ organisation_id: target.id, action: 'assessment.sent_for_signature', entity_id: seeded.assessmentId })
+      .where({
+        organisation_id: target.id,
+        action: 'assessment.sent_for_signature',
+        entity_id: seeded.assessmentId,
+      })
       .first('detail');
-    expect(event.detail).toMatchObject({ recipient: chosen, recipientChosen: true, clientContactEmail: contact });
+    expect(event.detail).toMatchObject({
+      recipient: chosen,
+      recipientChosen: true,
+      clientContactEmail: contact,
+    });
     // The client's own contact address got nothing.
     expect(await caughtMailIds(contact)).toEqual(contactSeen);
   });

@@ -4,7 +4,14 @@
  * never a silent overwrite.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { seedDirectory, type Directory } from './support/domain';
 
 let org: FixtureOrganisation;
@@ -16,11 +23,18 @@ let phone: TestClient;
 beforeAll(async () => {
   org = await createOrganisation('concurrency');
   dir = await seedDirectory(org);
-  [tablet, phone] = await Promise.all([signIn(org.auditor.email, fixturePassword), signIn(org.auditor.email, fixturePassword)]);
+  [tablet, phone] = await Promise.all([
+    signIn(org.auditor.email, fixturePassword),
+    signIn(org.auditor.email, fixturePassword),
+  ]);
 });
 
 async function newDraft(): Promise<string> {
-  const res = await tablet.json('POST', '/api/assessments', { gateId: dir.gateId, family: 'north-american-gate', purpose: 'service' });
+  const res = await tablet.json('POST', '/api/assessments', {
+    gateId: dir.gateId,
+    family: 'north-american-gate',
+    purpose: 'service',
+  });
   expect(res.status).toBe(201);
   return (await res.json()).id;
 }
@@ -60,7 +74,11 @@ describe('saving a draft from two devices', () => {
   it('lets one of many simultaneous saves win, and the loser can retry over the version it was shown', async () => {
     const id = await newDraft();
     const devices = Array.from({ length: 8 }, (_, i) => (i % 2 ? phone : tablet));
-    const responses = await Promise.all(devices.map((d, i) => save(d, id, 1, { answers: { ownerShown: { value: 'yes', note: `device ${i}` } } })));
+    const responses = await Promise.all(
+      devices.map((d, i) =>
+        save(d, id, 1, { answers: { ownerShown: { value: 'yes', note: `device ${i}` } } }),
+      ),
+    );
     expect(responses.filter((r) => r.status === 200)).toHaveLength(1);
     expect(responses.filter((r) => r.status === 409)).toHaveLength(7);
 
@@ -76,11 +94,21 @@ describe('saving a draft from two devices', () => {
   it('lets a submit and a save from the same version race without losing either silently', async () => {
     const id = await newDraft();
     const ready = await save(tablet, id, 1, {
-      observations: { site: { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false } },
+      observations: {
+        site: {
+          pedestriansUseDriveway: false,
+          childrenOrPetsPresent: false,
+          publicAccess: false,
+          slopeAcrossSwing: false,
+        },
+      },
     });
     expect(ready.status).toBe(200);
     const [submitted, saved] = await Promise.all([
-      tablet.fetch(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'if-match': '"2"', accept: 'application/json' } }),
+      tablet.fetch(`/api/assessments/${id}/submit`, {
+        method: 'POST',
+        headers: { 'if-match': '"2"', accept: 'application/json' },
+      }),
       save(phone, id, 2, { answers: { latchFitted: { value: 'no' } } }),
     ]);
     expect([submitted.status, saved.status].sort()).toEqual([200, 409]);
@@ -89,7 +117,11 @@ describe('saving a draft from two devices', () => {
       // Scored without the late answer: the save was refused, not merged in behind the result.
       expect(stored).toMatchObject({ status: 'scored', answers: {}, row_version: 3 });
     } else {
-      expect(stored).toMatchObject({ status: 'draft', answers: { latchFitted: { value: 'no' } }, row_version: 3 });
+      expect(stored).toMatchObject({
+        status: 'draft',
+        answers: { latchFitted: { value: 'no' } },
+        row_version: 3,
+      });
     }
   });
 });

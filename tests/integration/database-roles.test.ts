@@ -6,7 +6,14 @@
  * (`ownerTestDb()`) is what migrations run as.
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { closeTestDb, createOrganisation, fixturePassword, ownerTestDb, signIn, testDb } from './support/fixtures';
+import {
+  closeTestDb,
+  createOrganisation,
+  fixturePassword,
+  ownerTestDb,
+  signIn,
+  testDb,
+} from './support/fixtures';
 
 let eventId: number;
 
@@ -15,7 +22,10 @@ beforeAll(async () => {
   // One ordinary audited change, so the trail has an event of this file to aim at.
   const owner = await signIn(org.owner.email, fixturePassword);
   expect((await owner.json('PATCH', '/api/organisation', { remindClients: true })).status).toBe(200);
-  const row = await testDb()('audit_events').where({ organisation_id: org.id }).orderBy('id', 'desc').first('id');
+  const row = await testDb()('audit_events')
+    .where({ organisation_id: org.id })
+    .orderBy('id', 'desc')
+    .first('id');
   eventId = Number(row.id);
 });
 
@@ -38,10 +48,17 @@ describe('the database role the app runs as', () => {
   });
 
   it('is no superuser and owns no table, sequence or function', async () => {
-    const { rows } = await testDb().raw<{ rows: { rolsuper: boolean; rolcreaterole: boolean; rolcreatedb: boolean; rolbypassrls: boolean }[] }>(
+    const { rows } = await testDb().raw<{
+      rows: { rolsuper: boolean; rolcreaterole: boolean; rolcreatedb: boolean; rolbypassrls: boolean }[];
+    }>(
       'select rolsuper, rolcreaterole, rolcreatedb, rolbypassrls from pg_roles where rolname = current_user',
     );
-    expect(rows[0]).toEqual({ rolsuper: false, rolcreaterole: false, rolcreatedb: false, rolbypassrls: false });
+    expect(rows[0]).toEqual({
+      rolsuper: false,
+      rolcreaterole: false,
+      rolcreatedb: false,
+      rolbypassrls: false,
+    });
     const owned = await testDb().raw<{ rows: { n: string }[] }>(
       `select (select count(*) from pg_class c join pg_namespace s on s.oid = c.relnamespace where s.nspname = 'public' and c.relowner = (select oid from pg_roles where rolname = current_user))
             + (select count(*) from pg_proc p join pg_namespace s on s.oid = p.pronamespace where s.nspname = 'public' and p.proowner = (select oid from pg_roles where rolname = current_user)) as n`,
@@ -50,8 +67,14 @@ describe('the database role the app runs as', () => {
   });
 
   it('cannot set session_replication_role (which would skip every trigger)', async () => {
-    await expect(testDb().transaction((trx) => trx.raw('set local session_replication_role = replica'))).rejects.toThrow(/permission denied/);
-    await expect(testDb().transaction((trx) => trx.raw(`select set_config('session_replication_role', 'replica', true)`))).rejects.toThrow(/permission denied/);
+    await expect(
+      testDb().transaction((trx) => trx.raw('set local session_replication_role = replica')),
+    ).rejects.toThrow(/permission denied/);
+    await expect(
+      testDb().transaction((trx) =>
+        trx.raw(`select set_config('session_replication_role', 'replica', true)`),
+      ),
+    ).rejects.toThrow(/permission denied/);
   });
 
   it("cannot switch a table's triggers off, alter or drop it", async () => {
@@ -69,7 +92,9 @@ describe('the database role the app runs as', () => {
       ).rejects.toThrow(/must be owner/);
     }
     await expect(
-      testDb().transaction((trx) => trx.raw(`set local role "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`)),
+      testDb().transaction((trx) =>
+        trx.raw(`set local role "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`),
+      ),
     ).rejects.toThrow(/permission denied/);
   });
 
@@ -101,7 +126,9 @@ describe('the database role the app runs as', () => {
     try {
       await testDb()(table).insert({ note: 'written by the app role' });
       expect(await testDb()(table).count({ n: '*' })).toEqual([{ n: '1' }]);
-      await expect(testDb().transaction((trx) => trx.raw(`truncate ${table}`))).rejects.toThrow(/permission denied/);
+      await expect(testDb().transaction((trx) => trx.raw(`truncate ${table}`))).rejects.toThrow(
+        /permission denied/,
+      );
     } finally {
       await ownerTestDb().schema.dropTable(table);
     }

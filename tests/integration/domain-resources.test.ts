@@ -3,8 +3,24 @@
  * delete, scoped to the caller's organisation and, for a homeowner, to their own client.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createOrganisation, signIn, signInHomeowner, fixturePassword, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { insertClient, insertDraft, insertGate, insertLocalVersion, insertSite, seedDirectory, type Directory } from './support/domain';
+import {
+  createOrganisation,
+  signIn,
+  signInHomeowner,
+  fixturePassword,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  insertClient,
+  insertDraft,
+  insertGate,
+  insertLocalVersion,
+  insertSite,
+  seedDirectory,
+  type Directory,
+} from './support/domain';
 
 let org: FixtureOrganisation;
 let other: FixtureOrganisation;
@@ -37,7 +53,13 @@ describe('clients', () => {
     });
     expect(res.status).toBe(201);
     const created = await res.json();
-    expect(created).toMatchObject({ name: 'Hollowbrook Estates', kind: 'business', contactEmail: 'gates@hollowbrook.test', phone: '+1 555 0142', notes: null });
+    expect(created).toMatchObject({
+      name: 'Hollowbrook Estates',
+      kind: 'business',
+      contactEmail: 'gates@hollowbrook.test',
+      phone: '+1 555 0142',
+      notes: null,
+    });
     expect(res.headers.get('location')).toBe(`/api/clients/${created.id}`);
     const read = await owner.json('GET', `/api/clients/${created.id}`);
     expect(read.status).toBe(200);
@@ -48,17 +70,27 @@ describe('clients', () => {
     const id = await insertClient(org.id, { phone: '555 0101', notes: 'Side gate code with the office' });
     const res = await auditor.json('PATCH', `/api/clients/${id}`, { phone: null, name: 'Renamed Lettings' });
     expect(res.status).toBe(200);
-    expect(await res.json()).toMatchObject({ id, name: 'Renamed Lettings', phone: null, notes: 'Side gate code with the office' });
+    expect(await res.json()).toMatchObject({
+      id,
+      name: 'Renamed Lettings',
+      phone: null,
+      notes: 'Side gate code with the office',
+    });
   });
 
   it('lists with free text, kind filter, sort and stable pages', async () => {
     const tag = `Zebedee${Date.now()}`;
-    for (const n of ['C', 'A', 'B', 'E', 'D']) await insertClient(org.id, { name: `${tag} ${n}`, kind: 'business' });
+    for (const n of ['C', 'A', 'B', 'E', 'D'])
+      await insertClient(org.id, { name: `${tag} ${n}`, kind: 'business' });
     await insertClient(org.id, { name: `${tag} F`, kind: 'homeowner' });
-    const first = await (await owner.json('GET', `/api/clients?q=${tag}&kind=business&sort=-name&pageSize=2`)).json();
+    const first = await (
+      await owner.json('GET', `/api/clients?q=${tag}&kind=business&sort=-name&pageSize=2`)
+    ).json();
     expect(first.total).toBe(5);
     expect(first.items.map((c: { name: string }) => c.name)).toEqual([`${tag} E`, `${tag} D`]);
-    const third = await (await owner.json('GET', `/api/clients?q=${tag}&kind=business&sort=-name&pageSize=2&page=3`)).json();
+    const third = await (
+      await owner.json('GET', `/api/clients?q=${tag}&kind=business&sort=-name&pageSize=2&page=3`)
+    ).json();
     expect(third.items.map((c: { name: string }) => c.name)).toEqual([`${tag} A`]);
   });
 
@@ -121,17 +153,34 @@ describe('clients', () => {
 
 describe('sites', () => {
   it('creates a site for a client of the organisation only', async () => {
-    const body = { clientId: dir.clientId, addressLine1: '7 Larkspur Row', city: 'Eastholm', region: 'CO', postalCode: '80998', country: 'us', usageClass: 3 };
+    const body = {
+      clientId: dir.clientId,
+      addressLine1: '7 Larkspur Row',
+      city: 'Eastholm',
+      region: 'CO',
+      postalCode: '80998',
+      country: 'us',
+      usageClass: 3,
+    };
     const res = await auditor.json('POST', '/api/sites', body);
     expect(res.status).toBe(201);
-    expect(await res.json()).toMatchObject({ ...body, country: 'US', clientName: expect.any(String), name: null });
+    expect(await res.json()).toMatchObject({
+      ...body,
+      country: 'US',
+      clientName: expect.any(String),
+      name: null,
+    });
     const foreign = await otherOwner.json('POST', '/api/sites', { ...body, clientId: dir.clientId });
     expect(foreign.status).toBe(422);
-    expect((await foreign.json()).errors).toEqual([{ field: 'clientId', message: expect.stringMatching(/no such client/) }]);
+    expect((await foreign.json()).errors).toEqual([
+      { field: 'clientId', message: expect.stringMatching(/no such client/) },
+    ]);
   });
 
   it('filters by client and usage class; a homeowner sees their own sites only', async () => {
-    const byClient = await (await owner.json('GET', `/api/sites?clientId=${dir.clientId}&usageClass=2`)).json();
+    const byClient = await (
+      await owner.json('GET', `/api/sites?clientId=${dir.clientId}&usageClass=2`)
+    ).json();
     expect(byClient.items.map((s: { id: string }) => s.id)).toEqual([dir.siteId]);
     const mine = await (await homeowner.json('GET', '/api/sites')).json();
     expect(mine.items.map((s: { id: string }) => s.id)).toEqual([dir.homeSiteId]);
@@ -143,7 +192,10 @@ describe('sites', () => {
     const otherClient = await insertClient(other.id);
     const refused = await office.json('PATCH', `/api/sites/${siteId}`, { clientId: otherClient });
     expect(refused.status).toBe(422);
-    const moved = await office.json('PATCH', `/api/sites/${siteId}`, { clientId: org.clientId, notes: 'Gate code 4411' });
+    const moved = await office.json('PATCH', `/api/sites/${siteId}`, {
+      clientId: org.clientId,
+      notes: 'Gate code 4411',
+    });
     expect(moved.status).toBe(200);
     expect(await moved.json()).toMatchObject({ clientId: org.clientId, notes: 'Gate code 4411' });
   });
@@ -159,15 +211,32 @@ describe('gates', () => {
       width: { value: 12, unit: 'ft' },
       heightMm: 1830,
       weight: { value: 300, unit: 'lb' },
-      operator: { listed: true, automaticClosing: true, manufacturedOn: '2021-03-01', mounting: 'pad', power: 'mains_ac', model: 'Slider 900' },
+      operator: {
+        listed: true,
+        automaticClosing: true,
+        manufacturedOn: '2021-03-01',
+        mounting: 'pad',
+        power: 'mains_ac',
+        model: 'Slider 900',
+      },
       installedOn: '2021-04-12',
       nextInspectionDue: '2027-04-12',
     });
     expect(res.status).toBe(201);
     const gate = await res.json();
     // 12 ft = 3657.6 mm; 300 lb = 136.08 kg (NIST SP 811 exact factors), stored whole.
-    expect(gate).toMatchObject({ widthMm: 3658, heightMm: 1830, weightKg: 136, installedOn: '2021-04-12', nextInspectionDue: '2027-04-12' });
-    expect(gate.entered).toEqual({ width: { value: 12, unit: 'ft' }, height: { value: 1830, unit: 'mm' }, weight: { value: 300, unit: 'lb' } });
+    expect(gate).toMatchObject({
+      widthMm: 3658,
+      heightMm: 1830,
+      weightKg: 136,
+      installedOn: '2021-04-12',
+      nextInspectionDue: '2027-04-12',
+    });
+    expect(gate.entered).toEqual({
+      width: { value: 12, unit: 'ft' },
+      height: { value: 1830, unit: 'mm' },
+      weight: { value: 300, unit: 'lb' },
+    });
     const patched = await (
       await office.json('PATCH', `/api/gates/${gate.id}`, {
         widthMm: null,
@@ -177,17 +246,31 @@ describe('gates', () => {
     ).json();
     expect(patched).toMatchObject({ widthMm: null, heightMm: 1829, weightKg: 136 });
     // Operator facts merge: the ones not sent stay, null removes one.
-    expect(patched.operator).toEqual({ listed: true, automaticClosing: false, manufacturedOn: '2021-03-01', mounting: 'pad', power: 'mains_ac' });
+    expect(patched.operator).toEqual({
+      listed: true,
+      automaticClosing: false,
+      manufacturedOn: '2021-03-01',
+      mounting: 'pad',
+      power: 'mains_ac',
+    });
     expect(patched.entered).toEqual({ height: { value: 6, unit: 'ft' }, weight: { value: 300, unit: 'lb' } });
   });
 
   it('refuses a dimension sent both ways, or out of bounds, naming the field', async () => {
     const gate = { siteId: dir.siteId, label: 'x', kind: 'swing', leaves: 'single' };
-    const both = await owner.json('POST', '/api/gates', { ...gate, widthMm: 3000, width: { value: 10, unit: 'ft' } });
+    const both = await owner.json('POST', '/api/gates', {
+      ...gate,
+      widthMm: 3000,
+      width: { value: 10, unit: 'ft' },
+    });
     expect(both.status).toBe(422);
-    expect((await both.json()).errors).toEqual([{ field: 'width', message: 'send either widthMm or width, not both' }]);
+    expect((await both.json()).errors).toEqual([
+      { field: 'width', message: 'send either widthMm or width, not both' },
+    ]);
     const stone = await owner.json('POST', '/api/gates', { ...gate, weight: { value: 2, unit: 'stone' } });
-    expect((await stone.json()).errors).toEqual([{ field: 'weight.unit', message: 'must be one of: kg, lb' }]);
+    expect((await stone.json()).errors).toEqual([
+      { field: 'weight.unit', message: 'must be one of: kg, lb' },
+    ]);
     const tooWide = await owner.json('POST', '/api/gates', {
       siteId: dir.siteId,
       label: 'x',
@@ -195,16 +278,32 @@ describe('gates', () => {
       leaves: 'single',
       width: { value: 300, unit: 'm' },
     });
-    expect((await tooWide.json()).errors).toEqual([{ field: 'width', message: expect.stringMatching(/between 100 and 60000 mm/) }]);
+    expect((await tooWide.json()).errors).toEqual([
+      { field: 'width', message: expect.stringMatching(/between 100 and 60000 mm/) },
+    ]);
   });
 
   it('lists by kind, site, client and inspection due date', async () => {
     const siteId = await insertSite(org.id, dir.clientId);
-    const due = await insertGate(org.id, siteId, { kind: 'barrier_arm', leaves: 'single', opening_direction: null, next_inspection_due: '2026-01-15' });
-    await insertGate(org.id, siteId, { kind: 'barrier_arm', leaves: 'single', opening_direction: null, next_inspection_due: '2027-06-01' });
-    const body = await (await owner.json('GET', `/api/gates?siteId=${siteId}&kind=barrier_arm&dueBy=2026-12-31`)).json();
+    const due = await insertGate(org.id, siteId, {
+      kind: 'barrier_arm',
+      leaves: 'single',
+      opening_direction: null,
+      next_inspection_due: '2026-01-15',
+    });
+    await insertGate(org.id, siteId, {
+      kind: 'barrier_arm',
+      leaves: 'single',
+      opening_direction: null,
+      next_inspection_due: '2027-06-01',
+    });
+    const body = await (
+      await owner.json('GET', `/api/gates?siteId=${siteId}&kind=barrier_arm&dueBy=2026-12-31`)
+    ).json();
     expect(body.items.map((g: { id: string }) => g.id)).toEqual([due]);
-    const byClient = await (await owner.json('GET', `/api/gates?clientId=${dir.clientId}&sort=-nextInspectionDue&pageSize=100`)).json();
+    const byClient = await (
+      await owner.json('GET', `/api/gates?clientId=${dir.clientId}&sort=-nextInspectionDue&pageSize=100`)
+    ).json();
     expect(byClient.items.every((g: { clientId: string }) => g.clientId === dir.clientId)).toBe(true);
   });
 
@@ -212,7 +311,9 @@ describe('gates', () => {
     const mine = await (await homeowner.json('GET', '/api/gates')).json();
     expect(mine.items.map((g: { id: string }) => g.id)).toEqual([dir.homeGateId]);
     expect((await homeowner.json('GET', `/api/gates/${dir.gateId}`)).status).toBe(404);
-    expect((await homeowner.json('PATCH', `/api/gates/${dir.homeGateId}`, { label: 'Mine now' })).status).toBe(403);
+    expect(
+      (await homeowner.json('PATCH', `/api/gates/${dir.homeGateId}`, { label: 'Mine now' })).status,
+    ).toBe(403);
   });
 
   it("never lists another organisation's rows", async () => {

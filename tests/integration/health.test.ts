@@ -81,7 +81,12 @@ describe('GET /api/health', () => {
       const server = await startAppServer({
         port: await freePort(),
         quiet: true,
-        env: { ...inject('serverEnv'), SMTP_URL: `smtp://127.0.0.1:${smtpPort}`, OUTBOX_WORKER: 'off', HEALTH_CHECK_INTERVAL_MS: String(intervalMs) },
+        env: {
+          ...inject('serverEnv'),
+          SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
+          OUTBOX_WORKER: 'off',
+          HEALTH_CHECK_INTERVAL_MS: String(intervalMs),
+        },
       });
       try {
         const first = await (await fetch(`${server.url}/api/health`)).json();
@@ -90,7 +95,9 @@ describe('GET /api/health', () => {
         const before = sessions;
         const started = Date.now();
         for (let batch = 0; batch < 10; batch++) {
-          const bodies = await Promise.all(Array.from({ length: 20 }, () => fetch(`${server.url}/api/health`).then((r) => r.json())));
+          const bodies = await Promise.all(
+            Array.from({ length: 20 }, () => fetch(`${server.url}/api/health`).then((r) => r.json())),
+          );
           for (const body of bodies) expect(body.mail.ok).toBe(true);
         }
         const elapsed = Date.now() - started;

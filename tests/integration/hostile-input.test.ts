@@ -5,7 +5,13 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { createOrganisation, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { currentVersion, insertDraft, seedDirectory, snapshotTables, type Directory } from './support/domain';
 
 let org: FixtureOrganisation;
@@ -102,55 +108,90 @@ const sqlish = fc.constantFrom(
 );
 
 describe('hostile input', () => {
-  it('answers random JSON bodies on every write endpoint with 4xx and changes nothing', { timeout: 120_000 }, async () => {
-    const before = await snapshot();
-    for (const endpoint of writeEndpoints()) {
-      await fc.assert(
-        fc.asyncProperty(hostileJson, async (body) => {
-          const res = await owner.fetch(endpoint.path, {
-            method: endpoint.method,
-            headers: { 'content-type': 'application/json', ...(endpoint.headers ?? {}) },
-            body: JSON.stringify(body),
-          });
-          const text = await res.text();
-          expect(res.status, `${endpoint.method} ${endpoint.path} ${JSON.stringify(body).slice(0, 200)} → ${text.slice(0, 300)}`).toBeGreaterThanOrEqual(400);
-          expect(res.status).toBeLessThan(500);
-          expect(text).not.toMatch(/\bat [\w.<>]+ \(.*:\d+:\d+\)/); // never a stack trace
-        }),
-        { numRuns: 15 },
-      );
-    }
-    expect(await snapshot()).toEqual(before);
-  });
-
-  it('answers malformed text and wrong content types with 4xx and changes nothing', { timeout: 60_000 }, async () => {
-    const before = await snapshot();
-    const bodies = fc.oneof(fc.string({ maxLength: 200 }), fc.constantFrom('{', '{"name":', '[1,2', 'null null', '\u0000\u0001'));
-    for (const endpoint of writeEndpoints()) {
-      await fc.assert(
-        fc.asyncProperty(
-          bodies,
-          fc.constantFrom('application/json', 'text/plain', 'application/x-www-form-urlencoded', 'multipart/form-data; boundary=x'),
-          async (body, type) => {
-            const res = await owner.fetch(endpoint.path, { method: endpoint.method, headers: { 'content-type': type, ...(endpoint.headers ?? {}) }, body });
-            await res.arrayBuffer();
-            expect(res.status, `${endpoint.method} ${endpoint.path} as ${type}: ${JSON.stringify(body)}`).toBeGreaterThanOrEqual(400);
+  it(
+    'answers random JSON bodies on every write endpoint with 4xx and changes nothing',
+    { timeout: 120_000 },
+    async () => {
+      const before = await snapshot();
+      for (const endpoint of writeEndpoints()) {
+        await fc.assert(
+          fc.asyncProperty(hostileJson, async (body) => {
+            const res = await owner.fetch(endpoint.path, {
+              method: endpoint.method,
+              headers: { 'content-type': 'application/json', ...(endpoint.headers ?? {}) },
+              body: JSON.stringify(body),
+            });
+            const text = await res.text();
+            expect(
+              res.status,
+              `${endpoint.method} ${endpoint.path} ${JSON.stringify(body).slice(0, 200)} → ${text.slice(0, 300)}`,
+            ).toBeGreaterThanOrEqual(400);
             expect(res.status).toBeLessThan(500);
-          },
-        ),
-        { numRuns: 6 },
+            expect(text).not.toMatch(/\bat [\w.<>]+ \(.*:\d+:\d+\)/); // never a stack trace
+          }),
+          { numRuns: 15 },
+        );
+      }
+      expect(await snapshot()).toEqual(before);
+    },
+  );
+
+  it(
+    'answers malformed text and wrong content types with 4xx and changes nothing',
+    { timeout: 60_000 },
+    async () => {
+      const before = await snapshot();
+      const bodies = fc.oneof(
+        fc.string({ maxLength: 200 }),
+        fc.constantFrom('{', '{"name":', '[1,2', 'null null', '\u0000\u0001'),
       );
-    }
-    expect(await snapshot()).toEqual(before);
-  });
+      for (const endpoint of writeEndpoints()) {
+        await fc.assert(
+          fc.asyncProperty(
+            bodies,
+            fc.constantFrom(
+              'application/json',
+              'text/plain',
+              'application/x-www-form-urlencoded',
+              'multipart/form-data; boundary=x',
+            ),
+            async (body, type) => {
+              const res = await owner.fetch(endpoint.path, {
+                method: endpoint.method,
+                headers: { 'content-type': type, ...(endpoint.headers ?? {}) },
+                body,
+              });
+              await res.arrayBuffer();
+              expect(
+                res.status,
+                `${endpoint.method} ${endpoint.path} as ${type}: ${JSON.stringify(body)}`,
+              ).toBeGreaterThanOrEqual(400);
+              expect(res.status).toBeLessThan(500);
+            },
+          ),
+          { numRuns: 6 },
+        );
+      }
+      expect(await snapshot()).toEqual(before);
+    },
+  );
 
   it('refuses random files on every upload and stores nothing', { timeout: 60_000 }, async () => {
     const counts = async () => ({
-      photos: (await testDb()('assessment_photos').where({ assessment_id: draftId }).count({ n: '*' }).first())?.n,
+      photos: (
+        await testDb()('assessment_photos').where({ assessment_id: draftId }).count({ n: '*' }).first()
+      )?.n,
       traces: (await testDb()('force_traces').where({ assessment_id: draftId }).count({ n: '*' }).first())?.n,
     });
     const before = await counts();
-    const names = fc.constantFrom('x.jpg', 'x.png', '../../etc/passwd', '..%2F..%2Fboot.ini', 'trace.csv', 'report.pdf');
+    const names = fc.constantFrom(
+      'x.jpg',
+      'x.png',
+      '../../etc/passwd',
+      '..%2F..%2Fboot.ini',
+      'trace.csv',
+      'report.pdf',
+    );
     const bytes = fc.uint8Array({ minLength: 0, maxLength: 4096 });
     await fc.assert(
       fc.asyncProperty(bytes, names, async (content, name) => {
@@ -166,7 +207,13 @@ describe('hostile input', () => {
     );
     await fc.assert(
       fc.asyncProperty(bytes, names, async (content, name) => {
-        const query = new URLSearchParams({ itemKey: 'forceTest', location: 'closing_edge', direction: 'closing', gapMm: '300', fileName: name });
+        const query = new URLSearchParams({
+          itemKey: 'forceTest',
+          location: 'closing_edge',
+          direction: 'closing',
+          gapMm: '300',
+          fileName: name,
+        });
         const res = await owner.fetch(`/api/assessments/${draftId}/force-traces?${query}`, {
           method: 'POST',
           headers: { 'content-type': 'text/csv' },

@@ -6,8 +6,22 @@
  */
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { closeTestDb, createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { currentVersion, insertDraft, publishedFamilies, seedDirectory, type Directory } from './support/domain';
+import {
+  closeTestDb,
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  currentVersion,
+  insertDraft,
+  publishedFamilies,
+  seedDirectory,
+  type Directory,
+} from './support/domain';
 
 let org: FixtureOrganisation;
 let dir: Directory;
@@ -19,7 +33,10 @@ beforeAll(async () => {
   org = await createOrganisation('idempotency');
   dir = await seedDirectory(org);
   [family] = (await publishedFamilies()) as [string];
-  [office, auditor] = await Promise.all([signIn(org.office.email, fixturePassword), signIn(org.auditor.email, fixturePassword)]);
+  [office, auditor] = await Promise.all([
+    signIn(org.office.email, fixturePassword),
+    signIn(org.auditor.email, fixturePassword),
+  ]);
 });
 afterAll(async () => {
   await closeTestDb();
@@ -31,7 +48,8 @@ function post(client: TestClient, path: string, body: unknown, key?: string) {
   return client.fetch(path, { method: 'POST', headers, body: JSON.stringify(body) });
 }
 
-const countClients = async (name: string) => Number((await testDb()('clients').where({ organisation_id: org.id, name }).count({ n: '*' }))[0]?.n);
+const countClients = async (name: string) =>
+  Number((await testDb()('clients').where({ organisation_id: org.id, name }).count({ n: '*' }))[0]?.n);
 
 describe('Idempotency-Key on POST /api/clients', () => {
   it('answers a retry with the first response (same status and body, marked as a replay) and creates one row', async () => {
@@ -52,7 +70,9 @@ describe('Idempotency-Key on POST /api/clients', () => {
   it('creates one row when copies with one key arrive at the same time', async () => {
     const name = `Concurrent Client ${randomUUID()}`;
     const key = randomUUID();
-    const answers = await Promise.all(Array.from({ length: 6 }, () => post(office, '/api/clients', { name, kind: 'business' }, key)));
+    const answers = await Promise.all(
+      Array.from({ length: 6 }, () => post(office, '/api/clients', { name, kind: 'business' }, key)),
+    );
     expect(answers.map((a) => a.status)).toEqual(Array(6).fill(201));
     const ids = new Set(await Promise.all(answers.map(async (a) => (await a.json()).id)));
     expect(ids.size).toBe(1);
@@ -74,9 +94,16 @@ describe('Idempotency-Key on POST /api/clients', () => {
 
   it('refuses the same key on another route (the path is part of the request)', async () => {
     const key = randomUUID();
-    expect((await post(office, '/api/clients', { name: `Path ${randomUUID()}`, kind: 'business' }, key)).status).toBe(201);
+    expect(
+      (await post(office, '/api/clients', { name: `Path ${randomUUID()}`, kind: 'business' }, key)).status,
+    ).toBe(201);
     const before = await testDb()('sites').where({ organisation_id: org.id }).count({ n: '*' });
-    const res = await post(office, '/api/sites', { clientId: dir.clientId, addressLine1: '2 Key Lane', city: 'Eastholm', usageClass: 1 }, key);
+    const res = await post(
+      office,
+      '/api/sites',
+      { clientId: dir.clientId, addressLine1: '2 Key Lane', city: 'Eastholm', usageClass: 1 },
+      key,
+    );
     expect(res.status).toBe(422);
     expect(await testDb()('sites').where({ organisation_id: org.id }).count({ n: '*' })).toEqual(before);
   });
@@ -95,7 +122,9 @@ describe('Idempotency-Key on POST /api/clients', () => {
     const key = randomUUID();
     const name = `Expired ${randomUUID()}`;
     expect((await post(office, '/api/clients', { name, kind: 'business' }, key)).status).toBe(201);
-    const stored = await testDb()('idempotency_keys').where({ user_id: org.office.id, key }).first('expires_at', 'created_at');
+    const stored = await testDb()('idempotency_keys')
+      .where({ user_id: org.office.id, key })
+      .first('expires_at', 'created_at');
     expect(new Date(stored.expires_at).getTime() - new Date(stored.created_at).getTime()).toBe(24 * 3600_000);
     await testDb()('idempotency_keys')
       .where({ user_id: org.office.id, key })
@@ -118,7 +147,12 @@ describe('Idempotency-Key on POST /api/clients', () => {
 
   it('refuses a malformed key with 400 naming the header', async () => {
     for (const key of ['x'.repeat(256), 'has space']) {
-      const res = await post(office, '/api/clients', { name: `Bad Key ${randomUUID()}`, kind: 'business' }, key);
+      const res = await post(
+        office,
+        '/api/clients',
+        { name: `Bad Key ${randomUUID()}`, kind: 'business' },
+        key,
+      );
       expect(res.status).toBe(400);
       expect((await res.json()).errors).toEqual([expect.objectContaining({ field: 'Idempotency-Key' })]);
     }
@@ -130,22 +164,41 @@ describe('Idempotency-Key on the other creates', () => {
     {
       path: '/api/sites',
       table: 'sites',
-      body: () => ({ clientId: dir.clientId, addressLine1: `${randomUUID().slice(0, 8)} Retry Road`, city: 'Eastholm', usageClass: 1 }),
+      body: () => ({
+        clientId: dir.clientId,
+        addressLine1: `${randomUUID().slice(0, 8)} Retry Road`,
+        city: 'Eastholm',
+        usageClass: 1,
+      }),
     },
     {
       path: '/api/gates',
       table: 'gates',
-      body: () => ({ siteId: dir.siteId, label: `Retry gate ${randomUUID().slice(0, 8)}`, kind: 'slide', leaves: 'single' }),
+      body: () => ({
+        siteId: dir.siteId,
+        label: `Retry gate ${randomUUID().slice(0, 8)}`,
+        kind: 'slide',
+        leaves: 'single',
+      }),
     },
-    { path: '/api/assessments', table: 'assessments', body: () => ({ gateId: dir.gateId, family, purpose: 'inspection' }) },
+    {
+      path: '/api/assessments',
+      table: 'assessments',
+      body: () => ({ gateId: dir.gateId, family, purpose: 'inspection' }),
+    },
   ] as const;
   for (const c of cases) {
     it(`${c.path}: concurrent copies and a later retry create one row`, async () => {
       const key = randomUUID();
       const body = c.body();
-      const count = async () => Number((await testDb()(c.table).where({ organisation_id: org.id }).count({ n: '*' }))[0]?.n);
+      const count = async () =>
+        Number((await testDb()(c.table).where({ organisation_id: org.id }).count({ n: '*' }))[0]?.n);
       const before = await count();
-      const answers = await Promise.all([post(auditor, c.path, body, key), post(auditor, c.path, body, key), post(auditor, c.path, body, key)]);
+      const answers = await Promise.all([
+        post(auditor, c.path, body, key),
+        post(auditor, c.path, body, key),
+        post(auditor, c.path, body, key),
+      ]);
       expect(answers.map((a) => a.status)).toEqual([201, 201, 201]);
       const retry = await post(auditor, c.path, body, key);
       expect(retry.status).toBe(201);
@@ -160,7 +213,11 @@ describe('Idempotency-Key on the other creates', () => {
 describe('uploads take the key as the device id of the file', () => {
   const csv = [
     'time (s),force (N)',
-    ...Array.from({ length: 3001 }, (_, i) => `${(i / 500).toFixed(3)},${(i < 200 ? i * 1.4 : Math.max(20, 280 - (i - 200) * 0.8)).toFixed(1)}`),
+    ...Array.from(
+      { length: 3001 },
+      (_, i) =>
+        `${(i / 500).toFixed(3)},${(i < 200 ? i * 1.4 : Math.max(20, 280 - (i - 200) * 0.8)).toFixed(1)}`,
+    ),
   ].join('\n');
   const query = 'itemKey=forceTest&location=closing_edge&direction=closing&gapMm=50';
   const upload = (draftId: string, key: string, extra = '') =>
@@ -180,7 +237,9 @@ describe('uploads take the key as the device id of the file', () => {
     expect(again.status).toBe(200);
     expect(again.headers.get('idempotent-replayed')).toBe('true');
     expect((await again.json()).id).toBe((await first.json()).id);
-    expect(await testDb()('force_traces').where({ assessment_id: draftId }).select('client_ref')).toEqual([{ client_ref: key }]);
+    expect(await testDb()('force_traces').where({ assessment_id: draftId }).select('client_ref')).toEqual([
+      { client_ref: key },
+    ]);
   });
 
   it('refuses a key that names another file than clientRef, storing nothing', async () => {
@@ -192,6 +251,8 @@ describe('uploads take the key as the device id of the file', () => {
     const notUuid = await upload(draftId, 'retry-1');
     expect(notUuid.status).toBe(400);
     expect((await notUuid.json()).errors).toEqual([expect.objectContaining({ field: 'Idempotency-Key' })]);
-    expect(await testDb()('force_traces').where({ assessment_id: draftId }).count({ n: '*' })).toEqual([{ n: '0' }]);
+    expect(await testDb()('force_traces').where({ assessment_id: draftId }).count({ n: '*' })).toEqual([
+      { n: '0' },
+    ]);
   });
 });

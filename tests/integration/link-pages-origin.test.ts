@@ -32,7 +32,11 @@ beforeAll(async () => {
   owner = await signIn(org.owner.email, fixturePassword);
 });
 
-const browserForm = { accept: 'text/html,application/xhtml+xml;q=0.9,*/*;q=0.8', 'sec-fetch-mode': 'navigate', 'sec-fetch-dest': 'document' };
+const browserForm = {
+  accept: 'text/html,application/xhtml+xml;q=0.9,*/*;q=0.8',
+  'sec-fetch-mode': 'navigate',
+  'sec-fetch-dest': 'document',
+};
 const opaqueSameOrigin = { origin: 'null', 'sec-fetch-site': 'same-origin' };
 
 async function invitationToken(): Promise<{ email: string; token: string }> {
@@ -47,7 +51,11 @@ function acceptForm(client: TestClient, token: string, headers: Record<string, s
   return client.fetch(`/invite/${token}`, {
     method: 'POST',
     headers: { 'content-type': 'application/x-www-form-urlencoded', ...browserForm, ...headers },
-    body: new URLSearchParams({ name: 'Tamsin Orrery', password: 'orrery-tamsin-pass', confirm: 'orrery-tamsin-pass' }),
+    body: new URLSearchParams({
+      name: 'Tamsin Orrery',
+      password: 'orrery-tamsin-pass',
+      confirm: 'orrery-tamsin-pass',
+    }),
   });
 }
 
@@ -91,7 +99,12 @@ describe('a homeowner sign-in link posted with Origin: null', () => {
     ];
     for (const headers of refused) {
       const client = anonymousClient();
-      const res = await postCredentials(client, 'email-link', { token, callbackUrl: '/' }, { ...browserForm, ...headers });
+      const res = await postCredentials(
+        client,
+        'email-link',
+        { token, callbackUrl: '/' },
+        { ...browserForm, ...headers },
+      );
       expect(res.status, JSON.stringify(headers)).toBe(403);
       expect(res.headers.get('content-type')).toMatch(/^text\/html/);
       const page = await res.text();
@@ -112,14 +125,20 @@ describe('an invitation accepted with Origin: null', () => {
     const res = await acceptForm(anonymousClient(), token, opaqueSameOrigin);
     expect(res.status, await res.clone().text()).toBe(303);
     expect(res.headers.get('location')).toBe('/signin?invited');
-    const user = await testDb()('users').whereRaw('email = ?::citext', [email]).first('organisation_id', 'role', 'name');
+    const user = await testDb()('users')
+      .whereRaw('email = ?::citext', [email])
+      .first('organisation_id', 'role', 'name');
     expect(user).toEqual({ organisation_id: org.id, role: 'auditor', name: 'Tamsin Orrery' });
     expect((await signIn(email, 'orrery-tamsin-pass')).cookie).toBeTruthy();
   });
 
   it('is refused when cross-site, and the invitation stays open', async () => {
     const { email, token } = await invitationToken();
-    const refused: Record<string, string>[] = [{ origin: 'null', 'sec-fetch-site': 'cross-site' }, { origin: 'https://elsewhere.test' }, { origin: 'null' }];
+    const refused: Record<string, string>[] = [
+      { origin: 'null', 'sec-fetch-site': 'cross-site' },
+      { origin: 'https://elsewhere.test' },
+      { origin: 'null' },
+    ];
     for (const headers of refused) {
       const res = await acceptForm(anonymousClient(), token, headers);
       expect(res.status, JSON.stringify(headers)).toBe(403);
@@ -127,7 +146,13 @@ describe('an invitation accepted with Origin: null', () => {
       expect(await res.text()).toMatch(/another site/i);
     }
     expect(await testDb()('users').whereRaw('email = ?::citext', [email]).first('id')).toBeUndefined();
-    expect(await testDb()('invitations').whereRaw('email = ?::citext', [email]).whereNull('accepted_at').whereNull('revoked_at').first('id')).toBeTruthy();
+    expect(
+      await testDb()('invitations')
+        .whereRaw('email = ?::citext', [email])
+        .whereNull('accepted_at')
+        .whereNull('revoked_at')
+        .first('id'),
+    ).toBeTruthy();
   });
 });
 

@@ -7,7 +7,15 @@
  */
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { serverStorage } from './support/archive';
-import { createOrganisation, fixturePassword, requestHomeownerLink, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  requestHomeownerLink,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 
 interface Summary {
   id: string;
@@ -39,7 +47,10 @@ async function caught(to: string, match: (m: Summary) => boolean = () => true): 
 
 beforeAll(async () => {
   [a, b] = await Promise.all([createOrganisation('tenancy-a'), createOrganisation('tenancy-b')]);
-  [ownerA, ownerB] = await Promise.all([signIn(a.owner.email, fixturePassword), signIn(b.owner.email, fixturePassword)]);
+  [ownerA, ownerB] = await Promise.all([
+    signIn(a.owner.email, fixturePassword),
+    signIn(b.owner.email, fixturePassword),
+  ]);
   await requestHomeownerLink(a.homeowner.email);
   await requestHomeownerLink(b.homeowner.email);
   aLink = await caught(a.homeowner.email);
@@ -52,7 +63,9 @@ beforeAll(async () => {
     to_addresses: [b.homeowner.email],
     subject: 'Your signed gate safety report (tenancy test)',
     text_body: 'Your signed report is attached.',
-    attachments: JSON.stringify([{ filename: 'signed-report.pdf', contentType: 'application/pdf', storageKey: stored.key }]),
+    attachments: JSON.stringify([
+      { filename: 'signed-report.pdf', contentType: 'application/pdf', storageKey: stored.key },
+    ]),
   });
   bReport = await caught(b.homeowner.email, (m) => m.attachments.length === 1);
 });
@@ -88,7 +101,12 @@ describe('caught mail', () => {
   });
 
   it("does not open another organisation's mail to an owner who adds that address as a client contact", async () => {
-    await testDb()('clients').insert({ organisation_id: a.id, name: 'Borrowed contact', kind: 'homeowner', contact_email: b.homeowner.email });
+    await testDb()('clients').insert({
+      organisation_id: a.id,
+      name: 'Borrowed contact',
+      kind: 'homeowner',
+      contact_email: b.homeowner.email,
+    });
     expect(await (await ownerA.fetch('/mail')).text()).not.toContain(bLink.id);
     expect((await ownerA.fetch(`/mail/${bLink.id}`)).status).toBe(404);
     expect((await ownerA.fetch(`/mail/${bReport.id}/attachments/0`)).status).toBe(404);

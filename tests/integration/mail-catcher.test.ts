@@ -24,7 +24,9 @@ describe('the local mail catcher', () => {
     expect(message.text.trim()).toBe('Hello from the test');
     expect(message.attachments[0].filename).toBe('report.pdf');
     expect(message.attachments[0].sha256).toBe(createHash('sha256').update(attachment).digest('hex'));
-    const bytes = Buffer.from(await (await fetch(`${catcherUrl}/messages/${summary.id}/attachments/0`)).arrayBuffer());
+    const bytes = Buffer.from(
+      await (await fetch(`${catcherUrl}/messages/${summary.id}/attachments/0`)).arrayBuffer(),
+    );
     expect(bytes.equals(attachment)).toBe(true);
   });
 

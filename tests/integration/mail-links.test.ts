@@ -41,7 +41,14 @@ let channel: string;
 const forgeries: Array<{ name: string; headers: Record<string, string> }> = [
   { name: 'Host', headers: { host: 'attacker.example' } },
   { name: 'X-Forwarded-Host', headers: { 'x-forwarded-host': 'attacker.example' } },
-  { name: 'X-Forwarded-Proto and Host', headers: { 'x-forwarded-proto': 'https', 'x-forwarded-host': 'attacker.example:8443', host: 'attacker.example' } },
+  {
+    name: 'X-Forwarded-Proto and Host',
+    headers: {
+      'x-forwarded-proto': 'https',
+      'x-forwarded-host': 'attacker.example:8443',
+      host: 'attacker.example',
+    },
+  },
 ];
 
 beforeAll(async () => {
@@ -82,7 +89,11 @@ interface RawAnswer {
 }
 
 /** One HTTP request with exactly the headers given (fetch will not forge Host). */
-function raw(base: string, pathname: string, init: { method?: string; headers?: Record<string, string>; body?: string } = {}): Promise<RawAnswer> {
+function raw(
+  base: string,
+  pathname: string,
+  init: { method?: string; headers?: Record<string, string>; body?: string } = {},
+): Promise<RawAnswer> {
   const url = new URL(pathname, base);
   return new Promise((resolve, reject) => {
     const req = http.request(
@@ -96,7 +107,13 @@ function raw(base: string, pathname: string, init: { method?: string; headers?: 
       (res) => {
         const chunks: Buffer[] = [];
         res.on('data', (c: Buffer) => chunks.push(c));
-        res.on('end', () => resolve({ status: res.statusCode ?? 0, headers: res.headers, body: Buffer.concat(chunks).toString('utf8') }));
+        res.on('end', () =>
+          resolve({
+            status: res.statusCode ?? 0,
+            headers: res.headers,
+            body: Buffer.concat(chunks).toString('utf8'),
+          }),
+        );
         res.on('error', reject);
       },
     );
@@ -105,8 +122,18 @@ function raw(base: string, pathname: string, init: { method?: string; headers?: 
   });
 }
 
-function json(base: string, method: string, pathname: string, body: unknown, headers: Record<string, string> = {}) {
-  return raw(base, pathname, { method, headers: { 'content-type': 'application/json', accept: 'application/json', ...headers }, body: JSON.stringify(body) });
+function json(
+  base: string,
+  method: string,
+  pathname: string,
+  body: unknown,
+  headers: Record<string, string> = {},
+) {
+  return raw(base, pathname, {
+    method,
+    headers: { 'content-type': 'application/json', accept: 'application/json', ...headers },
+    body: JSON.stringify(body),
+  });
 }
 
 /**
@@ -127,10 +154,16 @@ interface CaughtMail {
 async function caughtAt(catcherUrl: string, to: string): Promise<CaughtMail[]> {
   const list = (await (await fetch(`${catcherUrl}/messages`)).json()) as Array<{ id: string; to: string[] }>;
   const mine = list.filter((m) => m.to.some((t) => t.toLowerCase() === to.toLowerCase()));
-  return Promise.all(mine.map(async (m) => (await (await fetch(`${catcherUrl}/messages/${m.id}`)).json()) as CaughtMail));
+  return Promise.all(
+    mine.map(async (m) => (await (await fetch(`${catcherUrl}/messages/${m.id}`)).json()) as CaughtMail),
+  );
 }
 
-async function until<T>(what: string, probe: () => Promise<T | undefined | false>, timeoutMs = 20_000): Promise<T> {
+async function until<T>(
+  what: string,
+  probe: () => Promise<T | undefined | false>,
+  timeoutMs = 20_000,
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const value = await probe();
@@ -160,7 +193,13 @@ describe('mail while SMTP is unreachable', () => {
   it('answers an invitation 201 and keeps its mail queued in the outbox', async () => {
     invitee = newAddress('queued-invitee');
     const cookie = await staffCookie(org.owner.email);
-    const res = await json(bare.url, 'POST', '/api/invitations', { email: invitee, role: 'auditor' }, { cookie });
+    const res = await json(
+      bare.url,
+      'POST',
+      '/api/invitations',
+      { email: invitee, role: 'auditor' },
+      { cookie },
+    );
     expect(res.status, res.body).toBe(201);
     const row = await until('a retried invitation message', async () => {
       const r = await testDb()('outbox_messages')
@@ -171,7 +210,12 @@ describe('mail while SMTP is unreachable', () => {
     });
     expect(row).toMatchObject({ kind: 'invitation', organisation_id: org.id });
     expect(['queued', 'sending']).toContain(row.status);
-    expect(await testDb()('invitations').whereRaw('email = ?::citext', [invitee]).whereNull('revoked_at').count({ n: '*' })).toEqual([{ n: '1' }]);
+    expect(
+      await testDb()('invitations')
+        .whereRaw('email = ?::citext', [invitee])
+        .whereNull('revoked_at')
+        .count({ n: '*' }),
+    ).toEqual([{ n: '1' }]);
   });
 
   it('queues a homeowner sign-in link instead of losing it', async () => {
@@ -200,12 +244,17 @@ describe('mail while SMTP is unreachable', () => {
     const invite = invitation.links.find((u) => u.pathname.startsWith('/invite/'))!;
     expect(invite.origin).toBe(bare.url);
     const token = invite.pathname.split('/').pop();
-    const accepted = await json(bare.url, 'POST', `/api/invitations/${token}/accept`, { name: 'Queued Invitee', password: 'queued-invitee-pass' });
+    const accepted = await json(bare.url, 'POST', `/api/invitations/${token}/accept`, {
+      name: 'Queued Invitee',
+      password: 'queued-invitee-pass',
+    });
     expect(accepted.status, accepted.body).toBe(201);
 
     const signInLink = link.links.find((u) => u.pathname === '/signin/link')!;
     expect(signInLink.origin).toBe(bare.url);
-    const rows = await testDb()('outbox_messages').where({ channel }).select('status', 'text_body', 'html_body');
+    const rows = await testDb()('outbox_messages')
+      .where({ channel })
+      .select('status', 'text_body', 'html_body');
     expect(rows.map((r) => r.status)).toEqual(['sent', 'sent']);
     // Delivered: the database keeps no usable token (only its hash).
     for (const row of rows) {
@@ -219,18 +268,35 @@ describe('mail while SMTP is unreachable', () => {
 describe('links in e-mails ignore the host a request claims', () => {
   /** The servers and the origin their links must use: the configured one, or the bare server's own address. */
   const servers = () => [
-    { name: 'with PUBLIC_URL', base: inject('baseUrl'), catcherUrl: inject('catcherUrl'), expected: inject('serverEnv').PUBLIC_URL },
-    { name: 'without PUBLIC_URL', base: bare.url, catcherUrl: `http://127.0.0.1:${httpPort}`, expected: bare.url },
+    {
+      name: 'with PUBLIC_URL',
+      base: inject('baseUrl'),
+      catcherUrl: inject('catcherUrl'),
+      expected: inject('serverEnv').PUBLIC_URL,
+    },
+    {
+      name: 'without PUBLIC_URL',
+      base: bare.url,
+      catcherUrl: `http://127.0.0.1:${httpPort}`,
+      expected: bare.url,
+    },
   ];
 
   it('in a homeowner sign-in link, whose token signs in on the real server', async () => {
     for (const server of servers()) {
       for (const forged of forgeries) {
         const home = await createOrganisation('forged-link');
-        const res = await json(server.base, 'POST', '/api/auth/email-link', { email: home.homeowner.email }, forged.headers);
+        const res = await json(
+          server.base,
+          'POST',
+          '/api/auth/email-link',
+          { email: home.homeowner.email },
+          forged.headers,
+        );
         expect(res.status, `${server.name}, ${forged.name}: ${res.body}`).toBe(202);
         const { links } = await onlyMailTo(server.catcherUrl, home.homeowner.email);
-        for (const link of links) expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
+        for (const link of links)
+          expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
         const link = links.find((u) => u.pathname === '/signin/link')!;
         // The token works where the link points.
         const followed = await followHomeownerLink(`${inject('baseUrl')}${link.pathname}${link.search}`);
@@ -250,7 +316,8 @@ describe('links in e-mails ignore the host a request claims', () => {
         });
         expect(res.status, `${server.name}, ${forged.name}`).toBe(200);
         const { links } = await onlyMailTo(server.catcherUrl, staff.office.email);
-        for (const link of links) expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
+        for (const link of links)
+          expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
         expect(links.some((u) => u.pathname === '/signin/reset')).toBe(true);
       }
     }
@@ -261,10 +328,17 @@ describe('links in e-mails ignore the host a request claims', () => {
       const cookie = await staffCookie(org.owner.email);
       for (const forged of forgeries) {
         const email = newAddress('forged-invitee');
-        const res = await json(server.base, 'POST', '/api/invitations', { email, role: 'office' }, { cookie, ...forged.headers });
+        const res = await json(
+          server.base,
+          'POST',
+          '/api/invitations',
+          { email, role: 'office' },
+          { cookie, ...forged.headers },
+        );
         expect(res.status, `${server.name}, ${forged.name}: ${res.body}`).toBe(201);
         const { links } = await onlyMailTo(server.catcherUrl, email);
-        for (const link of links) expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
+        for (const link of links)
+          expect(link.origin, `${server.name}, forged ${forged.name}`).toBe(server.expected);
       }
     }
   });
@@ -275,14 +349,25 @@ describe('links in e-mails ignore the host a request claims', () => {
     for (const forged of forgeries) {
       const client = newAddress('forged-signer');
       const [clientRow] = await testDb()('clients')
-        .insert({ organisation_id: org.id, name: `Signer ${client}`, kind: 'homeowner', contact_email: client })
+        .insert({
+          organisation_id: org.id,
+          name: `Signer ${client}`,
+          kind: 'homeowner',
+          contact_email: client,
+        })
         .returning('id');
       const seeded = await seedScoredAssessment(
         testDb(),
         { id: org.id, auditorId: org.auditor.id, clientId: clientRow.id },
         { dataDir: inject('dataDir'), photos: 0, findings: 2 },
       );
-      const res = await json(server.base, 'POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {}, { cookie, ...forged.headers });
+      const res = await json(
+        server.base,
+        'POST',
+        `/api/assessments/${seeded.assessmentId}/send-for-signature`,
+        {},
+        { cookie, ...forged.headers },
+      );
       expect(res.status, `${forged.name}: ${res.body}`).toBe(202);
       const { links } = await onlyMailTo(server.catcherUrl, client);
       expect(links.some((u) => u.pathname.startsWith('/sign/'))).toBe(true);
@@ -297,7 +382,13 @@ describe('links in e-mails ignore the host a request claims', () => {
       const siteId = await insertSite(due.id, due.clientId);
       await insertGate(due.id, siteId, { next_inspection_due: new Date().toISOString().slice(0, 10) });
       const cookie = await staffCookie(due.office.email);
-      const res = await json(server.base, 'POST', '/api/archive/reinspection/reminders', {}, { cookie, ...forged.headers });
+      const res = await json(
+        server.base,
+        'POST',
+        '/api/archive/reinspection/reminders',
+        {},
+        { cookie, ...forged.headers },
+      );
       expect(res.status, `${forged.name}: ${res.body}`).toBe(202);
       const { links } = await onlyMailTo(server.catcherUrl, due.office.email);
       expect(links.some((u) => u.pathname === '/archive/reinspection')).toBe(true);

@@ -11,7 +11,13 @@ import S3rver from 's3rver';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer, type RunningServer } from '../../src/cli/services';
-import { createOrganisation, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { currentVersion, insertDraft, seedDirectory } from './support/domain';
 
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-two-'));
@@ -53,7 +59,13 @@ beforeAll(async () => {
   };
   for (const name of ['a', 'b']) {
     // Each instance has its own local folder: anything shared must go through PostgreSQL or S3.
-    servers.push(await startAppServer({ port: await freePort(), quiet: true, env: { ...shared, LATCHWELL_DATA_DIR: path.join(tmp, name) } }));
+    servers.push(
+      await startAppServer({
+        port: await freePort(),
+        quiet: true,
+        env: { ...shared, LATCHWELL_DATA_DIR: path.join(tmp, name) },
+      }),
+    );
   }
   org = await createOrganisation('two-instances');
   auditorOnA = await signIn(org.auditor.email, org.auditor.password!);
@@ -112,7 +124,9 @@ describe('two app instances behind one load balancer', () => {
     const dir = await seedDirectory(org);
     const version = await currentVersion('north-american-gate');
     const id = await insertDraft(org.id, dir.gateId, org.auditor.id, version.id);
-    const jpeg = await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 200, g: 120, b: 30 } } })
+    const jpeg = await sharp({
+      create: { width: 64, height: 48, channels: 3, background: { r: 200, g: 120, b: 30 } },
+    })
       .jpeg()
       .toBuffer();
     const form = new FormData();
@@ -122,7 +136,9 @@ describe('two app instances behind one load balancer', () => {
     expect(uploaded.status, await uploaded.clone().text()).toBe(201);
     const photo = await uploaded.json();
     const listed = await (await onB(auditorOnA, `/api/assessments/${id}/photos`)).json();
-    const item = (Array.isArray(listed) ? listed : listed.items).find((p: { id: string }) => p.id === photo.id);
+    const item = (Array.isArray(listed) ? listed : listed.items).find(
+      (p: { id: string }) => p.id === photo.id,
+    );
     expect(item).toBeDefined();
     const url: string = item.thumbnailUrl ?? item.urls?.thumbnail ?? item.displayUrl ?? item.urls?.display;
     expect(url).toBeTruthy();
@@ -132,39 +148,49 @@ describe('two app instances behind one load balancer', () => {
     expect((await served.arrayBuffer()).byteLength).toBeGreaterThan(100);
   });
 
-  it('sends each outbox message exactly once while both instances run their workers', { timeout: 60_000 }, async () => {
-    const recipient = `once.${Date.now()}@example.test`;
-    const count = 24;
-    await testDb()('outbox_messages').insert(
-      Array.from({ length: count }, (_, i) => ({
-        organisation_id: org.id,
-        kind: 'test_message',
-        to_addresses: [recipient],
-        subject: `exactly once #${i}`,
-        text_body: `message ${i}`,
-      })),
-    );
-    // Wake both workers (each starts on the first request its process handles).
-    await Promise.all(servers.map((s) => fetch(`${s.url}/api/health`)));
-    const deadline = Date.now() + 45_000;
-    let sent = 0;
-    while (Date.now() < deadline) {
-      const row = await testDb()('outbox_messages').where({ organisation_id: org.id, kind: 'test_message', status: 'sent' }).count({ n: '*' }).first();
-      sent = Number(row?.n);
-      if (sent === count) break;
-      await new Promise((r) => setTimeout(r, 200));
-    }
-    const unsent = await testDb()('outbox_messages')
-      .where({ organisation_id: org.id, kind: 'test_message' })
-      .whereNot({ status: 'sent' })
-      .select('status', 'attempts', 'last_error');
-    expect(sent, JSON.stringify(unsent.slice(0, 3))).toBe(count);
-    const caught = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as Array<{ to: string[]; subject: string }>;
-    const mine = caught
-      .filter((m) => m.to.includes(recipient))
-      .map((m) => m.subject)
-      .sort();
-    expect(mine).toHaveLength(count);
-    expect(new Set(mine).size).toBe(count);
-  });
+  it(
+    'sends each outbox message exactly once while both instances run their workers',
+    { timeout: 60_000 },
+    async () => {
+      const recipient = `once.${Date.now()}@example.test`;
+      const count = 24;
+      await testDb()('outbox_messages').insert(
+        Array.from({ length: count }, (_, i) => ({
+          organisation_id: org.id,
+          kind: 'test_message',
+          to_addresses: [recipient],
+          subject: `exactly once #${i}`,
+          text_body: `message ${i}`,
+        })),
+      );
+      // Wake both workers (each starts on the first request its process handles).
+      await Promise.all(servers.map((s) => fetch(`${s.url}/api/health`)));
+      const deadline = Date.now() + 45_000;
+      let sent = 0;
+      while (Date.now() < deadline) {
+        const row = await testDb()('outbox_messages')
+          .where({ organisation_id: org.id, kind: 'test_message', status: 'sent' })
+          .count({ n: '*' })
+          .first();
+        sent = Number(row?.n);
+        if (sent === count) break;
+        await new Promise((r) => setTimeout(r, 200));
+      }
+      const unsent = await testDb()('outbox_messages')
+        .where({ organisation_id: org.id, kind: 'test_message' })
+        .whereNot({ status: 'sent' })
+        .select('status', 'attempts', 'last_error');
+      expect(sent, JSON.stringify(unsent.slice(0, 3))).toBe(count);
+      const caught = (await (await fetch(`${inject('catcherUrl')}/messages`)).json()) as Array<{
+        to: string[];
+        subject: string;
+      }>;
+      const mine = caught
+        .filter((m) => m.to.includes(recipient))
+        .map((m) => m.subject)
+        .sort();
+      expect(mine).toHaveLength(count);
+      expect(new Set(mine).size).toBe(count);
+    },
+  );
 });

@@ -14,7 +14,12 @@ import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, projectRoot, startAppServer, type RunningServer } from '../../src/cli/services';
 import { startMailCatcher, type RunningCatcher } from '../../src/lib/server/mail/catcher';
-import { seedOrganisation, seedScoredAssessment, type MinimalOrganisation, type SeededAssessment } from './support/signing-seed';
+import {
+  seedOrganisation,
+  seedScoredAssessment,
+  type MinimalOrganisation,
+  type SeededAssessment,
+} from './support/signing-seed';
 
 let adminUrl: string;
 let databaseUrl: string;
@@ -41,7 +46,12 @@ beforeAll(async () => {
   // Knex loads the .ts migrations with Node's own import(), which a vitest worker cannot serve: migrate in a tsx child.
   const migrated = spawnSync(
     process.execPath,
-    ['--import', 'tsx', '-e', `import('./src/cli/migrate.ts').then((m) => m.migrateLatest(${JSON.stringify(databaseUrl)}))`],
+    [
+      '--import',
+      'tsx',
+      '-e',
+      `import('./src/cli/migrate.ts').then((m) => m.migrateLatest(${JSON.stringify(databaseUrl)}))`,
+    ],
     {
       cwd: projectRoot,
       encoding: 'utf8',
@@ -83,7 +93,11 @@ afterAll(async () => {
 });
 
 /** Signs in against the second server exactly as a browser would (CSRF cookie, credentials callback). */
-async function signInAt(baseUrl: string, email: string, password: string): Promise<(p: string, init?: RequestInit) => Promise<Response>> {
+async function signInAt(
+  baseUrl: string,
+  email: string,
+  password: string,
+): Promise<(p: string, init?: RequestInit) => Promise<Response>> {
   const jar = new Map<string, string>();
   const send = async (p: string, init: RequestInit = {}) => {
     const headers = new Headers(init.headers);
@@ -97,13 +111,16 @@ async function signInAt(baseUrl: string, email: string, password: string): Promi
     }
     return res;
   };
-  const { csrfToken } = (await (await send('/api/auth/csrf', { headers: { accept: 'application/json' } })).json()) as { csrfToken: string };
+  const { csrfToken } = (await (
+    await send('/api/auth/csrf', { headers: { accept: 'application/json' } })
+  ).json()) as { csrfToken: string };
   await send('/api/auth/callback/credentials', {
     method: 'POST',
     headers: { 'content-type': 'application/x-www-form-urlencoded' },
     body: new URLSearchParams({ email, password, csrfToken, callbackUrl: '/' }),
   });
-  if (![...jar.keys()].some((k) => k.includes('session-token'))) throw new Error(`could not sign ${email} in on the second server`);
+  if (![...jar.keys()].some((k) => k.includes('session-token')))
+    throw new Error(`could not sign ${email} in on the second server`);
   return send;
 }
 
@@ -114,7 +131,11 @@ async function messages(assessmentId: string) {
     .select('id', 'kind', 'status', 'attempts', 'last_error', 'next_attempt_at', 'to_addresses');
 }
 
-async function until<T>(what: string, probe: () => Promise<T | undefined | false>, timeoutMs = 20_000): Promise<T> {
+async function until<T>(
+  what: string,
+  probe: () => Promise<T | undefined | false>,
+  timeoutMs = 20_000,
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const value = await probe();
@@ -129,7 +150,11 @@ describe('the outbox while SMTP is down', () => {
   let send: Awaited<ReturnType<typeof signInAt>>;
 
   it('keeps the message queued, retrying with back-off, and the API shows it as queued', async () => {
-    assessment = await seedScoredAssessment(db, { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir, photos: 0, findings: 6 });
+    assessment = await seedScoredAssessment(
+      db,
+      { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
+      { dataDir, photos: 0, findings: 6 },
+    );
     send = await signInAt(server.url, org.office.email, org.password);
     const res = await send(`/api/assessments/${assessment.assessmentId}/send-for-signature`, {
       method: 'POST',
@@ -160,7 +185,11 @@ describe('the outbox while SMTP is down', () => {
   it('delivers the queued message once SMTP comes back, and nothing is lost or sent twice', async () => {
     catcher = await startMailCatcher({ dir: path.join(dataDir, 'mail'), smtpPort, httpPort });
     const caught = await until('the mail to arrive', async () => {
-      const list = (await (await fetch(`http://127.0.0.1:${httpPort}/messages`)).json()) as Array<{ id: string; to: string[]; subject: string }>;
+      const list = (await (await fetch(`http://127.0.0.1:${httpPort}/messages`)).json()) as Array<{
+        id: string;
+        to: string[];
+        subject: string;
+      }>;
       return list.length ? list : undefined;
     });
     expect(caught).toHaveLength(1);
@@ -174,10 +203,14 @@ describe('the outbox while SMTP is down', () => {
     const status = await (await send(`/api/assessments/${assessment.assessmentId}/signing`)).json();
     expect(status.messages[0].status).toBe('sent');
     expect(status.messages[0].sentAt).toBeTruthy();
-    expect(await (await send(`/assessments/${assessment.assessmentId}/report`)).text()).toContain('data-message-status="sent"');
+    expect(await (await send(`/assessments/${assessment.assessmentId}/report`)).text()).toContain(
+      'data-message-status="sent"',
+    );
     // Still one message after a few more polls.
     await new Promise((r) => setTimeout(r, 800));
-    expect(((await (await fetch(`http://127.0.0.1:${httpPort}/messages`)).json()) as unknown[]).length).toBe(1);
+    expect(((await (await fetch(`http://127.0.0.1:${httpPort}/messages`)).json()) as unknown[]).length).toBe(
+      1,
+    );
   });
 
   it('marks a message failed after the last attempt and keeps it for the record', async () => {
@@ -190,7 +223,9 @@ describe('the outbox while SMTP is down', () => {
           subject: 'Bound to fail',
           text_body: 'x',
           attempts: 9,
-          attachments: JSON.stringify([{ filename: 'gone.pdf', contentType: 'application/pdf', storageKey: 'f'.repeat(64) }]),
+          attachments: JSON.stringify([
+            { filename: 'gone.pdf', contentType: 'application/pdf', storageKey: 'f'.repeat(64) },
+          ]),
         })
         .returning('id');
       return row.id as string;

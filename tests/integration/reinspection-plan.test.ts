@@ -12,13 +12,43 @@ import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
 import type { DueGate } from '../../src/lib/server/reinspection';
 import { formatCalendarDate } from '../../src/lib/vocabulary';
-import { createPrng, sampleDocuments, sampleGate, type SampleDocuments, type SampleGate } from '../support/archive-samples';
-import { caughtMailIds, createOrganisation, fixturePassword, signIn, testDb, waitForMail, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { addClient, addGate, addSite, expectJson, fileAssessment, publishedVersion, serverStorage, type PublishedVersion } from './support/archive';
+import {
+  createPrng,
+  sampleDocuments,
+  sampleGate,
+  type SampleDocuments,
+  type SampleGate,
+} from '../support/archive-samples';
+import {
+  caughtMailIds,
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  waitForMail,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  addClient,
+  addGate,
+  addSite,
+  expectJson,
+  fileAssessment,
+  publishedVersion,
+  serverStorage,
+  type PublishedVersion,
+} from './support/archive';
 
 /** The plan as the shipped 2026.2 file states it (read, not copied, so a changed file changes the test). */
-const planFile = JSON.parse(readFileSync(path.join(process.cwd(), 'rulesets/north-american-gate/2026.2.json'), 'utf8')) as {
-  reinspection: { clearAfterDays: Record<string, number>; remedyAfterDays: Record<string, number>; withdraw: string };
+const planFile = JSON.parse(
+  readFileSync(path.join(process.cwd(), 'rulesets/north-american-gate/2026.2.json'), 'utf8'),
+) as {
+  reinspection: {
+    clearAfterDays: Record<string, number>;
+    remedyAfterDays: Record<string, number>;
+    withdraw: string;
+  };
 };
 // common practice, no source: a home (usage class 1) clear yearly, to remedy within three months.
 const CLEAR_CLASS_1_DAYS = planFile.reinspection.clearAfterDays['1']!;
@@ -50,12 +80,26 @@ const addMonths = (day: string, months: number) => {
 };
 
 /** Sample documents that the real engine scores to `verdict` for this gate (seeded search). */
-function documentsScoring(verdict: 'clear' | 'remedy' | 'withdraw', version: PublishedVersion, gate: SampleGate, usageClass: number): SampleDocuments {
-  const diligences = verdict === 'clear' ? [1, 0.99, 0.97] : verdict === 'remedy' ? [0.97, 0.93, 0.9, 0.85] : [0.6, 0.4, 0.2];
+function documentsScoring(
+  verdict: 'clear' | 'remedy' | 'withdraw',
+  version: PublishedVersion,
+  gate: SampleGate,
+  usageClass: number,
+): SampleDocuments {
+  const diligences =
+    verdict === 'clear' ? [1, 0.99, 0.97] : verdict === 'remedy' ? [0.97, 0.93, 0.9, 0.85] : [0.6, 0.4, 0.2];
   for (let seed = 1; seed < 400; seed++) {
     for (const diligence of diligences) {
-      const documents = sampleDocuments(createPrng(seed * 31 + Math.round(diligence * 100)), version.loaded.version, diligence);
-      const built = buildEngineInput({ ...gate, usageClass } as never, documents as never, version.loaded.version.questions);
+      const documents = sampleDocuments(
+        createPrng(seed * 31 + Math.round(diligence * 100)),
+        version.loaded.version,
+        diligence,
+      );
+      const built = buildEngineInput(
+        { ...gate, usageClass } as never,
+        documents as never,
+        version.loaded.version.questions,
+      );
       if (built.ok && scoreParsed(built.value, version.loaded).verdict === verdict) return documents;
     }
   }
@@ -64,7 +108,9 @@ function documentsScoring(verdict: 'clear' | 'remedy' | 'withdraw', version: Pub
 
 beforeAll(async () => {
   org = await createOrganisation('reinspection-plan');
-  await testDb()('organisations').where({ id: org.id }).update({ remind_clients: true, reinspection_months: ORG_MONTHS });
+  await testDb()('organisations')
+    .where({ id: org.id })
+    .update({ remind_clients: true, reinspection_months: ORG_MONTHS });
   office = await signIn(org.office.email, fixturePassword);
   const current = await publishedVersion('north-american-gate', '2026.2');
   const older = await publishedVersion('north-american-gate', '2026.1');
@@ -105,12 +151,16 @@ beforeAll(async () => {
   // Scored under a version without a plan: the organisation's months, due on this month's 15th.
   await file('Older', older, 'clear', fifteenth(-ORG_MONTHS));
   // Withdrawn, then the office booked the re-visit on the gate: that date wins.
-  await file('Booked', current, 'withdraw', todayUtc() - 40 * dayMs, { next_inspection_due: isoDay(todayUtc() + 20 * dayMs) });
+  await file('Booked', current, 'withdraw', todayUtc() - 40 * dayMs, {
+    next_inspection_due: isoDay(todayUtc() + 20 * dayMs),
+  });
 });
 
 describe('re-inspection from the result plan', () => {
   it('dates a clear class I gate visit + the clear days, a remedy gate visit + the remedy days, and keeps the months for older results', async () => {
-    const { gates: due } = await expectJson<{ gates: DueGate[] }>(await office.fetch('/api/archive/reinspection?within=730'));
+    const { gates: due } = await expectJson<{ gates: DueGate[] }>(
+      await office.fetch('/api/archive/reinspection?within=730'),
+    );
     const byId = new Map(due.map((g) => [g.gateId, g]));
     expect(byId.get(gates.Clear!)).toMatchObject({
       source: 'result',
@@ -143,7 +193,9 @@ describe('re-inspection from the result plan', () => {
 
   it('lists a withdrawn gate as awaiting fixes, with no date, first and in any window', async () => {
     for (const within of [0, 30, 730]) {
-      const { gates: due } = await expectJson<{ gates: DueGate[] }>(await office.fetch(`/api/archive/reinspection?within=${within}`));
+      const { gates: due } = await expectJson<{ gates: DueGate[] }>(
+        await office.fetch(`/api/archive/reinspection?within=${within}`),
+      );
       expect(due[0]).toMatchObject({
         gateId: gates.Withdrawn,
         state: 'awaiting_fixes',
@@ -154,7 +206,9 @@ describe('re-inspection from the result plan', () => {
         lastSignedVisit: visits.Withdrawn,
       });
     }
-    const { gates: none } = await expectJson<{ gates: DueGate[] }>(await office.fetch('/api/archive/reinspection?within=0'));
+    const { gates: none } = await expectJson<{ gates: DueGate[] }>(
+      await office.fetch('/api/archive/reinspection?within=0'),
+    );
     expect(none.map((g) => g.gateId)).not.toContain(gates.Clear);
 
     const page = await (await office.fetch('/archive/reinspection')).text();
@@ -165,27 +219,38 @@ describe('re-inspection from the result plan', () => {
     expect(gatePage).toContain('Awaiting fixes');
     expect(gatePage).not.toContain(`/api/archive/gates/${gates.Withdrawn}/reinspection.ics`);
     const clearPage = await (await office.fetch(`/archive/gates/${gates.Clear}`)).text();
-    expect(clearPage).toContain(`${CLEAR_CLASS_1_DAYS} days after the last signed visit (${formatCalendarDate(visits.Clear)})`);
+    expect(clearPage).toContain(
+      `${CLEAR_CLASS_1_DAYS} days after the last signed visit (${formatCalendarDate(visits.Clear)})`,
+    );
   });
 
   it('gives no calendar file for a gate awaiting fixes and the plan date for the others', async () => {
     const refused = await office.fetch(`/api/archive/gates/${gates.Withdrawn}/reinspection.ics`);
     expect(refused.status).toBe(409);
     expect(refused.headers.get('content-type')).toContain('application/problem+json');
-    expect(((await refused.json()) as { detail: string }).detail).toContain('re-visit when the fixes are reported');
+    expect(((await refused.json()) as { detail: string }).detail).toContain(
+      're-visit when the fixes are reported',
+    );
     const ics = await (await office.fetch(`/api/archive/gates/${gates.Remedy}/reinspection.ics`)).text();
-    expect(ics).toContain(`DTSTART;VALUE=DATE:${addDays(visits.Remedy!, REMEDY_CLASS_1_DAYS).replaceAll('-', '')}\r\n`);
+    expect(ics).toContain(
+      `DTSTART;VALUE=DATE:${addDays(visits.Remedy!, REMEDY_CLASS_1_DAYS).replaceAll('-', '')}\r\n`,
+    );
   });
 
   it('reminds the office and the client of a gate awaiting fixes in words, once, with no calendar entry for it', async () => {
-    const [seenOffice, seenClient] = await Promise.all([caughtMailIds(org.office.email), caughtMailIds(clientEmail)]);
+    const [seenOffice, seenClient] = await Promise.all([
+      caughtMailIds(org.office.email),
+      caughtMailIds(clientEmail),
+    ]);
     const first = await expectJson<{ officeGates: number; clientMessages: number; alreadyReminded: number }>(
       await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }),
       202,
     );
     // Withdrawn, Remedy (overdue), Clear (25 days), Older (this month's 15th), Booked (20 days).
     expect(first).toMatchObject({ officeGates: 5, clientMessages: 1, alreadyReminded: 0 });
-    const officeRow = await testDb()('outbox_messages').where({ organisation_id: org.id, kind: 'reinspection_reminder' }).first('attachments');
+    const officeRow = await testDb()('outbox_messages')
+      .where({ organisation_id: org.id, kind: 'reinspection_reminder' })
+      .first('attachments');
     const calendar = (await serverStorage().get(officeRow.attachments[0].storageKey))!.toString('utf8');
     expect(calendar).toContain(`UID:reinspection-${gates.Clear}-`);
     expect(calendar).toContain(`UID:reinspection-${gates.Booked}-`);
@@ -197,9 +262,14 @@ describe('re-inspection from the result plan', () => {
       `Withdrawn gate, 9 Lantern Row, Saltmere (Saltmere Lodge): withdrawn from service on ${formatCalendarDate(visits.Withdrawn)}, re-visit when the fixes are reported`,
     );
     const clientMail = await waitForMail(clientEmail, seenClient, 15_000);
-    expect(clientMail.text).toContain('Withdrawn gate, 9 Lantern Row, Saltmere: re-visit when the fixes are reported');
+    expect(clientMail.text).toContain(
+      'Withdrawn gate, 9 Lantern Row, Saltmere: re-visit when the fixes are reported',
+    );
 
-    const second = await expectJson(await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }), 202);
+    const second = await expectJson(
+      await office.fetch('/api/archive/reinspection/reminders', { method: 'POST' }),
+      202,
+    );
     expect(second).toEqual({ officeGates: 0, clientMessages: 0, alreadyReminded: 5 });
     const keyed = await testDb()('reinspection_reminders')
       .where({ gate_id: gates.Withdrawn, recipient: 'office' })

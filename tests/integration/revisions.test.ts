@@ -4,8 +4,22 @@
  * Discarding a draft revision puts the original back to signed, with an audit event.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { closeTestDb, createOrganisation, fixturePassword, signIn, testDb, type FixtureOrganisation, type TestClient } from './support/fixtures';
-import { currentVersion, insertDraft, publishedFamilies, seedDirectory, type Directory } from './support/domain';
+import {
+  closeTestDb,
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
+import {
+  currentVersion,
+  insertDraft,
+  publishedFamilies,
+  seedDirectory,
+  type Directory,
+} from './support/domain';
 
 let org: FixtureOrganisation;
 let dir: Directory;
@@ -17,7 +31,9 @@ beforeAll(async () => {
   dir = await seedDirectory(org);
   const [family] = await publishedFamilies();
   versionId = (await currentVersion(family as string)).id;
-  const [owner, office, auditor, auditor2] = await Promise.all([org.owner, org.office, org.auditor, org.auditor2].map((p) => signIn(p.email, fixturePassword)));
+  const [owner, office, auditor, auditor2] = await Promise.all(
+    [org.owner, org.office, org.auditor, org.auditor2].map((p) => signIn(p.email, fixturePassword)),
+  );
   clients = { owner, office, auditor, auditor2 };
 });
 afterAll(async () => {
@@ -45,7 +61,9 @@ describe('starting a revision of a signed report', () => {
     expect(res.status).toBe(403);
     expect(res.headers.get('content-type')).toMatch(/problem\+json/);
     expect(await statusOf(id)).toBe('signed');
-    expect(await testDb()('assessments').where({ supersedes_id: id }).count({ n: '*' })).toEqual([{ n: '0' }]);
+    expect(await testDb()('assessments').where({ supersedes_id: id }).count({ n: '*' })).toEqual([
+      { n: '0' },
+    ]);
   });
 
   for (const who of ['owner', 'office', 'auditor'] as const) {
@@ -71,7 +89,12 @@ describe('discarding a draft revision', () => {
     const events = await testDb()('audit_events')
       .where({ organisation_id: org.id, action: 'assessment.revision_discarded', entity_id: id })
       .select('actor_user_id', 'detail');
-    expect(events).toEqual([{ actor_user_id: org.auditor.id, detail: { discardedRevisionId: revision.id, restoredStatus: 'signed' } }]);
+    expect(events).toEqual([
+      {
+        actor_user_id: org.auditor.id,
+        detail: { discardedRevisionId: revision.id, restoredStatus: 'signed' },
+      },
+    ]);
     // The restored report can be revised again.
     expect((await clients.office.json('POST', `/api/assessments/${id}/revise`, {})).status).toBe(201);
   });
@@ -87,7 +110,9 @@ describe('discarding a draft revision', () => {
   it('still refuses to turn a superseded report back to signed while its revision exists (database guard)', async () => {
     const id = await signedReport();
     await clients.owner.json('POST', `/api/assessments/${id}/revise`, {});
-    await expect(testDb().raw(`update assessments set status = 'signed' where id = ?`, [id])).rejects.toThrow(/read-only/);
+    await expect(testDb().raw(`update assessments set status = 'signed' where id = ?`, [id])).rejects.toThrow(
+      /read-only/,
+    );
     expect(await statusOf(id)).toBe('superseded');
   });
 });

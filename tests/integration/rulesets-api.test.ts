@@ -7,11 +7,21 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadRulesetFile } from '../../src/lib/rules';
-import { createOrganisation, fixturePassword, signIn, signInHomeowner, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  signInHomeowner,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 import { slideGateInput, swingGateInput } from './support/gate-inputs';
 
 const NA = 'north-american-gate';
-const shipped = (version: string) => loadRulesetFile(JSON.parse(fs.readFileSync(path.resolve(__dirname, `../../rulesets/${NA}/${version}.json`), 'utf8')));
+const shipped = (version: string) =>
+  loadRulesetFile(
+    JSON.parse(fs.readFileSync(path.resolve(__dirname, `../../rulesets/${NA}/${version}.json`), 'utf8')),
+  );
 
 interface Finding {
   ruleId: string;
@@ -47,7 +57,11 @@ describe('POST /api/score', () => {
     const res = await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() });
     expect(res.status).toBe(200);
     const result = await res.json();
-    expect(result.ruleset).toEqual({ family: NA, version: '2026.2', contentSha256: shipped('2026.2').contentSha256 });
+    expect(result.ruleset).toEqual({
+      family: NA,
+      version: '2026.2',
+      contentSha256: shipped('2026.2').contentSha256,
+    });
     // ASTM F2200, swing gates: 16 in (406.4 mm) to fixed objects; the open leaf stops 12 in from the pier.
     const fixedObjects = findingOf(result, 'pinch.fixed-objects');
     expect(fixedObjects).toMatchObject({
@@ -59,10 +73,23 @@ describe('POST /api/score', () => {
     expect(result.verdict).toBe('withdraw');
     const failing: Finding[] = result.findings.filter((f: Finding) => f.outcome === 'fail');
     expect(failing.length).toBeGreaterThanOrEqual(2);
-    for (const f of failing) expect(f.hrn, f.ruleId).toMatchObject({ value: expect.any(Number), band: expect.any(String) });
-    for (const f of result.findings.filter((x: Finding) => x.outcome !== 'fail')) expect(f.hrn, f.ruleId).toBeUndefined();
-    expect(Object.keys(result.areaScores).sort()).toEqual(['build', 'controls', 'force', 'gaps', 'handover', 'pinch', 'power', 'sensing', 'signage']);
-    for (const value of Object.values(result.areaScores)) if (value !== null) expect(value).toBeGreaterThanOrEqual(0);
+    for (const f of failing)
+      expect(f.hrn, f.ruleId).toMatchObject({ value: expect.any(Number), band: expect.any(String) });
+    for (const f of result.findings.filter((x: Finding) => x.outcome !== 'fail'))
+      expect(f.hrn, f.ruleId).toBeUndefined();
+    expect(Object.keys(result.areaScores).sort()).toEqual([
+      'build',
+      'controls',
+      'force',
+      'gaps',
+      'handover',
+      'pinch',
+      'power',
+      'sensing',
+      'signage',
+    ]);
+    for (const value of Object.values(result.areaScores))
+      if (value !== null) expect(value).toBeGreaterThanOrEqual(0);
     expect(result.needsInfo.length).toBeGreaterThan(0);
   });
 
@@ -71,7 +98,11 @@ describe('POST /api/score', () => {
     expect(res.status).toBe(200);
     const result = await res.json();
     // ASTM F2200, slide gates: openings must not pass a 2-1/4 in (57.15 mm) sphere.
-    expect(findingOf(result, 'gaps.slide-openings')).toMatchObject({ outcome: 'fail', severity: 'critical', observed: { 'm.largestOpeningMm': 101.6 } });
+    expect(findingOf(result, 'gaps.slide-openings')).toMatchObject({
+      outcome: 'fail',
+      severity: 'critical',
+      observed: { 'm.largestOpeningMm': 101.6 },
+    });
     expect(findingOf(result, 'gaps.slide-openings').hrn?.value).toBeGreaterThan(0);
     expect(findingOf(result, 'build.slide-positive-stops').outcome).toBe('pass');
     expect(findingOf(result, 'pinch.fixed-objects').outcome).toBe('n/a');
@@ -80,54 +111,92 @@ describe('POST /api/score', () => {
   });
 
   it('gives byte-identical results for the same input and version', async () => {
-    const first = await (await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() })).text();
-    const second = await (await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() })).text();
+    const first = await (
+      await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() })
+    ).text();
+    const second = await (
+      await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() })
+    ).text();
     expect(second).toBe(first);
   });
 
   it('scores against a named older version when asked', async () => {
-    const result = await (await auditor.json('POST', '/api/score', { family: NA, version: '2015.1', input: slideGateInput() })).json();
-    expect(result.ruleset).toEqual({ family: NA, version: '2015.1', contentSha256: shipped('2015.1').contentSha256 });
+    const result = await (
+      await auditor.json('POST', '/api/score', { family: NA, version: '2015.1', input: slideGateInput() })
+    ).json();
+    expect(result.ruleset).toEqual({
+      family: NA,
+      version: '2015.1',
+      contentSha256: shipped('2015.1').contentSha256,
+    });
     // The 2015 line screened slide-gate openings to 48 in only; this gate is screened to 72 in either way.
-    expect(findingOf(result, 'gaps.slide-screen-height').params.screenHeightMm).toEqual({ value: 1219.2, unit: 'mm' });
+    expect(findingOf(result, 'gaps.slide-screen-height').params.screenHeightMm).toEqual({
+      value: 1219.2,
+      unit: 'mm',
+    });
   });
 
   it('refuses an input the schema rejects with 422, naming the field under input', async () => {
     const input = swingGateInput();
-    const res = await auditor.json('POST', '/api/score', { family: NA, input: { ...input, profile: { ...input.profile, usageClass: 7 } } });
+    const res = await auditor.json('POST', '/api/score', {
+      family: NA,
+      input: { ...input, profile: { ...input.profile, usageClass: 7 } },
+    });
     expect(res.status).toBe(422);
     expect(res.headers.get('content-type')).toMatch(/^application\/problem\+json/);
     const problem = await res.json();
     expect(problem).toMatchObject({ status: 422, title: expect.any(String) });
-    expect(problem.errors).toEqual([{ field: 'input.profile.usageClass', message: expect.stringMatching(/usage class/) }]);
+    expect(problem.errors).toEqual([
+      { field: 'input.profile.usageClass', message: expect.stringMatching(/usage class/) },
+    ]);
   });
 
   it("refuses a measurement in the wrong kind of unit for the version's question, naming it", async () => {
     const input = swingGateInput();
     const res = await auditor.json('POST', '/api/score', {
       family: NA,
-      input: { ...input, measurements: { ...input.measurements, placardsSide1: { value: 3, unit: 'mm', canonical: 3 } } },
+      input: {
+        ...input,
+        measurements: { ...input.measurements, placardsSide1: { value: 3, unit: 'mm', canonical: 3 } },
+      },
     });
     expect(res.status).toBe(422);
     const problem = await res.json();
-    expect(problem.errors).toEqual([{ field: 'input.measurements.placardsSide1.unit', message: expect.stringContaining('count') }]);
+    expect(problem.errors).toEqual([
+      { field: 'input.measurements.placardsSide1.unit', message: expect.stringContaining('count') },
+    ]);
   });
 
   it('refuses unknown fields, families and versions, each by name', async () => {
-    const unknownField = await (await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput(), verbose: true })).json();
+    const unknownField = await (
+      await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput(), verbose: true })
+    ).json();
     expect(unknownField.errors.map((e: { field: string }) => e.field)).toEqual(['verbose']);
-    const family = await auditor.json('POST', '/api/score', { family: 'no-such-family', input: swingGateInput() });
+    const family = await auditor.json('POST', '/api/score', {
+      family: 'no-such-family',
+      input: swingGateInput(),
+    });
     expect(family.status).toBe(422);
     expect((await family.json()).errors).toEqual([{ field: 'family', message: expect.any(String) }]);
-    const version = await auditor.json('POST', '/api/score', { family: NA, version: '1999.1', input: swingGateInput() });
+    const version = await auditor.json('POST', '/api/score', {
+      family: NA,
+      version: '1999.1',
+      input: swingGateInput(),
+    });
     expect(version.status).toBe(422);
     expect((await version.json()).errors).toEqual([{ field: 'version', message: expect.any(String) }]);
-    const badLabel = await auditor.json('POST', '/api/score', { family: NA, version: 'latest', input: swingGateInput() });
+    const badLabel = await auditor.json('POST', '/api/score', {
+      family: NA,
+      version: 'latest',
+      input: swingGateInput(),
+    });
     expect((await badLabel.json()).errors.map((e: { field: string }) => e.field)).toEqual(['version']);
   });
 
   it('is for staff: a homeowner is refused', async () => {
-    expect((await homeowner.json('POST', '/api/score', { family: NA, input: swingGateInput() })).status).toBe(403);
+    expect((await homeowner.json('POST', '/api/score', { family: NA, input: swingGateInput() })).status).toBe(
+      403,
+    );
   });
 });
 
@@ -166,8 +235,16 @@ describe('GET /api/rulesets/{family}/{version}', () => {
     const detail = await res.json();
     const file = shipped('2026.1');
     expect(res.headers.get('etag')).toBe(`"${file.contentSha256}"`);
-    expect(detail).toMatchObject({ family: NA, version: '2026.1', status: 'published', local: false, familyTitle: file.version.familyTitle });
-    expect(detail.content.rules.map((r: { id: string }) => r.id)).toEqual(file.version.rules.map((r) => r.id));
+    expect(detail).toMatchObject({
+      family: NA,
+      version: '2026.1',
+      status: 'published',
+      local: false,
+      familyTitle: file.version.familyTitle,
+    });
+    expect(detail.content.rules.map((r: { id: string }) => r.id)).toEqual(
+      file.version.rules.map((r) => r.id),
+    );
     expect(detail.content.questions).toHaveLength(file.version.questions.length);
     expect(detail.content.sources.map((s: { id: string }) => s.id)).toContain('ul325');
   });
@@ -195,12 +272,16 @@ describe('GET /api/rulesets/{family}/diff', () => {
     expect(diff.to).toEqual({ family: NA, version: '2026.1' });
     // UL 325 (2016 revision): two independent means of entrapment protection replace primary + secondary.
     expect(diff.rules.added.map((r: { id: string }) => r.id)).toContain('sensing.closing-two-means');
-    expect(diff.rules.removed.map((r: { id: string }) => r.id)).toContain('sensing.closing-primary-secondary');
+    expect(diff.rules.removed.map((r: { id: string }) => r.id)).toContain(
+      'sensing.closing-primary-secondary',
+    );
     // ASTM F2200: slide-gate openings screened to 72 in instead of 48 in.
     const screen = diff.rules.changed.find((c: { id: string }) => c.id === 'gaps.slide-screen-height');
     expect(screen.changes).toContainEqual({ field: 'params.screenHeightMm', from: 1219.2, to: 1828.8 });
     expect(diff.questions.changed.map((q: { id: string }) => q.id)).toContain('largestOpeningMm');
-    expect(diff.version).toContainEqual(expect.objectContaining({ field: 'effectiveFrom', from: '2015-01-01', to: '2026-01-01' }));
+    expect(diff.version).toContainEqual(
+      expect.objectContaining({ field: 'effectiveFrom', from: '2015-01-01', to: '2026-01-01' }),
+    );
   });
 
   it('reads an empty diff when both ends are the same version', async () => {

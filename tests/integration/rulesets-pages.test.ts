@@ -3,7 +3,14 @@
  * readable diff, and the owner's amendment editor (reached by the "Amend" form, no script).
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createOrganisation, fixturePassword, signIn, signInHomeowner, type FixtureOrganisation, type TestClient } from './support/fixtures';
+import {
+  createOrganisation,
+  fixturePassword,
+  signIn,
+  signInHomeowner,
+  type FixtureOrganisation,
+  type TestClient,
+} from './support/fixtures';
 
 const NA = 'north-american-gate';
 

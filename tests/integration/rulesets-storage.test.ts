@@ -39,7 +39,12 @@ beforeAll(async () => {
   org = await createOrganisation('rulesets-storage');
   document = JSON.parse(fs.readFileSync(shippedFile, 'utf8'));
   const [family] = await testDb()('rulesets')
-    .insert({ organisation_id: org.id, family: 'storage-check', title: 'Storage check family', based_on_family: 'north-american-gate' })
+    .insert({
+      organisation_id: org.id,
+      family: 'storage-check',
+      title: 'Storage check family',
+      based_on_family: 'north-american-gate',
+    })
     .returning('id');
   familyId = family.id;
 });
@@ -47,34 +52,48 @@ beforeAll(async () => {
 describe('the published-version guard (raw SQL)', () => {
   it("refuses an UPDATE of a published version's content", async () => {
     const id = await insertVersion('2026.1-local.1', 'published');
-    await expect(testDb().raw(`update ruleset_versions set content = jsonb_set(content, '{summary}', '"quietly edited"') where id = ?`, [id])).rejects.toThrow(
-      /is published and its content cannot change/,
-    );
-    await expect(testDb().raw(`update ruleset_versions set content_sha256 = ? where id = ?`, ['f'.repeat(64), id])).rejects.toThrow(/cannot change/);
+    await expect(
+      testDb().raw(
+        `update ruleset_versions set content = jsonb_set(content, '{summary}', '"quietly edited"') where id = ?`,
+        [id],
+      ),
+    ).rejects.toThrow(/is published and its content cannot change/);
+    await expect(
+      testDb().raw(`update ruleset_versions set content_sha256 = ? where id = ?`, ['f'.repeat(64), id]),
+    ).rejects.toThrow(/cannot change/);
     const row = await testDb()('ruleset_versions').where({ id }).first('content');
     expect(row.content.summary).toBe(document.summary);
   });
 
   it('refuses a DELETE of a published version', async () => {
     const id = await insertVersion('2026.1-local.2', 'published');
-    await expect(testDb().raw('delete from ruleset_versions where id = ?', [id])).rejects.toThrow(/is published and cannot be deleted/);
+    await expect(testDb().raw('delete from ruleset_versions where id = ?', [id])).rejects.toThrow(
+      /is published and cannot be deleted/,
+    );
     expect(await testDb()('ruleset_versions').where({ id }).first('id')).toBeDefined();
   });
 
   it('refuses taking a published version back to draft, but lets it be retired', async () => {
     const id = await insertVersion('2026.1-local.3', 'published');
-    await expect(testDb().raw(`update ruleset_versions set status = 'draft' where id = ?`, [id])).rejects.toThrow(/cannot go from published to draft/);
+    await expect(
+      testDb().raw(`update ruleset_versions set status = 'draft' where id = ?`, [id]),
+    ).rejects.toThrow(/cannot go from published to draft/);
     await testDb().raw(`update ruleset_versions set status = 'retired' where id = ?`, [id]);
     expect((await testDb()('ruleset_versions').where({ id }).first('status')).status).toBe('retired');
-    await expect(testDb().raw(`update ruleset_versions set content = '{}'::jsonb where id = ?`, [id])).rejects.toThrow(
-      /is retired and its content cannot change/,
-    );
+    await expect(
+      testDb().raw(`update ruleset_versions set content = '{}'::jsonb where id = ?`, [id]),
+    ).rejects.toThrow(/is retired and its content cannot change/);
   });
 
   it("allows an UPDATE of a draft's content, and its deletion", async () => {
     const id = await insertVersion('2026.1-local.4', 'draft');
-    await testDb().raw(`update ruleset_versions set content = jsonb_set(content, '{summary}', '"edited while a draft"') where id = ?`, [id]);
-    expect((await testDb()('ruleset_versions').where({ id }).first('content')).content.summary).toBe('edited while a draft');
+    await testDb().raw(
+      `update ruleset_versions set content = jsonb_set(content, '{summary}', '"edited while a draft"') where id = ?`,
+      [id],
+    );
+    expect((await testDb()('ruleset_versions').where({ id }).first('content')).content.summary).toBe(
+      'edited while a draft',
+    );
     await testDb().raw('delete from ruleset_versions where id = ?', [id]);
     expect(await testDb()('ruleset_versions').where({ id }).first('id')).toBeUndefined();
   });
@@ -91,7 +110,10 @@ describe('npm run rulesets:publish', () => {
     root = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-rulesets-'));
     fs.mkdirSync(path.join(root, family));
     file = path.join(root, family, '2026.1.json');
-    fs.writeFileSync(file, JSON.stringify({ ...document, family, familyTitle: 'Publish check family (test only)' }, null, 2));
+    fs.writeFileSync(
+      file,
+      JSON.stringify({ ...document, family, familyTitle: 'Publish check family (test only)' }, null, 2),
+    );
   });
   afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
 
@@ -109,7 +131,9 @@ describe('npm run rulesets:publish', () => {
       .select('rv.id', 'rv.content_sha256', 'rv.published_at');
     expect(after).toEqual(before);
     expect(before).toHaveLength(1);
-    expect(before[0].content_sha256).toBe(loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8'))).contentSha256);
+    expect(before[0].content_sha256).toBe(
+      loadRulesetFile(JSON.parse(fs.readFileSync(file, 'utf8'))).contentSha256,
+    );
   });
 
   it('publishing the repository files again is a no-op', async () => {
@@ -127,20 +151,35 @@ describe('npm run rulesets:publish', () => {
     try {
       const refusal = publishRulesetFiles(url, root);
       await expect(refusal).rejects.toThrow(`${family}/2026.1.json`);
-      await expect(refusal).rejects.toThrow(/already published with different content; publish it under a new version number/);
+      await expect(refusal).rejects.toThrow(
+        /already published with different content; publish it under a new version number/,
+      );
     } finally {
       fs.writeFileSync(file, original);
     }
-    const stored = await testDb()('ruleset_versions as rv').join('rulesets as r', 'r.id', 'rv.ruleset_id').where('r.family', family).first('rv.content');
+    const stored = await testDb()('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where('r.family', family)
+      .first('rv.content');
     expect(stored.content.rules[0].severity).toBe(severityBefore);
   });
 
   it('refuses a file that is not a valid ruleset, with the path of the field at fault', async () => {
     const broken = path.join(root, family, '2026.2.json');
     const content = JSON.parse(fs.readFileSync(shippedFile, 'utf8'));
-    fs.writeFileSync(broken, JSON.stringify({ ...content, family, version: '2026.2', rules: [{ ...content.rules[0], severity: 'catastrophic' }] }));
+    fs.writeFileSync(
+      broken,
+      JSON.stringify({
+        ...content,
+        family,
+        version: '2026.2',
+        rules: [{ ...content.rules[0], severity: 'catastrophic' }],
+      }),
+    );
     try {
-      await expect(publishRulesetFiles(inject('migrationDatabaseUrl'), root)).rejects.toThrow(/2026\.2\.json[\s\S]*rules\[0\]\.severity/);
+      await expect(publishRulesetFiles(inject('migrationDatabaseUrl'), root)).rejects.toThrow(
+        /2026\.2\.json[\s\S]*rules\[0\]\.severity/,
+      );
     } finally {
       fs.rmSync(broken);
     }

@@ -39,16 +39,26 @@ const colons = (sha256: string) => (sha256.toUpperCase().match(/../g) ?? []).joi
 
 function certificateForm(p12: Buffer | string, passphrase?: string): FormData {
   const form = new FormData();
-  form.set('certificate', new Blob([typeof p12 === 'string' ? p12 : new Uint8Array(p12)], { type: 'application/x-pkcs12' }), 'signing.p12');
+  form.set(
+    'certificate',
+    new Blob([typeof p12 === 'string' ? p12 : new Uint8Array(p12)], { type: 'application/x-pkcs12' }),
+    'signing.p12',
+  );
   if (passphrase !== undefined) form.set('passphrase', passphrase);
   return form;
 }
 
 const upload = (client: TestClient, form: FormData) =>
-  client.fetch('/api/organisation/certificate', { method: 'PUT', headers: { accept: 'application/json' }, body: form });
+  client.fetch('/api/organisation/certificate', {
+    method: 'PUT',
+    headers: { accept: 'application/json' },
+    body: form,
+  });
 
 async function storedState() {
-  const rows = await testDb()('organisation_signing_certificates').where({ organisation_id: org.id }).select('sha256');
+  const rows = await testDb()('organisation_signing_certificates')
+    .where({ organisation_id: org.id })
+    .select('sha256');
   const audits = await testDb()('audit_events')
     .where({ organisation_id: org.id })
     .where('action', 'like', 'organisation.signing_certificate%')
@@ -63,7 +73,8 @@ async function signOneReport(): Promise<{ id: string; sha256: string }> {
     { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
     { dataDir: inject('dataDir'), photos: 0 },
   );
-  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email'))
+    .contact_email as string;
   const seen = await caughtMailIds(clientEmail);
   const sent = await office.json('POST', `/api/assessments/${seeded.assessmentId}/send-for-signature`, {});
   expect(sent.status, await sent.clone().text()).toBe(202);
@@ -91,7 +102,10 @@ beforeAll(async () => {
     makePkcs12({ keyUsage: { keyEncipherment: true }, passphrase: 'p' }),
   ]);
   org = await createOrganisation('certificate');
-  [owner, office] = await Promise.all([signIn(org.owner.email, fixturePassword), signIn(org.office.email, fixturePassword)]);
+  [owner, office] = await Promise.all([
+    signIn(org.owner.email, fixturePassword),
+    signIn(org.office.email, fixturePassword),
+  ]);
 }, 60_000);
 
 describe("the organisation's signing certificate", () => {
@@ -100,7 +114,12 @@ describe("the organisation's signing certificate", () => {
     const cases: Array<[string, FormData, string, RegExp]> = [
       ['wrong passphrase', certificateForm(good.p12, 'not-the-passphrase'), 'passphrase', /does not open/],
       ['no passphrase', certificateForm(good.p12, ''), 'passphrase', /passphrase/],
-      ['not PKCS#12', certificateForm('%PDF-1.7\nnot a certificate\n%%EOF\n', 'x'), 'certificate', /not a PKCS#12/],
+      [
+        'not PKCS#12',
+        certificateForm('%PDF-1.7\nnot a certificate\n%%EOF\n', 'x'),
+        'certificate',
+        /not a PKCS#12/,
+      ],
       ['expired', certificateForm(expired.p12, 'p'), 'certificate', /expired on/],
       ['not yet valid', certificateForm(notYetValid.p12, 'p'), 'certificate', /not valid before/],
       ['key usage without signing', certificateForm(encipherOnly.p12, 'p'), 'certificate', /key usage/],
@@ -114,7 +133,10 @@ describe("the organisation's signing certificate", () => {
       expect(body.errors, name).toEqual([{ field, message: expect.stringMatching(message) }]);
     }
     // The settings page's form says the same beside the field.
-    const page = await owner.fetch('/settings?certificate=upload', { method: 'POST', body: certificateForm(good.p12, 'not-the-passphrase') });
+    const page = await owner.fetch('/settings?certificate=upload', {
+      method: 'POST',
+      body: certificateForm(good.p12, 'not-the-passphrase'),
+    });
     expect(page.status).toBe(422);
     expect(await page.text()).toContain('The passphrase does not open this certificate file.');
     expect(await storedState()).toEqual(before);
@@ -131,11 +153,18 @@ describe("the organisation's signing certificate", () => {
     const res = await upload(owner, certificateForm(good.p12, good.passphrase));
     expect(res.status, await res.clone().text()).toBe(200);
     const body = await res.json();
-    expect(body.inUse).toMatchObject({ source: 'uploaded', sha256: good.sha256, selfSigned: false, subject: expect.stringContaining(good.commonName) });
+    expect(body.inUse).toMatchObject({
+      source: 'uploaded',
+      sha256: good.sha256,
+      selfSigned: false,
+      subject: expect.stringContaining(good.commonName),
+    });
     expect(body.inUse.issuer).toContain('Test Issuing Authority');
     expect(Date.parse(body.inUse.notAfter)).toBeGreaterThan(Date.now());
 
-    const row = await testDb()('organisation_signing_certificates').where({ organisation_id: org.id }).first();
+    const row = await testDb()('organisation_signing_certificates')
+      .where({ organisation_id: org.id })
+      .first();
     expect(row.sha256).toBe(good.sha256);
     const stored = JSON.stringify({ ...row, p12: Buffer.from(row.p12).toString('latin1') });
     expect(stored).not.toContain(good.passphrase);
@@ -174,7 +203,9 @@ describe("the organisation's signing certificate", () => {
       try {
         fs.writeFileSync(path.join(dir, 'signed.pdf'), pdf);
         // Not execFileSync: a blocked event loop misses the server closing an idle keep-alive socket.
-        const { stdout: report } = await promisify(execFile)('pdfsig', [path.join(dir, 'signed.pdf')], { encoding: 'utf8' });
+        const { stdout: report } = await promisify(execFile)('pdfsig', [path.join(dir, 'signed.pdf')], {
+          encoding: 'utf8',
+        });
         expect(report).toContain('Signature is Valid');
         expect(report).toContain(good.commonName);
       } finally {
@@ -186,22 +217,28 @@ describe("the organisation's signing certificate", () => {
     },
   );
 
-  it('goes back to the self-made certificate when the owner removes the upload, and says so on the next report', { timeout: 60_000 }, async () => {
-    expect((await office.fetch('/api/organisation/certificate', { method: 'DELETE' })).status).toBe(403);
-    expect((await owner.fetch('/api/organisation/certificate', { method: 'DELETE' })).status).toBe(204);
-    const removed = await testDb()('audit_events').where({ organisation_id: org.id, action: 'organisation.signing_certificate_removed' }).first('detail');
-    expect(removed.detail.sha256).toBe(good.sha256);
-    const overview = await (await owner.fetch('/api/organisation/certificate')).json();
-    expect(overview.inUse).toMatchObject({ source: 'generated', selfSigned: true });
+  it(
+    'goes back to the self-made certificate when the owner removes the upload, and says so on the next report',
+    { timeout: 60_000 },
+    async () => {
+      expect((await office.fetch('/api/organisation/certificate', { method: 'DELETE' })).status).toBe(403);
+      expect((await owner.fetch('/api/organisation/certificate', { method: 'DELETE' })).status).toBe(204);
+      const removed = await testDb()('audit_events')
+        .where({ organisation_id: org.id, action: 'organisation.signing_certificate_removed' })
+        .first('detail');
+      expect(removed.detail.sha256).toBe(good.sha256);
+      const overview = await (await owner.fetch('/api/organisation/certificate')).json();
+      expect(overview.inUse).toMatchObject({ source: 'generated', selfSigned: true });
 
-    const document = await signOneReport();
-    const pdf = Buffer.from(await (await office.fetch(`/api/documents/${document.id}/file`)).arrayBuffer());
-    const answer = await (await anonymousClient().fetch(`/api/verify?document=${document.id}`)).json();
-    expect(answer.certificate).toMatchObject({ sha256: overview.inUse.sha256, selfSigned: true });
-    expect(pdfSignerSha256(pdf)).toBe(overview.inUse.sha256);
-    const text = (await extractPdfText(pdf)).replace(/\s+/g, ' ');
-    expect(text).toContain('not issued by a public certificate authority');
-    expect(text).toContain('unknown or not trusted');
-    expect(text.replace(/\s+/g, '')).toContain(colons(overview.inUse.sha256));
-  });
+      const document = await signOneReport();
+      const pdf = Buffer.from(await (await office.fetch(`/api/documents/${document.id}/file`)).arrayBuffer());
+      const answer = await (await anonymousClient().fetch(`/api/verify?document=${document.id}`)).json();
+      expect(answer.certificate).toMatchObject({ sha256: overview.inUse.sha256, selfSigned: true });
+      expect(pdfSignerSha256(pdf)).toBe(overview.inUse.sha256);
+      const text = (await extractPdfText(pdf)).replace(/\s+/g, ' ');
+      expect(text).toContain('not issued by a public certificate authority');
+      expect(text).toContain('unknown or not trusted');
+      expect(text.replace(/\s+/g, '')).toContain(colons(overview.inUse.sha256));
+    },
+  );
 });

@@ -46,10 +46,16 @@ async function caughtMail(to: string, subject: RegExp, outboxId?: string, timeou
   for (;;) {
     const list = (await (await fetch(`${catcherUrl}/messages`)).json()) as CaughtSummary[];
     for (const m of list) {
-      if (seen.has(m.id) || !m.to.some((t) => t.toLowerCase() === to.toLowerCase()) || !subject.test(m.subject)) continue;
+      if (
+        seen.has(m.id) ||
+        !m.to.some((t) => t.toLowerCase() === to.toLowerCase()) ||
+        !subject.test(m.subject)
+      )
+        continue;
       const raw = Buffer.from(await (await fetch(`${catcherUrl}/messages/${m.id}/raw`)).arrayBuffer());
       const parsed = await simpleParser(raw);
-      if (!outboxId || parsed.headers.get('x-latchwell-outbox-id') === outboxId) return { summary: m, parsed };
+      if (!outboxId || parsed.headers.get('x-latchwell-outbox-id') === outboxId)
+        return { summary: m, parsed };
       seen.add(m.id);
     }
     if (Date.now() > deadline) throw new Error(`no mail to ${to} matching ${subject} within ${timeoutMs} ms`);
@@ -77,11 +83,18 @@ let auditor: TestClient;
 
 beforeAll(async () => {
   org = await createOrganisation('signing');
-  [office, auditor] = await Promise.all([signIn(org.office.email, fixturePassword), signIn(org.auditor.email, fixturePassword)]);
+  [office, auditor] = await Promise.all([
+    signIn(org.office.email, fixturePassword),
+    signIn(org.auditor.email, fixturePassword),
+  ]);
 });
 
 async function seeded(photos = 2): Promise<SeededAssessment> {
-  return seedScoredAssessment(testDb(), { id: org.id, auditorId: org.auditor.id, clientId: org.clientId }, { dataDir: inject('dataDir'), photos });
+  return seedScoredAssessment(
+    testDb(),
+    { id: org.id, auditorId: org.auditor.id, clientId: org.clientId },
+    { dataDir: inject('dataDir'), photos },
+  );
 }
 
 async function sendAndOpen(assessmentId: string, by: TestClient = office) {
@@ -89,7 +102,8 @@ async function sendAndOpen(assessmentId: string, by: TestClient = office) {
   const res = await by.json('POST', `/api/assessments/${assessmentId}/send-for-signature`, {});
   expect(res.status, await res.clone().text()).toBe(202);
   const sent = await res.json();
-  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email')).contact_email as string;
+  const clientEmail = (await testDb()('clients').where({ id: org.clientId }).first('contact_email'))
+    .contact_email as string;
   // Several links go to the same client address: pick this one by the outbox id in its headers.
   const mail = await caughtMail(clientEmail, /Please read and sign/, sent.message.id);
   expect(Date.parse(mail.summary.receivedAt)).toBeGreaterThanOrEqual(since - 1000);
@@ -100,7 +114,10 @@ async function sendAndOpen(assessmentId: string, by: TestClient = office) {
 async function outboxDrained(timeoutMs = 20_000): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
-    const [{ n }] = await testDb()('outbox_messages').where({ organisation_id: org.id }).whereIn('status', ['queued', 'sending']).count({ n: '*' });
+    const [{ n }] = await testDb()('outbox_messages')
+      .where({ organisation_id: org.id })
+      .whereIn('status', ['queued', 'sending'])
+      .count({ n: '*' });
     if (Number(n) === 0) return;
     if (Date.now() > deadline) throw new Error('outbox messages of this organisation are still waiting');
     await new Promise((r) => setTimeout(r, 100));
@@ -124,16 +141,22 @@ describe('sending a scored assessment for signature and signing it', () => {
     const opened = await sendAndOpen(assessment.assessmentId);
     token = opened.token;
     clientEmail = opened.clientEmail;
-    expect(opened.mail.parsed.to && 'value' in opened.mail.parsed.to ? opened.mail.parsed.to.value[0].address : '').toBe(clientEmail);
+    expect(
+      opened.mail.parsed.to && 'value' in opened.mail.parsed.to ? opened.mail.parsed.to.value[0].address : '',
+    ).toBe(clientEmail);
     expect(opened.mail.parsed.subject).toBe('Please read and sign: gate safety report for Driveway gate');
     expect(opened.mail.parsed.text).toContain('Take out of automatic use');
     expect(opened.sent.signRequest.recipient).toBe(clientEmail);
     const row = await testDb()('assessments').where({ id: assessment.assessmentId }).first('status');
     expect(row.status).toBe('awaiting_signature');
     // Only the hash of the token is stored.
-    const stored = await testDb()('sign_requests').where({ assessment_id: assessment.assessmentId }).first('token_hash');
+    const stored = await testDb()('sign_requests')
+      .where({ assessment_id: assessment.assessmentId })
+      .first('token_hash');
     expect(stored.token_hash).toBe(createHash('sha256').update(token).digest('hex'));
-    const audit = await testDb()('audit_events').where({ entity_id: assessment.assessmentId, action: 'assessment.sent_for_signature' }).first('id');
+    const audit = await testDb()('audit_events')
+      .where({ entity_id: assessment.assessmentId, action: 'assessment.sent_for_signature' })
+      .first('id');
     expect(audit).toBeTruthy();
   });
 
@@ -147,7 +170,8 @@ describe('sending a scored assessment for signature and signing it', () => {
     shownSha = /data-document-sha256>([0-9a-f]{64})</.exec(html)?.[1] ?? '';
     expect(shownSha).toMatch(/^[0-9a-f]{64}$/);
     cautionIds = assessment.result.findings.filter((f) => f.outcome === 'fail').map((f) => f.ruleId);
-    for (const f of assessment.result.findings.filter((x) => x.outcome === 'fail')) expect(html).toContain(f.caution);
+    for (const f of assessment.result.findings.filter((x) => x.outcome === 'fail'))
+      expect(html).toContain(f.caution);
   });
 
   it('serves the exact PDF shown for signature, whose text carries verdict, findings, references and the disclaimer', async () => {
@@ -173,25 +197,47 @@ describe('sending a scored assessment for signature and signing it', () => {
   });
 
   it('refuses a signature that skips a caution or names another PDF, and changes nothing', async () => {
-    const base = { name: 'Imke Quillfeather', consent: true, intent: true, shownPdfSha256: shownSha, signature: { method: 'typed' } };
+    const base = {
+      name: 'Imke Quillfeather',
+      consent: true,
+      intent: true,
+      shownPdfSha256: shownSha,
+      signature: { method: 'typed' },
+    };
     const skipped = await submit(token, { ...base, acknowledgedCautions: cautionIds.slice(1) });
     expect(skipped.status).toBe(422);
     expect((await skipped.json()).errors[0].field).toBe(`acknowledgedCautions.${cautionIds[0]}`);
-    const otherPdf = await submit(token, { ...base, acknowledgedCautions: cautionIds, shownPdfSha256: 'e'.repeat(64) });
+    const otherPdf = await submit(token, {
+      ...base,
+      acknowledgedCautions: cautionIds,
+      shownPdfSha256: 'e'.repeat(64),
+    });
     expect(otherPdf.status).toBe(409);
     const noConsent = await submit(token, { ...base, consent: false, acknowledgedCautions: cautionIds });
     expect(noConsent.status).toBe(422);
     const notPng = await submit(token, {
       ...base,
       acknowledgedCautions: cautionIds,
-      signature: { method: 'drawn', png: `data:image/png;base64,${Buffer.from('GIF89a not a png at all').toString('base64')}` },
+      signature: {
+        method: 'drawn',
+        png: `data:image/png;base64,${Buffer.from('GIF89a not a png at all').toString('base64')}`,
+      },
     });
     expect(notPng.status).toBe(422);
     expect((await notPng.json()).errors[0].field).toBe('signature.png');
-    const unknownField = await submit(token, { ...base, acknowledgedCautions: cautionIds, signedFor: 'someone else' });
+    const unknownField = await submit(token, {
+      ...base,
+      acknowledgedCautions: cautionIds,
+      signedFor: 'someone else',
+    });
     expect(unknownField.status).toBe(422);
-    expect(await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).first()).toBeUndefined();
-    expect((await testDb()('sign_requests').where({ assessment_id: assessment.assessmentId }).first('used_at')).used_at).toBeNull();
+    expect(
+      await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).first(),
+    ).toBeUndefined();
+    expect(
+      (await testDb()('sign_requests').where({ assessment_id: assessment.assessmentId }).first('used_at'))
+        .used_at,
+    ).toBeNull();
   });
 
   it('signs once: records name, consent, intent, drawn signature, IP, user agent and the shown PDF hash, then archives a signed PDF', async () => {
@@ -214,7 +260,9 @@ describe('sending a scored assessment for signature and signing it', () => {
     expect(res.status, await res.clone().text()).toBe(201);
     const body = await res.json();
     signedDocument = body.document;
-    const signature = await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).first('*', testDb().raw('host(ip) as ip_text'));
+    const signature = await testDb()('signatures')
+      .where({ assessment_id: assessment.assessmentId })
+      .first('*', testDb().raw('host(ip) as ip_text'));
     expect(signature.signer_name).toBe('Imke Quillfeather');
     expect(signature.signer_email).toBe(clientEmail);
     expect(signature.consented).toBe(true);
@@ -226,7 +274,9 @@ describe('sending a scored assessment for signature and signing it', () => {
     expect(signature.ip_text).toBe('203.0.113.7');
     expect(signature.user_agent).toContain('LatchwellTest/1');
     expect(signature.cautions_acknowledged.map((c: { ruleId: string }) => c.ruleId)).toEqual(cautionIds);
-    const row = await testDb()('assessments').where({ id: assessment.assessmentId }).first('status', 'signed_at');
+    const row = await testDb()('assessments')
+      .where({ id: assessment.assessmentId })
+      .first('status', 'signed_at');
     expect(row.status).toBe('signed');
     expect(row.signed_at).toBeTruthy();
     const document = await testDb()('documents').where({ id: signedDocument.id }).first();
@@ -292,25 +342,47 @@ describe('sending a scored assessment for signature and signing it', () => {
     });
     expect(again.status).toBe(409);
     expect((await again.json()).linkState).toBe('used');
-    expect(await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).count({ n: '*' })).toEqual([{ n: '1' }]);
+    expect(
+      await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).count({ n: '*' }),
+    ).toEqual([{ n: '1' }]);
     expect((await anonymousClient().fetch(`/api/sign/${token}/report.pdf`)).status).toBe(409);
   });
 
   it('refuses UPDATE and DELETE of the signed assessment and of its document rows at the database level', async () => {
     const knex = testDb();
-    await expect(knex.raw(`update assessments set answers = '{}'::jsonb where id = ?`, [assessment.assessmentId])).rejects.toThrow(/read-only/);
-    await expect(knex.raw(`update assessments set status = 'scored' where id = ?`, [assessment.assessmentId])).rejects.toThrow(/read-only/);
-    await expect(knex.raw(`update assessments set status = 'superseded', verdict = 'clear' where id = ?`, [assessment.assessmentId])).rejects.toThrow(
-      /read-only/,
+    await expect(
+      knex.raw(`update assessments set answers = '{}'::jsonb where id = ?`, [assessment.assessmentId]),
+    ).rejects.toThrow(/read-only/);
+    await expect(
+      knex.raw(`update assessments set status = 'scored' where id = ?`, [assessment.assessmentId]),
+    ).rejects.toThrow(/read-only/);
+    await expect(
+      knex.raw(`update assessments set status = 'superseded', verdict = 'clear' where id = ?`, [
+        assessment.assessmentId,
+      ]),
+    ).rejects.toThrow(/read-only/);
+    await expect(knex.raw(`delete from assessments where id = ?`, [assessment.assessmentId])).rejects.toThrow(
+      /cannot be deleted/,
     );
-    await expect(knex.raw(`delete from assessments where id = ?`, [assessment.assessmentId])).rejects.toThrow(/cannot be deleted/);
-    await expect(knex.raw(`update documents set sha256 = repeat('0', 64), storage_key = repeat('0', 64) where id = ?`, [signedDocument.id])).rejects.toThrow(
+    await expect(
+      knex.raw(`update documents set sha256 = repeat('0', 64), storage_key = repeat('0', 64) where id = ?`, [
+        signedDocument.id,
+      ]),
+    ).rejects.toThrow(/signed archive/);
+    await expect(knex.raw(`delete from documents where id = ?`, [signedDocument.id])).rejects.toThrow(
       /signed archive/,
     );
-    await expect(knex.raw(`delete from documents where id = ?`, [signedDocument.id])).rejects.toThrow(/signed archive/);
-    await expect(knex.raw(`update signatures set signer_name = 'Forged' where assessment_id = ?`, [assessment.assessmentId])).rejects.toThrow(/signed archive/);
-    await expect(knex.raw(`update sign_requests set used_at = now() where assessment_id = ?`, [assessment.assessmentId])).rejects.toThrow(/once/);
-    expect((await knex('assessments').where({ id: assessment.assessmentId }).first('status')).status).toBe('signed');
+    await expect(
+      knex.raw(`update signatures set signer_name = 'Forged' where assessment_id = ?`, [
+        assessment.assessmentId,
+      ]),
+    ).rejects.toThrow(/signed archive/);
+    await expect(
+      knex.raw(`update sign_requests set used_at = now() where assessment_id = ?`, [assessment.assessmentId]),
+    ).rejects.toThrow(/once/);
+    expect((await knex('assessments').where({ id: assessment.assessmentId }).first('status')).status).toBe(
+      'signed',
+    );
   });
 
   it('starts a correction as a new draft revision; the signed one becomes superseded and stays as it was', async () => {
@@ -327,9 +399,15 @@ describe('sending a scored assessment for signature and signing it', () => {
     expect(fresh.status).toBe('draft');
     expect(fresh.supersedes_id).toBe(assessment.assessmentId);
     expect(fresh.answers).toEqual({ signsPosted: { value: 'no' } });
-    expect(await testDb()('assessment_photos').where({ assessment_id: revision.id }).count({ n: '*' })).toEqual([{ n: '2' }]);
-    await expect(testDb().raw(`update assessments set status = 'signed' where id = ?`, [assessment.assessmentId])).rejects.toThrow(/read-only/);
-    expect((await auditor.json('POST', `/api/assessments/${assessment.assessmentId}/revise`, {})).status).toBe(409);
+    expect(
+      await testDb()('assessment_photos').where({ assessment_id: revision.id }).count({ n: '*' }),
+    ).toEqual([{ n: '2' }]);
+    await expect(
+      testDb().raw(`update assessments set status = 'signed' where id = ?`, [assessment.assessmentId]),
+    ).rejects.toThrow(/read-only/);
+    expect(
+      (await auditor.json('POST', `/api/assessments/${assessment.assessmentId}/revise`, {})).status,
+    ).toBe(409);
     // The archived document still serves for the superseded assessment.
     const pdf = await office.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`);
     expect(pdf.headers.get('x-document-sha256')).toBe(signedDocument.sha256);
@@ -365,7 +443,10 @@ describe('signing links that cannot be used', () => {
 
     // Make the live link expired: revoke it and open one whose expiry has passed (tests may set up data).
     const knex = testDb();
-    const live = await knex('sign_requests').where({ assessment_id: assessment.assessmentId }).whereNull('revoked_at').first('*');
+    const live = await knex('sign_requests')
+      .where({ assessment_id: assessment.assessmentId })
+      .whereNull('revoked_at')
+      .first('*');
     await knex('sign_requests').where({ id: live.id }).update({ revoked_at: knex.fn.now() });
     const expiredToken = 'E'.repeat(43);
     await knex('sign_requests').insert({
@@ -392,8 +473,12 @@ describe('signing links that cannot be used', () => {
     });
     expect(res.status).toBe(410);
     expect((await res.json()).linkState).toBe('expired');
-    expect((await knex('assessments').where({ id: assessment.assessmentId }).first('status')).status).toBe('awaiting_signature');
-    expect(await knex('signatures').where({ assessment_id: assessment.assessmentId }).first()).toBeUndefined();
+    expect((await knex('assessments').where({ id: assessment.assessmentId }).first('status')).status).toBe(
+      'awaiting_signature',
+    );
+    expect(
+      await knex('signatures').where({ assessment_id: assessment.assessmentId }).first(),
+    ).toBeUndefined();
   });
 
   it('signs once when the same signature is submitted twice at the same moment', async () => {
@@ -405,14 +490,22 @@ describe('signing links that cannot be used', () => {
       name: 'Double Tapper',
       consent: true,
       intent: true,
-      acknowledgedCautions: assessment.result.findings.filter((f) => f.outcome === 'fail').map((f) => f.ruleId),
+      acknowledgedCautions: assessment.result.findings
+        .filter((f) => f.outcome === 'fail')
+        .map((f) => f.ruleId),
       shownPdfSha256: shown,
       signature: { method: 'typed' },
     };
     const results = await Promise.all([submit(token, body), submit(token, body)]);
     expect(results.map((r) => r.status).sort()).toEqual([201, 409]);
-    expect(await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).count({ n: '*' })).toEqual([{ n: '1' }]);
-    expect(await testDb()('documents').where({ assessment_id: assessment.assessmentId, kind: 'signed_report' }).count({ n: '*' })).toEqual([{ n: '1' }]);
+    expect(
+      await testDb()('signatures').where({ assessment_id: assessment.assessmentId }).count({ n: '*' }),
+    ).toEqual([{ n: '1' }]);
+    expect(
+      await testDb()('documents')
+        .where({ assessment_id: assessment.assessmentId, kind: 'signed_report' })
+        .count({ n: '*' }),
+    ).toEqual([{ n: '1' }]);
   });
 });
 
@@ -424,17 +517,32 @@ describe('who may see the report and send it', () => {
     const assessment = await seeded(0);
     const preview = await office.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`);
     expect(preview.status).toBe(200);
-    expect(await extractPdfText(new Uint8Array(await preview.arrayBuffer()))).toContain('Preview - not for signature');
-    expect((await anonymousClient().fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`)).status).toBe(401);
+    expect(await extractPdfText(new Uint8Array(await preview.arrayBuffer()))).toContain(
+      'Preview - not for signature',
+    );
+    expect(
+      (await anonymousClient().fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`)).status,
+    ).toBe(401);
     const homeowner = await signInHomeowner(org.homeowner.email);
-    expect((await homeowner.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`)).status).toBe(404);
-    expect((await homeowner.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {})).status).toBe(403);
+    expect((await homeowner.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`)).status).toBe(
+      404,
+    );
+    expect(
+      (await homeowner.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {}))
+        .status,
+    ).toBe(403);
     const other = await createOrganisation('signing-other');
     const stranger = await signIn(other.office.email, fixturePassword);
     expect((await stranger.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`)).status).toBe(404);
-    expect((await stranger.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {})).status).toBe(404);
+    expect(
+      (await stranger.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {}))
+        .status,
+    ).toBe(404);
     const auditor2 = await signIn(org.auditor2.email, fixturePassword);
-    expect((await auditor2.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {})).status).toBe(403);
+    expect(
+      (await auditor2.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {}))
+        .status,
+    ).toBe(403);
     await sendAndOpen(assessment.assessmentId);
     const sent = await homeowner.fetch(`/api/assessments/${assessment.assessmentId}/report.pdf`);
     expect(sent.status).toBe(200);
@@ -443,10 +551,17 @@ describe('who may see the report and send it', () => {
 
   it('refuses to send an assessment that is not scored, or with an unknown field', async () => {
     const assessment = await seeded(0);
-    const bad = await office.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, { expiresInDays: 0, colour: 'red' });
+    const bad = await office.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {
+      expiresInDays: 0,
+      colour: 'red',
+    });
     expect(bad.status).toBe(422);
     await testDb()('assessments').where({ id: assessment.assessmentId }).update({ status: 'draft' });
-    const draft = await office.json('POST', `/api/assessments/${assessment.assessmentId}/send-for-signature`, {});
+    const draft = await office.json(
+      'POST',
+      `/api/assessments/${assessment.assessmentId}/send-for-signature`,
+      {},
+    );
     expect(draft.status).toBe(409);
     expect(draft.headers.get('content-type')).toBe('application/problem+json');
   });

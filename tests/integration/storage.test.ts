@@ -18,7 +18,13 @@ let s3Env: NodeJS.ProcessEnv = {};
 
 beforeAll(async () => {
   const port = await freePort();
-  s3 = new S3rver({ address: '127.0.0.1', port, silent: true, directory: path.join(tmp, 's3'), configureBuckets: [{ name: 'latchwell-files', configs: [] }] });
+  s3 = new S3rver({
+    address: '127.0.0.1',
+    port,
+    silent: true,
+    directory: path.join(tmp, 's3'),
+    configureBuckets: [{ name: 'latchwell-files', configs: [] }],
+  });
   await s3.run();
   s3Env = {
     STORAGE_DRIVER: 's3',
@@ -58,7 +64,10 @@ describe.each(drivers)('%s storage', (name, make) => {
   it('writes the same bytes once: a second put is a no-op with the same key', async () => {
     const store = make();
     const bytes = Buffer.from(`same bytes for ${name} ${Date.now()}`);
-    const [first, second] = await Promise.all([store.put(bytes, 'text/plain'), store.put(bytes, 'text/plain')]);
+    const [first, second] = await Promise.all([
+      store.put(bytes, 'text/plain'),
+      store.put(bytes, 'text/plain'),
+    ]);
     expect(second.key).toBe(first.key);
     const third = await store.put(bytes, 'text/plain');
     expect(third.created).toBe(false);
@@ -74,7 +83,15 @@ describe.each(drivers)('%s storage', (name, make) => {
 
   it('refuses anything that is not a SHA-256 key, so no path can escape the store', async () => {
     const store = make();
-    for (const bad of ['../../etc/passwd', `../${'a'.repeat(62)}`, 'A'.repeat(64), `${'a'.repeat(63)}/`, `${'a'.repeat(64)}\u0000`, '', 'a'.repeat(65)]) {
+    for (const bad of [
+      '../../etc/passwd',
+      `../${'a'.repeat(62)}`,
+      'A'.repeat(64),
+      `${'a'.repeat(63)}/`,
+      `${'a'.repeat(64)}\u0000`,
+      '',
+      'a'.repeat(65),
+    ]) {
       await expect(store.get(bad)).rejects.toThrow(/not a storage key/);
       await expect(store.exists(bad)).rejects.toThrow(/not a storage key/);
     }

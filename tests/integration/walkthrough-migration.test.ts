@@ -16,7 +16,9 @@ beforeAll(async () => {
   databaseName = `latchwell_walk_migration_${randomBytes(4).toString('hex')}`;
   const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
   await admin.connect();
-  await admin.query(`create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`);
+  await admin.query(
+    `create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`,
+  );
   await admin.end();
   const url = new URL(inject('migrationDatabaseUrl'));
   url.pathname = `/${databaseName}`;
@@ -59,7 +61,11 @@ const script = (url: string) => `
 
 describe('walk-through migration', () => {
   it('goes down and up again cleanly', () => {
-    const run = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script(databaseUrl)], { cwd: projectRoot, encoding: 'utf8' });
+    const run = spawnSync(
+      process.execPath,
+      ['--import', 'tsx', '--input-type=module', '-e', script(databaseUrl)],
+      { cwd: projectRoot, encoding: 'utf8' },
+    );
     expect(run.status, run.stderr).toBe(0);
     const result = JSON.parse(run.stdout.trim().split('\n').pop()!);
     expect(result.up).toEqual({

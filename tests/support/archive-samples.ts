@@ -21,7 +21,13 @@ export interface SampleGate {
   heightMm: number;
   weightKg: number;
   entered: Record<string, { value: number; unit: string }>;
-  operator: { listed: boolean; automaticClosing: boolean; manufacturedOn: string; mounting: string; power: string };
+  operator: {
+    listed: boolean;
+    automaticClosing: boolean;
+    manufacturedOn: string;
+    mounting: string;
+    power: string;
+  };
 }
 
 export function sampleGate(prng: Prng): SampleGate {
@@ -81,8 +87,16 @@ export interface SampleDocuments {
   answers: Record<string, { value: string }>;
   measurements: Record<string, Measured>;
   observations: {
-    site: { pedestriansUseDriveway: boolean; childrenOrPetsPresent: boolean; publicAccess: boolean; slopeAcrossSwing: boolean };
-    entrapment: { zones: { zone: string; direction: string }[]; devices: { type: string; direction: string; zone: string; monitored: boolean }[] };
+    site: {
+      pedestriansUseDriveway: boolean;
+      childrenOrPetsPresent: boolean;
+      publicAccess: boolean;
+      slopeAcrossSwing: boolean;
+    };
+    entrapment: {
+      zones: { zone: string; direction: string }[];
+      devices: { type: string; direction: string; zone: string; monitored: boolean }[];
+    };
   };
 }
 
@@ -93,7 +107,8 @@ function sampleEntrapment(prng: Prng, diligence: number): SampleDocuments['obser
     { type: 'B1', direction: 'closing', zone: 'closing_edge', monitored: true },
     { type: 'A', direction: 'opening', zone: 'open_side', monitored: true },
   ];
-  if (prng.chance(diligence)) devices.push({ type: 'B2', direction: 'opening', zone: 'open_side', monitored: true });
+  if (prng.chance(diligence))
+    devices.push({ type: 'B2', direction: 'opening', zone: 'open_side', monitored: true });
   return {
     zones: [
       { zone: 'closing_edge', direction: 'closing' },
@@ -118,7 +133,8 @@ export function safeAnswersOf(version: Pick<RulesetVersion, 'rules'>): {
   const answers = new Map<string, string>();
   const below = new Map<string, number>();
   const above = new Map<string, number>();
-  const varName = (x: Logic) => (x && typeof x === 'object' && 'var' in (x as object) ? String((x as { var: unknown }).var) : null);
+  const varName = (x: Logic) =>
+    x && typeof x === 'object' && 'var' in (x as object) ? String((x as { var: unknown }).var) : null;
   for (const rule of version.rules) {
     const params = Object.fromEntries(Object.entries(rule.params).map(([k, v]) => [`params.${k}`, v.value]));
     const visit = (node: Logic): void => {
@@ -130,7 +146,8 @@ export function safeAnswersOf(version: Pick<RulesetVersion, 'rules'>): {
       const left = varName(args[0]);
       const right = varName(args[1]);
       const limit = right ? params[right] : typeof args[1] === 'number' ? args[1] : undefined;
-      if (op === '==' && left?.startsWith('answers.') && typeof args[1] === 'string') answers.set(left.slice(8), args[1]);
+      if (op === '==' && left?.startsWith('answers.') && typeof args[1] === 'string')
+        answers.set(left.slice(8), args[1]);
       else if (left?.startsWith('m.') && typeof limit === 'number') {
         if (op === '<=' || op === '<') below.set(left.slice(2), limit);
         if (op === '>=' || op === '>') above.set(left.slice(2), limit);
@@ -148,7 +165,11 @@ const safeCache = new WeakMap<object, ReturnType<typeof safeAnswersOf>>();
  * a passing gate would (see safeAnswersOf), otherwise anything in range, so most gates come out
  * clear and some fail an item or two.
  */
-export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'questions' | 'rules'>, diligence = 0.97): SampleDocuments {
+export function sampleDocuments(
+  prng: Prng,
+  version: Pick<RulesetVersion, 'questions' | 'rules'>,
+  diligence = 0.97,
+): SampleDocuments {
   let safe = safeCache.get(version);
   if (!safe) safeCache.set(version, (safe = safeAnswersOf(version)));
   const answers: SampleDocuments['answers'] = {};
@@ -156,11 +177,14 @@ export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'quest
   for (const question of version.questions) {
     const careful = prng.chance(diligence);
     if (question.answerType === 'yes_no_na') {
-      answers[question.key] = { value: careful ? (safe.answers.get(question.key) ?? 'yes') : prng.pick(['yes', 'no', 'na']) };
+      answers[question.key] = {
+        value: careful ? (safe.answers.get(question.key) ?? 'yes') : prng.pick(['yes', 'no', 'na']),
+      };
     } else if (question.answerType === 'choice') {
       const options = question.options ?? [];
       const good = safe.answers.get(question.key);
-      if (options.length) answers[question.key] = { value: careful && good ? good : prng.pick(options).value };
+      if (options.length)
+        answers[question.key] = { value: careful && good ? good : prng.pick(options).value };
     } else if (question.answerType === 'date' || question.answerType === 'text') {
       continue;
     } else {
@@ -169,9 +193,16 @@ export function sampleDocuments(prng: Prng, version: Pick<RulesetVersion, 'quest
       const under = safe.below.get(question.key);
       const over = safe.above.get(question.key);
       if (careful && (under !== undefined || over !== undefined)) {
-        const canonical = under !== undefined ? Math.round(under * 0.6 * 100) / 100 : Math.round(((over ?? 0) * 1.2 + 1) * 100) / 100;
+        const canonical =
+          under !== undefined
+            ? Math.round(under * 0.6 * 100) / 100
+            : Math.round(((over ?? 0) * 1.2 + 1) * 100) / 100;
         const unit = ranges[question.answerType]!.unit;
-        measurements[question.key] = { value: canonical, unit, canonical: canonicalValue(kindOfUnit(unit)!, canonical, unit) };
+        measurements[question.key] = {
+          value: canonical,
+          unit,
+          canonical: canonicalValue(kindOfUnit(unit)!, canonical, unit),
+        };
       } else measurements[question.key] = m;
     }
   }

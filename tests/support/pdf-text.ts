@@ -2,11 +2,19 @@
 import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
 
 export async function extractPdfText(bytes: Uint8Array): Promise<string> {
-  const doc = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, disableFontFace: true, useSystemFonts: false, verbosity: 0 }).promise;
+  const doc = await getDocument({
+    data: new Uint8Array(bytes),
+    isEvalSupported: false,
+    disableFontFace: true,
+    useSystemFonts: false,
+    verbosity: 0,
+  }).promise;
   const pages: string[] = [];
   for (let i = 1; i <= doc.numPages; i++) {
     const content = await (await doc.getPage(i)).getTextContent();
-    pages.push(content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? '\n' : '') : '')).join(''));
+    pages.push(
+      content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? '\n' : '') : '')).join(''),
+    );
   }
   await doc.destroy();
   // Parsing keeps the event loop busy for seconds on a loaded machine. Let it run once before

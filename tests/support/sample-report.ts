@@ -18,7 +18,10 @@ export function sampleResult(findingCount = 20) {
       area: areas[i % areas.length],
       severity: severities[i % 3 === 0 ? (i / 3) % 3 : i % 3],
       outcome,
-      missing: outcome === 'needs_info' ? [{ key: 'm.postGapMm', prompt: 'Measure the gap between the leaf and the post when open' }] : [],
+      missing:
+        outcome === 'needs_info'
+          ? [{ key: 'm.postGapMm', prompt: 'Measure the gap between the leaf and the post when open' }]
+          : [],
       observed: { [`m.gapItem${i}Mm`]: 30 + i, 'answers.signsPosted': i % 2 === 0 ? 'no' : 'yes' },
       params: { maxGapMm: { value: 25, unit: 'mm' } },
       hrn: outcome === 'fail' ? { value: 45 + i, band: 'high' } : undefined,
@@ -33,7 +36,16 @@ export function sampleResult(findingCount = 20) {
     verdict: 'withdraw',
     complete: false,
     findings,
-    areaScores: { pinch: 40, gaps: 72.5, signage: 100, force: 55, sensing: 88, controls: 100, build: null, power: 95 },
+    areaScores: {
+      pinch: 40,
+      gaps: 72.5,
+      signage: 100,
+      force: 55,
+      sensing: 88,
+      controls: 100,
+      build: null,
+      power: 95,
+    },
     counts: {},
     needsInfo: [],
     evidenceProblems: [],
@@ -55,7 +67,9 @@ export async function samplePhoto(seed: number, width = 1200, height = 900): Pro
     .toBuffer();
 }
 
-export async function sampleReportSource(options: { findings?: number; photos?: number } = {}): Promise<ReportSource> {
+export async function sampleReportSource(
+  options: { findings?: number; photos?: number } = {},
+): Promise<ReportSource> {
   const result = sampleResult(options.findings ?? 20);
   const failing = result.findings.filter((f) => f.outcome === 'fail');
   const photos = await Promise.all(
@@ -77,7 +91,12 @@ export async function sampleReportSource(options: { findings?: number; photos?: 
     documentId: '00000000-0000-4000-8000-000000000001',
     kind: 'preview',
     generatedAt: new Date('2026-11-21T09:00:00Z'),
-    organisation: { id: '00000000-0000-4000-8000-0000000000aa', name: 'Ironbark Gate Works', timeZone: 'America/Denver', displayUnits: 'imperial' },
+    organisation: {
+      id: '00000000-0000-4000-8000-0000000000aa',
+      name: 'Ironbark Gate Works',
+      timeZone: 'America/Denver',
+      displayUnits: 'imperial',
+    },
     assessment: {
       id: '00000000-0000-4000-8000-0000000000bb',
       purpose: 'inspection',
@@ -87,12 +106,28 @@ export async function sampleReportSource(options: { findings?: number; photos?: 
       supersedesId: null,
       result,
       resultSha256: 'c'.repeat(64),
-      swingGeometry: { aMm: 150, bMm: 180, bracketFromHingeMm: 900, retractedLengthMm: 760, strokeMm: 300, targetOpeningDeg: 90, leafWidthMm: 1830 },
+      swingGeometry: {
+        aMm: 150,
+        bMm: 180,
+        bracketFromHingeMm: 900,
+        retractedLengthMm: 760,
+        strokeMm: 300,
+        targetOpeningDeg: 90,
+        leafWidthMm: 1830,
+      },
     },
     auditor: { name: 'Rowan Tessier', email: 'rowan@ironbark.test' },
     client: { name: 'Quillfeather Household', contactEmail: 'home@quillfeather.test' },
     site: { name: 'Home', lines: ['9 Larchmere Rise', 'Marrowfield, CO 80999', 'US'], usageClass: 1 },
-    gate: { label: 'Driveway gate', kind: 'swing', leaves: 'double', openingDirection: 'pull_to_open', widthMm: 3660, heightMm: 1520, weightKg: 140 },
+    gate: {
+      label: 'Driveway gate',
+      kind: 'swing',
+      leaves: 'double',
+      openingDirection: 'pull_to_open',
+      widthMm: 3660,
+      heightMm: 1520,
+      weightKg: 140,
+    },
     ruleset: {
       title: 'North American residential gates',
       version: '2026.1',
@@ -109,7 +144,16 @@ export async function sampleReportSource(options: { findings?: number; photos?: 
       },
     },
     photos,
-    forceTraces: [{ label: 'Closing edge, 300 mm gap', itemKey: 'closingEdge300', samples, limitN: 400, peakN: 520, passed: false }],
+    forceTraces: [
+      {
+        label: 'Closing edge, 300 mm gap',
+        itemKey: 'closingEdge300',
+        samples,
+        limitN: 400,
+        peakN: 520,
+        passed: false,
+      },
+    ],
     signing: null,
   };
 }

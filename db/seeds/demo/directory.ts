@@ -31,7 +31,12 @@ export interface DemoSite {
   postalCode: string;
   usageClass: 1 | 2 | 3;
   notes?: string;
-  context: { pedestriansUseDriveway: boolean; childrenOrPetsPresent: boolean; publicAccess: boolean; slopeAcrossSwing: boolean };
+  context: {
+    pedestriansUseDriveway: boolean;
+    childrenOrPetsPresent: boolean;
+    publicAccess: boolean;
+    slopeAcrossSwing: boolean;
+  };
   gates: DemoGate[];
 }
 
@@ -43,9 +48,24 @@ export interface DemoClient {
   sites: DemoSite[];
 }
 
-const family = { pedestriansUseDriveway: true, childrenOrPetsPresent: true, publicAccess: false, slopeAcrossSwing: false };
-const quiet = { pedestriansUseDriveway: false, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false };
-const publicLot = { pedestriansUseDriveway: true, childrenOrPetsPresent: false, publicAccess: true, slopeAcrossSwing: false };
+const family = {
+  pedestriansUseDriveway: true,
+  childrenOrPetsPresent: true,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
+const quiet = {
+  pedestriansUseDriveway: false,
+  childrenOrPetsPresent: false,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
+const publicLot = {
+  pedestriansUseDriveway: true,
+  childrenOrPetsPresent: false,
+  publicAccess: true,
+  slopeAcrossSwing: false,
+};
 
 const swing = (
   label: string,
@@ -96,7 +116,9 @@ export const demoClients: DemoClient[] = [
         postalCode: '80999',
         usageClass: 1,
         context: family,
-        gates: [swing('Driveway gate', 'double', 'pull_to_open', 14, '2019-05-01', { photoEyeNotListed: true })],
+        gates: [
+          swing('Driveway gate', 'double', 'pull_to_open', 14, '2019-05-01', { photoEyeNotListed: true }),
+        ],
       },
     ],
   },
@@ -253,7 +275,9 @@ export const demoClients: DemoClient[] = [
         postalCode: '80995',
         usageClass: 2,
         context: { ...publicLot, childrenOrPetsPresent: true },
-        gates: [swing('Service court gate', 'single', 'pull_to_open', 12, '2016-05-09', { automaticClosing: true })],
+        gates: [
+          swing('Service court gate', 'single', 'pull_to_open', 12, '2016-05-09', { automaticClosing: true }),
+        ],
       },
       {
         name: 'Larkhill Terrace — garages',
@@ -263,7 +287,9 @@ export const demoClients: DemoClient[] = [
         postalCode: '80995',
         usageClass: 2,
         context: publicLot,
-        gates: [swing('Garage court gate', 'double', 'pull_to_open', 18, '2024-02-12', { automaticClosing: true })],
+        gates: [
+          swing('Garage court gate', 'double', 'pull_to_open', 18, '2024-02-12', { automaticClosing: true }),
+        ],
       },
     ],
   },
@@ -292,7 +318,11 @@ export const demoClients: DemoClient[] = [
         postalCode: '80994',
         usageClass: 2,
         context: publicLot,
-        gates: [swing('Customer car park gate', 'double', 'push_to_open', 16, '2022-06-15', { automaticClosing: true })],
+        gates: [
+          swing('Customer car park gate', 'double', 'push_to_open', 16, '2022-06-15', {
+            automaticClosing: true,
+          }),
+        ],
       },
     ],
   },
@@ -356,7 +386,9 @@ export const demoClients: DemoClient[] = [
         postalCode: '80993',
         usageClass: 2,
         context: { ...publicLot, childrenOrPetsPresent: true },
-        gates: [swing('Car park gate', 'double', 'pull_to_open', 18, '2015-04-04', { automaticClosing: true })],
+        gates: [
+          swing('Car park gate', 'double', 'pull_to_open', 18, '2015-04-04', { automaticClosing: true }),
+        ],
       },
       {
         name: 'Hall yard',

@@ -4,11 +4,15 @@
  */
 import sharp from 'sharp';
 
-const escape = (text: string) => text.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c] ?? c);
+const escape = (text: string) =>
+  text.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c] ?? c);
 
 /** A 1200×800 JPEG sketch of a gate with a caption, tinted per item so photos differ. */
 export async function gateSketchJpeg(caption: string, hue: number): Promise<Buffer> {
-  const bars = Array.from({ length: 14 }, (_, i) => `<rect x="${230 + i * 52}" y="270" width="10" height="330" fill="#2b3f57"/>`).join('');
+  const bars = Array.from(
+    { length: 14 },
+    (_, i) => `<rect x="${230 + i * 52}" y="270" width="10" height="330" fill="#2b3f57"/>`,
+  ).join('');
   const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="1200" height="800">
     <rect width="1200" height="800" fill="hsl(${hue},35%,82%)"/>
     <rect y="600" width="1200" height="200" fill="hsl(${hue},20%,55%)"/>
@@ -24,7 +28,10 @@ export async function gateSketchJpeg(caption: string, hue: number): Promise<Buff
 
 /** A transparent PNG pen stroke, as a signature pad would send it (data URL). */
 export async function squiggleSignaturePng(seed: number): Promise<string> {
-  const points = Array.from({ length: 9 }, (_, i) => `${30 + i * 45},${70 + Math.round(Math.sin(i * 1.7 + seed) * 30)}`).join(' ');
+  const points = Array.from(
+    { length: 9 },
+    (_, i) => `${30 + i * 45},${70 + Math.round(Math.sin(i * 1.7 + seed) * 30)}`,
+  ).join(' ');
   const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="420" height="140"><polyline points="${points}" fill="none" stroke="#121c29" stroke-width="4" stroke-linecap="round" stroke-linejoin="round"/></svg>`;
   const png = await sharp(Buffer.from(svg)).png().toBuffer();
   return `data:image/png;base64,${png.toString('base64')}`;

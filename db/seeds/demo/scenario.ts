@@ -51,7 +51,9 @@ export async function runDemoScenario(knex: Knex): Promise<number> {
   const org = await knex.transaction(async (trx) => {
     const [row] = await trx('organisations').insert(demoOrganisation).returning('id');
     const passwordHash = await hashPassword(demoPassword);
-    await trx('users').insert(demoStaff.map((s) => ({ ...s, organisation_id: row.id, password_hash: passwordHash })));
+    await trx('users').insert(
+      demoStaff.map((s) => ({ ...s, organisation_id: row.id, password_hash: passwordHash })),
+    );
     return row.id as string;
   });
   const staff = await knex('users').where({ organisation_id: org }).select('id', 'email', 'name', 'role');
@@ -69,7 +71,11 @@ export async function runDemoScenario(knex: Knex): Promise<number> {
     .whereNull('r.organisation_id')
     .andWhere('r.family', family)
     .select('rv.id', 'rv.version', 'rv.content', 'rv.content_sha256')) {
-    versions.set(row.version, { id: row.id, content: loadRulesetFile(row.content).version, contentSha256: row.content_sha256 });
+    versions.set(row.version, {
+      id: row.id,
+      content: loadRulesetFile(row.content).version,
+      contentSha256: row.content_sha256,
+    });
   }
   const labels = [...versions.keys()].sort();
   // The newest version is "just published": the autumn's visits were made under the one before it.
@@ -81,10 +87,21 @@ export async function runDemoScenario(knex: Knex): Promise<number> {
   for (const [clientIndex, demoClient] of demoClients.entries()) {
     const client = await createClient(
       owner,
-      ClientCreateSchema.parse({ name: demoClient.name, kind: demoClient.kind, contactEmail: demoClient.contactEmail, phone: demoClient.phone }),
+      ClientCreateSchema.parse({
+        name: demoClient.name,
+        kind: demoClient.kind,
+        contactEmail: demoClient.contactEmail,
+        phone: demoClient.phone,
+      }),
     );
     if (demoClient.contactEmail === demoHomeownerEmail) {
-      await knex('users').insert({ organisation_id: org, email: demoHomeownerEmail, name: 'Imogen Wren', role: 'homeowner', client_id: client.id });
+      await knex('users').insert({
+        organisation_id: org,
+        email: demoHomeownerEmail,
+        name: 'Imogen Wren',
+        role: 'homeowner',
+        client_id: client.id,
+      });
     }
     for (const demoSite of demoClient.sites) {
       const site = await createSite(
@@ -104,7 +121,15 @@ export async function runDemoScenario(knex: Knex): Promise<number> {
       for (const demoGate of demoSite.gates) {
         const gate = await createGate(owner, GateCreateSchema.parse(gateBody(site.id, demoGate)));
         for (const visit of visitsFor(gateIndex, clientIndex, earlier, current, auditors)) {
-          await carryOut(knex, { gate, site: demoSite, demoGate, visit, version: versions.get(visit.versionLabel)!, office, seed: gateIndex * 7 + made });
+          await carryOut(knex, {
+            gate,
+            site: demoSite,
+            demoGate,
+            visit,
+            version: versions.get(visit.versionLabel)!,
+            office,
+            seed: gateIndex * 7 + made,
+          });
           made += visit.outcome === 'revised' ? 2 : 1;
         }
         gateIndex++;
@@ -124,7 +149,13 @@ function gateBody(siteId: string, g: DemoGate) {
     width: g.width,
     height: g.height,
     weight: g.weight,
-    operator: { listed: true, automaticClosing: g.automaticClosing, manufacturedOn: g.operatorManufacturedOn, mounting: 'post', power: 'low_voltage_dc' },
+    operator: {
+      listed: true,
+      automaticClosing: g.automaticClosing,
+      manufacturedOn: g.operatorManufacturedOn,
+      mounting: 'post',
+      power: 'low_voltage_dc',
+    },
     installedOn: g.installedOn,
   };
 }
@@ -133,7 +164,13 @@ const conditions: GateCondition[] = ['sound', 'needs_work', 'dangerous', 'sound'
 const currentOutcomes: Outcome[] = ['signed', 'awaiting_signature', 'scored', 'draft', 'revised', 'signed'];
 
 /** Who went when: the first dozen gates had a visit last year on the earlier ruleset, every gate one this autumn. */
-function visitsFor(i: number, clientIndex: number, earlier: string, current: string, auditors: SessionUser[]): Visit[] {
+function visitsFor(
+  i: number,
+  clientIndex: number,
+  earlier: string,
+  current: string,
+  auditors: SessionUser[],
+): Visit[] {
   const visits: Visit[] = [];
   if (i < 12) {
     const month = String(1 + ((i * 5) % 12)).padStart(2, '0');
@@ -182,27 +219,40 @@ async function carryOut(knex: Knex, work: VisitWork): Promise<void> {
   );
   if (draft.ruleset.versionId !== version.id) {
     // The visit happened when the earlier version was current: pin it as it was then.
-    await knex('assessments').where({ id: draft.id, status: 'draft' }).update({ ruleset_version_id: version.id });
+    await knex('assessments')
+      .where({ id: draft.id, status: 'draft' })
+      .update({ ruleset_version_id: version.id });
   }
   const scoringGate = { ...gate, usageClass: site.usageClass };
   const verdictOf = (walk: WalkDocuments) => {
     const built = buildEngineInput(
       scoringGate,
-      { answers: walk.answers as never, measurements: walk.measurements as never, observations: { site: site.context, ...walk.observations } as never },
+      {
+        answers: walk.answers as never,
+        measurements: walk.measurements as never,
+        observations: { site: site.context, ...walk.observations } as never,
+      },
       version.content.questions,
     );
-    return built.ok ? scoreParsed(built.value, { version: version.content, contentSha256: version.contentSha256 }).verdict : 'invalid';
+    return built.ok
+      ? scoreParsed(built.value, { version: version.content, contentSha256: version.contentSha256 }).verdict
+      : 'invalid';
   };
   const walk = walkFor(
     demoGate.kind,
-    { ...site.context, openingDirection: demoGate.openingDirection, photoEyeNotListed: demoGate.photoEyeNotListed === true },
+    {
+      ...site.context,
+      openingDirection: demoGate.openingDirection,
+      photoEyeNotListed: demoGate.photoEyeNotListed === true,
+    },
     visit.condition,
     verdictOf,
     seed,
   );
   if (visit.outcome === 'draft') {
     // Half-way round the gate: the first few sections only.
-    const keep = (o: Record<string, unknown>) => Object.fromEntries(Object.entries(o).slice(0, Math.ceil(Object.keys(o).length / 2)));
+    const keep = (o: Record<string, unknown>) =>
+      Object.fromEntries(Object.entries(o).slice(0, Math.ceil(Object.keys(o).length / 2)));
     walk.answers = keep(walk.answers) as WalkDocuments['answers'];
     walk.measurements = keep(walk.measurements) as WalkDocuments['measurements'];
   }
@@ -216,7 +266,9 @@ async function carryOut(knex: Knex, work: VisitWork): Promise<void> {
   if (!saved) throw new Error(`demo: could not save ${draft.id}`);
 
   const photoKeys =
-    demoGate.kind === 'swing' ? ['hingeGapMm', 'fixedObjectClearanceMm', 'placardsSide1'] : ['largestOpeningMm', 'rollersGuarded', 'placardsSide1'];
+    demoGate.kind === 'swing'
+      ? ['hingeGapMm', 'fixedObjectClearanceMm', 'placardsSide1']
+      : ['largestOpeningMm', 'rollersGuarded', 'placardsSide1'];
   for (const [n, itemKey] of photoKeys.slice(0, 1 + (seed % 3)).entries()) {
     if (!known.has(itemKey)) continue;
     const bytes = await gateSketchJpeg(`${demoGate.label}: ${itemKey}`, (seed * 37 + n * 61) % 360);

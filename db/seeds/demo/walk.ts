@@ -67,11 +67,25 @@ export function soundWalk(kind: 'swing' | 'slide', context: WalkContext): WalkDo
   };
   if (context.childrenOrPetsPresent) answers.controlsOutOfChildReach = yes;
   if (kind === 'swing') {
-    Object.assign(answers, { hingeSideGuarded: yes, operatorArmGuarded: yes, objectBehindOpenGate: no, positiveStopClosed: yes });
-    Object.assign(measurements, { bottomGapMm: length(3, 'in'), hingeGapMm: length(30, 'mm'), fixedObjectClearanceMm: length(20, 'in') });
+    Object.assign(answers, {
+      hingeSideGuarded: yes,
+      operatorArmGuarded: yes,
+      objectBehindOpenGate: no,
+      positiveStopClosed: yes,
+    });
+    Object.assign(measurements, {
+      bottomGapMm: length(3, 'in'),
+      hingeGapMm: length(30, 'mm'),
+      fixedObjectClearanceMm: length(20, 'in'),
+    });
     if (context.slopeAcrossSwing) measurements.bottomClearanceOverSwingMm = length(2, 'in');
   } else {
-    Object.assign(answers, { fenceCoveredScreened: yes, rollersGuarded: yes, positiveStopsBothEnds: yes, postGapGuarded: yes });
+    Object.assign(answers, {
+      fenceCoveredScreened: yes,
+      rollersGuarded: yes,
+      positiveStopsBothEnds: yes,
+      postGapGuarded: yes,
+    });
     Object.assign(measurements, {
       largestOpeningMm: length(1.5, 'in'),
       openingsGuardedToMm: length(6, 'ft'),
@@ -87,13 +101,29 @@ export function soundWalk(kind: 'swing' | 'slide', context: WalkContext): WalkDo
       ],
       devices: [
         { type: 'A', direction: 'closing', zone: 'closing_edge', monitored: true },
-        { type: context.photoEyeNotListed ? 'B2' : 'B1', direction: 'closing', zone: 'closing_edge', monitored: true },
-        { type: 'A', direction: 'opening', zone: kind === 'swing' ? 'open_side' : 'post_gap', monitored: true },
-        { type: 'B2', direction: 'opening', zone: kind === 'swing' ? 'open_side' : 'post_gap', monitored: true },
+        {
+          type: context.photoEyeNotListed ? 'B2' : 'B1',
+          direction: 'closing',
+          zone: 'closing_edge',
+          monitored: true,
+        },
+        {
+          type: 'A',
+          direction: 'opening',
+          zone: kind === 'swing' ? 'open_side' : 'post_gap',
+          monitored: true,
+        },
+        {
+          type: 'B2',
+          direction: 'opening',
+          zone: kind === 'swing' ? 'open_side' : 'post_gap',
+          monitored: true,
+        },
       ],
     },
   };
-  if (kind === 'swing' && context.openingDirection === 'pull_to_open') observations.swingGeometry = pullToOpenRam;
+  if (kind === 'swing' && context.openingDirection === 'pull_to_open')
+    observations.swingGeometry = pullToOpenRam;
   return { answers, measurements, observations };
 }
 
@@ -133,7 +163,8 @@ const majorFaults: Fault[] = [
 const criticalFaults: Record<'swing' | 'slide', Fault[]> = {
   swing: [
     (w) => void (w.measurements.fixedObjectClearanceMm = length(10, 'in')),
-    (w) => void (w.answers.photoEyeTestReverses = { value: 'no', note: 'Photo-eye blocked: gate kept closing.' }),
+    (w) =>
+      void (w.answers.photoEyeTestReverses = { value: 'no', note: 'Photo-eye blocked: gate kept closing.' }),
     (w) => void (w.measurements.hingeGapMm = length(12, 'mm')),
   ],
   slide: [
@@ -158,8 +189,16 @@ export function walkFor(
   const wanted = condition === 'sound' ? 'clear' : condition === 'needs_work' ? 'remedy' : 'withdraw';
   // A dangerous swing gate is first found with a wall near its open leaf (its open side carries a
   // monitored edge, which the newest North American version counts as protecting that zone).
-  const critical = kind === 'swing' ? [criticalFaults.swing[0]!, ...rotate(criticalFaults.swing.slice(1), seed)] : rotate(criticalFaults.slide, seed);
-  const faults = condition === 'sound' ? [] : condition === 'needs_work' ? rotate(majorFaults, seed) : [...critical, ...majorFaults];
+  const critical =
+    kind === 'swing'
+      ? [criticalFaults.swing[0]!, ...rotate(criticalFaults.swing.slice(1), seed)]
+      : rotate(criticalFaults.slide, seed);
+  const faults =
+    condition === 'sound'
+      ? []
+      : condition === 'needs_work'
+        ? rotate(majorFaults, seed)
+        : [...critical, ...majorFaults];
   for (const fault of faults) {
     if (verdictOf(walk) === wanted) break;
     fault(walk);

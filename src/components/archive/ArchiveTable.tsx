@@ -6,7 +6,14 @@
  * the next one loads, so the table does not jump.
  */
 import { QueryClient, QueryClientProvider, keepPreviousData, useQuery } from '@tanstack/react-query';
-import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState, type Updater } from '@tanstack/react-table';
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  useReactTable,
+  type SortingState,
+  type Updater,
+} from '@tanstack/react-table';
 import { useEffect, useMemo, useRef, useState } from 'react';
 import type { ArchiveItem } from '@/lib/api/archive';
 import {
@@ -21,7 +28,13 @@ import {
   type ArchiveSort,
   type ArchiveViewState,
 } from '@/lib/archive-query';
-import { count as countOf, rulesetLabel, usageClassLabel, VERDICT_WORDS, type VerdictCode } from '@/lib/vocabulary';
+import {
+  count as countOf,
+  rulesetLabel,
+  usageClassLabel,
+  VERDICT_WORDS,
+  type VerdictCode,
+} from '@/lib/vocabulary';
 import { fetchArchiveCount, fetchArchivePage } from './archive-api';
 
 export interface ArchiveOptions {
@@ -37,7 +50,12 @@ interface Props {
 }
 
 export default function ArchiveApp(props: Props) {
-  const [client] = useState(() => new QueryClient({ defaultOptions: { queries: { staleTime: 30_000, refetchOnWindowFocus: false, retry: 1 } } }));
+  const [client] = useState(
+    () =>
+      new QueryClient({
+        defaultOptions: { queries: { staleTime: 30_000, refetchOnWindowFocus: false, retry: 1 } },
+      }),
+  );
   return (
     <QueryClientProvider client={client}>
       <ArchiveTable {...props} />
@@ -61,7 +79,9 @@ function Outcome({ item }: { item: ArchiveItem }) {
   const verdict = item.verdict as VerdictCode | null;
   return (
     <span className="inline-flex flex-wrap items-center gap-x-2 gap-y-1">
-      <span className="rounded bg-iron-100 px-2 py-0.5 text-xs font-semibold">{STATUS_LABELS[item.status as keyof typeof STATUS_LABELS] ?? 'Unknown'}</span>
+      <span className="rounded bg-iron-100 px-2 py-0.5 text-xs font-semibold">
+        {STATUS_LABELS[item.status as keyof typeof STATUS_LABELS] ?? 'Unknown'}
+      </span>
       {verdict && (
         <span className={`inline-flex items-center gap-1 text-xs font-semibold ${tone[verdict]}`}>
           <span aria-hidden="true">{icon[verdict]}</span>
@@ -73,10 +93,16 @@ function Outcome({ item }: { item: ArchiveItem }) {
 }
 
 function ArchiveTable({ initialSearch, options, timeZone }: Props) {
-  const [state, setState] = useState<ArchiveViewState>(() => viewStateFrom(new URLSearchParams(initialSearch)));
+  const [state, setState] = useState<ArchiveViewState>(() =>
+    viewStateFrom(new URLSearchParams(initialSearch)),
+  );
   // What is typed in the text boxes; committed to the state (and the URL) after a short pause.
   const [typed, setTyped] = useState(
-    () => Object.fromEntries(TEXT_FILTERS.map((k) => [k, state.filters[k] ?? ''])) as Record<(typeof TEXT_FILTERS)[number], string>,
+    () =>
+      Object.fromEntries(TEXT_FILTERS.map((k) => [k, state.filters[k] ?? ''])) as Record<
+        (typeof TEXT_FILTERS)[number],
+        string
+      >,
   );
   const historyMode = useRef<'push' | 'replace'>('replace');
 
@@ -94,7 +120,8 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
 
   useEffect(() => {
     const timer = setTimeout(() => {
-      for (const key of TEXT_FILTERS) if ((state.filters[key] ?? '') !== typed[key].trim()) setFilter(key, typed[key].trim(), 'replace');
+      for (const key of TEXT_FILTERS)
+        if ((state.filters[key] ?? '') !== typed[key].trim()) setFilter(key, typed[key].trim(), 'replace');
     }, 300);
     return () => clearTimeout(timer);
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -121,14 +148,21 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
     return () => window.removeEventListener('popstate', onPop);
   }, []);
 
-  const page = useQuery({ queryKey: ['archive', query], queryFn: ({ signal }) => fetchArchivePage(query, signal), placeholderData: keepPreviousData });
+  const page = useQuery({
+    queryKey: ['archive', query],
+    queryFn: ({ signal }) => fetchArchivePage(query, signal),
+    placeholderData: keepPreviousData,
+  });
   const count = useQuery({
     queryKey: ['archive-count', filterQuery],
     queryFn: ({ signal }) => fetchArchiveCount(filterQuery, signal),
     placeholderData: keepPreviousData,
   });
 
-  const dateFormat = useMemo(() => new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone }), [timeZone]);
+  const dateFormat = useMemo(
+    () => new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone }),
+    [timeZone],
+  );
   const titleOf = useMemo(() => {
     const titles = new Map(options.rulesets.map((r) => [r.family, r.title]));
     return (family: string) => titles.get(family) ?? null;
@@ -142,12 +176,19 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         header: 'Visit',
         sortDescFirst: true,
         cell: (c) => (
-          <a href={`/assessments/${c.row.original.id}`} className="inline-flex min-h-11 items-center whitespace-nowrap font-semibold">
+          <a
+            href={`/assessments/${c.row.original.id}`}
+            className="inline-flex min-h-11 items-center whitespace-nowrap font-semibold"
+          >
             {dateFormat.format(new Date(c.getValue()))}
           </a>
         ),
       }),
-      column.accessor((row) => row.client.name, { id: 'client', header: 'Client', cell: (c) => <span className="font-semibold">{c.getValue()}</span> }),
+      column.accessor((row) => row.client.name, {
+        id: 'client',
+        header: 'Client',
+        cell: (c) => <span className="font-semibold">{c.getValue()}</span>,
+      }),
       column.accessor((row) => row.site.addressLine1, {
         id: 'address',
         header: 'Address',
@@ -155,7 +196,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         cell: (c) => (
           <span>
             {c.getValue()}, {c.row.original.site.city}
-            <span className="block text-xs text-iron-600">{usageClassLabel(c.row.original.site.usageClass)}</span>
+            <span className="block text-xs text-iron-600">
+              {usageClassLabel(c.row.original.site.usageClass)}
+            </span>
           </span>
         ),
       }),
@@ -164,10 +207,15 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         header: 'Gate',
         cell: (c) => (
           <span>
-            <a href={`/archive/gates/${c.row.original.gate.id}`} className="inline-flex min-h-11 items-center">
+            <a
+              href={`/archive/gates/${c.row.original.gate.id}`}
+              className="inline-flex min-h-11 items-center"
+            >
               {c.getValue()}
             </a>
-            <span className="block text-xs text-iron-600">{GATE_KIND_LABELS[c.row.original.gate.kind] ?? c.row.original.gate.kind}</span>
+            <span className="block text-xs text-iron-600">
+              {GATE_KIND_LABELS[c.row.original.gate.kind] ?? c.row.original.gate.kind}
+            </span>
           </span>
         ),
       }),
@@ -205,9 +253,13 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
     getRowId: (row) => row.id,
   });
 
-  const rulesetValue = state.filters.family ? `${state.filters.family}${state.filters.version ? ` ${state.filters.version}` : ''}` : '';
+  const rulesetValue = state.filters.family
+    ? `${state.filters.family}${state.filters.version ? ` ${state.filters.version}` : ''}`
+    : '';
   const anyFilter = Object.values(state.filters).some(Boolean);
-  const activeFilters = Object.entries(state.filters).filter(([k, v]) => v && k !== 'q' && k !== 'version').length;
+  const activeFilters = Object.entries(state.filters).filter(
+    ([k, v]) => v && k !== 'q' && k !== 'version',
+  ).length;
   const total = count.data?.total;
 
   return (
@@ -227,7 +279,11 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             A name, street, postal code or gate.
           </span>
         </label>
-        <details className="group" open={filtersOpen} onToggle={(e) => setFiltersOpen((e.target as HTMLDetailsElement).open)}>
+        <details
+          className="group"
+          open={filtersOpen}
+          onToggle={(e) => setFiltersOpen((e.target as HTMLDetailsElement).open)}
+        >
           <summary className="flex min-h-11 cursor-pointer items-center font-semibold text-iron-800">
             <span aria-hidden="true" className="mr-2 inline-block transition-transform group-open:rotate-90">
               ▸
@@ -237,21 +293,48 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
           <div className="mt-2 grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
             <label>
               <span className="label">Client name</span>
-              <input className="field" type="text" value={typed.client} onChange={(e) => setTyped({ ...typed, client: e.target.value })} autoComplete="off" />
+              <input
+                className="field"
+                type="text"
+                value={typed.client}
+                onChange={(e) => setTyped({ ...typed, client: e.target.value })}
+                autoComplete="off"
+              />
             </label>
             <label>
               <span className="label">Address</span>
-              <input className="field" type="text" value={typed.address} onChange={(e) => setTyped({ ...typed, address: e.target.value })} autoComplete="off" />
+              <input
+                className="field"
+                type="text"
+                value={typed.address}
+                onChange={(e) => setTyped({ ...typed, address: e.target.value })}
+                autoComplete="off"
+              />
             </label>
-            <Select label="Gate kind" value={state.filters.gateKind} onChange={(v) => setFilter('gateKind', v)} options={Object.entries(GATE_KIND_LABELS)} />
+            <Select
+              label="Gate kind"
+              value={state.filters.gateKind}
+              onChange={(v) => setFilter('gateKind', v)}
+              options={Object.entries(GATE_KIND_LABELS)}
+            />
             <Select
               label="Usage class"
               value={state.filters.usageClass}
               onChange={(v) => setFilter('usageClass', v)}
               options={['1', '2', '3', '4'].map((c) => [c, usageClassLabel(Number(c)).replace(/^u/, 'U')])}
             />
-            <Select label="Status" value={state.filters.status} onChange={(v) => setFilter('status', v)} options={Object.entries(STATUS_LABELS)} />
-            <Select label="Verdict" value={state.filters.verdict} onChange={(v) => setFilter('verdict', v)} options={Object.entries(VERDICT_LABELS)} />
+            <Select
+              label="Status"
+              value={state.filters.status}
+              onChange={(v) => setFilter('status', v)}
+              options={Object.entries(STATUS_LABELS)}
+            />
+            <Select
+              label="Verdict"
+              value={state.filters.verdict}
+              onChange={(v) => setFilter('verdict', v)}
+              options={Object.entries(VERDICT_LABELS)}
+            />
             <label>
               <span className="label">Ruleset</span>
               <select
@@ -259,7 +342,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
                 value={rulesetValue}
                 onChange={(e) => {
                   const [family, version] = e.target.value.split(' ');
-                  update({ filters: { ...state.filters, family: family || undefined, version: version || undefined } });
+                  update({
+                    filters: { ...state.filters, family: family || undefined, version: version || undefined },
+                  });
                 }}
               >
                 <option value="">Any</option>
@@ -283,11 +368,21 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             />
             <label>
               <span className="label">Visited from</span>
-              <input className="field" type="date" value={state.filters.from ?? ''} onChange={(e) => setFilter('from', e.target.value)} />
+              <input
+                className="field"
+                type="date"
+                value={state.filters.from ?? ''}
+                onChange={(e) => setFilter('from', e.target.value)}
+              />
             </label>
             <label>
               <span className="label">Visited to</span>
-              <input className="field" type="date" value={state.filters.to ?? ''} onChange={(e) => setFilter('to', e.target.value)} />
+              <input
+                className="field"
+                type="date"
+                value={state.filters.to ?? ''}
+                onChange={(e) => setFilter('to', e.target.value)}
+              />
             </label>
           </div>
           <div className="mt-3">
@@ -309,7 +404,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             Export signed PDFs (ZIP)
           </a>
           <p className="text-sm text-iron-600" aria-live="polite">
-            {total === undefined ? 'Counting…' : `${countOf(total, 'assessment')} ${total === 1 ? 'matches' : 'match'}`}
+            {total === undefined
+              ? 'Counting…'
+              : `${countOf(total, 'assessment')} ${total === 1 ? 'matches' : 'match'}`}
           </p>
         </div>
       </form>
@@ -344,13 +441,18 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             </p>
           </li>
         ))}
-        {page.isSuccess && page.data.items.length === 0 && <li className="card text-iron-600">Nothing in the archive matches these filters.</li>}
+        {page.isSuccess && page.data.items.length === 0 && (
+          <li className="card text-iron-600">Nothing in the archive matches these filters.</li>
+        )}
         {page.isPending && <li className="card text-iron-600">Loading…</li>}
       </ul>
 
       <div className="card hidden overflow-x-auto p-0 md:block" aria-busy={page.isFetching}>
         <table className="w-full min-w-[52rem] border-collapse text-left text-sm">
-          <caption className="sr-only">Archived assessments, {state.sort.includes('date') ? 'by visit date' : `by ${state.sort.replace('-', '')}`}</caption>
+          <caption className="sr-only">
+            Archived assessments,{' '}
+            {state.sort.includes('date') ? 'by visit date' : `by ${state.sort.replace('-', '')}`}
+          </caption>
           <thead className="bg-iron-50">
             {table.getHeaderGroups().map((group) => (
               <tr key={group.id}>
@@ -370,7 +472,9 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
                           onClick={header.column.getToggleSortingHandler()}
                         >
                           {flexRender(header.column.columnDef.header, header.getContext())}
-                          <span aria-hidden="true">{sorted === 'desc' ? '▼' : sorted === 'asc' ? '▲' : '↕'}</span>
+                          <span aria-hidden="true">
+                            {sorted === 'desc' ? '▼' : sorted === 'asc' ? '▲' : '↕'}
+                          </span>
                         </button>
                       ) : (
                         flexRender(header.column.columnDef.header, header.getContext())
@@ -420,7 +524,11 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
         </button>
         <label className="flex items-center gap-2 text-sm">
           Rows per page
-          <select className="field w-auto" value={state.limit} onChange={(e) => update({ limit: Number(e.target.value) })}>
+          <select
+            className="field w-auto"
+            value={state.limit}
+            onChange={(e) => update({ limit: Number(e.target.value) })}
+          >
             {ARCHIVE_PAGE_SIZES.map((size) => (
               <option key={size} value={size}>
                 {size}
@@ -428,7 +536,12 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             ))}
           </select>
         </label>
-        <button type="button" className="btn-secondary" disabled={!page.data?.nextCursor} onClick={() => update({ after: page.data?.nextCursor ?? undefined })}>
+        <button
+          type="button"
+          className="btn-secondary"
+          disabled={!page.data?.nextCursor}
+          onClick={() => update({ after: page.data?.nextCursor ?? undefined })}
+        >
           Next →
         </button>
       </nav>

@@ -26,7 +26,12 @@ interface Props {
 }
 
 export default function ImpactApp(props: Props) {
-  const [client] = useState(() => new QueryClient({ defaultOptions: { queries: { staleTime: 5 * 60_000, refetchOnWindowFocus: false, retry: 0 } } }));
+  const [client] = useState(
+    () =>
+      new QueryClient({
+        defaultOptions: { queries: { staleTime: 5 * 60_000, refetchOnWindowFocus: false, retry: 0 } },
+      }),
+  );
   return (
     <QueryClientProvider client={client}>
       <ImpactList {...props} />
@@ -35,7 +40,11 @@ export default function ImpactApp(props: Props) {
 }
 
 /** Verdicts as coloured text (a status), not filled pills that look like buttons. */
-const verdictClass: Record<string, string> = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' };
+const verdictClass: Record<string, string> = {
+  clear: 'text-clear',
+  remedy: 'text-remedy',
+  withdraw: 'text-withdraw',
+};
 const beforeWords: Record<string, string> = {
   pass: 'passed',
   fail: 'failed at a lower severity',
@@ -77,10 +86,17 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
         <fieldset>
           <legend className="label">Re-score</legend>
           <label className="mr-4 inline-flex min-h-11 items-center gap-2">
-            <input type="radio" name="basis" checked={basis === 'latest'} onChange={() => setBasis('latest')} /> each gate's last visit
+            <input
+              type="radio"
+              name="basis"
+              checked={basis === 'latest'}
+              onChange={() => setBasis('latest')}
+            />{' '}
+            each gate's last visit
           </label>
           <label className="inline-flex min-h-11 items-center gap-2">
-            <input type="radio" name="basis" checked={basis === 'all'} onChange={() => setBasis('all')} /> every signed visit
+            <input type="radio" name="basis" checked={basis === 'all'} onChange={() => setBasis('all')} />{' '}
+            every signed visit
           </label>
         </fieldset>
       </form>
@@ -99,13 +115,16 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
         <>
           <section className="card" aria-live="polite">
             <h2 className="text-lg font-bold">
-              {candidates.find((c) => c.id === data.target.id)?.title ?? 'Ruleset'} {data.target.version} against{' '}
-              {listOf(data.target.comparedWith) || 'no earlier version'}
+              {candidates.find((c) => c.id === data.target.id)?.title ?? 'Ruleset'} {data.target.version}{' '}
+              against {listOf(data.target.comparedWith) || 'no earlier version'}
             </h2>
             <p className="mt-1">
-              {count(data.considered, 'signed assessment')} re-scored in {(data.durationMs / 1000).toFixed(1)} s:{' '}
-              <strong className="text-withdraw">{data.worse} worse</strong>, {data.same} unchanged, {data.better} better
-              {data.unscorable > 0 && `, ${data.unscorable} could not be re-scored (the new version needs answers they do not have)`}.
+              {count(data.considered, 'signed assessment')} re-scored in {(data.durationMs / 1000).toFixed(1)}{' '}
+              s: <strong className="text-withdraw">{data.worse} worse</strong>, {data.same} unchanged,{' '}
+              {data.better} better
+              {data.unscorable > 0 &&
+                `, ${data.unscorable} could not be re-scored (the new version needs answers they do not have)`}
+              .
             </p>
             <a className="btn mt-3" href={`/api/archive/impact.csv?${query}`} download>
               Download the list (CSV)
@@ -120,21 +139,31 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                       {item.gateLabel}
                     </a>
                     <span className="text-sm text-iron-600">
-                      {item.address}, {item.city} · {item.clientName} · visited {day.format(new Date(item.visitDate))} (version {item.fromVersion})
+                      {item.address}, {item.city} · {item.clientName} · visited{' '}
+                      {day.format(new Date(item.visitDate))} (version {item.fromVersion})
                     </span>
                   </div>
                   <p className="mt-1 flex flex-wrap items-center gap-1 text-sm">
-                    <span className={`text-sm font-semibold ${verdictClass[item.before]}`}>{VERDICT_LABELS[item.before]}</span>
+                    <span className={`text-sm font-semibold ${verdictClass[item.before]}`}>
+                      {VERDICT_LABELS[item.before]}
+                    </span>
                     <span aria-hidden="true">→</span>
                     <span className="sr-only">would become</span>
-                    {item.after && <span className={`text-sm font-semibold ${verdictClass[item.after]}`}>{VERDICT_LABELS[item.after]}</span>}
+                    {item.after && (
+                      <span className={`text-sm font-semibold ${verdictClass[item.after]}`}>
+                        {VERDICT_LABELS[item.after]}
+                      </span>
+                    )}
                   </p>
                   <ul className="mt-2 list-disc pl-5 text-sm">
                     {item.rules.map((r) => (
                       <li key={r.ruleId}>
                         <strong>{r.title}</strong>{' '}
-                        <span className="text-iron-600">({SEVERITY_LABEL[r.severity as keyof typeof SEVERITY_LABEL] ?? 'Other'})</span>:{' '}
-                        {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it {beforeWords[r.before] ?? r.before}.
+                        <span className="text-iron-600">
+                          ({SEVERITY_LABEL[r.severity as keyof typeof SEVERITY_LABEL] ?? 'Other'})
+                        </span>
+                        : {r.outcome === 'fail' ? 'fails' : 'cannot be checked'}; before it{' '}
+                        {beforeWords[r.before] ?? r.before}.
                       </li>
                     ))}
                   </ul>

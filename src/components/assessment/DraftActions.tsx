@@ -20,7 +20,10 @@ export default function DraftActions({ assessmentId, gateLabel }: Props) {
     setBusy(true);
     setMessage(null);
     try {
-      const res = await fetch(`/api/assessments/${assessmentId}`, { method: 'DELETE', headers: { accept: 'application/json' } });
+      const res = await fetch(`/api/assessments/${assessmentId}`, {
+        method: 'DELETE',
+        headers: { accept: 'application/json' },
+      });
       if (res.status === 204 || res.status === 404) return window.location.assign('/assessments?discarded=1');
       const problem = await res.json().catch(() => ({}));
       setMessage(problem.detail ?? `The draft could not be discarded (the server answered ${res.status}).`);
@@ -58,7 +61,10 @@ export default function DraftActions({ assessmentId, gateLabel }: Props) {
         onCancel={() => setAsking(false)}
       >
         <p>The answers and measurements for {gateLabel} in this draft are deleted. This cannot be undone.</p>
-        <p>The gate, its site and earlier assessments stay as they are. The audit trail keeps a note that the draft was discarded.</p>
+        <p>
+          The gate, its site and earlier assessments stay as they are. The audit trail keeps a note that the
+          draft was discarded.
+        </p>
       </ConfirmDialog>
     </div>
   );

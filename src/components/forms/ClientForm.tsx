@@ -16,7 +16,11 @@ interface Values {
   notes: string;
 }
 
-const KIND_LABEL = { homeowner: 'Homeowner', property_manager: 'Property manager', business: 'Business' } as const;
+const KIND_LABEL = {
+  homeowner: 'Homeowner',
+  property_manager: 'Property manager',
+  business: 'Business',
+} as const;
 
 /** The fields that differ from the stored client; a blanked optional field is sent as null. */
 function changes(client: Client, values: Values): Partial<Record<keyof Values, string | null>> {
@@ -30,16 +34,29 @@ function changes(client: Client, values: Values): Partial<Record<keyof Values, s
 
 export default function ClientForm({ client }: { client?: Client } = {}) {
   const { register, handleSubmit, setError, formState } = useForm<Values>({
-    resolver: client ? apiResolver<Values>(ClientPatchSchema, (values) => changes(client, values)) : apiResolver<Values>(ClientCreateSchema),
+    resolver: client
+      ? apiResolver<Values>(ClientPatchSchema, (values) => changes(client, values))
+      : apiResolver<Values>(ClientCreateSchema),
     defaultValues: client
-      ? { name: client.name, kind: client.kind, contactEmail: client.contactEmail ?? '', phone: client.phone ?? '', notes: client.notes ?? '' }
+      ? {
+          name: client.name,
+          kind: client.kind,
+          contactEmail: client.contactEmail ?? '',
+          phone: client.phone ?? '',
+          notes: client.notes ?? '',
+        }
       : { name: '', kind: 'homeowner', contactEmail: '', phone: '', notes: '' },
   });
   const [message, setMessage] = useState<string | null>(null);
   const errors = formState.errors;
   const onSubmit = handleSubmit(async (values) => {
     if (client) {
-      const sent = await sendJson<Client, Values>('PATCH', `/api/clients/${client.id}`, changes(client, values), setError);
+      const sent = await sendJson<Client, Values>(
+        'PATCH',
+        `/api/clients/${client.id}`,
+        changes(client, values),
+        setError,
+      );
       setMessage(sent.message);
       if (sent.ok) window.location.reload();
       return;
@@ -51,7 +68,9 @@ export default function ClientForm({ client }: { client?: Client } = {}) {
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
       <Field label="Name" error={errors.name?.message} className="sm:col-span-2">
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />}
+        {(id, d) => (
+          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />
+        )}
       </Field>
       <Field label="Kind of client" error={errors.kind?.message}>
         {(id, d) => (
@@ -65,13 +84,37 @@ export default function ClientForm({ client }: { client?: Client } = {}) {
         )}
       </Field>
       <Field label="Phone" error={errors.phone?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} className="field" type="tel" autoComplete="off" {...register('phone')} />}
+        {(id, d) => (
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field"
+            type="tel"
+            autoComplete="off"
+            {...register('phone')}
+          />
+        )}
       </Field>
-      <Field label="E-mail for reports and signing" error={errors.contactEmail?.message} className="sm:col-span-2">
-        {(id, d) => <input id={id} aria-describedby={d} className="field" type="email" autoComplete="off" {...register('contactEmail')} />}
+      <Field
+        label="E-mail for reports and signing"
+        error={errors.contactEmail?.message}
+        className="sm:col-span-2"
+      >
+        {(id, d) => (
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field"
+            type="email"
+            autoComplete="off"
+            {...register('contactEmail')}
+          />
+        )}
       </Field>
       <Field label="Notes" error={errors.notes?.message} className="sm:col-span-2">
-        {(id, d) => <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />}
+        {(id, d) => (
+          <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />
+        )}
       </Field>
       <div className="grid gap-2 sm:col-span-2">
         <FormMessage message={message} />

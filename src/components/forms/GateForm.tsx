@@ -5,7 +5,14 @@
  */
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
-import { GATE_KIND_VALUES, GateCreateSchema, GatePatchSchema, OPERATOR_MOUNTINGS, OPERATOR_POWER, type Gate } from '@/lib/api/gates';
+import {
+  GATE_KIND_VALUES,
+  GateCreateSchema,
+  GatePatchSchema,
+  OPERATOR_MOUNTINGS,
+  OPERATOR_POWER,
+  type Gate,
+} from '@/lib/api/gates';
 import type { UnitSystem } from '@/lib/units';
 import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
 
@@ -19,7 +26,14 @@ interface Values {
   width: { value: number; unit: string };
   height: { value: number; unit: string };
   weight: { value: number; unit: string };
-  operator: { listed: Tri; automaticClosing: Tri; manufacturedOn: string; mounting: string; power: string; model: string };
+  operator: {
+    listed: Tri;
+    automaticClosing: Tri;
+    manufacturedOn: string;
+    mounting: string;
+    power: string;
+    model: string;
+  };
   installedOn: string;
 }
 
@@ -48,8 +62,13 @@ const POWER_LABEL: Record<string, string> = {
   other: 'Other',
 };
 
-const triState = { setValueAs: (v: unknown) => (v === '' || v === undefined ? undefined : v === true || v === 'true') };
-const number = { setValueAs: (v: unknown) => (v === '' || v === undefined ? Number.NaN : Number(String(v).replace(',', '.'))) };
+const triState = {
+  setValueAs: (v: unknown) => (v === '' || v === undefined ? undefined : v === true || v === 'true'),
+};
+const number = {
+  setValueAs: (v: unknown) =>
+    v === '' || v === undefined ? Number.NaN : Number(String(v).replace(',', '.')),
+};
 
 /** The body as the API takes it: a dimension without a number is not sent; a swing's direction only for swings. */
 function toBody(values: Values, mode: 'create' | 'edit'): unknown {
@@ -108,17 +127,32 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
   const errors = formState.errors;
   const kind = watch('kind');
   const onSubmit = handleSubmit(async (values) => {
-    const sent = await sendJson<Gate, Values>(gate ? 'PATCH' : 'POST', gate ? `/api/gates/${gate.id}` : '/api/gates', toBody(values, mode), setError);
+    const sent = await sendJson<Gate, Values>(
+      gate ? 'PATCH' : 'POST',
+      gate ? `/api/gates/${gate.id}` : '/api/gates',
+      toBody(values, mode),
+      setError,
+    );
     setMessage(sent.message);
     // A new query string, so the site page reloads with the new gate listed.
-    if (sent.ok && sent.body) window.location.assign(next ?? `/sites/${siteId}?gate=${sent.body.id}#gate-${sent.body.id}`);
+    if (sent.ok && sent.body)
+      window.location.assign(next ?? `/sites/${siteId}?gate=${sent.body.id}#gate-${sent.body.id}`);
   });
 
   const dimension = (key: 'width' | 'height' | 'weight', label: string, unitsOffered: string[]) => (
-    <Field label={label} error={errors[key]?.value?.message ?? errors[key]?.message ?? errors[key]?.unit?.message}>
+    <Field
+      label={label}
+      error={errors[key]?.value?.message ?? errors[key]?.message ?? errors[key]?.unit?.message}
+    >
       {(id, d) => (
         <div className="flex gap-2">
-          <input id={id} aria-describedby={d} className="field tabular-nums" inputMode="decimal" {...register(`${key}.value`, number)} />
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field tabular-nums"
+            inputMode="decimal"
+            {...register(`${key}.value`, number)}
+          />
           <select aria-label={`${label} unit`} className="field w-24" {...register(`${key}.unit`)}>
             {unitsOffered.map((u) => (
               <option key={u} value={u}>
@@ -131,7 +165,12 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
     </Field>
   );
 
-  const tri = (name: 'operator.listed' | 'operator.automaticClosing', label: string, hint: string, error?: string) => (
+  const tri = (
+    name: 'operator.listed' | 'operator.automaticClosing',
+    label: string,
+    hint: string,
+    error?: string,
+  ) => (
     <Field label={label} hint={hint} error={error}>
       {(id, d) => (
         <select id={id} aria-describedby={d} className="field" {...register(name, triState)}>
@@ -145,8 +184,15 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
 
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
-      <Field label="Name of the gate" hint="As the owner calls it, e.g. “Driveway gate”." error={errors.label?.message} className="sm:col-span-2">
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('label')} />}
+      <Field
+        label="Name of the gate"
+        hint="As the owner calls it, e.g. “Driveway gate”."
+        error={errors.label?.message}
+        className="sm:col-span-2"
+      >
+        {(id, d) => (
+          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('label')} />
+        )}
       </Field>
       <Field label="Kind" error={errors.kind?.message}>
         {(id, d) => (
@@ -181,17 +227,45 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
       {dimension('height', 'Leaf height', ['mm', 'cm', 'm', 'in', 'ft'])}
       {dimension('weight', 'Leaf weight', ['kg', 'lb'])}
       <Field label="Installed on" error={errors.installedOn?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} type="date" className="field" {...register('installedOn')} />}
+        {(id, d) => (
+          <input id={id} aria-describedby={d} type="date" className="field" {...register('installedOn')} />
+        )}
       </Field>
       <fieldset className="grid gap-4 rounded-lg border border-iron-200 p-3 sm:col-span-2 sm:grid-cols-2">
         <legend className="px-1 font-semibold text-iron-900">Operator</legend>
-        {tri('operator.listed', 'Listed to the safety standard?', 'A listing label on the operator, or the paperwork.', errors.operator?.listed?.message)}
-        {tri('operator.automaticClosing', 'Automatic closing on?', 'The gate closes by itself after a delay.', errors.operator?.automaticClosing?.message)}
+        {tri(
+          'operator.listed',
+          'Listed to the safety standard?',
+          'A listing label on the operator, or the paperwork.',
+          errors.operator?.listed?.message,
+        )}
+        {tri(
+          'operator.automaticClosing',
+          'Automatic closing on?',
+          'The gate closes by itself after a delay.',
+          errors.operator?.automaticClosing?.message,
+        )}
         <Field label="Made on (from its label)" error={errors.operator?.manufacturedOn?.message}>
-          {(id, d) => <input id={id} aria-describedby={d} type="date" className="field" {...register('operator.manufacturedOn')} />}
+          {(id, d) => (
+            <input
+              id={id}
+              aria-describedby={d}
+              type="date"
+              className="field"
+              {...register('operator.manufacturedOn')}
+            />
+          )}
         </Field>
         <Field label="Make and model" error={errors.operator?.model?.message}>
-          {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('operator.model')} />}
+          {(id, d) => (
+            <input
+              id={id}
+              aria-describedby={d}
+              className="field"
+              autoComplete="off"
+              {...register('operator.model')}
+            />
+          )}
         </Field>
         <Field label="Mounted" error={errors.operator?.mounting?.message}>
           {(id, d) => (

@@ -24,24 +24,45 @@ interface Values {
  * checks it and before it is sent.
  */
 function toBody(values: Values): unknown {
-  return withoutBlanks({ ...values, usageClass: values.usageClass === '' ? undefined : Number(values.usageClass) });
+  return withoutBlanks({
+    ...values,
+    usageClass: values.usageClass === '' ? undefined : Number(values.usageClass),
+  });
 }
 
 export const USAGE_CLASS_TEXT = [
   { value: 1, title: 'Class I · residential', text: 'A home, or up to four homes sharing a drive.' },
-  { value: 2, title: 'Class II · commercial, public', text: 'Apartments, shops, car parks: the public can reach it.' },
+  {
+    value: 2,
+    title: 'Class II · commercial, public',
+    text: 'Apartments, shops, car parks: the public can reach it.',
+  },
   { value: 3, title: 'Class III · industrial', text: 'Factory or yard gates, not meant for the public.' },
-  { value: 4, title: 'Class IV · restricted, supervised', text: 'Guarded entries: prisons, airport security.' },
+  {
+    value: 4,
+    title: 'Class IV · restricted, supervised',
+    text: 'Guarded entries: prisons, airport security.',
+  },
 ] as const;
 
-const TEXT_FIELDS = ['name', 'addressLine1', 'addressLine2', 'city', 'region', 'postalCode', 'country', 'notes'] as const;
+const TEXT_FIELDS = [
+  'name',
+  'addressLine1',
+  'addressLine2',
+  'city',
+  'region',
+  'postalCode',
+  'country',
+  'notes',
+] as const;
 
 /** For an edit: the fields that differ from the stored site; a blanked optional one is sent as null. */
 function changes(site: Site, values: Values): Record<string, unknown> {
   const out: Record<string, unknown> = {};
   for (const key of TEXT_FIELDS) {
     const next = values[key].trim();
-    if (next !== ((site[key] as string | null) ?? '')) out[key] = next === '' && key !== 'addressLine1' && key !== 'city' && key !== 'country' ? null : next;
+    if (next !== ((site[key] as string | null) ?? ''))
+      out[key] = next === '' && key !== 'addressLine1' && key !== 'city' && key !== 'country' ? null : next;
   }
   if (Number(values.usageClass) !== site.usageClass) out.usageClass = Number(values.usageClass);
   return out;
@@ -50,7 +71,9 @@ function changes(site: Site, values: Values): Record<string, unknown> {
 /** A new site for `clientId`, or, given `site`, the same form to correct that site (PATCH of the changed fields). */
 export default function SiteForm({ clientId, site }: { clientId: string; site?: Site }) {
   const { register, handleSubmit, setError, formState } = useForm<Values>({
-    resolver: site ? apiResolver<Values>(SitePatchSchema, (values) => changes(site, values)) : apiResolver<Values>(SiteCreateSchema, toBody),
+    resolver: site
+      ? apiResolver<Values>(SitePatchSchema, (values) => changes(site, values))
+      : apiResolver<Values>(SiteCreateSchema, toBody),
     defaultValues: site
       ? {
           clientId,
@@ -64,13 +87,29 @@ export default function SiteForm({ clientId, site }: { clientId: string; site?: 
           usageClass: String(site.usageClass),
           notes: site.notes ?? '',
         }
-      : { clientId, name: '', addressLine1: '', addressLine2: '', city: '', region: '', postalCode: '', country: 'US', usageClass: '1', notes: '' },
+      : {
+          clientId,
+          name: '',
+          addressLine1: '',
+          addressLine2: '',
+          city: '',
+          region: '',
+          postalCode: '',
+          country: 'US',
+          usageClass: '1',
+          notes: '',
+        },
   });
   const [message, setMessage] = useState<string | null>(null);
   const errors = formState.errors;
   const onSubmit = handleSubmit(async (values) => {
     if (site) {
-      const sent = await sendJson<Site, Values>('PATCH', `/api/sites/${site.id}`, changes(site, values), setError);
+      const sent = await sendJson<Site, Values>(
+        'PATCH',
+        `/api/sites/${site.id}`,
+        changes(site, values),
+        setError,
+      );
       setMessage(sent.message);
       if (sent.ok) window.location.reload();
       return;
@@ -83,22 +122,58 @@ export default function SiteForm({ clientId, site }: { clientId: string; site?: 
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
       <input type="hidden" {...register('clientId')} />
       <Field label="Street address" error={errors.addressLine1?.message} className="sm:col-span-2">
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('addressLine1')} />}
+        {(id, d) => (
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field"
+            autoComplete="off"
+            {...register('addressLine1')}
+          />
+        )}
       </Field>
       <Field label="Town or city" error={errors.city?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('city')} />}
+        {(id, d) => (
+          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('city')} />
+        )}
       </Field>
       <Field label="State or region" error={errors.region?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('region')} />}
+        {(id, d) => (
+          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('region')} />
+        )}
       </Field>
       <Field label="Postal code" error={errors.postalCode?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('postalCode')} />}
+        {(id, d) => (
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field"
+            autoComplete="off"
+            {...register('postalCode')}
+          />
+        )}
       </Field>
       <Field label="Country (two letters)" error={errors.country?.message}>
-        {(id, d) => <input id={id} aria-describedby={d} className="field uppercase" maxLength={2} autoComplete="off" {...register('country')} />}
+        {(id, d) => (
+          <input
+            id={id}
+            aria-describedby={d}
+            className="field uppercase"
+            maxLength={2}
+            autoComplete="off"
+            {...register('country')}
+          />
+        )}
       </Field>
-      <Field label="Name of the site (optional)" hint="For example “Main house” or “Rear yard”." error={errors.name?.message} className="sm:col-span-2">
-        {(id, d) => <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />}
+      <Field
+        label="Name of the site (optional)"
+        hint="For example “Main house” or “Rear yard”."
+        error={errors.name?.message}
+        className="sm:col-span-2"
+      >
+        {(id, d) => (
+          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />
+        )}
       </Field>
       <fieldset className="sm:col-span-2">
         <legend className="label">Who uses the gate (usage class)</legend>
@@ -108,7 +183,12 @@ export default function SiteForm({ clientId, site }: { clientId: string; site?: 
               key={c.value}
               className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg border border-iron-200 bg-white p-3 has-checked:border-iron-800 has-checked:bg-iron-50"
             >
-              <input type="radio" className="mt-1 size-5 accent-iron-800" value={String(c.value)} {...register('usageClass')} />
+              <input
+                type="radio"
+                className="mt-1 size-5 accent-iron-800"
+                value={String(c.value)}
+                {...register('usageClass')}
+              />
               <span>
                 <span className="block font-semibold text-iron-900">{c.title}</span>
                 <span className="block text-sm text-iron-600">{c.text}</span>
@@ -116,10 +196,14 @@ export default function SiteForm({ clientId, site }: { clientId: string; site?: 
             </label>
           ))}
         </div>
-        {errors.usageClass?.message && <p className="mt-1 text-sm font-semibold text-withdraw">{errors.usageClass.message}</p>}
+        {errors.usageClass?.message && (
+          <p className="mt-1 text-sm font-semibold text-withdraw">{errors.usageClass.message}</p>
+        )}
       </fieldset>
       <Field label="Notes" error={errors.notes?.message} className="sm:col-span-2">
-        {(id, d) => <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />}
+        {(id, d) => (
+          <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />
+        )}
       </Field>
       <div className="grid gap-2 sm:col-span-2">
         <FormMessage message={message} />

@@ -30,7 +30,11 @@ export default function StartAssessment({ gateId, families }: Props) {
       const create = createKey('/api/assessments', text);
       const response = await fetch('/api/assessments', {
         method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json', 'idempotency-key': create.key },
+        headers: {
+          'content-type': 'application/json',
+          accept: 'application/json',
+          'idempotency-key': create.key,
+        },
         body: text,
       });
       if (response.ok) create.done();
@@ -38,7 +42,11 @@ export default function StartAssessment({ gateId, families }: Props) {
       if (!response.ok) throw new Error(body?.detail ?? `The server answered ${response.status}.`);
       window.location.assign(`/assessments/${(body as Assessment).id}/walk`);
     } catch (error) {
-      setMessage(error instanceof TypeError ? 'No connection: starting an assessment needs signal once.' : (error as Error).message);
+      setMessage(
+        error instanceof TypeError
+          ? 'No connection: starting an assessment needs signal once.'
+          : (error as Error).message,
+      );
       setBusy(false);
     }
   };
@@ -48,7 +56,12 @@ export default function StartAssessment({ gateId, families }: Props) {
         <label htmlFor={`${id}-family`} className="label">
           Ruleset
         </label>
-        <select id={`${id}-family`} className="field" value={family} onChange={(e) => setFamily(e.target.value)}>
+        <select
+          id={`${id}-family`}
+          className="field"
+          value={family}
+          onChange={(e) => setFamily(e.target.value)}
+        >
           {families.map((f) => (
             <option key={f.family} value={f.family}>
               {f.title} ({f.current})
@@ -60,7 +73,12 @@ export default function StartAssessment({ gateId, families }: Props) {
         <label htmlFor={`${id}-purpose`} className="label">
           Purpose
         </label>
-        <select id={`${id}-purpose`} className="field" value={purpose} onChange={(e) => setPurpose(e.target.value)}>
+        <select
+          id={`${id}-purpose`}
+          className="field"
+          value={purpose}
+          onChange={(e) => setPurpose(e.target.value)}
+        >
           {PURPOSES.map((p) => (
             <option key={p.value} value={p.value}>
               {p.label}

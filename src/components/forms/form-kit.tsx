@@ -17,7 +17,13 @@ export function withoutBlanks(value: unknown): unknown {
     for (const [key, inner] of Object.entries(value)) {
       const cleaned = withoutBlanks(inner);
       if (cleaned === undefined) continue;
-      if (cleaned && typeof cleaned === 'object' && !Array.isArray(cleaned) && Object.keys(cleaned).length === 0) continue;
+      if (
+        cleaned &&
+        typeof cleaned === 'object' &&
+        !Array.isArray(cleaned) &&
+        Object.keys(cleaned).length === 0
+      )
+        continue;
       out[key] = cleaned;
     }
     return out;
@@ -27,11 +33,16 @@ export function withoutBlanks(value: unknown): unknown {
 }
 
 /** The API's schema as a react-hook-form resolver, checking the body the form will send. */
-export function apiResolver<T extends FieldValues>(schema: z.ZodType, shape: (values: T) => unknown = withoutBlanks as (v: T) => unknown): Resolver<T> {
+export function apiResolver<T extends FieldValues>(
+  schema: z.ZodType,
+  shape: (values: T) => unknown = withoutBlanks as (v: T) => unknown,
+): Resolver<T> {
   const inner = zodResolver(schema as never, undefined, { raw: true }) as unknown as Resolver<FieldValues>;
   const resolver = async (values: T, context: unknown, options: unknown) => {
     const result = await inner(shape(values) as FieldValues, context, options as never);
-    return result.errors && Object.keys(result.errors).length ? { values: {}, errors: result.errors } : { values, errors: {} };
+    return result.errors && Object.keys(result.errors).length
+      ? { values: {}, errors: result.errors }
+      : { values, errors: {} };
   };
   return resolver as unknown as Resolver<T>;
 }
@@ -43,12 +54,20 @@ export interface SendResult<T> {
 }
 
 /** Sends JSON (a POST with an Idempotency-Key); a 422 puts each field's message on the form (and returns ok: false). */
-export async function sendJson<T, F extends FieldValues>(method: string, url: string, body: unknown, setError: UseFormSetError<F>): Promise<SendResult<T>> {
+export async function sendJson<T, F extends FieldValues>(
+  method: string,
+  url: string,
+  body: unknown,
+  setError: UseFormSetError<F>,
+): Promise<SendResult<T>> {
   let response: Response;
   const text = JSON.stringify(body);
   const create = method === 'POST' ? createKey(url, text) : null;
   try {
-    const headers: Record<string, string> = { 'content-type': 'application/json', accept: 'application/json' };
+    const headers: Record<string, string> = {
+      'content-type': 'application/json',
+      accept: 'application/json',
+    };
     if (create) headers['idempotency-key'] = create.key;
     response = await fetch(url, { method, headers, body: text });
   } catch {
@@ -73,7 +92,8 @@ interface FieldProps {
 
 export function Field({ label, error, hint, children, className }: FieldProps) {
   const id = useId();
-  const describedBy = [hint ? `${id}-hint` : '', error ? `${id}-error` : ''].filter(Boolean).join(' ') || undefined;
+  const describedBy =
+    [hint ? `${id}-hint` : '', error ? `${id}-error` : ''].filter(Boolean).join(' ') || undefined;
   return (
     <div className={className}>
       <label htmlFor={id} className="label">

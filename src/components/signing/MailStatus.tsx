@@ -40,7 +40,9 @@ export default function MailStatus({ assessmentId, initial, timeZone, pollForMs 
     let timer: ReturnType<typeof setTimeout>;
     const ask = async () => {
       try {
-        const res = await fetch(`/api/assessments/${assessmentId}/signing`, { headers: { accept: 'application/json' } });
+        const res = await fetch(`/api/assessments/${assessmentId}/signing`, {
+          headers: { accept: 'application/json' },
+        });
         if (res.ok) {
           const body = (await res.json()) as { messages: MailMessage[] };
           if (!stopped) setMessages(body.messages);
@@ -60,13 +62,15 @@ export default function MailStatus({ assessmentId, initial, timeZone, pollForMs 
     };
   }, [assessmentId, waiting, pollForMs]);
 
-  if (messages.length === 0) return <p className="mt-1 text-iron-800">No e-mail about this assessment yet.</p>;
+  if (messages.length === 0)
+    return <p className="mt-1 text-iron-800">No e-mail about this assessment yet.</p>;
   const refused = messages.some((m) => pending(m) && m.attempts > 0);
   return (
     <div aria-live="polite">
       {refused && (
         <p className="mt-1 text-sm text-iron-700">
-          Messages wait here while the mail server cannot be reached; they go out by themselves when it answers.
+          Messages wait here while the mail server cannot be reached; they go out by themselves when it
+          answers.
           {gaveUp ? ' Reload to see the latest state.' : ''}
         </p>
       )}
@@ -74,19 +78,28 @@ export default function MailStatus({ assessmentId, initial, timeZone, pollForMs 
         {messages.map((m) => (
           <li key={m.id} className="py-2" data-message-status={m.status}>
             <p className="font-semibold">
-              {MAIL_KIND_LABEL[m.kind] ?? 'E-mail'} <span className="font-normal text-iron-700">to {m.to.join(', ')}</span>
+              {MAIL_KIND_LABEL[m.kind] ?? 'E-mail'}{' '}
+              <span className="font-normal text-iron-700">to {m.to.join(', ')}</span>
             </p>
             <p className="text-sm">
-              {m.status === 'sent' && <span className="text-clear">Sent {formatDayTime(m.sentAt, timeZone)}</span>}
-              {pending(m) && m.attempts === 0 && <span className="text-iron-800">{gaveUp ? 'Not sent yet: reload to see the latest state' : 'Sending…'}</span>}
+              {m.status === 'sent' && (
+                <span className="text-clear">Sent {formatDayTime(m.sentAt, timeZone)}</span>
+              )}
+              {pending(m) && m.attempts === 0 && (
+                <span className="text-iron-800">
+                  {gaveUp ? 'Not sent yet: reload to see the latest state' : 'Sending…'}
+                </span>
+              )}
               {pending(m) && m.attempts > 0 && (
                 <span className="text-remedy">
-                  Queued: waiting for the mail server (tried {count(m.attempts, 'time')}, next try {formatDayTime(m.nextAttemptAt, timeZone)})
+                  Queued: waiting for the mail server (tried {count(m.attempts, 'time')}, next try{' '}
+                  {formatDayTime(m.nextAttemptAt, timeZone)})
                 </span>
               )}
               {m.status === 'failed' && (
                 <span className="text-withdraw">
-                  Not delivered after {count(m.attempts, 'try', 'tries')}. The mail server said: {m.lastError ?? 'nothing'}
+                  Not delivered after {count(m.attempts, 'try', 'tries')}. The mail server said:{' '}
+                  {m.lastError ?? 'nothing'}
                 </span>
               )}
             </p>

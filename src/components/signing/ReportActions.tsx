@@ -17,7 +17,14 @@ interface Props {
 
 const OTHER = '__other__';
 
-export default function ReportActions({ assessmentId, canSend, resend, canRevise, recipient, contacts = [] }: Props) {
+export default function ReportActions({
+  assessmentId,
+  canSend,
+  resend,
+  canRevise,
+  recipient,
+  contacts = [],
+}: Props) {
   const choices = contacts.length ? contacts : recipient ? [recipient] : [];
   const [choice, setChoice] = useState(choices[0] ?? OTHER);
   const [typed, setTyped] = useState('');
@@ -31,7 +38,11 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
     setBusy(true);
     setMessage(null);
     try {
-      return await fetch(path, { method: 'POST', headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify(body) });
+      return await fetch(path, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify(body),
+      });
     } catch {
       setMessage('The server could not be reached. Try again.');
       return null;
@@ -42,11 +53,16 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
 
   async function send() {
     setFieldError(null);
-    const res = await post(`/api/assessments/${assessmentId}/send-for-signature`, { expiresInDays: days, recipient: to });
+    const res = await post(`/api/assessments/${assessmentId}/send-for-signature`, {
+      expiresInDays: days,
+      recipient: to,
+    });
     if (!res) return;
     if (res.ok) return window.location.reload();
     const problem = await res.json().catch(() => ({}));
-    const recipientError = (problem.errors as { field: string; message: string }[] | undefined)?.find((e) => e.field === 'recipient');
+    const recipientError = (problem.errors as { field: string; message: string }[] | undefined)?.find(
+      (e) => e.field === 'recipient',
+    );
     if (recipientError) setFieldError(`The address ${recipientError.message}.`);
     setMessage(problem.detail ?? `Sending failed (${res.status}).`);
   }
@@ -109,7 +125,9 @@ export default function ReportActions({ assessmentId, canSend, resend, canRevise
           <button type="button" className="btn" onClick={send} disabled={busy || !to}>
             {resend ? 'Send a new link' : 'Send for signature'}
           </button>
-          <span className="text-sm text-iron-700">{to ? `The link goes only to ${to}.` : 'Choose who receives the link.'}</span>
+          <span className="text-sm text-iron-700">
+            {to ? `The link goes only to ${to}.` : 'Choose who receives the link.'}
+          </span>
         </div>
       ) : null}
       {canRevise ? (

@@ -30,9 +30,20 @@ interface Problem {
   text: string;
 }
 
-type Phase = { kind: 'editing' } | { kind: 'sending' } | { kind: 'signed'; documentSha256: string } | { kind: 'closed'; message: string };
+type Phase =
+  | { kind: 'editing' }
+  | { kind: 'sending' }
+  | { kind: 'signed'; documentSha256: string }
+  | { kind: 'closed'; message: string };
 
-export default function SignatureForm({ token, cautions, consentText, intentText, documentSha256, recipientEmail }: Props) {
+export default function SignatureForm({
+  token,
+  cautions,
+  consentText,
+  intentText,
+  documentSha256,
+  recipientEmail,
+}: Props) {
   const canvas = useRef<HTMLCanvasElement>(null);
   const pad = useRef<SignaturePad | null>(null);
   const [ticked, setTicked] = useState<Record<string, boolean>>({});
@@ -50,7 +61,12 @@ export default function SignatureForm({ token, cautions, consentText, intentText
     const el = canvas.current;
     if (!el || typedOnly) return;
     setDrawn(false);
-    const instance = new SignaturePad(el, { penColor: '#121c29', backgroundColor: 'rgba(255,255,255,0)', minWidth: 0.8, maxWidth: 2.6 });
+    const instance = new SignaturePad(el, {
+      penColor: '#121c29',
+      backgroundColor: 'rgba(255,255,255,0)',
+      minWidth: 0.8,
+      maxWidth: 2.6,
+    });
     const fit = () => {
       // Size the bitmap to the element and the screen's pixel ratio so strokes stay sharp.
       const ratio = Math.max(window.devicePixelRatio || 1, 1);
@@ -76,13 +92,25 @@ export default function SignatureForm({ token, cautions, consentText, intentText
   const localProblems = (): Problem[] => {
     const problems: Problem[] = [];
     const unticked = cautions.filter((c) => !ticked[c.ruleId]);
-    if (unticked.length) problems.push({ target: 'sign-cautions', text: `Tick each caution to show you have read it (${unticked.length} left).` });
-    if (!consent) problems.push({ target: 'sign-consent', text: 'Tick the box to agree to sign electronically.' });
+    if (unticked.length)
+      problems.push({
+        target: 'sign-cautions',
+        text: `Tick each caution to show you have read it (${unticked.length} left).`,
+      });
+    if (!consent)
+      problems.push({ target: 'sign-consent', text: 'Tick the box to agree to sign electronically.' });
     if (name.trim().length < 2) problems.push({ target: 'signer-name', text: 'Type your full name.' });
-    if (!typedOnly && !drawn) problems.push({ target: 'sign-pad', text: 'Draw your signature in the box, or tick “use my typed name as my signature”.' });
+    if (!typedOnly && !drawn)
+      problems.push({
+        target: 'sign-pad',
+        text: 'Draw your signature in the box, or tick “use my typed name as my signature”.',
+      });
     return problems;
   };
-  const errors: Problem[] = [...(attempted ? localProblems() : []), ...serverErrors.map((text) => ({ target: null, text }))];
+  const errors: Problem[] = [
+    ...(attempted ? localProblems() : []),
+    ...serverErrors.map((text) => ({ target: null, text })),
+  ];
 
   // A change to the form makes the server's last answer out of date.
   useEffect(() => setServerErrors([]), [ticked, consent, name, typedOnly, drawn]);
@@ -98,7 +126,10 @@ export default function SignatureForm({ token, cautions, consentText, intentText
     setServerErrors([]);
     if (localProblems().length) return;
     setPhase({ kind: 'sending' });
-    const signature = typedOnly || !pad.current ? { method: 'typed' as const } : { method: 'drawn' as const, png: pad.current.toDataURL('image/png') };
+    const signature =
+      typedOnly || !pad.current
+        ? { method: 'typed' as const }
+        : { method: 'drawn' as const, png: pad.current.toDataURL('image/png') };
     try {
       const res = await fetch(`/api/sign/${encodeURIComponent(token)}/submit`, {
         method: 'POST',
@@ -114,11 +145,17 @@ export default function SignatureForm({ token, cautions, consentText, intentText
       });
       const body = await res.json().catch(() => ({}));
       if (res.ok) return setPhase({ kind: 'signed', documentSha256: body.document?.sha256 ?? '' });
-      if (body.linkState) return setPhase({ kind: 'closed', message: body.detail ?? 'This link can no longer be used.' });
-      setServerErrors([body.detail ?? 'Something went wrong; try again.', ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message)]);
+      if (body.linkState)
+        return setPhase({ kind: 'closed', message: body.detail ?? 'This link can no longer be used.' });
+      setServerErrors([
+        body.detail ?? 'Something went wrong; try again.',
+        ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message),
+      ]);
       setPhase({ kind: 'editing' });
     } catch {
-      setServerErrors(['We could not reach the server. Check your connection and press Sign again; nothing was signed yet.']);
+      setServerErrors([
+        'We could not reach the server. Check your connection and press Sign again; nothing was signed yet.',
+      ]);
       setPhase({ kind: 'editing' });
     }
   }
@@ -130,7 +167,11 @@ export default function SignatureForm({ token, cautions, consentText, intentText
         <p className="mt-2">
           Your signed copy is on its way to <strong>{recipientEmail}</strong>. You can close this page.
         </p>
-        {phase.documentSha256 ? <p className="mt-2 break-all text-xs text-iron-600">Document fingerprint (SHA-256): {phase.documentSha256}</p> : null}
+        {phase.documentSha256 ? (
+          <p className="mt-2 break-all text-xs text-iron-600">
+            Document fingerprint (SHA-256): {phase.documentSha256}
+          </p>
+        ) : null}
       </section>
     );
   }
@@ -144,13 +185,21 @@ export default function SignatureForm({ token, cautions, consentText, intentText
   }
 
   return (
-    <form onSubmit={submit} noValidate className="space-y-5" aria-describedby={errors.length ? 'sign-errors' : undefined}>
+    <form
+      onSubmit={submit}
+      noValidate
+      className="space-y-5"
+      aria-describedby={errors.length ? 'sign-errors' : undefined}
+    >
       {cautions.length ? (
         <fieldset id="sign-cautions" className="card space-y-3">
           <legend className="px-1 text-lg font-bold">Cautions to acknowledge</legend>
           <p className="text-sm text-iron-700">Until the fixes are done, please read each one and tick it.</p>
           {cautions.map((c) => (
-            <label key={c.ruleId} className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg bg-brass-100 p-3">
+            <label
+              key={c.ruleId}
+              className="flex min-h-11 cursor-pointer items-start gap-3 rounded-lg bg-brass-100 p-3"
+            >
               <input
                 type="checkbox"
                 className="mt-1 size-5 shrink-0 accent-iron-800"
@@ -182,7 +231,15 @@ export default function SignatureForm({ token, cautions, consentText, intentText
           <label htmlFor="signer-name" className="label">
             Your full name
           </label>
-          <input id="signer-name" className="field" autoComplete="name" value={name} onChange={(e) => setName(e.target.value)} maxLength={120} required />
+          <input
+            id="signer-name"
+            className="field"
+            autoComplete="name"
+            value={name}
+            onChange={(e) => setName(e.target.value)}
+            maxLength={120}
+            required
+          />
         </div>
         {!typedOnly ? (
           <div>
@@ -206,13 +263,22 @@ export default function SignatureForm({ token, cautions, consentText, intentText
           </div>
         ) : null}
         <label className="flex min-h-11 cursor-pointer items-start gap-3">
-          <input type="checkbox" className="mt-1 size-5 shrink-0 accent-iron-800" checked={typedOnly} onChange={(e) => setTypedOnly(e.target.checked)} />
+          <input
+            type="checkbox"
+            className="mt-1 size-5 shrink-0 accent-iron-800"
+            checked={typedOnly}
+            onChange={(e) => setTypedOnly(e.target.checked)}
+          />
           <span>I cannot draw here: use my typed name as my signature.</span>
         </label>
       </fieldset>
 
       {errors.length ? (
-        <div id="sign-errors" role="alert" className="rounded-lg border border-withdraw bg-white p-3 text-withdraw">
+        <div
+          id="sign-errors"
+          role="alert"
+          className="rounded-lg border border-withdraw bg-white p-3 text-withdraw"
+        >
           <ul className="list-disc pl-5">
             {errors.map((e) => (
               <li key={e.text}>

@@ -31,7 +31,9 @@ export function ChoiceButtons({ name, labelledBy, options, value, disabled, onCh
           <label
             key={option.value}
             className={`flex min-h-12 cursor-pointer items-center justify-center gap-1.5 rounded-lg border-2 px-2 py-2 text-center text-base font-semibold select-none focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-brass-500 ${
-              checked ? 'border-iron-900 bg-iron-800 text-white' : 'border-iron-200 bg-white text-iron-900 hover:border-iron-400'
+              checked
+                ? 'border-iron-900 bg-iron-800 text-white'
+                : 'border-iron-200 bg-white text-iron-900 hover:border-iron-400'
             } ${disabled ? 'cursor-not-allowed opacity-60' : ''}`}
           >
             <input

@@ -6,7 +6,15 @@ const W = 320;
 const H = 150;
 const M = { left: 44, right: 10, top: 10, bottom: 28 };
 
-export function ClearanceChart({ chart, limitMm, units }: { chart: SwingGeometryChart; limitMm: number; units: UnitSystem }) {
+export function ClearanceChart({
+  chart,
+  limitMm,
+  units,
+}: {
+  chart: SwingGeometryChart;
+  limitMm: number;
+  units: UnitSystem;
+}) {
   const angles = chart.angleDeg;
   const values = chart.clearanceMm;
   const maxAngle = angles[angles.length - 1] ?? 90;
@@ -19,15 +27,32 @@ export function ClearanceChart({ chart, limitMm, units }: { chart: SwingGeometry
   const minAt = angles[values.indexOf(min)] ?? 0;
   return (
     <figure className="m-0 mt-3">
-      <figcaption className="mb-1 text-sm font-semibold text-iron-900">Ram-to-leaf clearance over the swing</figcaption>
+      <figcaption className="mb-1 text-sm font-semibold text-iron-900">
+        Ram-to-leaf clearance over the swing
+      </figcaption>
       <svg
         viewBox={`0 0 ${W} ${H}`}
         className="h-auto w-full"
         role="img"
         aria-label={`Clearance from ${formatLength(values[0] ?? 0, units)} closed to ${formatLength(values[values.length - 1] ?? 0, units)} at ${maxAngle}°, smallest ${formatLength(min, units)} at ${minAt}°; the dashed line is the ${formatLength(limitMm, units)} wanted.`}
       >
-        <rect x={M.left} y={y(limitMm)} width={W - M.left - M.right} height={Math.max(0, y(bottom) - y(limitMm))} fill="#b3261e" fillOpacity={0.08} />
-        <line x1={M.left} x2={W - M.right} y1={y(limitMm)} y2={y(limitMm)} stroke="#b3261e" strokeWidth={1.5} strokeDasharray="6 4" />
+        <rect
+          x={M.left}
+          y={y(limitMm)}
+          width={W - M.left - M.right}
+          height={Math.max(0, y(bottom) - y(limitMm))}
+          fill="#b3261e"
+          fillOpacity={0.08}
+        />
+        <line
+          x1={M.left}
+          x2={W - M.right}
+          y1={y(limitMm)}
+          y2={y(limitMm)}
+          stroke="#b3261e"
+          strokeWidth={1.5}
+          strokeDasharray="6 4"
+        />
         <line x1={M.left} x2={M.left} y1={M.top} y2={H - M.bottom} stroke="#3b5370" />
         <line x1={M.left} x2={W - M.right} y1={H - M.bottom} y2={H - M.bottom} stroke="#3b5370" />
         <polyline points={points} fill="none" stroke="#1d2c3f" strokeWidth={2.5} strokeLinejoin="round" />

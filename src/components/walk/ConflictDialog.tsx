@@ -25,9 +25,16 @@ function describe(value: Json | undefined): string {
 
 function titleOf(field: string[], questions: readonly WalkQuestion[]): string {
   const [doc, key, sub] = field;
-  if (doc === 'answers' || doc === 'measurements') return questions.find((q) => q.key === key)?.prompt ?? key ?? '';
+  if (doc === 'answers' || doc === 'measurements')
+    return questions.find((q) => q.key === key)?.prompt ?? key ?? '';
   if (key === 'site') return `Site: ${sub}`;
-  return { entrapment: 'Entrapment zones and protection', forceTests: 'Force tests', swingGeometry: 'Swing geometry' }[key ?? ''] ?? field.join('.');
+  return (
+    {
+      entrapment: 'Entrapment zones and protection',
+      forceTests: 'Force tests',
+      swingGeometry: 'Swing geometry',
+    }[key ?? ''] ?? field.join('.')
+  );
 }
 
 interface Props {
@@ -55,8 +62,9 @@ export function ConflictDialog({ conflicts, questions, onResolve }: Props) {
           Saved elsewhere in the meantime
         </h2>
         <p className="mt-1 text-iron-700">
-          Someone saved other values for {conflicts.length === 1 ? 'this item' : `these ${conflicts.length} items`} while this phone had changes waiting. Choose
-          which value to keep for each.
+          Someone saved other values for{' '}
+          {conflicts.length === 1 ? 'this item' : `these ${conflicts.length} items`} while this phone had
+          changes waiting. Choose which value to keep for each.
         </p>
         <ul className="mt-4 grid gap-4">
           {conflicts.map((c) => {
@@ -66,7 +74,10 @@ export function ConflictDialog({ conflicts, questions, onResolve }: Props) {
                 <fieldset className="rounded-lg border border-iron-200 p-3">
                   <legend className="px-1 font-semibold text-iron-900">{titleOf(c.field, questions)}</legend>
                   {(['mine', 'theirs'] as const).map((side) => (
-                    <label key={side} className="mt-2 flex min-h-11 cursor-pointer items-center gap-3 rounded-md px-2 hover:bg-iron-50">
+                    <label
+                      key={side}
+                      className="mt-2 flex min-h-11 cursor-pointer items-center gap-3 rounded-md px-2 hover:bg-iron-50"
+                    >
                       <input
                         type="radio"
                         className="size-5 accent-iron-800"
@@ -75,8 +86,12 @@ export function ConflictDialog({ conflicts, questions, onResolve }: Props) {
                         onChange={() => setChoices((m) => new Map(m).set(id, side))}
                       />
                       <span>
-                        <span className="block text-sm text-iron-600">{side === 'mine' ? 'On this phone' : 'Saved elsewhere'}</span>
-                        <span className="block font-semibold text-iron-900">{describe(side === 'mine' ? c.mine : c.theirs)}</span>
+                        <span className="block text-sm text-iron-600">
+                          {side === 'mine' ? 'On this phone' : 'Saved elsewhere'}
+                        </span>
+                        <span className="block font-semibold text-iron-900">
+                          {describe(side === 'mine' ? c.mine : c.theirs)}
+                        </span>
                       </span>
                     </label>
                   ))}

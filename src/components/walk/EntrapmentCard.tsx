@@ -44,7 +44,13 @@ function Select({
       <label htmlFor={id} className="label">
         {label}
       </label>
-      <select id={id} className={selectClass} value={value} disabled={disabled} onChange={(e) => onChange(e.target.value)}>
+      <select
+        id={id}
+        className={selectClass}
+        value={value}
+        disabled={disabled}
+        onChange={(e) => onChange(e.target.value)}
+      >
         {Object.entries(options).map(([key, text]) => (
           <option key={key} value={key}>
             {text}
@@ -58,9 +64,12 @@ function Select({
 function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed: boolean }) {
   const { sync, editable } = useWalkActions();
   const current = (value ?? { zones: [], devices: [] }) as unknown as EntrapmentValue;
-  const save = (next: EntrapmentValue) => void sync.edit({ observations: { entrapment: next as unknown as Json } });
-  const setZone = (i: number, zone: Partial<Zone>) => save({ ...current, zones: current.zones.map((z, j) => (j === i ? { ...z, ...zone } : z)) });
-  const setDevice = (i: number, device: Partial<Device>) => save({ ...current, devices: current.devices.map((d, j) => (j === i ? { ...d, ...device } : d)) });
+  const save = (next: EntrapmentValue) =>
+    void sync.edit({ observations: { entrapment: next as unknown as Json } });
+  const setZone = (i: number, zone: Partial<Zone>) =>
+    save({ ...current, zones: current.zones.map((z, j) => (j === i ? { ...z, ...zone } : z)) });
+  const setDevice = (i: number, device: Partial<Device>) =>
+    save({ ...current, devices: current.devices.map((d, j) => (j === i ? { ...d, ...device } : d)) });
 
   return (
     <section
@@ -73,15 +82,24 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
         Entrapment zones and protection
       </h3>
       <p className="mt-1 text-sm text-iron-600">
-        List every place a person could be caught as the gate moves, then each device that protects it. Two independent means per direction are expected on
-        gates built to the current rules.
+        List every place a person could be caught as the gate moves, then each device that protects it. Two
+        independent means per direction are expected on gates built to the current rules.
       </p>
 
       <h4 className="mt-4 font-semibold text-iron-900">Zones found ({current.zones.length})</h4>
       <ul className="mt-2 grid gap-3">
         {current.zones.map((zone, i) => (
-          <li key={i} className="grid gap-2 rounded-lg border border-iron-100 p-3 sm:grid-cols-[1fr_1fr_auto] sm:items-end">
-            <Select label="Where" value={zone.zone} options={ZONE_LABEL} disabled={!editable} onChange={(v) => setZone(i, { zone: v })} />
+          <li
+            key={i}
+            className="grid gap-2 rounded-lg border border-iron-100 p-3 sm:grid-cols-[1fr_1fr_auto] sm:items-end"
+          >
+            <Select
+              label="Where"
+              value={zone.zone}
+              options={ZONE_LABEL}
+              disabled={!editable}
+              onChange={(v) => setZone(i, { zone: v })}
+            />
             <Select
               label="When"
               value={zone.direction}
@@ -90,7 +108,11 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
               onChange={(v) => setZone(i, { direction: v as Zone['direction'] })}
             />
             {editable && (
-              <button type="button" className="btn-secondary" onClick={() => save({ ...current, zones: current.zones.filter((_, j) => j !== i) })}>
+              <button
+                type="button"
+                className="btn-secondary"
+                onClick={() => save({ ...current, zones: current.zones.filter((_, j) => j !== i) })}
+              >
                 Remove zone
               </button>
             )}
@@ -101,7 +123,9 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
         <button
           type="button"
           className="btn-secondary mt-2"
-          onClick={() => save({ ...current, zones: [...current.zones, { zone: 'closing_edge', direction: 'closing' }] })}
+          onClick={() =>
+            save({ ...current, zones: [...current.zones, { zone: 'closing_edge', direction: 'closing' }] })
+          }
         >
           + Add a zone
         </button>
@@ -111,8 +135,20 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
       <ul className="mt-2 grid gap-3">
         {current.devices.map((device, i) => (
           <li key={i} className="grid gap-2 rounded-lg border border-iron-100 p-3 sm:grid-cols-2">
-            <Select label="Type" value={device.type} options={DEVICE_LABEL} disabled={!editable} onChange={(v) => setDevice(i, { type: v })} />
-            <Select label="Protects" value={device.zone} options={ZONE_LABEL} disabled={!editable} onChange={(v) => setDevice(i, { zone: v })} />
+            <Select
+              label="Type"
+              value={device.type}
+              options={DEVICE_LABEL}
+              disabled={!editable}
+              onChange={(v) => setDevice(i, { type: v })}
+            />
+            <Select
+              label="Protects"
+              value={device.zone}
+              options={ZONE_LABEL}
+              disabled={!editable}
+              onChange={(v) => setDevice(i, { zone: v })}
+            />
             <Select
               label="When"
               value={device.direction}
@@ -151,7 +187,12 @@ function EntrapmentCardView({ value, needed }: { value: Json | undefined; needed
               ...current,
               devices: [
                 ...current.devices,
-                { type: 'B1', zone: current.zones[0]?.zone ?? 'closing_edge', direction: current.zones[0]?.direction ?? 'closing', monitored: true },
+                {
+                  type: 'B1',
+                  zone: current.zones[0]?.zone ?? 'closing_edge',
+                  direction: current.zones[0]?.direction ?? 'closing',
+                  monitored: true,
+                },
               ],
             })
           }

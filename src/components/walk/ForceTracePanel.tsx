@@ -5,13 +5,24 @@
  * meter's figures go into the assessment's force tests, so the live result uses them.
  */
 import { useId, useMemo, useState } from 'react';
-import { evaluateForceTrace, ForceTraceError, parseForceTraceCsv, type ForceTraceResult } from '@/lib/rules/calculators/force-trace';
+import {
+  evaluateForceTrace,
+  ForceTraceError,
+  parseForceTraceCsv,
+  type ForceTraceResult,
+} from '@/lib/rules/calculators/force-trace';
 import type { GateKind } from '@/lib/rules/vocabulary';
 import { formatLength, type UnitSystem } from '@/lib/units';
 import { newClientRef, parseEntered, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
 import type { OutboxOp, TraceOp } from '@/lib/walk/outbox';
-import { MAX_TRACE_CSV_BYTES, megabytes, TRACE_LOCATIONS, type TraceLocation, type TraceRecord } from '@/lib/walk/records';
+import {
+  MAX_TRACE_CSV_BYTES,
+  megabytes,
+  TRACE_LOCATIONS,
+  type TraceLocation,
+  type TraceRecord,
+} from '@/lib/walk/records';
 import { useWalkActions } from './context';
 import { DIRECTION_LABEL, TRACE_LOCATION_LABEL } from './labels';
 import { TraceChart } from './TraceChart';
@@ -62,7 +73,9 @@ function Row({ label, value, limit, pass }: { label: string; value: string; limi
       </th>
       <td className="py-1.5 pr-2 text-right font-semibold whitespace-nowrap tabular-nums">{value}</td>
       <td className="py-1.5 pr-2 text-right whitespace-nowrap text-iron-600 tabular-nums">{limit}</td>
-      <td className={`py-1.5 text-right font-bold ${pass ? 'text-clear' : 'text-withdraw'}`}>{pass ? 'Pass' : 'Fail'}</td>
+      <td className={`py-1.5 text-right font-bold ${pass ? 'text-clear' : 'text-withdraw'}`}>
+        {pass ? 'Pass' : 'Fail'}
+      </td>
     </tr>
   );
 }
@@ -70,7 +83,9 @@ function Row({ label, value, limit, pass }: { label: string; value: string; limi
 function Evaluation({ e }: { e: ForceTraceResult }) {
   return (
     <div>
-      <p className={`mb-2 inline-block rounded-md px-2 py-1 font-bold text-white ${e.overallPass ? 'bg-clear' : 'bg-withdraw'}`}>
+      <p
+        className={`mb-2 inline-block rounded-md px-2 py-1 font-bold text-white ${e.overallPass ? 'bg-clear' : 'bg-withdraw'}`}
+      >
         {e.overallPass ? 'Within the limits' : 'Over a limit'}
       </p>
       <table className="w-full text-sm">
@@ -92,9 +107,24 @@ function Evaluation({ e }: { e: ForceTraceResult }) {
         </thead>
         <tbody>
           <Row label="Peak force" value={`${e.peak} N`} limit={`${e.limits.peakN} N`} pass={e.pass.peak} />
-          <Row label="Time above 150 N" value={`${e.durationAbove150} s`} limit={`${e.limits.maxDurationS} s`} pass={e.pass.durationAbove150} />
-          <Row label="Static force" value={`${e.staticForce} N`} limit={`${e.limits.maxStaticN} N`} pass={e.pass.staticForce} />
-          <Row label="Force 5 s after contact" value={`${e.residualAt5s} N`} limit={`${e.limits.maxResidualN} N`} pass={e.pass.residualAt5s} />
+          <Row
+            label="Time above 150 N"
+            value={`${e.durationAbove150} s`}
+            limit={`${e.limits.maxDurationS} s`}
+            pass={e.pass.durationAbove150}
+          />
+          <Row
+            label="Static force"
+            value={`${e.staticForce} N`}
+            limit={`${e.limits.maxStaticN} N`}
+            pass={e.pass.staticForce}
+          />
+          <Row
+            label="Force 5 s after contact"
+            value={`${e.residualAt5s} N`}
+            limit={`${e.limits.maxResidualN} N`}
+            pass={e.pass.residualAt5s}
+          />
         </tbody>
       </table>
       <p className="mt-2 text-xs text-iron-600">
@@ -156,7 +186,10 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
     return [...uploaded, ...local];
   }, [traces, pending, gateKind]);
 
-  const saveForceTests = (list: ShownTrace[]) => void sync.edit({ observations: { forceTests: list.map(toForceTest).filter((t): t is Json => t !== null) } });
+  const saveForceTests = (list: ShownTrace[]) =>
+    void sync.edit({
+      observations: { forceTests: list.map(toForceTest).filter((t): t is Json => t !== null) },
+    });
 
   const upload = async (file: File | undefined) => {
     if (!file) return;
@@ -167,7 +200,9 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
       return;
     }
     if (file.size > MAX_TRACE_CSV_BYTES) {
-      setError(`This file is ${megabytes(file.size)}; the limit is ${megabytes(MAX_TRACE_CSV_BYTES)}. Export one measuring point per file.`);
+      setError(
+        `This file is ${megabytes(file.size)}; the limit is ${megabytes(MAX_TRACE_CSV_BYTES)}. Export one measuring point per file.`,
+      );
       return;
     }
     const gapMm = toMeasurement('length', gap, gapUnit).canonical;
@@ -186,11 +221,31 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
       throw e;
     }
     const clientRef = newClientRef();
-    const op: TraceOp = { kind: 'trace', clientRef, itemKey: `forceTest.${location}`, fileName: file.name.slice(0, 200), csv, location, direction, gapMm };
+    const op: TraceOp = {
+      kind: 'trace',
+      clientRef,
+      itemKey: `forceTest.${location}`,
+      fileName: file.name.slice(0, 200),
+      csv,
+      location,
+      direction,
+      gapMm,
+    };
     await sync.addTrace(op);
     saveForceTests([
       ...shown,
-      { key: clientRef, clientRef, serverId: null, label: op.fileName, location, direction, gapMm, samples, evaluation, waiting: true },
+      {
+        key: clientRef,
+        clientRef,
+        serverId: null,
+        label: op.fileName,
+        location,
+        direction,
+        gapMm,
+        samples,
+        evaluation,
+        waiting: true,
+      },
     ]);
   };
 
@@ -210,8 +265,8 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
         Force traces
       </h3>
       <p className="mt-1 text-sm text-iron-600">
-        Upload the CSV your force meter exported at each measuring point (time and force; comma or semicolon; header optional). The trace is judged against the
-        limits for the gap left at that point.
+        Upload the CSV your force meter exported at each measuring point (time and force; comma or semicolon;
+        header optional). The trace is judged against the limits for the gap left at that point.
       </p>
       {editable && (
         <div className="mt-3 grid gap-3 sm:grid-cols-3">
@@ -219,7 +274,12 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
             <label htmlFor={ids.location} className="label">
               Measuring point
             </label>
-            <select id={ids.location} className="field" value={location} onChange={(e) => setLocation(e.target.value as TraceLocation)}>
+            <select
+              id={ids.location}
+              className="field"
+              value={location}
+              onChange={(e) => setLocation(e.target.value as TraceLocation)}
+            >
               {TRACE_LOCATIONS.map((l) => (
                 <option key={l} value={l}>
                   {TRACE_LOCATION_LABEL[l]}
@@ -231,7 +291,12 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
             <label htmlFor={ids.direction} className="label">
               Gate moving
             </label>
-            <select id={ids.direction} className="field" value={direction} onChange={(e) => setDirection(e.target.value as 'closing' | 'opening')}>
+            <select
+              id={ids.direction}
+              className="field"
+              value={direction}
+              onChange={(e) => setDirection(e.target.value as 'closing' | 'opening')}
+            >
               <option value="closing">{DIRECTION_LABEL.closing}</option>
               <option value="opening">{DIRECTION_LABEL.opening}</option>
             </select>
@@ -241,8 +306,19 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
               Gap left at the point
             </label>
             <div className="flex gap-2">
-              <input id={ids.gap} className="field" inputMode="decimal" value={gapText} onChange={(e) => setGapText(e.target.value)} />
-              <select aria-label="Gap unit" className="field w-24" value={gapUnit} onChange={(e) => setGapUnit(e.target.value)}>
+              <input
+                id={ids.gap}
+                className="field"
+                inputMode="decimal"
+                value={gapText}
+                onChange={(e) => setGapText(e.target.value)}
+              />
+              <select
+                aria-label="Gap unit"
+                className="field w-24"
+                value={gapUnit}
+                onChange={(e) => setGapUnit(e.target.value)}
+              >
                 {lengthUnits.map((u) => (
                   <option key={u} value={u}>
                     {u}
@@ -268,7 +344,11 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
         </div>
       )}
       {error && (
-        <p id={ids.error} role="alert" className="mt-3 rounded-md bg-withdraw/10 px-3 py-2 font-semibold text-withdraw">
+        <p
+          id={ids.error}
+          role="alert"
+          className="mt-3 rounded-md bg-withdraw/10 px-3 py-2 font-semibold text-withdraw"
+        >
           {error}
         </p>
       )}
@@ -277,8 +357,13 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
           <li key={trace.key} className="rounded-lg border border-iron-100 p-3">
             <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
               <h4 className="font-semibold text-iron-900">
-                {TRACE_LOCATION_LABEL[trace.location]}, {DIRECTION_LABEL[trace.direction].toLowerCase()}, {formatLength(trace.gapMm, units)} gap
-                {trace.waiting && <span className="ml-2 rounded-full bg-brass-100 px-2 py-0.5 text-xs font-semibold text-iron-900">waiting to upload</span>}
+                {TRACE_LOCATION_LABEL[trace.location]}, {DIRECTION_LABEL[trace.direction].toLowerCase()},{' '}
+                {formatLength(trace.gapMm, units)} gap
+                {trace.waiting && (
+                  <span className="ml-2 rounded-full bg-brass-100 px-2 py-0.5 text-xs font-semibold text-iron-900">
+                    waiting to upload
+                  </span>
+                )}
               </h4>
               {editable && (
                 <button type="button" className="btn-secondary" onClick={() => remove(trace)}>
@@ -289,7 +374,11 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
             <p className="mb-2 text-xs break-all text-iron-600">{trace.label}</p>
             {trace.evaluation ? (
               <div className="grid gap-4 lg:grid-cols-[3fr_2fr]">
-                <TraceChart samples={trace.samples} evaluation={trace.evaluation} label={`${TRACE_LOCATION_LABEL[trace.location]} trace`} />
+                <TraceChart
+                  samples={trace.samples}
+                  evaluation={trace.evaluation}
+                  label={`${TRACE_LOCATION_LABEL[trace.location]} trace`}
+                />
                 <Evaluation e={trace.evaluation} />
               </div>
             ) : (

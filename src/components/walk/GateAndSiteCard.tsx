@@ -46,7 +46,10 @@ interface Props {
 function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neededGate }: Props) {
   const { sync, editable } = useWalkActions();
   const facts: [string, string][] = [
-    ['Kind', `${KIND_LABEL[gate.kind] ?? gate.kind}, ${gate.leaves === 'double' ? 'two leaves' : 'one leaf'}`],
+    [
+      'Kind',
+      `${KIND_LABEL[gate.kind] ?? gate.kind}, ${gate.leaves === 'double' ? 'two leaves' : 'one leaf'}`,
+    ],
     ...(gate.kind === 'swing'
       ? [
           [
@@ -61,11 +64,19 @@ function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neede
       : []),
     [
       'Width',
-      gate.entered.width ? `${gate.entered.width.value} ${gate.entered.width.unit}` : gate.widthMm ? formatLength(gate.widthMm, units) : 'Not recorded',
+      gate.entered.width
+        ? `${gate.entered.width.value} ${gate.entered.width.unit}`
+        : gate.widthMm
+          ? formatLength(gate.widthMm, units)
+          : 'Not recorded',
     ],
     [
       'Weight',
-      gate.entered.weight ? `${gate.entered.weight.value} ${gate.entered.weight.unit}` : gate.weightKg ? formatMass(gate.weightKg, units) : 'Not recorded',
+      gate.entered.weight
+        ? `${gate.entered.weight.value} ${gate.entered.weight.unit}`
+        : gate.weightKg
+          ? formatMass(gate.weightKg, units)
+          : 'Not recorded',
     ],
     ['Usage class', ['I', 'II', 'III', 'IV'][gate.usageClass - 1] ?? String(gate.usageClass)],
     ['Operator listed', yesNoUnknown(gate.operator.listed)],
@@ -109,7 +120,9 @@ function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neede
             {facts.map(([term, value]) => (
               <div key={term} className="contents">
                 <dt className="text-iron-600">{term}</dt>
-                <dd className={`font-semibold ${value === 'Not recorded' ? 'text-remedy' : 'text-iron-900'}`}>{value}</dd>
+                <dd className={`font-semibold ${value === 'Not recorded' ? 'text-remedy' : 'text-iron-900'}`}>
+                  {value}
+                </dd>
               </div>
             ))}
           </dl>

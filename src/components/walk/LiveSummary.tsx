@@ -39,7 +39,10 @@ export function LiveSummary({ result, ruleset, stale, toCheck, blockers, onOpen 
                   <li key={area.key} className="grid grid-cols-[1fr_auto] items-center gap-x-2 text-sm">
                     <span className="truncate text-iron-800">{area.title}</span>
                     <span className="font-semibold tabular-nums text-iron-900">{value}</span>
-                    <span className="col-span-2 h-1.5 overflow-hidden rounded-full bg-iron-100" aria-hidden="true">
+                    <span
+                      className="col-span-2 h-1.5 overflow-hidden rounded-full bg-iron-100"
+                      aria-hidden="true"
+                    >
                       <span
                         className={`block h-full ${value >= 90 ? 'bg-clear' : value >= 60 ? 'bg-remedy' : 'bg-withdraw'}`}
                         style={{ width: `${Math.max(2, value)}%` }}
@@ -51,7 +54,9 @@ export function LiveSummary({ result, ruleset, stale, toCheck, blockers, onOpen 
           </ul>
         </>
       ) : (
-        <p className="text-iron-700">{blockers ? 'Answer the gate and site questions to see a result.' : 'Working it out…'}</p>
+        <p className="text-iron-700">
+          {blockers ? 'Answer the gate and site questions to see a result.' : 'Working it out…'}
+        </p>
       )}
       <div className="grid gap-2">
         <button type="button" className="btn-secondary" onClick={() => onOpen('check')}>

@@ -56,7 +56,8 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
     }
     const number = parseEntered(nextText);
     if (number === null || number < 0) {
-      if (report) setError(number === null ? 'Type a number, e.g. 12.5 or 2-1/4' : 'A measurement cannot be negative');
+      if (report)
+        setError(number === null ? 'Type a number, e.g. 12.5 or 2-1/4' : 'A measurement cannot be negative');
       return;
     }
     setError(null);
@@ -90,7 +91,12 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
           }}
         />
         {options.length > 1 ? (
-          <div role="radiogroup" aria-label="Unit" id={`${inputId}-unit`} className="flex overflow-hidden rounded-lg border-2 border-iron-200">
+          <div
+            role="radiogroup"
+            aria-label="Unit"
+            id={`${inputId}-unit`}
+            className="flex overflow-hidden rounded-lg border-2 border-iron-200"
+          >
             {options.map((option) => (
               <label
                 key={option}

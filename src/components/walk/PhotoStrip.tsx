@@ -54,7 +54,16 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
         );
         return;
       }
-      await sync.addPhoto({ clientRef: newClientRef(), itemKey, fileName: photo.fileName, takenAt: photo.takenAt, source: photo.source }, photo.blob);
+      await sync.addPhoto(
+        {
+          clientRef: newClientRef(),
+          itemKey,
+          fileName: photo.fileName,
+          takenAt: photo.takenAt,
+          source: photo.source,
+        },
+        photo.blob,
+      );
     } catch {
       setMessage('The photo could not be read on this phone. Take it again.');
     } finally {
@@ -102,7 +111,9 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
                   className="size-18 rounded-md border-2 border-dashed border-brass-500 object-cover"
                 />
               ) : (
-                <span className="flex size-18 items-center justify-center rounded-md border-2 border-dashed border-brass-500 text-xs">photo</span>
+                <span className="flex size-18 items-center justify-center rounded-md border-2 border-dashed border-brass-500 text-xs">
+                  photo
+                </span>
               )}
               <UploadState upload={uploads[photo.clientRef]} fileName={photo.fileName} />
               {editable && (
@@ -124,7 +135,13 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
           {before}
           <label className="btn-secondary min-h-11 cursor-pointer focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-brass-500">
             <svg width="20" height="20" viewBox="0 0 24 24" aria-hidden="true">
-              <path d="M4 8h3l2-3h6l2 3h3v11H4z" fill="none" stroke="currentColor" strokeWidth="2" strokeLinejoin="round" />
+              <path
+                d="M4 8h3l2-3h6l2 3h3v11H4z"
+                fill="none"
+                stroke="currentColor"
+                strokeWidth="2"
+                strokeLinejoin="round"
+              />
               <circle cx="12" cy="13" r="3.5" fill="none" stroke="currentColor" strokeWidth="2" />
             </svg>
             Take photo
@@ -156,7 +173,10 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
         </div>
       )}
       {stopped && (
-        <p className="mt-2 flex flex-wrap items-center gap-2 rounded-md bg-brass-100 px-3 py-2 text-sm text-iron-900" data-upload-failed>
+        <p
+          className="mt-2 flex flex-wrap items-center gap-2 rounded-md bg-brass-100 px-3 py-2 text-sm text-iron-900"
+          data-upload-failed
+        >
           <span>
             <strong>Photo not sent yet.</strong> {stopped}
           </span>
@@ -173,7 +193,11 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
         </p>
       )}
       {message && (
-        <p id={id} role="alert" className="mt-2 rounded-md bg-withdraw/10 px-3 py-2 text-sm font-semibold text-withdraw">
+        <p
+          id={id}
+          role="alert"
+          className="mt-2 rounded-md bg-withdraw/10 px-3 py-2 text-sm font-semibold text-withdraw"
+        >
           {message}
         </p>
       )}
@@ -183,12 +207,18 @@ export function PhotoStrip({ itemKey, label, photos, pending, before }: Props) {
 
 /** Under a waiting photo: "waiting", or how much of it is sent while it goes. */
 function UploadState({ upload, fileName }: { upload: PhotoUpload | undefined; fileName: string }) {
-  const bar = 'absolute right-0 bottom-0 left-0 rounded-b-md bg-brass-100/95 text-center text-xs font-semibold text-iron-900';
+  const bar =
+    'absolute right-0 bottom-0 left-0 rounded-b-md bg-brass-100/95 text-center text-xs font-semibold text-iron-900';
   if (upload && !upload.failed) {
     const percent = upload.total > 0 ? Math.min(100, Math.round((upload.sent / upload.total) * 100)) : 0;
     return (
       <span className={bar} data-upload-progress={percent}>
-        <progress className="block h-1.5 w-full accent-iron-800" max={100} value={percent} aria-label={`Sending ${fileName}`} />
+        <progress
+          className="block h-1.5 w-full accent-iron-800"
+          max={100}
+          value={percent}
+          aria-label={`Sending ${fileName}`}
+        />
         {percent}%
       </span>
     );

@@ -26,7 +26,15 @@ interface Props {
 
 const yesNoNa = (['yes', 'no', 'na'] as const).map((value) => ({ value, label: YES_NO_NA_LABEL[value] }));
 
-function QuestionCardView({ question, areaTitle, answer, measurement, photos, pendingPhotos, neededBy }: Props) {
+function QuestionCardView({
+  question,
+  areaTitle,
+  answer,
+  measurement,
+  photos,
+  pendingPhotos,
+  neededBy,
+}: Props) {
   const { sync, units, editable } = useWalkActions();
   const promptId = `q-${question.key}-prompt`;
   const currentNote = (isMeasured(question.answerType) ? measurement?.note : answer?.note) ?? '';
@@ -34,8 +42,13 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
   const hasValue = isMeasured(question.answerType) ? measurement !== undefined : Boolean(answer?.value);
 
   const setAnswer = (value: string | null) =>
-    void sync.edit({ answers: { [question.key]: value === null ? null : { value, ...(answer?.note ? { note: answer.note } : {}) } } });
-  const setMeasurement = (value: MeasurementValue | null) => void sync.edit({ measurements: { [question.key]: value as never } });
+    void sync.edit({
+      answers: {
+        [question.key]: value === null ? null : { value, ...(answer?.note ? { note: answer.note } : {}) },
+      },
+    });
+  const setMeasurement = (value: MeasurementValue | null) =>
+    void sync.edit({ measurements: { [question.key]: value as never } });
   const setNote = (note: string) => {
     if (isMeasured(question.answerType)) {
       if (measurement) setMeasurement({ ...measurement, note });
@@ -44,7 +57,16 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
 
   let control;
   if (question.answerType === 'yes_no_na') {
-    control = <ChoiceButtons name={question.key} labelledBy={promptId} options={yesNoNa} value={answer?.value} disabled={!editable} onChange={setAnswer} />;
+    control = (
+      <ChoiceButtons
+        name={question.key}
+        labelledBy={promptId}
+        options={yesNoNa}
+        value={answer?.value}
+        disabled={!editable}
+        onChange={setAnswer}
+      />
+    );
   } else if (question.answerType === 'choice') {
     const options = question.options ?? [];
     control = (
@@ -118,7 +140,13 @@ function QuestionCardView({ question, areaTitle, answer, measurement, photos, pe
       {hasValue && noteOpen && (
         <label className="mt-2 block">
           <span className="label">Note</span>
-          <textarea className="field min-h-20" maxLength={2000} defaultValue={currentNote} disabled={!editable} onChange={(e) => setNote(e.target.value)} />
+          <textarea
+            className="field min-h-20"
+            maxLength={2000}
+            defaultValue={currentNote}
+            disabled={!editable}
+            onChange={(e) => setNote(e.target.value)}
+          />
         </label>
       )}
       <PhotoStrip

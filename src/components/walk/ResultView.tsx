@@ -14,7 +14,9 @@ import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } fro
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
 
 function AreaScores({ result, ruleset }: { result: ScoreResult; ruleset: WalkRuleset }) {
-  const rows = ruleset.areas.filter((a) => result.areaScores[a.key] !== null && result.areaScores[a.key] !== undefined);
+  const rows = ruleset.areas.filter(
+    (a) => result.areaScores[a.key] !== null && result.areaScores[a.key] !== undefined,
+  );
   return (
     <section aria-labelledby="area-scores" className="card">
       <h3 id="area-scores" className="mb-3 text-lg font-bold text-iron-900">
@@ -41,8 +43,16 @@ function AreaScores({ result, ruleset }: { result: ScoreResult; ruleset: WalkRul
   );
 }
 
-function FailingFindings({ findings, areaTitle }: { findings: Finding[]; areaTitle: (key: string) => string }) {
-  const failing = findings.filter((f) => f.outcome === 'fail').sort((a, b) => SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
+function FailingFindings({
+  findings,
+  areaTitle,
+}: {
+  findings: Finding[];
+  areaTitle: (key: string) => string;
+}) {
+  const failing = findings
+    .filter((f) => f.outcome === 'fail')
+    .sort((a, b) => SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
   return (
     <section aria-labelledby="failing" className="card">
       <h3 id="failing" className="mb-3 text-lg font-bold text-iron-900">
@@ -80,13 +90,16 @@ function FailingFindings({ findings, areaTitle }: { findings: Finding[]; areaTit
 function Verdict({ result, live }: { result: ScoreResult; live: boolean }) {
   return (
     <div className={`rounded-xl p-4 ${VERDICT_CLASS[result.verdict]}`}>
-      <p className="text-sm font-semibold uppercase tracking-wide opacity-90">{live ? 'Live result' : 'Submitted result'}</p>
+      <p className="text-sm font-semibold uppercase tracking-wide opacity-90">
+        {live ? 'Live result' : 'Submitted result'}
+      </p>
       <p className="text-2xl font-bold" data-verdict={result.verdict}>
         {VERDICT_LABEL[result.verdict]}
       </p>
       <p className="mt-1">{VERDICT_EXPLANATION[result.verdict]}</p>
       <p className="mt-2 text-sm font-semibold">
-        {result.counts.fail} failing · {result.counts.pass} passing · {result.counts.needsInfo} waiting for information
+        {result.counts.fail} failing · {result.counts.pass} passing · {result.counts.needsInfo} waiting for
+        information
       </p>
     </div>
   );
@@ -128,11 +141,14 @@ export function ResultView(props: ResultViewProps) {
             </ul>
           ) : props.refused ? (
             <p className="mt-2 text-iron-800">
-              {props.refused.detail} {(props.refused.errors ?? []).map((e) => `${e.field}: ${e.message}`).join('; ')}
+              {props.refused.detail}{' '}
+              {(props.refused.errors ?? []).map((e) => `${e.field}: ${e.message}`).join('; ')}
             </p>
           ) : (
             <p className="mt-2 text-iron-800">
-              {props.online ? 'Working it out…' : 'Offline: the result is worked out on the server once the signal is back.'}
+              {props.online
+                ? 'Working it out…'
+                : 'Offline: the result is worked out on the server once the signal is back.'}
             </p>
           )}
         </div>
@@ -148,7 +164,9 @@ export function ResultView(props: ResultViewProps) {
             <Verdict result={result} live={!submitted} />
             {!submitted && props.stale && (
               <p className="text-sm font-semibold text-iron-700">
-                {props.online ? 'Updating with your latest answers…' : 'Offline: this is the result before your latest answers.'}
+                {props.online
+                  ? 'Updating with your latest answers…'
+                  : 'Offline: this is the result before your latest answers.'}
               </p>
             )}
             {needs.length > 0 && (
@@ -179,12 +197,15 @@ export function ResultView(props: ResultViewProps) {
             Submit
           </h2>
           <p className="mt-1 text-iron-700">
-            Submitting scores the assessment on the server with {ruleset.title} {ruleset.version} and stores the result. Answers cannot be changed afterwards.
+            Submitting scores the assessment on the server with {ruleset.title} {ruleset.version} and stores
+            the result. Answers cannot be changed afterwards.
           </p>
           {props.submitBlocked && <p className="mt-2 font-semibold text-remedy">{props.submitBlocked}</p>}
           {props.submitProblem && (
             <div role="alert" className="mt-2 rounded-md bg-withdraw/10 px-3 py-2 text-withdraw">
-              <p className="font-semibold">{props.submitProblem.detail ?? 'The assessment could not be submitted.'}</p>
+              <p className="font-semibold">
+                {props.submitProblem.detail ?? 'The assessment could not be submitted.'}
+              </p>
               {(props.submitProblem.errors ?? []).length > 0 && (
                 <ul className="mt-1 list-disc pl-5 text-sm">
                   {(props.submitProblem.errors ?? []).map((e) => (
@@ -225,9 +246,14 @@ export function ResultView(props: ResultViewProps) {
               The server scores it with {ruleset.title} {ruleset.version} and stores the result
               {result ? ` (${VERDICT_LABEL[result.verdict].toLowerCase()} so far)` : ''}.
             </p>
-            <p>After that the answers, measurements and photos cannot be changed; a correction later means starting a revision.</p>
+            <p>
+              After that the answers, measurements and photos cannot be changed; a correction later means
+              starting a revision.
+            </p>
             {needs.length > 0 && (
-              <p className="font-semibold text-remedy">{count(needs.length, 'item')} still need information and will be reported as not checked.</p>
+              <p className="font-semibold text-remedy">
+                {count(needs.length, 'item')} still need information and will be reported as not checked.
+              </p>
             )}
           </ConfirmDialog>
         </section>

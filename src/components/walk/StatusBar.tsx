@@ -20,7 +20,11 @@ function SaveState({ state }: { state: SyncState }) {
     [icon, text, tone] = ['↻', 'Saving…', 'bg-iron-700 text-white'];
   } else if (state.pendingCount > 0 || state.phase === 'waiting') {
     const n = state.pendingCount;
-    [icon, text, tone] = ['●', `${n} ${n === 1 ? 'change' : 'changes'} on this phone${state.online ? '' : ' · offline'}`, 'bg-brass-400 text-iron-900'];
+    [icon, text, tone] = [
+      '●',
+      `${n} ${n === 1 ? 'change' : 'changes'} on this phone${state.online ? '' : ' · offline'}`,
+      'bg-brass-400 text-iron-900',
+    ];
   } else if (state.phase === 'loading') {
     [icon, text, tone] = ['…', 'Opening', 'bg-iron-700 text-white'];
   } else {
@@ -66,12 +70,17 @@ export function StatusBar({ state, verdict, stale, toCheck, view, onView }: Prop
             data-live-verdict={verdict}
             className={`inline-flex min-h-11 items-center gap-1.5 text-sm font-semibold ${VERDICT_TEXT_CLASS[verdict]}`}
           >
-            <span aria-hidden="true" className="inline-flex size-5 items-center justify-center rounded-full border-2 border-current text-xs">
+            <span
+              aria-hidden="true"
+              className="inline-flex size-5 items-center justify-center rounded-full border-2 border-current text-xs"
+            >
               {VERDICT_ICON[verdict]}
             </span>
             <span>
               <span className="text-iron-700">Verdict so far: </span>
-              <span className="underline decoration-current underline-offset-2">{VERDICT_SHORT[verdict]}</span>
+              <span className="underline decoration-current underline-offset-2">
+                {VERDICT_SHORT[verdict]}
+              </span>
             </span>
             {stale && <span aria-label="(updating)">…</span>}
           </button>
@@ -92,7 +101,12 @@ export function StatusBar({ state, verdict, stale, toCheck, view, onView }: Prop
             onClick={() => onView(tab.key)}
             onKeyDown={(e) => {
               const i = tabs.findIndex((t) => t.key === view);
-              const next = e.key === 'ArrowRight' ? tabs[(i + 1) % tabs.length] : e.key === 'ArrowLeft' ? tabs[(i + tabs.length - 1) % tabs.length] : null;
+              const next =
+                e.key === 'ArrowRight'
+                  ? tabs[(i + 1) % tabs.length]
+                  : e.key === 'ArrowLeft'
+                    ? tabs[(i + tabs.length - 1) % tabs.length]
+                    : null;
               if (next) {
                 e.preventDefault();
                 onView(next.key);

@@ -5,7 +5,11 @@
  * with the assessment, where the rules read them.
  */
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
-import { assessSwingOperatorGeometry, OPERATOR_LEAF_MIN_CLEARANCE_MM, type SwingOperatorGeometryResult } from '@/lib/rules/calculators/swing-geometry';
+import {
+  assessSwingOperatorGeometry,
+  OPERATOR_LEAF_MIN_CLEARANCE_MM,
+  type SwingOperatorGeometryResult,
+} from '@/lib/rules/calculators/swing-geometry';
 import { formatLength, fromMillimetres, type LengthUnit } from '@/lib/units';
 import { parseEntered, shortNumber, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
@@ -24,9 +28,21 @@ export interface SwingGeometryValue {
 }
 
 const LENGTH_FIELDS = [
-  { key: 'aMm', label: 'A: hinge to rear pivot, along the gate line', hint: 'Measured back along the closed gate line from the hinge axis.' },
-  { key: 'bMm', label: 'B: gate line to rear pivot, across', hint: 'Measured square from the gate line to the operator’s rear pivot.' },
-  { key: 'bracketFromHingeMm', label: 'Gate bracket from the hinge', hint: 'Along the leaf, hinge axis to the front pivot.' },
+  {
+    key: 'aMm',
+    label: 'A: hinge to rear pivot, along the gate line',
+    hint: 'Measured back along the closed gate line from the hinge axis.',
+  },
+  {
+    key: 'bMm',
+    label: 'B: gate line to rear pivot, across',
+    hint: 'Measured square from the gate line to the operator’s rear pivot.',
+  },
+  {
+    key: 'bracketFromHingeMm',
+    label: 'Gate bracket from the hinge',
+    hint: 'Along the leaf, hinge axis to the front pivot.',
+  },
   { key: 'retractedLengthMm', label: 'Ram length, fully retracted', hint: 'Pivot to pivot.' },
   { key: 'strokeMm', label: 'Stroke', hint: 'How far the ram extends.' },
 ] as const;
@@ -68,7 +84,8 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
       mm[field.key] = toMeasurement('length', n, unit).canonical;
     }
     const angle = parseEntered(angleText);
-    if (angle === null || angle <= 0 || angle > 180) return 'Enter the opening angle wanted, between 1° and 180°.';
+    if (angle === null || angle <= 0 || angle > 180)
+      return 'Enter the opening angle wanted, between 1° and 180°.';
     return {
       aMm: mm.aMm as number,
       bMm: (farSide ? -1 : 1) * Math.abs(mm.bMm as number),
@@ -115,7 +132,8 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
         Swing geometry check
       </h3>
       <p className="mt-1 text-sm text-iron-600">
-        Where the ram operator is mounted decides how far the gate can open and whether the ram body pinches against the leaf.
+        Where the ram operator is mounted decides how far the gate can open and whether the ram body pinches
+        against the leaf.
       </p>
       <fieldset className="mt-3 grid min-w-0 gap-3 sm:grid-cols-2" disabled={!editable}>
         <legend className="sr-only">Operator mounting figures</legend>
@@ -123,7 +141,11 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
           <span className="label" id={`${ids}-unit`}>
             Measured in
           </span>
-          <div role="radiogroup" aria-labelledby={`${ids}-unit`} className="flex w-fit overflow-hidden rounded-lg border-2 border-iron-200">
+          <div
+            role="radiogroup"
+            aria-labelledby={`${ids}-unit`}
+            className="flex w-fit overflow-hidden rounded-lg border-2 border-iron-200"
+          >
             {lengthUnits.map((u) => (
               <label
                 key={u}
@@ -140,7 +162,11 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
                       const next = { ...current };
                       for (const field of LENGTH_FIELDS) {
                         const n = parseEntered(current[field.key]);
-                        if (n !== null) next[field.key] = shortNumber(fromMillimetres(toMeasurement('length', n, unit).canonical, u as LengthUnit), 2);
+                        if (n !== null)
+                          next[field.key] = shortNumber(
+                            fromMillimetres(toMeasurement('length', n, unit).canonical, u as LengthUnit),
+                            2,
+                          );
                       }
                       return next;
                     });
@@ -174,10 +200,21 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
           <label htmlFor={`${ids}-angle`} className="label">
             Opening wanted (°)
           </label>
-          <input id={`${ids}-angle`} className="field tabular-nums" inputMode="decimal" value={angleText} onChange={(e) => setAngleText(e.target.value)} />
+          <input
+            id={`${ids}-angle`}
+            className="field tabular-nums"
+            inputMode="decimal"
+            value={angleText}
+            onChange={(e) => setAngleText(e.target.value)}
+          />
         </div>
         <label className="flex min-h-11 items-center gap-3 font-semibold text-iron-900 sm:col-span-2">
-          <input type="checkbox" className="size-6 accent-iron-800" checked={farSide} onChange={(e) => setFarSide(e.target.checked)} />
+          <input
+            type="checkbox"
+            className="size-6 accent-iron-800"
+            checked={farSide}
+            onChange={(e) => setFarSide(e.target.checked)}
+          />
           Operator is on the far side (the gate opens away from it)
         </label>
       </fieldset>
@@ -191,20 +228,29 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
           <SwingTopView input={input as SwingGeometryValue} result={result} leafLengthMm={leafLengthMm} />
           <div>
             <ul className="grid gap-2">
-              <li className={`rounded-md px-3 py-2 font-semibold ${result.swingReachable ? 'bg-clear/10 text-clear' : 'bg-withdraw/10 text-withdraw'}`}>
+              <li
+                className={`rounded-md px-3 py-2 font-semibold ${result.swingReachable ? 'bg-clear/10 text-clear' : 'bg-withdraw/10 text-withdraw'}`}
+              >
                 {result.swingReachable
                   ? `Reaches the ${(input as SwingGeometryValue).targetOpeningDeg}° opening.`
                   : `Cannot reach ${(input as SwingGeometryValue).targetOpeningDeg}°: reachable ${result.reachableRangesDeg.map((r) => `${r.fromDeg}°–${r.toDeg}°`).join(', ') || 'nowhere'}.`}
               </li>
-              <li className={`rounded-md px-3 py-2 font-semibold ${result.clearance.pass ? 'bg-clear/10 text-clear' : 'bg-withdraw/10 text-withdraw'}`}>
-                Closest the ram comes to the leaf: {formatLength(result.minClearanceMm, units)} at {result.minClearanceAtDeg}° (at least{' '}
-                {formatLength(OPERATOR_LEAF_MIN_CLEARANCE_MM, units)} wanted).
+              <li
+                className={`rounded-md px-3 py-2 font-semibold ${result.clearance.pass ? 'bg-clear/10 text-clear' : 'bg-withdraw/10 text-withdraw'}`}
+              >
+                Closest the ram comes to the leaf: {formatLength(result.minClearanceMm, units)} at{' '}
+                {result.minClearanceAtDeg}° (at least {formatLength(OPERATOR_LEAF_MIN_CLEARANCE_MM, units)}{' '}
+                wanted).
               </li>
               <li className="rounded-md bg-iron-50 px-3 py-2 text-iron-900">
-                Stroke used: {formatLength(result.strokeNeededMm, units)} of {formatLength((input as SwingGeometryValue).strokeMm, units)}; extension{' '}
-                {formatLength(result.extensionAtClosedMm, units)} closed, {formatLength(result.extensionAtOpenMm, units)} open.
+                Stroke used: {formatLength(result.strokeNeededMm, units)} of{' '}
+                {formatLength((input as SwingGeometryValue).strokeMm, units)}; extension{' '}
+                {formatLength(result.extensionAtClosedMm, units)} closed,{' '}
+                {formatLength(result.extensionAtOpenMm, units)} open.
               </li>
-              <li className={`rounded-md px-3 py-2 ${result.passesDeadCentre ? 'bg-remedy/10 font-semibold text-remedy' : 'bg-iron-50 text-iron-900'}`}>
+              <li
+                className={`rounded-md px-3 py-2 ${result.passesDeadCentre ? 'bg-remedy/10 font-semibold text-remedy' : 'bg-iron-50 text-iron-900'}`}
+              >
                 {result.passesDeadCentre
                   ? `The ram passes dead centre at ${result.deadCentreDeg}°: no leverage there.`
                   : `Leverage: at least ${formatLength(result.minLeverArmMm, units)} (at ${result.minLeverArmAtDeg}°).`}
@@ -214,7 +260,9 @@ export default function SwingGeometryPanel({ gate, value, needed }: Props) {
           </div>
         </div>
       )}
-      {reach && editable && <p className="mt-2 text-sm text-iron-600">These figures are saved with the assessment.</p>}
+      {reach && editable && (
+        <p className="mt-2 text-sm text-iron-600">These figures are saved with the assessment.</p>
+      )}
     </section>
   );
 }

@@ -28,7 +28,12 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
     const angle = input.targetOpeningDeg * p.factor;
     const c = Math.cos(rad(angle));
     const s = Math.sin(rad(angle));
-    return { ...p, angle, leafEnd: { x: leaf * c, y: leaf * s }, front: { x: input.bracketFromHingeMm * c, y: input.bracketFromHingeMm * s } };
+    return {
+      ...p,
+      angle,
+      leafEnd: { x: leaf * c, y: leaf * s },
+      front: { x: input.bracketFromHingeMm * c, y: input.bracketFromHingeMm * s },
+    };
   });
   const xs = [0, rear.x, ...poses.flatMap((p) => [p.leafEnd.x * 1.08, p.front.x])];
   const ys = [0, rear.y, ...poses.flatMap((p) => [p.leafEnd.y * 1.08, p.front.y])];
@@ -60,13 +65,37 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
         role="img"
         aria-label={description}
       >
-        <line x1={minX} y1={0} x2={minX + width} y2={0} stroke="#c3cfdc" strokeWidth={stroke / 2} strokeDasharray={`${stroke * 3} ${stroke * 2}`} />
+        <line
+          x1={minX}
+          y1={0}
+          x2={minX + width}
+          y2={0}
+          stroke="#c3cfdc"
+          strokeWidth={stroke / 2}
+          strokeDasharray={`${stroke * 3} ${stroke * 2}`}
+        />
         {arcs.map((d, i) => (
-          <path key={i} d={d} fill="none" stroke="#1f7a45" strokeOpacity={0.55} strokeWidth={stroke * 2.5} strokeLinecap="round" />
+          <path
+            key={i}
+            d={d}
+            fill="none"
+            stroke="#1f7a45"
+            strokeOpacity={0.55}
+            strokeWidth={stroke * 2.5}
+            strokeLinecap="round"
+          />
         ))}
         {poses.map((p) => (
           <g key={p.key}>
-            <line x1={0} y1={0} x2={p.leafEnd.x} y2={-p.leafEnd.y} stroke={p.colour} strokeWidth={stroke * 1.6} strokeLinecap="round" />
+            <line
+              x1={0}
+              y1={0}
+              x2={p.leafEnd.x}
+              y2={-p.leafEnd.y}
+              stroke={p.colour}
+              strokeWidth={stroke * 1.6}
+              strokeLinecap="round"
+            />
             {continues && (
               <line
                 x1={p.leafEnd.x}
@@ -88,7 +117,14 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
               strokeLinecap="round"
               strokeOpacity={0.85}
             />
-            <circle cx={p.front.x} cy={-p.front.y} r={stroke * 1.5} fill="#fff" stroke={p.colour} strokeWidth={stroke / 1.5} />
+            <circle
+              cx={p.front.x}
+              cy={-p.front.y}
+              r={stroke * 1.5}
+              fill="#fff"
+              stroke={p.colour}
+              strokeWidth={stroke / 1.5}
+            />
           </g>
         ))}
         <rect x={-stroke * 4} y={-stroke * 4} width={stroke * 8} height={stroke * 8} fill="#3b5370" />
@@ -97,7 +133,11 @@ export function SwingTopView({ input, result, leafLengthMm }: Props) {
       <figcaption className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-sm font-semibold text-iron-800">
         {poses.map((p) => (
           <span key={p.key} className="inline-flex items-center gap-1.5">
-            <span aria-hidden="true" className="inline-block h-1.5 w-5 rounded" style={{ background: p.colour }} />
+            <span
+              aria-hidden="true"
+              className="inline-block h-1.5 w-5 rounded"
+              style={{ background: p.colour }}
+            />
             {p.label} ({Math.round(p.angle)}°)
           </span>
         ))}

@@ -62,7 +62,11 @@ export function ToCheckList({ blockers, needsInfo: raw, unanswered, previewAvail
   const nothing = blockers.length === 0 && needsInfo.length === 0 && rest.length === 0;
   return (
     <div className="grid gap-6">
-      {nothing && <p className="card text-lg font-semibold text-clear">Nothing left to check: every item is answered.</p>}
+      {nothing && (
+        <p className="card text-lg font-semibold text-clear">
+          Nothing left to check: every item is answered.
+        </p>
+      )}
       {blockers.length > 0 && (
         <section aria-labelledby="check-blockers">
           <h2 id="check-blockers" className="mb-2 text-lg font-bold text-iron-900">
@@ -70,7 +74,11 @@ export function ToCheckList({ blockers, needsInfo: raw, unanswered, previewAvail
           </h2>
           <ul className="grid gap-2">
             {blockers.map((text) => (
-              <Entry key={text} target={{ id: /edit the gate/.test(text) ? 'item-gate' : 'item-site', label: text }} onGo={onGo} />
+              <Entry
+                key={text}
+                target={{ id: /edit the gate/.test(text) ? 'item-gate' : 'item-site', label: text }}
+                onGo={onGo}
+              />
             ))}
           </ul>
         </section>
@@ -96,7 +104,9 @@ export function ToCheckList({ blockers, needsInfo: raw, unanswered, previewAvail
         </section>
       )}
       {!previewAvailable && blockers.length === 0 && (
-        <p className="text-sm text-iron-600">The live result is not available right now, so only unanswered questions are listed.</p>
+        <p className="text-sm text-iron-600">
+          The live result is not available right now, so only unanswered questions are listed.
+        </p>
       )}
       {rest.length > 0 && (
         <section aria-labelledby="check-unanswered">

@@ -59,9 +59,18 @@ export function TraceChart({ samples, evaluation, label }: Props) {
         height: 220,
         legend: { show: false },
         cursor: { show: false },
-        scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(max, limits.peakN) * 1.1] } },
+        scales: {
+          x: { time: false },
+          y: { range: (_u, _min, max) => [0, Math.max(max, limits.peakN) * 1.1] },
+        },
         axes: [
-          { label: 'seconds', stroke: '#1d2c3f', grid: { stroke: '#e1e7ee' }, font: '12px Noto Sans, sans-serif', labelFont: '12px Noto Sans, sans-serif' },
+          {
+            label: 'seconds',
+            stroke: '#1d2c3f',
+            grid: { stroke: '#e1e7ee' },
+            font: '12px Noto Sans, sans-serif',
+            labelFont: '12px Noto Sans, sans-serif',
+          },
           {
             label: 'newtons',
             stroke: '#1d2c3f',
@@ -77,7 +86,9 @@ export function TraceChart({ samples, evaluation, label }: Props) {
       [times, forces],
       element,
     );
-    const resize = new ResizeObserver(() => plot.setSize({ width: Math.max(260, element.clientWidth), height: 220 }));
+    const resize = new ResizeObserver(() =>
+      plot.setSize({ width: Math.max(260, element.clientWidth), height: 220 }),
+    );
     resize.observe(element);
     return () => {
       resize.disconnect();

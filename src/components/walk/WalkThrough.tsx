@@ -11,7 +11,16 @@ import type { ScoreResult } from '@/lib/rules/result-types';
 import type { UnitSystem } from '@/lib/units';
 import { submitAssessment, type Problem } from '@/lib/walk/api';
 import type { WalkDocuments } from '@/lib/walk/documents';
-import { groupBySection, isAnswered, mergeNeeds, questionKeyOfFact, questionsToShow, toolOfFact, type WalkGate, type WalkRuleset } from '@/lib/walk/model';
+import {
+  groupBySection,
+  isAnswered,
+  mergeNeeds,
+  questionKeyOfFact,
+  questionsToShow,
+  toolOfFact,
+  type WalkGate,
+  type WalkRuleset,
+} from '@/lib/walk/model';
 import type { PhotoRecord, TraceRecord } from '@/lib/walk/records';
 import { ConflictDialog } from './ConflictDialog';
 import { WalkActionsContext, type WalkActions } from './context';
@@ -45,7 +54,9 @@ export interface WalkThroughProps {
 }
 
 export default function WalkThrough(props: WalkThroughProps) {
-  const [client] = useState(() => new QueryClient({ defaultOptions: { queries: { refetchOnWindowFocus: false } } }));
+  const [client] = useState(
+    () => new QueryClient({ defaultOptions: { queries: { refetchOnWindowFocus: false } } }),
+  );
   return (
     <QueryClientProvider client={client}>
       <WalkApp {...props} />
@@ -60,18 +71,43 @@ function ToolSlot({ children, mounted }: { children: React.ReactNode; mounted: b
   return mounted ? <Suspense fallback={fallback}>{children}</Suspense> : fallback;
 }
 
-function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, editable: editableProp, gateEditUrl }: WalkThroughProps) {
-  const { sync, state } = useWalkSync({ id: assessment.id, rowVersion: assessment.rowVersion, status: assessment.status, documents, photos, traces });
+function WalkApp({
+  assessment,
+  documents,
+  gate,
+  ruleset,
+  photos,
+  traces,
+  units,
+  editable: editableProp,
+  gateEditUrl,
+}: WalkThroughProps) {
+  const { sync, state } = useWalkSync({
+    id: assessment.id,
+    rowVersion: assessment.rowVersion,
+    status: assessment.status,
+    documents,
+    photos,
+    traces,
+  });
   const editable = editableProp && state.status === 'draft' && state.phase !== 'closed';
   const [view, setView] = useState<WalkView>(assessment.status === 'draft' ? 'walk' : 'result');
   const [mounted, setMounted] = useState(false);
-  const [submitted, setSubmitted] = useState<ScoreResult | null>(assessment.status === 'draft' ? null : assessment.result);
+  const [submitted, setSubmitted] = useState<ScoreResult | null>(
+    assessment.status === 'draft' ? null : assessment.result,
+  );
   useEffect(() => setMounted(true), []);
 
   const questions = useMemo(() => questionsToShow(ruleset, gate, state.view), [ruleset, gate, state.view]);
-  const tools = useMemo(() => new Set<string>(['sensing', 'force_test', ...(gate.kind === 'swing' ? ['operator_arm'] : [])]), [gate.kind]);
+  const tools = useMemo(
+    () => new Set<string>(['sensing', 'force_test', ...(gate.kind === 'swing' ? ['operator_arm'] : [])]),
+    [gate.kind],
+  );
   const groups = useMemo(() => groupBySection(ruleset, questions, tools), [ruleset, questions, tools]);
-  const areaTitle = useMemo(() => new Map(ruleset.areas.map((a) => [a.key as string, a.title])), [ruleset.areas]);
+  const areaTitle = useMemo(
+    () => new Map(ruleset.areas.map((a) => [a.key as string, a.title])),
+    [ruleset.areas],
+  );
   const preview = usePreview(gate, state.view, ruleset, state.online && state.status === 'draft');
   const result = submitted ?? preview.result;
 
@@ -86,11 +122,16 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
     return { byKey, byTool };
   }, [preview.result]);
 
-  const unanswered = useMemo(() => questions.filter((q) => !isAnswered(q, state.view)), [questions, state.view]);
+  const unanswered = useMemo(
+    () => questions.filter((q) => !isAnswered(q, state.view)),
+    [questions, state.view],
+  );
   const toCheck = useMemo(() => {
     const raw = preview.result?.needsInfo ?? [];
     const needed = new Set(raw.map((n) => n.key));
-    const extra = unanswered.filter((q) => !needed.has(`answers.${q.key}`) && !needed.has(`m.${q.key}`)).length;
+    const extra = unanswered.filter(
+      (q) => !needed.has(`answers.${q.key}`) && !needed.has(`m.${q.key}`),
+    ).length;
     return preview.blockers.length + mergeNeeds(raw).length + extra;
   }, [preview.result, preview.blockers, unanswered]);
 
@@ -104,7 +145,10 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
     const map = new Map<string, PendingPhoto[]>();
     for (const op of state.pending) {
       if (op.kind !== 'photo') continue;
-      map.set(op.itemKey, [...(map.get(op.itemKey) ?? []), { clientRef: op.clientRef, fileName: op.fileName, url: pendingUrls[op.clientRef] }]);
+      map.set(op.itemKey, [
+        ...(map.get(op.itemKey) ?? []),
+        { clientRef: op.clientRef, fileName: op.fileName, url: pendingUrls[op.clientRef] },
+      ]);
     }
     return map;
   }, [state.pending, pendingUrls]);
@@ -123,7 +167,8 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
       setSubmitted((answer.value.result as ScoreResult | null) ?? null);
       window.scrollTo({ top: 0 });
     },
-    onError: () => setSubmitProblem({ status: 0, detail: 'No connection: try again when the signal is back.' }),
+    onError: () =>
+      setSubmitProblem({ status: 0, detail: 'No connection: try again when the signal is back.' }),
   });
   const submitBlocked =
     state.phase === 'conflict'
@@ -156,7 +201,10 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
     });
   }, []);
 
-  const actions: WalkActions = useMemo(() => ({ sync, assessmentId: assessment.id, units, editable }), [sync, assessment.id, units, editable]);
+  const actions: WalkActions = useMemo(
+    () => ({ sync, assessmentId: assessment.id, units, editable }),
+    [sync, assessment.id, units, editable],
+  );
   const observations = state.view.observations;
 
   return (
@@ -169,7 +217,9 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
         view={view}
         onView={switchView}
       />
-      <div className={`mt-4 ${view !== 'result' ? 'lg:grid lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start lg:gap-6' : ''}`}>
+      <div
+        className={`mt-4 ${view !== 'result' ? 'lg:grid lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start lg:gap-6' : ''}`}
+      >
         <div className="grid min-w-0 gap-4">
           <RefusedNotices refused={state.refused} onDismiss={(id) => sync.dismissRefused(id)} />
           {state.phase === 'closed' && !submitted && (
@@ -178,7 +228,13 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
             </p>
           )}
 
-          <div id="panel-walk" role="tabpanel" aria-labelledby="tab-walk" hidden={view !== 'walk'} className="grid gap-4">
+          <div
+            id="panel-walk"
+            role="tabpanel"
+            aria-labelledby="tab-walk"
+            hidden={view !== 'walk'}
+            className="grid gap-4"
+          >
             <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4 sm:mx-0 sm:px-0">
               <ol className="flex gap-2 pb-1">
                 {groups.map((group, i) => {
@@ -193,7 +249,9 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
                           {i + 1}. {group.title}
                         </span>
                         {group.questions.length > 0 && (
-                          <span className={`tabular-nums ${answered === group.questions.length ? 'text-clear' : 'text-iron-600'}`}>
+                          <span
+                            className={`tabular-nums ${answered === group.questions.length ? 'text-clear' : 'text-iron-600'}`}
+                          >
                             {answered}/{group.questions.length}
                           </span>
                         )}
@@ -209,12 +267,21 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
               gate={gate}
               gateEditUrl={gateEditUrl}
               units={units}
-              neededSite={neededBy.byTool.has('site') || preview.blockers.some((b) => !/edit the gate/.test(b))}
-              neededGate={neededBy.byTool.has('gate') || preview.blockers.some((b) => /edit the gate/.test(b))}
+              neededSite={
+                neededBy.byTool.has('site') || preview.blockers.some((b) => !/edit the gate/.test(b))
+              }
+              neededGate={
+                neededBy.byTool.has('gate') || preview.blockers.some((b) => /edit the gate/.test(b))
+              }
             />
 
             {groups.map((group, i) => (
-              <section key={group.key} id={`section-${group.key}`} aria-labelledby={`section-${group.key}-title`} className="grid scroll-mt-28 gap-3">
+              <section
+                key={group.key}
+                id={`section-${group.key}`}
+                aria-labelledby={`section-${group.key}-title`}
+                className="grid scroll-mt-28 gap-3"
+              >
                 <h2 id={`section-${group.key}-title`} className="mt-2 text-xl font-bold text-iron-900">
                   <span className="text-brass-700">{i + 1}.</span> {group.title}
                 </h2>
@@ -230,15 +297,29 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
                     neededBy={neededBy.byKey.get(q.key) ?? 0}
                   />
                 ))}
-                {group.key === 'sensing' && <EntrapmentCard value={observations.entrapment} needed={neededBy.byTool.has('entrapment')} />}
+                {group.key === 'sensing' && (
+                  <EntrapmentCard
+                    value={observations.entrapment}
+                    needed={neededBy.byTool.has('entrapment')}
+                  />
+                )}
                 {group.key === 'operator_arm' && gate.kind === 'swing' && (
                   <ToolSlot mounted={mounted}>
-                    <SwingGeometryPanel gate={gate} value={observations.swingGeometry} needed={neededBy.byTool.has('geometry')} />
+                    <SwingGeometryPanel
+                      gate={gate}
+                      value={observations.swingGeometry}
+                      needed={neededBy.byTool.has('geometry')}
+                    />
                   </ToolSlot>
                 )}
                 {group.key === 'force_test' && (
                   <ToolSlot mounted={mounted}>
-                    <ForceTracePanel gateKind={gate.kind} traces={state.traces} pending={state.pending} needed={neededBy.byTool.has('force')} />
+                    <ForceTracePanel
+                      gateKind={gate.kind}
+                      traces={state.traces}
+                      pending={state.pending}
+                      needed={neededBy.byTool.has('force')}
+                    />
                   </ToolSlot>
                 )}
               </section>
@@ -292,7 +373,11 @@ function WalkApp({ assessment, documents, gate, ruleset, photos, traces, units, 
         )}
       </div>
       {state.phase === 'conflict' && (
-        <ConflictDialog conflicts={state.conflicts} questions={ruleset.questions} onResolve={(choices) => void sync.resolveConflicts(choices)} />
+        <ConflictDialog
+          conflicts={state.conflicts}
+          questions={ruleset.questions}
+          onResolve={(choices) => void sync.resolveConflicts(choices)}
+        />
       )}
     </WalkActionsContext.Provider>
   );

@@ -15,7 +15,11 @@ export const VERDICT_SHORT = each((w) => w.short);
 export const VERDICT_EXPLANATION = each((w) => w.explanation);
 
 /** The verdict as coloured text on white (a status, not a filled button). */
-export const VERDICT_TEXT_CLASS: Record<Verdict, string> = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' };
+export const VERDICT_TEXT_CLASS: Record<Verdict, string> = {
+  clear: 'text-clear',
+  remedy: 'text-remedy',
+  withdraw: 'text-withdraw',
+};
 
 export const VERDICT_ICON: Record<Verdict, string> = { clear: '✓', remedy: '!', withdraw: '■' };
 

@@ -29,10 +29,21 @@ export interface Preview {
   stale: boolean;
 }
 
-export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: WalkRuleset, online: boolean): Preview {
-  const { input, blockers } = useMemo(() => buildPreviewInput(gate, documents, ruleset.questions), [gate, documents, ruleset.questions]);
+export function usePreview(
+  gate: WalkGate,
+  documents: WalkDocuments,
+  ruleset: WalkRuleset,
+  online: boolean,
+): Preview {
+  const { input, blockers } = useMemo(
+    () => buildPreviewInput(gate, documents, ruleset.questions),
+    [gate, documents, ruleset.questions],
+  );
   // Key order follows whoever wrote the document last; the same answers must be the same request.
-  const body = useMemo(() => stableJson({ family: ruleset.family, version: ruleset.version, input }), [input, ruleset.family, ruleset.version]);
+  const body = useMemo(
+    () => stableJson({ family: ruleset.family, version: ruleset.version, input }),
+    [input, ruleset.family, ruleset.version],
+  );
   const [settled, setSettled] = useState({ body, ready: blockers.length === 0 });
   useEffect(() => {
     const timer = setTimeout(() => setSettled({ body, ready: blockers.length === 0 }), SETTLE_MS);
@@ -67,7 +78,9 @@ export function usePreview(gate: WalkGate, documents: WalkDocuments, ruleset: Wa
 function stableJson(value: unknown): string {
   return JSON.stringify(value, (_key, v: unknown) =>
     v && typeof v === 'object' && !Array.isArray(v)
-      ? Object.fromEntries(Object.entries(v as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)))
+      ? Object.fromEntries(
+          Object.entries(v as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)),
+        )
       : v,
   );
 }

@@ -9,7 +9,12 @@ import { sendDirect, WalkSync, type InitialAssessment, type SyncState } from '@/
 
 export function useWalkSync(initial: InitialAssessment): { sync: WalkSync; state: SyncState } {
   const [sync] = useState(() => new WalkSync(initial));
-  const send = useMutation({ mutationKey: ['walk-send', initial.id], mutationFn: sendDirect, networkMode: 'always', retry: false });
+  const send = useMutation({
+    mutationKey: ['walk-send', initial.id],
+    mutationFn: sendDirect,
+    networkMode: 'always',
+    retry: false,
+  });
   sync.sender = send.mutateAsync;
   useEffect(() => {
     void sync.start();

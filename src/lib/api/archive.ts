@@ -11,7 +11,8 @@ import { ARCHIVE_SORTS, type ArchiveFilterKey } from '../archive-query';
 
 export { ARCHIVE_SORTS, ARCHIVE_FILTER_KEYS, type ArchiveSort } from '../archive-query';
 
-const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
+const enumOf = <const T extends readonly [string, ...string[]]>(values: T) =>
+  z.enum(values, `must be one of: ${values.join(', ')}`);
 const familySlug = z
   .string()
   .max(64)
@@ -47,7 +48,9 @@ export const ARCHIVE_PAGE_SIZE_MAX = 100;
 
 const dateOrder = (q: { from?: string; to?: string }) => !q.from || !q.to || q.from <= q.to;
 
-export const ArchiveFilterSchema = z.strictObject(ArchiveFilterShape).refine(dateOrder, { path: ['to'], message: 'must not be before from' });
+export const ArchiveFilterSchema = z
+  .strictObject(ArchiveFilterShape)
+  .refine(dateOrder, { path: ['to'], message: 'must not be before from' });
 export type ArchiveFilter = z.infer<typeof ArchiveFilterSchema>;
 
 /** A page of the list: keyset pagination, `after` / `before` an opaque cursor from a previous page. */
@@ -55,7 +58,12 @@ export const ArchiveListQuerySchema = z
   .strictObject({
     ...ArchiveFilterShape,
     sort: z.preprocess(blankAsUndefined, enumOf(ARCHIVE_SORTS).default('-date')),
-    limit: z.coerce.number().int().min(1, 'must be at least 1').max(ARCHIVE_PAGE_SIZE_MAX, `must be at most ${ARCHIVE_PAGE_SIZE_MAX}`).default(25),
+    limit: z.coerce
+      .number()
+      .int()
+      .min(1, 'must be at least 1')
+      .max(ARCHIVE_PAGE_SIZE_MAX, `must be at most ${ARCHIVE_PAGE_SIZE_MAX}`)
+      .default(25),
     after: optional(z.string().max(400)),
     before: optional(z.string().max(400)),
   })

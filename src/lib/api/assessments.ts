@@ -9,7 +9,14 @@
  * (RFC 7396): a key set to null is removed, objects merge, arrays are replaced.
  */
 import { z } from 'zod';
-import { EntrapmentInputSchema, ForceTestSchema, HrnOverrideSchema, SiteContextSchema, SwingGeometryInputSchema, type MeasuredValue } from '@/lib/rules/input';
+import {
+  EntrapmentInputSchema,
+  ForceTestSchema,
+  HrnOverrideSchema,
+  SiteContextSchema,
+  SwingGeometryInputSchema,
+  type MeasuredValue,
+} from '@/lib/rules/input';
 import { IdSchema, IsoDateSchema, boundedJson, pagingShape, sortSchema } from './common';
 import { GATE_KIND_VALUES } from './gates';
 
@@ -23,8 +30,11 @@ export type VerdictValue = (typeof VERDICT_VALUES)[number];
 /** Limits on what one draft may hold, so a runaway client cannot fill the database. */
 export const ASSESSMENT_LIMITS = { answers: 500, measurements: 500 } as const;
 
-const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
-const questionKey = z.string().regex(/^[a-z][a-zA-Z0-9]{1,63}$/, 'must be a question key (camelCase letters and digits)');
+const enumOf = <const T extends readonly [string, ...string[]]>(values: T) =>
+  z.enum(values, `must be one of: ${values.join(', ')}`);
+const questionKey = z
+  .string()
+  .regex(/^[a-z][a-zA-Z0-9]{1,63}$/, 'must be a question key (camelCase letters and digits)');
 const note = z
   .string()
   .trim()

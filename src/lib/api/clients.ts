@@ -19,7 +19,10 @@ const phone = z
   .string('must be text')
   .trim()
   .max(40, 'must be at most 40 characters')
-  .regex(/^\+?[0-9 ().\-/]*(?:(?:x|ext\.?)\s*[0-9]+)?$/i, 'must be a phone number (digits, spaces, + ( ) . - /)')
+  .regex(
+    /^\+?[0-9 ().\-/]*(?:(?:x|ext\.?)\s*[0-9]+)?$/i,
+    'must be a phone number (digits, spaces, + ( ) . - /)',
+  )
   .transform((value) => value || null)
   .nullable()
   .optional();

@@ -10,7 +10,12 @@ const noNul = (value: string) => !value.includes('\u0000');
 
 /** Required, trimmed, non-empty text of at most `max` characters. */
 export const text = (max: number) =>
-  z.string('must be text').trim().min(1, 'must not be empty').max(max, `must be at most ${max} characters`).refine(noNul, 'must not contain NUL characters');
+  z
+    .string('must be text')
+    .trim()
+    .min(1, 'must not be empty')
+    .max(max, `must be at most ${max} characters`)
+    .refine(noNul, 'must not contain NUL characters');
 
 /** Optional text that may also be cleared with null (or an empty string, stored as null). */
 export const optionalText = (max: number) =>
@@ -37,10 +42,19 @@ export const PAGE_SIZE_DEFAULT = 25;
 export const PAGE_SIZE_MAX = 100;
 
 /** Free-text search as typed in a list's search box. */
-export const SearchTextSchema = z.string().trim().max(200, 'must be at most 200 characters').refine(noNul, 'must not contain NUL characters');
+export const SearchTextSchema = z
+  .string()
+  .trim()
+  .max(200, 'must be at most 200 characters')
+  .refine(noNul, 'must not contain NUL characters');
 
 export const pagingShape = {
-  page: z.coerce.number('must be a whole number').int('must be a whole number').min(1, 'must be at least 1').max(100_000).default(1),
+  page: z.coerce
+    .number('must be a whole number')
+    .int('must be a whole number')
+    .min(1, 'must be at least 1')
+    .max(100_000)
+    .default(1),
   pageSize: z.coerce
     .number('must be a whole number')
     .int('must be a whole number')
@@ -53,14 +67,20 @@ export const pagingShape = {
  * `?sort=name` or `?sort=-name` over the listed fields; every list also orders by id last, so
  * pages are stable even when many rows share the sorted value.
  */
-export function sortSchema<const F extends readonly [string, ...string[]]>(fields: F, fallback: F[number] | `-${F[number]}`) {
+export function sortSchema<const F extends readonly [string, ...string[]]>(
+  fields: F,
+  fallback: F[number] | `-${F[number]}`,
+) {
   const values = [...fields, ...fields.map((f) => `-${f}`)] as [string, ...string[]];
   return z
     .enum(values, `must be one of: ${values.join(', ')}`)
     .default(fallback)
     .transform((value) => {
       const descending = value.startsWith('-');
-      return { field: (descending ? value.slice(1) : value) as F[number], direction: descending ? ('desc' as const) : ('asc' as const) };
+      return {
+        field: (descending ? value.slice(1) : value) as F[number],
+        direction: descending ? ('desc' as const) : ('asc' as const),
+      };
     });
 }
 
@@ -90,12 +110,15 @@ export function boundedJson(limits: Partial<JsonLimits> = {}) {
     const visit = (value: unknown, path: PropertyKey[], depth: number): void => {
       if (value === null || typeof value === 'boolean') return;
       if (typeof value === 'number') {
-        if (!Number.isFinite(value)) ctx.addIssue({ code: 'custom', path, message: 'must be a finite number' });
+        if (!Number.isFinite(value))
+          ctx.addIssue({ code: 'custom', path, message: 'must be a finite number' });
         return;
       }
       if (typeof value === 'string') {
-        if (value.length > maxText) ctx.addIssue({ code: 'custom', path, message: `must be at most ${maxText} characters` });
-        else if (!noNul(value)) ctx.addIssue({ code: 'custom', path, message: 'must not contain NUL characters' });
+        if (value.length > maxText)
+          ctx.addIssue({ code: 'custom', path, message: `must be at most ${maxText} characters` });
+        else if (!noNul(value))
+          ctx.addIssue({ code: 'custom', path, message: 'must not contain NUL characters' });
         return;
       }
       if (typeof value !== 'object') {
@@ -106,14 +129,20 @@ export function boundedJson(limits: Partial<JsonLimits> = {}) {
         ctx.addIssue({ code: 'custom', path, message: `must be nested at most ${maxDepth} levels deep` });
         return;
       }
-      const entries: [PropertyKey, unknown][] = Array.isArray(value) ? value.map((v, i) => [i, v]) : Object.entries(value);
+      const entries: [PropertyKey, unknown][] = Array.isArray(value)
+        ? value.map((v, i) => [i, v])
+        : Object.entries(value);
       if (entries.length > maxItems) {
         ctx.addIssue({ code: 'custom', path, message: `must have at most ${maxItems} entries` });
         return;
       }
       for (const [key, member] of entries) {
         if (typeof key === 'string' && !jsonKey.safeParse(key).success) {
-          ctx.addIssue({ code: 'custom', path: [...path, key], message: 'keys must be 1 to 100 characters without NUL' });
+          ctx.addIssue({
+            code: 'custom',
+            path: [...path, key],
+            message: 'keys must be 1 to 100 characters without NUL',
+          });
           continue;
         }
         visit(member, [...path, key], depth + 1);

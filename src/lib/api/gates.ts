@@ -6,15 +6,38 @@
  */
 import { z } from 'zod';
 import { isUnitOf, measure, type LengthUnit, type MassUnit } from '@/lib/units';
-import { IdSchema, IsoDateSchema, optionalText, pagingShape, SearchTextSchema, sortSchema, text } from './common';
+import {
+  IdSchema,
+  IsoDateSchema,
+  optionalText,
+  pagingShape,
+  SearchTextSchema,
+  sortSchema,
+  text,
+} from './common';
 
 /** How the gate moves (the same list as the database check and the rules engine). */
-export const GATE_KIND_VALUES = ['swing', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot'] as const;
+export const GATE_KIND_VALUES = [
+  'swing',
+  'slide',
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+] as const;
 export type GateKindValue = (typeof GATE_KIND_VALUES)[number];
 export const GATE_LEAVES = ['single', 'double'] as const;
 /** Swing gates: toward the operator's side (pull) or away from it (push). */
 export const OPENING_DIRECTIONS = ['pull_to_open', 'push_to_open'] as const;
-export const OPERATOR_MOUNTINGS = ['post', 'pad', 'wall', 'column', 'underground', 'overhead', 'other'] as const;
+export const OPERATOR_MOUNTINGS = [
+  'post',
+  'pad',
+  'wall',
+  'column',
+  'underground',
+  'overhead',
+  'other',
+] as const;
 export const OPERATOR_POWER = ['mains_ac', 'low_voltage_ac', 'low_voltage_dc', 'solar', 'other'] as const;
 
 /** Plausible bounds, so a unit slip (metres typed as millimetres) is caught at entry. */
@@ -24,13 +47,22 @@ export const GATE_DIMENSION_BOUNDS = {
   weightKg: { min: 1, max: 50_000 },
 } as const;
 
-const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
+const enumOf = <const T extends readonly [string, ...string[]]>(values: T) =>
+  z.enum(values, `must be one of: ${values.join(', ')}`);
 const nullable = <S extends z.ZodType>(schema: S) => schema.nullable().optional();
 
 const entered = <K extends 'length' | 'mass'>(kind: K) =>
   z.strictObject({
-    value: z.number('must be a number').positive('must be greater than 0').refine(Number.isFinite, 'must be a finite number'),
-    unit: z.string().refine((u) => isUnitOf(kind, u), kind === 'length' ? 'must be one of: mm, cm, m, in, ft' : 'must be one of: kg, lb'),
+    value: z
+      .number('must be a number')
+      .positive('must be greater than 0')
+      .refine(Number.isFinite, 'must be a finite number'),
+    unit: z
+      .string()
+      .refine(
+        (u) => isUnitOf(kind, u),
+        kind === 'length' ? 'must be one of: mm, cm, m, in, ft' : 'must be one of: kg, lb',
+      ),
   });
 
 export const OperatorFactsSchema = z.strictObject({
@@ -85,7 +117,11 @@ function resolveDimensions(body: Record<string, unknown>, ctx: z.RefinementCtx):
     const direct = body[column] as number | null | undefined;
     const measured = body[dimension] as EnteredValue | null | undefined;
     if (direct !== undefined && measured !== undefined) {
-      ctx.addIssue({ code: 'custom', path: [dimension], message: `send either ${column} or ${dimension}, not both` });
+      ctx.addIssue({
+        code: 'custom',
+        path: [dimension],
+        message: `send either ${column} or ${dimension}, not both`,
+      });
       continue;
     }
     if (direct === undefined && measured === undefined) continue;

@@ -18,8 +18,16 @@ export const OrganisationPatchSchema = z
   .strictObject({
     name: text(200),
     displayUnits: z.enum(DISPLAY_UNITS, `must be one of: ${DISPLAY_UNITS.join(', ')}`),
-    timeZone: z.string().trim().max(64, 'must be at most 64 characters').refine(isTimeZone, 'must be a time zone name such as America/Denver'),
-    reinspectionMonths: z.number('must be a number').int('must be a whole number of months').min(1, 'must be at least 1').max(60, 'must be at most 60'),
+    timeZone: z
+      .string()
+      .trim()
+      .max(64, 'must be at most 64 characters')
+      .refine(isTimeZone, 'must be a time zone name such as America/Denver'),
+    reinspectionMonths: z
+      .number('must be a number')
+      .int('must be a whole number of months')
+      .min(1, 'must be at least 1')
+      .max(60, 'must be at most 60'),
     remindClients: z.boolean('must be true or false'),
   })
   .partial()

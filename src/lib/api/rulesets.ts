@@ -10,12 +10,25 @@ import { z } from 'zod';
 import { AssessmentInputSchema } from '@/lib/rules/input';
 import { MEASURED_ANSWER_TYPES } from '@/lib/rules/measures';
 import type { RulesetVersion } from '@/lib/rules/ruleset-schema';
-import { GATE_KINDS, HAZARD_AREAS, KEY_PATTERN, SEVERITIES, USAGE_CLASSES, WALK_SECTIONS } from '@/lib/rules/vocabulary';
+import {
+  GATE_KINDS,
+  HAZARD_AREAS,
+  KEY_PATTERN,
+  SEVERITIES,
+  USAGE_CLASSES,
+  WALK_SECTIONS,
+} from '@/lib/rules/vocabulary';
 
-const enumOf = <const T extends readonly [string, ...string[]]>(values: T) => z.enum(values, `must be one of: ${values.join(', ')}`);
+const enumOf = <const T extends readonly [string, ...string[]]>(values: T) =>
+  z.enum(values, `must be one of: ${values.join(', ')}`);
 const noNul = (value: string) => !value.includes('\u0000');
 const text = (max: number) =>
-  z.string().trim().min(1, 'must not be empty').max(max, `must be at most ${max} characters`).refine(noNul, 'must not contain NUL characters');
+  z
+    .string()
+    .trim()
+    .min(1, 'must not be empty')
+    .max(max, `must be at most ${max} characters`)
+    .refine(noNul, 'must not contain NUL characters');
 
 export const FamilySlugSchema = z
   .string()
@@ -25,7 +38,10 @@ export const FamilySlugSchema = z
 export const VersionLabelSchema = z
   .string()
   .max(40, 'must be at most 40 characters')
-  .regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must be a version label such as "2026.1" or "2026.1-local.2"');
+  .regex(
+    /^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/,
+    'must be a version label such as "2026.1" or "2026.1-local.2"',
+  );
 
 export const RuleIdSchema = z
   .string()
@@ -35,7 +51,9 @@ export const RuleIdSchema = z
 /** Local rules live under their own prefix, so a later shipped version can never collide with them. */
 export const LOCAL_RULE_PREFIX = 'local.';
 
-const questionKey = z.string().regex(KEY_PATTERN, 'must be camelCase letters and digits, starting with a lower-case letter');
+const questionKey = z
+  .string()
+  .regex(KEY_PATTERN, 'must be camelCase letters and digits, starting with a lower-case letter');
 
 // ---------------------------------------------------------------------------------------------
 // Scoring preview
@@ -123,7 +141,10 @@ export const RuleChangeSchema = z
     enabled: z.boolean('must be true or false').optional(),
     params: z.record(questionKey, ParamValueSchema).optional(),
   })
-  .refine((c) => c.severity !== undefined || c.enabled !== undefined || c.params !== undefined, 'say what changes: severity, enabled or params');
+  .refine(
+    (c) => c.severity !== undefined || c.enabled !== undefined || c.params !== undefined,
+    'say what changes: severity, enabled or params',
+  );
 export type RuleChange = z.infer<typeof RuleChangeSchema>;
 
 const LocalQuestionSchema = z.strictObject({
@@ -152,7 +173,9 @@ export const LocalCheckSchema = z.discriminatedUnion('kind', [
     condition: z.json(),
     requires: z.array(z.string().max(120)).max(30),
     optional: z.array(z.string().max(120)).max(30).optional(),
-    params: z.record(questionKey, z.strictObject({ value: z.number().finite(), unit: z.string().max(8) })).optional(),
+    params: z
+      .record(questionKey, z.strictObject({ value: z.number().finite(), unit: z.string().max(8) }))
+      .optional(),
   }),
 ]);
 export type LocalCheck = z.infer<typeof LocalCheckSchema>;
@@ -160,13 +183,26 @@ export type LocalCheck = z.infer<typeof LocalCheckSchema>;
 /** A requirement of a local code or of the authority having jurisdiction, with its own reference. */
 export const LocalRuleSchema = z.strictObject({
   /** `local.<words>`; generated from the title when left out. */
-  id: RuleIdSchema.refine((id) => id.startsWith(LOCAL_RULE_PREFIX), `must start with "${LOCAL_RULE_PREFIX}"`).optional(),
+  id: RuleIdSchema.refine(
+    (id) => id.startsWith(LOCAL_RULE_PREFIX),
+    `must start with "${LOCAL_RULE_PREFIX}"`,
+  ).optional(),
   title: text(160),
   area: enumOf(HAZARD_AREAS),
   severity: enumOf(SEVERITIES),
   gateKinds: z.array(enumOf(GATE_KINDS)).min(1, 'name at least one gate kind').max(GATE_KINDS.length),
   usageClasses: z
-    .array(z.union(USAGE_CLASSES.map((c) => z.literal(c)) as [z.ZodLiteral<1>, z.ZodLiteral<2>, z.ZodLiteral<3>, z.ZodLiteral<4>], 'must be 1, 2, 3 or 4'))
+    .array(
+      z.union(
+        USAGE_CLASSES.map((c) => z.literal(c)) as [
+          z.ZodLiteral<1>,
+          z.ZodLiteral<2>,
+          z.ZodLiteral<3>,
+          z.ZodLiteral<4>,
+        ],
+        'must be 1, 2, 3 or 4',
+      ),
+    )
     .min(1)
     .max(4)
     .optional(),
@@ -193,7 +229,10 @@ export const AmendmentPatchSchema = z
     /** Local rules to take out again (shipped rules are turned off instead). */
     removeRules: z.array(z.string().max(120)).max(100).optional(),
   })
-  .refine((p) => p.rules !== undefined || p.addRules !== undefined || p.removeRules !== undefined, 'say what changes: rules, addRules or removeRules');
+  .refine(
+    (p) => p.rules !== undefined || p.addRules !== undefined || p.removeRules !== undefined,
+    'say what changes: rules, addRules or removeRules',
+  );
 export type AmendmentPatch = z.infer<typeof AmendmentPatchSchema>;
 
 /** One problem with an amendment: the field of the request, or of the resulting ruleset (`ruleset.rules[12].condition`). */

@@ -7,7 +7,12 @@ export const USAGE_CLASS_VALUES = [1, 2, 3, 4] as const;
 export type SiteUsageClass = (typeof USAGE_CLASS_VALUES)[number];
 
 const usageClass = z.union(
-  USAGE_CLASS_VALUES.map((c) => z.literal(c)) as [z.ZodLiteral<1>, z.ZodLiteral<2>, z.ZodLiteral<3>, z.ZodLiteral<4>],
+  USAGE_CLASS_VALUES.map((c) => z.literal(c)) as [
+    z.ZodLiteral<1>,
+    z.ZodLiteral<2>,
+    z.ZodLiteral<3>,
+    z.ZodLiteral<4>,
+  ],
   'must be a usage class 1, 2, 3 or 4',
 );
 /** ISO 3166-1 alpha-2. */

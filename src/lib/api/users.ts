@@ -44,14 +44,21 @@ export interface User {
   createdAt: string;
 }
 
-export const EmailSchema = z.string().trim().toLowerCase().pipe(z.email('must be an e-mail address').max(254, 'must be at most 254 characters'));
+export const EmailSchema = z
+  .string()
+  .trim()
+  .toLowerCase()
+  .pipe(z.email('must be an e-mail address').max(254, 'must be at most 254 characters'));
 
 export const InvitationCreateSchema = z.strictObject({ email: EmailSchema, role: staffRole });
 export type InvitationCreate = z.infer<typeof InvitationCreateSchema>;
 
 /** Common practice (NIST SP 800-63B asks for at least 8; we ask a little more), no upper bound below 256. */
 export const PASSWORD_MIN = 10;
-export const PasswordSchema = z.string().min(PASSWORD_MIN, `must be at least ${PASSWORD_MIN} characters`).max(256, 'must be at most 256 characters');
+export const PasswordSchema = z
+  .string()
+  .min(PASSWORD_MIN, `must be at least ${PASSWORD_MIN} characters`)
+  .max(256, 'must be at most 256 characters');
 
 export const InvitationAcceptSchema = z.strictObject({ name: text(120), password: PasswordSchema });
 export type InvitationAccept = z.infer<typeof InvitationAcceptSchema>;

@@ -15,7 +15,10 @@ import type { RulesetVersion } from './ruleset-schema';
 import type { Finding } from './result-types';
 
 /** Scores per area of the version, in the version's area order. */
-export function areaScores(findings: readonly Finding[], version: RulesetVersion): Record<string, number | null> {
+export function areaScores(
+  findings: readonly Finding[],
+  version: RulesetVersion,
+): Record<string, number | null> {
   const weights = version.scoring.severityWeights;
   const { areas } = version;
   // Indexed by the area's place in the version: a handful of areas, found by a scan (no Map, no iterator).

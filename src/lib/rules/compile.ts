@@ -150,7 +150,11 @@ function compileImpliedZone(zone: ImpliedZone, rules: readonly RulesetRule[]): C
 }
 
 function compileCrossCheck(check: CrossCheck): CompiledCrossCheck {
-  return { check, when: compileLogic(check.when, { constants: { prefix: 'params', values: {} } }), facts: check.facts.map(toPath) };
+  return {
+    check,
+    when: compileLogic(check.when, { constants: { prefix: 'params', values: {} } }),
+    facts: check.facts.map(toPath),
+  };
 }
 
 function compileRule(rule: RulesetRule): CompiledRule {
@@ -158,11 +162,15 @@ function compileRule(rule: RulesetRule): CompiledRule {
   const constants = { prefix: 'params', values: paramValues };
   const findingParams: Record<string, { value: unknown; unit?: string }> = {};
   for (const [name, param] of Object.entries(rule.params)) {
-    findingParams[name] = Object.freeze('unit' in param ? { value: param.value, unit: param.unit } : { value: param.value });
+    findingParams[name] = Object.freeze(
+      'unit' in param ? { value: param.value, unit: param.unit } : { value: param.value },
+    );
   }
   const optional = new Set(rule.optional ?? []);
   const appliesVars = rule.appliesWhen === undefined ? [] : factVars(rule.appliesWhen);
-  const observed = [...new Set([...rule.requires, ...optional, ...factVars(rule.condition), ...appliesVars])].sort();
+  const observed = [
+    ...new Set([...rule.requires, ...optional, ...factVars(rule.condition), ...appliesVars]),
+  ].sort();
   const appliesWhenRequires = appliesVars.filter((v) => !optional.has(v) && !FACT_CATALOGUE[v]?.always);
   return {
     rule,
@@ -210,7 +218,9 @@ export function compileRuleset(version: RulesetVersion, knownSha256?: string): C
       version,
       contentSha256: sha,
       impliedZones:
-        version.impliedZones && version.impliedZones.length > 0 ? version.impliedZones.map((zone) => compileImpliedZone(zone, version.rules)) : null,
+        version.impliedZones && version.impliedZones.length > 0
+          ? version.impliedZones.map((zone) => compileImpliedZone(zone, version.rules))
+          : null,
       crossChecks: (version.crossChecks ?? []).map(compileCrossCheck),
       rules: reportOrder(
         version.rules.filter((rule) => rule.enabled),
@@ -220,7 +230,12 @@ export function compileRuleset(version: RulesetVersion, knownSha256?: string): C
       questionByFact: new Map(version.questions.map((q) => [factKeyOfQuestion(q), q])),
       questionByKey: new Map(version.questions.map((q) => [q.key, q])),
       ruleIds: new Set(version.rules.map((r) => r.id)),
-      hrnKeys: { lo: keysOf(version.hrn.lo), fe: keysOf(version.hrn.fe), dph: keysOf(version.hrn.dph), np: keysOf(version.hrn.np) },
+      hrnKeys: {
+        lo: keysOf(version.hrn.lo),
+        fe: keysOf(version.hrn.fe),
+        dph: keysOf(version.hrn.dph),
+        np: keysOf(version.hrn.np),
+      },
       sectionRank: new Map(version.sections.map((section, i) => [section.key, i])),
     };
     byHash.set(sha, compiled);

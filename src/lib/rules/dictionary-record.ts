@@ -77,7 +77,8 @@ export function dictionaryRecord<K extends z.ZodType<string, string>, V extends 
     const result = ordinary.safeParse(input);
     if (result.success) {
       const out = Object.create(null) as Record<string, z.output<V>>;
-      for (const name of Object.keys(result.data).sort()) out[name] = (result.data as Record<string, z.output<V>>)[name]!;
+      for (const name of Object.keys(result.data).sort())
+        out[name] = (result.data as Record<string, z.output<V>>)[name]!;
       return out;
     }
     for (const issue of result.error.issues) ctx.addIssue(issue as Parameters<typeof ctx.addIssue>[0]);

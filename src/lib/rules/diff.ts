@@ -71,12 +71,22 @@ export function fieldChanges(a: unknown, b: unknown): FieldChange[] {
   return changes;
 }
 
-function diffItems<T>(a: readonly T[], b: readonly T[], idOf: (item: T) => string, titleOf: (item: T) => string): ItemsDiff {
+function diffItems<T>(
+  a: readonly T[],
+  b: readonly T[],
+  idOf: (item: T) => string,
+  titleOf: (item: T) => string,
+): ItemsDiff {
   const left = new Map(a.map((item) => [idOf(item), item]));
   const right = new Map(b.map((item) => [idOf(item), item]));
-  const sortById = <X extends { id: string }>(items: X[]) => items.sort((x, y) => (x.id < y.id ? -1 : x.id > y.id ? 1 : 0));
-  const added = sortById([...right].filter(([id]) => !left.has(id)).map(([id, item]) => ({ id, title: titleOf(item) })));
-  const removed = sortById([...left].filter(([id]) => !right.has(id)).map(([id, item]) => ({ id, title: titleOf(item) })));
+  const sortById = <X extends { id: string }>(items: X[]) =>
+    items.sort((x, y) => (x.id < y.id ? -1 : x.id > y.id ? 1 : 0));
+  const added = sortById(
+    [...right].filter(([id]) => !left.has(id)).map(([id, item]) => ({ id, title: titleOf(item) })),
+  );
+  const removed = sortById(
+    [...left].filter(([id]) => !right.has(id)).map(([id, item]) => ({ id, title: titleOf(item) })),
+  );
   const changed: ItemChange[] = [];
   for (const [id, before] of left) {
     const after = right.get(id);

@@ -17,7 +17,14 @@ import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
 import { truthy } from './json-logic-compile';
 import { explainMissing, isMissing } from './missing-info';
-import type { Contradiction, Finding, MissingItem, NeedsInfoItem, Reinspection, ScoreResult } from './result-types';
+import type {
+  Contradiction,
+  Finding,
+  MissingItem,
+  NeedsInfoItem,
+  Reinspection,
+  ScoreResult,
+} from './result-types';
 import { factKeyOfQuestion } from './ruleset-references';
 import type { RulesetVersion } from './ruleset-schema';
 import { verdictOf } from './verdict';
@@ -61,7 +68,11 @@ export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | Rul
   return scoreWithHash(input, ruleset, () => contentSha256(input));
 }
 
-function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion, inputSha256: () => string): ScoreResult {
+function scoreWithHash(
+  input: AssessmentInput,
+  ruleset: LoadedRuleset | RulesetVersion,
+  inputSha256: () => string,
+): ScoreResult {
   const compiled = resolve(ruleset);
   const issues = checkInputAgainstRuleset(input, compiled);
   if (issues.length > 0) throw new AssessmentInputError(issues);
@@ -71,8 +82,15 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   const rules = compiled.rules;
   const skipped = notApplicableAt(compiled, input);
   const findings = new Array<Finding>(rules.length);
-  for (let i = 0; i < rules.length; i++) findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled, contradictions);
-  const counts = { pass: 0, fail: 0, na: 0, needsInfo: 0, failedBySeverity: { critical: 0, major: 0, minor: 0 } };
+  for (let i = 0; i < rules.length; i++)
+    findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled, contradictions);
+  const counts = {
+    pass: 0,
+    fail: 0,
+    na: 0,
+    needsInfo: 0,
+    failedBySeverity: { critical: 0, major: 0, minor: 0 },
+  };
   for (let i = 0; i < findings.length; i++) {
     const f = findings[i]!;
     if (f.outcome === 'pass') counts.pass += 1;
@@ -97,7 +115,8 @@ function scoreWithHash(input: AssessmentInput, ruleset: LoadedRuleset | RulesetV
   };
   // Versions that declare them (older results keep their shape, and so their hashes).
   if (contradictions !== null) result.contradictions = contradictions;
-  if (version.reinspection) result.reinspection = reinspectionOf(version.reinspection, verdict, input.profile.usageClass);
+  if (version.reinspection)
+    result.reinspection = reinspectionOf(version.reinspection, verdict, input.profile.usageClass);
   return result;
 }
 
@@ -162,7 +181,15 @@ function makeFinding(
     reference: rule.reference,
   };
   if (rule.local) result.local = true;
-  if (outcome === 'fail') result.hrn = rateFinding(input, rule.harm, rule.id, compiled.version.hrn, compiledRule.ratings, rule.severity);
+  if (outcome === 'fail')
+    result.hrn = rateFinding(
+      input,
+      rule.harm,
+      rule.id,
+      compiled.version.hrn,
+      compiledRule.ratings,
+      rule.severity,
+    );
   return result;
 }
 
@@ -172,10 +199,19 @@ function makeFinding(
  */
 const notApplicableFindings = new WeakMap<CompiledRule, Finding>();
 
-function notApplicable(compiledRule: CompiledRule, input: AssessmentInput, compiled: CompiledRuleset): Finding {
+function notApplicable(
+  compiledRule: CompiledRule,
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+): Finding {
   let finding = notApplicableFindings.get(compiledRule);
   if (!finding)
-    notApplicableFindings.set(compiledRule, (finding = Object.freeze(makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled))));
+    notApplicableFindings.set(
+      compiledRule,
+      (finding = Object.freeze(
+        makeFinding(compiledRule, 'n/a', NOTHING_MISSING, NOTHING_OBSERVED, input, compiled),
+      )),
+    );
   return finding;
 }
 
@@ -192,7 +228,11 @@ function notApplicableAt(compiled: CompiledRuleset, input: AssessmentInput): Rea
   const gate = `${kind} ${usageClass}`;
   let skipped = byGate.get(gate);
   if (!skipped) {
-    skipped = compiled.rules.map((rule) => (rule.gateKinds.has(kind) && rule.usageClasses.has(usageClass) ? null : notApplicable(rule, input, compiled)));
+    skipped = compiled.rules.map((rule) =>
+      rule.gateKinds.has(kind) && rule.usageClasses.has(usageClass)
+        ? null
+        : notApplicable(rule, input, compiled),
+    );
     byGate.set(gate, skipped);
   }
   return skipped;
@@ -223,11 +263,20 @@ function evaluateRule(
   if (compiledRule.appliesWhen) {
     let unknown: FactPath[] | null = null;
     const at = compiledRule.appliesWhenRequiresAt;
-    for (let i = 0; i < at.length; i++) if (isMissing(values[at[i]!])) (unknown ??= []).push(compiledRule.appliesWhenRequires[i]!);
+    for (let i = 0; i < at.length; i++)
+      if (isMissing(values[at[i]!])) (unknown ??= []).push(compiledRule.appliesWhenRequires[i]!);
     if (unknown) {
-      return makeFinding(compiledRule, 'needs_info', dedupe(unknown.flatMap((path) => explainMissing(path, facts, compiled))), observed, input, compiled);
+      return makeFinding(
+        compiledRule,
+        'needs_info',
+        dedupe(unknown.flatMap((path) => explainMissing(path, facts, compiled))),
+        observed,
+        input,
+        compiled,
+      );
     }
-    if (!truthy(compiledRule.appliesWhen(facts))) return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
+    if (!truthy(compiledRule.appliesWhen(facts)))
+      return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
   }
   let missing: MissingItem[] | null = null;
   const at = compiledRule.requiresAt;
@@ -236,18 +285,28 @@ function evaluateRule(
     // The auditor judged the question not to apply at this gate: so does the rule.
     if (value === 'na' && compiledRule.requires[i]!.segments[0] === 'answers')
       return makeFinding(compiledRule, 'n/a', NOTHING_MISSING, observed, input, compiled);
-    if (isMissing(value)) (missing ??= []).push(...explainMissing(compiledRule.requires[i]!, facts, compiled));
+    if (isMissing(value))
+      (missing ??= []).push(...explainMissing(compiledRule.requires[i]!, facts, compiled));
   }
   if (missing) {
-    if (contradictions && contradictions.length > 0) missing = missing.map((item) => asContradiction(item, contradictions));
+    if (contradictions && contradictions.length > 0)
+      missing = missing.map((item) => asContradiction(item, contradictions));
     return makeFinding(compiledRule, 'needs_info', dedupe(missing), observed, input, compiled);
   }
-  return makeFinding(compiledRule, truthy(compiledRule.condition(facts)) ? 'pass' : 'fail', NOTHING_MISSING, observed, input, compiled);
+  return makeFinding(
+    compiledRule,
+    truthy(compiledRule.condition(facts)) ? 'pass' : 'fail',
+    NOTHING_MISSING,
+    observed,
+    input,
+    compiled,
+  );
 }
 
 /** A missing item whose fact was given but contradicted: the prompt says what to resolve. */
 function asContradiction(item: MissingItem, contradictions: readonly Contradiction[]): MissingItem {
-  for (const c of contradictions) if (c.facts.includes(item.key)) return { key: item.key, prompt: `Resolve: ${c.message}` };
+  for (const c of contradictions)
+    if (c.facts.includes(item.key)) return { key: item.key, prompt: `Resolve: ${c.message}` };
   return item;
 }
 
@@ -269,7 +328,11 @@ const needRanks = new WeakMap<CompiledRuleset, Map<string, number>>();
 function needRanksOf(compiled: CompiledRuleset): Map<string, number> {
   let ranks = needRanks.get(compiled);
   if (!ranks) {
-    const order = compiled.version.questions.map((q, i) => ({ fact: factKeyOfQuestion(q), section: compiled.sectionRank.get(q.section) ?? 0, i }));
+    const order = compiled.version.questions.map((q, i) => ({
+      fact: factKeyOfQuestion(q),
+      section: compiled.sectionRank.get(q.section) ?? 0,
+      i,
+    }));
     order.sort((a, b) => a.section - b.section || a.i - b.i);
     ranks = new Map(order.map((o, rank) => [o.fact, rank]));
     needRanks.set(compiled, ranks);
@@ -291,7 +354,10 @@ function collectNeedsInfo(findings: readonly Finding[], compiled: CompiledRulese
   }
   if (!byKey) return [];
   const ranks = needRanksOf(compiled);
-  const ranked = [...byKey.values()].map((item) => ({ item, rank: ranks.get(item.key) ?? Number.MAX_SAFE_INTEGER }));
+  const ranked = [...byKey.values()].map((item) => ({
+    item,
+    rank: ranks.get(item.key) ?? Number.MAX_SAFE_INTEGER,
+  }));
   ranked.sort((a, b) => a.rank - b.rank || (a.item.key < b.item.key ? -1 : a.item.key > b.item.key ? 1 : 0));
   return ranked.map(({ item }) => {
     item.ruleIds.sort();

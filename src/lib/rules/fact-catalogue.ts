@@ -33,7 +33,8 @@ const derived = (label: string, from?: readonly string[]): FactSpec => (from ? {
 
 const ENTRAPMENT = 'entrapment zones and the protection devices fitted, per direction of travel';
 const FORCE = 'force tests at the measuring points (trace or meter summary)';
-const GEOMETRY = 'swing operator geometry (A and B offsets, bracket distance, retracted length, stroke, opening angle)';
+const GEOMETRY =
+  'swing operator geometry (A and B offsets, bracket distance, retracted length, stroke, opening angle)';
 const POWER_DROP = [
   `answers.${POWER_INPUT_KEYS.wireGauge}`,
   `answers.${POWER_INPUT_KEYS.conductor}`,
@@ -45,7 +46,9 @@ const POWER_DROP = [
 export const FACT_CATALOGUE: Readonly<Record<string, FactSpec>> = Object.freeze({
   'profile.kind': always('Gate kind'),
   'profile.leaves': always('Single or double leaf'),
-  'profile.openingDirection': derived('Which way the swing gate opens (toward or away from the operator side)'),
+  'profile.openingDirection': derived(
+    'Which way the swing gate opens (toward or away from the operator side)',
+  ),
   'profile.usageClass': always('Usage class'),
   'profile.leafWidthMm': derived('Leaf width'),
   'profile.leafHeightMm': derived('Leaf height'),
@@ -58,13 +61,17 @@ export const FACT_CATALOGUE: Readonly<Record<string, FactSpec>> = Object.freeze(
   'site.publicAccess': always('Public access'),
   'site.slopeAcrossSwing': always('Ground slopes across the swing'),
 
-  'calc.entrapment.rules2016': derived("Operator's date of manufacture, or the UL 325 edition it is listed to"),
+  'calc.entrapment.rules2016': derived(
+    "Operator's date of manufacture, or the UL 325 edition it is listed to",
+  ),
   'calc.entrapment.deviceCount': derived(ENTRAPMENT),
   'calc.entrapment.zonesWithoutExternalSensor': derived(ENTRAPMENT),
   'calc.entrapment.unmonitoredExternal': derived(ENTRAPMENT),
   'calc.entrapment.typeDWithAutoClose': derived(ENTRAPMENT),
   'calc.entrapment.zonesFromMeasurements': derived(ENTRAPMENT),
-  'calc.entrapment.fixedObjectZoneProtected': derived('a monitored edge or photo-eye listed for the open side, opening direction (the fixed-object zone)'),
+  'calc.entrapment.fixedObjectZoneProtected': derived(
+    'a monitored edge or photo-eye listed for the open side, opening direction (the fixed-object zone)',
+  ),
   'calc.entrapment.photoEyes': derived(ENTRAPMENT),
   'calc.entrapment.edges': derived(ENTRAPMENT),
   ...directionFacts('closing'),
@@ -85,13 +92,21 @@ export const FACT_CATALOGUE: Readonly<Record<string, FactSpec>> = Object.freeze(
   'calc.geometry.swingReachable': derived(GEOMETRY),
   'calc.geometry.passesDeadCentre': derived(GEOMETRY),
   'calc.geometry.minLeverArmMm': derived(GEOMETRY),
-  'calc.geometry.operatorLeafClearanceMm': derived(`operator-to-leaf clearance: measured on site, or from the ${GEOMETRY}`, ['m.operatorLeafClearanceMm']),
+  'calc.geometry.operatorLeafClearanceMm': derived(
+    `operator-to-leaf clearance: measured on site, or from the ${GEOMETRY}`,
+    ['m.operatorLeafClearanceMm'],
+  ),
 
   'calc.power.dropPercent': derived('voltage drop on the low-voltage run', POWER_DROP),
   'calc.power.dropV': derived('voltage drop on the low-voltage run', POWER_DROP),
-  'calc.power.chargingSourceCount': derived('charging source', [`answers.${POWER_INPUT_KEYS.chargingSource}`]),
+  'calc.power.chargingSourceCount': derived('charging source', [
+    `answers.${POWER_INPUT_KEYS.chargingSource}`,
+  ]),
 
-  'calc.signage.totalPlacards': derived('warning placards counted on both sides', [`m.${SIGNAGE_INPUT_KEYS.side1}`, `m.${SIGNAGE_INPUT_KEYS.side2}`]),
+  'calc.signage.totalPlacards': derived('warning placards counted on both sides', [
+    `m.${SIGNAGE_INPUT_KEYS.side1}`,
+    `m.${SIGNAGE_INPUT_KEYS.side2}`,
+  ]),
 });
 
 function directionFacts(direction: 'closing' | 'opening'): Record<string, FactSpec> {

@@ -21,7 +21,11 @@ export const FIXED_OBJECT_ZONE = Object.freeze({ zone: 'open_side', direction: '
  * The entrapment facts of one input that recorded its zones and devices. `implied` are the
  * zones the measurements imply; they count as if the auditor had listed them.
  */
-export function entrapmentFacts(input: AssessmentInput, recorded: EntrapmentInput, implied: readonly ZoneAtDirection[] = []): Record<string, unknown> {
+export function entrapmentFacts(
+  input: AssessmentInput,
+  recorded: EntrapmentInput,
+  implied: readonly ZoneAtDirection[] = [],
+): Record<string, unknown> {
   let e = recorded;
   let added = 0;
   if (implied.length > 0) {
@@ -36,7 +40,10 @@ export function entrapmentFacts(input: AssessmentInput, recorded: EntrapmentInpu
   }
   const devices: Record<'opening' | 'closing', FittedDevice[]> = { opening: [], closing: [] };
   for (const d of e.devices) devices[d.direction].push({ type: d.type, monitored: d.monitored });
-  const zones = { opening: e.zones.some((z) => z.direction === 'opening'), closing: e.zones.some((z) => z.direction === 'closing') };
+  const zones = {
+    opening: e.zones.some((z) => z.direction === 'opening'),
+    closing: e.zones.some((z) => z.direction === 'closing'),
+  };
   const judged = assessEntrapmentProtection({
     gateKind: input.profile.kind,
     usageClass: input.profile.usageClass,
@@ -48,15 +55,21 @@ export function entrapmentFacts(input: AssessmentInput, recorded: EntrapmentInpu
   });
   const facts: Record<string, unknown> = {
     deviceCount: e.devices.length,
-    zonesWithoutExternalSensor: e.zones.filter((z) => !e.devices.some((d) => d.zone === z.zone && d.direction === z.direction && isExternalSensor(d.type)))
-      .length,
+    zonesWithoutExternalSensor: e.zones.filter(
+      (z) =>
+        !e.devices.some((d) => d.zone === z.zone && d.direction === z.direction && isExternalSensor(d.type)),
+    ).length,
     unmonitoredExternal: e.devices.filter((d) => isExternalSensor(d.type) && !d.monitored).length,
     typeDWithAutoClose: input.profile.automaticClosing && e.devices.some((d) => d.type === 'D'),
     zonesFromMeasurements: added,
     // UL 325 2016 revision (secondary source): external devices count when monitored every cycle;
     // a monitored edge or photo-eye listed for the open side while opening protects the fixed-object zone.
     fixedObjectZoneProtected: e.devices.some(
-      (d) => d.zone === FIXED_OBJECT_ZONE.zone && d.direction === FIXED_OBJECT_ZONE.direction && isExternalSensor(d.type) && d.monitored,
+      (d) =>
+        d.zone === FIXED_OBJECT_ZONE.zone &&
+        d.direction === FIXED_OBJECT_ZONE.direction &&
+        isExternalSensor(d.type) &&
+        d.monitored,
     ),
     photoEyes: e.devices.filter((d) => d.type === 'B1').length,
     edges: e.devices.filter((d) => d.type === 'B2').length,

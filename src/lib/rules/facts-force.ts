@@ -9,7 +9,12 @@ import type { ForceTest } from './input';
 import type { GateKind } from './vocabulary';
 
 /** Gate kinds EN 12453 holds to 400 N whatever the gap: their tests count with the small-gap ones. */
-const FOUR_HUNDRED_NEWTON_KINDS: ReadonlySet<GateKind> = new Set(['barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot']);
+const FOUR_HUNDRED_NEWTON_KINDS: ReadonlySet<GateKind> = new Set([
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+]);
 
 interface ForceFigures {
   peakN: number;
@@ -37,7 +42,10 @@ function forceFigures(kind: GateKind, test: ForceTest): ForceFigures | Refused {
     };
   }
   if (test.gapMm < EN12453_GAP_ZONE_MM.min) {
-    return { code: 'gap_not_covered', message: `A ${test.gapMm} mm gap is below the ${EN12453_GAP_ZONE_MM.min} mm measuring point` };
+    return {
+      code: 'gap_not_covered',
+      message: `A ${test.gapMm} mm gap is below the ${EN12453_GAP_ZONE_MM.min} mm measuring point`,
+    };
   }
   const s = test.summary as NonNullable<ForceTest['summary']>;
   return {
@@ -60,7 +68,11 @@ const pointOf = (test: ForceTest): string => `${test.location}|${test.direction}
  * tests that remain. `acceptedGapsMm` lists the gaps with an accepted test (EN 12445 points);
  * `largeGapTests` counts every test submitted at a gap over 500 mm, accepted or not.
  */
-export function forceFacts(kind: GateKind, tests: readonly ForceTest[], problems: EvidenceProblem[]): Record<string, unknown> {
+export function forceFacts(
+  kind: GateKind,
+  tests: readonly ForceTest[],
+  problems: EvidenceProblem[],
+): Record<string, unknown> {
   const accepted: ForceFigures[] = [];
   const acceptedPoints = new Set<string>();
   const acceptedGaps = new Set<number>();
@@ -98,7 +110,8 @@ export function forceFacts(kind: GateKind, tests: readonly ForceTest[], problems
     else largeUnknown = true;
   }
   if (accepted.length === 0) return facts;
-  const max = (pick: (f: ForceFigures) => number, from: ForceFigures[] = accepted) => Math.max(...from.map(pick));
+  const max = (pick: (f: ForceFigures) => number, from: ForceFigures[] = accepted) =>
+    Math.max(...from.map(pick));
   if (!smallUnknown && !largeUnknown) {
     facts.worst = {
       peakN: max((f) => f.peakN),

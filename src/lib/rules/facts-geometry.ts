@@ -14,7 +14,10 @@ const GEOMETRY_MEMO_SIZE = 256;
 const geometryMemo = new Map<string, Record<string, unknown> | EvidenceProblem>();
 
 /** The geometry facts of one layout, or null (and a problem) when the layout is impossible. */
-export function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, problems: EvidenceProblem[]): Record<string, unknown> | null {
+export function geometryFacts(
+  g: NonNullable<AssessmentInput['swingGeometry']>,
+  problems: EvidenceProblem[],
+): Record<string, unknown> | null {
   const key = [
     g.aMm,
     g.bMm,
@@ -31,11 +34,17 @@ export function geometryFacts(g: NonNullable<AssessmentInput['swingGeometry']>, 
   if (!found) {
     try {
       const r = summariseSwingOperatorGeometry(g);
-      found = { minClearanceMm: r.minClearanceMm, swingReachable: r.swingReachable, passesDeadCentre: r.passesDeadCentre, minLeverArmMm: r.minLeverArmMm };
+      found = {
+        minClearanceMm: r.minClearanceMm,
+        swingReachable: r.swingReachable,
+        passesDeadCentre: r.passesDeadCentre,
+        minLeverArmMm: r.minLeverArmMm,
+      };
     } catch (error) {
       found = refusal('swingGeometry', error);
     }
-    if (geometryMemo.size >= GEOMETRY_MEMO_SIZE) geometryMemo.delete(geometryMemo.keys().next().value as string);
+    if (geometryMemo.size >= GEOMETRY_MEMO_SIZE)
+      geometryMemo.delete(geometryMemo.keys().next().value as string);
     geometryMemo.set(key, found);
   }
   if ('code' in found && 'path' in found) {

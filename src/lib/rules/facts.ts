@@ -39,7 +39,13 @@ export interface FactsResult {
 }
 
 /** Wire-gauge choice values (`awg10` … `awg18`) the power calculator has resistances for. */
-const AWG_BY_CHOICE: Readonly<Record<string, Awg>> = Object.freeze({ awg10: 10, awg12: 12, awg14: 14, awg16: 16, awg18: 18 });
+const AWG_BY_CHOICE: Readonly<Record<string, Awg>> = Object.freeze({
+  awg10: 10,
+  awg12: 12,
+  awg14: 14,
+  awg16: 16,
+  awg18: 18,
+});
 /** What charges the operator's battery. */
 type ChargerSource = 'transformer' | 'solar';
 
@@ -69,11 +75,18 @@ export function buildFacts(input: AssessmentInput, options: FactOptions = {}): F
   for (const key of Object.keys(choices)) answers[key] = (choices[key] as { value: string }).value;
   const m: Record<string, number> = Object.create(null) as Record<string, number>;
   const measurements = input.measurements ?? {};
-  for (const key of Object.keys(measurements)) m[key] = (measurements[key] as { canonical: number }).canonical;
+  for (const key of Object.keys(measurements))
+    m[key] = (measurements[key] as { canonical: number }).canonical;
 
   const facts: Facts = { profile: profileFacts(input), site: { ...input.site }, answers, m, calc: {} };
-  if (input.entrapment) facts.calc.entrapment = entrapmentFacts(input, input.entrapment, impliedZonesOf(facts, input, options.impliedZones));
-  if (input.forceTests && input.forceTests.length > 0) facts.calc.force = forceFacts(input.profile.kind, input.forceTests, problems);
+  if (input.entrapment)
+    facts.calc.entrapment = entrapmentFacts(
+      input,
+      input.entrapment,
+      impliedZonesOf(facts, input, options.impliedZones),
+    );
+  if (input.forceTests && input.forceTests.length > 0)
+    facts.calc.force = forceFacts(input.profile.kind, input.forceTests, problems);
   if (input.swingGeometry && input.profile.kind === 'swing') {
     const geometry = geometryFacts(input.swingGeometry, problems);
     if (geometry) facts.calc.geometry = geometry;
@@ -88,12 +101,17 @@ export function buildFacts(input: AssessmentInput, options: FactOptions = {}): F
 }
 
 /** The zones the version's implied-zone conditions find in what was entered (answers, measurements, profile, site). */
-function impliedZonesOf(facts: Facts, input: AssessmentInput, zones: readonly CompiledImpliedZone[] | null | undefined): ZoneAtDirection[] {
+function impliedZonesOf(
+  facts: Facts,
+  input: AssessmentInput,
+  zones: readonly CompiledImpliedZone[] | null | undefined,
+): ZoneAtDirection[] {
   if (!zones) return [];
   const found: ZoneAtDirection[] = [];
   for (let i = 0; i < zones.length; i++) {
     const z = zones[i]!;
-    if (z.gateKinds.has(input.profile.kind) && truthy(z.when(facts))) found.push({ zone: z.zone, direction: z.direction });
+    if (z.gateKinds.has(input.profile.kind) && truthy(z.when(facts)))
+      found.push({ zone: z.zone, direction: z.direction });
   }
   return found;
 }
@@ -129,7 +147,11 @@ function profileFacts(input: AssessmentInput): Record<string, unknown> {
   return profile;
 }
 
-function powerFacts(answers: Record<string, string>, m: Record<string, number>, problems: EvidenceProblem[]): Record<string, unknown> | null {
+function powerFacts(
+  answers: Record<string, string>,
+  m: Record<string, number>,
+  problems: EvidenceProblem[],
+): Record<string, unknown> | null {
   const facts: Record<string, unknown> = {};
   const k = POWER_INPUT_KEYS;
   const chargers = CHARGERS_BY_CHOICE[answers[k.chargingSource] ?? ''];
@@ -138,7 +160,13 @@ function powerFacts(answers: Record<string, string>, m: Record<string, number>, 
   const awg = AWG_BY_CHOICE[answers[k.wireGauge] ?? ''];
   const conductor = answers[k.conductor];
   const [run, current, supply] = [m[k.runLength], m[k.current], m[k.supply]];
-  if (awg !== undefined && (conductor === 'solid' || conductor === 'stranded') && run !== undefined && current !== undefined && supply !== undefined) {
+  if (
+    awg !== undefined &&
+    (conductor === 'solid' || conductor === 'stranded') &&
+    run !== undefined &&
+    current !== undefined &&
+    supply !== undefined
+  ) {
     try {
       const drop = voltageDrop({
         awg,

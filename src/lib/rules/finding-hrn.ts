@@ -29,9 +29,15 @@ const priced = new WeakMap<HrnTable, PricedTable>();
 function priceTable(hrn: HrnTable): PricedTable {
   let found = priced.get(hrn);
   if (!found) {
-    const record = (levels: HrnTable['lo']) => Object.fromEntries(levels.map((level) => [level.key, level.value]));
+    const record = (levels: HrnTable['lo']) =>
+      Object.fromEntries(levels.map((level) => [level.key, level.value]));
     found = {
-      table: { lo: record(hrn.lo), fe: record(hrn.fe), dph: record(hrn.dph), np: hrn.np.map((row) => ({ key: row.key, upTo: row.upTo, factor: row.value })) },
+      table: {
+        lo: record(hrn.lo),
+        fe: record(hrn.fe),
+        dph: record(hrn.dph),
+        np: hrn.np.map((row) => ({ key: row.key, upTo: row.upTo, factor: row.value })),
+      },
       bands: hrn.bands.map((band) => ({ band: band.key, upTo: band.upTo })) as unknown as typeof HRN_BANDS,
       rated: new Map(),
     };
@@ -51,7 +57,12 @@ export const SITE_CODES = 32;
  */
 function siteCode(input: AssessmentInput): number {
   const { site } = input;
-  return (input.profile.usageClass - 1) * 8 + (site.childrenOrPetsPresent ? 4 : 0) + (site.pedestriansUseDriveway ? 2 : 0) + (site.publicAccess ? 1 : 0);
+  return (
+    (input.profile.usageClass - 1) * 8 +
+    (site.childrenOrPetsPresent ? 4 : 0) +
+    (site.pedestriansUseDriveway ? 2 : 0) +
+    (site.publicAccess ? 1 : 0)
+  );
 }
 
 /** Rates one failing rule at this gate. */
@@ -97,7 +108,10 @@ function rate(
     severity: harm as DphKey,
   });
   // A version may step the likelihood by the rule's severity, so default ratings follow it.
-  const derived = { ...base, lo: stepLikelihood(hrn, base.lo, hrn.likelihoodStepBySeverity?.[severity] ?? 0) };
+  const derived = {
+    ...base,
+    lo: stepLikelihood(hrn, base.lo, hrn.likelihoodStepBySeverity?.[severity] ?? 0),
+  };
   const keys: DerivedHrnFactors = override
     ? {
         lo: (override.lo as DerivedHrnFactors['lo'] | undefined) ?? derived.lo,

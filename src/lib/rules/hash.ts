@@ -13,7 +13,8 @@ export function canonicalJson(value: unknown): string {
   try {
     return write(value);
   } catch (error) {
-    if (error instanceof TypeError) throw new TypeError(`canonicalJson: ${error.message} at ${pathOfProblem(value, '$') ?? '$'}`);
+    if (error instanceof TypeError)
+      throw new TypeError(`canonicalJson: ${error.message} at ${pathOfProblem(value, '$') ?? '$'}`);
     throw error;
   }
 }

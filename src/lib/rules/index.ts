@@ -4,8 +4,20 @@
  * `score`, hash the result with `resultSha256`, compare versions with `diffRulesets`.
  */
 export { score, scoreParsed, type LoadedRuleset } from './engine';
-export { loadRulesetFile, validateRuleset, RulesetValidationError, type RulesetProblem } from './load-ruleset';
-export { diffRulesets, fieldChanges, type RulesetDiff, type ItemsDiff, type ItemChange, type FieldChange } from './diff';
+export {
+  loadRulesetFile,
+  validateRuleset,
+  RulesetValidationError,
+  type RulesetProblem,
+} from './load-ruleset';
+export {
+  diffRulesets,
+  fieldChanges,
+  type RulesetDiff,
+  type ItemsDiff,
+  type ItemChange,
+  type FieldChange,
+} from './diff';
 export { canonicalJson, contentSha256, resultSha256, sha256Hex } from './hash';
 export { compileRuleset, type CompiledRuleset, type CompiledRule } from './compile';
 export { compileLogic, truthy, COMPILED_OPERATORS, type CompiledLogic } from './json-logic-compile';
@@ -46,6 +58,15 @@ export {
 } from './ruleset-schema';
 export { factKeyOfQuestion, type RulesetIssue } from './ruleset-references';
 export { questionsToAsk } from './questions-to-ask';
-export type { ScoreResult, Finding, FindingHrn, MissingItem, NeedsInfoItem, OutcomeCounts, Contradiction, Reinspection } from './result-types';
+export type {
+  ScoreResult,
+  Finding,
+  FindingHrn,
+  MissingItem,
+  NeedsInfoItem,
+  OutcomeCounts,
+  Contradiction,
+  Reinspection,
+} from './result-types';
 export * from './vocabulary';
 export { CANONICAL_UNIT_OF, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from './measures';

@@ -29,7 +29,10 @@ export class AssessmentInputError extends Error {
 
 /** Zod issues as input issues with dotted paths (`measurements.hingeGapMm.unit`). */
 export function issuesFromZod(error: z.ZodError): InputIssue[] {
-  return error.issues.map((issue) => ({ path: issue.path.map(String).join('.') || '(input)', message: issue.message }));
+  return error.issues.map((issue) => ({
+    path: issue.path.map(String).join('.') || '(input)',
+    message: issue.message,
+  }));
 }
 
 const measured = new Set<string>(MEASURED_ANSWER_TYPES);
@@ -45,13 +48,24 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
     const q = questions.get(key);
     if (!q) continue;
     const m = measurements[key] as { unit: string };
-    if (!measured.has(q.answerType)) issues.push({ path: `measurements.${key}`, message: `"${key}" is answered as ${q.answerType}, not measured` });
+    if (!measured.has(q.answerType))
+      issues.push({
+        path: `measurements.${key}`,
+        message: `"${key}" is answered as ${q.answerType}, not measured`,
+      });
     else if (kindOfUnit(m.unit) !== q.answerType)
-      issues.push({ path: `measurements.${key}.unit`, message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it` });
+      issues.push({
+        path: `measurements.${key}.unit`,
+        message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it`,
+      });
   }
   for (const key of Object.keys(input.answers ?? {})) {
     const q = questions.get(key);
-    if (q && q.answerType !== 'yes_no_na') issues.push({ path: `answers.${key}`, message: `"${key}" is answered as ${q.answerType}, not yes/no/na` });
+    if (q && q.answerType !== 'yes_no_na')
+      issues.push({
+        path: `answers.${key}`,
+        message: `"${key}" is answered as ${q.answerType}, not yes/no/na`,
+      });
   }
   const choices = input.choices ?? {};
   for (const key of Object.keys(choices)) {
@@ -60,21 +74,32 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
     const choice = choices[key] as { value: string };
     if (q.answerType === 'choice') {
       if (!q.options?.some((o) => o.value === choice.value)) {
-        issues.push({ path: `choices.${key}.value`, message: `"${choice.value}" is not one of ${q.options?.map((o) => o.value).join(', ')}` });
+        issues.push({
+          path: `choices.${key}.value`,
+          message: `"${choice.value}" is not one of ${q.options?.map((o) => o.value).join(', ')}`,
+        });
       }
     } else if (q.answerType === 'date') {
-      if (!IsoDate.safeParse(choice.value).success) issues.push({ path: `choices.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
+      if (!IsoDate.safeParse(choice.value).success)
+        issues.push({ path: `choices.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
     } else if (q.answerType !== 'text') {
-      issues.push({ path: `choices.${key}`, message: `"${key}" is answered as ${q.answerType}, not as a choice` });
+      issues.push({
+        path: `choices.${key}`,
+        message: `"${key}" is answered as ${q.answerType}, not as a choice`,
+      });
     }
   }
   const { ruleIds, hrnKeys: factorKeys } = compiled;
   for (const [ruleId, override] of Object.entries(input.hrnOverrides ?? {})) {
-    if (!ruleIds.has(ruleId)) issues.push({ path: `hrnOverrides.${ruleId}`, message: `"${ruleId}" is not a rule of this version` });
+    if (!ruleIds.has(ruleId))
+      issues.push({ path: `hrnOverrides.${ruleId}`, message: `"${ruleId}" is not a rule of this version` });
     for (const factor of ['lo', 'fe', 'dph', 'np'] as const) {
       const value = override[factor];
       if (value !== undefined && !factorKeys[factor].has(value)) {
-        issues.push({ path: `hrnOverrides.${ruleId}.${factor}`, message: `"${value}" is not a ${factor.toUpperCase()} level of this version's HRN table` });
+        issues.push({
+          path: `hrnOverrides.${ruleId}.${factor}`,
+          message: `"${value}" is not a ${factor.toUpperCase()} level of this version's HRN table`,
+        });
       }
     }
   }

@@ -38,17 +38,30 @@ interface Problem {
  * the check returns its problems (usually none, allocating nothing) and they become zod custom
  * issues, with the same paths and messages.
  */
-function withCheck<T extends z.ZodType>(schema: T, findProblems: (value: z.output<T>) => Problem[] | undefined): T {
+function withCheck<T extends z.ZodType>(
+  schema: T,
+  findProblems: (value: z.output<T>) => Problem[] | undefined,
+): T {
   const check: z.core.$ZodCheck<z.output<T>> = z.check<z.output<T>>((payload) => {
     const problems = findProblems(payload.value);
     if (problems)
-      for (const { path, message } of problems) payload.issues.push({ code: 'custom', input: payload.value, inst: check, continue: true, path, message });
+      for (const { path, message } of problems)
+        payload.issues.push({
+          code: 'custom',
+          input: payload.value,
+          inst: check,
+          continue: true,
+          path,
+          message,
+        });
   });
   return schema.check(check) as T;
 }
 
 const note = z.string().trim().max(2000, 'a note may be at most 2000 characters');
-const key = z.string().regex(KEY_PATTERN, 'keys are camelCase letters and digits, starting with a lower-case letter');
+const key = z
+  .string()
+  .regex(KEY_PATTERN, 'keys are camelCase letters and digits, starting with a lower-case letter');
 const finite = z.number({ message: 'must be a number' }).finite('must be a finite number');
 const nonNegativeMm = finite.nonnegative('must not be negative');
 
@@ -58,13 +71,23 @@ const nonNegativeMm = finite.nonnegative('must not be negative');
  * one, so a form's conversion slip is caught here, not in a report.
  */
 export const MeasuredValueSchema = withCheck(
-  canonicalObject({ value: finite, unit: z.string().min(1).max(8), canonical: finite, note: note.optional() }),
+  canonicalObject({
+    value: finite,
+    unit: z.string().min(1).max(8),
+    canonical: finite,
+    note: note.optional(),
+  }),
   (m) => {
     const kind = kindOfUnit(m.unit);
     if (!kind) return [{ path: ['unit'], message: `unknown unit "${m.unit}"` }];
     const expected = exactCanonicalValue(kind, m.value, m.unit);
     if (Math.abs(expected - m.canonical) > CANONICAL_TOLERANCE * Math.max(1, Math.abs(expected))) {
-      return [{ path: ['canonical'], message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}` }];
+      return [
+        {
+          path: ['canonical'],
+          message: `${m.value} ${m.unit} is ${Math.round(expected * 1e6) / 1e6} in canonical units, not ${m.canonical}`,
+        },
+      ];
     }
     return undefined;
   },
@@ -76,7 +99,9 @@ export const UsageClassSchema = z.union([z.literal(1), z.literal(2), z.literal(3
 });
 
 /** The profile's dimensions and the kind of unit each must be entered in. */
-const PROFILE_DIMENSIONS: ReadonlyArray<readonly ['leafWidth' | 'leafHeight' | 'leafWeight', 'length' | 'mass']> = [
+const PROFILE_DIMENSIONS: ReadonlyArray<
+  readonly ['leafWidth' | 'leafHeight' | 'leafWeight', 'length' | 'mass']
+> = [
   ['leafWidth', 'length'],
   ['leafHeight', 'length'],
   ['leafWeight', 'mass'],
@@ -100,12 +125,18 @@ export const GateProfileSchema = withCheck(
   }),
   (p) => {
     let problems: Problem[] | undefined;
-    if (p.kind === 'swing' && !p.openingDirection) (problems ??= []).push({ path: ['openingDirection'], message: 'a swing gate needs its opening direction' });
+    if (p.kind === 'swing' && !p.openingDirection)
+      (problems ??= []).push({
+        path: ['openingDirection'],
+        message: 'a swing gate needs its opening direction',
+      });
     for (const [field, kind] of PROFILE_DIMENSIONS) {
       const m = p[field];
       if (!m) continue;
-      if (kindOfUnit(m.unit) !== kind) (problems ??= []).push({ path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
-      if (m.canonical <= 0) (problems ??= []).push({ path: [field, 'value'], message: `${field} must be greater than zero` });
+      if (kindOfUnit(m.unit) !== kind)
+        (problems ??= []).push({ path: [field, 'unit'], message: `${field} must be entered as a ${kind}` });
+      if (m.canonical <= 0)
+        (problems ??= []).push({ path: [field, 'value'], message: `${field} must be greater than zero` });
     }
     return problems;
   },
@@ -121,16 +152,37 @@ export const SiteContextSchema = canonicalObject({
 });
 export type SiteContext = z.infer<typeof SiteContextSchema>;
 
-export const AnswerSchema = canonicalObject({ value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }), note: note.optional() });
+export const AnswerSchema = canonicalObject({
+  value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }),
+  note: note.optional(),
+});
 /** A choice, date or short text answer (choice values are checked against the ruleset's options when scoring). */
-export const ChoiceSchema = canonicalObject({ value: z.string().trim().min(1).max(200), note: note.optional() });
+export const ChoiceSchema = canonicalObject({
+  value: z.string().trim().min(1).max(200),
+  note: note.optional(),
+});
 
 /** Places along a gate where someone can be caught (UL 325 entrapment zones, as the auditor finds them). */
-export const ENTRAPMENT_ZONES = ['closing_edge', 'hinge_side', 'open_side', 'post_gap', 'gate_bottom', 'other'] as const;
+export const ENTRAPMENT_ZONES = [
+  'closing_edge',
+  'hinge_side',
+  'open_side',
+  'post_gap',
+  'gate_bottom',
+  'other',
+] as const;
 
 /** Entrapment zones found on the walk and the protection devices fitted, per zone and direction. */
 export const EntrapmentInputSchema = canonicalObject({
-  zones: z.array(canonicalObject({ zone: z.enum(ENTRAPMENT_ZONES), direction: z.enum(TRAVEL_DIRECTIONS), note: note.optional() })).max(20),
+  zones: z
+    .array(
+      canonicalObject({
+        zone: z.enum(ENTRAPMENT_ZONES),
+        direction: z.enum(TRAVEL_DIRECTIONS),
+        note: note.optional(),
+      }),
+    )
+    .max(20),
   devices: z
     .array(
       canonicalObject({
@@ -172,7 +224,10 @@ export const ForceTestSchema = withCheck(
     summary: ForceSummarySchema.optional(),
     note: note.optional(),
   }),
-  (t) => (!t.samples === !t.summary ? [{ path: ['samples'], message: 'give either the samples or the summary of the trace, not both' }] : undefined),
+  (t) =>
+    !t.samples === !t.summary
+      ? [{ path: ['samples'], message: 'give either the samples or the summary of the trace, not both' }]
+      : undefined,
 );
 export type ForceTest = z.infer<typeof ForceTestSchema>;
 
@@ -194,7 +249,10 @@ export const SwingGeometryInputSchema = withCheck(
     operatorHalfWidthMm: nonNegativeMm.optional(),
     operatorBodyLengthMm: finite.positive().optional(),
   }),
-  (g) => (g.aMm === 0 && g.bMm === 0 ? [{ path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' }] : undefined),
+  (g) =>
+    g.aMm === 0 && g.bMm === 0
+      ? [{ path: ['bMm'], message: 'the rear pivot cannot sit on the hinge axis' }]
+      : undefined,
 );
 export type SwingGeometryInput = z.infer<typeof SwingGeometryInputSchema>;
 
@@ -227,7 +285,10 @@ export const AssessmentInputSchema = withCheck(
     let problems: Problem[] | undefined;
     for (const k of Object.keys(input.choices)) {
       if (Object.prototype.hasOwnProperty.call(input.answers, k)) {
-        (problems ??= []).push({ path: ['choices', k], message: `"${k}" is answered both as yes/no and as a choice` });
+        (problems ??= []).push({
+          path: ['choices', k],
+          message: `"${k}" is answered both as yes/no and as a choice`,
+        });
       }
     }
     return problems;

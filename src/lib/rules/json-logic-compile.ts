@@ -129,7 +129,8 @@ export function readVar(data: unknown, path: unknown, fallback: unknown): unknow
 function compileVar(values: unknown[], constants: Constants): CompiledLogic {
   const [pathNode, fallbackNode] = values;
   const literalPath = typeof pathNode === 'string' || typeof pathNode === 'number';
-  const literalFallback = fallbackNode === undefined || (!Array.isArray(fallbackNode) && !isLogic(fallbackNode));
+  const literalFallback =
+    fallbackNode === undefined || (!Array.isArray(fallbackNode) && !isLogic(fallbackNode));
   if (literalPath && literalFallback && values.length <= 2) {
     const path = String(pathNode);
     if (constants && path.startsWith(`${constants.prefix}.`)) {
@@ -233,8 +234,14 @@ const OPERATIONS: Record<string, Operation> = {
   '!==': (_d, [a, b]) => a !== b,
   '>': (_d, [a, b]) => (a as number) > (b as number),
   '>=': (_d, [a, b]) => (a as number) >= (b as number),
-  '<': (_d, [a, b, c]) => (c === undefined ? (a as number) < (b as number) : (a as number) < (b as number) && (b as number) < (c as number)),
-  '<=': (_d, [a, b, c]) => (c === undefined ? (a as number) <= (b as number) : (a as number) <= (b as number) && (b as number) <= (c as number)),
+  '<': (_d, [a, b, c]) =>
+    c === undefined
+      ? (a as number) < (b as number)
+      : (a as number) < (b as number) && (b as number) < (c as number),
+  '<=': (_d, [a, b, c]) =>
+    c === undefined
+      ? (a as number) <= (b as number)
+      : (a as number) <= (b as number) && (b as number) <= (c as number),
   '!!': (_d, [a]) => truthy(a),
   '!': (_d, [a]) => !truthy(a),
   '%': (_d, [a, b]) => (a as number) % (b as number),

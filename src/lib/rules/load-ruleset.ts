@@ -25,23 +25,35 @@ export class RulesetValidationError extends Error {
 
 function formatPath(path: ReadonlyArray<PropertyKey>): string {
   let out = '';
-  for (const part of path) out += typeof part === 'number' ? `[${part}]` : out ? `.${String(part)}` : String(part);
+  for (const part of path)
+    out += typeof part === 'number' ? `[${part}]` : out ? `.${String(part)}` : String(part);
   return out || '(document)';
 }
 
 /** Validates without throwing: what the amendment editor shows beside each field. */
-export function validateRuleset(json: unknown): { ok: true; ruleset: LoadedRuleset } | { ok: false; problems: RulesetProblem[] } {
+export function validateRuleset(
+  json: unknown,
+): { ok: true; ruleset: LoadedRuleset } | { ok: false; problems: RulesetProblem[] } {
   let document = json;
   if (typeof json === 'string') {
     try {
       document = JSON.parse(json);
     } catch (error) {
-      return { ok: false, problems: [{ path: '(document)', message: `not JSON: ${(error as Error).message}` }] };
+      return {
+        ok: false,
+        problems: [{ path: '(document)', message: `not JSON: ${(error as Error).message}` }],
+      };
     }
   }
   const parsed = RulesetVersionSchema.safeParse(document);
   if (!parsed.success) {
-    return { ok: false, problems: parsed.error.issues.map((issue) => ({ path: formatPath(issue.path), message: issue.message })) };
+    return {
+      ok: false,
+      problems: parsed.error.issues.map((issue) => ({
+        path: formatPath(issue.path),
+        message: issue.message,
+      })),
+    };
   }
   const version: RulesetVersion = parsed.data;
   return { ok: true, ruleset: { version, contentSha256: contentSha256(version) } };

@@ -3,9 +3,28 @@
  * convert through `src/lib/units.ts`; the other kinds have one unit on site, so the entered and
  * canonical values are the same number.
  */
-import { isUnitOf, measure, toKilograms, toMetresPerSecond, toMillimetres, toNewtons, type MeasureKind, type UnitOfKind } from '@/lib/units';
+import {
+  isUnitOf,
+  measure,
+  toKilograms,
+  toMetresPerSecond,
+  toMillimetres,
+  toNewtons,
+  type MeasureKind,
+  type UnitOfKind,
+} from '@/lib/units';
 
-export const MEASURED_ANSWER_TYPES = ['length', 'force', 'mass', 'speed', 'time', 'voltage', 'current', 'angle', 'count'] as const;
+export const MEASURED_ANSWER_TYPES = [
+  'length',
+  'force',
+  'mass',
+  'speed',
+  'time',
+  'voltage',
+  'current',
+  'angle',
+  'count',
+] as const;
 export type MeasuredAnswerType = (typeof MEASURED_ANSWER_TYPES)[number];
 
 /** Unit the engine reads each kind in (what `m.<key>` holds). */
@@ -25,7 +44,8 @@ const CONVERTED: ReadonlySet<string> = new Set<MeasureKind>(['length', 'force', 
 
 function lookUpKind(unit: string): MeasuredAnswerType | undefined {
   for (const kind of MEASURED_ANSWER_TYPES) {
-    if (CONVERTED.has(kind) ? isUnitOf(kind as MeasureKind, unit) : CANONICAL_UNIT_OF[kind] === unit) return kind;
+    if (CONVERTED.has(kind) ? isUnitOf(kind as MeasureKind, unit) : CANONICAL_UNIT_OF[kind] === unit)
+      return kind;
   }
   return undefined;
 }
@@ -44,7 +64,8 @@ export function kindOfUnit(unit: string): MeasuredAnswerType | undefined {
 
 /** The canonical value of an entered value, as `measure()` in units.ts rounds it. */
 export function canonicalValue(kind: MeasuredAnswerType, value: number, unit: string): number {
-  if (CONVERTED.has(kind)) return measure(kind as MeasureKind, value, unit as UnitOfKind[MeasureKind]).canonical;
+  if (CONVERTED.has(kind))
+    return measure(kind as MeasureKind, value, unit as UnitOfKind[MeasureKind]).canonical;
   return value;
 }
 

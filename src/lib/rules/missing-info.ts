@@ -34,7 +34,11 @@ function explanationOf(key: string, compiled: CompiledRuleset): Explanation {
     const sources: Array<{ path: FactPath; item: MissingItem }> = [];
     for (const source of spec?.from ?? []) {
       const q = compiled.questionByFact.get(source);
-      if (q) sources.push({ path: { key: source, segments: source.split('.') }, item: Object.freeze({ key: source, prompt: q.prompt }) });
+      if (q)
+        sources.push({
+          path: { key: source, segments: source.split('.') },
+          item: Object.freeze({ key: source, prompt: q.prompt }),
+        });
     }
     found = {
       direct: question ? Object.freeze({ key, prompt: question.prompt }) : null,
@@ -50,7 +54,9 @@ function explanationOf(key: string, compiled: CompiledRuleset): Explanation {
 export function explainMissing(path: FactPath, facts: unknown, compiled: CompiledRuleset): MissingItem[] {
   const explanation = explanationOf(path.key, compiled);
   if (explanation.direct) return [explanation.direct];
-  const asked = explanation.sources.filter((source) => isMissing(readFact(facts, source.path))).map((source) => source.item);
+  const asked = explanation.sources
+    .filter((source) => isMissing(readFact(facts, source.path)))
+    .map((source) => source.item);
   return asked.length > 0 ? asked : [explanation.fallback];
 }
 

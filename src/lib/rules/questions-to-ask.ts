@@ -26,6 +26,8 @@ export function questionsToAsk(input: AssessmentInput, version: RulesetVersion):
   });
   const order = new Map(version.questions.map((q, i) => [q.key, i]));
   return asked.sort(
-    (a, b) => (compiled.sectionRank.get(a.section) ?? 0) - (compiled.sectionRank.get(b.section) ?? 0) || (order.get(a.key) ?? 0) - (order.get(b.key) ?? 0),
+    (a, b) =>
+      (compiled.sectionRank.get(a.section) ?? 0) - (compiled.sectionRank.get(b.section) ?? 0) ||
+      (order.get(a.key) ?? 0) - (order.get(b.key) ?? 0),
   );
 }

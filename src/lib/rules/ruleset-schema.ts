@@ -9,7 +9,15 @@
  * so the hash of the file and of the parsed document are the same.
  */
 import { z } from 'zod';
-import { GATE_KINDS, HAZARD_AREAS, KEY_PATTERN, SEVERITIES, TRAVEL_DIRECTIONS, USAGE_CLASSES, WALK_SECTIONS } from './vocabulary';
+import {
+  GATE_KINDS,
+  HAZARD_AREAS,
+  KEY_PATTERN,
+  SEVERITIES,
+  TRAVEL_DIRECTIONS,
+  USAGE_CLASSES,
+  WALK_SECTIONS,
+} from './vocabulary';
 import { MEASURED_ANSWER_TYPES } from './measures';
 import { checkRulesetReferences } from './ruleset-references';
 import { ENTRAPMENT_ZONES } from './input';
@@ -17,8 +25,11 @@ import { ENTRAPMENT_ZONES } from './input';
 /** Marks the file format, so a later format can be told apart and migrated. */
 export const RULESET_FORMAT = 'latchwell.ruleset/1';
 
-const text = (max: number) => z.string().trim().min(1, 'must not be empty').max(max, `must be at most ${max} characters`);
-const key = z.string().regex(KEY_PATTERN, 'must be camelCase letters and digits, starting with a lower-case letter');
+const text = (max: number) =>
+  z.string().trim().min(1, 'must not be empty').max(max, `must be at most ${max} characters`);
+const key = z
+  .string()
+  .regex(KEY_PATTERN, 'must be camelCase letters and digits, starting with a lower-case letter');
 const isoDate = z.iso.date({ message: 'must be a date written YYYY-MM-DD' });
 
 /** A JSON Logic expression; operators and fact references are checked by the cross-reference pass. */
@@ -30,7 +41,9 @@ export const FamilySlugSchema = z
   .max(64);
 
 /** `2026.1`, or an amendment such as `2026.1-local.2`. */
-export const VersionLabelSchema = z.string().regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must look like "2026.1" or "2026.1-local.2"');
+export const VersionLabelSchema = z
+  .string()
+  .regex(/^\d{4}\.\d+(?:-[a-z0-9]+(?:\.\d+)?)?$/, 'must look like "2026.1" or "2026.1-local.2"');
 
 export const SourceSchema = z.strictObject({
   id: key,
@@ -42,12 +55,19 @@ export const SourceSchema = z.strictObject({
 
 export const SectionSchema = z.strictObject({ key: z.enum(WALK_SECTIONS), title: text(120) });
 
-export const AreaSchema = z.strictObject({ key: z.enum(HAZARD_AREAS), title: text(120), description: text(500) });
+export const AreaSchema = z.strictObject({
+  key: z.enum(HAZARD_AREAS),
+  title: text(120),
+  description: text(500),
+});
 
 export const ANSWER_TYPES = ['yes_no_na', ...MEASURED_ANSWER_TYPES, 'choice', 'date', 'text'] as const;
 export type AnswerType = (typeof ANSWER_TYPES)[number];
 
-export const ChoiceOptionSchema = z.strictObject({ value: z.string().regex(/^[a-z][a-z0-9_]*$/), label: text(120) });
+export const ChoiceOptionSchema = z.strictObject({
+  value: z.string().regex(/^[a-z][a-z0-9_]*$/),
+  label: text(120),
+});
 
 /**
  * One thing the walk-through asks. `answerType` names the unit kind for measured answers
@@ -73,8 +93,10 @@ export const QuestionSchema = z
     entryUnits: z.array(z.string().min(1).max(8)).min(1).max(4).optional(),
   })
   .superRefine((q, ctx) => {
-    if (q.answerType === 'choice' && !q.options) ctx.addIssue({ code: 'custom', path: ['options'], message: 'a choice question needs its options' });
-    if (q.answerType !== 'choice' && q.options) ctx.addIssue({ code: 'custom', path: ['options'], message: 'only choice questions have options' });
+    if (q.answerType === 'choice' && !q.options)
+      ctx.addIssue({ code: 'custom', path: ['options'], message: 'a choice question needs its options' });
+    if (q.answerType !== 'choice' && q.options)
+      ctx.addIssue({ code: 'custom', path: ['options'], message: 'only choice questions have options' });
   });
 
 export const PARAM_UNITS = ['mm', 'N', 'kg', 'm/s', 's', 'V', 'A', '%', 'deg', 'Hz', 'count'] as const;
@@ -82,7 +104,10 @@ export const PARAM_UNITS = ['mm', 'N', 'kg', 'm/s', 's', 'V', 'A', '%', 'deg', '
 /** A threshold. Numbers carry their unit; lists and words (allowed choices) need none. */
 export const ParamSchema = z.union([
   z.strictObject({ value: z.number(), unit: z.enum(PARAM_UNITS), note: text(300).optional() }),
-  z.strictObject({ value: z.union([z.string(), z.boolean(), z.array(z.union([z.string(), z.number()]))]), note: text(300).optional() }),
+  z.strictObject({
+    value: z.union([z.string(), z.boolean(), z.array(z.union([z.string(), z.number()]))]),
+    note: text(300).optional(),
+  }),
 ]);
 
 export const ReferenceSchema = z.strictObject({
@@ -99,7 +124,18 @@ export const RuleSchema = z.strictObject({
   severity: z.enum(SEVERITIES),
   appliesTo: z.strictObject({
     gateKinds: z.array(z.enum(GATE_KINDS)).min(1),
-    usageClasses: z.array(z.union(USAGE_CLASSES.map((c) => z.literal(c)) as [z.ZodLiteral<1>, z.ZodLiteral<2>, z.ZodLiteral<3>, z.ZodLiteral<4>])).min(1),
+    usageClasses: z
+      .array(
+        z.union(
+          USAGE_CLASSES.map((c) => z.literal(c)) as [
+            z.ZodLiteral<1>,
+            z.ZodLiteral<2>,
+            z.ZodLiteral<3>,
+            z.ZodLiteral<4>,
+          ],
+        ),
+      )
+      .min(1),
   }),
   appliesWhen: JsonLogicSchema.optional(),
   /** True when the gate passes. */
@@ -118,7 +154,11 @@ export const RuleSchema = z.strictObject({
   local: z.literal(true).optional(),
 });
 
-const HrnLevelSchema = z.strictObject({ key: z.string().regex(/^[a-z0-9_]+$/), label: text(80), value: z.number().nonnegative() });
+const HrnLevelSchema = z.strictObject({
+  key: z.string().regex(/^[a-z0-9_]+$/),
+  label: text(80),
+  value: z.number().nonnegative(),
+});
 
 /**
  * HRN = LO × FE × DPH × NP, as data with its source, since published tables differ. Levels are
@@ -131,10 +171,23 @@ export const HrnTableSchema = z.strictObject({
   dph: z.array(HrnLevelSchema).min(2),
   np: z
     .array(
-      z.strictObject({ key: z.string().regex(/^[a-z0-9_]+$/), label: text(80), upTo: z.number().int().positive().nullable(), value: z.number().positive() }),
+      z.strictObject({
+        key: z.string().regex(/^[a-z0-9_]+$/),
+        label: text(80),
+        upTo: z.number().int().positive().nullable(),
+        value: z.number().positive(),
+      }),
     )
     .min(1),
-  bands: z.array(z.strictObject({ key: z.string().regex(/^[a-z_]+$/), label: text(80), upTo: z.number().positive().nullable() })).min(2),
+  bands: z
+    .array(
+      z.strictObject({
+        key: z.string().regex(/^[a-z_]+$/),
+        label: text(80),
+        upTo: z.number().positive().nullable(),
+      }),
+    )
+    .min(2),
   /**
    * Which band a value exactly on an edge falls in: `upper_inclusive` (a band holds its `upTo`:
    * 50 is "significant") or `lower_inclusive` (a band starts at the previous `upTo`: 50 is
@@ -146,13 +199,21 @@ export const HrnTableSchema = z.strictObject({
    * of a critical finding is never below a major one with the same harm at the same gate.
    */
   likelihoodStepBySeverity: z
-    .strictObject({ critical: z.number().int().min(-3).max(3), major: z.number().int().min(-3).max(3), minor: z.number().int().min(-3).max(3) })
+    .strictObject({
+      critical: z.number().int().min(-3).max(3),
+      major: z.number().int().min(-3).max(3),
+      minor: z.number().int().min(-3).max(3),
+    })
     .optional(),
 });
 
 export const ScoringSchema = z.strictObject({
   /** Weight of a rule in its area score by severity. */
-  severityWeights: z.strictObject({ critical: z.number().positive(), major: z.number().positive(), minor: z.number().positive() }),
+  severityWeights: z.strictObject({
+    critical: z.number().positive(),
+    major: z.number().positive(),
+    minor: z.number().positive(),
+  }),
   /** Highest score an area may show while it holds a failing critical rule (0–100). */
   criticalFailureAreaCap: z.number().min(0).max(100).optional(),
 });
@@ -211,7 +272,13 @@ const RulesetShapeSchema = z.strictObject({
   family: FamilySlugSchema,
   familyTitle: text(160),
   version: VersionLabelSchema,
-  derivedFrom: z.strictObject({ family: FamilySlugSchema, version: VersionLabelSchema, contentSha256: z.string().regex(/^[0-9a-f]{64}$/) }).optional(),
+  derivedFrom: z
+    .strictObject({
+      family: FamilySlugSchema,
+      version: VersionLabelSchema,
+      contentSha256: z.string().regex(/^[0-9a-f]{64}$/),
+    })
+    .optional(),
   jurisdiction: text(120),
   region: text(120),
   effectiveFrom: isoDate,
@@ -230,7 +297,8 @@ const RulesetShapeSchema = z.strictObject({
 
 /** A ruleset version, with every cross-reference checked (see ruleset-references.ts). */
 export const RulesetVersionSchema = RulesetShapeSchema.superRefine((ruleset, ctx) => {
-  for (const issue of checkRulesetReferences(ruleset)) ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message });
+  for (const issue of checkRulesetReferences(ruleset))
+    ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message });
 });
 
 export type RulesetVersion = z.infer<typeof RulesetShapeSchema>;

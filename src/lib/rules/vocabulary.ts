@@ -6,11 +6,22 @@
 import type { GateKind as CalculatorGateKind } from './calculators/gate-kind';
 
 /** How the gate moves. */
-export const GATE_KINDS = ['swing', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot'] as const;
+export const GATE_KINDS = [
+  'swing',
+  'slide',
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+] as const;
 export type GateKind = (typeof GATE_KINDS)[number];
 
 // The calculators and the engine must name the same gates.
-const sameGateKinds: [GateKind] extends [CalculatorGateKind] ? ([CalculatorGateKind] extends [GateKind] ? true : never) : never = true;
+const sameGateKinds: [GateKind] extends [CalculatorGateKind]
+  ? [CalculatorGateKind] extends [GateKind]
+    ? true
+    : never
+  : never = true;
 void sameGateKinds;
 
 /** UL 325 usage class (I residential … IV supervised restricted access), also used to size HRN exposure in Europe. */
@@ -22,7 +33,17 @@ export type UsageClass = (typeof USAGE_CLASSES)[number];
  * an installer's good practice rather than a standard's requirement, and keeping them apart stops
  * them diluting (or propping up) the standards-based areas.
  */
-export const HAZARD_AREAS = ['pinch', 'gaps', 'signage', 'force', 'sensing', 'controls', 'build', 'power', 'handover'] as const;
+export const HAZARD_AREAS = [
+  'pinch',
+  'gaps',
+  'signage',
+  'force',
+  'sensing',
+  'controls',
+  'build',
+  'power',
+  'handover',
+] as const;
 export type HazardArea = (typeof HAZARD_AREAS)[number];
 
 /** Walk-through sections, in the order an auditor meets them walking up to and around a gate. */

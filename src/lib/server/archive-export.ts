@@ -66,9 +66,12 @@ export async function* signedReportsFor(
   for (;;) {
     const query = filtered
       .clone()
-      .join('documents as d', (j: Knex.JoinClause) => j.on('d.assessment_id', 'a.id').andOnVal('d.kind', 'signed_report'))
+      .join('documents as d', (j: Knex.JoinClause) =>
+        j.on('d.assessment_id', 'a.id').andOnVal('d.kind', 'signed_report'),
+      )
       .andWhere('d.created_at', '<=', cutoff);
-    if (after) query.andWhereRaw(`(${archiveDateSql}, a.id) < (?::timestamptz, ?::uuid)`, [after.key, after.id]);
+    if (after)
+      query.andWhereRaw(`(${archiveDateSql}, a.id) < (?::timestamptz, ?::uuid)`, [after.key, after.id]);
     const rows = (await query
       .select(
         'a.id as assessment_id',
@@ -99,8 +102,16 @@ export async function* signedReportsFor(
 }
 
 /** A file name a person can read in the ZIP, safe on every operating system. */
-export function pdfNameOf(row: Pick<ExportRow, 'archive_date' | 'client_name' | 'gate_label' | 'document_id'>, timeZone: string): string {
-  const day = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(row.archive_date);
+export function pdfNameOf(
+  row: Pick<ExportRow, 'archive_date' | 'client_name' | 'gate_label' | 'document_id'>,
+  timeZone: string,
+): string {
+  const day = new Intl.DateTimeFormat('en-CA', {
+    timeZone,
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+  }).format(row.archive_date);
   const words = `${day} ${row.client_name} - ${row.gate_label}`
     .replace(/[\u0000-\u001f\u007f/\\:*?"<>|]+/g, '-')
     .replace(/\s+/g, ' ')
@@ -136,7 +147,11 @@ const indexHeader = [
 /** What hashing a file on its way into the ZIP found, for the files that did not check out. */
 type FileProblem = { check: 'mismatch'; actual: string } | { check: 'missing' };
 
-async function* indexCsv(rows: AsyncGenerator<ExportRow>, timeZone: string, problems: Map<string, FileProblem>): AsyncGenerator<string> {
+async function* indexCsv(
+  rows: AsyncGenerator<ExportRow>,
+  timeZone: string,
+  problems: Map<string, FileProblem>,
+): AsyncGenerator<string> {
   yield csvRow(indexHeader);
   for await (const row of rows) {
     const problem = problems.get(row.document_id);
@@ -189,8 +204,16 @@ function entryDone(archive: ZipArchive): Promise<'entry' | 'closed'> {
   });
 }
 
-async function recordMismatch(knex: Knex, organisationId: string, row: ExportRow, actual: string, actor: ExportOptions['actor']): Promise<void> {
-  console.error(`[export] signed report ${row.document_id}: stored file gives SHA-256 ${actual}, recorded ${row.sha256}`);
+async function recordMismatch(
+  knex: Knex,
+  organisationId: string,
+  row: ExportRow,
+  actual: string,
+  actor: ExportOptions['actor'],
+): Promise<void> {
+  console.error(
+    `[export] signed report ${row.document_id}: stored file gives SHA-256 ${actual}, recorded ${row.sha256}`,
+  );
   await knex.transaction((trx) =>
     recordAudit(trx, {
       organisationId,
@@ -234,7 +257,12 @@ export async function exportSignedReports(
   const problems = new Map<string, FileProblem>();
   const fill = async () => {
     if (options.auditHead) {
-      const head = { eventId: options.auditHead.eventId, hash: options.auditHead.hash, anchor: anchorText(options.auditHead), exportedAt: now };
+      const head = {
+        eventId: options.auditHead.eventId,
+        hash: options.auditHead.hash,
+        anchor: anchorText(options.auditHead),
+        exportedAt: now,
+      };
       archive.append(`${JSON.stringify(head, null, 2)}\n`, { name: 'audit-trail-head.json' });
       if ((await entryDone(archive)) === 'closed') return;
     }
@@ -244,7 +272,10 @@ export async function exportSignedReports(
       const file = await storage().stream(row.sha256);
       if (!file) {
         problems.set(row.document_id, { check: 'missing' });
-        archive.append(`The signed report ${row.document_id} (SHA-256 ${row.sha256}) is missing from file storage.\n`, { name: `${name}.MISSING.txt` });
+        archive.append(
+          `The signed report ${row.document_id} (SHA-256 ${row.sha256}) is missing from file storage.\n`,
+          { name: `${name}.MISSING.txt` },
+        );
         if ((await entryDone(archive)) === 'closed') return;
         continue;
       }
@@ -267,7 +298,12 @@ export async function exportSignedReports(
       }
     }
     // The index goes last: only now is every file's check known.
-    archive.append(Readable.from(indexCsv(signedReportsFor(organisationId, timeZone, filter, now, knex), timeZone, problems)), { name: 'index.csv' });
+    archive.append(
+      Readable.from(
+        indexCsv(signedReportsFor(organisationId, timeZone, filter, now, knex), timeZone, problems),
+      ),
+      { name: 'index.csv' },
+    );
     if ((await entryDone(archive)) === 'closed') return;
     await archive.finalize();
   };
@@ -277,5 +313,8 @@ export async function exportSignedReports(
   });
 
   const day = new Date().toISOString().slice(0, 10);
-  return { stream: Readable.toWeb(archive) as ReadableStream<Uint8Array>, filename: `latchwell-signed-reports-${day}.zip` };
+  return {
+    stream: Readable.toWeb(archive) as ReadableStream<Uint8Array>,
+    filename: `latchwell-signed-reports-${day}.zip`,
+  };
 }

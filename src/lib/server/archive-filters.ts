@@ -17,7 +17,8 @@ import { containsPattern } from './listing';
  * A site's address as one searchable string. The archive migration trigram-indexes exactly this
  * expression (without the alias), so keep the two in step.
  */
-export const archiveAddressSql = (alias: string) => `(${alias}.address_line1 || ' ' || ${alias}.city || ' ' || coalesce(${alias}.postal_code, ''))`;
+export const archiveAddressSql = (alias: string) =>
+  `(${alias}.address_line1 || ' ' || ${alias}.city || ' ' || coalesce(${alias}.postal_code, ''))`;
 
 /** The date an archived assessment is filed under: its visit, or when a draft was started. */
 export const archiveDateSql = 'coalesce(a.visited_on, a.created_at)';
@@ -45,10 +46,18 @@ const uuidArray = (ids: string[]) => `{${ids.join(',')}}`;
  * the words are common, null when there is no text filter. Each word is first looked up where
  * its trigram index is (gate labels, site addresses, client names), a capped handful of rows each.
  */
-async function textMatchedGates(knex: Knex, organisationId: string, filter: ArchiveFilter): Promise<string[] | 'many' | null> {
+async function textMatchedGates(
+  knex: Knex,
+  organisationId: string,
+  filter: ArchiveFilter,
+): Promise<string[] | 'many' | null> {
   if (!filter.q && !filter.client && !filter.address) return null;
   const cap = FEW_GATES + 1;
-  const ids = async (table: 'gates' | 'sites' | 'clients', condition: string, text: string): Promise<string[]> =>
+  const ids = async (
+    table: 'gates' | 'sites' | 'clients',
+    condition: string,
+    text: string,
+  ): Promise<string[]> =>
     (await knex(table)
       .where('organisation_id', organisationId)
       .andWhereRaw(`${condition} ilike ?`, [containsPattern(text)])
@@ -75,7 +84,14 @@ async function textMatchedGates(knex: Knex, organisationId: string, filter: Arch
          select id from gates where organisation_id = ? and id = any(?::uuid[])
          union select id from gates where organisation_id = ? and site_id = any(?::uuid[])
          union select g5.id from gates g5 join sites s5 on s5.id = g5.site_id where s5.organisation_id = ? and s5.client_id = any(?::uuid[]))`,
-      [organisationId, uuidArray(labelGates), organisationId, uuidArray(qSites), organisationId, uuidArray(qClients)],
+      [
+        organisationId,
+        uuidArray(labelGates),
+        organisationId,
+        uuidArray(qSites),
+        organisationId,
+        uuidArray(qClients),
+      ],
     );
   }
   if (filter.client) gates.whereIn('tg.site_id', sitesOf(clients));
@@ -89,7 +105,13 @@ async function textMatchedGates(knex: Knex, organisationId: string, filter: Arch
  * Text filters cost one small query first (see the module comment). (It resolves to nothing:
  * a promise resolving to a query builder would run the query, builders being thenable.)
  */
-export async function applyArchiveFilter(query: Knex.QueryBuilder, knex: Knex, organisationId: string, filter: ArchiveFilter, timeZone: string): Promise<void> {
+export async function applyArchiveFilter(
+  query: Knex.QueryBuilder,
+  knex: Knex,
+  organisationId: string,
+  filter: ArchiveFilter,
+  timeZone: string,
+): Promise<void> {
   const gates = await textMatchedGates(knex, organisationId, filter);
   // An array literal, not a JS array: knex would spread an array binding into a list.
   if (Array.isArray(gates)) query.whereRaw('a.gate_id = any(?::uuid[])', [uuidArray(gates)]);
@@ -97,10 +119,15 @@ export async function applyArchiveFilter(query: Knex.QueryBuilder, knex: Knex, o
     // Common words: test each row on the way down the date index; a page is found in a few hundred rows.
     if (filter.q) {
       const pattern = containsPattern(filter.q);
-      query.whereRaw(`(g.label ilike ? or ${archiveAddressSql('s')} ilike ? or c.name ilike ?)`, [pattern, pattern, pattern]);
+      query.whereRaw(`(g.label ilike ? or ${archiveAddressSql('s')} ilike ? or c.name ilike ?)`, [
+        pattern,
+        pattern,
+        pattern,
+      ]);
     }
     if (filter.client) query.andWhereILike('c.name', containsPattern(filter.client));
-    if (filter.address) query.andWhereRaw(`${archiveAddressSql('s')} ilike ?`, [containsPattern(filter.address)]);
+    if (filter.address)
+      query.andWhereRaw(`${archiveAddressSql('s')} ilike ?`, [containsPattern(filter.address)]);
   }
   if (filter.clientId) query.andWhere('s.client_id', filter.clientId);
   if (filter.gateKind) query.andWhere('g.kind', filter.gateKind);
@@ -108,7 +135,9 @@ export async function applyArchiveFilter(query: Knex.QueryBuilder, knex: Knex, o
   if (filter.status) query.andWhere('a.status', filter.status);
   if (filter.verdict) query.andWhere('a.verdict', filter.verdict);
   if (filter.family || filter.version) {
-    const versions = knex('ruleset_versions as rv2').join('rulesets as r2', 'r2.id', 'rv2.ruleset_id').select('rv2.id');
+    const versions = knex('ruleset_versions as rv2')
+      .join('rulesets as r2', 'r2.id', 'rv2.ruleset_id')
+      .select('rv2.id');
     versions.where((w) => w.where('r2.organisation_id', organisationId).orWhereNull('r2.organisation_id'));
     if (filter.family) versions.andWhere('r2.family', filter.family);
     if (filter.version) versions.andWhere('rv2.version', filter.version);
@@ -116,13 +145,17 @@ export async function applyArchiveFilter(query: Knex.QueryBuilder, knex: Knex, o
   }
   if (filter.auditorId) query.andWhere('a.auditor_id', filter.auditorId);
   if (filter.gateId) query.andWhere('a.gate_id', filter.gateId);
-  if (filter.from) query.andWhereRaw(`${archiveDateSql} >= (?::date)::timestamp at time zone ?`, [filter.from, timeZone]);
-  if (filter.to) query.andWhereRaw(`${archiveDateSql} < (?::date + 1)::timestamp at time zone ?`, [filter.to, timeZone]);
+  if (filter.from)
+    query.andWhereRaw(`${archiveDateSql} >= (?::date)::timestamp at time zone ?`, [filter.from, timeZone]);
+  if (filter.to)
+    query.andWhereRaw(`${archiveDateSql} < (?::date + 1)::timestamp at time zone ?`, [filter.to, timeZone]);
 }
 
 /** Looked up for the rows shown only: who audited, under which ruleset version, and the signed PDF. */
 export const archiveLookups = (knex: Knex) => [
   knex.raw('(select u.name from users u where u.id = a.auditor_id) as auditor_name'),
-  knex.raw('(select r.family from ruleset_versions rv join rulesets r on r.id = rv.ruleset_id where rv.id = a.ruleset_version_id) as family'),
+  knex.raw(
+    '(select r.family from ruleset_versions rv join rulesets r on r.id = rv.ruleset_id where rv.id = a.ruleset_version_id) as family',
+  ),
   knex.raw('(select rv.version from ruleset_versions rv where rv.id = a.ruleset_version_id) as version'),
 ];

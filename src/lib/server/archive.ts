@@ -5,7 +5,13 @@
  * separate call, so typing in the search box does not pay for counting.
  */
 import type { Knex } from 'knex';
-import type { ArchiveFilter, ArchiveItem, ArchiveListQuery, ArchivePage, ArchiveSort } from '@/lib/api/archive';
+import type {
+  ArchiveFilter,
+  ArchiveItem,
+  ArchiveListQuery,
+  ArchivePage,
+  ArchiveSort,
+} from '@/lib/api/archive';
 import { applyArchiveFilter, archiveBase, archiveDateSql, archiveLookups } from './archive-filters';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
@@ -56,7 +62,9 @@ export const archiveColumns = (knex: Knex) => [
   'g.kind as gate_kind',
   'a.auditor_id',
   ...archiveLookups(knex),
-  knex.raw(`(select d.id from documents d where d.assessment_id = a.id and d.kind = 'signed_report') as signed_document_id`),
+  knex.raw(
+    `(select d.id from documents d where d.assessment_id = a.id and d.kind = 'signed_report') as signed_document_id`,
+  ),
 ];
 
 export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key' | 'parent_id'>): ArchiveItem {
@@ -67,7 +75,13 @@ export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key' | 'parent_id'>): 
     date: iso(row.archive_date),
     signedAt: row.signed_at ? iso(row.signed_at) : null,
     client: { id: row.client_id, name: row.client_name },
-    site: { id: row.site_id, addressLine1: row.address_line1, city: row.city, postalCode: row.postal_code, usageClass: row.usage_class },
+    site: {
+      id: row.site_id,
+      addressLine1: row.address_line1,
+      city: row.city,
+      postalCode: row.postal_code,
+      usageClass: row.usage_class,
+    },
     gate: { id: row.gate_id, label: row.gate_label, kind: row.gate_kind },
     auditor: { id: row.auditor_id, name: row.auditor_name },
     ruleset: { family: row.family, version: row.version },
@@ -81,7 +95,14 @@ export function toArchiveItem(row: Omit<ArchiveRow, 'sort_key' | 'parent_id'>): 
  * one's assessments joined in by id, so a page costs a few parents, not a sort of the archive.
  */
 type SortPlan =
-  { kind: 'date'; direction: 'asc' | 'desc' } | { kind: 'parent'; direction: 'asc' | 'desc'; table: 'clients' | 'gates'; key: 'name' | 'label'; link: string };
+  | { kind: 'date'; direction: 'asc' | 'desc' }
+  | {
+      kind: 'parent';
+      direction: 'asc' | 'desc';
+      table: 'clients' | 'gates';
+      key: 'name' | 'label';
+      link: string;
+    };
 
 const sortPlans: Record<ArchiveSort, SortPlan> = {
   '-date': { kind: 'date', direction: 'desc' },
@@ -103,7 +124,10 @@ interface Cursor {
 }
 
 export function encodeCursor(cursor: Cursor): string {
-  return Buffer.from(JSON.stringify([cursor.sort, cursor.value, cursor.parentId, cursor.id]), 'utf8').toString('base64url');
+  return Buffer.from(
+    JSON.stringify([cursor.sort, cursor.value, cursor.parentId, cursor.id]),
+    'utf8',
+  ).toString('base64url');
 }
 
 /** timestamptz as PostgreSQL writes it: `2026-11-20 09:15:02.123456+00`. */
@@ -118,7 +142,8 @@ export function decodeCursor(text: string, sort: ArchiveSort, field: 'after' | '
   } catch {
     parsed = null;
   }
-  const bad = (message: string) => new HttpProblem(400, 'Some query parameters are invalid.', { errors: [{ field, message }] });
+  const bad = (message: string) =>
+    new HttpProblem(400, 'Some query parameters are invalid.', { errors: [{ field, message }] });
   if (!Array.isArray(parsed) || parsed.length !== 4) throw bad('is not a cursor from this list');
   const [cursorSort, value, parentId, id] = parsed as unknown[];
   if (cursorSort !== sort) throw bad('belongs to another sort order; start again from the first page');
@@ -128,16 +153,27 @@ export function decodeCursor(text: string, sort: ArchiveSort, field: 'after' | '
     value.length <= 300 &&
     typeof id === 'string' &&
     uuidPattern.test(id) &&
-    (plan.kind === 'date' ? parentId === null && timestampText.test(value) : typeof parentId === 'string' && uuidPattern.test(parentId));
+    (plan.kind === 'date'
+      ? parentId === null && timestampText.test(value)
+      : typeof parentId === 'string' && uuidPattern.test(parentId));
   if (!valid) throw bad('is not a cursor from this list');
   return { sort, value: value as string, parentId: parentId as string | null, id: id as string };
 }
 
 /** One page of the archive in the requested sort, before or after a cursor. */
-export async function listArchive(organisationId: string, timeZone: string, query: ArchiveListQuery, knex: Knex = db()): Promise<ArchivePage> {
+export async function listArchive(
+  organisationId: string,
+  timeZone: string,
+  query: ArchiveListQuery,
+  knex: Knex = db(),
+): Promise<ArchivePage> {
   const plan = sortPlans[query.sort];
   const backwards = Boolean(query.before);
-  const cursor = query.after ? decodeCursor(query.after, query.sort, 'after') : query.before ? decodeCursor(query.before, query.sort, 'before') : null;
+  const cursor = query.after
+    ? decodeCursor(query.after, query.sort, 'after')
+    : query.before
+      ? decodeCursor(query.before, query.sort, 'before')
+      : null;
   // Reading backwards walks the opposite order from the cursor, then turns the page round.
   const direction = backwards ? (plan.direction === 'asc' ? 'desc' : 'asc') : plan.direction;
   const comparison = direction === 'asc' ? '>' : '<';
@@ -145,9 +181,17 @@ export async function listArchive(organisationId: string, timeZone: string, quer
   await applyArchiveFilter(base, knex, organisationId, query, timeZone);
   let rows: ArchiveRow[];
   if (plan.kind === 'date') {
-    if (cursor) base.andWhereRaw(`(${archiveDateSql}, a.id) ${comparison} (?::timestamptz, ?::uuid)`, [cursor.value, cursor.id]);
+    if (cursor)
+      base.andWhereRaw(`(${archiveDateSql}, a.id) ${comparison} (?::timestamptz, ?::uuid)`, [
+        cursor.value,
+        cursor.id,
+      ]);
     rows = (await base
-      .select([...archiveColumns(knex), knex.raw(`(${archiveDateSql})::text as sort_key`), knex.raw('null::uuid as parent_id')])
+      .select([
+        ...archiveColumns(knex),
+        knex.raw(`(${archiveDateSql})::text as sort_key`),
+        knex.raw('null::uuid as parent_id'),
+      ])
       .orderByRaw(`${archiveDateSql} ${direction}, a.id ${direction}`)
       .limit(query.limit + 1)) as ArchiveRow[];
   } else {
@@ -157,7 +201,11 @@ export async function listArchive(organisationId: string, timeZone: string, quer
       .orderByRaw(`${plan.key} ${direction}, id ${direction}`);
     if (cursor) {
       parents.andWhereRaw(`(${plan.key}, id) ${comparison}= (?, ?::uuid)`, [cursor.value, cursor.parentId]);
-      base.andWhereRaw(`((p.key, p.id) ${comparison} (?, ?::uuid) or a.id ${comparison} ?::uuid)`, [cursor.value, cursor.parentId, cursor.id]);
+      base.andWhereRaw(`((p.key, p.id) ${comparison} (?, ?::uuid) or a.id ${comparison} ?::uuid)`, [
+        cursor.value,
+        cursor.parentId,
+        cursor.id,
+      ]);
     }
     const perParent = base
       .andWhereRaw(`${plan.link} = p.id`)
@@ -176,7 +224,8 @@ export async function listArchive(organisationId: string, timeZone: string, quer
   const more = rows.length > query.limit;
   const page = rows.slice(0, query.limit);
   if (backwards) page.reverse();
-  const cursorOf = (row: ArchiveRow | undefined) => (row ? encodeCursor({ sort: query.sort, value: row.sort_key, parentId: row.parent_id, id: row.id }) : null);
+  const cursorOf = (row: ArchiveRow | undefined) =>
+    row ? encodeCursor({ sort: query.sort, value: row.sort_key, parentId: row.parent_id, id: row.id }) : null;
   const hasNext = backwards ? true : more;
   const hasPrev = backwards ? more : Boolean(cursor);
   return {
@@ -187,13 +236,22 @@ export async function listArchive(organisationId: string, timeZone: string, quer
 }
 
 /** How many assessments the filter matches. */
-export async function countArchive(organisationId: string, timeZone: string, filter: ArchiveFilter, knex: Knex = db()): Promise<number> {
+export async function countArchive(
+  organisationId: string,
+  timeZone: string,
+  filter: ArchiveFilter,
+  knex: Knex = db(),
+): Promise<number> {
   // Counting needs the joins only when a filter looks at the gate, site or client.
-  const needsSite = Boolean(filter.q || filter.client || filter.address || filter.clientId || filter.usageClass);
+  const needsSite = Boolean(
+    filter.q || filter.client || filter.address || filter.clientId || filter.usageClass,
+  );
   const base = needsSite
     ? archiveBase(knex, organisationId)
     : filter.gateKind
-      ? knex('assessments as a').join('gates as g', 'g.id', 'a.gate_id').where('a.organisation_id', organisationId)
+      ? knex('assessments as a')
+          .join('gates as g', 'g.id', 'a.gate_id')
+          .where('a.organisation_id', organisationId)
       : knex('assessments as a').where('a.organisation_id', organisationId);
   await applyArchiveFilter(base, knex, organisationId, filter, timeZone);
   const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
@@ -204,9 +262,16 @@ export async function countArchive(organisationId: string, timeZone: string, fil
 export async function archiveFilterOptions(
   organisationId: string,
   knex: Knex = db(),
-): Promise<{ auditors: { id: string; name: string }[]; rulesets: { family: string; title: string; versions: string[] }[] }> {
+): Promise<{
+  auditors: { id: string; name: string }[];
+  rulesets: { family: string; title: string; versions: string[] }[];
+}> {
   const [auditors, versions] = await Promise.all([
-    knex('users').where('organisation_id', organisationId).whereIn('role', ['owner', 'office', 'auditor']).orderBy('name').select('id', 'name'),
+    knex('users')
+      .where('organisation_id', organisationId)
+      .whereIn('role', ['owner', 'office', 'auditor'])
+      .orderBy('name')
+      .select('id', 'name'),
     knex('ruleset_versions as rv')
       .join('rulesets as r', 'r.id', 'rv.ruleset_id')
       .where((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', organisationId))

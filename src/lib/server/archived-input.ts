@@ -13,7 +13,11 @@ import type { AssessmentInput, MeasuredValue, RulesetQuestion } from '@/lib/rule
 import { canonicalValue, kindOfUnit } from '@/lib/rules/measures';
 import type { AssessmentDocuments, GateForScoring } from './assessment-input';
 
-function dimension(stored: number | null, entered: { value: number; unit: string } | undefined, canonicalUnit: 'mm' | 'kg'): MeasuredValue | undefined {
+function dimension(
+  stored: number | null,
+  entered: { value: number; unit: string } | undefined,
+  canonicalUnit: 'mm' | 'kg',
+): MeasuredValue | undefined {
   if (stored === null || stored === undefined) return undefined;
   const { value, unit } = entered ?? { value: stored, unit: canonicalUnit };
   const kind = kindOfUnit(unit) ?? (canonicalUnit === 'mm' ? 'length' : 'mass');
@@ -26,12 +30,21 @@ const yesNoKeys = new WeakMap<readonly RulesetQuestion[], Set<string>>();
  * Keys left undefined here are absent after a schema parse; nothing reads the difference (the
  * engine tests for undefined, and the input hash drops undefined members as JSON does).
  */
-export function archivedEngineInput(gate: GateForScoring, documents: AssessmentDocuments, questions: readonly RulesetQuestion[]): AssessmentInput {
+export function archivedEngineInput(
+  gate: GateForScoring,
+  documents: AssessmentDocuments,
+  questions: readonly RulesetQuestion[],
+): AssessmentInput {
   let yesNo = yesNoKeys.get(questions);
-  if (!yesNo) yesNoKeys.set(questions, (yesNo = new Set(questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key))));
+  if (!yesNo)
+    yesNoKeys.set(
+      questions,
+      (yesNo = new Set(questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key))),
+    );
   const answers: Record<string, { value: string; note?: string }> = {};
   const choices: Record<string, { value: string; note?: string }> = {};
-  for (const [key, entry] of Object.entries(documents.answers)) (yesNo.has(key) ? answers : choices)[key] = entry;
+  for (const [key, entry] of Object.entries(documents.answers))
+    (yesNo.has(key) ? answers : choices)[key] = entry;
   const { site, entrapment, forceTests, swingGeometry, hrnOverrides } = documents.observations;
   return {
     profile: {

@@ -5,7 +5,13 @@
  * as per-field messages named the way the API client knows the fields.
  */
 import { z } from 'zod';
-import { DraftObservationsSchema, type AnswerEntry, type AssessmentPatch, type DraftObservations, type MeasurementEntry } from '@/lib/api/assessments';
+import {
+  DraftObservationsSchema,
+  type AnswerEntry,
+  type AssessmentPatch,
+  type DraftObservations,
+  type MeasurementEntry,
+} from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
 import {
@@ -28,15 +34,24 @@ export interface AssessmentDocuments {
 
 type Outcome<T> = { ok: true; value: T } | { ok: false; errors: FieldError[] };
 
-const isMeasured = (q: RulesetQuestion) => (MEASURED_ANSWER_TYPES as readonly string[]).includes(q.answerType);
+const isMeasured = (q: RulesetQuestion) =>
+  (MEASURED_ANSWER_TYPES as readonly string[]).includes(q.answerType);
 const isoDate = z.iso.date();
 
 function issuesAt(prefix: string, error: z.ZodError): FieldError[] {
-  return error.issues.map((issue) => ({ field: [prefix, ...issue.path.map(String)].filter(Boolean).join('.'), message: issue.message }));
+  return error.issues.map((issue) => ({
+    field: [prefix, ...issue.path.map(String)].filter(Boolean).join('.'),
+    message: issue.message,
+  }));
 }
 
 /** A measurement as stored: the entered value and unit with its canonical value (computed when not sent). */
-function toMeasured(key: string, entry: MeasurementEntry, question: RulesetQuestion, errors: FieldError[]): MeasuredValue | undefined {
+function toMeasured(
+  key: string,
+  entry: MeasurementEntry,
+  question: RulesetQuestion,
+  errors: FieldError[],
+): MeasuredValue | undefined {
   const kind = kindOfUnit(entry.unit);
   if (!kind) {
     errors.push({ field: `measurements.${key}.unit`, message: `unknown unit "${entry.unit}"` });
@@ -55,14 +70,23 @@ function toMeasured(key: string, entry: MeasurementEntry, question: RulesetQuest
   return parsed.data;
 }
 
-function checkAnswer(key: string, entry: AnswerEntry, question: RulesetQuestion | undefined, errors: FieldError[]): void {
+function checkAnswer(
+  key: string,
+  entry: AnswerEntry,
+  question: RulesetQuestion | undefined,
+  errors: FieldError[],
+): void {
   const field = `answers.${key}`;
   if (!question) errors.push({ field, message: 'is not a question of the pinned ruleset version' });
-  else if (isMeasured(question)) errors.push({ field, message: 'is a measured question: send it under measurements' });
+  else if (isMeasured(question))
+    errors.push({ field, message: 'is a measured question: send it under measurements' });
   else if (question.answerType === 'yes_no_na' && !(YES_NO_NA as readonly string[]).includes(entry.value)) {
     errors.push({ field: `${field}.value`, message: `must be one of: ${YES_NO_NA.join(', ')}` });
   } else if (question.answerType === 'choice' && !question.options?.some((o) => o.value === entry.value)) {
-    errors.push({ field: `${field}.value`, message: `must be one of: ${(question.options ?? []).map((o) => o.value).join(', ')}` });
+    errors.push({
+      field: `${field}.value`,
+      message: `must be one of: ${(question.options ?? []).map((o) => o.value).join(', ')}`,
+    });
   } else if (question.answerType === 'date' && !isoDate.safeParse(entry.value).success) {
     errors.push({ field: `${field}.value`, message: 'must be a date written YYYY-MM-DD' });
   }
@@ -73,12 +97,17 @@ function checkAnswer(key: string, entry: AnswerEntry, question: RulesetQuestion 
  * answer and measurement must answer a question of the pinned version in the right form, and
  * the observations must have the engine's shapes.
  */
-export function mergeDocuments(current: AssessmentDocuments, patch: AssessmentPatch, questions: readonly RulesetQuestion[]): Outcome<AssessmentDocuments> {
+export function mergeDocuments(
+  current: AssessmentDocuments,
+  patch: AssessmentPatch,
+  questions: readonly RulesetQuestion[],
+): Outcome<AssessmentDocuments> {
   const byKey = new Map(questions.map((q) => [q.key, q]));
   const errors: FieldError[] = [];
 
   const answers = applyMergePatch(current.answers, patch.answers ?? {}) as Record<string, AnswerEntry>;
-  for (const [key, entry] of Object.entries(patch.answers ?? {})) if (entry) checkAnswer(key, entry, byKey.get(key), errors);
+  for (const [key, entry] of Object.entries(patch.answers ?? {}))
+    if (entry) checkAnswer(key, entry, byKey.get(key), errors);
 
   const measurements: Record<string, MeasuredValue> = { ...current.measurements };
   for (const [key, entry] of Object.entries(patch.measurements ?? {})) {
@@ -87,8 +116,16 @@ export function mergeDocuments(current: AssessmentDocuments, patch: AssessmentPa
       continue;
     }
     const question = byKey.get(key);
-    if (!question) errors.push({ field: `measurements.${key}`, message: 'is not a question of the pinned ruleset version' });
-    else if (!isMeasured(question)) errors.push({ field: `measurements.${key}`, message: 'is not a measured question: send it under answers' });
+    if (!question)
+      errors.push({
+        field: `measurements.${key}`,
+        message: 'is not a question of the pinned ruleset version',
+      });
+    else if (!isMeasured(question))
+      errors.push({
+        field: `measurements.${key}`,
+        message: 'is not a measured question: send it under answers',
+      });
     else {
       const measured = toMeasured(key, entry, question, errors);
       if (measured) measurements[key] = measured;
@@ -104,11 +141,18 @@ export function mergeDocuments(current: AssessmentDocuments, patch: AssessmentPa
 }
 
 /** What the engine is told about the gate: the gate row as it stands, with its site's usage class. */
-export interface GateForScoring extends Pick<Gate, 'kind' | 'leaves' | 'openingDirection' | 'widthMm' | 'heightMm' | 'weightKg' | 'entered' | 'operator'> {
+export interface GateForScoring extends Pick<
+  Gate,
+  'kind' | 'leaves' | 'openingDirection' | 'widthMm' | 'heightMm' | 'weightKg' | 'entered' | 'operator'
+> {
   usageClass: number;
 }
 
-function measuredDimension(stored: number | null, entered: { value: number; unit: string } | undefined, canonicalUnit: 'mm' | 'kg'): MeasuredValue | undefined {
+function measuredDimension(
+  stored: number | null,
+  entered: { value: number; unit: string } | undefined,
+  canonicalUnit: 'mm' | 'kg',
+): MeasuredValue | undefined {
   if (stored === null) return undefined;
   const { value, unit } = entered ?? { value: stored, unit: canonicalUnit };
   const kind = kindOfUnit(unit) ?? (canonicalUnit === 'mm' ? 'length' : 'mass');
@@ -127,7 +171,8 @@ function apiFieldOf(path: readonly PropertyKey[]): string {
     operatorManufacturedOn: 'gate.operator.manufacturedOn',
     usageClass: 'site.usageClass',
   };
-  if (head === 'profile') return [profileFields[rest[0] ?? ''] ?? `gate.${rest[0] ?? ''}`, ...rest.slice(1)].join('.');
+  if (head === 'profile')
+    return [profileFields[rest[0] ?? ''] ?? `gate.${rest[0] ?? ''}`, ...rest.slice(1)].join('.');
   if (head === 'site') return ['observations.site', ...rest].join('.');
   if (head === 'choices') return ['answers', ...rest].join('.');
   if (head === 'answers' || head === 'measurements') return [head, ...rest].join('.');
@@ -139,7 +184,11 @@ function apiFieldOf(path: readonly PropertyKey[]): string {
  * pinned version's question types; the profile comes from the gate row, which the auditor can
  * correct on site before submitting.
  */
-export function buildEngineInput(gate: GateForScoring, documents: AssessmentDocuments, questions: readonly RulesetQuestion[]): Outcome<AssessmentInput> {
+export function buildEngineInput(
+  gate: GateForScoring,
+  documents: AssessmentDocuments,
+  questions: readonly RulesetQuestion[],
+): Outcome<AssessmentInput> {
   const byKey = new Map(questions.map((q) => [q.key, q]));
   const answers: Record<string, AnswerEntry> = {};
   const choices: Record<string, AnswerEntry> = {};

@@ -29,7 +29,10 @@ export async function submitAssessment(
   request: RequestFacts,
 ): Promise<Assessment | null> {
   return db().transaction(async (trx) => {
-    const locked = await trx('assessments').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
+    const locked = await trx('assessments')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first('id');
     if (!locked) return null;
     const current = await getAssessment(viewer, id, trx);
     if (!current) return null;
@@ -39,14 +42,27 @@ export async function submitAssessment(
     await trx('gates').where({ id: gate.id }).forShare().first('id');
     const site = await trx('sites')
       .where({ id: gate.siteId })
-      .first<{ usage_class: number; address_line1: string; city: string; name: string | null }>('usage_class', 'address_line1', 'city', 'name');
+      .first<{ usage_class: number; address_line1: string; city: string; name: string | null }>(
+        'usage_class',
+        'address_line1',
+        'city',
+        'name',
+      );
     const pinned = await trx('ruleset_versions')
       .where({ id: current.ruleset.versionId })
       .first<{ content: RulesetVersion; content_sha256: string }>('content', 'content_sha256');
-    const { content, content_sha256: contentSha256 } = pinned as { content: RulesetVersion; content_sha256: string };
+    const { content, content_sha256: contentSha256 } = pinned as {
+      content: RulesetVersion;
+      content_sha256: string;
+    };
 
-    const built = buildEngineInput({ ...gate, usageClass: site?.usage_class ?? 0 }, current, content.questions);
-    if (!built.ok) throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: built.errors });
+    const built = buildEngineInput(
+      { ...gate, usageClass: site?.usage_class ?? 0 },
+      current,
+      content.questions,
+    );
+    if (!built.ok)
+      throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: built.errors });
     let result;
     try {
       result = scoreParsed(built.value, { version: content, contentSha256 });
@@ -61,7 +77,13 @@ export async function submitAssessment(
     const sha256 = resultSha256(result);
     const gateSnapshot = {
       ...gate,
-      site: { id: gate.siteId, name: site?.name ?? null, addressLine1: site?.address_line1, city: site?.city, usageClass: site?.usage_class },
+      site: {
+        id: gate.siteId,
+        name: site?.name ?? null,
+        addressLine1: site?.address_line1,
+        city: site?.city,
+        usageClass: site?.usage_class,
+      },
       client: current.client,
     };
     await trx('assessments')

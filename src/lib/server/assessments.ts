@@ -4,7 +4,13 @@
  * assessments; a homeowner sees only those of their own client that were sent for signature.
  */
 import type { Knex } from 'knex';
-import type { Assessment, AssessmentCreate, AssessmentListQuery, AssessmentPatch, AssessmentSummary } from '@/lib/api/assessments';
+import type {
+  Assessment,
+  AssessmentCreate,
+  AssessmentListQuery,
+  AssessmentPatch,
+  AssessmentSummary,
+} from '@/lib/api/assessments';
 import type { Page } from '@/lib/api/common';
 import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
 import { mergeDocuments, type AssessmentDocuments } from './assessment-input';
@@ -84,7 +90,15 @@ const summaryColumns = [
   'a.updated_at',
 ] as const;
 
-const fullColumns = [...summaryColumns, 'a.answers', 'a.measurements', 'a.observations', 'a.gate_snapshot', 'a.result', 'a.result_sha256'] as const;
+const fullColumns = [
+  ...summaryColumns,
+  'a.answers',
+  'a.measurements',
+  'a.observations',
+  'a.gate_snapshot',
+  'a.result',
+  'a.result_sha256',
+] as const;
 
 const sortColumns: Record<AssessmentListQuery['sort']['field'], string> = {
   visitedOn: 'a.visited_on',
@@ -103,10 +117,21 @@ function toSummary(row: SummaryRow): AssessmentSummary {
     verdict: row.verdict,
     rowVersion: row.row_version,
     gate: { id: row.gate_id, label: row.gate_label, kind: row.gate_kind },
-    site: { id: row.site_id, name: row.site_name, addressLine1: row.site_address_line1, city: row.site_city, usageClass: row.site_usage_class },
+    site: {
+      id: row.site_id,
+      name: row.site_name,
+      addressLine1: row.site_address_line1,
+      city: row.site_city,
+      usageClass: row.site_usage_class,
+    },
     client: { id: row.client_id, name: row.client_name },
     auditor: { id: row.auditor_id, name: row.auditor_name },
-    ruleset: { versionId: row.ruleset_version_id, family: row.ruleset_family, version: row.ruleset_version, title: row.ruleset_title },
+    ruleset: {
+      versionId: row.ruleset_version_id,
+      family: row.ruleset_family,
+      version: row.ruleset_version,
+      title: row.ruleset_title,
+    },
     visitedOn: isoOrNull(row.visited_on),
     submittedAt: isoOrNull(row.submitted_at),
     signedAt: isoOrNull(row.signed_at),
@@ -137,11 +162,16 @@ function visibleAssessments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder 
     .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
     .where('a.organisation_id', viewer.organisationId);
-  if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId).whereIn('a.status', HOMEOWNER_VISIBLE);
+  if (viewer.role === 'homeowner')
+    query.andWhere('s.client_id', viewer.clientId).whereIn('a.status', HOMEOWNER_VISIBLE);
   return query;
 }
 
-export async function listAssessments(viewer: SessionUser, timeZone: string, query: AssessmentListQuery): Promise<Page<AssessmentSummary>> {
+export async function listAssessments(
+  viewer: SessionUser,
+  timeZone: string,
+  query: AssessmentListQuery,
+): Promise<Page<AssessmentSummary>> {
   const base = visibleAssessments(db(), viewer);
   if (query.status) base.andWhere('a.status', query.status);
   if (query.verdict) base.andWhere('a.verdict', query.verdict);
@@ -152,16 +182,30 @@ export async function listAssessments(viewer: SessionUser, timeZone: string, que
   if (query.siteId) base.andWhere('g.site_id', query.siteId);
   if (query.clientId) base.andWhere('s.client_id', query.clientId);
   // Dates are days in the organisation's time zone: from its midnight to the next one after `to`.
-  if (query.from) base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
-  if (query.to) base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
+  if (query.from)
+    base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
+  if (query.to)
+    base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
   return fetchPage<SummaryRow, AssessmentSummary>(
-    { base, columns: summaryColumns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'a.id', map: toSummary },
+    {
+      base,
+      columns: summaryColumns,
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 'a.id',
+      map: toSummary,
+    },
     query,
   );
 }
 
-export async function getAssessment(viewer: SessionUser, id: string, knex: Knex = db()): Promise<Assessment | null> {
-  const row = await visibleAssessments(knex, viewer).andWhere('a.id', id).first<FullRow | undefined>(fullColumns);
+export async function getAssessment(
+  viewer: SessionUser,
+  id: string,
+  knex: Knex = db(),
+): Promise<Assessment | null> {
+  const row = await visibleAssessments(knex, viewer)
+    .andWhere('a.id', id)
+    .first<FullRow | undefined>(fullColumns);
   return row ? toAssessment(row) : null;
 }
 
@@ -170,7 +214,11 @@ function invalid(field: string, message: string): HttpProblem {
 }
 
 /** The family's current version for this organisation: its own family of that name first, else the shipped one; the latest published. */
-async function currentPublishedVersion(knex: Knex, organisationId: string, family: string): Promise<{ id: string; version: string } | undefined> {
+async function currentPublishedVersion(
+  knex: Knex,
+  organisationId: string,
+  family: string,
+): Promise<{ id: string; version: string } | undefined> {
   return knex('ruleset_versions as rv')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
     .where('r.family', family)
@@ -181,9 +229,14 @@ async function currentPublishedVersion(knex: Knex, organisationId: string, famil
 }
 
 /** Whose draft it is: an auditor starts their own; owner / office may name a member of staff. */
-async function resolveAuditor(knex: Knex, viewer: SessionUser, auditorId: string | undefined): Promise<string> {
+async function resolveAuditor(
+  knex: Knex,
+  viewer: SessionUser,
+  auditorId: string | undefined,
+): Promise<string> {
   if (auditorId === undefined || auditorId === viewer.id) return viewer.id;
-  if (viewer.role === 'auditor') throw new HttpProblem(403, 'An auditor starts assessments for themself only.');
+  if (viewer.role === 'auditor')
+    throw new HttpProblem(403, 'An auditor starts assessments for themself only.');
   const person = await knex('users')
     .where({ id: auditorId, organisation_id: viewer.organisationId, active: true })
     .whereIn('role', ['owner', 'office', 'auditor'])
@@ -197,9 +250,17 @@ export interface RequestFacts {
 }
 
 /** Starts a draft pinned to the family's current published version; audited. */
-export async function createAssessment(viewer: SessionUser, input: AssessmentCreate, request: RequestFacts, knex: Knex = db()): Promise<Assessment> {
+export async function createAssessment(
+  viewer: SessionUser,
+  input: AssessmentCreate,
+  request: RequestFacts,
+  knex: Knex = db(),
+): Promise<Assessment> {
   return knex.transaction(async (trx) => {
-    const gate = await trx('gates').where({ id: input.gateId, organisation_id: viewer.organisationId }).forShare().first('id');
+    const gate = await trx('gates')
+      .where({ id: input.gateId, organisation_id: viewer.organisationId })
+      .forShare()
+      .first('id');
     if (!gate) throw invalid('gateId', 'no such gate in this organisation');
     const auditorId = await resolveAuditor(trx, viewer, input.auditorId);
     const version = await currentPublishedVersion(trx, viewer.organisationId, input.family);
@@ -222,21 +283,40 @@ export async function createAssessment(viewer: SessionUser, input: AssessmentCre
       entityType: 'assessment',
       entityId: id,
       ip: request.ip,
-      detail: { gateId: input.gateId, family: input.family, version: version.version, rulesetVersionId: version.id, purpose: input.purpose, auditorId },
+      detail: {
+        gateId: input.gateId,
+        family: input.family,
+        version: version.version,
+        rulesetVersionId: version.id,
+        purpose: input.purpose,
+        auditorId,
+      },
     });
     return (await getAssessment(viewer, id as string, trx)) as Assessment;
   });
 }
 
 /** The checks every change to a draft makes, in the order a person would want to hear them. */
-export function assertEditable(viewer: SessionUser, current: Assessment, expectedVersion: number | undefined): void {
+export function assertEditable(
+  viewer: SessionUser,
+  current: Assessment,
+  expectedVersion: number | undefined,
+): void {
   if (viewer.role === 'auditor' && current.auditor.id !== viewer.id) {
-    throw new HttpProblem(403, "This is another auditor's assessment; only they or the office may change it.");
+    throw new HttpProblem(
+      403,
+      "This is another auditor's assessment; only they or the office may change it.",
+    );
   }
   if (current.status !== 'draft') {
-    throw new HttpProblem(409, `This assessment is ${current.status.replace('_', ' ')} and can no longer be changed.`, { current });
+    throw new HttpProblem(
+      409,
+      `This assessment is ${current.status.replace('_', ' ')} and can no longer be changed.`,
+      { current },
+    );
   }
-  if (expectedVersion !== undefined && current.rowVersion !== expectedVersion) throw staleProblem(current, expectedVersion);
+  if (expectedVersion !== undefined && current.rowVersion !== expectedVersion)
+    throw staleProblem(current, expectedVersion);
 }
 
 /** 409 for a change made against an older row version; carries the current state to merge with. */
@@ -260,17 +340,27 @@ async function pinnedQuestions(knex: Knex, rulesetVersionId: string): Promise<Ru
  * is one `UPDATE … WHERE id = ? AND row_version = ?`, so of two saves made from the same
  * version exactly one wins and the other gets 409 with the current state.
  */
-export async function patchAssessment(viewer: SessionUser, id: string, expectedVersion: number, patch: AssessmentPatch): Promise<Assessment | null> {
+export async function patchAssessment(
+  viewer: SessionUser,
+  id: string,
+  expectedVersion: number,
+  patch: AssessmentPatch,
+): Promise<Assessment | null> {
   const knex = db();
   const current = await getAssessment(viewer, id, knex);
   if (!current) return null;
   assertEditable(viewer, current, expectedVersion);
   const merged = mergeDocuments(
-    { answers: current.answers, measurements: current.measurements, observations: current.observations } satisfies AssessmentDocuments,
+    {
+      answers: current.answers,
+      measurements: current.measurements,
+      observations: current.observations,
+    } satisfies AssessmentDocuments,
     patch,
     await pinnedQuestions(knex, current.ruleset.versionId),
   );
-  if (!merged.ok) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: merged.errors });
+  if (!merged.ok)
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: merged.errors });
   const changes: Record<string, unknown> = {
     answers: JSON.stringify(merged.value.answers),
     measurements: JSON.stringify(merged.value.measurements),
@@ -297,27 +387,46 @@ export async function patchAssessment(viewer: SessionUser, id: string, expectedV
  * to replace back to signed (the database allows superseded -> signed only once no revision
  * names it), so a report is never left superseded with nothing in its place.
  */
-export async function discardAssessment(viewer: SessionUser, id: string, request: RequestFacts): Promise<boolean> {
+export async function discardAssessment(
+  viewer: SessionUser,
+  id: string,
+  request: RequestFacts,
+): Promise<boolean> {
   return db().transaction(async (trx) => {
     // Locked first, so the status checked below is the one the delete sees.
-    const draft = await trx('assessments').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('supersedes_id');
+    const draft = await trx('assessments')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first('supersedes_id');
     if (!draft) return false;
     const current = await getAssessment(viewer, id, trx);
     if (!current) return false;
     assertEditable(viewer, current, undefined);
     try {
-      await trx('assessments').where({ id, organisation_id: viewer.organisationId, status: 'draft' }).delete();
+      await trx('assessments')
+        .where({ id, organisation_id: viewer.organisationId, status: 'draft' })
+        .delete();
     } catch (error) {
-      if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION) throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
+      if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION)
+        throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
       throw error;
     }
-    const actor = { organisationId: viewer.organisationId, actorUserId: viewer.id, actorLabel: viewer.email, ip: request.ip };
+    const actor = {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      ip: request.ip,
+    };
     await recordAudit(trx, {
       ...actor,
       action: 'assessment.discarded',
       entityType: 'assessment',
       entityId: id,
-      detail: { gateId: current.gate.id, rowVersion: current.rowVersion, ...(draft.supersedes_id ? { supersedesId: draft.supersedes_id } : {}) },
+      detail: {
+        gateId: current.gate.id,
+        rowVersion: current.rowVersion,
+        ...(draft.supersedes_id ? { supersedesId: draft.supersedes_id } : {}),
+      },
     });
     if (draft.supersedes_id) {
       const restored = await trx('assessments')
@@ -338,12 +447,25 @@ export async function discardAssessment(viewer: SessionUser, id: string, request
 }
 
 /** The assessment this one revises and the one that replaced it, each only when the viewer may see it. */
-export async function revisionLinks(viewer: SessionUser, id: string, knex: Knex = db()): Promise<{ revises: string | null; replacedBy: string | null }> {
-  const own = await visibleAssessments(knex, viewer).andWhere('a.id', id).first<{ supersedes_id: string | null } | undefined>('a.supersedes_id');
+export async function revisionLinks(
+  viewer: SessionUser,
+  id: string,
+  knex: Knex = db(),
+): Promise<{ revises: string | null; replacedBy: string | null }> {
+  const own = await visibleAssessments(knex, viewer)
+    .andWhere('a.id', id)
+    .first<{ supersedes_id: string | null } | undefined>('a.supersedes_id');
   if (!own) return { revises: null, replacedBy: null };
   const [revises, replacedBy] = await Promise.all([
-    own.supersedes_id ? visibleAssessments(knex, viewer).andWhere('a.id', own.supersedes_id).first<{ id: string } | undefined>('a.id') : undefined,
-    visibleAssessments(knex, viewer).andWhere('a.supersedes_id', id).orderBy('a.created_at', 'desc').first<{ id: string } | undefined>('a.id'),
+    own.supersedes_id
+      ? visibleAssessments(knex, viewer)
+          .andWhere('a.id', own.supersedes_id)
+          .first<{ id: string } | undefined>('a.id')
+      : undefined,
+    visibleAssessments(knex, viewer)
+      .andWhere('a.supersedes_id', id)
+      .orderBy('a.created_at', 'desc')
+      .first<{ id: string } | undefined>('a.id'),
   ]);
   return { revises: revises?.id ?? null, replacedBy: replacedBy?.id ?? null };
 }

@@ -22,14 +22,17 @@ export const TRUNCATED_MESSAGE = 'The trail ends before an event that a signed d
 
 export const anchorStateWords: Record<AnchorState, string> = {
   present: 'The audit trail still holds the event this document recorded, unchanged.',
-  altered: 'The event this document recorded is in the audit trail with a different hash: the trail was rewritten.',
+  altered:
+    'The event this document recorded is in the audit trail with a different hash: the trail was rewritten.',
   missing: 'The event this document recorded was removed from the audit trail.',
   truncated: TRUNCATED_MESSAGE,
 };
 
 /** The latest committed event. Writers append under one lock, so committed events are always a prefix of the chain. */
 export async function chainHead(knex: Knex): Promise<AuditAnchor | null> {
-  const row = await knex('audit_events').orderBy('id', 'desc').first<{ id: string; hash: string } | undefined>('id', 'hash');
+  const row = await knex('audit_events')
+    .orderBy('id', 'desc')
+    .first<{ id: string; hash: string } | undefined>('id', 'hash');
   return row ? { eventId: Number(row.id), hash: row.hash } : null;
 }
 

@@ -101,7 +101,11 @@ export interface AuditListOptions {
   entityId?: string;
 }
 
-export async function listAuditEvents(organisationId: string, options: AuditListOptions, knex: Knex = db()): Promise<AuditPage> {
+export async function listAuditEvents(
+  organisationId: string,
+  options: AuditListOptions,
+  knex: Knex = db(),
+): Promise<AuditPage> {
   const query = knex('audit_events').where('organisation_id', organisationId);
   if (options.before) query.andWhere('id', '<', options.before);
   if (options.action) query.andWhere('action', options.action);
@@ -149,7 +153,11 @@ const BATCH = 2000;
  * checks the stored anchors and `supplied` ones (from a signed report or an export's
  * `audit-trail-head.json`) against it.
  */
-export async function verifyOrganisationTrail(organisationId: string, knex: Knex = db(), supplied: AuditAnchor[] = []): Promise<TrailVerification> {
+export async function verifyOrganisationTrail(
+  organisationId: string,
+  knex: Knex = db(),
+  supplied: AuditAnchor[] = [],
+): Promise<TrailVerification> {
   return knex.transaction(
     async (trx) => {
       let previousHash = genesisHash;
@@ -160,7 +168,11 @@ export async function verifyOrganisationTrail(organisationId: string, knex: Knex
       let brokenBy: TrailVerification['brokenBy'] = null;
       let brokenElsewhere = 0;
       for (;;) {
-        const rows = (await trx('audit_events').where('id', '>', lastId).orderBy('id').limit(BATCH).select(rowColumns(trx))) as StoredRow[];
+        const rows = (await trx('audit_events')
+          .where('id', '>', lastId)
+          .orderBy('id')
+          .limit(BATCH)
+          .select(rowColumns(trx))) as StoredRow[];
         if (!rows.length) break;
         for (const row of rows) {
           const linkBroken = row.prev_hash !== previousHash;
@@ -193,8 +205,10 @@ export async function verifyOrganisationTrail(organisationId: string, knex: Knex
       supplied.forEach((anchor, i) => {
         if (states[i] === 'truncated') anchoredEventId = Math.max(anchoredEventId, anchor.eventId);
       });
-      const truncated = anchoredEventId > lastId ? { anchoredEventId, lastEventId, message: TRUNCATED_MESSAGE } : null;
-      const anchorsBroken = Number(stored?.broken ?? 0) + states.filter((s) => s === 'altered' || s === 'missing').length;
+      const truncated =
+        anchoredEventId > lastId ? { anchoredEventId, lastEventId, message: TRUNCATED_MESSAGE } : null;
+      const anchorsBroken =
+        Number(stored?.broken ?? 0) + states.filter((s) => s === 'altered' || s === 'missing').length;
       return {
         ok: firstBrokenId === null && !truncated && anchorsBroken === 0,
         checked,

@@ -46,7 +46,10 @@ export function auditHash(prevHash: string, fields: StoredAuditFields): string {
 }
 
 /** Appends one event; serialised by a transaction-scoped advisory lock so the chain never forks. Returns its id and hash. */
-export async function recordAudit(trx: Knex.Transaction, event: AuditEventInput): Promise<{ id: number; hash: string }> {
+export async function recordAudit(
+  trx: Knex.Transaction,
+  event: AuditEventInput,
+): Promise<{ id: number; hash: string }> {
   await trx.raw('select pg_advisory_xact_lock(hashtext(?))', ['audit_events']);
   const last = await trx('audit_events').orderBy('id', 'desc').first('hash');
   const prevHash: string = last?.hash ?? genesisHash;

@@ -22,11 +22,24 @@ interface ClientRow {
   updated_at: Date;
 }
 
-const columns = ['c.id', 'c.name', 'c.kind', 'c.contact_email', 'c.phone', 'c.notes', 'c.created_at', 'c.updated_at'] as const;
+const columns = [
+  'c.id',
+  'c.name',
+  'c.kind',
+  'c.contact_email',
+  'c.phone',
+  'c.notes',
+  'c.created_at',
+  'c.updated_at',
+] as const;
 
 const returnedColumns = columns.map((c) => c.slice('c.'.length));
 
-const sortColumns: Record<ClientListQuery['sort']['field'], string> = { name: 'c.name', createdAt: 'c.created_at', updatedAt: 'c.updated_at' };
+const sortColumns: Record<ClientListQuery['sort']['field'], string> = {
+  name: 'c.name',
+  createdAt: 'c.created_at',
+  updatedAt: 'c.updated_at',
+};
 
 function toClient(row: ClientRow): Client {
   return {
@@ -41,7 +54,9 @@ function toClient(row: ClientRow): Client {
   };
 }
 
-function toRow(input: ClientCreate | ClientPatch): Partial<Omit<ClientRow, 'id' | 'created_at' | 'updated_at'>> {
+function toRow(
+  input: ClientCreate | ClientPatch,
+): Partial<Omit<ClientRow, 'id' | 'created_at' | 'updated_at'>> {
   const row: Partial<Omit<ClientRow, 'id' | 'created_at' | 'updated_at'>> = {};
   if (input.name !== undefined) row.name = input.name;
   if (input.kind !== undefined) row.kind = input.kind;
@@ -63,10 +78,21 @@ export async function listClients(viewer: SessionUser, query: ClientListQuery): 
   if (query.kind) base.andWhere('c.kind', query.kind);
   if (query.q) {
     const pattern = containsPattern(query.q);
-    base.andWhere((w) => w.whereILike('c.name', pattern).orWhereILike('c.contact_email', pattern).orWhereILike('c.phone', pattern));
+    base.andWhere((w) =>
+      w
+        .whereILike('c.name', pattern)
+        .orWhereILike('c.contact_email', pattern)
+        .orWhereILike('c.phone', pattern),
+    );
   }
   return fetchPage<ClientRow, Client>(
-    { base, columns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'c.id', map: toClient },
+    {
+      base,
+      columns,
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 'c.id',
+      map: toClient,
+    },
     query,
   );
 }
@@ -76,7 +102,11 @@ export async function getClient(viewer: SessionUser, id: string, knex: Knex = db
   return row ? toClient(row) : null;
 }
 
-export async function createClient(viewer: SessionUser, input: ClientCreate, knex: Knex = db()): Promise<Client> {
+export async function createClient(
+  viewer: SessionUser,
+  input: ClientCreate,
+  knex: Knex = db(),
+): Promise<Client> {
   const [row] = await knex('clients')
     .insert({ ...toRow(input), organisation_id: viewer.organisationId })
     .returning<ClientRow[]>(returnedColumns);
@@ -91,13 +121,22 @@ export async function createClient(viewer: SessionUser, input: ClientCreate, kne
  * A new address that already belongs to another account is refused (409, nothing changes).
  * Clearing the contact e-mail leaves the account as it is.
  */
-export async function updateClient(viewer: SessionUser, id: string, patch: ClientPatch, options: { ip?: string | null } = {}): Promise<Client | null> {
+export async function updateClient(
+  viewer: SessionUser,
+  id: string,
+  patch: ClientPatch,
+  options: { ip?: string | null } = {},
+): Promise<Client | null> {
   return db().transaction(async (trx) => {
-    const before = await trx('clients').where({ id, organisation_id: viewer.organisationId }).forUpdate().first<ClientRow | undefined>(returnedColumns);
+    const before = await trx('clients')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first<ClientRow | undefined>(returnedColumns);
     if (!before) return null;
     const oldEmail = before.contact_email;
     const newEmail = patch.contactEmail;
-    const emailChanged = newEmail !== undefined && (newEmail ?? '').toLowerCase() !== (oldEmail ?? '').toLowerCase();
+    const emailChanged =
+      newEmail !== undefined && (newEmail ?? '').toLowerCase() !== (oldEmail ?? '').toLowerCase();
     const [row] = await trx('clients')
       .where({ id, organisation_id: viewer.organisationId })
       .update({ ...toRow(patch), updated_at: trx.fn.now() })
@@ -112,16 +151,27 @@ export async function updateClient(viewer: SessionUser, id: string, patch: Clien
       if (accounts.length) {
         const taken = await trx('users').whereRaw('email = ?::citext', [newEmail]).first('id');
         if (taken) {
-          throw new HttpProblem(409, 'Another sign-in account already uses that e-mail address; the client was not changed.', {
-            errors: [{ field: 'contactEmail', message: 'already belongs to another sign-in account' }],
-          });
+          throw new HttpProblem(
+            409,
+            'Another sign-in account already uses that e-mail address; the client was not changed.',
+            {
+              errors: [{ field: 'contactEmail', message: 'already belongs to another sign-in account' }],
+            },
+          );
         }
       }
       for (const account of accounts) {
         await trx('users')
           .where({ id: account.id })
-          .update({ email: newEmail, session_version: trx.raw('session_version + 1'), updated_at: trx.fn.now() });
-        await trx('sign_in_links').where({ user_id: account.id }).whereNull('used_at').update({ used_at: trx.fn.now() });
+          .update({
+            email: newEmail,
+            session_version: trx.raw('session_version + 1'),
+            updated_at: trx.fn.now(),
+          });
+        await trx('sign_in_links')
+          .where({ user_id: account.id })
+          .whereNull('used_at')
+          .update({ used_at: trx.fn.now() });
         followers.push(account);
         await recordAudit(trx, {
           organisationId: viewer.organisationId,
@@ -131,12 +181,20 @@ export async function updateClient(viewer: SessionUser, id: string, patch: Clien
           entityType: 'user',
           entityId: account.id,
           ip: options.ip ?? null,
-          detail: { from: account.email, to: newEmail, clientId: id, reason: 'client contact e-mail corrected', sessionsEnded: true },
+          detail: {
+            from: account.email,
+            to: newEmail,
+            clientId: id,
+            reason: 'client contact e-mail corrected',
+            sessionsEnded: true,
+          },
         });
       }
     }
     const changed = Object.keys(toRow(patch)).filter(
-      (key) => (before as unknown as Record<string, unknown>)[key] !== (row as unknown as Record<string, unknown>)[key],
+      (key) =>
+        (before as unknown as Record<string, unknown>)[key] !==
+        (row as unknown as Record<string, unknown>)[key],
     );
     if (changed.length) {
       await recordAudit(trx, {
@@ -166,18 +224,28 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
   return db().transaction(async (trx) => {
     const client = await visibleClients(trx, viewer).andWhere('c.id', id).forUpdate().first('c.id');
     if (!client) return false;
-    const siteIds = trx('sites').select('id').where({ organisation_id: viewer.organisationId, client_id: id });
+    const siteIds = trx('sites')
+      .select('id')
+      .where({ organisation_id: viewer.organisationId, client_id: id });
     const gateIds = trx('gates').select('id').whereIn('site_id', siteIds);
     await trx('gates').whereIn('id', gateIds.clone()).forUpdate().select('id');
-    const [{ count: assessments }] = await trx('assessments').whereIn('gate_id', gateIds.clone()).count<{ count: string }[]>({ count: '*' });
+    const [{ count: assessments }] = await trx('assessments')
+      .whereIn('gate_id', gateIds.clone())
+      .count<{ count: string }[]>({ count: '*' });
     if (Number(assessments) > 0) {
-      throw new HttpProblem(409, `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`);
+      throw new HttpProblem(
+        409,
+        `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`,
+      );
     }
     const [{ count: accounts }] = await trx('users')
       .where({ organisation_id: viewer.organisationId, client_id: id })
       .count<{ count: string }[]>({ count: '*' });
     if (Number(accounts) > 0) {
-      throw new HttpProblem(409, `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`);
+      throw new HttpProblem(
+        409,
+        `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`,
+      );
     }
     await trx('gates').whereIn('id', gateIds).delete();
     await trx('sites').where({ organisation_id: viewer.organisationId, client_id: id }).delete();
@@ -190,7 +258,11 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
  * The addresses the office may pick to receive an assessment's signing link: the client's
  * contact e-mail and the e-mails of the client's active sign-in accounts, without repeats.
  */
-export async function signingContactsOfAssessment(organisationId: string, assessmentId: string, knex: Knex = db()): Promise<string[]> {
+export async function signingContactsOfAssessment(
+  organisationId: string,
+  assessmentId: string,
+  knex: Knex = db(),
+): Promise<string[]> {
   const client = await knex('assessments as a')
     .join('gates as g', 'g.id', 'a.gate_id')
     .join('sites as s', 's.id', 'g.site_id')
@@ -198,7 +270,10 @@ export async function signingContactsOfAssessment(organisationId: string, assess
     .where({ 'a.id': assessmentId, 'a.organisation_id': organisationId })
     .first<{ id: string; contact_email: string | null } | undefined>('c.id', 'c.contact_email');
   if (!client) return [];
-  const accounts = await knex('users').where({ organisation_id: organisationId, client_id: client.id, active: true }).orderBy('email').pluck<string[]>('email');
+  const accounts = await knex('users')
+    .where({ organisation_id: organisationId, client_id: client.id, active: true })
+    .orderBy('email')
+    .pluck<string[]>('email');
   const seen = new Set<string>();
   return [client.contact_email, ...accounts].filter((email): email is string => {
     if (!email || seen.has(email.toLowerCase())) return false;

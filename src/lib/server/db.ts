@@ -13,10 +13,15 @@ export function db(): Knex {
 }
 
 /** Round-trip time of a trivial query, or the error when the database is unreachable. */
-export async function pingDatabase(timeoutMs = 2000): Promise<{ ok: boolean; latencyMs: number | null; error?: string }> {
+export async function pingDatabase(
+  timeoutMs = 2000,
+): Promise<{ ok: boolean; latencyMs: number | null; error?: string }> {
   const started = performance.now();
   try {
-    await Promise.race([db().raw('select 1'), new Promise((_, reject) => setTimeout(() => reject(new Error('timed out')), timeoutMs))]);
+    await Promise.race([
+      db().raw('select 1'),
+      new Promise((_, reject) => setTimeout(() => reject(new Error('timed out')), timeoutMs)),
+    ]);
     return { ok: true, latencyMs: Math.round((performance.now() - started) * 100) / 100 };
   } catch (error) {
     return { ok: false, latencyMs: null, error: error instanceof Error ? error.message : String(error) };

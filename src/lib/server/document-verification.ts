@@ -45,7 +45,8 @@ export type DocumentReference = { sha256: string } | { documentId: string };
 export function referenceOf(text: string): DocumentReference | null {
   const value = text.trim().toLowerCase();
   if (/^[0-9a-f]{64}$/.test(value)) return { sha256: value };
-  if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value)) return { documentId: value };
+  if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value))
+    return { documentId: value };
   return null;
 }
 
@@ -54,10 +55,15 @@ export function referenceOf(text: string): DocumentReference | null {
  * takes uploads of up to 30 MB, so every check counts against the address (throttle.ts, kind
  * `verify`); a check without a known address is admitted.
  */
-export async function admitVerification(ip: string | null, knex: Knex = db()): Promise<{ admitted: true } | { admitted: false; retryAfterSeconds: number }> {
+export async function admitVerification(
+  ip: string | null,
+  knex: Knex = db(),
+): Promise<{ admitted: true } | { admitted: false; retryAfterSeconds: number }> {
   if (!ip) return { admitted: true };
   const verdict = await admitFromAddress(knex, 'verify', ip);
-  return verdict.throttled ? { admitted: false, retryAfterSeconds: verdict.retryAfterSeconds } : { admitted: true };
+  return verdict.throttled
+    ? { admitted: false, retryAfterSeconds: verdict.retryAfterSeconds }
+    : { admitted: true };
 }
 
 /** What a throttled visitor is told (API detail and page alike). */
@@ -69,7 +75,10 @@ export function sha256Of(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
 
-export async function verifyDocument(reference: DocumentReference, knex: Knex = db()): Promise<VerificationAnswer> {
+export async function verifyDocument(
+  reference: DocumentReference,
+  knex: Knex = db(),
+): Promise<VerificationAnswer> {
   const query = knex('documents as d')
     .join('organisations as o', 'o.id', 'd.organisation_id')
     .join('assessments as a', 'a.id', 'd.assessment_id')
@@ -79,7 +88,10 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
   else query.andWhere('d.id', reference.documentId);
   const row = await query
     .orderBy('d.created_at')
-    .first<{ id: string; sha256: string; organisation: string; signed_at: Date | null; created_at: Date } | undefined>(
+    .first<
+      | { id: string; sha256: string; organisation: string; signed_at: Date | null; created_at: Date }
+      | undefined
+    >(
       'd.id',
       'd.sha256',
       'o.name as organisation',
@@ -87,13 +99,24 @@ export async function verifyDocument(reference: DocumentReference, knex: Knex = 
       'd.created_at',
     );
   if (!row) return { match: false };
-  const answer: VerificationAnswer = { match: true, documentId: row.id, signedAt: iso(row.signed_at ?? row.created_at), organisation: row.organisation };
+  const answer: VerificationAnswer = {
+    match: true,
+    documentId: row.id,
+    signedAt: iso(row.signed_at ?? row.created_at),
+    organisation: row.organisation,
+  };
   // Read from the archive's own copy, so the fingerprint and trail head are those of the genuine file.
   const pdf = await storage()
     .get(row.sha256)
     .catch(() => null);
   const signer = pdf ? signerCertificateOfPdf(pdf) : null;
-  if (signer) answer.certificate = { sha256: signer.sha256, subject: signer.subject, issuer: signer.issuer, selfSigned: signer.selfSigned };
+  if (signer)
+    answer.certificate = {
+      sha256: signer.sha256,
+      subject: signer.subject,
+      issuer: signer.issuer,
+      selfSigned: signer.selfSigned,
+    };
   const auditTrail = pdf ? await trailAnswer(pdf, knex) : null;
   if (auditTrail) answer.auditTrail = auditTrail;
   return answer;

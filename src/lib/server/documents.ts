@@ -32,7 +32,16 @@ interface DocumentRow {
   created_at: Date;
 }
 
-const columns = ['d.id', 'd.assessment_id', 'd.kind', 'd.sha256', 'd.size_bytes', 'd.content_type', 'd.filename', 'd.created_at'];
+const columns = [
+  'd.id',
+  'd.assessment_id',
+  'd.kind',
+  'd.sha256',
+  'd.size_bytes',
+  'd.content_type',
+  'd.filename',
+  'd.created_at',
+];
 
 function toRecord(row: DocumentRow): DocumentRecord {
   return {
@@ -50,7 +59,15 @@ function toRecord(row: DocumentRow): DocumentRecord {
 /** Puts the bytes in file storage and records them; `id` may be chosen beforehand (it is printed in the PDF). */
 export async function storeDocument(
   trx: Knex.Transaction,
-  input: { id: string; organisationId: string; assessmentId: string; kind: DocumentKind; bytes: Buffer; filename: string; createdBy: string | null },
+  input: {
+    id: string;
+    organisationId: string;
+    assessmentId: string;
+    kind: DocumentKind;
+    bytes: Buffer;
+    filename: string;
+    createdBy: string | null;
+  },
 ): Promise<DocumentRecord> {
   const stored = await storage().put(input.bytes, 'application/pdf');
   const [row] = await trx('documents')
@@ -66,7 +83,16 @@ export async function storeDocument(
       filename: input.filename,
       created_by: input.createdBy,
     })
-    .returning(['id', 'assessment_id', 'kind', 'sha256', 'size_bytes', 'content_type', 'filename', 'created_at']);
+    .returning([
+      'id',
+      'assessment_id',
+      'kind',
+      'sha256',
+      'size_bytes',
+      'content_type',
+      'filename',
+      'created_at',
+    ]);
   return toRecord(row);
 }
 
@@ -82,12 +108,22 @@ function visibleDocuments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
   return query;
 }
 
-export async function getDocument(viewer: SessionUser, id: string, knex: Knex = db()): Promise<DocumentRecord | null> {
-  const row = await visibleDocuments(knex, viewer).andWhere('d.id', id).first<DocumentRow | undefined>(columns);
+export async function getDocument(
+  viewer: SessionUser,
+  id: string,
+  knex: Knex = db(),
+): Promise<DocumentRecord | null> {
+  const row = await visibleDocuments(knex, viewer)
+    .andWhere('d.id', id)
+    .first<DocumentRow | undefined>(columns);
   return row ? toRecord(row) : null;
 }
 
-export async function documentsOfAssessment(knex: Knex, organisationId: string, assessmentId: string): Promise<DocumentRecord[]> {
+export async function documentsOfAssessment(
+  knex: Knex,
+  organisationId: string,
+  assessmentId: string,
+): Promise<DocumentRecord[]> {
   const rows = await knex('documents as d')
     .where({ 'd.organisation_id': organisationId, 'd.assessment_id': assessmentId })
     .orderBy('d.created_at')
@@ -102,7 +138,11 @@ export async function documentById(knex: Knex, id: string): Promise<DocumentReco
 }
 
 /** The document row of one kind for an assessment (the newest), without an access check. */
-export async function latestDocument(knex: Knex, assessmentId: string, kind: DocumentKind): Promise<DocumentRecord | null> {
+export async function latestDocument(
+  knex: Knex,
+  assessmentId: string,
+  kind: DocumentKind,
+): Promise<DocumentRecord | null> {
   const row = await knex('documents as d')
     .where({ 'd.assessment_id': assessmentId, 'd.kind': kind })
     .orderBy('d.created_at', 'desc')

@@ -4,7 +4,12 @@
  * the calculator cannot use is refused with its own message, naming the line at fault.
  */
 import type { Knex } from 'knex';
-import { evaluateForceTrace, ForceTraceError, parseForceTraceCsv, type ForceTraceResult } from '@/lib/rules/calculators/force-trace';
+import {
+  evaluateForceTrace,
+  ForceTraceError,
+  parseForceTraceCsv,
+  type ForceTraceResult,
+} from '@/lib/rules/calculators/force-trace';
 import type { TraceLocation, TraceRecord } from '@/lib/walk/records';
 import { assertEditable, getAssessment } from './assessments';
 import { db } from './db';
@@ -29,7 +34,19 @@ interface TraceRow {
   created_at: Date;
 }
 
-const columns = ['id', 'assessment_id', 'client_ref', 'item_key', 'label', 'location', 'direction', 'gap_mm', 'samples', 'evaluation', 'created_at'];
+const columns = [
+  'id',
+  'assessment_id',
+  'client_ref',
+  'item_key',
+  'label',
+  'location',
+  'direction',
+  'gap_mm',
+  'samples',
+  'evaluation',
+  'created_at',
+];
 
 function toRecord(row: TraceRow): TraceRecord {
   return {
@@ -52,7 +69,11 @@ async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
   return assessment;
 }
 
-export async function listTraces(viewer: SessionUser, assessmentId: string, knex: Knex = db()): Promise<TraceRecord[]> {
+export async function listTraces(
+  viewer: SessionUser,
+  assessmentId: string,
+  knex: Knex = db(),
+): Promise<TraceRecord[]> {
   await visibleAssessment(viewer, assessmentId);
   const rows = await knex('force_traces')
     .where({ assessment_id: assessmentId, organisation_id: viewer.organisationId })
@@ -72,7 +93,11 @@ export interface NewTrace {
 }
 
 /** Parses and judges a force-meter CSV; the problem names the line (CSV) or the reason (trace). */
-export function judgeTrace(csv: string, gateKind: Parameters<typeof evaluateForceTrace>[1]['gateKind'], gapMm: number) {
+export function judgeTrace(
+  csv: string,
+  gateKind: Parameters<typeof evaluateForceTrace>[1]['gateKind'],
+  gapMm: number,
+) {
   try {
     const samples = parseForceTraceCsv(csv);
     return { samples, evaluation: evaluateForceTrace(samples, { gateKind, gapMm }) };
@@ -87,16 +112,27 @@ export function judgeTrace(csv: string, gateKind: Parameters<typeof evaluateForc
 }
 
 /** Stores a trace for a draft the viewer may edit; `created` is false when the device had already sent it. */
-export async function addTrace(viewer: SessionUser, assessmentId: string, trace: NewTrace): Promise<{ trace: TraceRecord; created: boolean }> {
+export async function addTrace(
+  viewer: SessionUser,
+  assessmentId: string,
+  trace: NewTrace,
+): Promise<{ trace: TraceRecord; created: boolean }> {
   const assessment = await visibleAssessment(viewer, assessmentId);
   assertEditable(viewer, assessment, undefined);
   const knex = db();
-  const existing = () => knex('force_traces').where({ assessment_id: assessmentId, client_ref: trace.clientRef }).first<TraceRow | undefined>(columns);
+  const existing = () =>
+    knex('force_traces')
+      .where({ assessment_id: assessmentId, client_ref: trace.clientRef })
+      .first<TraceRow | undefined>(columns);
   if (trace.clientRef) {
     const again = await existing();
     if (again) return { trace: toRecord(again), created: false };
   }
-  const { samples, evaluation } = judgeTrace(trace.csv, assessment.gate.kind as Parameters<typeof judgeTrace>[1], trace.gapMm);
+  const { samples, evaluation } = judgeTrace(
+    trace.csv,
+    assessment.gate.kind as Parameters<typeof judgeTrace>[1],
+    trace.gapMm,
+  );
   const stored = await storage().put(Buffer.from(trace.csv, 'utf8'), 'text/csv');
   try {
     const [row] = await knex('force_traces')
@@ -123,9 +159,15 @@ export async function addTrace(viewer: SessionUser, assessmentId: string, trace:
   }
 }
 
-export async function removeTrace(viewer: SessionUser, assessmentId: string, traceId: string): Promise<boolean> {
+export async function removeTrace(
+  viewer: SessionUser,
+  assessmentId: string,
+  traceId: string,
+): Promise<boolean> {
   const assessment = await visibleAssessment(viewer, assessmentId);
   assertEditable(viewer, assessment, undefined);
-  const deleted = await db()('force_traces').where({ id: traceId, assessment_id: assessmentId, organisation_id: viewer.organisationId }).delete();
+  const deleted = await db()('force_traces')
+    .where({ id: traceId, assessment_id: assessmentId, organisation_id: viewer.organisationId })
+    .delete();
   return deleted > 0;
 }

@@ -36,7 +36,17 @@ export interface OpenFinding {
 }
 
 export interface GateHistory {
-  gate: { id: string; label: string; kind: string; siteId: string; address: string; city: string; usageClass: number; clientId: string; clientName: string };
+  gate: {
+    id: string;
+    label: string;
+    kind: string;
+    siteId: string;
+    address: string;
+    city: string;
+    usageClass: number;
+    clientId: string;
+    clientName: string;
+  };
   visits: GateVisit[];
   /** The last scored visit the open findings come from (latest non-superseded with a result). */
   lastVisit: GateVisit | null;
@@ -59,12 +69,26 @@ interface VisitRow {
 
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
 
-export async function gateHistory(organisationId: string, gateId: string, knex: Knex = db()): Promise<GateHistory | null> {
+export async function gateHistory(
+  organisationId: string,
+  gateId: string,
+  knex: Knex = db(),
+): Promise<GateHistory | null> {
   const gate = await knex('gates as g')
     .join('sites as s', 's.id', 'g.site_id')
     .join('clients as c', 'c.id', 's.client_id')
     .where({ 'g.id': gateId, 'g.organisation_id': organisationId })
-    .first('g.id', 'g.label', 'g.kind', 's.id as site_id', 's.address_line1', 's.city', 's.usage_class', 'c.id as client_id', 'c.name as client_name');
+    .first(
+      'g.id',
+      'g.label',
+      'g.kind',
+      's.id as site_id',
+      's.address_line1',
+      's.city',
+      's.usage_class',
+      'c.id as client_id',
+      'c.name as client_name',
+    );
   if (!gate) return null;
 
   const rows = (await knex('assessments as a')
@@ -82,7 +106,9 @@ export async function gateHistory(organisationId: string, gateId: string, knex: 
       'rv.version',
       'u.name as auditor_name',
       knex.raw(`a.result -> 'areaScores' as area_scores`),
-      knex.raw(`jsonb_path_query_array(a.result, '$.findings[*] \\? (@.outcome == "fail").ruleId') as failed_rule_ids`),
+      knex.raw(
+        `jsonb_path_query_array(a.result, '$.findings[*] \\? (@.outcome == "fail").ruleId') as failed_rule_ids`,
+      ),
     )
     .orderByRaw(`${archiveDateSql} asc, a.id asc`)) as VisitRow[];
 
@@ -123,7 +149,9 @@ async function openFindingsOf(knex: Knex, last: GateVisit, scored: GateVisit[]):
   const row = await knex('assessments')
     .where({ id: last.assessmentId })
     .first<{ open: Omit<OpenFinding, 'failingSince' | 'visitsFailing'>[] | null }>(
-      knex.raw(`jsonb_path_query_array(result, '$.findings[*] \\? (@.outcome == "fail" || @.outcome == "needs_info")') as open`),
+      knex.raw(
+        `jsonb_path_query_array(result, '$.findings[*] \\? (@.outcome == "fail" || @.outcome == "needs_info")') as open`,
+      ),
     );
   const open = row?.open ?? [];
   const lastIndex = scored.indexOf(last);

@@ -5,7 +5,14 @@
  */
 import type { Knex } from 'knex';
 import type { Page } from '@/lib/api/common';
-import type { EnteredValue, Gate, GateCreate, GateListQuery, GatePatch, OperatorFacts } from '@/lib/api/gates';
+import type {
+  EnteredValue,
+  Gate,
+  GateCreate,
+  GateListQuery,
+  GatePatch,
+  OperatorFacts,
+} from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
@@ -85,7 +92,10 @@ const dimensionColumn = { width: 'width_mm', height: 'height_mm', weight: 'weigh
  * Columns to write for a create or a patch. `entered` is merged with what the row held, and
  * operator facts merge key by key (a null removes one), as in a JSON merge patch.
  */
-function toRow(input: GateCreate | GatePatch, previous: Pick<Gate, 'entered' | 'operator'> = { entered: {}, operator: {} }): Record<string, unknown> {
+function toRow(
+  input: GateCreate | GatePatch,
+  previous: Pick<Gate, 'entered' | 'operator'> = { entered: {}, operator: {} },
+): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (input.siteId !== undefined) row.site_id = input.siteId;
   if (input.label !== undefined) row.label = input.label;
@@ -94,7 +104,8 @@ function toRow(input: GateCreate | GatePatch, previous: Pick<Gate, 'entered' | '
   if (input.openingDirection !== undefined) row.opening_direction = input.openingDirection;
   if (input.installedOn !== undefined) row.installed_on = input.installedOn;
   if (input.nextInspectionDue !== undefined) row.next_inspection_due = input.nextInspectionDue;
-  if (input.operator !== undefined) row.operator = JSON.stringify(applyMergePatch(previous.operator, withoutUndefined(input.operator)));
+  if (input.operator !== undefined)
+    row.operator = JSON.stringify(applyMergePatch(previous.operator, withoutUndefined(input.operator)));
   const entered: Partial<Record<keyof typeof dimensionColumn, EnteredValue>> = { ...previous.entered };
   let enteredChanged = false;
   for (const dimension of ['width', 'height', 'weight'] as const) {
@@ -115,7 +126,9 @@ function withoutUndefined<T extends object>(value: T): T {
 
 /** The gates a viewer may see, joined to their site (for the client). */
 function visibleGates(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  const query = knex('gates as g').join('sites as s', 's.id', 'g.site_id').where('g.organisation_id', viewer.organisationId);
+  const query = knex('gates as g')
+    .join('sites as s', 's.id', 'g.site_id')
+    .where('g.organisation_id', viewer.organisationId);
   if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId);
   return query;
 }
@@ -129,7 +142,13 @@ export async function listGates(viewer: SessionUser, query: GateListQuery): Prom
   if (query.dueBy) base.andWhere('g.next_inspection_due', '<=', query.dueBy);
   if (query.q) base.andWhereILike('g.label', containsPattern(query.q));
   return fetchPage<GateRow, Gate>(
-    { base, columns: columns(knex), order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'g.id', map: toGate },
+    {
+      base,
+      columns: columns(knex),
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 'g.id',
+      map: toGate,
+    },
     query,
   );
 }
@@ -140,8 +159,14 @@ export async function getGate(viewer: SessionUser, id: string, knex: Knex = db()
 }
 
 async function assertSiteInOrganisation(knex: Knex, viewer: SessionUser, siteId: string): Promise<void> {
-  const site = await knex('sites').where({ id: siteId, organisation_id: viewer.organisationId }).forShare().first('id');
-  if (!site) throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'siteId', message: 'no such site in this organisation' }] });
+  const site = await knex('sites')
+    .where({ id: siteId, organisation_id: viewer.organisationId })
+    .forShare()
+    .first('id');
+  if (!site)
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+      errors: [{ field: 'siteId', message: 'no such site in this organisation' }],
+    });
 }
 
 export async function createGate(viewer: SessionUser, input: GateCreate, knex: Knex = db()): Promise<Gate> {
@@ -172,11 +197,19 @@ export async function updateGate(viewer: SessionUser, id: string, patch: GatePat
 /** Deletes a gate; refused (409) while it has an assessment on record. */
 export async function deleteGate(viewer: SessionUser, id: string): Promise<boolean> {
   return db().transaction(async (trx) => {
-    const gate = await trx('gates').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
+    const gate = await trx('gates')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first('id');
     if (!gate) return false;
-    const [{ count }] = await trx('assessments').where({ gate_id: id }).count<{ count: string }[]>({ count: '*' });
+    const [{ count }] = await trx('assessments')
+      .where({ gate_id: id })
+      .count<{ count: string }[]>({ count: '*' });
     if (Number(count) > 0) {
-      throw new HttpProblem(409, `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`);
+      throw new HttpProblem(
+        409,
+        `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`,
+      );
     }
     await trx('gates').where({ organisation_id: viewer.organisationId, id }).delete();
     return true;

@@ -80,5 +80,9 @@ export async function mailHealth(): Promise<MailHealth> {
     if (!last) await first;
   }
   const result = last ?? (await checkMail());
-  return { ok: result.ok, checkedAt: new Date(result.at).toISOString(), ageMs: Math.max(0, Date.now() - result.at) };
+  return {
+    ok: result.ok,
+    checkedAt: new Date(result.at).toISOString(),
+    ageMs: Math.max(0, Date.now() - result.at),
+  };
 }

@@ -30,7 +30,11 @@ function plainText(value: string): string {
 
 /** RFC 5545 §3.3.11 TEXT escaping, for the one value the package leaves unescaped. */
 function escapeText(value: string): string {
-  return plainText(value).replace(/\\/g, '\\\\').replace(/;/g, '\\;').replace(/,/g, '\\,').replace(/\n/g, '\\n');
+  return plainText(value)
+    .replace(/\\/g, '\\\\')
+    .replace(/;/g, '\\;')
+    .replace(/,/g, '\\,')
+    .replace(/\n/g, '\\n');
 }
 
 function dateArray(isoDate: string): DateArray {

@@ -51,7 +51,8 @@ interface PendingJob {
 
 function workerCount(): number {
   const configured = process.env.IMPACT_WORKERS;
-  if (configured !== undefined && configured !== '') return Math.max(0, Math.min(16, Number(configured) || 0));
+  if (configured !== undefined && configured !== '')
+    return Math.max(0, Math.min(16, Number(configured) || 0));
   const cores = os.availableParallelism();
   return cores >= 2 ? Math.min(4, cores) : 0;
 }

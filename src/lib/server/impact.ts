@@ -14,8 +14,20 @@
  * left out. `basis: 'all'` re-scores every signed assessment.
  */
 import type { Knex } from 'knex';
-import type { ImpactBasis, ImpactOutcome, ImpactReport, ImpactTarget, ResponsibleRule } from '@/lib/api/impact';
-import { AssessmentInputError, scoreParsed, type Finding, type LoadedRuleset, type RulesetVersion } from '@/lib/rules';
+import type {
+  ImpactBasis,
+  ImpactOutcome,
+  ImpactReport,
+  ImpactTarget,
+  ResponsibleRule,
+} from '@/lib/api/impact';
+import {
+  AssessmentInputError,
+  scoreParsed,
+  type Finding,
+  type LoadedRuleset,
+  type RulesetVersion,
+} from '@/lib/rules';
 import type { AssessmentDocuments, GateForScoring } from './assessment-input';
 import { buildEngineInput } from './assessment-input';
 import { archivedEngineInput } from './archived-input';
@@ -47,7 +59,11 @@ interface ImpactRow {
 }
 
 /** The published version `versionId` (a shipped family, or the organisation's own) and its family's other versions. */
-export async function impactTarget(organisationId: string, versionId: string, knex: Knex = db()): Promise<ImpactTarget | null> {
+export async function impactTarget(
+  organisationId: string,
+  versionId: string,
+  knex: Knex = db(),
+): Promise<ImpactTarget | null> {
   const target = await knex('ruleset_versions as rv')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
     .where('rv.id', versionId)
@@ -87,12 +103,23 @@ export async function impactCandidates(
     )
     .orderBy([{ column: 'r.family' }, { column: 'rv.published_at', order: 'desc' }])
     .select('rv.id', 'r.family', 'r.title', 'rv.version', 'rv.published_at');
-  return rows.map((r) => ({ id: r.id, family: r.family, title: r.title, version: r.version, publishedAt: r.published_at ? iso(r.published_at) : null }));
+  return rows.map((r) => ({
+    id: r.id,
+    family: r.family,
+    title: r.title,
+    version: r.version,
+    publishedAt: r.published_at ? iso(r.published_at) : null,
+  }));
 }
 
 async function loadTarget(knex: Knex, versionId: string): Promise<LoadedRuleset> {
-  const { content_sha256: sha } = await knex('ruleset_versions').where({ id: versionId }).first('content_sha256');
-  return loadedRuleset(sha, async () => (await knex('ruleset_versions').where({ id: versionId }).first('content')).content);
+  const { content_sha256: sha } = await knex('ruleset_versions')
+    .where({ id: versionId })
+    .first('content_sha256');
+  return loadedRuleset(
+    sha,
+    async () => (await knex('ruleset_versions').where({ id: versionId }).first('content')).content,
+  );
 }
 
 function gateForScoring(snapshot: ImpactRow['gate_snapshot']): GateForScoring | null {
@@ -114,9 +141,14 @@ function gateForScoring(snapshot: ImpactRow['gate_snapshot']): GateForScoring | 
 
 /** The findings that set a verdict: critical fails for withdraw; major fails and unchecked criticals for remedy. */
 function verdictDrivers(findings: readonly Finding[], verdict: Verdict): Finding[] {
-  if (verdict === 'withdraw') return findings.filter((f) => f.severity === 'critical' && f.outcome === 'fail');
+  if (verdict === 'withdraw')
+    return findings.filter((f) => f.severity === 'critical' && f.outcome === 'fail');
   if (verdict === 'remedy')
-    return findings.filter((f) => (f.severity === 'major' && f.outcome === 'fail') || (f.severity === 'critical' && f.outcome === 'needs_info'));
+    return findings.filter(
+      (f) =>
+        (f.severity === 'major' && f.outcome === 'fail') ||
+        (f.severity === 'critical' && f.outcome === 'needs_info'),
+    );
   return [];
 }
 
@@ -128,28 +160,49 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 type Driver = Pick<Finding, 'ruleId' | 'title' | 'area' | 'severity' | 'outcome'>;
 
 /** The new verdict of one stored assessment, or why it could not be had. */
-function rescoreVerdict(row: ImpactRow, target: LoadedRuleset): { after: Verdict; drivers: Driver[] } | { problem: string } {
+function rescoreVerdict(
+  row: ImpactRow,
+  target: LoadedRuleset,
+): { after: Verdict; drivers: Driver[] } | { problem: string } {
   const gate = gateForScoring(row.gate_snapshot);
   if (!gate) return { problem: 'the gate as scored was not recorded' };
-  const documents = { answers: row.answers ?? {}, measurements: row.measurements ?? {}, observations: row.observations ?? {} };
+  const documents = {
+    answers: row.answers ?? {},
+    measurements: row.measurements ?? {},
+    observations: row.observations ?? {},
+  };
   const questions = (target.version as RulesetVersion).questions;
   let result: ReturnType<typeof scoreParsed>;
   try {
     result = scoreParsed(archivedEngineInput(gate, documents, questions), target);
   } catch (error) {
-    if (error instanceof AssessmentInputError) return { problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
+    if (error instanceof AssessmentInputError)
+      return { problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
     // Not the shape it was signed with after all: take the validating road for a proper answer.
     const built = buildEngineInput(gate, documents, questions);
     if (!built.ok) return { problem: built.errors.map((e) => `${e.field}: ${e.message}`).join('; ') };
     try {
       result = scoreParsed(built.value, target);
     } catch (again) {
-      if (again instanceof AssessmentInputError) return { problem: again.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
+      if (again instanceof AssessmentInputError)
+        return { problem: again.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
       throw again;
     }
   }
-  const drivers = VERDICT_RANK[result.verdict] > VERDICT_RANK[row.verdict] ? verdictDrivers(result.findings, result.verdict) : [];
-  return { after: result.verdict, drivers: drivers.map(({ ruleId, title, area, severity, outcome }) => ({ ruleId, title, area, severity, outcome })) };
+  const drivers =
+    VERDICT_RANK[result.verdict] > VERDICT_RANK[row.verdict]
+      ? verdictDrivers(result.findings, result.verdict)
+      : [];
+  return {
+    after: result.verdict,
+    drivers: drivers.map(({ ruleId, title, area, severity, outcome }) => ({
+      ruleId,
+      title,
+      area,
+      severity,
+      outcome,
+    })),
+  };
 }
 
 type OldOutcomes = Record<string, [ResponsibleRule['before'], Finding['severity']]>;
@@ -159,7 +212,11 @@ function responsibleRules(drivers: Driver[], old: OldOutcomes): ResponsibleRule[
   return drivers
     .filter((f) => {
       const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
-      return !(outcome === f.outcome && severity !== null && SEVERITY_RANK[severity] <= SEVERITY_RANK[f.severity]);
+      return !(
+        outcome === f.outcome &&
+        severity !== null &&
+        SEVERITY_RANK[severity] <= SEVERITY_RANK[f.severity]
+      );
     })
     .map((f) => {
       const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
@@ -202,25 +259,41 @@ async function oldOutcomesOf(knex: Knex, ids: string[]): Promise<Map<string, Old
         `(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`,
       ),
     );
-  return new Map(rows.map((r: { id: string; old_outcomes: OldOutcomes | null }) => [r.id, r.old_outcomes ?? {}]));
+  return new Map(
+    rows.map((r: { id: string; old_outcomes: OldOutcomes | null }) => [r.id, r.old_outcomes ?? {}]),
+  );
 }
 
 /** Re-scores stored assessments against the target version. */
-export async function rescoreRows(knex: Knex, rows: ImpactRow[], target: LoadedRuleset, fromVersion: string): Promise<ImpactOutcome[]> {
+export async function rescoreRows(
+  knex: Knex,
+  rows: ImpactRow[],
+  target: LoadedRuleset,
+  fromVersion: string,
+): Promise<ImpactOutcome[]> {
   const scored: { row: ImpactRow; verdict: ReturnType<typeof rescoreVerdict> }[] = [];
   for (const row of rows) {
     scored.push({ row, verdict: rescoreVerdict(row, target) });
     // In the server's own thread, let other requests through every hundred or so.
     if (scored.length % 100 === 0) await yieldToEventLoop();
   }
-  const worse = scored.filter((s) => 'after' in s.verdict && VERDICT_RANK[s.verdict.after] > VERDICT_RANK[s.row.verdict]).map((s) => s.row.id);
+  const worse = scored
+    .filter((s) => 'after' in s.verdict && VERDICT_RANK[s.verdict.after] > VERDICT_RANK[s.row.verdict])
+    .map((s) => s.row.id);
   const old = await oldOutcomesOf(knex, worse);
   return scored.map(({ row, verdict }) => {
     const base = baseOutcome(row, fromVersion);
-    if ('problem' in verdict) return { ...base, after: null, change: 'unscorable', rules: [], problem: verdict.problem };
+    if ('problem' in verdict)
+      return { ...base, after: null, change: 'unscorable', rules: [], problem: verdict.problem };
     const delta = VERDICT_RANK[verdict.after] - VERDICT_RANK[row.verdict];
-    if (delta <= 0) return { ...base, after: verdict.after, change: delta < 0 ? 'better' : 'same', rules: [] };
-    return { ...base, after: verdict.after, change: 'worse', rules: responsibleRules(verdict.drivers, old.get(row.id) ?? {}) };
+    if (delta <= 0)
+      return { ...base, after: verdict.after, change: delta < 0 ? 'better' : 'same', rules: [] };
+    return {
+      ...base,
+      after: verdict.after,
+      change: 'worse',
+      rules: responsibleRules(verdict.drivers, old.get(row.id) ?? {}),
+    };
   });
 }
 
@@ -239,7 +312,13 @@ export interface ImpactSlice {
 }
 
 /** The signed assessments of one version the impact considers (see the module comment for `basis`). */
-function candidates(knex: Knex, organisationId: string, target: ImpactTarget, versionId: string, basis: ImpactBasis): Knex.QueryBuilder {
+function candidates(
+  knex: Knex,
+  organisationId: string,
+  target: ImpactTarget,
+  versionId: string,
+  basis: ImpactBasis,
+): Knex.QueryBuilder {
   const familyVersionIds = [target.id, ...target.otherVersions.map((v) => v.id)];
   const query = knex('assessments as a')
     .where({ 'a.organisation_id': organisationId, 'a.ruleset_version_id': versionId, 'a.status': 'signed' })
@@ -259,17 +338,34 @@ function candidates(knex: Knex, organisationId: string, target: ImpactTarget, ve
 }
 
 /** Slices of at most BATCH candidates each, found by reading ids only (keyset, id order). */
-async function* slicesOf(knex: Knex, organisationId: string, target: ImpactTarget, basis: ImpactBasis): AsyncGenerator<ImpactSlice> {
+async function* slicesOf(
+  knex: Knex,
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+): AsyncGenerator<ImpactSlice> {
   for (const from of target.otherVersions) {
     let afterId: string | null = null;
     for (;;) {
       const query = candidates(knex, organisationId, target, from.id, basis);
       if (afterId) query.andWhere('a.id', '>', afterId);
-      const [last] = (await knex.from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page')).orderBy('id', 'desc').limit(1).select('id')) as {
+      const [last] = (await knex
+        .from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page'))
+        .orderBy('id', 'desc')
+        .limit(1)
+        .select('id')) as {
         id: string;
       }[];
       if (!last) break;
-      yield { organisationId, target, versionId: from.id, fromVersion: from.version, basis, afterId, upToId: last.id };
+      yield {
+        organisationId,
+        target,
+        versionId: from.id,
+        fromVersion: from.version,
+        basis,
+        afterId,
+        upToId: last.id,
+      };
       afterId = last.id;
     }
   }
@@ -369,7 +465,13 @@ const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
   a.assessmentId.localeCompare(b.assessmentId);
 
 /** Counts every outcome and keeps the worse ones (up to `limit`, the most severe first). */
-export async function impactReport(organisationId: string, target: ImpactTarget, basis: ImpactBasis, limit = 500, knex: Knex = db()): Promise<ImpactReport> {
+export async function impactReport(
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+  limit = 500,
+  knex: Knex = db(),
+): Promise<ImpactReport> {
   const started = performance.now();
   const counts = { considered: 0, worse: 0, better: 0, same: 0, unscorable: 0 };
   let items: ImpactOutcome[] = [];
@@ -379,7 +481,11 @@ export async function impactReport(organisationId: string, target: ImpactTarget,
     counts.considered++;
     counts[outcome.change]++;
     if (outcome.change === 'unscorable' && unscorableSamples.length < 10)
-      unscorableSamples.push({ assessmentId: outcome.assessmentId, gateLabel: outcome.gateLabel, problem: outcome.problem });
+      unscorableSamples.push({
+        assessmentId: outcome.assessmentId,
+        gateLabel: outcome.gateLabel,
+        problem: outcome.problem,
+      });
     if (outcome.change !== 'worse') continue;
     items.push(outcome);
     // Keep memory bounded: trim to the most severe `limit` now and then.
@@ -416,7 +522,12 @@ const csvHeader = [
 ];
 
 /** The worse outcomes as CSV, written while the archive is re-scored. */
-export function impactCsv(organisationId: string, target: ImpactTarget, basis: ImpactBasis, knex: Knex = db()): ReadableStream<Uint8Array> {
+export function impactCsv(
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+  knex: Knex = db(),
+): ReadableStream<Uint8Array> {
   const encoder = new TextEncoder();
   const outcomes = rescoreArchive(organisationId, target, basis, knex);
   let headerSent = false;

@@ -3,7 +3,13 @@
  * and chooses their own name and password. The link's token is stored hashed; accepting it
  * creates the user and uses the invitation up in one transaction.
  */
-import { roleLabels, type Invitation, type InvitationAccept, type InvitationCreate, type StaffRole } from '@/lib/api/users';
+import {
+  roleLabels,
+  type Invitation,
+  type InvitationAccept,
+  type InvitationCreate,
+  type StaffRole,
+} from '@/lib/api/users';
 import { recordAudit } from './audit';
 import { invitationMail } from './auth/mails';
 import { linkOrigin } from './auth/public-origin';
@@ -28,7 +34,13 @@ interface InvitationRow {
 }
 
 function toInvitation(row: InvitationRow): Invitation {
-  return { id: row.id, email: row.email, role: row.role, expiresAt: iso(row.expires_at), createdAt: iso(row.created_at) };
+  return {
+    id: row.id,
+    email: row.email,
+    role: row.role,
+    expiresAt: iso(row.expires_at),
+    createdAt: iso(row.created_at),
+  };
 }
 
 /** Invitations not yet accepted, revoked or expired. */
@@ -49,7 +61,11 @@ export async function listOpenInvitations(organisationId: string): Promise<Invit
  * keeps it while SMTP is down). 409 when the address already has an account or another
  * organisation's open invitation.
  */
-export async function inviteStaff(organisationId: string, input: InvitationCreate, actor: Actor): Promise<Invitation> {
+export async function inviteStaff(
+  organisationId: string,
+  input: InvitationCreate,
+  actor: Actor,
+): Promise<Invitation> {
   const token = newLinkToken();
   const invitation = await db().transaction(async (trx) => {
     const existing = await trx('users').whereRaw('email = ?::citext', [input.email]).first('id');
@@ -78,7 +94,9 @@ export async function inviteStaff(organisationId: string, input: InvitationCreat
         .returning(['id', 'email', 'role', 'expires_at', 'created_at']);
     } catch (error) {
       if (pgErrorCode(error) === UNIQUE_VIOLATION) {
-        throw new HttpProblem(409, 'This address already has an open invitation elsewhere.', { errors: [{ field: 'email', message: 'already invited' }] });
+        throw new HttpProblem(409, 'This address already has an open invitation elsewhere.', {
+          errors: [{ field: 'email', message: 'already invited' }],
+        });
       }
       throw error;
     }
@@ -93,8 +111,21 @@ export async function inviteStaff(organisationId: string, input: InvitationCreat
       detail: { email: input.email, role: input.role, replaced: revoked.length },
     });
     const org = await trx('organisations').where({ id: organisationId }).first('name');
-    const mail = invitationMail(org.name, actor.user.name, roleLabels[input.role], `${linkOrigin()}/invite/${token}`, invitationValidDays);
-    await enqueueMail(trx, { organisationId, kind: 'invitation', to: [input.email], ...mail, relatedType: 'invitation', relatedId: row.id });
+    const mail = invitationMail(
+      org.name,
+      actor.user.name,
+      roleLabels[input.role],
+      `${linkOrigin()}/invite/${token}`,
+      invitationValidDays,
+    );
+    await enqueueMail(trx, {
+      organisationId,
+      kind: 'invitation',
+      to: [input.email],
+      ...mail,
+      relatedType: 'invitation',
+      relatedId: row.id,
+    });
     return row;
   });
   wakeOutboxWorker();
@@ -144,8 +175,13 @@ export async function findOpenInvitation(token: string): Promise<OpenInvitation 
 }
 
 /** Creates the invited person's account; 404 when the link is used, revoked, expired or unknown. */
-export async function acceptInvitation(token: string, input: InvitationAccept, ip: string | null): Promise<{ id: string; email: string; role: StaffRole }> {
-  if (!looksLikeLinkToken(token)) throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
+export async function acceptInvitation(
+  token: string,
+  input: InvitationAccept,
+  ip: string | null,
+): Promise<{ id: string; email: string; role: StaffRole }> {
+  if (!looksLikeLinkToken(token))
+    throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
   const passwordHash = await hashPassword(input.password);
   return db().transaction(async (trx) => {
     const invitation = await trx('invitations')
@@ -155,17 +191,27 @@ export async function acceptInvitation(token: string, input: InvitationAccept, i
       .andWhere('expires_at', '>', trx.fn.now())
       .forUpdate()
       .first('id', 'organisation_id', 'email', 'role');
-    if (!invitation) throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
+    if (!invitation)
+      throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
     let user: { id: string; email: string; role: StaffRole };
     try {
       [user] = await trx('users')
-        .insert({ organisation_id: invitation.organisation_id, email: invitation.email, name: input.name, role: invitation.role, password_hash: passwordHash })
+        .insert({
+          organisation_id: invitation.organisation_id,
+          email: invitation.email,
+          name: input.name,
+          role: invitation.role,
+          password_hash: passwordHash,
+        })
         .returning(['id', 'email', 'role']);
     } catch (error) {
-      if (pgErrorCode(error) === UNIQUE_VIOLATION) throw new HttpProblem(409, 'Someone with this e-mail address already has an account.');
+      if (pgErrorCode(error) === UNIQUE_VIOLATION)
+        throw new HttpProblem(409, 'Someone with this e-mail address already has an account.');
       throw error;
     }
-    await trx('invitations').where({ id: invitation.id }).update({ accepted_at: trx.fn.now(), accepted_user_id: user.id });
+    await trx('invitations')
+      .where({ id: invitation.id })
+      .update({ accepted_at: trx.fn.now(), accepted_user_id: user.id });
     await recordAudit(trx, {
       organisationId: invitation.organisation_id,
       actorUserId: user.id,

@@ -21,7 +21,10 @@ export interface ListPlan<Row, Item> {
   map: (row: Row) => Item;
 }
 
-export async function fetchPage<Row, Item>(plan: ListPlan<Row, Item>, request: PageRequest): Promise<Page<Item>> {
+export async function fetchPage<Row, Item>(
+  plan: ListPlan<Row, Item>,
+  request: PageRequest,
+): Promise<Page<Item>> {
   const { base, columns, order, idColumn, map } = plan;
   const nulls = order.direction === 'asc' ? 'nulls last' : 'nulls first';
   const [rows, [{ total }]] = await Promise.all([

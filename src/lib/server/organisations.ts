@@ -15,7 +15,15 @@ export interface OrganisationRow {
   remind_clients: boolean;
 }
 
-export const organisationColumns = ['id', 'name', 'slug', 'display_units', 'time_zone', 'reinspection_months', 'remind_clients'] as const;
+export const organisationColumns = [
+  'id',
+  'name',
+  'slug',
+  'display_units',
+  'time_zone',
+  'reinspection_months',
+  'remind_clients',
+] as const;
 
 export function toSessionOrganisation(row: OrganisationRow): SessionOrganisation {
   return {
@@ -30,7 +38,9 @@ export function toSessionOrganisation(row: OrganisationRow): SessionOrganisation
 }
 
 export async function getOrganisation(id: string): Promise<SessionOrganisation | null> {
-  const row = await db()('organisations').where({ id }).first<OrganisationRow | undefined>(organisationColumns);
+  const row = await db()('organisations')
+    .where({ id })
+    .first<OrganisationRow | undefined>(organisationColumns);
   return row ? toSessionOrganisation(row) : null;
 }
 
@@ -43,9 +53,16 @@ const columnOf: Record<keyof OrganisationPatch, keyof OrganisationRow> = {
 };
 
 /** Applies the owner's changes and records what changed from what. */
-export async function updateOrganisation(id: string, patch: OrganisationPatch, actor: Actor): Promise<SessionOrganisation | null> {
+export async function updateOrganisation(
+  id: string,
+  patch: OrganisationPatch,
+  actor: Actor,
+): Promise<SessionOrganisation | null> {
   return db().transaction(async (trx) => {
-    const before = await trx('organisations').where({ id }).forUpdate().first<OrganisationRow | undefined>(organisationColumns);
+    const before = await trx('organisations')
+      .where({ id })
+      .forUpdate()
+      .first<OrganisationRow | undefined>(organisationColumns);
     if (!before) return null;
     const changes: Partial<Record<keyof OrganisationRow, unknown>> = {};
     const detail: Record<string, { from: unknown; to: unknown }> = {};
@@ -56,7 +73,10 @@ export async function updateOrganisation(id: string, patch: OrganisationPatch, a
       detail[field] = { from: before[column], to: value };
     }
     if (Object.keys(changes).length === 0) return toSessionOrganisation(before);
-    const [after] = await trx('organisations').where({ id }).update(changes).returning<OrganisationRow[]>(organisationColumns);
+    const [after] = await trx('organisations')
+      .where({ id })
+      .update(changes)
+      .returning<OrganisationRow[]>(organisationColumns);
     await recordAudit(trx, {
       organisationId: id,
       actorUserId: actor.user.id,

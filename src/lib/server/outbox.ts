@@ -74,7 +74,11 @@ export function outboxSettings(): OutboxSettings {
 }
 
 /** Delay before attempt `attempts + 1`: base × 2^(attempts − 1), capped, with ±20 % jitter. */
-export function retryDelayMs(attempts: number, settings: Pick<OutboxSettings, 'retryBaseMs' | 'retryMaxMs'>, random = Math.random): number {
+export function retryDelayMs(
+  attempts: number,
+  settings: Pick<OutboxSettings, 'retryBaseMs' | 'retryMaxMs'>,
+  random = Math.random,
+): number {
   const exponential = settings.retryBaseMs * 2 ** Math.max(0, attempts - 1);
   const capped = Math.min(settings.retryMaxMs, exponential);
   return Math.round(capped * (0.8 + 0.4 * random()));
@@ -106,7 +110,12 @@ export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessa
  * body is replaced by a note, so the database (and its backups) keeps no usable token: the
  * tables hold only the tokens' hashes.
  */
-export const oneTimeLinkKinds: readonly string[] = ['sign_in_link', 'password_reset', 'invitation', 'sign_request'];
+export const oneTimeLinkKinds: readonly string[] = [
+  'sign_in_link',
+  'password_reset',
+  'invitation',
+  'sign_request',
+];
 export const sentLinkNote = 'Sent. The one-time link in this message is not kept.';
 
 interface ClaimedMessage {
@@ -144,7 +153,17 @@ export async function claimDueMessages(knex: Knex, settings: OutboxSettings): Pr
         attempts: trx.raw('attempts + 1'),
         next_attempt_at: trx.raw(`now() + (? * interval '1 millisecond')`, [settings.leaseMs]),
       })
-      .returning(['id', 'kind', 'to_addresses', 'cc_addresses', 'subject', 'text_body', 'html_body', 'attachments', 'attempts']) as Promise<ClaimedMessage[]>;
+      .returning([
+        'id',
+        'kind',
+        'to_addresses',
+        'cc_addresses',
+        'subject',
+        'text_body',
+        'html_body',
+        'attachments',
+        'attempts',
+      ]) as Promise<ClaimedMessage[]>;
   });
 }
 
@@ -174,13 +193,18 @@ export interface DeliveryReport {
 }
 
 /** One pass: claim what is due, send it, record the outcome. */
-export async function deliverDueMessages(knex: Knex = db(), settings = outboxSettings()): Promise<DeliveryReport> {
+export async function deliverDueMessages(
+  knex: Knex = db(),
+  settings = outboxSettings(),
+): Promise<DeliveryReport> {
   const report: DeliveryReport = { sent: 0, retried: 0, failed: 0 };
   const claimed = await claimDueMessages(knex, settings);
   for (const message of claimed) {
     try {
       await sendOne(message);
-      const redacted = oneTimeLinkKinds.includes(message.kind) ? { text_body: sentLinkNote, html_body: null } : {};
+      const redacted = oneTimeLinkKinds.includes(message.kind)
+        ? { text_body: sentLinkNote, html_body: null }
+        : {};
       await knex('outbox_messages')
         .where({ id: message.id })
         .update({ status: 'sent', sent_at: knex.fn.now(), last_error: null, ...redacted });
@@ -188,13 +212,19 @@ export async function deliverDueMessages(knex: Knex = db(), settings = outboxSet
     } catch (error) {
       const lastError = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
       if (message.attempts >= settings.maxAttempts) {
-        await knex('outbox_messages').where({ id: message.id }).update({ status: 'failed', last_error: lastError });
+        await knex('outbox_messages')
+          .where({ id: message.id })
+          .update({ status: 'failed', last_error: lastError });
         report.failed++;
       } else {
         const delay = retryDelayMs(message.attempts, settings);
         await knex('outbox_messages')
           .where({ id: message.id })
-          .update({ status: 'queued', last_error: lastError, next_attempt_at: knex.raw(`now() + (? * interval '1 millisecond')`, [delay]) });
+          .update({
+            status: 'queued',
+            last_error: lastError,
+            next_attempt_at: knex.raw(`now() + (? * interval '1 millisecond')`, [delay]),
+          });
         report.retried++;
       }
     }
@@ -266,11 +296,27 @@ export interface OutboxMessageStatus {
 }
 
 /** Messages about one record (e.g. an assessment), newest first, for the UI and API. */
-export async function messagesAbout(knex: Knex, organisationId: string, relatedType: string, relatedId: string): Promise<OutboxMessageStatus[]> {
+export async function messagesAbout(
+  knex: Knex,
+  organisationId: string,
+  relatedType: string,
+  relatedId: string,
+): Promise<OutboxMessageStatus[]> {
   const rows = await knex('outbox_messages')
     .where({ organisation_id: organisationId, related_type: relatedType, related_id: relatedId })
     .orderBy('created_at', 'desc')
-    .select('id', 'kind', 'to_addresses', 'subject', 'status', 'attempts', 'next_attempt_at', 'last_error', 'created_at', 'sent_at');
+    .select(
+      'id',
+      'kind',
+      'to_addresses',
+      'subject',
+      'status',
+      'attempts',
+      'next_attempt_at',
+      'last_error',
+      'created_at',
+      'sent_at',
+    );
   return rows.map((r) => ({
     id: r.id,
     kind: r.kind,
@@ -278,7 +324,8 @@ export async function messagesAbout(knex: Knex, organisationId: string, relatedT
     subject: r.subject,
     status: r.status,
     attempts: r.attempts,
-    nextAttemptAt: r.status === 'sent' || r.status === 'failed' ? null : new Date(r.next_attempt_at).toISOString(),
+    nextAttemptAt:
+      r.status === 'sent' || r.status === 'failed' ? null : new Date(r.next_attempt_at).toISOString(),
     lastError: r.last_error,
     createdAt: new Date(r.created_at).toISOString(),
     sentAt: r.sent_at ? new Date(r.sent_at).toISOString() : null,
@@ -294,11 +341,19 @@ export interface UndeliveredMessage extends OutboxMessageStatus {
  * The organisation's mail that has not gone out: refused at least once and still waiting, or
  * given up on. A message not tried yet is on its way, not undelivered. Newest first.
  */
-export async function undeliveredMessages(knex: Knex, organisationId: string, limit = 20): Promise<{ items: UndeliveredMessage[]; total: number }> {
+export async function undeliveredMessages(
+  knex: Knex,
+  organisationId: string,
+  limit = 20,
+): Promise<{ items: UndeliveredMessage[]; total: number }> {
   const base = () =>
     knex('outbox_messages')
       .where({ organisation_id: organisationId })
-      .andWhere((w) => w.where('status', 'failed').orWhere((q) => q.whereIn('status', ['queued', 'sending']).andWhere('attempts', '>', 0)));
+      .andWhere((w) =>
+        w
+          .where('status', 'failed')
+          .orWhere((q) => q.whereIn('status', ['queued', 'sending']).andWhere('attempts', '>', 0)),
+      );
   const [rows, [{ n }]] = await Promise.all([
     base()
       .orderBy('created_at', 'desc')

@@ -7,7 +7,10 @@ export function hashPassword(password: string): Promise<string> {
   return hash(password, options);
 }
 
-export async function verifyPassword(passwordHash: string | null | undefined, password: string): Promise<boolean> {
+export async function verifyPassword(
+  passwordHash: string | null | undefined,
+  password: string,
+): Promise<boolean> {
   if (!passwordHash) return false;
   try {
     return await verify(passwordHash, password);

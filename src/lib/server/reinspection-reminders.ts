@@ -18,7 +18,14 @@ import { db } from './db';
 import { calendarOf, type DueEvent } from './ics';
 import { enqueueMail, wakeOutboxWorker } from './outbox';
 import { formatCalendarDate } from '@/lib/vocabulary';
-import { AWAITING_FIXES_WORDS, DUE_SOON_DAYS, dueGates, dueWordsOf, reminderKeyOf, type DueGate } from './reinspection';
+import {
+  AWAITING_FIXES_WORDS,
+  DUE_SOON_DAYS,
+  dueGates,
+  dueWordsOf,
+  reminderKeyOf,
+  type DueGate,
+} from './reinspection';
 import { storage } from './storage';
 
 export interface ReminderActor {
@@ -68,21 +75,40 @@ async function calendarAttachments(gates: DueGate[], organisationName: string, n
 async function storeCalendar(events: DueEvent[], name: string) {
   const bytes = Buffer.from(calendarOf(events, name), 'utf8');
   const stored = await storage().put(bytes, 'text/calendar');
-  return { filename: 'reinspection.ics', contentType: 'text/calendar; charset=utf-8', storageKey: stored.key };
+  return {
+    filename: 'reinspection.ics',
+    contentType: 'text/calendar; charset=utf-8',
+    storageKey: stored.key,
+  };
 }
 
 /** Who reads office mail: the active office staff, or the owners when there are none. */
 async function officeAddresses(knex: Knex, organisationId: string): Promise<string[]> {
-  const rows = await knex('users').where({ organisation_id: organisationId, active: true }).whereIn('role', ['office', 'owner']).select('email', 'role');
+  const rows = await knex('users')
+    .where({ organisation_id: organisationId, active: true })
+    .whereIn('role', ['office', 'owner'])
+    .select('email', 'role');
   const office = rows.filter((r) => r.role === 'office');
   return (office.length ? office : rows).map((r) => String(r.email));
 }
 
 /** Claims the (gate, due date, recipient) rows not reminded yet; returns the gate ids claimed. */
-async function claim(trx: Knex.Transaction, organisationId: string, gates: DueGate[], recipient: 'office' | 'client'): Promise<Set<string>> {
+async function claim(
+  trx: Knex.Transaction,
+  organisationId: string,
+  gates: DueGate[],
+  recipient: 'office' | 'client',
+): Promise<Set<string>> {
   if (!gates.length) return new Set();
   const rows = await trx('reinspection_reminders')
-    .insert(gates.map((g) => ({ organisation_id: organisationId, gate_id: g.gateId, due_on: reminderKeyOf(g), recipient })))
+    .insert(
+      gates.map((g) => ({
+        organisation_id: organisationId,
+        gate_id: g.gateId,
+        due_on: reminderKeyOf(g),
+        recipient,
+      })),
+    )
     .onConflict(['gate_id', 'due_on', 'recipient'])
     .ignore()
     .returning('gate_id');
@@ -90,7 +116,10 @@ async function claim(trx: Knex.Transaction, organisationId: string, gates: DueGa
 }
 
 /** Queues reminders for every gate overdue or due within DUE_SOON_DAYS that has not had one. */
-export async function queueReinspectionReminders(organisation: SessionOrganisation, actor: ReminderActor): Promise<ReminderOutcome> {
+export async function queueReinspectionReminders(
+  organisation: SessionOrganisation,
+  actor: ReminderActor,
+): Promise<ReminderOutcome> {
   const knex = db();
   const due = await dueGates(organisation.id, DUE_SOON_DAYS, knex);
   const outcome: ReminderOutcome = { officeGates: 0, clientMessages: 0, alreadyReminded: 0 };
@@ -103,7 +132,11 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
     outcome.alreadyReminded = due.length - officeGates.length;
     const office = await officeAddresses(trx, organisation.id);
     if (officeGates.length && office.length) {
-      const attachments = await calendarAttachments(officeGates, organisation.name, `${organisation.name}: re-inspections`);
+      const attachments = await calendarAttachments(
+        officeGates,
+        organisation.name,
+        `${organisation.name}: re-inspections`,
+      );
       const dated = officeGates.filter((g) => g.dueOn !== null);
       const awaiting = officeGates.filter((g) => g.dueOn === null);
       const messageId = await enqueueMail(trx, {
@@ -120,7 +153,14 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
                 '',
               ]
             : []),
-          ...(dated.length ? ['These gates are due (or overdue) for their safety re-inspection:', '', ...dated.map(dueLine), ''] : []),
+          ...(dated.length
+            ? [
+                'These gates are due (or overdue) for their safety re-inspection:',
+                '',
+                ...dated.map(dueLine),
+                '',
+              ]
+            : []),
           attachments.length
             ? `The attached calendar file has one all-day entry per gate with a date${awaiting.length ? ' (none for gates awaiting fixes)' : ''}.`
             : 'No calendar file: none of these gates has a date yet.',
@@ -142,10 +182,15 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
       const withEmail = due.filter((g) => g.clientEmail);
       const claimedClient = await claim(trx, organisation.id, withEmail, 'client');
       const byClient = new Map<string, DueGate[]>();
-      for (const gate of withEmail.filter((g) => claimedClient.has(g.gateId))) byClient.set(gate.clientId, [...(byClient.get(gate.clientId) ?? []), gate]);
+      for (const gate of withEmail.filter((g) => claimedClient.has(g.gateId)))
+        byClient.set(gate.clientId, [...(byClient.get(gate.clientId) ?? []), gate]);
       for (const gates of byClient.values()) {
         const first = gates[0]!;
-        const attachments = await calendarAttachments(gates, organisation.name, `${organisation.name}: gate re-inspection`);
+        const attachments = await calendarAttachments(
+          gates,
+          organisation.name,
+          `${organisation.name}: gate re-inspection`,
+        );
         const dated = gates.filter((g) => g.dueOn !== null);
         const awaiting = gates.filter((g) => g.dueOn === null);
         const messageId = await enqueueMail(trx, {
@@ -168,7 +213,9 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
               ? [
                   `${awaiting.length === 1 ? 'This gate was' : 'These gates were'} withdrawn from service at the last inspection; we re-visit when the fixes are reported:`,
                   '',
-                  ...awaiting.map((g) => `- ${g.gateLabel}, ${g.siteAddress}, ${g.siteCity}: ${AWAITING_FIXES_WORDS}`),
+                  ...awaiting.map(
+                    (g) => `- ${g.gateLabel}, ${g.siteAddress}, ${g.siteCity}: ${AWAITING_FIXES_WORDS}`,
+                  ),
                   '',
                 ]
               : []),
@@ -201,7 +248,11 @@ export async function queueReinspectionReminders(organisation: SessionOrganisati
         entityType: 'organisation',
         entityId: organisation.id,
         ip: actor.ip,
-        detail: { officeGates: outcome.officeGates, clientMessages: outcome.clientMessages, gateIds: officeGates.map((g) => g.gateId).slice(0, 200) },
+        detail: {
+          officeGates: outcome.officeGates,
+          clientMessages: outcome.clientMessages,
+          gateIds: officeGates.map((g) => g.gateId).slice(0, 200),
+        },
       });
     }
   });

@@ -84,7 +84,11 @@ interface DueRow {
  * `gateId` narrows it to one gate; `dueWithinDays` keeps those due on or before today + that many
  * days, and those awaiting fixes whatever the window.
  */
-function dueGatesQuery(knex: Knex, organisationId: string, options: { gateId?: string; dueWithinDays?: number }): Knex.Raw {
+function dueGatesQuery(
+  knex: Knex,
+  organisationId: string,
+  options: { gateId?: string; dueWithinDays?: number },
+): Knex.Raw {
   const bindings: Knex.RawBinding[] = [organisationId, organisationId];
   let gateFilter = '';
   if (options.gateId) {
@@ -148,7 +152,13 @@ function dueGatesQuery(knex: Knex, organisationId: string, options: { gateId?: s
 }
 
 const stateOf = (daysLeft: number | null): DueState =>
-  daysLeft === null ? 'awaiting_fixes' : daysLeft < 0 ? 'overdue' : daysLeft <= DUE_SOON_DAYS ? 'due' : 'later';
+  daysLeft === null
+    ? 'awaiting_fixes'
+    : daysLeft < 0
+      ? 'overdue'
+      : daysLeft <= DUE_SOON_DAYS
+        ? 'due'
+        : 'later';
 
 /**
  * The date a reminder about this gate is keyed by (`reinspection_reminders.due_on`): the due
@@ -186,12 +196,20 @@ function toDueGate(row: DueRow): DueGate {
 }
 
 /** Gates awaiting fixes, then those overdue or due within `withinDays` (default DUE_SOON_DAYS), soonest first. */
-export async function dueGates(organisationId: string, withinDays = DUE_SOON_DAYS, knex: Knex = db()): Promise<DueGate[]> {
+export async function dueGates(
+  organisationId: string,
+  withinDays = DUE_SOON_DAYS,
+  knex: Knex = db(),
+): Promise<DueGate[]> {
   const result = await dueGatesQuery(knex, organisationId, { dueWithinDays: withinDays });
   return (result.rows as DueRow[]).map(toDueGate);
 }
 
-export async function reinspectionOfGate(organisationId: string, gateId: string, knex: Knex = db()): Promise<DueGate | null> {
+export async function reinspectionOfGate(
+  organisationId: string,
+  gateId: string,
+  knex: Knex = db(),
+): Promise<DueGate | null> {
   const result = await dueGatesQuery(knex, organisationId, { gateId });
   const row = (result.rows as DueRow[])[0];
   return row ? toDueGate(row) : null;
@@ -205,7 +223,10 @@ export function dueWordsOf(gate: Pick<GateReinspection, 'daysLeft'>): string {
 }
 
 /** Where the gate's date (or state) comes from, in words, for the archive pages. */
-export function dueSourceWords(gate: Pick<GateReinspection, 'source' | 'resultAfterDays' | 'lastSignedVisit' | 'state'>, reinspectionMonths: number): string {
+export function dueSourceWords(
+  gate: Pick<GateReinspection, 'source' | 'resultAfterDays' | 'lastSignedVisit' | 'state'>,
+  reinspectionMonths: number,
+): string {
   if (gate.source === 'set') return 'Date set on the gate.';
   if (gate.state === 'awaiting_fixes')
     return `Withdrawn from service at the last signed visit (${formatCalendarDate(gate.lastSignedVisit)}): ${AWAITING_FIXES_WORDS}.`;

@@ -63,7 +63,11 @@ interface AssessmentRow {
 }
 
 /** The assessment with its people, site, gate and ruleset, or null when not in the organisation. */
-export async function loadAssessmentForReport(knex: Knex, organisationId: string, assessmentId: string): Promise<AssessmentRow | null> {
+export async function loadAssessmentForReport(
+  knex: Knex,
+  organisationId: string,
+  assessmentId: string,
+): Promise<AssessmentRow | null> {
   const row = await knex('assessments as a')
     .join('organisations as o', 'o.id', 'a.organisation_id')
     .join('users as u', 'u.id', 'a.auditor_id')
@@ -118,16 +122,28 @@ export async function loadAssessmentForReport(knex: Knex, organisationId: string
 
 function areaTitles(areas: unknown): Record<string, string> {
   const titles: Record<string, string> = {};
-  if (Array.isArray(areas)) for (const a of areas) if (a && typeof a.key === 'string' && typeof a.title === 'string') titles[a.key] = a.title;
+  if (Array.isArray(areas))
+    for (const a of areas)
+      if (a && typeof a.key === 'string' && typeof a.title === 'string') titles[a.key] = a.title;
   return titles;
 }
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 
-function swingGeometryOf(observations: Record<string, unknown> | null, row: AssessmentRow): SwingGeometryMeasurements | null {
+function swingGeometryOf(
+  observations: Record<string, unknown> | null,
+  row: AssessmentRow,
+): SwingGeometryMeasurements | null {
   const g = observations?.swingGeometry as Record<string, unknown> | undefined;
   if (!g) return null;
-  const fields = ['aMm', 'bMm', 'bracketFromHingeMm', 'retractedLengthMm', 'strokeMm', 'targetOpeningDeg'] as const;
+  const fields = [
+    'aMm',
+    'bMm',
+    'bracketFromHingeMm',
+    'retractedLengthMm',
+    'strokeMm',
+    'targetOpeningDeg',
+  ] as const;
   const values = fields.map((f) => num(g[f]));
   if (values.some((v) => v === null)) return null;
   const [aMm, bMm, bracketFromHingeMm, retractedLengthMm, strokeMm, targetOpeningDeg] = values as number[];
@@ -148,7 +164,10 @@ function samplesOf(raw: unknown): Array<[number, number]> {
 }
 
 async function forceTracesOf(knex: Knex, row: AssessmentRow): Promise<ReportForceTrace[]> {
-  const rows = await knex('force_traces').where({ assessment_id: row.id }).orderBy('created_at').select('item_key', 'label', 'samples', 'evaluation');
+  const rows = await knex('force_traces')
+    .where({ assessment_id: row.id })
+    .orderBy('created_at')
+    .select('item_key', 'label', 'samples', 'evaluation');
   const traces: ReportForceTrace[] = rows.map((t) => {
     const e = (t.evaluation ?? {}) as { peak?: unknown; limits?: { peakN?: unknown }; overallPass?: unknown };
     return {
@@ -162,7 +181,9 @@ async function forceTracesOf(knex: Knex, row: AssessmentRow): Promise<ReportForc
   });
   if (traces.length) return traces.filter((t) => t.samples.length >= 2);
   // No uploaded traces: plot the raw samples of force tests recorded in the observations.
-  const tests = Array.isArray(row.observations?.forceTests) ? (row.observations.forceTests as Array<Record<string, unknown>>) : [];
+  const tests = Array.isArray(row.observations?.forceTests)
+    ? (row.observations.forceTests as Array<Record<string, unknown>>)
+    : [];
   return tests
     .map((test, i) => ({
       label: `${String(test.location ?? 'point').replace(/_/g, ' ')}, ${String(test.direction ?? '')}, gap ${num(test.gapMm) ?? '?'} mm`,
@@ -182,11 +203,24 @@ async function photosOf(knex: Knex, assessmentId: string): Promise<ReportPhoto[]
     .select('item_key', 'caption', 'display_sha256', 'display_content_type', 'width', 'height', 'taken_at');
   const photos = await Promise.all(
     rows.map(async (p): Promise<ReportPhoto | null> => {
-      const format = p.display_content_type === 'image/png' ? 'png' : p.display_content_type === 'image/jpeg' ? 'jpg' : null;
+      const format =
+        p.display_content_type === 'image/png'
+          ? 'png'
+          : p.display_content_type === 'image/jpeg'
+            ? 'jpg'
+            : null;
       if (!format) return null;
       const data = await storage().get(p.display_sha256);
       if (!data) return null;
-      return { itemKey: p.item_key, caption: p.caption, data, format, width: p.width, height: p.height, takenAt: p.taken_at };
+      return {
+        itemKey: p.item_key,
+        caption: p.caption,
+        data,
+        format,
+        width: p.width,
+        height: p.height,
+        takenAt: p.taken_at,
+      };
     }),
   );
   return photos.filter((p): p is ReportPhoto => p !== null);
@@ -216,7 +250,12 @@ export async function loadReportSource(
     documentId: options.documentId,
     kind: options.kind,
     generatedAt: new Date(),
-    organisation: { id: row.organisation_id, name: row.org_name, timeZone: row.org_time_zone, displayUnits: row.org_display_units },
+    organisation: {
+      id: row.organisation_id,
+      name: row.org_name,
+      timeZone: row.org_time_zone,
+      displayUnits: row.org_display_units,
+    },
     assessment: {
       id: row.id,
       purpose: row.purpose,
@@ -249,7 +288,12 @@ export async function loadReportSource(
       heightMm: row.height_mm,
       weightKg: row.weight_kg,
     },
-    ruleset: { title: row.ruleset_title, version: row.ruleset_version, contentSha256: row.ruleset_content_sha256, areaTitles: areaTitles(row.ruleset_areas) },
+    ruleset: {
+      title: row.ruleset_title,
+      version: row.ruleset_version,
+      contentSha256: row.ruleset_content_sha256,
+      areaTitles: areaTitles(row.ruleset_areas),
+    },
     photos,
     forceTraces,
     signing: options.signing ?? null,

@@ -12,7 +12,12 @@ import { HttpProblem } from './http/problem';
 import type { SessionUser } from './session-user';
 
 /** Copies every column of the child rows except their identity and creation time. */
-async function copyChildren(trx: Knex.Transaction, table: 'assessment_photos' | 'force_traces', fromId: string, toId: string): Promise<number> {
+async function copyChildren(
+  trx: Knex.Transaction,
+  table: 'assessment_photos' | 'force_traces',
+  fromId: string,
+  toId: string,
+): Promise<number> {
   const { rows } = await trx.raw<{ rows: Array<{ column_name: string }> }>(
     `select column_name from information_schema.columns
       where table_schema = current_schema() and table_name = ? and column_name not in ('id', 'assessment_id', 'created_at')
@@ -20,12 +25,10 @@ async function copyChildren(trx: Knex.Transaction, table: 'assessment_photos' | 
     [table],
   );
   const columns = rows.map((r) => trx.raw('??', [r.column_name]).toQuery()).join(', ');
-  const copied = await trx.raw(`insert into ?? (assessment_id, ${columns}) select ?, ${columns} from ?? where assessment_id = ? order by created_at`, [
-    table,
-    toId,
-    table,
-    fromId,
-  ]);
+  const copied = await trx.raw(
+    `insert into ?? (assessment_id, ${columns}) select ?, ${columns} from ?? where assessment_id = ? order by created_at`,
+    [table, toId, table, fromId],
+  );
   return copied.rowCount ?? 0;
 }
 
@@ -39,15 +42,33 @@ export async function reviseAssessment(
     const old = await trx('assessments')
       .where({ id: assessmentId, organisation_id: viewer.organisationId })
       .forUpdate()
-      .first('id', 'status', 'gate_id', 'ruleset_version_id', 'auditor_id', 'purpose', 'answers', 'measurements', 'observations', 'visited_on');
+      .first(
+        'id',
+        'status',
+        'gate_id',
+        'ruleset_version_id',
+        'auditor_id',
+        'purpose',
+        'answers',
+        'measurements',
+        'observations',
+        'visited_on',
+      );
     if (!old) throw new HttpProblem(404, 'That assessment was not found.');
     // Owner and office revise any report; an auditor only a report they walked themselves.
     if (viewer.role === 'auditor' && old.auditor_id !== viewer.id) {
-      throw new HttpProblem(403, "This is another auditor's report; only they, the office or the owner may revise it.");
+      throw new HttpProblem(
+        403,
+        "This is another auditor's report; only they, the office or the owner may revise it.",
+      );
     }
-    if (old.status === 'superseded') throw new HttpProblem(409, 'This assessment already has a newer revision.');
+    if (old.status === 'superseded')
+      throw new HttpProblem(409, 'This assessment already has a newer revision.');
     if (old.status !== 'signed')
-      throw new HttpProblem(409, `Only a signed assessment is revised; this one is ${old.status.replace(/_/g, ' ')} and can be changed directly.`);
+      throw new HttpProblem(
+        409,
+        `Only a signed assessment is revised; this one is ${old.status.replace(/_/g, ' ')} and can be changed directly.`,
+      );
     const [created] = await trx('assessments')
       .insert({
         organisation_id: viewer.organisationId,

@@ -13,7 +13,10 @@ const entries = new Map<string, Promise<LoadedRuleset>>();
  * The version whose content hashes to `contentSha256`, reading it with `readContent` on a miss.
  * Stored content that no longer hashes to its recorded SHA-256 is refused, never scored.
  */
-export function loadedRuleset(contentSha256: string, readContent: () => Promise<unknown>): Promise<LoadedRuleset> {
+export function loadedRuleset(
+  contentSha256: string,
+  readContent: () => Promise<unknown>,
+): Promise<LoadedRuleset> {
   const hit = entries.get(contentSha256);
   if (hit) {
     entries.delete(contentSha256);
@@ -23,7 +26,9 @@ export function loadedRuleset(contentSha256: string, readContent: () => Promise<
   const loading = readContent().then((content) => {
     const loaded = loadRulesetFile(content, `stored ruleset ${contentSha256.slice(0, 12)}`);
     if (loaded.contentSha256 !== contentSha256) {
-      throw new Error(`stored ruleset content hashes to ${loaded.contentSha256}, not the recorded ${contentSha256}`);
+      throw new Error(
+        `stored ruleset content hashes to ${loaded.contentSha256}, not the recorded ${contentSha256}`,
+      );
     }
     return loaded;
   });

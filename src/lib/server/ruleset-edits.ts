@@ -57,7 +57,11 @@ type Edit = { ok: true; content: RulesetVersion } | { ok: false; problems: Amend
  * `baseline` is the version the draft was derived from: questions and sources it already had are
  * never pruned when a local rule goes.
  */
-export function applyAmendment(draft: RulesetVersion, patch: AmendmentPatch, baseline: RulesetVersion | null): Edit {
+export function applyAmendment(
+  draft: RulesetVersion,
+  patch: AmendmentPatch,
+  baseline: RulesetVersion | null,
+): Edit {
   const content = structuredClone(draft);
   const problems: AmendmentProblem[] = [];
 
@@ -76,13 +80,22 @@ function removeRule(content: RulesetVersion, id: string, field: string, problems
     return;
   }
   if (!content.rules[index].local) {
-    problems.push({ field, message: 'a shipped rule cannot be removed; turn it off instead (enabled: false)', ruleId: id });
+    problems.push({
+      field,
+      message: 'a shipped rule cannot be removed; turn it off instead (enabled: false)',
+      ruleId: id,
+    });
     return;
   }
   content.rules.splice(index, 1);
 }
 
-function changeRule(content: RulesetVersion, id: string, change: RuleChange, problems: AmendmentProblem[]): void {
+function changeRule(
+  content: RulesetVersion,
+  id: string,
+  change: RuleChange,
+  problems: AmendmentProblem[],
+): void {
   const at = `rules.${id}`;
   const rule = content.rules.find((r) => r.id === id);
   if (!rule) {
@@ -96,12 +109,23 @@ function changeRule(content: RulesetVersion, id: string, change: RuleChange, pro
     const param = rule.params[name];
     if (!param) {
       const names = Object.keys(rule.params);
-      problems.push({ field, message: names.length ? `"${id}" has no param "${name}" (it has ${names.join(', ')})` : `"${id}" has no params`, ruleId: id });
+      problems.push({
+        field,
+        message: names.length
+          ? `"${id}" has no param "${name}" (it has ${names.join(', ')})`
+          : `"${id}" has no params`,
+        ruleId: id,
+      });
       continue;
     }
     const wrongType = typeMismatch(param.value, value);
     if (wrongType) {
-      problems.push({ field, message: 'unit' in param ? `${wrongType} in ${param.unit}; the unit stays as the rule has it` : wrongType, ruleId: id });
+      problems.push({
+        field,
+        message:
+          'unit' in param ? `${wrongType} in ${param.unit}; the unit stays as the rule has it` : wrongType,
+        ruleId: id,
+      });
       continue;
     }
     if (typeof value === 'number' && value < 0) {
@@ -136,7 +160,11 @@ function words(title: string): string[] {
     .filter(Boolean);
 }
 
-function uniqueName(base: string, taken: (name: string) => boolean, withNumber: (n: number) => string): string {
+function uniqueName(
+  base: string,
+  taken: (name: string) => boolean,
+  withNumber: (n: number) => string,
+): string {
   if (!taken(base)) return base;
   for (let n = 2; ; n++) if (!taken(withNumber(n))) return withNumber(n);
 }
@@ -173,11 +201,21 @@ function localSourceId(content: RulesetVersion, standard: string): string {
     (key) => content.sources.some((s) => s.id === key),
     (n) => `localSource${n}`,
   );
-  content.sources.push({ id, title: standard, kind: 'local', note: 'Added by the organisation as a local amendment.' });
+  content.sources.push({
+    id,
+    title: standard,
+    kind: 'local',
+    note: 'Added by the organisation as a local amendment.',
+  });
   return id;
 }
 
-function addLocalRule(content: RulesetVersion, local: LocalRule, at: string, problems: AmendmentProblem[]): void {
+function addLocalRule(
+  content: RulesetVersion,
+  local: LocalRule,
+  at: string,
+  problems: AmendmentProblem[],
+): void {
   const id = local.id ?? generatedRuleId(local, content);
   if (content.rules.some((r) => r.id === id)) {
     problems.push({ field: `${at}.id`, message: `a rule "${id}" is already in this draft`, ruleId: id });
@@ -204,7 +242,11 @@ function addLocalRule(content: RulesetVersion, local: LocalRule, at: string, pro
       return;
     }
     if (suffix && !key.endsWith(suffix)) {
-      problems.push({ field: keyField, message: `a ${measure} in ${CANONICAL_UNIT_OF[measure!]} needs a key ending in "${suffix}"`, ruleId: id });
+      problems.push({
+        field: keyField,
+        message: `a ${measure} in ${CANONICAL_UNIT_OF[measure!]} needs a key ending in "${suffix}"`,
+        ruleId: id,
+      });
       return;
     }
     const question: RulesetQuestion = {
@@ -259,8 +301,11 @@ function pruneOrphans(content: RulesetVersion, baseline: RulesetVersion | null):
   const baseSources = new Set(baseline?.sources.map((s) => s.id) ?? []);
   const ruleText = content.rules.map((r) => JSON.stringify(r)).join('\n');
   const askText = content.questions.map((q) => JSON.stringify(q.askWhen ?? null)).join('\n');
-  const stillRead = (key: string) => [`"answers.${key}"`, `"m.${key}"`].some((fact) => ruleText.includes(fact) || askText.includes(fact));
+  const stillRead = (key: string) =>
+    [`"answers.${key}"`, `"m.${key}"`].some((fact) => ruleText.includes(fact) || askText.includes(fact));
   content.questions = content.questions.filter((q) => baseQuestions.has(q.key) || stillRead(q.key));
   const usedSources = new Set(content.rules.map((r) => r.reference.source).filter(Boolean));
-  content.sources = content.sources.filter((s) => s.kind !== 'local' || baseSources.has(s.id) || usedSources.has(s.id));
+  content.sources = content.sources.filter(
+    (s) => s.kind !== 'local' || baseSources.has(s.id) || usedSources.has(s.id),
+  );
 }

@@ -9,8 +9,22 @@
  * reads as not found.
  */
 import type { Knex } from 'knex';
-import type { RulesetFamilySummary, RulesetStatus, RulesetVersionDetail, RulesetVersionSummary, ScoreRequest } from '@/lib/api/rulesets';
-import { AssessmentInputError, diffRulesets, scoreParsed, type LoadedRuleset, type RulesetDiff, type RulesetVersion, type ScoreResult } from '@/lib/rules';
+import type {
+  RulesetFamilySummary,
+  RulesetStatus,
+  RulesetVersionDetail,
+  RulesetVersionSummary,
+  ScoreRequest,
+} from '@/lib/api/rulesets';
+import {
+  AssessmentInputError,
+  diffRulesets,
+  scoreParsed,
+  type LoadedRuleset,
+  type RulesetDiff,
+  type RulesetVersion,
+  type ScoreResult,
+} from '@/lib/rules';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { iso } from './listing';
@@ -31,28 +45,40 @@ export class RulesetConflictError extends Error {
     readonly family: string,
     readonly version: string,
   ) {
-    super(`ruleset ${family} ${version} is already published with different content; publish it under a new version number`);
+    super(
+      `ruleset ${family} ${version} is already published with different content; publish it under a new version number`,
+    );
   }
 }
 
 /** Publishes a shipped (organisation-less) version; returns 'published' or 'unchanged'. */
-export async function publishShippedVersion(v: RulesetVersionToPublish, knex: Knex = db()): Promise<'published' | 'unchanged'> {
+export async function publishShippedVersion(
+  v: RulesetVersionToPublish,
+  knex: Knex = db(),
+): Promise<'published' | 'unchanged'> {
   return knex.transaction(async (trx) => {
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`ruleset:${v.family}`]);
-    let ruleset = await trx('rulesets').whereNull('organisation_id').andWhere({ family: v.family }).first('id');
+    let ruleset = await trx('rulesets')
+      .whereNull('organisation_id')
+      .andWhere({ family: v.family })
+      .first('id');
     if (!ruleset) {
       [ruleset] = await trx('rulesets')
         .insert({ family: v.family, title: v.title, region: v.region ?? null })
         .returning('id');
     }
-    const existing = await trx('ruleset_versions').where({ ruleset_id: ruleset.id, version: v.version }).first('id', 'content_sha256', 'status');
+    const existing = await trx('ruleset_versions')
+      .where({ ruleset_id: ruleset.id, version: v.version })
+      .first('id', 'content_sha256', 'status');
     if (existing) {
       if (existing.content_sha256 === v.contentSha256) return 'unchanged';
       if (existing.status !== 'draft') throw new RulesetConflictError(v.family, v.version);
       await trx('ruleset_versions')
         .where({ id: existing.id })
         .update({ content: JSON.stringify(v.content), content_sha256: v.contentSha256 });
-      await trx('ruleset_versions').where({ id: existing.id }).update({ status: 'published', published_at: trx.fn.now() });
+      await trx('ruleset_versions')
+        .where({ id: existing.id })
+        .update({ status: 'published', published_at: trx.fn.now() });
       return 'published';
     }
     await trx('ruleset_versions').insert({
@@ -97,7 +123,14 @@ interface VersionRow {
   derived_version: string | null;
 }
 
-const familyColumns = ['r.id', 'r.organisation_id', 'r.family', 'r.title', 'r.region', 'r.based_on_family'] as const;
+const familyColumns = [
+  'r.id',
+  'r.organisation_id',
+  'r.family',
+  'r.title',
+  'r.region',
+  'r.based_on_family',
+] as const;
 
 function versionColumns(knex: Knex): (string | Knex.Raw)[] {
   return [
@@ -111,8 +144,12 @@ function versionColumns(knex: Knex): (string | Knex.Raw)[] {
     'rv.derived_from_version_id',
     knex.raw(`rv.content ->> 'effectiveFrom' as effective_from`),
     knex.raw(`jsonb_array_length(rv.content -> 'rules') as rule_count`),
-    knex.raw(`(select count(*)::int from jsonb_array_elements(rv.content -> 'rules') as rule where rule ->> 'enabled' = 'true') as enabled_rule_count`),
-    knex.raw(`(select count(*)::int from jsonb_array_elements(rv.content -> 'rules') as rule where rule ->> 'local' = 'true') as local_rule_count`),
+    knex.raw(
+      `(select count(*)::int from jsonb_array_elements(rv.content -> 'rules') as rule where rule ->> 'enabled' = 'true') as enabled_rule_count`,
+    ),
+    knex.raw(
+      `(select count(*)::int from jsonb_array_elements(rv.content -> 'rules') as rule where rule ->> 'local' = 'true') as local_rule_count`,
+    ),
     knex.raw(`rv.content -> 'derivedFrom' ->> 'family' as derived_family`),
     knex.raw(`rv.content -> 'derivedFrom' ->> 'version' as derived_version`),
   ];
@@ -125,18 +162,30 @@ export function seesDrafts(viewer: SessionUser): boolean {
 
 /** Families the viewer's organisation may read: the shipped ones and its own. */
 function visibleFamilies(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  return knex('rulesets as r').where((w) => w.whereNull('r.organisation_id').orWhere('r.organisation_id', viewer.organisationId));
+  return knex('rulesets as r').where((w) =>
+    w.whereNull('r.organisation_id').orWhere('r.organisation_id', viewer.organisationId),
+  );
 }
 
 /** Versions of one family the viewer may read. */
 function visibleVersionsOf(knex: Knex, viewer: SessionUser, family: FamilyRow): Knex.QueryBuilder {
-  const statuses: RulesetStatus[] = family.organisation_id && seesDrafts(viewer) ? ['draft', 'published', 'retired'] : ['published', 'retired'];
+  const statuses: RulesetStatus[] =
+    family.organisation_id && seesDrafts(viewer)
+      ? ['draft', 'published', 'retired']
+      : ['published', 'retired'];
   return knex('ruleset_versions as rv').where('rv.ruleset_id', family.id).whereIn('rv.status', statuses);
 }
 
 /** The family a slug names for this viewer: their organisation's own first, else the shipped one. */
-export async function resolveFamily(viewer: SessionUser, family: string, knex: Knex = db()): Promise<FamilyRow | undefined> {
-  return visibleFamilies(knex, viewer).andWhere('r.family', family).orderByRaw('r.organisation_id is null').first<FamilyRow | undefined>(familyColumns);
+export async function resolveFamily(
+  viewer: SessionUser,
+  family: string,
+  knex: Knex = db(),
+): Promise<FamilyRow | undefined> {
+  return visibleFamilies(knex, viewer)
+    .andWhere('r.family', family)
+    .orderByRaw('r.organisation_id is null')
+    .first<FamilyRow | undefined>(familyColumns);
 }
 
 function toSummary(row: VersionRow): RulesetVersionSummary {
@@ -150,7 +199,10 @@ function toSummary(row: VersionRow): RulesetVersionSummary {
     ruleCount: Number(row.rule_count),
     enabledRuleCount: Number(row.enabled_rule_count),
     localRuleCount: Number(row.local_rule_count),
-    derivedFrom: row.derived_family && row.derived_version ? { family: row.derived_family, version: row.derived_version } : null,
+    derivedFrom:
+      row.derived_family && row.derived_version
+        ? { family: row.derived_family, version: row.derived_version }
+        : null,
   };
 }
 
@@ -158,8 +210,13 @@ function toSummary(row: VersionRow): RulesetVersionSummary {
 const versionOrder = `case when rv.status = 'draft' then 0 else 1 end, coalesce(rv.published_at, rv.created_at) desc, rv.created_at desc`;
 
 /** Every family the organisation can use, shipped ones first, with its versions. */
-export async function listVisibleFamilies(viewer: SessionUser, knex: Knex = db()): Promise<RulesetFamilySummary[]> {
-  const families = await visibleFamilies(knex, viewer).orderByRaw('r.organisation_id is not null, r.family').select<FamilyRow[]>(familyColumns);
+export async function listVisibleFamilies(
+  viewer: SessionUser,
+  knex: Knex = db(),
+): Promise<RulesetFamilySummary[]> {
+  const families = await visibleFamilies(knex, viewer)
+    .orderByRaw('r.organisation_id is not null, r.family')
+    .select<FamilyRow[]>(familyColumns);
   if (families.length === 0) return [];
   const byFamily = new Map(families.map((f) => [f.id, [] as VersionRow[]]));
   const rows = await knex('ruleset_versions as rv')
@@ -207,15 +264,26 @@ export interface StoredVersion {
 }
 
 /** One version the viewer may read, without its content; null when it is not theirs to see. */
-export async function findVersion(viewer: SessionUser, family: string, version: string, knex: Knex = db()): Promise<StoredVersion | null> {
+export async function findVersion(
+  viewer: SessionUser,
+  family: string,
+  version: string,
+  knex: Knex = db(),
+): Promise<StoredVersion | null> {
   const familyRow = await resolveFamily(viewer, family, knex);
   if (!familyRow) return null;
-  const row = await visibleVersionsOf(knex, viewer, familyRow).andWhere('rv.version', version).first<VersionRow | undefined>(versionColumns(knex));
+  const row = await visibleVersionsOf(knex, viewer, familyRow)
+    .andWhere('rv.version', version)
+    .first<VersionRow | undefined>(versionColumns(knex));
   return row ? { id: row.id, family: familyRow, summary: toSummary(row) } : null;
 }
 
 /** The family's current version: the latest published one. */
-export async function findCurrentVersion(viewer: SessionUser, family: string, knex: Knex = db()): Promise<StoredVersion | null> {
+export async function findCurrentVersion(
+  viewer: SessionUser,
+  family: string,
+  knex: Knex = db(),
+): Promise<StoredVersion | null> {
   const familyRow = await resolveFamily(viewer, family, knex);
   if (!familyRow) return null;
   const row = await knex('ruleset_versions as rv')
@@ -229,16 +297,25 @@ export async function findCurrentVersion(viewer: SessionUser, family: string, kn
 }
 
 /** The stored document of a version, loaded and validated once per content (process cache). */
-export async function loadVersion(stored: Pick<StoredVersion, 'id' | 'summary'>, knex: Knex = db()): Promise<LoadedRuleset> {
+export async function loadVersion(
+  stored: Pick<StoredVersion, 'id' | 'summary'>,
+  knex: Knex = db(),
+): Promise<LoadedRuleset> {
   return loadedRuleset(stored.summary.contentSha256, async () => {
-    const row = await knex('ruleset_versions').where({ id: stored.id }).first<{ content: unknown } | undefined>('content');
+    const row = await knex('ruleset_versions')
+      .where({ id: stored.id })
+      .first<{ content: unknown } | undefined>('content');
     if (!row) throw new Error(`ruleset version ${stored.id} disappeared while loading`);
     return row.content;
   });
 }
 
 /** A whole version: its summary and its document (sources, areas, questions, rules). */
-export async function getVersionDetail(viewer: SessionUser, family: string, version: string): Promise<RulesetVersionDetail | null> {
+export async function getVersionDetail(
+  viewer: SessionUser,
+  family: string,
+  version: string,
+): Promise<RulesetVersionDetail | null> {
   const stored = await findVersion(viewer, family, version);
   return stored ? detailOf(stored) : null;
 }
@@ -260,7 +337,10 @@ export async function diffVersions(
   family: string,
   query: { from: string; to: string; fromFamily?: string },
 ): Promise<{ diff: RulesetDiff; from: RulesetVersionDetail; to: RulesetVersionDetail } | null> {
-  const [fromStored, toStored] = await Promise.all([findVersion(viewer, query.fromFamily ?? family, query.from), findVersion(viewer, family, query.to)]);
+  const [fromStored, toStored] = await Promise.all([
+    findVersion(viewer, query.fromFamily ?? family, query.from),
+    findVersion(viewer, family, query.to),
+  ]);
   if (!fromStored || !toStored) return null;
   const [from, to] = await Promise.all([detailOf(fromStored), detailOf(toStored)]);
   return { diff: diffRulesets(from.content, to.content), from, to };
@@ -280,12 +360,20 @@ export async function scorePreview(viewer: SessionUser, request: ScoreRequest): 
     const family = await resolveFamily(viewer, request.family);
     if (family && request.version) {
       throw new HttpProblem(422, 'Some fields are missing or invalid.', {
-        errors: [{ field: 'version', message: `no version "${request.version}" of "${request.family}" that you can see` }],
+        errors: [
+          {
+            field: 'version',
+            message: `no version "${request.version}" of "${request.family}" that you can see`,
+          },
+        ],
       });
     }
     invalidFamily(request.family, family);
   }
-  const loaded = await loadedRuleset(target.content_sha256, async () => (await db()('ruleset_versions').where({ id: target.id }).first('content'))?.content);
+  const loaded = await loadedRuleset(
+    target.content_sha256,
+    async () => (await db()('ruleset_versions').where({ id: target.id }).first('content'))?.content,
+  );
   try {
     return scoreParsed(request.input, loaded);
   } catch (error) {
@@ -324,13 +412,19 @@ async function findScorableVersion(
 }
 
 function invalidFamily(family: string, known: FamilyRow | undefined): never {
-  const message = known ? `"${family}" has no published version yet` : `no ruleset family "${family}" that you can see`;
-  throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'family', message }] });
+  const message = known
+    ? `"${family}" has no published version yet`
+    : `no ruleset family "${family}" that you can see`;
+  throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+    errors: [{ field: 'family', message }],
+  });
 }
 
 /** The parsed document of a version by its row id (the amendment lifecycle's baseline). */
 export async function contentById(id: string, knex: Knex = db()): Promise<RulesetVersion | null> {
-  const row = await knex('ruleset_versions').where({ id }).first<{ content: RulesetVersion; content_sha256: string } | undefined>('content', 'content_sha256');
+  const row = await knex('ruleset_versions')
+    .where({ id })
+    .first<{ content: RulesetVersion; content_sha256: string } | undefined>('content', 'content_sha256');
   if (!row) return null;
   return (await loadedRuleset(row.content_sha256, async () => row.content)).version;
 }

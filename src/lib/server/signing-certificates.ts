@@ -84,7 +84,9 @@ export function sealPassphrase(organisationId: string, passphrase: string): stri
   const cipher = createCipheriv('aes-256-gcm', sealingKey(salt), iv);
   cipher.setAAD(Buffer.from(organisationId));
   const sealed = Buffer.concat([cipher.update(passphrase, 'utf8'), cipher.final()]);
-  return [SEAL_VERSION, salt, iv, cipher.getAuthTag(), sealed].map((p) => (typeof p === 'string' ? p : p.toString('base64url'))).join('.');
+  return [SEAL_VERSION, salt, iv, cipher.getAuthTag(), sealed]
+    .map((p) => (typeof p === 'string' ? p : p.toString('base64url')))
+    .join('.');
 }
 
 /** The passphrase, or null when it cannot be opened (another AUTH_SECRET, or a row moved between organisations). */
@@ -92,10 +94,16 @@ export function unsealPassphrase(organisationId: string, sealed: string): string
   const [version, salt, iv, tag, data] = sealed.split('.');
   if (version !== SEAL_VERSION || !salt || !iv || !tag || data === undefined) return null;
   try {
-    const decipher = createDecipheriv('aes-256-gcm', sealingKey(Buffer.from(salt, 'base64url')), Buffer.from(iv, 'base64url'));
+    const decipher = createDecipheriv(
+      'aes-256-gcm',
+      sealingKey(Buffer.from(salt, 'base64url')),
+      Buffer.from(iv, 'base64url'),
+    );
     decipher.setAAD(Buffer.from(organisationId));
     decipher.setAuthTag(Buffer.from(tag, 'base64url'));
-    return Buffer.concat([decipher.update(Buffer.from(data, 'base64url')), decipher.final()]).toString('utf8');
+    return Buffer.concat([decipher.update(Buffer.from(data, 'base64url')), decipher.final()]).toString(
+      'utf8',
+    );
   } catch {
     return null;
   }
@@ -104,7 +112,9 @@ export function unsealPassphrase(organisationId: string, sealed: string): string
 // --- reading an upload ----------------------------------------------------------------------
 
 function invalid(field: 'certificate' | 'passphrase', message: string): HttpProblem {
-  return new HttpProblem(422, 'The certificate cannot be used.', { errors: [{ field, message } satisfies FieldError] });
+  return new HttpProblem(422, 'The certificate cannot be used.', {
+    errors: [{ field, message } satisfies FieldError],
+  });
 }
 
 const dateOnly = (d: Date) => d.toISOString().slice(0, 10);
@@ -118,9 +128,11 @@ export interface CheckedCertificate {
 /** Opens and checks an uploaded PKCS#12; throws 422 naming the field at fault. */
 export function checkPkcs12(bytes: Buffer, passphrase: string, now = new Date()): CheckedCertificate {
   if (bytes.length === 0) throw invalid('certificate', 'choose the .p12 or .pfx file');
-  if (bytes.length > MAX_CERTIFICATE_BYTES) throw invalid('certificate', `must be at most ${MAX_CERTIFICATE_BYTES / 1024} KB`);
+  if (bytes.length > MAX_CERTIFICATE_BYTES)
+    throw invalid('certificate', `must be at most ${MAX_CERTIFICATE_BYTES / 1024} KB`);
   if (!passphrase) throw invalid('passphrase', "enter the certificate file's passphrase");
-  if (passphrase.length > MAX_PASSPHRASE_CHARS) throw invalid('passphrase', `must be at most ${MAX_PASSPHRASE_CHARS} characters`);
+  if (passphrase.length > MAX_PASSPHRASE_CHARS)
+    throw invalid('passphrase', `must be at most ${MAX_PASSPHRASE_CHARS} characters`);
 
   let asn1: forge.asn1.Asn1;
   try {
@@ -131,43 +143,73 @@ export function checkPkcs12(bytes: Buffer, passphrase: string, now = new Date())
   // PFX ::= SEQUENCE { version, authSafe, macData SEQUENCE { mac, macSalt, iterations } }:
   // forge derives the MAC key in JavaScript, so an absurd iteration count would stall the server.
   const iterations = ((asn1.value as forge.asn1.Asn1[])[2]?.value as forge.asn1.Asn1[] | undefined)?.[2];
-  const count = iterations && typeof iterations.value === 'string' ? (iterations.value.length > 4 ? Infinity : forge.asn1.derToInteger(iterations.value)) : 1;
+  const count =
+    iterations && typeof iterations.value === 'string'
+      ? iterations.value.length > 4
+        ? Infinity
+        : forge.asn1.derToInteger(iterations.value)
+      : 1;
   if (count > MAX_MAC_ITERATIONS) {
-    throw invalid('certificate', `is protected with more than ${MAX_MAC_ITERATIONS} key-derivation iterations; export it again with fewer`);
+    throw invalid(
+      'certificate',
+      `is protected with more than ${MAX_MAC_ITERATIONS} key-derivation iterations; export it again with fewer`,
+    );
   }
   let p12: forge.pkcs12.Pkcs12Pfx;
   try {
     p12 = forge.pkcs12.pkcs12FromAsn1(asn1, false, passphrase);
   } catch (error) {
     const message = error instanceof Error ? error.message : '';
-    if (/MAC could not be verified|wrong password|Failed to decrypt/i.test(message)) throw invalid('passphrase', 'does not open this certificate file');
+    if (/MAC could not be verified|wrong password|Failed to decrypt/i.test(message))
+      throw invalid('passphrase', 'does not open this certificate file');
     if (/unsupported|Unknown OID/i.test(message)) {
-      throw invalid('certificate', 'uses an encryption this server cannot read; export it again with AES-256 or triple-DES encryption');
+      throw invalid(
+        'certificate',
+        'uses an encryption this server cannot read; export it again with AES-256 or triple-DES encryption',
+      );
     }
     throw invalid('certificate', 'is not a PKCS#12 (.p12 or .pfx) file');
   }
 
-  const shrouded = p12.getBags({ bagType: forge.pki.oids.pkcs8ShroudedKeyBag! })[forge.pki.oids.pkcs8ShroudedKeyBag!] ?? [];
+  const shrouded =
+    p12.getBags({ bagType: forge.pki.oids.pkcs8ShroudedKeyBag! })[forge.pki.oids.pkcs8ShroudedKeyBag!] ?? [];
   const plain = p12.getBags({ bagType: forge.pki.oids.keyBag! })[forge.pki.oids.keyBag!] ?? [];
   const keyBag = shrouded[0] ?? plain[0];
-  if (!keyBag) throw invalid('certificate', 'holds no private key; export the certificate together with its private key');
+  if (!keyBag)
+    throw invalid(
+      'certificate',
+      'holds no private key; export the certificate together with its private key',
+    );
   const key = keyBag.key as forge.pki.rsa.PrivateKey | null | undefined;
-  if (!key || !('n' in key)) throw invalid('certificate', 'holds a key of a kind that cannot sign here; an RSA key is needed');
-  if (key.n.bitLength() < MIN_RSA_BITS) throw invalid('certificate', `has an RSA key of ${key.n.bitLength()} bits; at least ${MIN_RSA_BITS} are needed`);
+  if (!key || !('n' in key))
+    throw invalid('certificate', 'holds a key of a kind that cannot sign here; an RSA key is needed');
+  if (key.n.bitLength() < MIN_RSA_BITS)
+    throw invalid(
+      'certificate',
+      `has an RSA key of ${key.n.bitLength()} bits; at least ${MIN_RSA_BITS} are needed`,
+    );
 
-  const certs = (p12.getBags({ bagType: forge.pki.oids.certBag! })[forge.pki.oids.certBag!] ?? []).flatMap((b) => (b.cert ? [b.cert] : []));
+  const certs = (p12.getBags({ bagType: forge.pki.oids.certBag! })[forge.pki.oids.certBag!] ?? []).flatMap(
+    (b) => (b.cert ? [b.cert] : []),
+  );
   const cert = certs.find((c) => {
     const pub = c.publicKey as forge.pki.rsa.PublicKey;
     return 'n' in pub && pub.n.compareTo(key.n) === 0 && pub.e.compareTo(key.e) === 0;
   });
   if (!cert) throw invalid('certificate', 'holds no certificate for its private key');
 
-  if (now < cert.validity.notBefore) throw invalid('certificate', `is not valid before ${dateOnly(cert.validity.notBefore)}`);
-  if (now > cert.validity.notAfter) throw invalid('certificate', `expired on ${dateOnly(cert.validity.notAfter)}`);
+  if (now < cert.validity.notBefore)
+    throw invalid('certificate', `is not valid before ${dateOnly(cert.validity.notBefore)}`);
+  if (now > cert.validity.notAfter)
+    throw invalid('certificate', `expired on ${dateOnly(cert.validity.notAfter)}`);
   // RFC 5280 4.2.1.3: without the extension every use is allowed; with it, a document
   // signature needs digitalSignature or nonRepudiation (contentCommitment).
-  const usage = cert.getExtension('keyUsage') as { digitalSignature?: boolean; nonRepudiation?: boolean } | null;
-  if (usage && !usage.digitalSignature && !usage.nonRepudiation) throw invalid('certificate', 'has a key usage that does not allow digital signatures');
+  const usage = cert.getExtension('keyUsage') as {
+    digitalSignature?: boolean;
+    nonRepudiation?: boolean;
+  } | null;
+  if (usage && !usage.digitalSignature && !usage.nonRepudiation)
+    throw invalid('certificate', 'has a key usage that does not allow digital signatures');
 
   return { key, cert, chain: certs.filter((c) => c !== cert) };
 }
@@ -175,7 +217,9 @@ export function checkPkcs12(bytes: Buffer, passphrase: string, now = new Date())
 /** The key and its chain in a fresh PKCS#12 under a random passphrase. */
 function rewrap(checked: CheckedCertificate): { p12: Buffer; passphrase: string } {
   const passphrase = randomBytes(24).toString('base64url');
-  const asn1 = forge.pkcs12.toPkcs12Asn1(checked.key, [checked.cert, ...checked.chain], passphrase, { algorithm: 'aes256' });
+  const asn1 = forge.pkcs12.toPkcs12Asn1(checked.key, [checked.cert, ...checked.chain], passphrase, {
+    algorithm: 'aes256',
+  });
   return { p12: Buffer.from(forge.asn1.toDer(asn1).getBytes(), 'binary'), passphrase };
 }
 
@@ -191,7 +235,10 @@ async function trialSignature(p12: Buffer, passphrase: string): Promise<void> {
       signingTime: new Date(),
     });
   } catch {
-    throw invalid('certificate', 'could not sign a test document; export it again with its private key and certificate');
+    throw invalid(
+      'certificate',
+      'could not sign a test document; export it again with its private key and certificate',
+    );
   }
 }
 
@@ -212,13 +259,21 @@ function statusOf(row: StoredRow): SigningCertificateStatus {
 }
 
 /** Checks and stores the owner's certificate in place of any earlier upload; audited. */
-export async function uploadSigningCertificate(organisationId: string, bytes: Buffer, passphrase: string, actor: Actor): Promise<SigningCertificateStatus> {
+export async function uploadSigningCertificate(
+  organisationId: string,
+  bytes: Buffer,
+  passphrase: string,
+  actor: Actor,
+): Promise<SigningCertificateStatus> {
   const checked = checkPkcs12(bytes, passphrase);
   const wrapped = rewrap(checked);
   await trialSignature(wrapped.p12, wrapped.passphrase);
   const facts = factsOf(checked.cert);
   return db().transaction(async (trx) => {
-    const before = await trx('organisation_signing_certificates').where({ organisation_id: organisationId }).forUpdate().first('sha256');
+    const before = await trx('organisation_signing_certificates')
+      .where({ organisation_id: organisationId })
+      .forUpdate()
+      .first('sha256');
     const [row] = await trx('organisation_signing_certificates')
       .insert({
         organisation_id: organisationId,
@@ -261,7 +316,10 @@ export async function uploadSigningCertificate(organisationId: string, bytes: Bu
 /** Goes back to the self-made certificate; audited. False when there was no upload. */
 export async function removeSigningCertificate(organisationId: string, actor: Actor): Promise<boolean> {
   return db().transaction(async (trx) => {
-    const [removed] = await trx('organisation_signing_certificates').where({ organisation_id: organisationId }).del().returning('sha256');
+    const [removed] = await trx('organisation_signing_certificates')
+      .where({ organisation_id: organisationId })
+      .del()
+      .returning('sha256');
     if (!removed) return false;
     await recordAudit(trx, {
       organisationId,
@@ -284,38 +342,60 @@ function generated(organisation: { id: string; name: string }): SigningCertifica
   const cacheKey = `${made.file}:${made.p12.toString('base64').slice(-64)}`;
   let facts = generatedFacts.get(cacheKey);
   if (!facts) {
-    const p12 = forge.pkcs12.pkcs12FromAsn1(forge.asn1.fromDer(forge.util.createBuffer(made.p12.toString('binary'))), false, made.passphrase);
+    const p12 = forge.pkcs12.pkcs12FromAsn1(
+      forge.asn1.fromDer(forge.util.createBuffer(made.p12.toString('binary'))),
+      false,
+      made.passphrase,
+    );
     const cert = (p12.getBags({ bagType: forge.pki.oids.certBag! })[forge.pki.oids.certBag!] ?? [])[0]?.cert;
     if (!cert) throw new Error('the generated signing certificate holds no certificate');
     facts = factsOf(cert);
     generatedFacts.set(cacheKey, facts);
   }
-  return { p12: made.p12, passphrase: made.passphrase, facts: { ...facts, source: 'generated', uploadedAt: null, uploadedBy: null } };
+  return {
+    p12: made.p12,
+    passphrase: made.passphrase,
+    facts: { ...facts, source: 'generated', uploadedAt: null, uploadedBy: null },
+  };
 }
 
 /** Why a stored upload cannot sign now, or null when it can. */
 function unusableBecause(row: StoredRow, passphrase: string | null, now: Date): string | null {
-  if (passphrase === null) return 'it cannot be unlocked with this server’s AUTH_SECRET (was the secret changed?); upload it again';
+  if (passphrase === null)
+    return 'it cannot be unlocked with this server’s AUTH_SECRET (was the secret changed?); upload it again';
   if (now > row.not_after) return `it expired on ${dateOnly(row.not_after)}`;
   if (now < row.not_before) return `it is not valid before ${dateOnly(row.not_before)}`;
   return null;
 }
 
 /** The certificate to sign with now: the owner's upload while it is usable, else the self-made one. */
-export async function signingCertificateFor(organisation: { id: string; name: string }, knex: Knex = db(), now = new Date()): Promise<SigningCertificate> {
-  const row = await knex('organisation_signing_certificates').where({ organisation_id: organisation.id }).first<StoredRow | undefined>('*');
+export async function signingCertificateFor(
+  organisation: { id: string; name: string },
+  knex: Knex = db(),
+  now = new Date(),
+): Promise<SigningCertificate> {
+  const row = await knex('organisation_signing_certificates')
+    .where({ organisation_id: organisation.id })
+    .first<StoredRow | undefined>('*');
   if (row) {
     const passphrase = unsealPassphrase(organisation.id, row.passphrase_sealed);
     const reason = unusableBecause(row, passphrase, now);
     if (!reason) return { p12: row.p12, passphrase: passphrase!, facts: statusOf(row) };
-    console.error(`[signing] the uploaded certificate of organisation ${organisation.id} is not used: ${reason}`);
+    console.error(
+      `[signing] the uploaded certificate of organisation ${organisation.id} is not used: ${reason}`,
+    );
   }
   return generated(organisation);
 }
 
 /** What the settings page and the API show. */
-export async function certificateOverview(organisation: { id: string; name: string }, now = new Date()): Promise<CertificateOverview> {
-  const row = await db()('organisation_signing_certificates').where({ organisation_id: organisation.id }).first<StoredRow | undefined>('*');
+export async function certificateOverview(
+  organisation: { id: string; name: string },
+  now = new Date(),
+): Promise<CertificateOverview> {
+  const row = await db()('organisation_signing_certificates')
+    .where({ organisation_id: organisation.id })
+    .first<StoredRow | undefined>('*');
   if (row) {
     const reason = unusableBecause(row, unsealPassphrase(organisation.id, row.passphrase_sealed), now);
     if (!reason) return { inUse: statusOf(row), unusable: null };

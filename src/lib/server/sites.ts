@@ -89,7 +89,9 @@ function toRow(input: SiteCreate | SitePatch): WritableSiteRow {
 
 /** The sites a viewer may see, joined to their client. */
 function visibleSites(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  const query = knex('sites as s').join('clients as c', 'c.id', 's.client_id').where('s.organisation_id', viewer.organisationId);
+  const query = knex('sites as s')
+    .join('clients as c', 'c.id', 's.client_id')
+    .where('s.organisation_id', viewer.organisationId);
   if (viewer.role === 'homeowner') query.andWhere('s.client_id', viewer.clientId);
   return query;
 }
@@ -110,7 +112,13 @@ export async function listSites(viewer: SessionUser, query: SiteListQuery): Prom
     );
   }
   return fetchPage<SiteRow, Site>(
-    { base, columns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 's.id', map: toSite },
+    {
+      base,
+      columns,
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 's.id',
+      map: toSite,
+    },
     query,
   );
 }
@@ -122,9 +130,14 @@ export async function getSite(viewer: SessionUser, id: string, knex: Knex = db()
 
 /** A client id in a body must name a client of the viewer's organisation (422 otherwise). */
 async function assertClientInOrganisation(knex: Knex, viewer: SessionUser, clientId: string): Promise<void> {
-  const client = await knex('clients').where({ id: clientId, organisation_id: viewer.organisationId }).forShare().first('id');
+  const client = await knex('clients')
+    .where({ id: clientId, organisation_id: viewer.organisationId })
+    .forShare()
+    .first('id');
   if (!client)
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'clientId', message: 'no such client in this organisation' }] });
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+      errors: [{ field: 'clientId', message: 'no such client in this organisation' }],
+    });
 }
 
 export async function createSite(viewer: SessionUser, input: SiteCreate, knex: Knex = db()): Promise<Site> {
@@ -150,13 +163,21 @@ export async function updateSite(viewer: SessionUser, id: string, patch: SitePat
 /** Deletes a site with its gates; refused (409) while any of its gates has an assessment. */
 export async function deleteSite(viewer: SessionUser, id: string): Promise<boolean> {
   return db().transaction(async (trx) => {
-    const site = await trx('sites').where({ id, organisation_id: viewer.organisationId }).forUpdate().first('id');
+    const site = await trx('sites')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first('id');
     if (!site) return false;
     const gateIds = trx('gates').select('id').where({ organisation_id: viewer.organisationId, site_id: id });
     await gateIds.clone().forUpdate();
-    const [{ count }] = await trx('assessments').whereIn('gate_id', gateIds.clone()).count<{ count: string }[]>({ count: '*' });
+    const [{ count }] = await trx('assessments')
+      .whereIn('gate_id', gateIds.clone())
+      .count<{ count: string }[]>({ count: '*' });
     if (Number(count) > 0) {
-      throw new HttpProblem(409, `A gate at this site has ${count} assessment(s) on record, and assessments are kept; the site cannot be deleted.`);
+      throw new HttpProblem(
+        409,
+        `A gate at this site has ${count} assessment(s) on record, and assessments are kept; the site cannot be deleted.`,
+      );
     }
     await trx('gates').where({ organisation_id: viewer.organisationId, site_id: id }).delete();
     await trx('sites').where({ organisation_id: viewer.organisationId, id }).delete();

@@ -24,9 +24,19 @@ interface UserRow {
   created_at: Date;
 }
 
-const isUuid = (value: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(value);
+const isUuid = (value: string) =>
+  /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(value);
 
-const columns = ['u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.client_id', 'u.last_signed_in_at', 'u.created_at'] as const;
+const columns = [
+  'u.id',
+  'u.email',
+  'u.name',
+  'u.role',
+  'u.active',
+  'u.client_id',
+  'u.last_signed_in_at',
+  'u.created_at',
+] as const;
 
 const sortColumns: Record<UserListQuery['sort']['field'], string> = {
   name: 'u.name',
@@ -64,7 +74,16 @@ export async function loadSession(
     .join('organisations as o', 'o.id', 'u.organisation_id')
     .where({ 'u.id': userId, 'u.active': true, 'u.session_version': sessionVersion })
     .whereNotExists((q) => q.select(db().raw('1')).from('revoked_sessions as r').where('r.id', sessionId))
-    .first<(OrganisationRow & { user_id: string; email: string; user_name: string; role: Role; client_id: string | null }) | undefined>(
+    .first<
+      | (OrganisationRow & {
+          user_id: string;
+          email: string;
+          user_name: string;
+          role: Role;
+          client_id: string | null;
+        })
+      | undefined
+    >(
       'u.id as user_id',
       'u.email',
       'u.name as user_name',
@@ -74,7 +93,14 @@ export async function loadSession(
     );
   if (!row) return null;
   return {
-    user: { id: row.user_id, organisationId: row.id, email: row.email, name: row.user_name, role: row.role, clientId: row.client_id },
+    user: {
+      id: row.user_id,
+      organisationId: row.id,
+      email: row.email,
+      name: row.user_name,
+      role: row.role,
+      clientId: row.client_id,
+    },
     organisation: toSessionOrganisation(row),
   };
 }
@@ -84,14 +110,22 @@ export async function listUsers(organisationId: string, query: UserListQuery): P
   if (query.role) base.andWhere('u.role', query.role);
   if (query.active !== undefined) base.andWhere('u.active', query.active);
   return fetchPage<UserRow, User>(
-    { base, columns, order: { column: sortColumns[query.sort.field], direction: query.sort.direction }, idColumn: 'u.id', map: toUser },
+    {
+      base,
+      columns,
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 'u.id',
+      map: toUser,
+    },
     query,
   );
 }
 
 /** One person of the organisation; null for a missing id or another organisation's. */
 export async function getUser(organisationId: string, id: string, knex: Knex = db()): Promise<User | null> {
-  const row = await knex('users as u').where({ 'u.organisation_id': organisationId, 'u.id': id }).first<UserRow | undefined>(columns);
+  const row = await knex('users as u')
+    .where({ 'u.organisation_id': organisationId, 'u.id': id })
+    .first<UserRow | undefined>(columns);
   return row ? toUser(row) : null;
 }
 
@@ -104,23 +138,39 @@ export interface Actor {
  * Changes a person's role, active flag or name. Role and active changes end the person's
  * sessions (session_version + 1). The organisation always keeps at least one active owner.
  */
-export async function updateUser(organisationId: string, id: string, patch: UserPatch, actor: Actor): Promise<User | null> {
+export async function updateUser(
+  organisationId: string,
+  id: string,
+  patch: UserPatch,
+  actor: Actor,
+): Promise<User | null> {
   return db().transaction(async (trx) => {
     // Serialise changes to one organisation's people so the "last owner" check holds.
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`users-of:${organisationId}`]);
     const before = await getUser(organisationId, id, trx);
     if (!before) return null;
     if (before.role === 'homeowner' && patch.role !== undefined) {
-      throw new HttpProblem(422, 'A homeowner or property manager cannot be given a staff role; invite them as staff instead.', {
-        errors: [{ field: 'role', message: 'cannot change the role of a homeowner or property manager' }],
-      });
+      throw new HttpProblem(
+        422,
+        'A homeowner or property manager cannot be given a staff role; invite them as staff instead.',
+        {
+          errors: [{ field: 'role', message: 'cannot change the role of a homeowner or property manager' }],
+        },
+      );
     }
     const role = patch.role ?? before.role;
     const active = patch.active ?? before.active;
     const stopsBeingOwner = before.role === 'owner' && before.active && (role !== 'owner' || !active);
     if (stopsBeingOwner) {
-      const [{ count }] = await trx('users').where({ organisation_id: organisationId, role: 'owner', active: true }).whereNot({ id }).count({ count: '*' });
-      if (Number(count) === 0) throw new HttpProblem(409, 'The organisation needs at least one active owner; make someone else owner first.');
+      const [{ count }] = await trx('users')
+        .where({ organisation_id: organisationId, role: 'owner', active: true })
+        .whereNot({ id })
+        .count({ count: '*' });
+      if (Number(count) === 0)
+        throw new HttpProblem(
+          409,
+          'The organisation needs at least one active owner; make someone else owner first.',
+        );
     }
     const roleChanged = role !== before.role;
     const activeChanged = active !== before.active;

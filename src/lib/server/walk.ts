@@ -44,20 +44,36 @@ export async function loadWalk(viewer: SessionUser, assessmentId: string): Promi
     title: content.familyTitle,
     sections: content.sections,
     areas: content.areas,
-    questions: content.questions.map(({ key, section, area, prompt, whyItMatters, answerType, options, askWhen, gateKinds, entryUnits }) => ({
-      key,
-      section,
-      area,
-      prompt,
-      whyItMatters,
-      answerType,
-      gateKinds,
-      ...(options ? { options } : {}),
-      ...(askWhen !== undefined ? { askWhen } : {}),
-      ...(entryUnits ? { entryUnits } : {}),
-    })),
+    questions: content.questions.map(
+      ({
+        key,
+        section,
+        area,
+        prompt,
+        whyItMatters,
+        answerType,
+        options,
+        askWhen,
+        gateKinds,
+        entryUnits,
+      }) => ({
+        key,
+        section,
+        area,
+        prompt,
+        whyItMatters,
+        answerType,
+        gateKinds,
+        ...(options ? { options } : {}),
+        ...(askWhen !== undefined ? { askWhen } : {}),
+        ...(entryUnits ? { entryUnits } : {}),
+      }),
+    ),
   };
-  const editable = assessment.status === 'draft' && viewer.role !== 'homeowner' && (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);
+  const editable =
+    assessment.status === 'draft' &&
+    viewer.role !== 'homeowner' &&
+    (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);
   return {
     assessment,
     documents: {

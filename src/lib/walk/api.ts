@@ -33,7 +33,11 @@ export type Answer<T> = { ok: true; value: T } | { ok: false; problem: Problem }
 async function call(input: string, init: RequestInit = {}): Promise<Response> {
   let response: Response;
   try {
-    response = await fetch(input, { credentials: 'same-origin', ...init, headers: { accept: 'application/json', ...init.headers } });
+    response = await fetch(input, {
+      credentials: 'same-origin',
+      ...init,
+      headers: { accept: 'application/json', ...init.headers },
+    });
   } catch (error) {
     throw new OfflineError(error);
   }
@@ -55,7 +59,11 @@ async function answer<T>(response: Response): Promise<Answer<T>> {
 }
 
 /** Saves a merge patch over the row version this device last saw (`If-Match`). */
-export async function patchAssessment(id: string, rowVersion: number, patch: JsonObject): Promise<Answer<Assessment>> {
+export async function patchAssessment(
+  id: string,
+  rowVersion: number,
+  patch: JsonObject,
+): Promise<Answer<Assessment>> {
   return answer(
     await call(`/api/assessments/${id}`, {
       method: 'PATCH',
@@ -74,7 +82,15 @@ export type UploadProgress = (sent: number, total: number) => void;
  */
 export function uploadPhoto(
   assessmentId: string,
-  photo: { idempotencyKey: string; clientRef: string; itemKey: string; takenAt: string | null; fileName: string; blob: Blob; source?: PhotoSource | null },
+  photo: {
+    idempotencyKey: string;
+    clientRef: string;
+    itemKey: string;
+    takenAt: string | null;
+    fileName: string;
+    blob: Blob;
+    source?: PhotoSource | null;
+  },
   onProgress?: UploadProgress,
 ): Promise<Answer<PhotoRecord>> {
   const form = new FormData();
@@ -93,14 +109,23 @@ export function uploadPhoto(
     xhr.setRequestHeader('accept', 'application/json');
     xhr.setRequestHeader('idempotency-key', photo.idempotencyKey);
     xhr.withCredentials = true;
-    if (onProgress) xhr.upload.onprogress = (event) => onProgress(event.loaded, event.lengthComputable ? event.total : photo.blob.size);
+    if (onProgress)
+      xhr.upload.onprogress = (event) =>
+        onProgress(event.loaded, event.lengthComputable ? event.total : photo.blob.size);
     const lost = () => reject(new OfflineError(new Error('The upload was interrupted')));
     xhr.onerror = lost;
     xhr.onabort = lost;
     xhr.ontimeout = lost;
     xhr.onload = () => {
       if ([0, 502, 503, 504].includes(xhr.status)) return lost();
-      resolve(answer(new Response(xhr.responseText, { status: xhr.status, headers: { 'content-type': xhr.getResponseHeader('content-type') ?? '' } })));
+      resolve(
+        answer(
+          new Response(xhr.responseText, {
+            status: xhr.status,
+            headers: { 'content-type': xhr.getResponseHeader('content-type') ?? '' },
+          }),
+        ),
+      );
     };
     xhr.send(form);
   });
@@ -112,7 +137,15 @@ export async function removePhoto(assessmentId: string, photoId: string): Promis
 
 export async function uploadTrace(
   assessmentId: string,
-  trace: { clientRef: string; itemKey: string; fileName: string; csv: string; location: string; direction: string; gapMm: number },
+  trace: {
+    clientRef: string;
+    itemKey: string;
+    fileName: string;
+    csv: string;
+    location: string;
+    direction: string;
+    gapMm: number;
+  },
   idempotencyKey: string,
 ): Promise<Answer<TraceRecord>> {
   const query = new URLSearchParams({
@@ -137,12 +170,26 @@ export async function removeTrace(assessmentId: string, traceId: string): Promis
 }
 
 /** Scores the current answers without storing anything (the live preview). */
-export async function scorePreview(body: { family: string; version?: string; input: unknown }): Promise<Answer<unknown>> {
-  return answer(await call('/api/score', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) }));
+export async function scorePreview(body: {
+  family: string;
+  version?: string;
+  input: unknown;
+}): Promise<Answer<unknown>> {
+  return answer(
+    await call('/api/score', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify(body),
+    }),
+  );
 }
 
 export async function submitAssessment(id: string, rowVersion: number): Promise<Answer<Assessment>> {
   return answer(
-    await call(`/api/assessments/${id}/submit`, { method: 'POST', headers: { 'content-type': 'application/json', 'if-match': `"${rowVersion}"` }, body: '{}' }),
+    await call(`/api/assessments/${id}/submit`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'if-match': `"${rowVersion}"` },
+      body: '{}',
+    }),
   );
 }

@@ -29,7 +29,9 @@ export function asDocuments(value: Json | undefined): WalkDocuments {
   const doc = isObject(value) ? value : {};
   return {
     answers: (isObject(doc.answers) ? doc.answers : {}) as unknown as WalkDocuments['answers'],
-    measurements: (isObject(doc.measurements) ? doc.measurements : {}) as unknown as WalkDocuments['measurements'],
+    measurements: (isObject(doc.measurements)
+      ? doc.measurements
+      : {}) as unknown as WalkDocuments['measurements'],
     observations: isObject(doc.observations) ? doc.observations : {},
   };
 }
@@ -50,12 +52,14 @@ export function applyDocumentsPatch(documents: WalkDocuments, patch: JsonObject)
   return {
     answers: (patch.answers === undefined
       ? documents.answers
-      : applyMergePatch(documents.answers as unknown as Json, patch.answers)) as unknown as WalkDocuments['answers'],
+      : applyMergePatch(
+          documents.answers as unknown as Json,
+          patch.answers,
+        )) as unknown as WalkDocuments['answers'],
     measurements,
-    observations: (patch.observations === undefined ? documents.observations : applyMergePatch(documents.observations, patch.observations)) as Record<
-      string,
-      Json
-    >,
+    observations: (patch.observations === undefined
+      ? documents.observations
+      : applyMergePatch(documents.observations, patch.observations)) as Record<string, Json>,
   };
 }
 
@@ -72,7 +76,8 @@ export function changedFields(patch: JsonObject): string[][] {
   const observations = patch.observations;
   if (isObject(observations)) {
     for (const [part, value] of Object.entries(observations)) {
-      if ((part === 'site' || part === 'hrnOverrides') && isObject(value)) for (const key of Object.keys(value)) fields.push(['observations', part, key]);
+      if ((part === 'site' || part === 'hrnOverrides') && isObject(value))
+        for (const key of Object.keys(value)) fields.push(['observations', part, key]);
       else fields.push(['observations', part]);
     }
   }
@@ -110,7 +115,11 @@ export interface FieldConflict {
  * edits would set it to something else again; edits to fields nobody else touched can simply
  * be re-sent.
  */
-export function findConflicts(base: WalkDocuments, theirs: WalkDocuments, pending: readonly JsonObject[]): FieldConflict[] {
+export function findConflicts(
+  base: WalkDocuments,
+  theirs: WalkDocuments,
+  pending: readonly JsonObject[],
+): FieldConflict[] {
   const mineDocs = pending.reduce(applyDocumentsPatch, base);
   const seen = new Set<string>();
   const conflicts: FieldConflict[] = [];

@@ -34,7 +34,11 @@ const IMPERIAL_UNITS: ReadonlySet<string> = new Set(['in', 'ft', 'lbf', 'lb', 'f
  * first is the default. A question may name its own units (`entryUnits`, e.g. a wire run in feet
  * or metres): those are offered instead, in the same system order.
  */
-export function unitsFor(kind: MeasuredAnswerType, system: UnitSystem, entryUnits?: readonly string[]): string[] {
+export function unitsFor(
+  kind: MeasuredAnswerType,
+  system: UnitSystem,
+  entryUnits?: readonly string[],
+): string[] {
   if (entryUnits && entryUnits.length > 0) {
     const imperial = entryUnits.filter((u) => IMPERIAL_UNITS.has(u));
     const metric = entryUnits.filter((u) => !IMPERIAL_UNITS.has(u));
@@ -70,7 +74,12 @@ export function unitLabel(unit: string): string {
 }
 
 /** The measurement to store: as entered, with its canonical value. */
-export function toMeasurement(kind: MeasuredAnswerType, value: number, unit: string, note?: string): MeasurementValue {
+export function toMeasurement(
+  kind: MeasuredAnswerType,
+  value: number,
+  unit: string,
+  note?: string,
+): MeasurementValue {
   const measured: MeasurementValue = { value, unit, canonical: canonicalValue(kind, value, unit) };
   if (note !== undefined) measured.note = note;
   return measured;

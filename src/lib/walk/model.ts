@@ -11,7 +11,16 @@ import type { WalkDocuments } from './documents';
 
 export type WalkQuestion = Pick<
   RulesetQuestion,
-  'key' | 'section' | 'area' | 'prompt' | 'whyItMatters' | 'answerType' | 'options' | 'askWhen' | 'gateKinds' | 'entryUnits'
+  | 'key'
+  | 'section'
+  | 'area'
+  | 'prompt'
+  | 'whyItMatters'
+  | 'answerType'
+  | 'options'
+  | 'askWhen'
+  | 'gateKinds'
+  | 'entryUnits'
 >;
 
 export interface WalkRuleset {
@@ -23,7 +32,19 @@ export interface WalkRuleset {
   questions: WalkQuestion[];
 }
 
-export type WalkGate = Pick<Gate, 'id' | 'label' | 'kind' | 'leaves' | 'openingDirection' | 'widthMm' | 'heightMm' | 'weightKg' | 'entered' | 'operator'> & {
+export type WalkGate = Pick<
+  Gate,
+  | 'id'
+  | 'label'
+  | 'kind'
+  | 'leaves'
+  | 'openingDirection'
+  | 'widthMm'
+  | 'heightMm'
+  | 'weightKg'
+  | 'entered'
+  | 'operator'
+> & {
   usageClass: number;
 };
 
@@ -32,7 +53,8 @@ export interface WalkPlace {
   siteLabel: string;
 }
 
-export const isMeasured = (type: AnswerType): boolean => !['yes_no_na', 'choice', 'date', 'text'].includes(type);
+export const isMeasured = (type: AnswerType): boolean =>
+  !['yes_no_na', 'choice', 'date', 'text'].includes(type);
 
 /** The facts `askWhen` may read that the device knows: the gate, the site, answers and measurements. */
 export function visibilityFacts(gate: WalkGate, documents: WalkDocuments): Record<string, unknown> {
@@ -62,7 +84,11 @@ export function visibilityFacts(gate: WalkGate, documents: WalkDocuments): Recor
 const compiled = new Map<string, CompiledLogic>();
 
 /** Questions asked for this gate now, in the version's section order then file order. */
-export function questionsToShow(ruleset: WalkRuleset, gate: WalkGate, documents: WalkDocuments): WalkQuestion[] {
+export function questionsToShow(
+  ruleset: WalkRuleset,
+  gate: WalkGate,
+  documents: WalkDocuments,
+): WalkQuestion[] {
   const facts = visibilityFacts(gate, documents);
   const rank = new Map(ruleset.sections.map((s, i) => [s.key, i]));
   return ruleset.questions
@@ -92,14 +118,24 @@ export interface SectionGroup {
 }
 
 /** Sections in walk order with their visible questions; a section with nothing to ask still shows when it has a tool (force, geometry, sensing). */
-export function groupBySection(ruleset: WalkRuleset, questions: readonly WalkQuestion[], alwaysShow: ReadonlySet<string> = new Set()): SectionGroup[] {
+export function groupBySection(
+  ruleset: WalkRuleset,
+  questions: readonly WalkQuestion[],
+  alwaysShow: ReadonlySet<string> = new Set(),
+): SectionGroup[] {
   return ruleset.sections
-    .map((section) => ({ key: section.key, title: section.title, questions: questions.filter((q) => q.section === section.key) }))
+    .map((section) => ({
+      key: section.key,
+      title: section.title,
+      questions: questions.filter((q) => q.section === section.key),
+    }))
     .filter((group) => group.questions.length > 0 || alwaysShow.has(group.key));
 }
 
 export function isAnswered(question: WalkQuestion, documents: WalkDocuments): boolean {
-  return isMeasured(question.answerType) ? documents.measurements[question.key] !== undefined : Boolean(documents.answers[question.key]?.value);
+  return isMeasured(question.answerType)
+    ? documents.measurements[question.key] !== undefined
+    : Boolean(documents.answers[question.key]?.value);
 }
 
 /** The question a missing fact (`answers.x`, `m.x`) points at, if it is one. */
@@ -125,7 +161,9 @@ export interface NeededItem {
   ruleIds: string[];
 }
 
-export function mergeNeeds(items: readonly { key: string; prompt: string; ruleIds: readonly string[] }[]): NeededItem[] {
+export function mergeNeeds(
+  items: readonly { key: string; prompt: string; ruleIds: readonly string[] }[],
+): NeededItem[] {
   const byPrompt = new Map<string, NeededItem>();
   for (const item of items) {
     const seen = byPrompt.get(item.prompt);

@@ -13,7 +13,14 @@ export async function keepWalkPageOffline(user: string): Promise<boolean> {
   await workbox.register();
   // Active means installed: the precache is complete.
   await navigator.serviceWorker.ready;
-  const photos = [...document.querySelectorAll<HTMLImageElement>('img[src*="/photos/"]')].map((img) => img.src);
-  const answer = (await workbox.messageSW({ type: 'KEEP_WALK_PAGE', user, url: location.pathname, photos })) as { kept?: boolean } | undefined;
+  const photos = [...document.querySelectorAll<HTMLImageElement>('img[src*="/photos/"]')].map(
+    (img) => img.src,
+  );
+  const answer = (await workbox.messageSW({
+    type: 'KEEP_WALK_PAGE',
+    user,
+    url: location.pathname,
+    photos,
+  })) as { kept?: boolean } | undefined;
   return answer?.kept === true;
 }

@@ -90,7 +90,8 @@ export async function enqueue(assessmentId: string, body: OutboxOpBody, blob?: B
   const tx = db.transaction(['ops', 'blobs'], 'readwrite');
   const op = { ...body, assessmentId, createdAt: new Date().toISOString() } as Omit<OutboxOp, 'seq'>;
   const seq = await tx.objectStore('ops').add(op as OutboxOp);
-  if (blob && body.kind === 'photo') await tx.objectStore('blobs').put({ clientRef: body.clientRef, assessmentId, blob });
+  if (blob && body.kind === 'photo')
+    await tx.objectStore('blobs').put({ clientRef: body.clientRef, assessmentId, blob });
   await tx.done;
   return { ...op, seq } as OutboxOp;
 }

@@ -40,9 +40,12 @@ export function exifTimeToIso(value: unknown, offset: unknown): string | null {
   if (!m) return null;
   const [y, mo, d, h, mi, s] = m.slice(1).map(Number) as [number, number, number, number, number, number];
   const zone = typeof offset === 'string' && /^[+-]\d{2}:\d{2}$/.test(offset.trim()) ? offset.trim() : null;
-  const date = zone ? new Date(`${m[1]}-${m[2]}-${m[3]}T${m[4]}:${m[5]}:${m[6]}${zone}`) : new Date(y, mo - 1, d, h, mi, s);
+  const date = zone
+    ? new Date(`${m[1]}-${m[2]}-${m[3]}T${m[4]}:${m[5]}:${m[6]}${zone}`)
+    : new Date(y, mo - 1, d, h, mi, s);
   // new Date() rolls 2026:02:30 over into March: refuse what the calendar does not have.
-  if (Number.isNaN(date.getTime()) || (!zone && (date.getMonth() !== mo - 1 || date.getDate() !== d))) return null;
+  if (Number.isNaN(date.getTime()) || (!zone && (date.getMonth() !== mo - 1 || date.getDate() !== d)))
+    return null;
   return date.toISOString();
 }
 

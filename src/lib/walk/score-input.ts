@@ -21,14 +21,22 @@ const SITE_FACTS = [
   ['slopeAcrossSwing', 'whether the ground slopes across the swing'],
 ] as const;
 
-function dimension(stored: number | null, entered: { value: number; unit: string } | undefined, unit: 'mm' | 'kg') {
+function dimension(
+  stored: number | null,
+  entered: { value: number; unit: string } | undefined,
+  unit: 'mm' | 'kg',
+) {
   if (stored === null) return undefined;
   const { value, unit: enteredUnit } = entered ?? { value: stored, unit };
   const kind = kindOfUnit(enteredUnit) ?? (unit === 'mm' ? 'length' : 'mass');
   return { value, unit: enteredUnit, canonical: canonicalValue(kind, value, enteredUnit) };
 }
 
-export function buildPreviewInput(gate: WalkGate, documents: WalkDocuments, questions: readonly WalkQuestion[]): PreviewInput {
+export function buildPreviewInput(
+  gate: WalkGate,
+  documents: WalkDocuments,
+  questions: readonly WalkQuestion[],
+): PreviewInput {
   const typeOf = new Map(questions.map((q) => [q.key, q.answerType]));
   const answers: Record<string, { value: string; note?: string }> = {};
   const choices: Record<string, { value: string; note?: string }> = {};
@@ -41,14 +49,20 @@ export function buildPreviewInput(gate: WalkGate, documents: WalkDocuments, ques
   const measurements: Record<string, { value: number; unit: string; canonical: number; note?: string }> = {};
   for (const [key, entry] of Object.entries(documents.measurements)) {
     if (!typeOf.has(key)) continue;
-    measurements[key] = entry.note ? entry : { value: entry.value, unit: entry.unit, canonical: entry.canonical };
+    measurements[key] = entry.note
+      ? entry
+      : { value: entry.value, unit: entry.unit, canonical: entry.canonical };
   }
   const site = (documents.observations.site ?? {}) as Record<string, unknown>;
   const blockers: string[] = [];
-  for (const [key, words] of SITE_FACTS) if (typeof site[key] !== 'boolean') blockers.push(`Say ${words} (gate and site, at the top).`);
-  if (typeof gate.operator.listed !== 'boolean') blockers.push('Say whether the operator is listed to the safety standard (edit the gate).');
-  if (typeof gate.operator.automaticClosing !== 'boolean') blockers.push('Say whether automatic closing is on (edit the gate).');
-  if (gate.kind === 'swing' && !gate.openingDirection) blockers.push('Say which way the swing gate opens (edit the gate).');
+  for (const [key, words] of SITE_FACTS)
+    if (typeof site[key] !== 'boolean') blockers.push(`Say ${words} (gate and site, at the top).`);
+  if (typeof gate.operator.listed !== 'boolean')
+    blockers.push('Say whether the operator is listed to the safety standard (edit the gate).');
+  if (typeof gate.operator.automaticClosing !== 'boolean')
+    blockers.push('Say whether automatic closing is on (edit the gate).');
+  if (gate.kind === 'swing' && !gate.openingDirection)
+    blockers.push('Say which way the swing gate opens (edit the gate).');
 
   const { entrapment, forceTests, swingGeometry, hrnOverrides } = documents.observations;
   const input: Record<string, unknown> = {
@@ -74,5 +88,7 @@ export function buildPreviewInput(gate: WalkGate, documents: WalkDocuments, ques
 }
 
 function stripUndefined<T extends Record<string, unknown>>(value: T): Partial<T> {
-  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined && v !== null)) as Partial<T>;
+  return Object.fromEntries(
+    Object.entries(value).filter(([, v]) => v !== undefined && v !== null),
+  ) as Partial<T>;
 }

@@ -7,9 +7,25 @@
  * sender (a react-query mutation).
  */
 import type { Assessment } from '@/lib/api/assessments';
-import { OfflineError, type Answer, type PhotoRecord, type Problem, type TraceRecord, type UploadProgress } from './api';
+import {
+  OfflineError,
+  type Answer,
+  type PhotoRecord,
+  type Problem,
+  type TraceRecord,
+  type UploadProgress,
+} from './api';
 import * as api from './api';
-import { applyDocumentsPatch, asDocuments, changedFields, findConflicts, toJson, withoutField, type FieldConflict, type WalkDocuments } from './documents';
+import {
+  applyDocumentsPatch,
+  asDocuments,
+  changedFields,
+  findConflicts,
+  toJson,
+  withoutField,
+  type FieldConflict,
+  type WalkDocuments,
+} from './documents';
 import { composeMergePatches, type JsonObject } from './merge-patch';
 import * as outbox from './outbox';
 import type { OutboxOp, OutboxOpBody, PhotoSource } from './outbox';
@@ -34,7 +50,12 @@ export type SendJob =
       source?: PhotoSource | null;
       onProgress?: UploadProgress;
     }
-  | { kind: 'trace'; assessmentId: string; idempotencyKey: string; op: Extract<OutboxOpBody, { kind: 'trace' }> }
+  | {
+      kind: 'trace';
+      assessmentId: string;
+      idempotencyKey: string;
+      op: Extract<OutboxOpBody, { kind: 'trace' }>;
+    }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
 export type Sender = (job: SendJob) => Promise<Answer<unknown>>;
@@ -107,7 +128,9 @@ const FLUSH_DELAY_MS = 400;
 
 function describeProblem(problem: Problem): string {
   const fields = (problem.errors ?? []).map((e) => `${e.field}: ${e.message}`).join('; ');
-  return [problem.detail ?? problem.title ?? `The server answered ${problem.status}`, fields].filter(Boolean).join(' — ');
+  return [problem.detail ?? problem.title ?? `The server answered ${problem.status}`, fields]
+    .filter(Boolean)
+    .join(' — ');
 }
 
 function whatOf(op: OutboxOp): string {
@@ -188,14 +211,20 @@ export class WalkSync {
    */
   async start(): Promise<void> {
     await this.serial(async () => {
-      const [snapshot, pending] = await Promise.all([outbox.loadSnapshot(this.initial.id), outbox.pendingOps(this.initial.id)]);
+      const [snapshot, pending] = await Promise.all([
+        outbox.loadSnapshot(this.initial.id),
+        outbox.pendingOps(this.initial.id),
+      ]);
       const initialSnapshot = {
         assessmentId: this.initial.id,
         rowVersion: this.initial.rowVersion,
         documents: toJson(this.initial.documents),
         savedAt: new Date().toISOString(),
       };
-      const base = snapshot && (pending.length > 0 || snapshot.rowVersion > this.initial.rowVersion) ? snapshot : initialSnapshot;
+      const base =
+        snapshot && (pending.length > 0 || snapshot.rowVersion > this.initial.rowVersion)
+          ? snapshot
+          : initialSnapshot;
       if (base === initialSnapshot) await outbox.saveSnapshot(initialSnapshot);
       this.applyBase(base.rowVersion, asDocuments(base.documents), pending);
     });
@@ -207,7 +236,11 @@ export class WalkSync {
     if (this.state.status !== 'draft') {
       // Submitted (here or elsewhere): nothing more can be saved; edits left on the device are listed as not saved.
       const left = this.state.pending;
-      for (const op of left) this.refuse(op, { status: 409, detail: 'The assessment was submitted before this change reached the server.' });
+      for (const op of left)
+        this.refuse(op, {
+          status: 409,
+          detail: 'The assessment was submitted before this change reached the server.',
+        });
       if (left.length) await this.serial(() => outbox.removeOps(left));
       this.set({ phase: 'closed', online, pending: [], pendingCount: 0, view: this.state.server });
       return;
@@ -236,9 +269,19 @@ export class WalkSync {
   };
 
   private applyBase(rowVersion: number, server: WalkDocuments, pending: OutboxOp[]): void {
-    const patches = pending.filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch').map((op) => op.patch);
-    const pendingCount = new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size + pending.filter((op) => op.kind !== 'patch').length;
-    this.set({ rowVersion, server, view: patches.reduce(applyDocumentsPatch, server), pending, pendingCount });
+    const patches = pending
+      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .map((op) => op.patch);
+    const pendingCount =
+      new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size +
+      pending.filter((op) => op.kind !== 'patch').length;
+    this.set({
+      rowVersion,
+      server,
+      view: patches.reduce(applyDocumentsPatch, server),
+      pending,
+      pendingCount,
+    });
   }
 
   private async reloadPending(): Promise<void> {
@@ -253,7 +296,10 @@ export class WalkSync {
     return this.serial(async () => {
       const pending = await outbox.pendingOps(this.initial.id);
       const last = pending[pending.length - 1];
-      const folded = last?.kind === 'patch' && !this.inFlight.has(last.seq) ? composeMergePatches(last.patch, patch) : null;
+      const folded =
+        last?.kind === 'patch' && !this.inFlight.has(last.seq)
+          ? composeMergePatches(last.patch, patch)
+          : null;
       if (last?.kind === 'patch' && folded) await outbox.replaceOp({ ...last, patch: folded });
       else await outbox.enqueue(this.initial.id, { kind: 'patch', patch });
       await this.reloadPending();
@@ -263,7 +309,16 @@ export class WalkSync {
   }
 
   /** Queues a photo with its bytes; it shows as waiting until uploaded. */
-  addPhoto(photo: { clientRef: string; itemKey: string; fileName: string; takenAt: string | null; source?: PhotoSource | null }, blob: Blob): Promise<void> {
+  addPhoto(
+    photo: {
+      clientRef: string;
+      itemKey: string;
+      fileName: string;
+      takenAt: string | null;
+      source?: PhotoSource | null;
+    },
+    blob: Blob,
+  ): Promise<void> {
     return this.serial(async () => {
       await outbox.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
       await this.reloadPending();
@@ -284,7 +339,12 @@ export class WalkSync {
   /** Removes a photo or trace: one still on the device is dropped; an uploaded one is deleted on the server. */
   remove(kind: 'removePhoto' | 'removeTrace', clientRef: string, serverId: string | null): Promise<void> {
     return this.serial(async () => {
-      const waiting = this.state.pending.find((op) => (op.kind === 'photo' || op.kind === 'trace') && op.clientRef === clientRef && !this.inFlight.has(op.seq));
+      const waiting = this.state.pending.find(
+        (op) =>
+          (op.kind === 'photo' || op.kind === 'trace') &&
+          op.clientRef === clientRef &&
+          !this.inFlight.has(op.seq),
+      );
       if (waiting) {
         await outbox.removeOps([waiting]);
         this.setUpload(clientRef, null);
@@ -298,7 +358,9 @@ export class WalkSync {
 
   /** The auditor's "Retry" on a stopped upload: try the queue again now instead of at the next timed retry. */
   retryUploads(): Promise<void> {
-    const uploads = Object.fromEntries(Object.entries(this.state.uploads).map(([ref, u]) => [ref, { ...u, failed: null }]));
+    const uploads = Object.fromEntries(
+      Object.entries(this.state.uploads).map(([ref, u]) => [ref, { ...u, failed: null }]),
+    );
     this.set({ uploads });
     return this.flush();
   }
@@ -326,12 +388,21 @@ export class WalkSync {
 
   private refuse(op: OutboxOp, problem: Problem): void {
     this.refusedSeq += 1;
-    this.set({ refused: [...this.state.refused, { id: this.refusedSeq, what: whatOf(op), message: describeProblem(problem) }] });
+    this.set({
+      refused: [
+        ...this.state.refused,
+        { id: this.refusedSeq, what: whatOf(op), message: describeProblem(problem) },
+      ],
+    });
   }
 
   /** The server's copy became the base: remember it on the device too. */
   private async adopt(assessment: Assessment): Promise<void> {
-    const documents = asDocuments({ answers: assessment.answers, measurements: assessment.measurements, observations: assessment.observations } as never);
+    const documents = asDocuments({
+      answers: assessment.answers,
+      measurements: assessment.measurements,
+      observations: assessment.observations,
+    } as never);
     await outbox.saveSnapshot({
       assessmentId: this.initial.id,
       rowVersion: assessment.rowVersion,
@@ -388,7 +459,11 @@ export class WalkSync {
     } catch (error) {
       if (!(error instanceof OfflineError)) throw error;
       const stopped = this.uploading ? this.state.uploads[this.uploading] : undefined;
-      if (this.uploading && stopped) this.setUpload(this.uploading, { ...stopped, failed: 'The connection dropped; the photo is kept on this phone.' });
+      if (this.uploading && stopped)
+        this.setUpload(this.uploading, {
+          ...stopped,
+          failed: 'The connection dropped; the photo is kept on this phone.',
+        });
       this.set({ phase: 'waiting', online: false });
       this.scheduleRetry();
     } finally {
@@ -415,13 +490,19 @@ export class WalkSync {
         batch.push(op);
       }
       batch.forEach((op) => this.inFlight.add(op.seq));
-      const result = await this.sender({ kind: 'patch', assessmentId: id, rowVersion: this.state.rowVersion, patch });
+      const result = await this.sender({
+        kind: 'patch',
+        assessmentId: id,
+        rowVersion: this.state.rowVersion,
+        patch,
+      });
       if (result.ok) {
         await this.drop(batch);
         await this.serial(() => this.adopt(result.value as Assessment));
         return true;
       }
-      if (result.problem.status === 409 && result.problem.current) return this.handleConflict(result.problem.current);
+      if (result.problem.status === 409 && result.problem.current)
+        return this.handleConflict(result.problem.current);
       this.refuse(head, result.problem);
       await this.drop(batch);
       return true;
@@ -460,18 +541,37 @@ export class WalkSync {
         return false;
       }
       this.setUpload(ref, null);
-      if (result.ok) this.set({ photos: [...this.state.photos.filter((p) => p.clientRef !== head.clientRef), result.value as PhotoRecord] });
+      if (result.ok)
+        this.set({
+          photos: [
+            ...this.state.photos.filter((p) => p.clientRef !== head.clientRef),
+            result.value as PhotoRecord,
+          ],
+        });
     } else if (head.kind === 'trace') {
       const { seq: _s, assessmentId: _a, createdAt: _c, ...op } = head;
       result = await this.sender({ kind: 'trace', assessmentId: id, idempotencyKey: head.clientRef, op });
-      if (result.ok) this.set({ traces: [...this.state.traces.filter((t) => t.clientRef !== head.clientRef), result.value as TraceRecord] });
+      if (result.ok)
+        this.set({
+          traces: [
+            ...this.state.traces.filter((t) => t.clientRef !== head.clientRef),
+            result.value as TraceRecord,
+          ],
+        });
     } else {
-      result = head.serverId ? await this.sender({ kind: head.kind, assessmentId: id, serverId: head.serverId }) : { ok: true, value: null };
+      result = head.serverId
+        ? await this.sender({ kind: head.kind, assessmentId: id, serverId: head.serverId })
+        : { ok: true, value: null };
       // Already gone on the server is what we wanted.
       if (!result.ok && result.problem.status === 404) result = { ok: true, value: null };
     }
     if (!result.ok) {
-      if (result.problem.status === 409 && result.problem.current && result.problem.current.status !== 'draft') return this.close(result.problem.current);
+      if (
+        result.problem.status === 409 &&
+        result.problem.current &&
+        result.problem.current.status !== 'draft'
+      )
+        return this.close(result.problem.current);
       this.refuse(head, result.problem);
     }
     await this.drop([head]);
@@ -491,9 +591,15 @@ export class WalkSync {
 
   private async handleConflict(current: Assessment): Promise<boolean> {
     if (current.status !== 'draft') return this.close(current);
-    const theirs = asDocuments({ answers: current.answers, measurements: current.measurements, observations: current.observations } as never);
+    const theirs = asDocuments({
+      answers: current.answers,
+      measurements: current.measurements,
+      observations: current.observations,
+    } as never);
     const pending = await this.serial(() => outbox.pendingOps(this.initial.id));
-    const patches = pending.filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch').map((op) => op.patch);
+    const patches = pending
+      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .map((op) => op.patch);
     const conflicts = findConflicts(this.state.server, theirs, patches);
     if (conflicts.length === 0) {
       // Someone else changed other fields: take their copy as the base and send ours again.

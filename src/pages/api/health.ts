@@ -13,7 +13,11 @@ export const GET: APIRoute = async () => {
   const status = database.ok ? 'ok' : 'unavailable';
   const body = {
     status,
-    db: { ok: database.ok, latencyMs: database.latencyMs, ...(database.ok ? {} : { error: 'database unreachable' }) },
+    db: {
+      ok: database.ok,
+      latencyMs: database.latencyMs,
+      ...(database.ok ? {} : { error: 'database unreachable' }),
+    },
     mail,
     version: appVersion,
   };

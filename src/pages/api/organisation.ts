@@ -18,5 +18,7 @@ export const GET: APIRoute = handle(async ({ locals }) => {
 export const PATCH: APIRoute = handle(async (context) => {
   const { user, organisation } = requireRole(context.locals, 'owner');
   const patch = await parseBody(OrganisationPatchSchema, context.request);
-  return Response.json(found(await updateOrganisation(organisation.id, patch, actorOf(user, context)), 'The organisation'));
+  return Response.json(
+    found(await updateOrganisation(organisation.id, patch, actorOf(user, context)), 'The organisation'),
+  );
 });

@@ -12,7 +12,10 @@ import { clearSessionCookies, recordSignOut } from '@/lib/server/auth/sign-out';
 export const POST: APIRoute = async (context) => {
   const session = await readSession(context.request);
   if (session.state === 'active') {
-    await recordSignOut(session.user.id, clientAddressOf(context), { id: session.session.id, expiresAt: session.session.expiresAt });
+    await recordSignOut(session.user.id, clientAddressOf(context), {
+      id: session.session.id,
+      expiresAt: session.session.expiresAt,
+    });
   }
   clearSessionCookies(context.request.headers.get('cookie'), context.cookies);
   return context.redirect('/signin?signedOut=1', 303);

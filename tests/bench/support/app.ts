@@ -74,6 +74,7 @@ export async function signInCookie(baseUrl: string, email: string, password: str
     body: new URLSearchParams({ email, password, csrfToken, callbackUrl: '/' }),
   });
   keep(res);
-  if (![...jar.keys()].some((k) => k.includes('session-token'))) throw new Error(`sign-in of ${email} failed (${res.status})`);
+  if (![...jar.keys()].some((k) => k.includes('session-token')))
+    throw new Error(`sign-in of ${email} failed (${res.status})`);
   return cookie();
 }

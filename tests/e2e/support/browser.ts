@@ -35,7 +35,9 @@ export interface BrowserSession {
 
 export async function launchBrowser(baseURL: string): Promise<BrowserSession> {
   if (!fs.existsSync(chromiumPath)) {
-    throw new Error(`chromium not found at ${chromiumPath}: apt-get install -y chromium (or set CHROMIUM_PATH)`);
+    throw new Error(
+      `chromium not found at ${chromiumPath}: apt-get install -y chromium (or set CHROMIUM_PATH)`,
+    );
   }
   const profile = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {

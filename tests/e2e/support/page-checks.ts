@@ -19,7 +19,13 @@ export const screenshotsDir = path.resolve(path.dirname(fileURLToPath(import.met
  * checked when it first loads).
  */
 export async function seriousAxeViolations(page: Page, include: string[] = []): Promise<string[]> {
-  let builder = new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'best-practice']);
+  let builder = new AxeBuilder({ page }).withTags([
+    'wcag2a',
+    'wcag2aa',
+    'wcag21a',
+    'wcag21aa',
+    'best-practice',
+  ]);
   for (const selector of include) builder = builder.include(selector);
   const { violations } = await builder.analyze();
   return violations
@@ -28,13 +34,18 @@ export async function seriousAxeViolations(page: Page, include: string[] = []): 
       (v) =>
         `${v.id} (${v.impact}): ${v.help} — ${v.nodes
           .slice(0, 3)
-          .map((n) => `${n.target.join(' ')} ${n.html.slice(0, 100)} [${(n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 160)}]`)
+          .map(
+            (n) =>
+              `${n.target.join(' ')} ${n.html.slice(0, 100)} [${(n.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 160)}]`,
+          )
           .join(' | ')}`,
     );
 }
 
 async function savePng(buffer: Buffer, file: string): Promise<void> {
-  const small = await sharp(buffer).png({ palette: true, quality: 90, compressionLevel: 9, effort: 8 }).toBuffer();
+  const small = await sharp(buffer)
+    .png({ palette: true, quality: 90, compressionLevel: 9, effort: 8 })
+    .toBuffer();
   fs.writeFileSync(file, small);
 }
 
@@ -42,7 +53,11 @@ async function savePng(buffer: Buffer, file: string): Promise<void> {
  * Saves `<name>-360.png` and `<name>-1280.png` (the viewport, or the whole page with
  * `fullPage`), then puts the phone viewport back.
  */
-export async function screenshotBothWidths(page: Page, name: string, options: { fullPage?: boolean; focus?: string } = {}): Promise<void> {
+export async function screenshotBothWidths(
+  page: Page,
+  name: string,
+  options: { fullPage?: boolean; focus?: string } = {},
+): Promise<void> {
   fs.mkdirSync(screenshotsDir, { recursive: true });
   for (const viewport of [phoneViewport, desktopViewport]) {
     await page.setViewportSize(viewport);
@@ -54,7 +69,11 @@ export async function screenshotBothWidths(page: Page, name: string, options: { 
         .evaluate((el) => el.scrollIntoView({ block: 'start' }));
     await page.evaluate(() => window.scrollTo(0, window.scrollY));
     await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
-    const buffer = await page.screenshot({ fullPage: options.fullPage ?? false, animations: 'disabled', caret: 'hide' });
+    const buffer = await page.screenshot({
+      fullPage: options.fullPage ?? false,
+      animations: 'disabled',
+      caret: 'hide',
+    });
     await savePng(buffer, path.join(screenshotsDir, `${name}-${viewport.width}.png`));
   }
   await page.setViewportSize(phoneViewport);

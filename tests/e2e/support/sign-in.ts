@@ -13,7 +13,11 @@ export async function signInThroughForm(page: Page, email: string, next?: string
 }
 
 /** Gives the browser the session of a client signed in over HTTP (e.g. a homeowner's link sign-in). */
-export async function useSessionOf(context: BrowserContext, client: TestClient, baseUrl: string): Promise<void> {
+export async function useSessionOf(
+  context: BrowserContext,
+  client: TestClient,
+  baseUrl: string,
+): Promise<void> {
   const host = new URL(baseUrl).hostname;
   await context.clearCookies();
   await context.addCookies(

@@ -12,7 +12,14 @@ import { inject } from 'vitest';
 import { loadRulesetFile, resultSha256, scoreParsed, type LoadedRuleset } from '../../../src/lib/rules';
 import { buildEngineInput } from '../../../src/lib/server/assessment-input';
 import { createDiskStorage } from '../../../src/lib/server/storage/disk';
-import { createPrng, sampleDocuments, sampleGate, type Prng, type SampleDocuments, type SampleGate } from '../../support/archive-samples';
+import {
+  createPrng,
+  sampleDocuments,
+  sampleGate,
+  type Prng,
+  type SampleDocuments,
+  type SampleGate,
+} from '../../support/archive-samples';
 import { testDb } from './fixtures';
 
 const tag = () => randomBytes(3).toString('hex');
@@ -20,8 +27,14 @@ const tag = () => randomBytes(3).toString('hex');
 /** The server's file storage (the test server runs with LATCHWELL_DATA_DIR = inject('dataDir')). */
 export const serverStorage = () => createDiskStorage(path.join(inject('dataDir'), 'files'));
 
-export async function addClient(organisationId: string, name: string, email: string | null = `office.${tag()}@clients.test`): Promise<string> {
-  const [row] = await testDb()('clients').insert({ organisation_id: organisationId, name, kind: 'property_manager', contact_email: email }).returning('id');
+export async function addClient(
+  organisationId: string,
+  name: string,
+  email: string | null = `office.${tag()}@clients.test`,
+): Promise<string> {
+  const [row] = await testDb()('clients')
+    .insert({ organisation_id: organisationId, name, kind: 'property_manager', contact_email: email })
+    .returning('id');
   return row.id;
 }
 
@@ -34,12 +47,25 @@ export async function addSite(
   postalCode: string | null = null,
 ): Promise<string> {
   const [row] = await testDb()('sites')
-    .insert({ organisation_id: organisationId, client_id: clientId, address_line1: address, city, usage_class: usageClass, postal_code: postalCode })
+    .insert({
+      organisation_id: organisationId,
+      client_id: clientId,
+      address_line1: address,
+      city,
+      usage_class: usageClass,
+      postal_code: postalCode,
+    })
     .returning('id');
   return row.id;
 }
 
-export async function addGate(organisationId: string, siteId: string, label: string, gate: SampleGate, fields: Record<string, unknown> = {}): Promise<string> {
+export async function addGate(
+  organisationId: string,
+  siteId: string,
+  label: string,
+  gate: SampleGate,
+  fields: Record<string, unknown> = {},
+): Promise<string> {
   const [row] = await testDb()('gates')
     .insert({
       organisation_id: organisationId,
@@ -102,7 +128,9 @@ export interface FileOptions {
 /** Scores sample documents with the real engine and files the assessment (signed: with its PDF). */
 export async function fileAssessment(options: FileOptions): Promise<FiledAssessment> {
   const status = options.status ?? 'signed';
-  const documents = options.documents ?? sampleDocuments(options.prng ?? createPrng(Date.now() & 0xffff), options.version.loaded.version);
+  const documents =
+    options.documents ??
+    sampleDocuments(options.prng ?? createPrng(Date.now() & 0xffff), options.version.loaded.version);
   const id = randomUUID();
   const row: Record<string, unknown> = {
     id,
@@ -119,7 +147,11 @@ export async function fileAssessment(options: FileOptions): Promise<FiledAssessm
   };
   let verdict: FiledAssessment['verdict'] = null;
   if (status !== 'draft') {
-    const built = buildEngineInput({ ...options.gate, usageClass: options.usageClass } as never, documents as never, options.version.loaded.version.questions);
+    const built = buildEngineInput(
+      { ...options.gate, usageClass: options.usageClass } as never,
+      documents as never,
+      options.version.loaded.version.questions,
+    );
     if (!built.ok) throw new Error(`sample documents do not build: ${JSON.stringify(built.errors)}`);
     const result = scoreParsed(built.value, options.version.loaded);
     verdict = result.verdict;
@@ -135,7 +167,9 @@ export async function fileAssessment(options: FileOptions): Promise<FiledAssessm
   await testDb()('assessments').insert(row);
   if (status !== 'signed') return { id, verdict, documentId: null, pdf: null, pdfSha256: null };
 
-  const pdf = Buffer.from(`%PDF-1.7\n% Latchwell archive test report ${id}\n1 0 obj << /Type /Catalog >> endobj\n%%EOF\n`);
+  const pdf = Buffer.from(
+    `%PDF-1.7\n% Latchwell archive test report ${id}\n1 0 obj << /Type /Catalog >> endobj\n%%EOF\n`,
+  );
   const stored = await serverStorage().put(pdf, 'application/pdf');
   const [document] = await testDb()('documents')
     .insert({

@@ -8,7 +8,10 @@ import { testDb, type FixtureOrganisation } from './fixtures';
 
 const suffix = () => randomBytes(3).toString('hex');
 
-export async function insertClient(organisationId: string, fields: Record<string, unknown> = {}): Promise<string> {
+export async function insertClient(
+  organisationId: string,
+  fields: Record<string, unknown> = {},
+): Promise<string> {
   const [row] = await testDb()('clients')
     .insert({
       organisation_id: organisationId,
@@ -21,7 +24,11 @@ export async function insertClient(organisationId: string, fields: Record<string
   return row.id;
 }
 
-export async function insertSite(organisationId: string, clientId: string, fields: Record<string, unknown> = {}): Promise<string> {
+export async function insertSite(
+  organisationId: string,
+  clientId: string,
+  fields: Record<string, unknown> = {},
+): Promise<string> {
   const [row] = await testDb()('sites')
     .insert({
       organisation_id: organisationId,
@@ -36,7 +43,11 @@ export async function insertSite(organisationId: string, clientId: string, field
 }
 
 /** A swing gate with everything the engine needs from the gate row. */
-export async function insertGate(organisationId: string, siteId: string, fields: Record<string, unknown> = {}): Promise<string> {
+export async function insertGate(
+  organisationId: string,
+  siteId: string,
+  fields: Record<string, unknown> = {},
+): Promise<string> {
   const [row] = await testDb()('gates')
     .insert({
       organisation_id: organisationId,
@@ -48,8 +59,18 @@ export async function insertGate(organisationId: string, siteId: string, fields:
       width_mm: 3660,
       height_mm: 1520,
       weight_kg: 140,
-      entered: JSON.stringify({ width: { value: 12, unit: 'ft' }, height: { value: 1520, unit: 'mm' }, weight: { value: 140, unit: 'kg' } }),
-      operator: JSON.stringify({ listed: true, automaticClosing: false, manufacturedOn: '2019-05-01', mounting: 'post', power: 'low_voltage_dc' }),
+      entered: JSON.stringify({
+        width: { value: 12, unit: 'ft' },
+        height: { value: 1520, unit: 'mm' },
+        weight: { value: 140, unit: 'kg' },
+      }),
+      operator: JSON.stringify({
+        listed: true,
+        automaticClosing: false,
+        manufacturedOn: '2019-05-01',
+        mounting: 'post',
+        power: 'low_voltage_dc',
+      }),
       installed_on: '2019-06-20',
       ...fields,
     })
@@ -126,8 +147,11 @@ export async function snapshotTables(
   tables = ['clients', 'sites', 'gates', 'assessments'] as const,
 ): Promise<Record<string, unknown[]>> {
   const out: Record<string, unknown[]> = {};
-  for (const table of tables) out[table] = await testDb()(table).where({ organisation_id: organisationId }).orderBy('id').select('*');
-  const [{ count }] = await testDb()('audit_events').where({ organisation_id: organisationId }).count({ count: '*' });
+  for (const table of tables)
+    out[table] = await testDb()(table).where({ organisation_id: organisationId }).orderBy('id').select('*');
+  const [{ count }] = await testDb()('audit_events')
+    .where({ organisation_id: organisationId })
+    .count({ count: '*' });
   out.audit_events = [Number(count)];
   return out;
 }
@@ -138,7 +162,12 @@ export async function insertLocalVersion(organisationId: string): Promise<string
     .insert({ organisation_id: organisationId, family: `local-${suffix()}`, title: 'Local test family' })
     .returning('id');
   const [version] = await testDb()('ruleset_versions')
-    .insert({ ruleset_id: ruleset.id, version: '2026.1', content: JSON.stringify({ questions: [] }), content_sha256: '0'.repeat(64) })
+    .insert({
+      ruleset_id: ruleset.id,
+      version: '2026.1',
+      content: JSON.stringify({ questions: [] }),
+      content_sha256: '0'.repeat(64),
+    })
     .returning('id');
   return version.id;
 }

@@ -55,7 +55,11 @@ let ownerConnection: Knex | undefined;
  * than the app's powers, or corruption); everything else goes through `testDb()`, the app role.
  */
 export function ownerTestDb(): Knex {
-  ownerConnection ??= knex({ client: 'pg', connection: inject('migrationDatabaseUrl'), pool: { min: 0, max: 2 } });
+  ownerConnection ??= knex({
+    client: 'pg',
+    connection: inject('migrationDatabaseUrl'),
+    pool: { min: 0, max: 2 },
+  });
   return ownerConnection;
 }
 
@@ -86,7 +90,12 @@ export async function createOrganisation(label = 'org'): Promise<FixtureOrganisa
       .insert({ name: `Fixture Gates ${tag}`, slug: tag, display_units: 'metric', time_zone: 'UTC' })
       .returning(['id', 'slug', 'name']);
     const [client] = await trx('clients')
-      .insert({ organisation_id: org.id, name: `Household ${tag}`, kind: 'homeowner', contact_email: `home.${tag}@fixtures.test` })
+      .insert({
+        organisation_id: org.id,
+        name: `Household ${tag}`,
+        kind: 'homeowner',
+        contact_email: `home.${tag}@fixtures.test`,
+      })
       .returning('id');
     const staff: { key: 'owner' | 'office' | 'auditor' | 'auditor2'; role: Role; name: string }[] = [
       { key: 'owner', role: 'owner', name: `Owner ${tag}` },
@@ -95,14 +104,28 @@ export async function createOrganisation(label = 'org'): Promise<FixtureOrganisa
       { key: 'auditor2', role: 'auditor', name: `Second auditor ${tag}` },
     ];
     const rows = await trx('users')
-      .insert(staff.map((s) => ({ organisation_id: org.id, email: `${s.key}.${tag}@fixtures.test`, name: s.name, role: s.role, password_hash: hash })))
+      .insert(
+        staff.map((s) => ({
+          organisation_id: org.id,
+          email: `${s.key}.${tag}@fixtures.test`,
+          name: s.name,
+          role: s.role,
+          password_hash: hash,
+        })),
+      )
       .returning(['id', 'email', 'name', 'role']);
     const person = (key: string): FixturePerson => {
       const row = rows.find((r) => r.email.startsWith(`${key}.`));
       return { id: row.id, email: row.email, name: row.name, role: row.role, password: fixturePassword };
     };
     const [home] = await trx('users')
-      .insert({ organisation_id: org.id, email: `home.${tag}@fixtures.test`, name: `Homeowner ${tag}`, role: 'homeowner', client_id: client.id })
+      .insert({
+        organisation_id: org.id,
+        email: `home.${tag}@fixtures.test`,
+        name: `Homeowner ${tag}`,
+        role: 'homeowner',
+        client_id: client.id,
+      })
       .returning(['id', 'email', 'name', 'role']);
     return {
       id: org.id,
@@ -112,7 +135,14 @@ export async function createOrganisation(label = 'org'): Promise<FixtureOrganisa
       office: person('office'),
       auditor: person('auditor'),
       auditor2: person('auditor2'),
-      homeowner: { id: home.id, email: home.email, name: home.name, role: 'homeowner', password: null, clientId: client.id },
+      homeowner: {
+        id: home.id,
+        email: home.email,
+        name: home.name,
+        role: 'homeowner',
+        password: null,
+        clientId: client.id,
+      },
       clientId: client.id,
     };
   });
@@ -165,7 +195,11 @@ export function anonymousClient(options: { address?: string } = {}): TestClient 
     json(method, path, body) {
       const headers: Record<string, string> = { accept: 'application/json' };
       if (body !== undefined) headers['content-type'] = 'application/json';
-      return client.fetch(path, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) });
+      return client.fetch(path, {
+        method,
+        headers,
+        body: body === undefined ? undefined : JSON.stringify(body),
+      });
     },
   };
   return client;
@@ -179,7 +213,10 @@ function keepCookies(jar: Map<string, string>, res: Response) {
     const value = pair.slice(eq + 1).trim();
     const expired = attributes.some((a) => {
       const [k, v = ''] = a.split('=').map((s) => s.trim());
-      return (k.toLowerCase() === 'max-age' && Number(v) <= 0) || (k.toLowerCase() === 'expires' && Date.parse(v) < Date.now());
+      return (
+        (k.toLowerCase() === 'max-age' && Number(v) <= 0) ||
+        (k.toLowerCase() === 'expires' && Date.parse(v) < Date.now())
+      );
     });
     if (expired || value === '') jar.delete(name);
     else jar.set(name, value);
@@ -224,7 +261,8 @@ export async function postCredentials(
 export async function signIn(email: string, password: string): Promise<TestClient> {
   const client = anonymousClient();
   const res = await postCredentials(client, 'credentials', { email, password, callbackUrl: '/' });
-  if (!hasSession(client)) throw new Error(`sign-in of ${email} failed: ${res.status} ${res.headers.get('location') ?? ''}`);
+  if (!hasSession(client))
+    throw new Error(`sign-in of ${email} failed: ${res.status} ${res.headers.get('location') ?? ''}`);
   return client;
 }
 
@@ -246,7 +284,11 @@ export async function caughtMailIds(to: string): Promise<Set<string>> {
  * before the action that sends it) and returns its subject, text and html. Polls the catcher
  * for up to `timeoutMs`.
  */
-export async function waitForMail(to: string, seen: Set<string>, timeoutMs = 8000): Promise<{ subject: string; text: string; html: string | null }> {
+export async function waitForMail(
+  to: string,
+  seen: Set<string>,
+  timeoutMs = 8000,
+): Promise<{ subject: string; text: string; html: string | null }> {
   const catcherUrl = inject('catcherUrl');
   const deadline = Date.now() + timeoutMs;
   for (;;) {
@@ -265,7 +307,9 @@ export async function waitForMail(to: string, seen: Set<string>, timeoutMs = 800
 
 /** Finds the first absolute URL in a message body whose path starts with `pathPrefix`. */
 export function linkIn(text: string, pathPrefix: string): string {
-  const url = [...text.matchAll(/https?:\/\/[^\s"'<>]+/g)].map((m) => m[0]).find((u) => new URL(u).pathname.startsWith(pathPrefix));
+  const url = [...text.matchAll(/https?:\/\/[^\s"'<>]+/g)]
+    .map((m) => m[0])
+    .find((u) => new URL(u).pathname.startsWith(pathPrefix));
   if (!url) throw new Error(`no ${pathPrefix} link in:\n${text}`);
   return url;
 }
@@ -274,7 +318,8 @@ export function linkIn(text: string, pathPrefix: string): string {
 export async function requestHomeownerLink(email: string): Promise<string> {
   const seen = await caughtMailIds(email);
   const res = await anonymousClient().json('POST', '/api/auth/email-link', { email });
-  if (res.status !== 202) throw new Error(`requesting a link for ${email} answered ${res.status}: ${await res.text()}`);
+  if (res.status !== 202)
+    throw new Error(`requesting a link for ${email} answered ${res.status}: ${await res.text()}`);
   const mail = await waitForMail(email, seen);
   return linkIn(mail.text, '/signin/link');
 }
@@ -297,12 +342,17 @@ export async function followHomeownerLink(link: string): Promise<{ client: TestC
 /** Signs a homeowner in through the e-mailed one-time link, read from the mail catcher. */
 export async function signInHomeowner(email: string): Promise<TestClient> {
   const { client, response } = await followHomeownerLink(await requestHomeownerLink(email));
-  if (!hasSession(client)) throw new Error(`link sign-in of ${email} failed: ${response.status} ${response.headers.get('location') ?? ''}`);
+  if (!hasSession(client))
+    throw new Error(
+      `link sign-in of ${email} failed: ${response.status} ${response.headers.get('location') ?? ''}`,
+    );
   return client;
 }
 
 /** Signs in every person of a fixture organisation (homeowner through the mail link). */
-export async function signInAll(org: FixtureOrganisation): Promise<Record<'owner' | 'office' | 'auditor' | 'auditor2' | 'homeowner', TestClient>> {
+export async function signInAll(
+  org: FixtureOrganisation,
+): Promise<Record<'owner' | 'office' | 'auditor' | 'auditor2' | 'homeowner', TestClient>> {
   const [owner, office, auditor, auditor2, homeowner] = await Promise.all([
     signIn(org.owner.email, fixturePassword),
     signIn(org.office.email, fixturePassword),

@@ -11,7 +11,12 @@ const count = (value: number) => ({ value, unit: 'count', canonical: value });
 const yes = { value: 'yes' as const };
 const no = { value: 'no' as const };
 
-const quietSite = { pedestriansUseDriveway: true, childrenOrPetsPresent: true, publicAccess: false, slopeAcrossSwing: false };
+const quietSite = {
+  pedestriansUseDriveway: true,
+  childrenOrPetsPresent: true,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
 
 /**
  * A pull-to-open residential swing gate whose open leaf stops 12 in from a brick pier

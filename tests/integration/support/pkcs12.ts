@@ -75,10 +75,16 @@ export async function makePkcs12(
   leaf.setIssuer(issuerAttrs);
   leaf.setExtensions([
     { name: 'basicConstraints', cA: false },
-    { name: 'keyUsage', critical: true, ...(options.keyUsage ?? { digitalSignature: true, nonRepudiation: true }) },
+    {
+      name: 'keyUsage',
+      critical: true,
+      ...(options.keyUsage ?? { digitalSignature: true, nonRepudiation: true }),
+    },
   ]);
   leaf.sign(signingKey, forge.md.sha256.create());
-  const asn1 = forge.pkcs12.toPkcs12Asn1(leafKeys.privateKey, [leaf, ...chain], passphrase, { algorithm: '3des' });
+  const asn1 = forge.pkcs12.toPkcs12Asn1(leafKeys.privateKey, [leaf, ...chain], passphrase, {
+    algorithm: '3des',
+  });
   const der = Buffer.from(forge.asn1.toDer(forge.pki.certificateToAsn1(leaf)).getBytes(), 'binary');
   return {
     p12: Buffer.from(forge.asn1.toDer(asn1).getBytes(), 'binary'),
@@ -99,9 +105,14 @@ export function pdfSignerSha256(pdf: Buffer): string {
   const last = ranges.at(-1);
   if (!last) throw new Error('the PDF has no signature');
   const contents = text.slice(Number(last[1]) + Number(last[2]), Number(last[3])).replace(/[<>\s]/g, '');
-  const asn1 = forge.asn1.fromDer(forge.util.hexToBytes(contents), { parseAllBytes: false } as unknown as boolean);
-  const cms = forge.pkcs7.messageFromAsn1(asn1) as forge.pkcs7.PkcsSignedData & { rawCapture: { signerInfos: forge.asn1.Asn1[] } };
-  const issuerAndSerial = (cms.rawCapture.signerInfos[0]!.value as forge.asn1.Asn1[])[1]!.value as forge.asn1.Asn1[];
+  const asn1 = forge.asn1.fromDer(forge.util.hexToBytes(contents), {
+    parseAllBytes: false,
+  } as unknown as boolean);
+  const cms = forge.pkcs7.messageFromAsn1(asn1) as forge.pkcs7.PkcsSignedData & {
+    rawCapture: { signerInfos: forge.asn1.Asn1[] };
+  };
+  const issuerAndSerial = (cms.rawCapture.signerInfos[0]!.value as forge.asn1.Asn1[])[1]!
+    .value as forge.asn1.Asn1[];
   const serial = forge.util.bytesToHex(issuerAndSerial[1]!.value as string);
   const signer = cms.certificates.find((c) => c.serialNumber.toLowerCase() === serial.toLowerCase());
   if (!signer) throw new Error('no certificate in the signature matches its signer');

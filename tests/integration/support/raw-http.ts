@@ -39,7 +39,10 @@ export function rawRequest(url: string | URL, options: RawRequest = {}): Promise
   const target = new URL(url);
   const headers: Record<string, string> = { ...options.headers };
   if (options.body !== undefined) headers['content-length'] = String(Buffer.byteLength(options.body));
-  else if (options.streamBytes !== undefined && !Object.keys(headers).some((h) => h.toLowerCase() === 'content-length'))
+  else if (
+    options.streamBytes !== undefined &&
+    !Object.keys(headers).some((h) => h.toLowerCase() === 'content-length')
+  )
     headers['transfer-encoding'] = 'chunked';
   // A keep-alive connection of its own: with `Connection: close` (what `agent: false` sends) the
   // server closes right after answering, and a client still sending may see the reset first.

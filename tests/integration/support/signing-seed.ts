@@ -32,7 +32,9 @@ const areas = [
 
 async function rulesetVersion(knex: Knex, organisationId: string): Promise<string> {
   const family = `fixture-family-${randomBytes(3).toString('hex')}`;
-  const [ruleset] = await knex('rulesets').insert({ organisation_id: organisationId, family, title: 'Fixture residential gate checks' }).returning('id');
+  const [ruleset] = await knex('rulesets')
+    .insert({ organisation_id: organisationId, family, title: 'Fixture residential gate checks' })
+    .returning('id');
   const content = { family, version: '2026.1', areas };
   const [version] = await knex('ruleset_versions')
     .insert({
@@ -91,7 +93,14 @@ export async function seedScoredAssessment(
       purpose: 'inspection',
       answers: JSON.stringify({ signsPosted: { value: 'no' } }),
       observations: JSON.stringify({
-        swingGeometry: { aMm: 150, bMm: 180, bracketFromHingeMm: 900, retractedLengthMm: 760, strokeMm: 300, targetOpeningDeg: 90 },
+        swingGeometry: {
+          aMm: 150,
+          bMm: 180,
+          bracketFromHingeMm: 900,
+          retractedLengthMm: 760,
+          strokeMm: 300,
+          targetOpeningDeg: 90,
+        },
       }),
       result: JSON.stringify(result),
       result_sha256: resultSha256,
@@ -121,7 +130,10 @@ export async function seedScoredAssessment(
       taken_at: new Date('2026-11-20T15:10:00Z'),
     });
   }
-  const samples = Array.from({ length: 200 }, (_, i) => [i * 0.005, i < 40 ? 0 : Math.max(20, 480 - Math.abs(i - 90) * 9)]);
+  const samples = Array.from({ length: 200 }, (_, i) => [
+    i * 0.005,
+    i < 40 ? 0 : Math.max(20, 480 - Math.abs(i - 90) * 9),
+  ]);
   await knex('force_traces').insert({
     organisation_id: org.id,
     assessment_id: assessment.id,
@@ -130,7 +142,14 @@ export async function seedScoredAssessment(
     samples: JSON.stringify(samples),
     evaluation: JSON.stringify({ peak: 480, limits: { peakN: 400 }, overallPass: false }),
   });
-  return { assessmentId: assessment.id, gateId: gate.id, siteId: site.id, rulesetVersionId, resultSha256, result };
+  return {
+    assessmentId: assessment.id,
+    gateId: gate.id,
+    siteId: site.id,
+    rulesetVersionId,
+    resultSha256,
+    result,
+  };
 }
 
 export interface MinimalOrganisation {
@@ -152,13 +171,30 @@ export async function seedOrganisation(knex: Knex, label: string): Promise<Minim
     .returning('id');
   const clientEmail = `client.${tag}@fixtures.test`;
   const [client] = await knex('clients')
-    .insert({ organisation_id: org.id, name: `Household ${tag}`, kind: 'homeowner', contact_email: clientEmail })
+    .insert({
+      organisation_id: org.id,
+      name: `Household ${tag}`,
+      kind: 'homeowner',
+      contact_email: clientEmail,
+    })
     .returning('id');
   const [office] = await knex('users')
-    .insert({ organisation_id: org.id, email: `office.${tag}@fixtures.test`, name: `Office ${tag}`, role: 'office', password_hash: hash })
+    .insert({
+      organisation_id: org.id,
+      email: `office.${tag}@fixtures.test`,
+      name: `Office ${tag}`,
+      role: 'office',
+      password_hash: hash,
+    })
     .returning(['id', 'email']);
   const [auditor] = await knex('users')
-    .insert({ organisation_id: org.id, email: `auditor.${tag}@fixtures.test`, name: `Auditor ${tag}`, role: 'auditor', password_hash: hash })
+    .insert({
+      organisation_id: org.id,
+      email: `auditor.${tag}@fixtures.test`,
+      name: `Auditor ${tag}`,
+      role: 'auditor',
+      password_hash: hash,
+    })
     .returning(['id', 'email']);
   return { id: org.id, clientId: client.id, clientEmail, office, auditor, password };
 }

@@ -1,8 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import type { RulesetQuestion } from '@/lib/rules';
-import { buildEngineInput, mergeDocuments, type AssessmentDocuments, type GateForScoring } from '@/lib/server/assessment-input';
+import {
+  buildEngineInput,
+  mergeDocuments,
+  type AssessmentDocuments,
+  type GateForScoring,
+} from '@/lib/server/assessment-input';
 
-const question = (key: string, answerType: RulesetQuestion['answerType'], options?: string[]): RulesetQuestion => ({
+const question = (
+  key: string,
+  answerType: RulesetQuestion['answerType'],
+  options?: string[],
+): RulesetQuestion => ({
   key,
   section: 'hinge_side',
   area: 'pinch',
@@ -20,7 +29,12 @@ const questions = [
   question('installedOn', 'date'),
 ];
 const empty: AssessmentDocuments = { answers: {}, measurements: {}, observations: {} };
-const site = { pedestriansUseDriveway: false, childrenOrPetsPresent: true, publicAccess: false, slopeAcrossSwing: false };
+const site = {
+  pedestriansUseDriveway: false,
+  childrenOrPetsPresent: true,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
 
 const gate: GateForScoring = {
   kind: 'swing',
@@ -38,7 +52,10 @@ describe('mergeDocuments', () => {
   it('merges answers, removes nulls and computes canonical measurements', () => {
     const first = mergeDocuments(
       empty,
-      { answers: { hingeSideGuarded: { value: 'no' } }, measurements: { hingeGapMm: { value: 1.5, unit: 'in' } } },
+      {
+        answers: { hingeSideGuarded: { value: 'no' } },
+        measurements: { hingeGapMm: { value: 1.5, unit: 'in' } },
+      },
       questions,
     );
     expect(first.ok).toBe(true);
@@ -47,10 +64,17 @@ describe('mergeDocuments', () => {
     expect(first.value.measurements.hingeGapMm).toEqual({ value: 1.5, unit: 'in', canonical: 38.1 });
     const second = mergeDocuments(
       first.value,
-      { answers: { hingeSideGuarded: null, wireGaugeAwg: { value: 'awg14' } }, measurements: { hingeGapMm: null } },
+      {
+        answers: { hingeSideGuarded: null, wireGaugeAwg: { value: 'awg14' } },
+        measurements: { hingeGapMm: null },
+      },
       questions,
     );
-    expect(second.ok && second.value).toEqual({ answers: { wireGaugeAwg: { value: 'awg14' } }, measurements: {}, observations: {} });
+    expect(second.ok && second.value).toEqual({
+      answers: { wireGaugeAwg: { value: 'awg14' } },
+      measurements: {},
+      observations: {},
+    });
   });
 
   it('names every answer that does not fit its question', () => {
@@ -87,7 +111,9 @@ describe('mergeDocuments', () => {
       { observations: { site: { slopeAcrossSwing: true } } },
       questions,
     );
-    expect(merged.ok && merged.value.observations).toEqual({ site: { publicAccess: true, slopeAcrossSwing: true } });
+    expect(merged.ok && merged.value.observations).toEqual({
+      site: { publicAccess: true, slopeAcrossSwing: true },
+    });
     const wrong = mergeDocuments(empty, { observations: { site: { publicAccess: 'yes' } } }, questions);
     expect(!wrong.ok && wrong.errors.map((e) => e.field)).toEqual(['observations.site.publicAccess']);
   });
@@ -97,7 +123,11 @@ describe('buildEngineInput', () => {
   it('takes the profile from the gate, with each dimension as entered and in canonical units', () => {
     const built = buildEngineInput(
       gate,
-      { ...empty, answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } }, observations: { site } },
+      {
+        ...empty,
+        answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } },
+        observations: { site },
+      },
       questions,
     );
     expect(built.ok).toBe(true);
@@ -115,7 +145,11 @@ describe('buildEngineInput', () => {
   });
 
   it('says where to record what the engine needs, in the API’s own field names', () => {
-    const built = buildEngineInput({ ...gate, operator: {} }, { ...empty, observations: { site: { publicAccess: true } } }, questions);
+    const built = buildEngineInput(
+      { ...gate, operator: {} },
+      { ...empty, observations: { site: { publicAccess: true } } },
+      questions,
+    );
     expect(built.ok).toBe(false);
     if (built.ok) return;
     expect(built.errors).toEqual(

@@ -26,7 +26,11 @@ describe('archived engine input', () => {
       for (let i = 0; i < 150; i++) {
         const gate = { ...sampleGate(prng), usageClass: 1 + (i % 4) };
         if (i % 5 === 0) Object.assign(gate, { weightKg: null, entered: {} });
-        const documents = sampleDocuments(prng, versions[i % versions.length]!.version, i % 3 === 0 ? 0.6 : 0.97);
+        const documents = sampleDocuments(
+          prng,
+          versions[i % versions.length]!.version,
+          i % 3 === 0 ? 0.6 : 0.97,
+        );
         const slow = buildEngineInput(gate as never, documents as never, loaded.version.questions);
         if (!slow.ok) continue;
         const fast = archivedEngineInput(gate as never, documents as never, loaded.version.questions);

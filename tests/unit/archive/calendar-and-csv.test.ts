@@ -10,7 +10,8 @@ describe('re-inspection calendar', () => {
         uid: 'reinspection-g1-2027-03-12@latchwell',
         date: '2027-03-12',
         summary: 'Gate re-inspection due: Yard gate, north side; Moss & Pell',
-        description: 'Line one\nLine two, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line',
+        description:
+          'Line one\nLine two, with "quotes" and a very long tail that goes on past the seventy-five octet limit of a content line',
       },
     ],
     'Quillmoor: re-inspection',
@@ -51,7 +52,10 @@ describe('re-inspection calendar with hostile text', () => {
   const hostile: Array<[string, string]> = [
     ['North\rBEGIN:VEVENT', 'North\\nBEGIN:VEVENT'],
     ['North\nBEGIN:VEVENT', 'North\\nBEGIN:VEVENT'],
-    ['North\r\nBEGIN:VEVENT\r\nSUMMARY:Injected\r\nEND:VEVENT', 'North\\nBEGIN:VEVENT\\nSUMMARY:Injected\\nEND:VEVENT'],
+    [
+      'North\r\nBEGIN:VEVENT\r\nSUMMARY:Injected\r\nEND:VEVENT',
+      'North\\nBEGIN:VEVENT\\nSUMMARY:Injected\\nEND:VEVENT',
+    ],
     ['North\r\n BEGIN:VEVENT', 'North\\n BEGIN:VEVENT'],
     ['a,b;c\\d', 'a\\,b\\;c\\\\d'],
     ['bell\u0007 and \u0000nul', 'bell  and  nul'],
@@ -59,7 +63,15 @@ describe('re-inspection calendar with hostile text', () => {
   for (const [label, escaped] of hostile) {
     it(`keeps ${JSON.stringify(label)} inside one escaped SUMMARY`, () => {
       const ics = calendarOf(
-        [{ uid: 'reinspection-g2-2027-01-05@latchwell', date: '2027-01-05', summary: label, description: label, location: label }],
+        [
+          {
+            uid: 'reinspection-g2-2027-01-05@latchwell',
+            date: '2027-01-05',
+            summary: label,
+            description: label,
+            location: label,
+          },
+        ],
         `Org ${label}`,
         new Date('2026-12-02T10:00:00Z'),
       );

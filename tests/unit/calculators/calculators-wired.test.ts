@@ -25,7 +25,9 @@ function calculatorImports(file: string): string[] {
   for (const match of text.matchAll(/from\s+['"]([^'"]+)['"]/g)) {
     const spec = match[1]!;
     // Outside the folder a calculator is imported by a path through `calculators/`; inside it, as `./name`.
-    const found = file.startsWith(CALCULATORS) ? /^\.\/([a-z0-9-]+)$/.exec(spec) : /calculators\/([a-z0-9-]+)$/.exec(spec);
+    const found = file.startsWith(CALCULATORS)
+      ? /^\.\/([a-z0-9-]+)$/.exec(spec)
+      : /calculators\/([a-z0-9-]+)$/.exec(spec);
     if (found) names.push(found[1]!);
   }
   return names;
@@ -40,11 +42,13 @@ describe('calculators', () => {
     const queue: string[] = [];
     for (const file of sourceFiles(SRC)) {
       if (file.startsWith(CALCULATORS)) continue;
-      for (const name of calculatorImports(file)) if (!reached.has(name)) (reached.add(name), queue.push(name));
+      for (const name of calculatorImports(file))
+        if (!reached.has(name)) (reached.add(name), queue.push(name));
     }
     while (queue.length > 0) {
       const name = queue.pop()!;
-      for (const next of calculatorImports(join(CALCULATORS, `${name}.ts`))) if (!reached.has(next)) (reached.add(next), queue.push(next));
+      for (const next of calculatorImports(join(CALCULATORS, `${name}.ts`)))
+        if (!reached.has(next)) (reached.add(next), queue.push(next));
     }
     const unreached = modules.filter((m) => !reached.has(m)).map((m) => relative(SRC, join(CALCULATORS, m)));
     expect(unreached).toEqual([]);

@@ -11,7 +11,10 @@ import { UL325_PRE2016_ENTRAPMENT_TABLE } from '@/lib/rules/calculators/ul325-en
 const device = (type: FittedDevice['type'], monitored = true): FittedDevice => ({ type, monitored });
 
 /** A residential slide gate with an entrapment zone when closing only. */
-function slideGate(closing: FittedDevice[], overrides: Partial<EntrapmentProtectionInput> = {}): EntrapmentProtectionInput {
+function slideGate(
+  closing: FittedDevice[],
+  overrides: Partial<EntrapmentProtectionInput> = {},
+): EntrapmentProtectionInput {
   return {
     gateKind: 'slide',
     usageClass: 1,
@@ -36,7 +39,9 @@ describe('edition', () => {
   });
 
   it('leaves the edition open without a date', () => {
-    const result = assessEntrapmentProtection(slideGate([device('A'), device('B1')], { manufacturedOn: null }));
+    const result = assessEntrapmentProtection(
+      slideGate([device('A'), device('B1')], { manufacturedOn: null }),
+    );
     expect(result.applicableEdition).toBeNull();
     expect(result.compliant).toBeNull();
   });
@@ -81,7 +86,11 @@ describe('2016 rules', () => {
     const result = assessEntrapmentProtection(slideGate([device('A'), device('B1')]));
     expect(result.applicableEdition).toBe('2016');
     expect(result.compliant).toBe(true);
-    expect(result.byEdition['2016'].closing).toMatchObject({ compliant: true, reasons: [], countedTypes: ['A', 'B1'] });
+    expect(result.byEdition['2016'].closing).toMatchObject({
+      compliant: true,
+      reasons: [],
+      countedTypes: ['A', 'B1'],
+    });
   });
 
   it('fails inherent sensing alone as needing two types', () => {
@@ -91,20 +100,24 @@ describe('2016 rules', () => {
   });
 
   it('does not count an unmonitored photo-eye', () => {
-    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B1', false)])).byEdition['2016'].closing;
+    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B1', false)])).byEdition[
+      '2016'
+    ].closing;
     expect(closing.compliant).toBe(false);
     expect(closing.reasons).toEqual(['needs_two_types', 'unmonitored_external']);
     expect(closing.countedTypes).toEqual(['A']);
   });
 
   it('does not count two photo-eyes as two types', () => {
-    const closing = assessEntrapmentProtection(slideGate([device('B1'), device('B1')])).byEdition['2016'].closing;
+    const closing = assessEntrapmentProtection(slideGate([device('B1'), device('B1')])).byEdition['2016']
+      .closing;
     expect(closing.compliant).toBe(false);
     expect(closing.reasons).toEqual(['needs_two_types', 'same_type_twice']);
   });
 
   it('does not count an audio alarm (type E)', () => {
-    const closing = assessEntrapmentProtection(slideGate([device('A'), device('E')])).byEdition['2016'].closing;
+    const closing = assessEntrapmentProtection(slideGate([device('A'), device('E')])).byEdition['2016']
+      .closing;
     expect(closing.compliant).toBe(false);
     expect(closing.reasons).toEqual(['needs_two_types', 'type_e_not_counted']);
   });
@@ -115,7 +128,8 @@ describe('2016 rules', () => {
     const closing = assessEntrapmentProtection(input).byEdition['2016'].closing;
     expect(closing.compliant).toBe(false);
     expect(closing.reasons).toEqual(['needs_two_types', 'd_with_auto_close']);
-    const manual = assessEntrapmentProtection(slideGate([device('A'), device('D')])).byEdition['2016'].closing;
+    const manual = assessEntrapmentProtection(slideGate([device('A'), device('D')])).byEdition['2016']
+      .closing;
     expect(manual.compliant).toBe(true);
   });
 
@@ -129,14 +143,20 @@ describe('2016 rules', () => {
   });
 
   it('reports a device that does not count even when the direction complies', () => {
-    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B2'), device('E')])).byEdition['2016'].closing;
+    const closing = assessEntrapmentProtection(slideGate([device('A'), device('B2'), device('E')])).byEdition[
+      '2016'
+    ].closing;
     expect(closing.compliant).toBe(true);
     expect(closing.reasons).toEqual(['type_e_not_counted']);
   });
 
   it('needs nothing in a direction without an entrapment zone', () => {
     const result = assessEntrapmentProtection(slideGate([device('A'), device('B1')]));
-    expect(result.byEdition['2016'].opening).toMatchObject({ entrapmentZone: false, compliant: true, reasons: [] });
+    expect(result.byEdition['2016'].opening).toMatchObject({
+      entrapmentZone: false,
+      compliant: true,
+      reasons: [],
+    });
   });
 
   it('judges each direction with an entrapment zone on its own', () => {
@@ -192,14 +212,19 @@ describe('pre-2016 table', () => {
 
   it('does not let one type serve as both primary and secondary', () => {
     // class III swing: A is allowed in both columns, but not twice
-    const closing = old([device('A'), device('A')], { gateKind: 'swing', usageClass: 3 }).byEdition['pre-2016'].closing;
+    const closing = old([device('A'), device('A')], { gateKind: 'swing', usageClass: 3 }).byEdition[
+      'pre-2016'
+    ].closing;
     expect(closing.compliant).toBe(false);
     expect(closing.reasons).toEqual(['same_type_both_roles']);
   });
 
   it('counts an audio alarm as secondary on a class IV slide gate', () => {
     expect(old([device('A'), device('E')], { usageClass: 4 }).compliant).toBe(true);
-    expect(old([device('A'), device('E')], { usageClass: 1 }).byEdition['pre-2016'].closing.reasons).toEqual(['needs_secondary', 'type_not_allowed_for_kind']);
+    expect(old([device('A'), device('E')], { usageClass: 1 }).byEdition['pre-2016'].closing.reasons).toEqual([
+      'needs_secondary',
+      'type_not_allowed_for_kind',
+    ]);
   });
 
   it('accepts a class I swing gate with clutch and constant-pressure control', () => {
@@ -210,7 +235,10 @@ describe('pre-2016 table', () => {
     const result = old([device('C'), device('D')], { gateKind: 'swing', automaticClosing: true });
     expect(result.compliant).toBe(false);
     // C alone is left, and it cannot be primary and secondary at once
-    expect(result.byEdition['pre-2016'].closing.reasons).toEqual(['same_type_both_roles', 'd_with_auto_close']);
+    expect(result.byEdition['pre-2016'].closing.reasons).toEqual([
+      'same_type_both_roles',
+      'd_with_auto_close',
+    ]);
   });
 
   it('reports no devices in a direction that needs protection', () => {
@@ -218,7 +246,8 @@ describe('pre-2016 table', () => {
   });
 
   it('leaves an overhead pivot gate open because the table does not name it', () => {
-    const closing = old([device('A'), device('B1')], { gateKind: 'overhead_pivot' }).byEdition['pre-2016'].closing;
+    const closing = old([device('A'), device('B1')], { gateKind: 'overhead_pivot' }).byEdition['pre-2016']
+      .closing;
     expect(closing.compliant).toBeNull();
     expect(closing.reasons).toEqual(['kind_not_in_table']);
   });

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { EN12445_MIN_SAMPLE_RATE_HZ, EN12453_FORCE_LIMITS, evaluateForceTrace, ForceTraceError, type ForceSample } from '@/lib/rules/calculators/force-trace';
+import {
+  EN12445_MIN_SAMPLE_RATE_HZ,
+  EN12453_FORCE_LIMITS,
+  evaluateForceTrace,
+  ForceTraceError,
+  type ForceSample,
+} from '@/lib/rules/calculators/force-trace';
 
 type Corner = [timeS: number, forceN: number];
 
@@ -63,7 +69,12 @@ describe('evaluateForceTrace: a trace within the limits', () => {
     expect(result.sampleRateHz).toBe(1000);
     expect(result.zone).toBe('gap_50_500');
     expect(result.limits.peakN).toBe(400);
-    expect(result.pass).toEqual({ peak: true, durationAbove150: true, staticForce: true, residualAt5s: true });
+    expect(result.pass).toEqual({
+      peak: true,
+      durationAbove150: true,
+      staticForce: true,
+      residualAt5s: true,
+    });
     expect(result.overallPass).toBe(true);
   });
 
@@ -121,7 +132,8 @@ describe('evaluateForceTrace: each criterion can fail', () => {
 
   it('passes 0.75 s above 150 N and fails 0.751 s', () => {
     // square-ish pulses: up and down through 150 N exactly on sample times
-    const at = (down: number) => trace([0, 0], [0.1, 300], [down - 0.05, 300], [down, 150], [down + 0.001, 10]);
+    const at = (down: number) =>
+      trace([0, 0], [0.1, 300], [down - 0.05, 300], [down, 150], [down + 0.001, 10]);
     // 0 → 300 over 0.1 s crosses 150 N at 0.05 s; the fall reaches 150 N at `down`
     expect(evaluateForceTrace(at(0.8), slideAt300).durationAbove150).toBe(0.75);
     expect(evaluateForceTrace(at(0.8), slideAt300).pass.durationAbove150).toBe(true);
@@ -130,7 +142,10 @@ describe('evaluateForceTrace: each criterion can fail', () => {
 
   it('fails a gate that pushes again at 200 N after the impact', () => {
     // 0 → 350 N at 0.1 s, down to 100 N at 0.3 s (−1250 N/s), back up to 200 N at 0.5 s, held to 2 s, 20 N from 3 s
-    const result = evaluateForceTrace(trace([0, 0], [0.1, 350], [0.3, 100], [0.5, 200], [2, 200], [3, 20]), slideAt300);
+    const result = evaluateForceTrace(
+      trace([0, 0], [0.1, 350], [0.3, 100], [0.5, 200], [2, 200], [3, 20]),
+      slideAt300,
+    );
     // dynamic period: 0.042857 s → 0.1 + 200/1250 = 0.26 s = 0.217 s
     expect(result.durationAbove150).toBe(0.217);
     expect(result.staticForce).toBe(200);
@@ -164,13 +179,23 @@ describe('evaluateForceTrace: each criterion can fail', () => {
     expect(result.durationAbove150).toBe(5.95);
     expect(result.staticForce).toBe(300);
     expect(result.residualAt5s).toBe(300);
-    expect(result.pass).toEqual({ peak: true, durationAbove150: false, staticForce: false, residualAt5s: false });
+    expect(result.pass).toEqual({
+      peak: true,
+      durationAbove150: false,
+      staticForce: false,
+      residualAt5s: false,
+    });
   });
 
   it("takes a ruleset's own limits", () => {
     const pulse = trace([0, 0], [0.1, 350], [0.6, 10]);
-    expect(evaluateForceTrace(pulse, slideAt300, { peakDynamicN: { gap_50_500: 300, gap_over_500: 1400 } }).pass.peak).toBe(false);
-    expect(evaluateForceTrace(pulse, slideAt300, { maxDynamicDurationS: 0.3 }).pass.durationAbove150).toBe(false);
+    expect(
+      evaluateForceTrace(pulse, slideAt300, { peakDynamicN: { gap_50_500: 300, gap_over_500: 1400 } }).pass
+        .peak,
+    ).toBe(false);
+    expect(evaluateForceTrace(pulse, slideAt300, { maxDynamicDurationS: 0.3 }).pass.durationAbove150).toBe(
+      false,
+    );
   });
 });
 
@@ -189,7 +214,9 @@ describe('evaluateForceTrace: zones', () => {
 
   it('refuses a swing trace without gap or zone, and a gap under 50 mm', () => {
     expect(refusal(() => evaluateForceTrace(pulse, { gateKind: 'swing' })).code).toBe('zone_unknown');
-    expect(refusal(() => evaluateForceTrace(pulse, { gateKind: 'swing', gapMm: 30 })).code).toBe('gap_not_covered');
+    expect(refusal(() => evaluateForceTrace(pulse, { gateKind: 'swing', gapMm: 30 })).code).toBe(
+      'gap_not_covered',
+    );
   });
 });
 

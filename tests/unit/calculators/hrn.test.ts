@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { calculateHrn, deriveHrnFactors, HRN_TABLE_WIDELY_REPRINTED, hrnBand, npBand, npKey, type HrnTable } from '@/lib/rules/calculators/hrn';
+import {
+  calculateHrn,
+  deriveHrnFactors,
+  HRN_TABLE_WIDELY_REPRINTED,
+  hrnBand,
+  npBand,
+  npKey,
+  type HrnTable,
+} from '@/lib/rules/calculators/hrn';
 
 describe('calculateHrn', () => {
   // HRN tables: one widely reprinted version, as in REFERENCES.md (secondary source, verify)
@@ -20,7 +28,9 @@ describe('calculateHrn', () => {
 
   it('keeps small ratings exact', () => {
     // 0.033 × 0.5 × 0.1 × 1 = 0.00165
-    expect(calculateHrn({ lo: 'almost_impossible', fe: 'annually', dph: 'scratch_bruise', np: '1_2' }).hrn).toBe(0.00165);
+    expect(
+      calculateHrn({ lo: 'almost_impossible', fe: 'annually', dph: 'scratch_bruise', np: '1_2' }).hrn,
+    ).toBe(0.00165);
   });
 
   it('uses a table passed in', () => {
@@ -29,13 +39,19 @@ describe('calculateHrn', () => {
       ...HRN_TABLE_WIDELY_REPRINTED,
       dph: { ...HRN_TABLE_WIDELY_REPRINTED.dph, major_fracture: 2 },
     };
-    expect(calculateHrn({ lo: 'possible', fe: 'daily', dph: 'major_fracture', np: '1_2' }, other).hrn).toBe(10);
+    expect(calculateHrn({ lo: 'possible', fe: 'daily', dph: 'major_fracture', np: '1_2' }, other).hrn).toBe(
+      10,
+    );
   });
 
   it('refuses a key the table does not have', () => {
-    expect(() => calculateHrn({ lo: 'maybe', fe: 'daily', dph: 'fatality', np: '1_2' })).toThrow(/LO key "maybe"/);
+    expect(() => calculateHrn({ lo: 'maybe', fe: 'daily', dph: 'fatality', np: '1_2' })).toThrow(
+      /LO key "maybe"/,
+    );
     expect(() => calculateHrn({ lo: 'possible', fe: 'daily', dph: 'fatality', np: '2_3' })).toThrow(/NP key/);
-    expect(() => calculateHrn({ lo: 'toString', fe: 'daily', dph: 'fatality', np: '1_2' })).toThrow(RangeError);
+    expect(() => calculateHrn({ lo: 'toString', fe: 'daily', dph: 'fatality', np: '1_2' })).toThrow(
+      RangeError,
+    );
   });
 });
 

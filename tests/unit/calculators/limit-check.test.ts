@@ -1,6 +1,12 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { checkAbove, checkAtLeast, checkAtMost, checkBelow, combinePasses } from '@/lib/rules/calculators/limit-check';
+import {
+  checkAbove,
+  checkAtLeast,
+  checkAtMost,
+  checkBelow,
+  combinePasses,
+} from '@/lib/rules/calculators/limit-check';
 import { roundTo } from '@/lib/rules/calculators/numbers';
 
 describe('limit checks', () => {
@@ -29,7 +35,13 @@ describe('limit checks', () => {
   });
 
   it('leaves an unmeasured value open', () => {
-    expect(checkAtMost(null, 5)).toEqual({ pass: null, rule: 'at_most', measured: null, limit: 5, margin: null });
+    expect(checkAtMost(null, 5)).toEqual({
+      pass: null,
+      rule: 'at_most',
+      measured: null,
+      limit: 5,
+      margin: null,
+    });
   });
 
   it('combines outcomes: a fail beats an unknown, an unknown beats a pass', () => {
@@ -49,13 +61,29 @@ describe('roundTo', () => {
   it('gives the same result as a decimal round trip for every value, near halves included', () => {
     // The definition the fast path must match: tame float noise to 15 significant digits
     // (IEEE 754 doubles carry 15–17), then round half up. common practice, no source
-    const reference = (value: number, decimals: number) => Math.round(Number((value * 10 ** decimals).toPrecision(15))) / 10 ** decimals + 0;
+    const reference = (value: number, decimals: number) =>
+      Math.round(Number((value * 10 ** decimals).toPrecision(15))) / 10 ** decimals + 0;
     const nearHalf = fc
-      .tuple(fc.integer({ min: -10_000_000, max: 10_000_000 }), fc.integer({ min: 0, max: 4 }), fc.integer({ min: -3, max: 3 }))
-      .map(([n, decimals, ulps]) => [(n + 0.5) / 10 ** decimals + ulps * Number.EPSILON * Math.abs(n / 10 ** decimals), decimals] as const);
-    const anyValue = fc.tuple(fc.double({ min: -1e9, max: 1e9, noNaN: true }), fc.integer({ min: 0, max: 6 }));
+      .tuple(
+        fc.integer({ min: -10_000_000, max: 10_000_000 }),
+        fc.integer({ min: 0, max: 4 }),
+        fc.integer({ min: -3, max: 3 }),
+      )
+      .map(
+        ([n, decimals, ulps]) =>
+          [
+            (n + 0.5) / 10 ** decimals + ulps * Number.EPSILON * Math.abs(n / 10 ** decimals),
+            decimals,
+          ] as const,
+      );
+    const anyValue = fc.tuple(
+      fc.double({ min: -1e9, max: 1e9, noNaN: true }),
+      fc.integer({ min: 0, max: 6 }),
+    );
     fc.assert(
-      fc.property(fc.oneof(nearHalf, anyValue), ([value, decimals]) => Object.is(roundTo(value, decimals), reference(value, decimals))),
+      fc.property(fc.oneof(nearHalf, anyValue), ([value, decimals]) =>
+        Object.is(roundTo(value, decimals), reference(value, decimals)),
+      ),
       { numRuns: 20_000 },
     );
   });

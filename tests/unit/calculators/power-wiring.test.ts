@@ -16,7 +16,13 @@ describe('voltageDrop', () => {
     // NEC Chapter 9 Table 8, uncoated copper 75 °C (as in REFERENCES.md)
     expect(NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT[14]).toEqual({ solid: 3.07, stranded: 3.14 });
     // AWG 14 stranded, 50 ft, 5 A: 2·5·50·3.14/1000 = 1.57 V; 1.57/24 = 6.54 %
-    const stranded = voltageDrop({ awg: 14, stranded: true, oneWayLengthFt: 50, currentA: 5, supplyVoltage: 24 });
+    const stranded = voltageDrop({
+      awg: 14,
+      stranded: true,
+      oneWayLengthFt: 50,
+      currentA: 5,
+      supplyVoltage: 24,
+    });
     expect(stranded.dropV).toBe(1.57);
     expect(stranded.dropPercent).toBe(6.54);
     // AWG 10 solid, same run: 2·5·50·1.21/1000 = 0.605 V
@@ -32,8 +38,18 @@ describe('voltageDrop', () => {
   });
 
   it('refuses a gauge it has no resistance for unless one is given', () => {
-    expect(() => voltageDrop({ awg: 8 as never, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 })).toThrow(RangeError);
-    expect(voltageDrop({ awg: 8 as never, ohmsPer1000Ft: 0.764, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 }).dropV).toBe(0.015);
+    expect(() =>
+      voltageDrop({ awg: 8 as never, oneWayLengthFt: 10, currentA: 1, supplyVoltage: 24 }),
+    ).toThrow(RangeError);
+    expect(
+      voltageDrop({
+        awg: 8 as never,
+        ohmsPer1000Ft: 0.764,
+        oneWayLengthFt: 10,
+        currentA: 1,
+        supplyVoltage: 24,
+      }).dropV,
+    ).toBe(0.015);
   });
 
   it('refuses a run without a length', () => {

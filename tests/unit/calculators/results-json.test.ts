@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { assessEntrapmentProtection, assessSwingOperatorGeometry, calculateHrn, evaluateForceTrace, voltageDrop } from '@/lib/rules/calculators';
+import {
+  assessEntrapmentProtection,
+  assessSwingOperatorGeometry,
+  calculateHrn,
+  evaluateForceTrace,
+  voltageDrop,
+} from '@/lib/rules/calculators';
 
 /** Fails on anything JSON would drop or change: undefined, NaN, ±Infinity, -0, functions. */
 function assertPlainJson(value: unknown, path = '$'): void {

@@ -67,7 +67,9 @@ describe('swing operator geometry: hand-worked law of cosines', () => {
     // the front pivot lines up with P at θ = φ = 143.130°
     expect(result.deadCentreDeg).toBe(143.1);
     expect(result.passesDeadCentre).toBe(false);
-    expect(assessSwingOperatorGeometry({ ...layout, strokeMm: 700, targetOpeningDeg: 150 }).passesDeadCentre).toBe(true);
+    expect(
+      assessSwingOperatorGeometry({ ...layout, strokeMm: 700, targetOpeningDeg: 150 }).passesDeadCentre,
+    ).toBe(true);
   });
 
   it('flags an operator body 44.6 mm from the closed leaf as too close', () => {
@@ -147,9 +149,25 @@ describe('swing operator geometry: cross-check with mathjs', () => {
     ['pull to open', layout],
     [
       'pull to open with an offset bracket and a thick leaf',
-      { ...layout, bracketOffsetMm: 120, leafThicknessMm: 50, operatorHalfWidthMm: 40, operatorBodyLengthMm: 700 },
+      {
+        ...layout,
+        bracketOffsetMm: 120,
+        leafThicknessMm: 50,
+        operatorHalfWidthMm: 40,
+        operatorBodyLengthMm: 700,
+      },
     ],
-    ['push to open', { aMm: -200, bMm: -150, bracketFromHingeMm: 1000, retractedLengthMm: 800, strokeMm: 400, targetOpeningDeg: 100 }],
+    [
+      'push to open',
+      {
+        aMm: -200,
+        bMm: -150,
+        bracketFromHingeMm: 1000,
+        retractedLengthMm: 800,
+        strokeMm: 400,
+        targetOpeningDeg: 100,
+      },
+    ],
   ];
 
   for (const [name, input] of layouts) {
@@ -168,7 +186,9 @@ describe('swing operator geometry: cross-check with mathjs', () => {
       const result = assessSwingOperatorGeometry(input);
       for (const angle of [0, 30, 60, 90]) {
         const i = result.chart.angleDeg.indexOf(angle);
-        expect(Math.abs((result.chart.clearanceMm[i] as number) - bruteClearance(input, angle))).toBeLessThan(0.2);
+        expect(Math.abs((result.chart.clearanceMm[i] as number) - bruteClearance(input, angle))).toBeLessThan(
+          0.2,
+        );
       }
     });
   }

@@ -6,7 +6,9 @@ const settings = { retryBaseMs: 15_000, retryMaxMs: 30 * 60_000 };
 
 describe('outbox retry delay', () => {
   it('doubles from the base with each attempt (no jitter at the midpoint)', () => {
-    expect([1, 2, 3, 4].map((a) => retryDelayMs(a, settings, () => 0.5))).toEqual([15_000, 30_000, 60_000, 120_000]);
+    expect([1, 2, 3, 4].map((a) => retryDelayMs(a, settings, () => 0.5))).toEqual([
+      15_000, 30_000, 60_000, 120_000,
+    ]);
   });
 
   it('never exceeds the cap, whatever the attempt count', () => {

@@ -4,7 +4,12 @@
  * ruleset identity and page numbers; missing drawings are skipped, not fatal.
  */
 import { describe, expect, it } from 'vitest';
-import { buildReportModel, cautionsOf, ReportNotReady, StoredResultSchema } from '../../../src/lib/server/pdf/report-model';
+import {
+  buildReportModel,
+  cautionsOf,
+  ReportNotReady,
+  StoredResultSchema,
+} from '../../../src/lib/server/pdf/report-model';
 import { renderReportPdf } from '../../../src/lib/server/pdf/render';
 import { extractPdfText } from '../../support/pdf-text';
 import { sampleReportSource, sampleResult } from '../../support/sample-report';

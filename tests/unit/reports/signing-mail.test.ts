@@ -63,7 +63,12 @@ describe('signature submission schema', () => {
 
   it('accepts a typed mark and a drawn PNG data URL', () => {
     expect(SignatureSubmitSchema.safeParse(valid).success).toBe(true);
-    expect(SignatureSubmitSchema.safeParse({ ...valid, signature: { method: 'drawn', png: 'data:image/png;base64,iVBORw0KGgo=' } }).success).toBe(true);
+    expect(
+      SignatureSubmitSchema.safeParse({
+        ...valid,
+        signature: { method: 'drawn', png: 'data:image/png;base64,iVBORw0KGgo=' },
+      }).success,
+    ).toBe(true);
   });
 
   it('refuses missing consent or intent, a one-letter name, a bad hash and anything but a PNG data URL', () => {

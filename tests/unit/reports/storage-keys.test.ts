@@ -11,7 +11,17 @@ describe('storage keys', () => {
   });
 
   it('refuses traversal, separators, upper case and wrong lengths', () => {
-    for (const bad of ['..', '../x', 'a/b', 'A'.repeat(64), 'a'.repeat(63), 'a'.repeat(65), `${'a'.repeat(32)}/${'a'.repeat(31)}`, null, 42]) {
+    for (const bad of [
+      '..',
+      '../x',
+      'a/b',
+      'A'.repeat(64),
+      'a'.repeat(63),
+      'a'.repeat(65),
+      `${'a'.repeat(32)}/${'a'.repeat(31)}`,
+      null,
+      42,
+    ]) {
       expect(isStorageKey(bad)).toBe(false);
     }
     expect(() => shardedPath('../etc/passwd')).toThrow(/not a storage key/);

@@ -15,7 +15,9 @@ describe('woffToSfnt', () => {
     expect(sfnt.readUInt32BE(0)).toBe(woff.readUInt32BE(4));
     const numTables = sfnt.readUInt16BE(4);
     expect(numTables).toBe(woff.readUInt16BE(12));
-    const tags = Array.from({ length: numTables }, (_, i) => sfnt.subarray(12 + i * 16, 16 + i * 16).toString('latin1'));
+    const tags = Array.from({ length: numTables }, (_, i) =>
+      sfnt.subarray(12 + i * 16, 16 + i * 16).toString('latin1'),
+    );
     expect(tags).toContain('glyf');
     expect(tags).toContain('cmap');
   });

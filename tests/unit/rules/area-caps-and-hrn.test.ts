@@ -43,12 +43,17 @@ describe('an area holding a critical failure', () => {
 describe('default HRN ratings follow severity', () => {
   // Three controls rules with the same worst harm (fatality) at the same gate: critical reach-through,
   // major pedestrian entrance, minor children; likelihood steps by severity (common practice, no source)
-  const input = applyPatch(naSwingGate(), { answers: { controlReachThrough: YES, pedestrianEntrance: NO, controlsOutOfChildReach: NO } });
-  const hrnOf = (result: ReturnType<typeof score>, ruleId: string) => result.findings.find((f) => f.ruleId === ruleId)!.hrn!.value;
+  const input = applyPatch(naSwingGate(), {
+    answers: { controlReachThrough: YES, pedestrianEntrance: NO, controlsOutOfChildReach: NO },
+  });
+  const hrnOf = (result: ReturnType<typeof score>, ruleId: string) =>
+    result.findings.find((f) => f.ruleId === ruleId)!.hrn!.value;
 
   it('rates critical above major above minor for the same harm', () => {
     const result = score(input, na);
-    expect(hrnOf(result, 'controls.no-reach-through')).toBeGreaterThan(hrnOf(result, 'controls.pedestrian-entrance'));
+    expect(hrnOf(result, 'controls.no-reach-through')).toBeGreaterThan(
+      hrnOf(result, 'controls.pedestrian-entrance'),
+    );
     expect(hrnOf(result, 'controls.pedestrian-entrance')).toBeGreaterThan(hrnOf(result, 'controls.children'));
   });
 
@@ -58,8 +63,12 @@ describe('default HRN ratings follow severity', () => {
   });
 
   it('leaves an auditor’s own likelihood as given', () => {
-    const overridden = applyPatch(input, { hrnOverrides: { 'controls.children': { lo: 'likely', reason: 'Children play in the driveway.' } } });
-    expect(score(overridden, na).findings.find((f) => f.ruleId === 'controls.children')!.hrn!.keys.lo).toBe('likely');
+    const overridden = applyPatch(input, {
+      hrnOverrides: { 'controls.children': { lo: 'likely', reason: 'Children play in the driveway.' } },
+    });
+    expect(score(overridden, na).findings.find((f) => f.ruleId === 'controls.children')!.hrn!.keys.lo).toBe(
+      'likely',
+    );
   });
 });
 
@@ -77,9 +86,18 @@ describe('HRN band edges', () => {
     // LO even chance 5 × FE monthly 1 × DPH loss of two limbs 10 × NP 1–2 people 1 = 50
     const input = applyPatch(naSwingGate(), {
       answers: { placardsLegible: NO },
-      hrnOverrides: { 'signage.placards-legible': { lo: 'even_chance', fe: 'monthly', dph: 'loss_of_two_limbs_or_eyes', np: '1_2', reason: 'Edge case.' } },
+      hrnOverrides: {
+        'signage.placards-legible': {
+          lo: 'even_chance',
+          fe: 'monthly',
+          dph: 'loss_of_two_limbs_or_eyes',
+          np: '1_2',
+          reason: 'Edge case.',
+        },
+      },
     });
-    const bandIn = (ruleset: typeof na) => score(input, ruleset).findings.find((f) => f.ruleId === 'signage.placards-legible')!.hrn!;
+    const bandIn = (ruleset: typeof na) =>
+      score(input, ruleset).findings.find((f) => f.ruleId === 'signage.placards-legible')!.hrn!;
     expect(bandIn(na)).toMatchObject({ value: 50, band: 'high' });
     expect(bandIn(naBefore)).toMatchObject({ value: 50, band: 'significant' });
     expect(na.version.hrn.bandEdges).toBe('lower_inclusive');

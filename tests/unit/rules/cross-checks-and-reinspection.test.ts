@@ -25,7 +25,11 @@ describe('answers cross-checked against the devices listed', () => {
     // UL 325 type B1 non-contact sensor (secondary source): a function test needs the device to exist
     const result = score(noPhotoEye, na);
     expect(result.contradictions).toEqual([
-      { id: 'sensing.photo-eye-listed', message: expect.stringContaining('no photo-eye'), facts: ['answers.photoEyeTestReverses'] },
+      {
+        id: 'sensing.photo-eye-listed',
+        message: expect.stringContaining('no photo-eye'),
+        facts: ['answers.photoEyeTestReverses'],
+      },
     ]);
     const finding = result.findings.find((f) => f.ruleId === 'sensing.photo-eye-works')!;
     expect(finding.outcome).toBe('needs_info');
@@ -33,7 +37,11 @@ describe('answers cross-checked against the devices listed', () => {
     expect(result.complete).toBe(false);
     expect(result.needsInfo.map((n) => n.key)).toContain('answers.photoEyeTestReverses');
     // 2026.1 accepted the answer and passed the rule
-    expect(score(noPhotoEye, shipped('north-american-gate', '2026.1')).findings.find((f) => f.ruleId === 'sensing.photo-eye-works')!.outcome).toBe('pass');
+    expect(
+      score(noPhotoEye, shipped('north-american-gate', '2026.1')).findings.find(
+        (f) => f.ruleId === 'sensing.photo-eye-works',
+      )!.outcome,
+    ).toBe('pass');
   });
 
   it('flags "edge tested" with no edge listed', () => {
@@ -58,7 +66,9 @@ describe('answers cross-checked against the devices listed', () => {
     const saysNa = applyPatch(noPhotoEye, { answers: { photoEyeTestReverses: { value: 'na' } } });
     expect(score(saysNa, na).contradictions).toEqual([]);
     // "no" with no photo-eye is not a contradiction either: the failed test stands
-    expect(score(applyPatch(noPhotoEye, { answers: { photoEyeTestReverses: NO } }), na).contradictions).toEqual([]);
+    expect(
+      score(applyPatch(noPhotoEye, { answers: { photoEyeTestReverses: NO } }), na).contradictions,
+    ).toEqual([]);
   });
 
   it('cross-checks the European family the same way', () => {
@@ -82,11 +92,16 @@ describe('re-inspection by verdict and usage class', () => {
 
   it('follows the usage class for a cleared gate and the remedy interval for one to remedy', () => {
     expect(score(naSwingGate(), na).reinspection).toEqual({ when: 'after_days', afterDays: 365 });
-    expect(score(applyPatch(naSwingGate(), { profile: { usageClass: 2 } }), na).reinspection).toEqual({ when: 'after_days', afterDays: 180 });
+    expect(score(applyPatch(naSwingGate(), { profile: { usageClass: 2 } }), na).reinspection).toEqual({
+      when: 'after_days',
+      afterDays: 180,
+    });
     const remedy = score(applyPatch(naSwingGate(), { answers: { controlLineOfSight: NO } }), na);
     expect(remedy.verdict).toBe('remedy');
     expect(remedy.reinspection).toEqual({ when: 'after_days', afterDays: 90 });
-    expect(score(applyPatch(euSwingGate(), { answers: { controlLineOfSight: NO } }), eu).reinspection).toEqual({ when: 'after_days', afterDays: 60 });
+    expect(
+      score(applyPatch(euSwingGate(), { answers: { controlLineOfSight: NO } }), eu).reinspection,
+    ).toEqual({ when: 'after_days', afterDays: 60 });
   });
 
   it('says nothing for versions without a plan (their results keep their shape)', () => {

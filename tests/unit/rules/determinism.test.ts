@@ -37,7 +37,9 @@ function reverseKeys(value: unknown): unknown {
 
 describe('canonicalJson', () => {
   it('sorts keys at every depth and drops undefined members', () => {
-    expect(canonicalJson({ b: 1, a: { d: [1, { z: 0, y: null }], c: undefined } })).toBe('{"a":{"d":[1,{"y":null,"z":0}]},"b":1}');
+    expect(canonicalJson({ b: 1, a: { d: [1, { z: 0, y: null }], c: undefined } })).toBe(
+      '{"a":{"d":[1,{"y":null,"z":0}]},"b":1}',
+    );
   });
 
   it('writes -0 as 0 and refuses NaN and Infinity', () => {
@@ -51,14 +53,21 @@ describe('sha256Hex', () => {
   it('matches the published SHA-256 test vectors', () => {
     // FIPS 180-2, Appendix B.1 and B.2 (one-block and two-block messages)
     expect(sha256Hex('abc')).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');
-    expect(sha256Hex('abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq')).toBe('248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1');
+    expect(sha256Hex('abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq')).toBe(
+      '248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1',
+    );
     // UTF-8 bytes, as node's streaming Hash reads a string
-    expect(sha256Hex('Tür ⚠ 50 mm')).toBe(createHash('sha256').update(Buffer.from('Tür ⚠ 50 mm', 'utf8')).digest('hex'));
+    expect(sha256Hex('Tür ⚠ 50 mm')).toBe(
+      createHash('sha256').update(Buffer.from('Tür ⚠ 50 mm', 'utf8')).digest('hex'),
+    );
   });
 });
 
 describe('scoring determinism', () => {
-  const failing = applyPatch(naSwingGate(), { answers: { controlReachThrough: YES }, measurements: { hingeGapMm: len(12) } });
+  const failing = applyPatch(naSwingGate(), {
+    answers: { controlReachThrough: YES },
+    measurements: { hingeGapMm: len(12) },
+  });
 
   it('gives byte-identical canonical JSON and SHA-256 for the same input scored twice', () => {
     const ruleset = shipped('north-american-gate', '2026.1');
@@ -95,10 +104,16 @@ describe('scoring determinism', () => {
   it('pins the ruleset identity and the input hash in the result', () => {
     const ruleset = shipped('north-american-gate', '2026.1');
     const result = score(failing, ruleset);
-    expect(result.ruleset).toEqual({ family: 'north-american-gate', version: '2026.1', contentSha256: ruleset.contentSha256 });
+    expect(result.ruleset).toEqual({
+      family: 'north-american-gate',
+      version: '2026.1',
+      contentSha256: ruleset.contentSha256,
+    });
     // The input hash is the SHA-256 of the parsed input as a deterministic writer from npm prints it.
     const parsed = AssessmentInputSchema.parse(failing);
-    expect(result.inputSha256).toBe(createHash('sha256').update(referenceJson(parsed)!, 'utf8').digest('hex'));
+    expect(result.inputSha256).toBe(
+      createHash('sha256').update(referenceJson(parsed)!, 'utf8').digest('hex'),
+    );
   });
 
   it('hashes generated inputs as an independent deterministic writer writes them, through score() and scoreParsed()', () => {
@@ -108,7 +123,11 @@ describe('scoring determinism', () => {
     for (let i = 0; i < 300; i++) {
       const ruleset = rng.pick(rulesets);
       const input = AssessmentInputSchema.parse(generateInput(rng, ruleset.version));
-      if (i % 3 === 0) input.answers = { ...input.answers, zebraCrossing: { value: 'no', note: 'Quote " backslash \\ tab \t, é, 😀' } };
+      if (i % 3 === 0)
+        input.answers = {
+          ...input.answers,
+          zebraCrossing: { value: 'no', note: 'Quote " backslash \\ tab \t, é, 😀' },
+        };
       if (i % 5 === 0 && input.measurements) {
         const [first] = Object.keys(input.measurements);
         if (first) input.measurements[first] = { ...input.measurements[first]!, value: -0, canonical: -0 };
@@ -140,7 +159,13 @@ describe('scoring determinism', () => {
     };
     walk(AssessmentInputSchema, '$');
     // Record values sit behind the dictionary records' transform: walk them by name.
-    for (const [name, schema] of Object.entries({ AnswerSchema, ChoiceSchema, MeasuredValueSchema, HrnOverrideSchema })) walk(schema, name);
+    for (const [name, schema] of Object.entries({
+      AnswerSchema,
+      ChoiceSchema,
+      MeasuredValueSchema,
+      HrnOverrideSchema,
+    }))
+      walk(schema, name);
     expect(seen.size).toBeGreaterThan(20);
     expect(unsorted).toEqual([]);
   });
@@ -148,6 +173,8 @@ describe('scoring determinism', () => {
   it('refuses to hash a non-finite number in an input handed over already parsed, naming where it is', () => {
     const input = AssessmentInputSchema.parse(failing);
     input.measurements!.hingeGapMm!.canonical = Number.NaN;
-    expect(() => scoreParsed(input, shipped('north-american-gate', '2026.1'))).toThrow(/non-finite number at \$\.measurements\.hingeGapMm\.canonical/);
+    expect(() => scoreParsed(input, shipped('north-american-gate', '2026.1'))).toThrow(
+      /non-finite number at \$\.measurements\.hingeGapMm\.canonical/,
+    );
   });
 });

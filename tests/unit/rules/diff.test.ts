@@ -11,7 +11,10 @@ describe('diffRulesets', () => {
   const diff = diffRulesets(older, current);
 
   it('lists the entrapment rules the 2016 revision replaced', () => {
-    expect(diff.rules.removed.map((r) => r.id)).toEqual(['sensing.closing-primary-secondary', 'sensing.opening-primary-secondary']);
+    expect(diff.rules.removed.map((r) => r.id)).toEqual([
+      'sensing.closing-primary-secondary',
+      'sensing.opening-primary-secondary',
+    ]);
     expect(diff.rules.added.map((r) => r.id)).toEqual([
       'sensing.closing-legacy',
       'sensing.closing-two-means',
@@ -27,7 +30,11 @@ describe('diffRulesets', () => {
     // ASTM F2200: slide-gate screening 48 in in older editions, 72 in now (secondary source)
     const screen = diff.rules.changed.find((c) => c.id === 'gaps.slide-screen-height');
     expect(screen?.changes).toContainEqual({ field: 'params.screenHeightMm', from: 1219.2, to: 1828.8 });
-    expect(screen?.changes).toContainEqual({ field: 'params.screenHeightMm.note', from: '48 in', to: '72 in' });
+    expect(screen?.changes).toContainEqual({
+      field: 'params.screenHeightMm.note',
+      from: '48 in',
+      to: '72 in',
+    });
   });
 
   it('reports a severity change and a rule turned off in an amendment', () => {
@@ -48,7 +55,11 @@ describe('diffRulesets', () => {
           { field: 'severity', from: 'major', to: 'critical' },
         ],
       },
-      { id: 'handover.remote-codes', title: 'Remote codes changed from the factory setting', changes: [{ field: 'enabled', from: true, to: false }] },
+      {
+        id: 'handover.remote-codes',
+        title: 'Remote codes changed from the factory setting',
+        changes: [{ field: 'enabled', from: true, to: false }],
+      },
     ]);
     expect(local.version).toEqual([]);
     expect(local.to.version).toBe('2026.1-local.1');
@@ -61,7 +72,13 @@ describe('diffRulesets', () => {
 
   it('finds nothing between a version and itself', () => {
     const same = diffRulesets(current, structuredClone(current));
-    expect([same.rules.added, same.rules.removed, same.rules.changed, same.questions.changed, same.version]).toEqual([[], [], [], [], []]);
+    expect([
+      same.rules.added,
+      same.rules.removed,
+      same.rules.changed,
+      same.questions.changed,
+      same.version,
+    ]).toEqual([[], [], [], [], []]);
   });
 });
 

@@ -9,7 +9,8 @@ const na = shipped('north-american-gate', '2026.2');
 const naBefore = shipped('north-american-gate', '2026.1');
 const eu = shipped('european-powered-gate', '2026.2');
 
-const outcome = (input: AssessmentInput, ruleset: typeof na, ruleId: string) => score(input, ruleset).findings.find((f) => f.ruleId === ruleId)?.outcome;
+const outcome = (input: AssessmentInput, ruleset: typeof na, ruleId: string) =>
+  score(input, ruleset).findings.find((f) => f.ruleId === ruleId)?.outcome;
 
 /** Closing protected (A + monitored photo-eye); opening: the operator's own sensing and `openingExtra`. */
 type Devices = NonNullable<AssessmentInput['entrapment']>['devices'];
@@ -27,7 +28,10 @@ describe('a remedied fixed-object zone clears (North American swing gates)', () 
   // ASTM F2200 swing gates (secondary source): the open leaf stays at least 16 in (406.4 mm) from fixed
   // objects; UL 325 2016 revision (secondary source): a monitored external device protects a zone.
   const near = (devices: Parameters<typeof swingDevices>[0]) =>
-    applyPatch(naSwingGate(), { measurements: { fixedObjectClearanceMm: len(10, 'in') }, entrapment: swingDevices(devices) });
+    applyPatch(naSwingGate(), {
+      measurements: { fixedObjectClearanceMm: len(10, 'in') },
+      entrapment: swingDevices(devices),
+    });
 
   it('passes a leaf 10 in from a wall once a monitored edge protects the open side while opening', () => {
     const input = near([{ type: 'B2', direction: 'opening', zone: 'open_side', monitored: true }]);
@@ -41,15 +45,43 @@ describe('a remedied fixed-object zone clears (North American swing gates)', () 
 
   it('also accepts a monitored photo-eye, but not an unmonitored one, nor one watching the closing direction', () => {
     // UL 325 2016 revision: external devices count only when monitored every cycle (secondary source)
-    expect(outcome(near([{ type: 'B1', direction: 'opening', zone: 'open_side', monitored: true }]), na, 'pinch.fixed-objects')).toBe('pass');
-    expect(outcome(near([{ type: 'B1', direction: 'opening', zone: 'open_side', monitored: false }]), na, 'pinch.fixed-objects')).toBe('fail');
-    expect(outcome(near([{ type: 'B2', direction: 'closing', zone: 'open_side', monitored: true }]), na, 'pinch.fixed-objects')).toBe('fail');
-    expect(outcome(near([{ type: 'B2', direction: 'opening', zone: 'hinge_side', monitored: true }]), na, 'pinch.fixed-objects')).toBe('fail');
+    expect(
+      outcome(
+        near([{ type: 'B1', direction: 'opening', zone: 'open_side', monitored: true }]),
+        na,
+        'pinch.fixed-objects',
+      ),
+    ).toBe('pass');
+    expect(
+      outcome(
+        near([{ type: 'B1', direction: 'opening', zone: 'open_side', monitored: false }]),
+        na,
+        'pinch.fixed-objects',
+      ),
+    ).toBe('fail');
+    expect(
+      outcome(
+        near([{ type: 'B2', direction: 'closing', zone: 'open_side', monitored: true }]),
+        na,
+        'pinch.fixed-objects',
+      ),
+    ).toBe('fail');
+    expect(
+      outcome(
+        near([{ type: 'B2', direction: 'opening', zone: 'hinge_side', monitored: true }]),
+        na,
+        'pinch.fixed-objects',
+      ),
+    ).toBe('fail');
   });
 
   it('keeps 16 in exactly as enough clearance without any device (inclusive limit)', () => {
     // ASTM F2200: "at least 16 in" — 406.4 mm passes, 15.9 in fails (secondary source)
-    const at = (inches: number) => applyPatch(naSwingGate(), { measurements: { fixedObjectClearanceMm: len(inches, 'in') }, entrapment: swingDevices([]) });
+    const at = (inches: number) =>
+      applyPatch(naSwingGate(), {
+        measurements: { fixedObjectClearanceMm: len(inches, 'in') },
+        entrapment: swingDevices([]),
+      });
     expect(outcome(at(16), na, 'pinch.fixed-objects')).toBe('pass');
     expect(outcome(at(15.9), na, 'pinch.fixed-objects')).toBe('fail');
   });
@@ -61,7 +93,10 @@ describe('zones implied by measurements', () => {
     // The auditor listed only the closing edge and fitted nothing for opening.
     const input = applyPatch(naSwingGate(), {
       measurements: { fixedObjectClearanceMm: len(12, 'in') },
-      entrapment: { zones: [{ zone: 'closing_edge', direction: 'closing' }], devices: swingDevices([]).devices.filter((d) => d.direction === 'closing') },
+      entrapment: {
+        zones: [{ zone: 'closing_edge', direction: 'closing' }],
+        devices: swingDevices([]).devices.filter((d) => d.direction === 'closing'),
+      },
     });
     const result = score(input, na);
     // UL 325 2016 revision: two independent means in each direction with a zone
@@ -77,7 +112,10 @@ describe('zones implied by measurements', () => {
   it('derives nothing from a clearance at or over the limit', () => {
     const input = applyPatch(naSwingGate(), {
       measurements: { fixedObjectClearanceMm: len(16, 'in') },
-      entrapment: { zones: [{ zone: 'closing_edge', direction: 'closing' }], devices: swingDevices([]).devices.filter((d) => d.direction === 'closing') },
+      entrapment: {
+        zones: [{ zone: 'closing_edge', direction: 'closing' }],
+        devices: swingDevices([]).devices.filter((d) => d.direction === 'closing'),
+      },
     });
     expect(outcome(input, na, 'sensing.opening-two-means')).toBe('pass');
   });
@@ -86,7 +124,9 @@ describe('zones implied by measurements', () => {
     // UL 325 swing-gate entrapment zone: bottom gap over 4 in and under 16 in (secondary source)
     const input = applyPatch(naSwingGate(), { measurements: { bottomGapMm: len(8, 'in') } });
     const result = score(input, na);
-    expect(result.findings.find((f) => f.ruleId === 'sensing.zones-watched')?.observed).toMatchObject({ 'calc.entrapment.zonesWithoutExternalSensor': 2 });
+    expect(result.findings.find((f) => f.ruleId === 'sensing.zones-watched')?.observed).toMatchObject({
+      'calc.entrapment.zonesWithoutExternalSensor': 2,
+    });
     // exactly 4 in is not a zone (UL 325 says "over 4 in")
     const atFour = score(applyPatch(naSwingGate(), { measurements: { bottomGapMm: len(4, 'in') } }), na);
     expect(atFour.findings.find((f) => f.ruleId === 'sensing.zones-watched')?.outcome).toBe('pass');
@@ -112,15 +152,24 @@ describe('zones implied by measurements', () => {
       zones: [{ zone: 'closing_edge' as const, direction: 'closing' as const }],
       devices: base.entrapment!.devices.filter((d) => d.direction === 'closing'),
     };
-    const input = applyPatch(base, { measurements: { fixedObjectClearanceMm: len(450) }, answers: { openingSideForceTested: NO }, entrapment: closingOnly });
+    const input = applyPatch(base, {
+      measurements: { fixedObjectClearanceMm: len(450) },
+      answers: { openingSideForceTested: NO },
+      entrapment: closingOnly,
+    });
     expect(outcome(input, eu, 'sensing.opening-protected')).toBe('fail');
-    expect(outcome(input, shipped('european-powered-gate', '2026.1'), 'sensing.opening-protected')).toBe('n/a');
+    expect(outcome(input, shipped('european-powered-gate', '2026.1'), 'sensing.opening-protected')).toBe(
+      'n/a',
+    );
     // a slide gate's open end nearer than 500 mm likewise
     const slide = euSlideGate();
     const slideInput = applyPatch(slide, {
       measurements: { slideOpenEndClearanceMm: len(300) },
       answers: { openingSideForceTested: NO },
-      entrapment: { zones: [{ zone: 'closing_edge', direction: 'closing' }], devices: slide.entrapment!.devices.filter((d) => d.direction === 'closing') },
+      entrapment: {
+        zones: [{ zone: 'closing_edge', direction: 'closing' }],
+        devices: slide.entrapment!.devices.filter((d) => d.direction === 'closing'),
+      },
     });
     expect(outcome(slideInput, eu, 'sensing.opening-protected')).toBe('fail');
   });

@@ -12,7 +12,11 @@ describe('buildFacts', () => {
     expect(facts.answers.wireGaugeAwg).toBe('awg12');
     // 8 ft = 2438.4 mm (NIST SP 811 exact foot)
     expect(facts.m.controlDistanceMm).toBe(2438.4);
-    expect(facts.profile).toMatchObject({ kind: 'swing', leafHeightMm: 1828.8, operatorManufacturedOn: '2020-05-01' });
+    expect(facts.profile).toMatchObject({
+      kind: 'swing',
+      leafHeightMm: 1828.8,
+      operatorManufacturedOn: '2020-05-01',
+    });
   });
 
   it('judges entrapment protection per direction under both UL 325 regimes', () => {
@@ -29,13 +33,32 @@ describe('buildFacts', () => {
       photoEyes: 1,
       edges: 1,
       rules2016: true,
-      closing: { zone: true, countedTypes2016: 2, externalSensors: 1, monitoredSensors: 1, compliantPre2016: true, compliant2016: true },
-      opening: { zone: true, countedTypes2016: 2, externalSensors: 1, monitoredSensors: 1, compliantPre2016: true, compliant2016: true },
+      closing: {
+        zone: true,
+        countedTypes2016: 2,
+        externalSensors: 1,
+        monitoredSensors: 1,
+        compliantPre2016: true,
+        compliant2016: true,
+      },
+      opening: {
+        zone: true,
+        countedTypes2016: 2,
+        externalSensors: 1,
+        monitoredSensors: 1,
+        compliantPre2016: true,
+        compliant2016: true,
+      },
     });
   });
 
   it('leaves derived facts out when their inputs are missing', () => {
-    const { facts } = buildFacts(applyPatch(naSlideGate(), { entrapment: REMOVE, measurements: { supplyVoltageV: REMOVE, placardsSide1: REMOVE } }));
+    const { facts } = buildFacts(
+      applyPatch(naSlideGate(), {
+        entrapment: REMOVE,
+        measurements: { supplyVoltageV: REMOVE, placardsSide1: REMOVE },
+      }),
+    );
     expect(facts.calc.entrapment).toBeUndefined();
     expect(facts.calc.power).toEqual({ chargingSourceCount: 1 });
     expect(facts.calc.signage).toBeUndefined();
@@ -60,11 +83,27 @@ describe('buildFacts', () => {
   it('refuses a summary below the 50 mm measuring point as evidence, not as an error', () => {
     const input = euSwingGate();
     input.forceTests = [
-      { location: 'closing_edge', direction: 'closing', gapMm: 30, summary: { peakN: 100, durationAbove150S: 0, staticN: 0, residualAt5sN: 0 } },
+      {
+        location: 'closing_edge',
+        direction: 'closing',
+        gapMm: 30,
+        summary: { peakN: 100, durationAbove150S: 0, staticN: 0, residualAt5sN: 0 },
+      },
     ];
     const { facts, problems } = buildFacts(input);
-    expect(facts.calc.force).toEqual({ testCount: 0, rejectedTraces: 1, largeGapTests: 0, acceptedGapsMm: [] });
-    expect(problems).toEqual([{ path: 'forceTests[0]', code: 'gap_not_covered', message: 'A 30 mm gap is below the 50 mm measuring point' }]);
+    expect(facts.calc.force).toEqual({
+      testCount: 0,
+      rejectedTraces: 1,
+      largeGapTests: 0,
+      acceptedGapsMm: [],
+    });
+    expect(problems).toEqual([
+      {
+        path: 'forceTests[0]',
+        code: 'gap_not_covered',
+        message: 'A 30 mm gap is below the 50 mm measuring point',
+      },
+    ]);
   });
 
   it('produces JSON-serialisable facts that survive a round trip unchanged', () => {
@@ -76,8 +115,14 @@ describe('buildFacts', () => {
 describe('questionsToAsk', () => {
   it('shows follow-up questions only once their trigger is answered', () => {
     const version = shipped('north-american-gate', '2026.1').version;
-    const without = questionsToAsk(applyPatch(naSwingGate(), { answers: { barbedTapeFitted: NO } }), version).map((q) => q.key);
-    const withTape = questionsToAsk(applyPatch(naSwingGate(), { answers: { barbedTapeFitted: YES } }), version).map((q) => q.key);
+    const without = questionsToAsk(
+      applyPatch(naSwingGate(), { answers: { barbedTapeFitted: NO } }),
+      version,
+    ).map((q) => q.key);
+    const withTape = questionsToAsk(
+      applyPatch(naSwingGate(), { answers: { barbedTapeFitted: YES } }),
+      version,
+    ).map((q) => q.key);
     expect(without).not.toContain('barbedTapeHeightMm');
     expect(withTape).toContain('barbedTapeHeightMm');
   });
@@ -87,7 +132,9 @@ describe('questionsToAsk', () => {
     const keys = questionsToAsk(naSlideGate(), version).map((q) => q.key);
     expect(keys).not.toContain('hingeGapMm');
     expect(keys).toContain('rollersGuarded');
-    const sections = questionsToAsk(naSlideGate(), version).map((q) => version.sections.findIndex((s) => s.key === q.section));
+    const sections = questionsToAsk(naSlideGate(), version).map((q) =>
+      version.sections.findIndex((s) => s.key === q.section),
+    );
     expect(sections).toEqual([...sections].sort((a, b) => a - b));
   });
 });

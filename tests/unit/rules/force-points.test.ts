@@ -21,7 +21,8 @@ const slowTraceAt = (gapMm: number): ForceTest => ({
 });
 
 const withTests = (tests: ForceTest[]) => applyPatch(euSlideGate(), { forceTests: tests });
-const finding = (result: ReturnType<typeof score>, ruleId: string) => result.findings.find((f) => f.ruleId === ruleId);
+const finding = (result: ReturnType<typeof score>, ruleId: string) =>
+  result.findings.find((f) => f.ruleId === ruleId);
 
 describe('refused force traces and the EN 12445 measuring points (European 2026.2)', () => {
   it('leaves the point of a refused trace needing information: the gate cannot score complete', () => {
@@ -59,11 +60,17 @@ describe('refused force traces and the EN 12445 measuring points (European 2026.
     // EN 12445 measuring points 50, 300 and 500 mm (secondary source): two tests at 300 mm leave 500 mm unmeasured
     const tests = [summaryAt(50), summaryAt(300), summaryAt(300, 320)];
     expect(finding(score(withTests(tests), eu), 'force.measuring-points')?.outcome).toBe('fail');
-    expect(finding(score(withTests(tests), shipped('european-powered-gate', '2026.1')), 'force.measuring-points')?.outcome).toBe('pass');
+    expect(
+      finding(score(withTests(tests), shipped('european-powered-gate', '2026.1')), 'force.measuring-points')
+        ?.outcome,
+    ).toBe('pass');
     // a refused trace does not count for its point
-    expect(finding(score(withTests([summaryAt(50), slowTraceAt(300), summaryAt(500), summaryAt(1000, 900)]), eu), 'force.measuring-points')?.outcome).toBe(
-      'fail',
-    );
+    expect(
+      finding(
+        score(withTests([summaryAt(50), slowTraceAt(300), summaryAt(500), summaryAt(1000, 900)]), eu),
+        'force.measuring-points',
+      )?.outcome,
+    ).toBe('fail');
   });
 
   it('accepts a point measured again after a refused trace', () => {

@@ -38,10 +38,41 @@ const OPS = [
   'substr',
   'map',
 ];
-const PATHS = ['a', 'b', 'n.x', 'n.y', 'n.deep.z', 'list', 'str', 'nothing', 'n.nothing', '', 'params.limit', 'flag'];
+const PATHS = [
+  'a',
+  'b',
+  'n.x',
+  'n.y',
+  'n.deep.z',
+  'list',
+  'str',
+  'nothing',
+  'n.nothing',
+  '',
+  'params.limit',
+  'flag',
+];
 
 function literal(rng: Prng): unknown {
-  return rng.pick([0, 1, -1, 2.5, 102, 406, '', 'yes', 'no', 'na', '3', null, true, false, [], [1, 2], ['yes', 'na']]);
+  return rng.pick([
+    0,
+    1,
+    -1,
+    2.5,
+    102,
+    406,
+    '',
+    'yes',
+    'no',
+    'na',
+    '3',
+    null,
+    true,
+    false,
+    [],
+    [1, 2],
+    ['yes', 'na'],
+  ]);
 }
 
 function expression(rng: Prng, depth: number): unknown {
@@ -57,7 +88,9 @@ function expression(rng: Prng, depth: number): unknown {
     return { [op]: [{ var: 'list' }, { '>': [{ var: '' }, rng.int(0, 3)] }] };
   }
   if (op === 'missing' || op === 'missing_some') {
-    return op === 'missing' ? { missing: [rng.pick(PATHS), rng.pick(PATHS)] } : { missing_some: [1, [rng.pick(PATHS), rng.pick(PATHS)]] };
+    return op === 'missing'
+      ? { missing: [rng.pick(PATHS), rng.pick(PATHS)] }
+      : { missing_some: [1, [rng.pick(PATHS), rng.pick(PATHS)]] };
   }
   const arity = op === '!' || op === '!!' ? 1 : rng.int(op === 'if' ? 1 : 0, 4);
   const args = Array.from({ length: arity }, () => expression(rng, depth - 1));
@@ -68,7 +101,9 @@ function dataFor(rng: Prng): Record<string, unknown> {
   return {
     a: literal(rng),
     b: literal(rng),
-    n: rng.chance(0.8) ? { x: literal(rng), y: rng.int(-5, 500), deep: rng.chance(0.5) ? { z: literal(rng) } : null } : null,
+    n: rng.chance(0.8)
+      ? { x: literal(rng), y: rng.int(-5, 500), deep: rng.chance(0.5) ? { z: literal(rng) } : null }
+      : null,
     list: rng.chance(0.7) ? [rng.int(0, 4), rng.int(0, 4)] : [],
     str: rng.pick(['yes', 'abc', '', '12']),
     params: { limit: 102 },
@@ -89,7 +124,9 @@ describe('compileLogic', () => {
     const rng = createPrng(20260101);
     const mismatches: string[] = [];
     const same = (a: { value?: unknown; error?: boolean }, b: { value?: unknown; error?: boolean }) =>
-      a.error === b.error && typeof a.value === typeof b.value && (Object.is(a.value, b.value) || JSON.stringify(a.value) === JSON.stringify(b.value));
+      a.error === b.error &&
+      typeof a.value === typeof b.value &&
+      (Object.is(a.value, b.value) || JSON.stringify(a.value) === JSON.stringify(b.value));
     for (let i = 0; i < 20_000; i++) {
       const logic = expression(rng, 4);
       const data = dataFor(rng);

@@ -16,7 +16,8 @@ describe('needs information', () => {
     expect(finding.missing).toEqual([
       {
         key: 'm.fixedObjectClearanceMm',
-        prompt: 'Elsewhere along the swing, what is the smallest distance between the gate and any fixed object (wall, pillar, tree)?',
+        prompt:
+          'Elsewhere along the swing, what is the smallest distance between the gate and any fixed object (wall, pillar, tree)?',
       },
     ]);
     expect(result.needsInfo).toEqual([{ ...finding.missing[0], ruleIds: ['pinch.fixed-objects'] }]);
@@ -25,14 +26,18 @@ describe('needs information', () => {
 
   it('traces a missing calculator fact back to the unanswered question it needs', () => {
     const result = score(applyPatch(naSwingGate(), { measurements: { operatorCurrentA: REMOVE } }), current);
-    expect(findingOf(result.findings, 'power.voltage-drop').missing.map((m) => m.key)).toEqual(['m.operatorCurrentA']);
+    expect(findingOf(result.findings, 'power.voltage-drop').missing.map((m) => m.key)).toEqual([
+      'm.operatorCurrentA',
+    ]);
   });
 
   it('asks for the entrapment devices when none were recorded', () => {
     const result = score(applyPatch(naSwingGate(), { entrapment: REMOVE }), current);
     const finding = findingOf(result.findings, 'sensing.no-constant-pressure-with-auto-close');
     expect(finding.outcome).toBe('needs_info');
-    expect(finding.missing[0]!.prompt).toBe('Entrapment zones and the protection devices fitted, per direction of travel');
+    expect(finding.missing[0]!.prompt).toBe(
+      'Entrapment zones and the protection devices fitted, per direction of travel',
+    );
   });
 
   it('asks for the operator date when it decides which protection rules apply', () => {
@@ -40,7 +45,12 @@ describe('needs information', () => {
     const result = score(applyPatch(naSwingGate(), { profile: { operatorManufacturedOn: REMOVE } }), current);
     const finding = findingOf(result.findings, 'sensing.closing-two-means');
     expect(finding.outcome).toBe('needs_info');
-    expect(finding.missing).toEqual([{ key: 'calc.entrapment.rules2016', prompt: "Operator's date of manufacture, or the UL 325 edition it is listed to" }]);
+    expect(finding.missing).toEqual([
+      {
+        key: 'calc.entrapment.rules2016',
+        prompt: "Operator's date of manufacture, or the UL 325 edition it is listed to",
+      },
+    ]);
     // A critical rule that cannot be checked holds the verdict at remedy.
     expect(result.verdict).toBe('remedy');
   });
@@ -81,7 +91,11 @@ describe('needs information', () => {
     const result = score(input, eu);
     // EN 12445 5.1.1: the meter samples at 200 Hz or faster
     expect(result.evidenceProblems).toEqual([
-      { path: 'forceTests[0]', code: 'sample_rate_too_low', message: expect.stringContaining('200 Hz') as unknown as string },
+      {
+        path: 'forceTests[0]',
+        code: 'sample_rate_too_low',
+        message: expect.stringContaining('200 Hz') as unknown as string,
+      },
     ]);
     expect(findingOf(result.findings, 'force.traces-accepted').outcome).toBe('fail');
   });

@@ -14,14 +14,19 @@ describe('ruleset schema and cross-references', () => {
     const doc = base();
     const i = ruleIndex(doc, 'controls.distance');
     doc.rules[i]!.condition = { '>=': [{ var: 'm.controlDistanceMm' }, { var: 'params.minDistanceInches' }] };
-    expect(problemsOf(doc)).toContainEqual({ path: `rules[${i}].condition`, message: '"params.minDistanceInches" is not defined in this rule\'s params' });
+    expect(problemsOf(doc)).toContainEqual({
+      path: `rules[${i}].condition`,
+      message: '"params.minDistanceInches" is not defined in this rule\'s params',
+    });
   });
 
   it('refuses a condition that reads a question the version never asks', () => {
     const doc = base();
     const i = ruleIndex(doc, 'controls.distance');
     doc.rules[i]!.condition = { '>=': [{ var: 'm.keypadDistanceMm' }, { var: 'params.minDistanceMm' }] };
-    expect(problemsOf(doc).map((p) => p.message)).toContain('"m.keypadDistanceMm" is neither a question of this version nor a known fact');
+    expect(problemsOf(doc).map((p) => p.message)).toContain(
+      '"m.keypadDistanceMm" is neither a question of this version nor a known fact',
+    );
   });
 
   it('refuses a condition reading a fact that is neither required nor optional', () => {
@@ -30,7 +35,8 @@ describe('ruleset schema and cross-references', () => {
     doc.rules[i]!.requires = [];
     expect(problemsOf(doc)).toContainEqual({
       path: `rules[${i}].condition`,
-      message: 'the condition reads "m.controlDistanceMm" but it is in neither requires nor optional (a missing value would read as null)',
+      message:
+        'the condition reads "m.controlDistanceMm" but it is in neither requires nor optional (a missing value would read as null)',
     });
   });
 
@@ -39,8 +45,12 @@ describe('ruleset schema and cross-references', () => {
     doc.rules.push(structuredClone(doc.rules[0]!));
     doc.questions.push(structuredClone(doc.questions[0]!));
     const messages = problemsOf(doc).map((p) => `${p.path}: ${p.message}`);
-    expect(messages).toContain(`rules[${doc.rules.length - 1}]: "${doc.rules[0]!.id}" appears more than once in rules`);
-    expect(messages).toContain(`questions[${doc.questions.length - 1}]: "${doc.questions[0]!.key}" appears more than once in questions`);
+    expect(messages).toContain(
+      `rules[${doc.rules.length - 1}]: "${doc.rules[0]!.id}" appears more than once in rules`,
+    );
+    expect(messages).toContain(
+      `questions[${doc.questions.length - 1}]: "${doc.questions[0]!.key}" appears more than once in questions`,
+    );
   });
 
   it('refuses operators outside the compiled set', () => {
@@ -61,7 +71,9 @@ describe('ruleset schema and cross-references', () => {
     const doc = base();
     const i = doc.questions.findIndex((q) => q.key === 'controlDistanceMm');
     doc.questions[i]!.answerType = 'force';
-    expect(problemsOf(doc).map((p) => `${p.path}: ${p.message}`)).toContain(`questions[${i}].key: a force in N needs a key ending in "N"`);
+    expect(problemsOf(doc).map((p) => `${p.path}: ${p.message}`)).toContain(
+      `questions[${i}].key: a force in N needs a key ending in "N"`,
+    );
   });
 
   it('refuses a derived fact whose source questions the version never asks', () => {
@@ -70,7 +82,8 @@ describe('ruleset schema and cross-references', () => {
     const i = ruleIndex(doc, 'power.voltage-drop');
     expect(problemsOf(doc)).toContainEqual({
       path: `rules[${i}].requires`,
-      message: '"calc.power.dropPercent" is worked out from "m.operatorCurrentA", which this version never asks',
+      message:
+        '"calc.power.dropPercent" is worked out from "m.operatorCurrentA", which this version never asks',
     });
   });
 
@@ -88,7 +101,11 @@ describe('ruleset schema and cross-references', () => {
     const doc = base() as unknown as { rules: Array<{ id: string; params: Record<string, unknown> }> };
     const rule = doc.rules.find((r) => r.id === 'controls.distance')!;
     rule.params.minDistanceMm = { value: 1828.8 };
-    expect(problemsOf(doc).some((p) => p.path.startsWith(`rules[${doc.rules.indexOf(rule)}].params.minDistanceMm`))).toBe(true);
+    expect(
+      problemsOf(doc).some((p) =>
+        p.path.startsWith(`rules[${doc.rules.indexOf(rule)}].params.minDistanceMm`),
+      ),
+    ).toBe(true);
   });
 
   it('throws a readable error listing every problem from loadRulesetFile', () => {
@@ -112,7 +129,12 @@ describe('ruleset schema and cross-references', () => {
     distance.params.minDistanceMm = { value: 2000, unit: 'mm', note: 'local code' };
     distance.severity = 'critical';
     doc.rules[ruleIndex(doc, 'handover.remote-codes')]!.enabled = false;
-    doc.rules.push({ ...structuredClone(distance), id: 'controls.local-keypad-height', title: 'Keypad out of reach of the gate', local: true });
+    doc.rules.push({
+      ...structuredClone(distance),
+      id: 'controls.local-keypad-height',
+      title: 'Keypad out of reach of the gate',
+      local: true,
+    });
     expect(problemsOf(doc)).toEqual([]);
   });
 

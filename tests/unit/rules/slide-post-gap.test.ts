@@ -6,7 +6,10 @@ import { shipped } from './support/shipped';
 
 const postOutcome = (version: string, inches: number) =>
   score(
-    applyPatch(naSlideGate(), { answers: { postGapGuarded: NO }, measurements: { postGapMm: len(inches, 'in') } }),
+    applyPatch(naSlideGate(), {
+      answers: { postGapGuarded: NO },
+      measurements: { postGapMm: len(inches, 'in') },
+    }),
     shipped('north-american-gate', version),
   ).findings.find((f) => f.ruleId === 'gaps.slide-post')?.outcome;
 

@@ -9,11 +9,16 @@ const current = shipped('north-american-gate', '2026.1');
 describe('verdict', () => {
   it('says withdraw when any critical rule fails', () => {
     // UL 325 installation instructions: no reaching through the gate to a control (critical here)
-    expect(score(applyPatch(naSwingGate(), { answers: { controlReachThrough: YES } }), current).verdict).toBe('withdraw');
+    expect(score(applyPatch(naSwingGate(), { answers: { controlReachThrough: YES } }), current).verdict).toBe(
+      'withdraw',
+    );
   });
 
   it('says remedy when a major rule fails and nothing critical does', () => {
-    expect(score(applyPatch(naSwingGate(), { measurements: { controlDistanceMm: len(4, 'ft') } }), current).verdict).toBe('remedy');
+    expect(
+      score(applyPatch(naSwingGate(), { measurements: { controlDistanceMm: len(4, 'ft') } }), current)
+        .verdict,
+    ).toBe('remedy');
   });
 
   it('says remedy when a critical rule cannot be checked', () => {
@@ -29,7 +34,10 @@ describe('verdict', () => {
   });
 
   it('stays clear when only minor rules fail', () => {
-    const result = score(applyPatch(naSwingGate(), { answers: { placardsLegible: NO, remoteCodesChanged: NO } }), current);
+    const result = score(
+      applyPatch(naSwingGate(), { answers: { placardsLegible: NO, remoteCodesChanged: NO } }),
+      current,
+    );
     expect(result.verdict).toBe('clear');
     expect(result.counts.failedBySeverity).toEqual({ critical: 0, major: 0, minor: 2 });
   });
@@ -46,7 +54,10 @@ describe('area scores', () => {
 
   it('counts needs_info as not passed and leaves n/a out', () => {
     const result = score(
-      applyPatch(naSwingGate(), { answers: { controlReachThrough: YES, manualReleaseSecure: REMOVE }, site: { childrenOrPetsPresent: false } }),
+      applyPatch(naSwingGate(), {
+        answers: { controlReachThrough: YES, manualReleaseSecure: REMOVE },
+        site: { childrenOrPetsPresent: false },
+      }),
       current,
     );
     // children rule now n/a: weight 15; passed distance 3 + sight 3 + pedestrian 3 = 9 → 60

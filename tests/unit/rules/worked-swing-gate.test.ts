@@ -67,7 +67,11 @@ describe('worked example: residential swing gate', () => {
 
   it('asks for the reversal travel it could not judge', () => {
     expect(result.needsInfo).toEqual([
-      { key: 'm.reversalTravelMm', prompt: 'After reversing, how far does the gate travel back?', ruleIds: ['force.reversal-travel'] },
+      {
+        key: 'm.reversalTravelMm',
+        prompt: 'After reversing, how far does the gate travel back?',
+        ruleIds: ['force.reversal-travel'],
+      },
     ]);
     expect(result.complete).toBe(false);
   });
@@ -77,12 +81,28 @@ describe('worked example: residential swing gate', () => {
     // force: reversal time 5 ✓, travel 5 (needs info), second contact 3 ✓ → 8/13 = 61.5
     // signage: placards 3 ✗, legible 1 ✓ → 1/4 = 25
     // power: drop 1 ✗ of 1+3+1+1+1+1+1+3 = 12 → 11/12 = 91.7
-    expect(result.areaScores).toEqual({ pinch: 47, gaps: 100, signage: 25, force: 62, sensing: 100, controls: 100, build: 100, power: 92, handover: 100 });
+    expect(result.areaScores).toEqual({
+      pinch: 47,
+      gaps: 100,
+      signage: 25,
+      force: 62,
+      sensing: 100,
+      controls: 100,
+      build: 100,
+      power: 92,
+      handover: 100,
+    });
   });
 
   it('counts every outcome', () => {
     // 60 rules: 12 slide-only or conditional rules n/a, plus the covered-object rule (nothing
     // behind the open leaf) and the slope rule (level ground) → 14 n/a; 4 fail; 1 needs info; 41 pass
-    expect(result.counts).toEqual({ pass: 41, fail: 4, na: 14, needsInfo: 1, failedBySeverity: { critical: 1, major: 2, minor: 1 } });
+    expect(result.counts).toEqual({
+      pass: 41,
+      fail: 4,
+      na: 14,
+      needsInfo: 1,
+      failedBySeverity: { critical: 1, major: 2, minor: 1 },
+    });
   });
 });

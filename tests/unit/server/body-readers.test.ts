@@ -6,7 +6,14 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { bodyTooLarge, boundedRequest, consumeBody, readBodyBytes, readFormBody, readPageForm } from '@/lib/server/http/body';
+import {
+  bodyTooLarge,
+  boundedRequest,
+  consumeBody,
+  readBodyBytes,
+  readFormBody,
+  readPageForm,
+} from '@/lib/server/http/body';
 import { HttpProblem, parseBody } from '@/lib/server/http/problem';
 import { z } from 'zod';
 
@@ -22,7 +29,8 @@ function sourceFiles(dir: string): string[] {
 }
 
 /** A request (or `Astro.request`, `context.request`, a clone of one) having its body read directly. */
-const directRead = /\brequest\s*(?:\.\s*clone\s*\(\s*\))?\s*\.\s*(?:json|formData|arrayBuffer|text|blob|bytes)\s*\(|\brequest\s*\??\.\s*body\b/;
+const directRead =
+  /\brequest\s*(?:\.\s*clone\s*\(\s*\))?\s*\.\s*(?:json|formData|arrayBuffer|text|blob|bytes)\s*\(|\brequest\s*\??\.\s*body\b/;
 
 describe('who reads request bodies', () => {
   it('no route, page or server module reads a request body except through body.ts', () => {
@@ -68,7 +76,12 @@ function streamed(total: number, headers: Record<string, string> = {}) {
       controller.enqueue(part);
     },
   });
-  const request = new Request('http://app.test/x', { method: 'POST', headers, body, duplex: 'half' } as RequestInit);
+  const request = new Request('http://app.test/x', {
+    method: 'POST',
+    headers,
+    body,
+    duplex: 'half',
+  } as RequestInit);
   return { request, pulled };
 }
 
@@ -150,7 +163,11 @@ describe('the bounded body reader', () => {
       headers: { 'content-type': 'application/x-www-form-urlencoded', 'x-custom': 'kept' },
       body: 'email=a%40b.test&password=secret',
     });
-    const { request, bytes } = await boundedRequest(original, 16 * 1024, 'https://public.test/api/auth/callback/credentials');
+    const { request, bytes } = await boundedRequest(
+      original,
+      16 * 1024,
+      'https://public.test/api/auth/callback/credentials',
+    );
     expect(bytes.toString()).toBe('email=a%40b.test&password=secret');
     expect(request.url).toBe('https://public.test/api/auth/callback/credentials');
     expect(request.headers.get('x-custom')).toBe('kept');
@@ -159,13 +176,24 @@ describe('the bounded body reader', () => {
   });
 
   it('reads forms, and answers pages with plain 413 and 415 refusals', async () => {
-    const form = await readFormBody(new Request('http://app.test/', { method: 'POST', body: new URLSearchParams({ a: '1' }) }), 1024);
+    const form = await readFormBody(
+      new Request('http://app.test/', { method: 'POST', body: new URLSearchParams({ a: '1' }) }),
+      1024,
+    );
     expect(form.get('a')).toBe('1');
-    const big = await readPageForm(streamed(70 * 1024, { 'content-type': 'application/x-www-form-urlencoded' }).request);
+    const big = await readPageForm(
+      streamed(70 * 1024, { 'content-type': 'application/x-www-form-urlencoded' }).request,
+    );
     expect(big).toBeInstanceOf(Response);
     expect((big as Response).status).toBe(413);
     expect(await (big as Response).text()).toContain('64 KiB');
-    const wrongType = await readPageForm(new Request('http://app.test/', { method: 'POST', headers: { 'content-type': 'application/json' }, body: '{}' }));
+    const wrongType = await readPageForm(
+      new Request('http://app.test/', {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: '{}',
+      }),
+    );
     expect((wrongType as Response).status).toBe(415);
   });
 });

@@ -11,7 +11,8 @@ describe('TRUST_PROXY', () => {
     expect(trustedProxyHops('')).toBe(0);
     expect(trustedProxyHops(' 2 ')).toBe(2);
     expect(trustedProxyHops('16')).toBe(16);
-    for (const bad of ['17', 'true', 'yes', '-1', '1.5', 'loopback']) expect(() => trustedProxyHops(bad), bad).toThrow(/TRUST_PROXY/);
+    for (const bad of ['17', 'true', 'yes', '-1', '1.5', 'loopback'])
+      expect(() => trustedProxyHops(bad), bad).toThrow(/TRUST_PROXY/);
   });
 });
 
@@ -45,15 +46,21 @@ describe('the trusted client address', () => {
     expect(normaliseAddress('192.0.2.7:8080')).toBe('192.0.2.7');
     expect(normaliseAddress('[2001:DB8::1]:443')).toBe('2001:db8::1');
     expect(normaliseAddress('fe80::1%eth0')).toBe('fe80::1');
-    for (const bad of ['999.1.1.1', 'localhost', '1.2.3', '', '2001:db8::g', "1.2.3.4'; drop table x;--"]) expect(normaliseAddress(bad), bad).toBeNull();
+    for (const bad of ['999.1.1.1', 'localhost', '1.2.3', '', '2001:db8::g', "1.2.3.4'; drop table x;--"])
+      expect(normaliseAddress(bad), bad).toBeNull();
   });
 
   it('is never anything but an IP address or null, whatever the header holds', () => {
     fc.assert(
-      fc.property(fc.string(), fc.option(fc.string(), { nil: undefined }), fc.integer({ min: 0, max: 16 }), (forwarded, raw, hops) => {
-        const address = trustedClientAddress(raw, forwarded, hops);
-        expect(address === null || isIP(address) !== 0).toBe(true);
-      }),
+      fc.property(
+        fc.string(),
+        fc.option(fc.string(), { nil: undefined }),
+        fc.integer({ min: 0, max: 16 }),
+        (forwarded, raw, hops) => {
+          const address = trustedClientAddress(raw, forwarded, hops);
+          expect(address === null || isIP(address) !== 0).toBe(true);
+        },
+      ),
     );
   });
 });

@@ -5,7 +5,12 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { linkOrigin, listeningOrigin } from '@/lib/server/auth/public-origin';
 
-const saved = { AUTH_URL: process.env.AUTH_URL, PUBLIC_URL: process.env.PUBLIC_URL, HOST: process.env.HOST, PORT: process.env.PORT };
+const saved = {
+  AUTH_URL: process.env.AUTH_URL,
+  PUBLIC_URL: process.env.PUBLIC_URL,
+  HOST: process.env.HOST,
+  PORT: process.env.PORT,
+};
 
 afterEach(() => {
   for (const [name, value] of Object.entries(saved)) {

@@ -8,7 +8,12 @@ describe('problem details', () => {
     expect(res.status).toBe(409);
     expect(res.headers.get('content-type')).toBe('application/problem+json');
     const body = await res.json();
-    expect(body).toMatchObject({ status: 409, title: 'Conflict', detail: 'Someone saved first.', current: { rowVersion: 3 } });
+    expect(body).toMatchObject({
+      status: 409,
+      title: 'Conflict',
+      detail: 'Someone saved first.',
+      current: { rowVersion: 3 },
+    });
     expect(typeof body.type).toBe('string');
   });
 
@@ -30,7 +35,9 @@ describe('problem details', () => {
     } catch (error) {
       expect(error).toBeInstanceOf(HttpProblem);
       expect((error as HttpProblem).status).toBe(422);
-      expect((error as HttpProblem).extra.errors).toEqual([{ field: 'widthMm', message: 'must be greater than zero' }]);
+      expect((error as HttpProblem).extra.errors).toEqual([
+        { field: 'widthMm', message: 'must be greater than zero' },
+      ]);
     }
   });
 });

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { applyDocumentsPatch, changedFields, findConflicts, withoutField, type WalkDocuments } from '@/lib/walk/documents';
+import {
+  applyDocumentsPatch,
+  changedFields,
+  findConflicts,
+  withoutField,
+  type WalkDocuments,
+} from '@/lib/walk/documents';
 
 const base: WalkDocuments = {
   answers: { hingeSideGuarded: { value: 'no', note: 'open hinge' }, latchFitted: { value: 'yes' } },
@@ -18,7 +24,10 @@ describe('applying an edit on the device the way the server does', () => {
   });
 
   it('removes a field set to null and leaves untouched entries as they were (same objects)', () => {
-    const next = applyDocumentsPatch(base, { answers: { latchFitted: null }, measurements: { hingeGapMm: null } });
+    const next = applyDocumentsPatch(base, {
+      answers: { latchFitted: null },
+      measurements: { hingeGapMm: null },
+    });
     expect(next.answers.latchFitted).toBeUndefined();
     expect(next.measurements).toEqual({});
     expect(next.observations).toBe(base.observations);
@@ -26,7 +35,11 @@ describe('applying an edit on the device the way the server does', () => {
 
   it('names each field an edit changes: answers, measurements, site facts, whole observation parts', () => {
     expect(
-      changedFields({ answers: { a: { value: 'yes' } }, measurements: { m: null }, observations: { site: { publicAccess: true }, forceTests: [] } }),
+      changedFields({
+        answers: { a: { value: 'yes' } },
+        measurements: { m: null },
+        observations: { site: { publicAccess: true }, forceTests: [] },
+      }),
     ).toEqual([
       ['answers', 'a'],
       ['measurements', 'm'],
@@ -49,7 +62,10 @@ describe('a newer server copy against edits waiting on the device', () => {
 
   it('reports a field both changed to different values, with the base, their value and ours', () => {
     const theirs = applyDocumentsPatch(base, { answers: { hingeSideGuarded: { value: 'na' } } });
-    const conflicts = findConflicts(base, theirs, [{ answers: { hingeSideGuarded: { value: 'yes' } } }, { answers: { latchFitted: { value: 'no' } } }]);
+    const conflicts = findConflicts(base, theirs, [
+      { answers: { hingeSideGuarded: { value: 'yes' } } },
+      { answers: { latchFitted: { value: 'no' } } },
+    ]);
     expect(conflicts).toEqual([
       {
         field: ['answers', 'hingeSideGuarded'],
@@ -62,7 +78,11 @@ describe('a newer server copy against edits waiting on the device', () => {
 
   it('drops one field from a waiting edit when the auditor keeps the server value, and empty parents with it', () => {
     expect(
-      withoutField({ answers: { a: { value: 'yes' } }, observations: { site: { publicAccess: true } } }, ['observations', 'site', 'publicAccess']),
+      withoutField({ answers: { a: { value: 'yes' } }, observations: { site: { publicAccess: true } } }, [
+        'observations',
+        'site',
+        'publicAccess',
+      ]),
     ).toEqual({
       answers: { a: { value: 'yes' } },
     });

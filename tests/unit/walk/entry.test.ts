@@ -33,7 +33,12 @@ describe('units offered and values stored', () => {
     expect(toMeasurement('length', 2.25, 'in')).toEqual({ value: 2.25, unit: 'in', canonical: 57.15 });
     // 1 lbf = 4.4482216152605 N (NIST SP 811, Appendix B)
     expect(toMeasurement('force', 10, 'lbf').canonical).toBeCloseTo(44.482216, 6);
-    expect(toMeasurement('count', 3, 'count', 'both sides')).toEqual({ value: 3, unit: 'count', canonical: 3, note: 'both sides' });
+    expect(toMeasurement('count', 3, 'count', 'both sides')).toEqual({
+      value: 3,
+      unit: 'count',
+      canonical: 3,
+      note: 'both sides',
+    });
   });
 
   it('makes a fresh v4 UUID for each photo or trace', () => {

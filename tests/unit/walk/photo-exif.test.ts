@@ -11,7 +11,9 @@ const jpeg = (exif?: Record<string, string>, orientation?: number) => {
 
 describe('camera facts read on the phone', () => {
   it('reads the time taken with its offset and the orientation', async () => {
-    const facts = await readCameraFacts(await jpeg({ DateTimeOriginal: '2026:11:30 09:15:00', OffsetTimeOriginal: '+02:00' }, 6));
+    const facts = await readCameraFacts(
+      await jpeg({ DateTimeOriginal: '2026:11:30 09:15:00', OffsetTimeOriginal: '+02:00' }, 6),
+    );
     expect(facts).toEqual({ takenAt: '2026-11-30T07:15:00.000Z', orientation: 6 });
   });
 
@@ -22,7 +24,10 @@ describe('camera facts read on the phone', () => {
 
   it('finds nothing in a photo without EXIF, or in a file that is not a photo', async () => {
     expect(await readCameraFacts(await jpeg())).toEqual({ takenAt: null, orientation: null });
-    expect(await readCameraFacts(new Blob([new Uint8Array([1, 2, 3])]))).toEqual({ takenAt: null, orientation: null });
+    expect(await readCameraFacts(new Blob([new Uint8Array([1, 2, 3])]))).toEqual({
+      takenAt: null,
+      orientation: null,
+    });
   });
 
   it('refuses a time the calendar does not have, and a malformed offset', () => {

@@ -7,10 +7,18 @@ import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { AssessmentInputSchema, loadRulesetFile, score, type RulesetVersion } from '@/lib/rules';
 import type { WalkDocuments } from '@/lib/walk/documents';
-import { groupBySection, mergeNeeds, questionsToShow, type WalkGate, type WalkRuleset } from '@/lib/walk/model';
+import {
+  groupBySection,
+  mergeNeeds,
+  questionsToShow,
+  type WalkGate,
+  type WalkRuleset,
+} from '@/lib/walk/model';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
-const file = JSON.parse(fs.readFileSync('rulesets/north-american-gate/2026.1.json', 'utf8')) as RulesetVersion;
+const file = JSON.parse(
+  fs.readFileSync('rulesets/north-american-gate/2026.1.json', 'utf8'),
+) as RulesetVersion;
 const loaded = loadRulesetFile(file, 'north-american-gate 2026.1');
 const ruleset: WalkRuleset = {
   family: file.family,
@@ -35,7 +43,12 @@ const gate: WalkGate = {
   usageClass: 1,
 };
 
-const site = { pedestriansUseDriveway: true, childrenOrPetsPresent: false, publicAccess: false, slopeAcrossSwing: false };
+const site = {
+  pedestriansUseDriveway: true,
+  childrenOrPetsPresent: false,
+  publicAccess: false,
+  slopeAcrossSwing: false,
+};
 
 describe('the live preview input', () => {
   it('says what must be known before anything can be scored', () => {
@@ -52,7 +65,11 @@ describe('the live preview input', () => {
 
   it('splits answers into yes/no and choices, keeps the gate as measured, and parses with the engine’s schema', () => {
     const documents: WalkDocuments = {
-      answers: { hingeSideGuarded: { value: 'yes', note: 'mesh guard' }, wireGaugeAwg: { value: 'awg12' }, retired: { value: 'yes' } },
+      answers: {
+        hingeSideGuarded: { value: 'yes', note: 'mesh guard' },
+        wireGaugeAwg: { value: 'awg12' },
+        retired: { value: 'yes' },
+      },
       measurements: { hingeGapMm: { value: 2.25, unit: 'in', canonical: 57.15 } },
       observations: { site },
     };
@@ -60,14 +77,22 @@ describe('the live preview input', () => {
     expect(blockers).toEqual([]);
     expect(input.answers).toEqual({ hingeSideGuarded: { value: 'yes', note: 'mesh guard' } });
     expect(input.choices).toEqual({ wireGaugeAwg: { value: 'awg12' } });
-    expect((input.profile as Record<string, unknown>).leafWidth).toEqual({ value: 12, unit: 'ft', canonical: 3657.6 });
+    expect((input.profile as Record<string, unknown>).leafWidth).toEqual({
+      value: 12,
+      unit: 'ft',
+      canonical: 3657.6,
+    });
     expect(AssessmentInputSchema.safeParse(input).success).toBe(true);
   });
 
   it('scores with the engine: the hinge-side gap the auditor measured decides its finding', () => {
     const hingeOutcome = (value: number, unit: 'mm' | 'in', canonical: number) =>
       score(
-        buildPreviewInput(gate, { answers: {}, measurements: { hingeGapMm: { value, unit, canonical } }, observations: { site } }, ruleset.questions).input,
+        buildPreviewInput(
+          gate,
+          { answers: {}, measurements: { hingeGapMm: { value, unit, canonical } }, observations: { site } },
+          ruleset.questions,
+        ).input,
         loaded,
       ).findings.find((f) => f.ruleId === 'pinch.hinge-side')?.outcome;
     // The ruleset's own params: a finger is safe below 4 mm and clear above 25 mm.
@@ -82,12 +107,18 @@ describe('which questions the walk shows', () => {
 
   it('asks a follow-up only once its trigger is answered', () => {
     expect(questionsToShow(ruleset, gate, empty).map((q) => q.key)).not.toContain('barbedTapeHeightMm');
-    const after = questionsToShow(ruleset, gate, { ...empty, answers: { barbedTapeFitted: { value: 'yes' } } }).map((q) => q.key);
+    const after = questionsToShow(ruleset, gate, {
+      ...empty,
+      answers: { barbedTapeFitted: { value: 'yes' } },
+    }).map((q) => q.key);
     expect(after).toContain('barbedTapeHeightMm');
   });
 
   it('follows the site context (slope across the swing asks for the clearance over the swing)', () => {
-    const sloped = questionsToShow(ruleset, gate, { ...empty, observations: { site: { ...site, slopeAcrossSwing: true } } }).map((q) => q.key);
+    const sloped = questionsToShow(ruleset, gate, {
+      ...empty,
+      observations: { site: { ...site, slopeAcrossSwing: true } },
+    }).map((q) => q.key);
     expect(sloped).toContain('bottomClearanceOverSwingMm');
   });
 

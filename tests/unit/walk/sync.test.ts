@@ -41,14 +41,24 @@ function fakeServer() {
           },
         };
       }
-      if (job.rowVersion !== row.rowVersion) return { ok: false, problem: { status: 409, current: current() } };
+      if (job.rowVersion !== row.rowVersion)
+        return { ok: false, problem: { status: 409, current: current() } };
       row.answers = applyMergePatch(row.answers, job.patch.answers ?? {}) as JsonObject;
       row.observations = applyMergePatch(row.observations, job.patch.observations ?? {}) as JsonObject;
       row.rowVersion += 1;
       return { ok: true, value: current() };
     }
     if (job.kind === 'photo') {
-      return { ok: true, value: { id: newId(), clientRef: job.clientRef, itemKey: job.itemKey, thumbUrl: '/t', displayUrl: '/d' } };
+      return {
+        ok: true,
+        value: {
+          id: newId(),
+          clientRef: job.clientRef,
+          itemKey: job.itemKey,
+          thumbUrl: '/t',
+          displayUrl: '/d',
+        },
+      };
     }
     return { ok: true, value: null };
   };
@@ -61,13 +71,21 @@ function fakeServer() {
 }
 
 async function open(id: string, server: ReturnType<typeof fakeServer>, rowVersion = 1) {
-  const sync = new WalkSync({ id, rowVersion, status: 'draft', documents: emptyDocuments(), photos: [], traces: [] });
+  const sync = new WalkSync({
+    id,
+    rowVersion,
+    status: 'draft',
+    documents: emptyDocuments(),
+    photos: [],
+    traces: [],
+  });
   sync.sender = server.send;
   await sync.start();
   return sync;
 }
 
-const patches = (calls: SendJob[]) => calls.filter((c): c is Extract<SendJob, { kind: 'patch' }> => c.kind === 'patch');
+const patches = (calls: SendJob[]) =>
+  calls.filter((c): c is Extract<SendJob, { kind: 'patch' }> => c.kind === 'patch');
 
 describe('the device outbox', () => {
   it('sends edits made in a row as one save, over the row version it read', async () => {
@@ -77,7 +95,13 @@ describe('the device outbox', () => {
     await sync.edit({ observations: { site: { publicAccess: false } } });
     await sync.flush();
     expect(patches(server.calls)).toEqual([
-      expect.objectContaining({ rowVersion: 1, patch: { answers: { latchFitted: { value: 'yes' } }, observations: { site: { publicAccess: false } } } }),
+      expect.objectContaining({
+        rowVersion: 1,
+        patch: {
+          answers: { latchFitted: { value: 'yes' } },
+          observations: { site: { publicAccess: false } },
+        },
+      }),
     ]);
     expect(sync.getState()).toMatchObject({ phase: 'saved', rowVersion: 2, pendingCount: 0 });
     sync.stop();
@@ -112,7 +136,12 @@ describe('the device outbox', () => {
     server.state.offline = true;
     await sync.edit({ answers: { positiveStopClosed: { value: 'yes' } } });
     await sync.addPhoto(
-      { clientRef: '11111111-1111-4111-8111-111111111111', itemKey: 'positiveStopClosed', fileName: 'stop.jpg', takenAt: null },
+      {
+        clientRef: '11111111-1111-4111-8111-111111111111',
+        itemKey: 'positiveStopClosed',
+        fileName: 'stop.jpg',
+        takenAt: null,
+      },
       new Blob(['jpeg']),
     );
     await sync.edit({ answers: { manualLeft: { value: 'no' } } });
@@ -144,7 +173,9 @@ describe('the device outbox', () => {
     await sync.edit({ answers: { latchFitted: { value: 'yes' } } });
     await sync.flush();
     expect(sync.getState().phase).toBe('conflict');
-    expect(sync.getState().conflicts).toEqual([{ field: ['answers', 'latchFitted'], base: undefined, theirs: { value: 'no' }, mine: { value: 'yes' } }]);
+    expect(sync.getState().conflicts).toEqual([
+      { field: ['answers', 'latchFitted'], base: undefined, theirs: { value: 'no' }, mine: { value: 'yes' } },
+    ]);
     expect(server.row.answers.latchFitted).toEqual({ value: 'no' });
 
     await sync.resolveConflicts(new Map([['answers.latchFitted', 'mine']]));
@@ -174,7 +205,10 @@ describe('the device outbox', () => {
     await sync.edit({ answers: { ownerShown: { value: 'yes' } } });
     await sync.flush();
     expect(sync.getState().refused).toEqual([
-      expect.objectContaining({ what: 'latchFitted', message: expect.stringMatching(/answers\.x\.value: must be one of/) }),
+      expect.objectContaining({
+        what: 'latchFitted',
+        message: expect.stringMatching(/answers\.x\.value: must be one of/),
+      }),
     ]);
     expect(server.row.answers).toEqual({ ownerShown: { value: 'yes' } });
     sync.stop();
@@ -191,11 +225,23 @@ describe('the device outbox', () => {
     server.state.offline = false;
     server.calls.length = 0;
 
-    const after = new WalkSync({ id, rowVersion: 3, status: 'scored', documents: emptyDocuments(), photos: [], traces: [] });
+    const after = new WalkSync({
+      id,
+      rowVersion: 3,
+      status: 'scored',
+      documents: emptyDocuments(),
+      photos: [],
+      traces: [],
+    });
     after.sender = server.send;
     await after.start();
     expect(after.getState()).toMatchObject({ phase: 'closed', pendingCount: 0 });
-    expect(after.getState().refused).toEqual([expect.objectContaining({ what: 'manualLeft', message: expect.stringMatching(/submitted before this change/) })]);
+    expect(after.getState().refused).toEqual([
+      expect.objectContaining({
+        what: 'manualLeft',
+        message: expect.stringMatching(/submitted before this change/),
+      }),
+    ]);
     expect(after.getState().view.answers).toEqual({});
     await after.flush();
     expect(server.calls).toEqual([]);
@@ -219,13 +265,22 @@ describe('creates from the device outbox', () => {
     const server = fakeServer();
     const sync = await open(newId(), server);
     server.state.offline = true;
-    await sync.addPhoto({ clientRef: '22222222-2222-4222-8222-222222222222', itemKey: 'closingEdge', fileName: 'a.jpg', takenAt: null }, new Blob(['a']));
+    await sync.addPhoto(
+      {
+        clientRef: '22222222-2222-4222-8222-222222222222',
+        itemKey: 'closingEdge',
+        fileName: 'a.jpg',
+        takenAt: null,
+      },
+      new Blob(['a']),
+    );
     await sync.addTrace(traceOp('33333333-3333-4333-8333-333333333333'));
     await sync.flush();
     await sync.flush();
     server.state.offline = false;
     await sync.flush();
-    const keysOf = (kind: 'photo' | 'trace') => server.calls.flatMap((c) => (c.kind === kind ? [c.idempotencyKey] : []));
+    const keysOf = (kind: 'photo' | 'trace') =>
+      server.calls.flatMap((c) => (c.kind === kind ? [c.idempotencyKey] : []));
     // Tries that got no answer, then the one that went through: always the same key for one edit.
     expect(keysOf('photo').length).toBeGreaterThanOrEqual(2);
     expect(new Set(keysOf('photo'))).toEqual(new Set(['22222222-2222-4222-8222-222222222222']));
@@ -284,6 +339,9 @@ describe('creates from the device outbox', () => {
       globalThis.fetch = realFetch;
       globalThis.XMLHttpRequest = realXhr;
     }
-    expect(seen.map((h) => h.get('idempotency-key'))).toEqual(['44444444-4444-4444-8444-444444444444', '44444444-4444-4444-8444-444444444444']);
+    expect(seen.map((h) => h.get('idempotency-key'))).toEqual([
+      '44444444-4444-4444-8444-444444444444',
+      '44444444-4444-4444-8444-444444444444',
+    ]);
   });
 });

@@ -1,5 +1,15 @@
 import { describe, expect, it } from 'vitest';
-import { auditActionLabel, count, daysFromNow, formatCalendarDate, humanise, rulesetLabel, statusLabel, usageClassLabel, verdictLabel } from '@/lib/vocabulary';
+import {
+  auditActionLabel,
+  count,
+  daysFromNow,
+  formatCalendarDate,
+  humanise,
+  rulesetLabel,
+  statusLabel,
+  usageClassLabel,
+  verdictLabel,
+} from '@/lib/vocabulary';
 
 describe('vocabulary', () => {
   it('agrees a count with its noun', () => {
@@ -30,7 +40,9 @@ describe('vocabulary', () => {
     expect(auditActionLabel('assessment.sent_for_signature')).toBe('Sent for signature');
     expect(auditActionLabel('gate.moved_site')).toBe('Gate moved site');
     expect(humanise('needs_info')).toBe('Needs info');
-    expect(rulesetLabel({ family: 'north-american-gate', version: '2026.1', title: null })).toBe('North american gate 2026.1');
+    expect(rulesetLabel({ family: 'north-american-gate', version: '2026.1', title: null })).toBe(
+      'North american gate 2026.1',
+    );
   });
 
   it('writes a calendar date without shifting it by a time zone', () => {

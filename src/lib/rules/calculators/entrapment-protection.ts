@@ -112,7 +112,8 @@ const sortTypes = (types: Iterable<EntrapmentDeviceType>): EntrapmentDeviceType[
   return ENTRAPMENT_DEVICE_TYPES.filter((type) => present.has(type));
 };
 
-const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] => ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
+const sortReasons = (reasons: Set<EntrapmentReason>): EntrapmentReason[] =>
+  ENTRAPMENT_REASONS.filter((reason) => reasons.has(reason));
 
 /** YYYY-MM-DD, alone or followed by a time (`T…`): only the date part is judged. */
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}(?:$|T)/;
@@ -125,7 +126,11 @@ export function applicableEntrapmentEdition(
 ): EntrapmentEdition | null {
   if (edition) return edition;
   if (manufacturedOn === null || manufacturedOn === undefined) return null;
-  return manufactureDateIsValid(manufacturedOn) ? (manufacturedOn.slice(0, 10) >= effectiveDate2016 ? '2016' : 'pre-2016') : refuseDate(manufacturedOn);
+  return manufactureDateIsValid(manufacturedOn)
+    ? manufacturedOn.slice(0, 10) >= effectiveDate2016
+      ? '2016'
+      : 'pre-2016'
+    : refuseDate(manufacturedOn);
 }
 
 /** A real calendar date in YYYY-MM-DD form, leap years included: zod's ISO date check, as the input schema uses. */
@@ -139,7 +144,11 @@ function refuseDate(manufacturedOn: string): never {
   throw new RangeError(`manufacturedOn must be an ISO date (YYYY-MM-DD), got "${manufacturedOn}"`);
 }
 
-function judgePre2016(input: EntrapmentProtectionInput, direction: TravelDirection, rules: EntrapmentRules): DirectionJudgement {
+function judgePre2016(
+  input: EntrapmentProtectionInput,
+  direction: TravelDirection,
+  rules: EntrapmentRules,
+): DirectionJudgement {
   const entrapmentZone = input.entrapmentZones[direction];
   const reasons = new Set<EntrapmentReason>();
   const group = UL325_KIND_GROUP[input.gateKind];
@@ -158,7 +167,8 @@ function judgePre2016(input: EntrapmentProtectionInput, direction: TravelDirecti
   const usable = new Set<EntrapmentDeviceType>();
   for (const device of fitted) {
     if (device.type === 'D' && input.automaticClosing) reasons.add('d_with_auto_close');
-    else if (!row.primary.includes(device.type) && !row.secondary.includes(device.type)) reasons.add('type_not_allowed_for_kind');
+    else if (!row.primary.includes(device.type) && !row.secondary.includes(device.type))
+      reasons.add('type_not_allowed_for_kind');
     else usable.add(device.type);
   }
   const countedTypes = sortTypes(usable);
@@ -187,7 +197,11 @@ function judgePre2016(input: EntrapmentProtectionInput, direction: TravelDirecti
   };
 }
 
-function judge2016(input: EntrapmentProtectionInput, direction: TravelDirection, rules: EntrapmentRules): DirectionJudgement {
+function judge2016(
+  input: EntrapmentProtectionInput,
+  direction: TravelDirection,
+  rules: EntrapmentRules,
+): DirectionJudgement {
   const entrapmentZone = input.entrapmentZones[direction];
   const reasons = new Set<EntrapmentReason>();
   const group = UL325_KIND_GROUP[input.gateKind];
@@ -198,7 +212,8 @@ function judge2016(input: EntrapmentProtectionInput, direction: TravelDirection,
     if (device.type === 'E') reasons.add('type_e_not_counted');
     else if (device.type === 'D' && input.automaticClosing) reasons.add('d_with_auto_close');
     else if (allowed && !allowed.includes(device.type)) reasons.add('type_not_allowed_for_kind');
-    else if (rules.externalTypes.includes(device.type) && !device.monitored) reasons.add('unmonitored_external');
+    else if (rules.externalTypes.includes(device.type) && !device.monitored)
+      reasons.add('unmonitored_external');
     else {
       counted.add(device.type);
       countedDevices += 1;
@@ -228,9 +243,16 @@ function combine(opening: DirectionJudgement, closing: DirectionJudgement): Edit
  * Judges fitted entrapment protection per direction under both editions and gives the verdict
  * under the one that applies. A direction without an entrapment zone needs no protection.
  */
-export function assessEntrapmentProtection(input: EntrapmentProtectionInput, rules: Partial<EntrapmentRules> = {}): EntrapmentProtectionResult {
+export function assessEntrapmentProtection(
+  input: EntrapmentProtectionInput,
+  rules: Partial<EntrapmentRules> = {},
+): EntrapmentProtectionResult {
   const merged: EntrapmentRules = { ...DEFAULT_RULES, ...rules };
-  const applicableEdition = applicableEntrapmentEdition(input.manufacturedOn, input.edition, merged.effectiveDate2016);
+  const applicableEdition = applicableEntrapmentEdition(
+    input.manufacturedOn,
+    input.edition,
+    merged.effectiveDate2016,
+  );
   const byEdition: Record<EntrapmentEdition, EditionJudgement> = {
     'pre-2016': combine(judgePre2016(input, 'opening', merged), judgePre2016(input, 'closing', merged)),
     '2016': combine(judge2016(input, 'opening', merged), judge2016(input, 'closing', merged)),

@@ -139,6 +139,7 @@ export function parseForceTraceCsv(text: string, options: ForceTraceCsvOptions =
     }
     samples.push({ t: timeUnit === 'ms' ? t / 1000 : t, f: toNewtonsFrom(f, forceUnit) });
   }
-  if (samples.length === 0) throw new ForceTraceError('empty_trace', 'The file holds a header but no samples');
+  if (samples.length === 0)
+    throw new ForceTraceError('empty_trace', 'The file holds a header but no samples');
   return samples;
 }

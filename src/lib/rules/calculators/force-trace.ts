@@ -49,7 +49,12 @@ export const EN12445_MIN_SAMPLE_RATE_HZ = 200;
 export const FIRST_CONTACT_THRESHOLD_N = 25;
 
 /** Kinds judged with the vertical-door/barrier limit (400 N whatever the gap). */
-const VERTICAL_OR_BARRIER: readonly GateKind[] = ['barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot'];
+const VERTICAL_OR_BARRIER: readonly GateKind[] = [
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+];
 
 /** Timing tolerance for float noise in recorded times (1 µs). */
 const TIME_EPSILON_S = 1e-6;
@@ -104,11 +109,17 @@ function resolveZone(context: ForceTraceContext, bounds = EN12453_GAP_ZONE_MM): 
   const gap = context.gapMm;
   if (gap === null || gap === undefined) {
     if (VERTICAL_OR_BARRIER.includes(context.gateKind)) return null;
-    throw new ForceTraceError('zone_unknown', 'Give the gap at the measuring point (or its zone) for a swing or slide gate');
+    throw new ForceTraceError(
+      'zone_unknown',
+      'Give the gap at the measuring point (or its zone) for a swing or slide gate',
+    );
   }
   requireFinite('gapMm', gap);
   if (gap < bounds.min) {
-    throw new ForceTraceError('gap_not_covered', `A ${gap} mm gap is below the ${bounds.min} mm measuring point`);
+    throw new ForceTraceError(
+      'gap_not_covered',
+      `A ${gap} mm gap is below the ${bounds.min} mm measuring point`,
+    );
   }
   return gap <= bounds.max ? 'gap_50_500' : 'gap_over_500';
 }
@@ -123,7 +134,10 @@ function validateSamples(samples: readonly ForceSample[], minRateHz: number): vo
     const previous = samples[i - 1];
     if (!previous) return;
     if (sample.t <= previous.t) {
-      throw new ForceTraceError('time_not_increasing', `Sample ${i + 1}: time ${sample.t} s does not follow ${previous.t} s`);
+      throw new ForceTraceError(
+        'time_not_increasing',
+        `Sample ${i + 1}: time ${sample.t} s does not follow ${previous.t} s`,
+      );
     }
     if (sample.t - previous.t > maxStep) {
       throw new ForceTraceError(
@@ -155,7 +169,11 @@ function crossingTime(samples: readonly ForceSample[], i: number, level: number)
  * Evaluates one measuring point's trace. Refuses (ForceTraceError) traces that are unordered,
  * sampled slower than the meter must, never touch, or stop before 5 s after first contact.
  */
-export function evaluateForceTrace(samples: readonly ForceSample[], context: ForceTraceContext, limits: Partial<ForceTraceLimits> = {}): ForceTraceResult {
+export function evaluateForceTrace(
+  samples: readonly ForceSample[],
+  context: ForceTraceContext,
+  limits: Partial<ForceTraceLimits> = {},
+): ForceTraceResult {
   const l: ForceTraceLimits = {
     ...EN12453_FORCE_LIMITS,
     minSampleRateHz: EN12445_MIN_SAMPLE_RATE_HZ,
@@ -175,7 +193,10 @@ export function evaluateForceTrace(samples: readonly ForceSample[], context: For
   const contactAt = (samples[contactIndex] as ForceSample).t;
   const residualAt = contactAt + l.residualAfterS;
   if (last.t < residualAt - TIME_EPSILON_S) {
-    throw new ForceTraceError('too_short', `The trace ends ${roundS(last.t - contactAt)} s after first contact; it must run ${l.residualAfterS} s`);
+    throw new ForceTraceError(
+      'too_short',
+      `The trace ends ${roundS(last.t - contactAt)} s after first contact; it must run ${l.residualAfterS} s`,
+    );
   }
 
   let peakIndex = contactIndex;
@@ -203,7 +224,10 @@ export function evaluateForceTrace(samples: readonly ForceSample[], context: For
     if (sample.t > dynamicEnd && sample.t <= windowEnd) staticForce = Math.max(staticForce, sample.f);
   }
 
-  const peakLimit = zone === null || VERTICAL_OR_BARRIER.includes(context.gateKind) ? l.peakDynamicVerticalOrBarrierN : l.peakDynamicN[zone];
+  const peakLimit =
+    zone === null || VERTICAL_OR_BARRIER.includes(context.gateKind)
+      ? l.peakDynamicVerticalOrBarrierN
+      : l.peakDynamicN[zone];
   const result = {
     peak: roundN(peakSample.f),
     timeOfPeak: roundS(peakSample.t - contactAt),

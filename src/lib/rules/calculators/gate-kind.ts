@@ -4,10 +4,18 @@
  */
 
 /** The way the gate moves. */
-export type GateKind = 'swing' | 'slide' | 'barrier_arm' | 'vertical_lift' | 'vertical_pivot' | 'overhead_pivot';
+export type GateKind =
+  'swing' | 'slide' | 'barrier_arm' | 'vertical_lift' | 'vertical_pivot' | 'overhead_pivot';
 
 /** Every gate kind, for input validation and pickers. */
-export const GATE_KINDS: readonly GateKind[] = Object.freeze(['swing', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot']);
+export const GATE_KINDS: readonly GateKind[] = Object.freeze([
+  'swing',
+  'slide',
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+]);
 
 /**
  * UL 325 usage class: 1 residential, 2 commercial / general access, 3 industrial / limited

@@ -23,7 +23,16 @@ export interface DerivedHrnFactors {
   np: NpKey;
 }
 
-const LO_SCALE: readonly LoKey[] = ['almost_impossible', 'highly_unlikely', 'unlikely', 'possible', 'even_chance', 'probable', 'likely', 'certain'];
+const LO_SCALE: readonly LoKey[] = [
+  'almost_impossible',
+  'highly_unlikely',
+  'unlikely',
+  'possible',
+  'even_chance',
+  'probable',
+  'likely',
+  'certain',
+];
 const FE_SCALE: readonly FeKey[] = ['annually', 'monthly', 'weekly', 'daily', 'hourly', 'constantly'];
 
 /** Gate cycles by usage class: homes daily, commercial and industrial sites hourly, guarded sites daily. */
@@ -49,7 +58,8 @@ export const HRN_DEFAULT_NP_PUBLIC_ACCESS: NpKey = '8_15'; // common practice, n
 /** Likelihood starts at "unlikely" and rises one step per aggravating fact. */
 export const HRN_DEFAULT_LO_BASE: LoKey = 'unlikely'; // common practice, no source
 
-const step = <K>(scale: readonly K[], from: K, by: number): K => scale[Math.min(scale.length - 1, scale.indexOf(from) + by)] as K;
+const step = <K>(scale: readonly K[], from: K, by: number): K =>
+  scale[Math.min(scale.length - 1, scale.indexOf(from) + by)] as K;
 
 /**
  * Default LO/FE/DPH/NP keys: LO rises a step each for children or pets, pedestrians in the
@@ -57,8 +67,13 @@ const step = <K>(scale: readonly K[], from: K, by: number): K => scale[Math.min(
  * the driveway; DPH is the stated severity; NP follows the class, or the public-access band.
  * `overrides` win over every default.
  */
-export function deriveHrnFactors(facts: HrnSiteFacts, overrides: Partial<DerivedHrnFactors> = {}): DerivedHrnFactors {
-  const aggravating = [facts.childrenOrPetsPresent, facts.pedestriansUseDriveway, facts.publicAccess].filter(Boolean).length;
+export function deriveHrnFactors(
+  facts: HrnSiteFacts,
+  overrides: Partial<DerivedHrnFactors> = {},
+): DerivedHrnFactors {
+  const aggravating = [facts.childrenOrPetsPresent, facts.pedestriansUseDriveway, facts.publicAccess].filter(
+    Boolean,
+  ).length;
   const derived: DerivedHrnFactors = {
     lo: step(LO_SCALE, HRN_DEFAULT_LO_BASE, aggravating),
     fe: step(FE_SCALE, HRN_DEFAULT_FE_BY_CLASS[facts.usageClass], facts.pedestriansUseDriveway ? 1 : 0),

@@ -17,12 +17,26 @@ export {
 } from './hrn-defaults';
 
 /** Likelihood of occurrence keys of the default table. */
-export type LoKey = 'almost_impossible' | 'highly_unlikely' | 'unlikely' | 'possible' | 'even_chance' | 'probable' | 'likely' | 'certain';
+export type LoKey =
+  | 'almost_impossible'
+  | 'highly_unlikely'
+  | 'unlikely'
+  | 'possible'
+  | 'even_chance'
+  | 'probable'
+  | 'likely'
+  | 'certain';
 /** Frequency of exposure keys of the default table. */
 export type FeKey = 'annually' | 'monthly' | 'weekly' | 'daily' | 'hourly' | 'constantly';
 /** Degree of possible harm keys of the default table. */
 export type DphKey =
-  'scratch_bruise' | 'laceration' | 'minor_fracture' | 'major_fracture' | 'loss_of_one_limb_or_eye' | 'loss_of_two_limbs_or_eyes' | 'fatality';
+  | 'scratch_bruise'
+  | 'laceration'
+  | 'minor_fracture'
+  | 'major_fracture'
+  | 'loss_of_one_limb_or_eye'
+  | 'loss_of_two_limbs_or_eyes'
+  | 'fatality';
 /** Number-of-people band keys of the default table. */
 export type NpKey = '1_2' | '3_7' | '8_15' | '16_50' | 'over_50';
 
@@ -70,7 +84,8 @@ export const HRN_TABLE_WIDELY_REPRINTED = Object.freeze({
 } satisfies HrnTable);
 
 /** Named risk bands, used for sorting and wording findings. */
-export type HrnBand = 'negligible' | 'very_low' | 'low' | 'significant' | 'high' | 'very_high' | 'extreme' | 'unacceptable';
+export type HrnBand =
+  'negligible' | 'very_low' | 'low' | 'significant' | 'high' | 'very_high' | 'extreme' | 'unacceptable';
 
 /**
  * HRN bands (same source as the table). Convention: each band includes its upper bound, so
@@ -95,9 +110,16 @@ export const HRN_BANDS: ReadonlyArray<{ band: HrnBand; upTo: number | null }> = 
 export type HrnBandEdges = 'upper_inclusive' | 'lower_inclusive';
 
 /** The band a hazard rating falls in (upper bounds inclusive unless `edges` says otherwise). */
-export function hrnBand(value: number, bands: typeof HRN_BANDS = HRN_BANDS, edges: HrnBandEdges = 'upper_inclusive'): HrnBand {
+export function hrnBand(
+  value: number,
+  bands: typeof HRN_BANDS = HRN_BANDS,
+  edges: HrnBandEdges = 'upper_inclusive',
+): HrnBand {
   requireNonNegative('HRN', value);
-  const found = bands.find((entry) => entry.upTo === null || (edges === 'upper_inclusive' ? value <= entry.upTo : value < entry.upTo));
+  const found = bands.find(
+    (entry) =>
+      entry.upTo === null || (edges === 'upper_inclusive' ? value <= entry.upTo : value < entry.upTo),
+  );
   if (!found) throw new RangeError(`No band holds ${value}; the last band needs upTo: null`);
   return found.band;
 }
@@ -158,5 +180,10 @@ export function calculateHrn(
     np: npEntry.factor,
   };
   const hrn = roundTo(factors.lo * factors.fe * factors.dph * factors.np, 6);
-  return { keys: { lo: keys.lo, fe: keys.fe, dph: keys.dph, np: keys.np }, factors, hrn, band: hrnBand(hrn, bands, edges) };
+  return {
+    keys: { lo: keys.lo, fe: keys.fe, dph: keys.dph, np: keys.np },
+    factors,
+    hrn,
+    band: hrnBand(hrn, bands, edges),
+  };
 }

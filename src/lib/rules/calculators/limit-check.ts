@@ -17,7 +17,12 @@ export interface LimitCheck {
   margin: number | null;
 }
 
-function check(rule: LimitRule, measured: number | null | undefined, limit: number, decimals: number): LimitCheck {
+function check(
+  rule: LimitRule,
+  measured: number | null | undefined,
+  limit: number,
+  decimals: number,
+): LimitCheck {
   const roundedLimit = roundTo(limit, decimals);
   if (measured === null || measured === undefined) {
     return { pass: null, rule, measured: null, limit: roundedLimit, margin: null };
@@ -31,16 +36,20 @@ function check(rule: LimitRule, measured: number | null | undefined, limit: numb
 }
 
 /** Passes when measured ≤ limit (the limit itself passes). Judged on values rounded to `decimals`. */
-export const checkAtMost = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck => check('at_most', measured, limit, decimals);
+export const checkAtMost = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck =>
+  check('at_most', measured, limit, decimals);
 
 /** Passes when measured ≥ limit (the limit itself passes). */
-export const checkAtLeast = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck => check('at_least', measured, limit, decimals);
+export const checkAtLeast = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck =>
+  check('at_least', measured, limit, decimals);
 
 /** Passes when measured < limit (the limit itself fails). */
-export const checkBelow = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck => check('below', measured, limit, decimals);
+export const checkBelow = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck =>
+  check('below', measured, limit, decimals);
 
 /** Passes when measured > limit (the limit itself fails). */
-export const checkAbove = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck => check('above', measured, limit, decimals);
+export const checkAbove = (measured: number | null | undefined, limit: number, decimals = 1): LimitCheck =>
+  check('above', measured, limit, decimals);
 
 /** Combines outcomes: any fail fails; otherwise any unknown is unknown; otherwise pass. */
 export function combinePasses(...passes: Array<boolean | null>): boolean | null {

@@ -27,7 +27,8 @@ export const roundDeg = (degrees: number): number => roundTo(degrees, 1);
 
 /** Rejects NaN and ±Infinity up front, so a bad entry fails loudly instead of poisoning a result. */
 export function requireFinite(name: string, value: number): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new RangeError(`${name} must be a finite number`);
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    throw new RangeError(`${name} must be a finite number`);
   return value;
 }
 

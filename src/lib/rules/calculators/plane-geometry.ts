@@ -26,7 +26,8 @@ export const toRadians = (degrees: number): number => (degrees * Math.PI) / 180;
 export const toDegrees = (radians: number): number => (radians * 180) / Math.PI;
 
 /** Unit vector at `degrees` counter-clockwise from +x. */
-export const direction = (degrees: number): Point => point(Math.cos(toRadians(degrees)), Math.sin(toRadians(degrees)));
+export const direction = (degrees: number): Point =>
+  point(Math.cos(toRadians(degrees)), Math.sin(toRadians(degrees)));
 
 /** Perpendicular distance from p to the infinite line through a and b (a ≠ b). */
 export function distanceToLine(p: Point, a: Point, b: Point): number {
@@ -42,7 +43,14 @@ export function distanceToSegment(p: Point, a: Point, b: Point): number {
  * distanceToSegment on plain coordinates: the sweeps call it hundreds of times per gate, and
  * this form builds no point objects. Same arithmetic, in the same order, as the vector form.
  */
-export function distanceToSegmentXY(px: number, py: number, ax: number, ay: number, bx: number, by: number): number {
+export function distanceToSegmentXY(
+  px: number,
+  py: number,
+  ax: number,
+  ay: number,
+  bx: number,
+  by: number,
+): number {
   const abx = bx - ax;
   const aby = by - ay;
   const lengthSquared = abx * abx + aby * aby;
@@ -57,7 +65,16 @@ export function segmentsIntersect(a1: Point, a2: Point, b1: Point, b2: Point): b
 }
 
 /** segmentsIntersect on plain coordinates (see distanceToSegmentXY). */
-export function segmentsIntersectXY(a1x: number, a1y: number, a2x: number, a2y: number, b1x: number, b1y: number, b2x: number, b2y: number): boolean {
+export function segmentsIntersectXY(
+  a1x: number,
+  a1y: number,
+  a2x: number,
+  a2y: number,
+  b1x: number,
+  b1y: number,
+  b2x: number,
+  b2y: number,
+): boolean {
   const d1 = (a2x - a1x) * (b1y - a1y) - (a2y - a1y) * (b1x - a1x);
   const d2 = (a2x - a1x) * (b2y - a1y) - (a2y - a1y) * (b2x - a1x);
   const d3 = (b2x - b1x) * (a1y - b1y) - (b2y - b1y) * (a1x - b1x);
@@ -77,7 +94,16 @@ export function segmentDistance(a1: Point, a2: Point, b1: Point, b2: Point): num
 }
 
 /** segmentDistance on plain coordinates (see distanceToSegmentXY). */
-export function segmentDistanceXY(a1x: number, a1y: number, a2x: number, a2y: number, b1x: number, b1y: number, b2x: number, b2y: number): number {
+export function segmentDistanceXY(
+  a1x: number,
+  a1y: number,
+  a2x: number,
+  a2y: number,
+  b1x: number,
+  b1y: number,
+  b2x: number,
+  b2y: number,
+): number {
   if (segmentsIntersectXY(a1x, a1y, a2x, a2y, b1x, b1y, b2x, b2y)) return 0;
   return Math.min(
     distanceToSegmentXY(a1x, a1y, b1x, b1y, b2x, b2y),

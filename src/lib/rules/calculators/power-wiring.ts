@@ -12,7 +12,9 @@ export type Awg = 18 | 16 | 14 | 12 | 10;
  * DC resistance of uncoated copper at 75 °C, Ω per 1000 ft, solid / stranded.
  * NEC Chapter 9 Table 8 (as listed in our reference notes); verify against the current edition.
  */
-export const NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT: Readonly<Record<Awg, { solid: number; stranded: number }>> = Object.freeze({
+export const NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT: Readonly<
+  Record<Awg, { solid: number; stranded: number }>
+> = Object.freeze({
   18: { solid: 7.77, stranded: 7.95 },
   16: { solid: 4.89, stranded: 4.99 },
   14: { solid: 3.07, stranded: 3.14 },
@@ -52,7 +54,11 @@ export interface VoltageDropResult {
  * and R in Ω per 1000 ft. Tells whether the operator still gets enough voltage at the far end.
  */
 export function voltageDrop(input: VoltageDropInput): VoltageDropResult {
-  const lengthFt = input.oneWayLengthFt ?? (input.oneWayLengthM === null || input.oneWayLengthM === undefined ? null : input.oneWayLengthM / METRES_PER_FOOT);
+  const lengthFt =
+    input.oneWayLengthFt ??
+    (input.oneWayLengthM === null || input.oneWayLengthM === undefined
+      ? null
+      : input.oneWayLengthM / METRES_PER_FOOT);
   if (lengthFt === null) throw new RangeError('Give the one-way run length in metres or feet');
   requireNonNegative('oneWayLength', lengthFt);
   const current = requireNonNegative('currentA', input.currentA);
@@ -60,7 +66,10 @@ export function voltageDrop(input: VoltageDropInput): VoltageDropResult {
 
   let ohms = input.ohmsPer1000Ft ?? null;
   if (ohms === null) {
-    const row = input.awg === null || input.awg === undefined ? undefined : NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT[input.awg];
+    const row =
+      input.awg === null || input.awg === undefined
+        ? undefined
+        : NEC_CH9_TABLE8_COPPER_OHMS_PER_1000FT[input.awg];
     if (!row) throw new RangeError(`No resistance for AWG ${input.awg}; pass ohmsPer1000Ft`);
     ohms = input.stranded ? row.stranded : row.solid;
   }

@@ -111,7 +111,8 @@ function layoutOf(input: SwingOperatorGeometryInput): Layout {
   const offset = requireNonNegative('bracketOffsetMm', input.bracketOffsetMm ?? 0);
   const side = input.bMm < 0 ? -1 : 1;
   const rearPivot = point(-input.aMm, input.bMm);
-  if (rearPivot.x === 0 && rearPivot.y === 0) throw new RangeError('The rear pivot cannot sit on the hinge axis');
+  if (rearPivot.x === 0 && rearPivot.y === 0)
+    throw new RangeError('The rear pivot cannot sit on the hinge axis');
   return {
     rearPivot,
     frontRadius: Math.hypot(input.bracketFromHingeMm, offset),
@@ -123,7 +124,10 @@ function layoutOf(input: SwingOperatorGeometryInput): Layout {
 
 function frontPivotAt(layout: Layout, angleDeg: number): Point {
   const { bracketFromHingeMm, bracketOffsetMm = 0 } = layout.input;
-  return add(scale(direction(angleDeg), bracketFromHingeMm), scale(direction(angleDeg + 90), layout.side * bracketOffsetMm));
+  return add(
+    scale(direction(angleDeg), bracketFromHingeMm),
+    scale(direction(angleDeg + 90), layout.side * bracketOffsetMm),
+  );
 }
 
 /** Pivot-to-pivot distance at an opening angle (0 = closed), mm, unrounded. */
@@ -171,12 +175,22 @@ function anglesWhereSeparationIs(layout: Layout, gammaDeg: number, period = 360)
   return found;
 }
 
-function reachableRanges(layout: Layout, shortest: number, longest: number): Array<{ fromDeg: number; toDeg: number }> {
+function reachableRanges(
+  layout: Layout,
+  shortest: number,
+  longest: number,
+): Array<{ fromDeg: number; toDeg: number }> {
   const R = Math.hypot(layout.rearPivot.x, layout.rearPivot.y);
   const r = layout.frontRadius;
   // Law of cosines: L² = r² + R² − 2·r·R·cos ψ, so the angle where L hits a stroke end is ψ = ±acos(...).
-  const gamma = (L: number) => toDegrees(Math.acos(Math.min(1, Math.max(-1, (r * r + R * R - L * L) / (2 * r * R)))));
-  const cuts = [0, SWEEP_MAX_DEG, ...anglesWhereSeparationIs(layout, gamma(shortest)), ...anglesWhereSeparationIs(layout, gamma(longest))]
+  const gamma = (L: number) =>
+    toDegrees(Math.acos(Math.min(1, Math.max(-1, (r * r + R * R - L * L) / (2 * r * R)))));
+  const cuts = [
+    0,
+    SWEEP_MAX_DEG,
+    ...anglesWhereSeparationIs(layout, gamma(shortest)),
+    ...anglesWhereSeparationIs(layout, gamma(longest)),
+  ]
     .sort((a, b) => a - b)
     .filter((angle, i, all) => i === 0 || angle - (all[i - 1] as number) > 1e-9);
   const lengthAt = (angle: number) => distance(frontPivotAt(layout, angle), layout.rearPivot);
@@ -241,8 +255,17 @@ function sampledAngles(target: number, step: number): number[] {
 export type SwingOperatorGeometrySummary = Omit<SwingOperatorGeometryResult, 'chart'>;
 
 /** Works out ram length, reach, leverage and body clearance over the swing from closed to the target opening. */
-export function assessSwingOperatorGeometry(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number } = {}): SwingOperatorGeometryResult {
-  const chart: SwingGeometryChart = { angleDeg: [], pivotToPivotMm: [], extensionMm: [], leverArmMm: [], clearanceMm: [] };
+export function assessSwingOperatorGeometry(
+  input: SwingOperatorGeometryInput,
+  limits: { minClearanceMm?: number } = {},
+): SwingOperatorGeometryResult {
+  const chart: SwingGeometryChart = {
+    angleDeg: [],
+    pivotToPivotMm: [],
+    extensionMm: [],
+    leverArmMm: [],
+    clearanceMm: [],
+  };
   return { ...sweepSwing(input, limits, chart), chart };
 }
 
@@ -250,14 +273,22 @@ export function assessSwingOperatorGeometry(input: SwingOperatorGeometryInput, l
  * The same figures as assessSwingOperatorGeometry without building the chart: scoring reads
  * only the summary and re-scores after every answer, so it skips a thousand rounded samples.
  */
-export function summariseSwingOperatorGeometry(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number } = {}): SwingOperatorGeometrySummary {
+export function summariseSwingOperatorGeometry(
+  input: SwingOperatorGeometryInput,
+  limits: { minClearanceMm?: number } = {},
+): SwingOperatorGeometrySummary {
   return sweepSwing(input, limits, null);
 }
 
-function sweepSwing(input: SwingOperatorGeometryInput, limits: { minClearanceMm?: number }, chart: SwingGeometryChart | null): SwingOperatorGeometrySummary {
+function sweepSwing(
+  input: SwingOperatorGeometryInput,
+  limits: { minClearanceMm?: number },
+  chart: SwingGeometryChart | null,
+): SwingOperatorGeometrySummary {
   const layout = layoutOf(input);
   const target = requireFinite('targetOpeningDeg', input.targetOpeningDeg);
-  if (target <= 0 || target > SWEEP_MAX_DEG) throw new RangeError('targetOpeningDeg must be above 0 and at most 180');
+  if (target <= 0 || target > SWEEP_MAX_DEG)
+    throw new RangeError('targetOpeningDeg must be above 0 and at most 180');
   const step = requirePositive('angleStepDeg', input.angleStepDeg ?? SWING_GEOMETRY_ANGLE_STEP_DEG);
   const shortest = input.retractedLengthMm;
   const longest = input.retractedLengthMm + input.strokeMm;
@@ -287,8 +318,10 @@ function sweepSwing(input: SwingOperatorGeometryInput, limits: { minClearanceMm?
     const onGrid = grid !== null && i < angles.length - 1;
     const cos = onGrid ? (grid.cos[i] as number) : Math.cos(toRadians(angle));
     const sin = onGrid ? (grid.sin[i] as number) : Math.sin(toRadians(angle));
-    const frontX = cos * bracket + (onGrid ? (grid.cosNormal[i] as number) : Math.cos(toRadians(angle + 90))) * offset;
-    const frontY = sin * bracket + (onGrid ? (grid.sinNormal[i] as number) : Math.sin(toRadians(angle + 90))) * offset;
+    const frontX =
+      cos * bracket + (onGrid ? (grid.cosNormal[i] as number) : Math.cos(toRadians(angle + 90))) * offset;
+    const frontY =
+      sin * bracket + (onGrid ? (grid.sinNormal[i] as number) : Math.sin(toRadians(angle + 90))) * offset;
     const length = Math.hypot(frontX - rearX, frontY - rearY);
     const lever = Math.abs(rearX * frontY - rearY * frontX) / length;
     const bodyFraction = Math.min(bodyLengthMm, length) / length;
@@ -329,7 +362,8 @@ function sweepSwing(input: SwingOperatorGeometryInput, limits: { minClearanceMm?
   }
 
   const ranges = reachableRanges(layout, shortest, longest);
-  const within = (angle: number) => ranges.some((range) => range.fromDeg <= angle + 1e-9 && angle - 1e-9 <= range.toDeg);
+  const within = (angle: number) =>
+    ranges.some((range) => range.fromDeg <= angle + 1e-9 && angle - 1e-9 <= range.toDeg);
   const deadCentres = anglesWhereSeparationIs(layout, 0, 180).sort((a, b) => a - b);
   const deadCentre = deadCentres[0] ?? null;
   const minClearanceLimit = limits.minClearanceMm ?? OPERATOR_LEAF_MIN_CLEARANCE_MM;
@@ -340,7 +374,10 @@ function sweepSwing(input: SwingOperatorGeometryInput, limits: { minClearanceMm?
     extensionAtClosedMm: roundMm(closed - shortest),
     extensionAtOpenMm: roundMm(open - shortest),
     strokeNeededMm: roundMm(Math.abs(closed - open)),
-    reachableRangesDeg: ranges.map((range) => ({ fromDeg: roundDeg(range.fromDeg), toDeg: roundDeg(range.toDeg) })),
+    reachableRangesDeg: ranges.map((range) => ({
+      fromDeg: roundDeg(range.fromDeg),
+      toDeg: roundDeg(range.toDeg),
+    })),
     closedReachable: within(0),
     targetReachable: within(target),
     swingReachable: ranges.some((range) => range.fromDeg <= 1e-9 && range.toDeg >= target - 1e-9),

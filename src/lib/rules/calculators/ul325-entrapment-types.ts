@@ -13,7 +13,14 @@ import type { GateKind, UsageClass } from './gate-kind';
 export type EntrapmentDeviceType = 'A' | 'B1' | 'B2' | 'C' | 'D' | 'E';
 
 /** Canonical order, used to keep every list in a result sorted the same way. */
-export const ENTRAPMENT_DEVICE_TYPES: readonly EntrapmentDeviceType[] = Object.freeze(['A', 'B1', 'B2', 'C', 'D', 'E']);
+export const ENTRAPMENT_DEVICE_TYPES: readonly EntrapmentDeviceType[] = Object.freeze([
+  'A',
+  'B1',
+  'B2',
+  'C',
+  'D',
+  'E',
+]);
 
 /** The two columns of the UL 325 table. */
 export type Ul325KindGroup = 'slide_lift_pivot' | 'swing_barrier';
@@ -39,9 +46,14 @@ export interface PrimarySecondaryTypes {
 }
 
 /** The whole pre-2016 table, so a ruleset can pass its own edition's version. */
-export type Pre2016EntrapmentTable = Readonly<Record<Ul325KindGroup, Readonly<Record<UsageClass, PrimarySecondaryTypes>>>>;
+export type Pre2016EntrapmentTable = Readonly<
+  Record<Ul325KindGroup, Readonly<Record<UsageClass, PrimarySecondaryTypes>>>
+>;
 
-const row = (primary: readonly EntrapmentDeviceType[], secondary: readonly EntrapmentDeviceType[]): PrimarySecondaryTypes =>
+const row = (
+  primary: readonly EntrapmentDeviceType[],
+  secondary: readonly EntrapmentDeviceType[],
+): PrimarySecondaryTypes =>
   Object.freeze({ primary: Object.freeze(primary), secondary: Object.freeze(secondary) });
 const SLIDE_CLASS_1_2 = row(['A'], ['B1', 'B2', 'D']);
 const SWING_CLASS_1_2 = row(['A', 'C'], ['A', 'B1', 'B2', 'C', 'D']);
@@ -71,10 +83,11 @@ export const UL325_PRE2016_ENTRAPMENT_TABLE: Pre2016EntrapmentTable = Object.fre
  * types for that column without E (which no longer counts). So C (clutch) stays limited to
  * swing gates and barrier arms. From memory of the 2016 table, verify.
  */
-export const UL325_2016_ALLOWED_TYPES: Readonly<Record<Ul325KindGroup, readonly EntrapmentDeviceType[]>> = Object.freeze({
-  slide_lift_pivot: ['A', 'B1', 'B2', 'D'],
-  swing_barrier: ['A', 'B1', 'B2', 'C', 'D'],
-});
+export const UL325_2016_ALLOWED_TYPES: Readonly<Record<Ul325KindGroup, readonly EntrapmentDeviceType[]>> =
+  Object.freeze({
+    slide_lift_pivot: ['A', 'B1', 'B2', 'D'],
+    swing_barrier: ['A', 'B1', 'B2', 'C', 'D'],
+  });
 
 /** External devices that must be monitored every cycle from 2016 on. (UL 325; DASMA TDS 353 as quoted; secondary source) */
 export const UL325_EXTERNAL_DEVICE_TYPES: readonly EntrapmentDeviceType[] = Object.freeze(['B1', 'B2']);

@@ -21,7 +21,8 @@ export function normaliseAddress(raw: string | null | undefined): string | null 
   if (!raw) return null;
   let value = raw.trim();
   // Some proxies add the port: [2001:db8::1]:443, 192.0.2.1:8080.
-  value = /^\[([^\]]+)\](?::\d+)?$/.exec(value)?.[1] ?? /^(\d{1,3}(?:\.\d{1,3}){3}):\d+$/.exec(value)?.[1] ?? value;
+  value =
+    /^\[([^\]]+)\](?::\d+)?$/.exec(value)?.[1] ?? /^(\d{1,3}(?:\.\d{1,3}){3}):\d+$/.exec(value)?.[1] ?? value;
   // An IPv6 zone (fe80::1%eth0) names an interface of this host; the address is what counts.
   value = value.replace(/%[0-9A-Za-z._~-]+$/, '');
   const mapped = /^::ffff:(\d{1,3}\.\d{1,3}\.\d{1,3}\.\d{1,3})$/i.exec(value);
@@ -38,7 +39,9 @@ export function trustedProxyHops(value: string | undefined = process.env.TRUST_P
   const text = (value ?? '').trim();
   if (text === '') return 0;
   if (!/^\d+$/.test(text) || Number(text) > MAX_PROXY_HOPS) {
-    throw new Error(`TRUST_PROXY must be the number of proxies in front of the app (0 to ${MAX_PROXY_HOPS}), not "${value}".`);
+    throw new Error(
+      `TRUST_PROXY must be the number of proxies in front of the app (0 to ${MAX_PROXY_HOPS}), not "${value}".`,
+    );
   }
   return Number(text);
 }

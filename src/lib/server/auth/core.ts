@@ -22,11 +22,18 @@ export function runAuthCore(request: Request, context: SignInContext): Promise<R
  * A CSRF token for a page's sign-in or sign-out form (auth core's double-submit cookie):
  * the cookie, when new, is appended to `responseHeaders`.
  */
-export async function csrfTokenForPage(request: Request, origin: string, responseHeaders: Headers): Promise<string> {
+export async function csrfTokenForPage(
+  request: Request,
+  origin: string,
+  responseHeaders: Headers,
+): Promise<string> {
   const headers = new Headers({ accept: 'application/json' });
   const cookie = request.headers.get('cookie');
   if (cookie) headers.set('cookie', cookie);
-  const response = await runAuthCore(new Request(`${origin}${authBasePath}/csrf`, { headers }), { ip: null, userAgent: null });
+  const response = await runAuthCore(new Request(`${origin}${authBasePath}/csrf`, { headers }), {
+    ip: null,
+    userAgent: null,
+  });
   for (const line of response.headers.getSetCookie()) responseHeaders.append('set-cookie', line);
   const body = (await response.json()) as { csrfToken?: string };
   return body.csrfToken ?? '';

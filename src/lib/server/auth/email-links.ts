@@ -16,7 +16,8 @@ import { hashLinkToken, newLinkToken } from './tokens';
 /** Long enough to switch to the mail app and back; short enough that an old mail is useless. */
 export const signInLinkMinutes = 20;
 
-export type LinkRequestOutcome = { outcome: 'accepted' } | { outcome: 'throttled'; retryAfterSeconds: number };
+export type LinkRequestOutcome =
+  { outcome: 'accepted' } | { outcome: 'throttled'; retryAfterSeconds: number };
 
 /** What one kind of e-mailed one-time link is: who may get it, where it leads, what it says. */
 export interface OneTimeLinkKind {
@@ -37,12 +38,17 @@ export interface OneTimeLinkKind {
  * Throttles, and for a known address stores a hashed one-time token, queues its mail in the
  * outbox and audits it, all in one transaction; the answer is the same for an unknown address.
  */
-export async function mailOneTimeLink(kind: OneTimeLinkKind, email: string, ip: string | null): Promise<LinkRequestOutcome> {
+export async function mailOneTimeLink(
+  kind: OneTimeLinkKind,
+  email: string,
+  ip: string | null,
+): Promise<LinkRequestOutcome> {
   const address = email.trim().toLowerCase();
   const prepared = await db().transaction(async (trx) => {
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`${kind.purpose}:${address}`]);
     const throttle = await checkThrottle(trx, kind.throttleKind, address, ip);
-    if (throttle.throttled) return { kind: 'throttled' as const, retryAfterSeconds: throttle.retryAfterSeconds };
+    if (throttle.throttled)
+      return { kind: 'throttled' as const, retryAfterSeconds: throttle.retryAfterSeconds };
     const person = await trx('users as u')
       .join('organisations as o', 'o.id', 'u.organisation_id')
       .whereRaw('u.email = ?::citext', [address])
@@ -59,7 +65,12 @@ export async function mailOneTimeLink(kind: OneTimeLinkKind, email: string, ip: 
       expires_at: new Date(Date.now() + kind.validMinutes * 60_000),
       requested_ip: ip,
     });
-    const mail = kind.mail(person, person.organisation_name, `${linkOrigin()}${kind.path}?token=${token}`, kind.validMinutes);
+    const mail = kind.mail(
+      person,
+      person.organisation_name,
+      `${linkOrigin()}${kind.path}?token=${token}`,
+      kind.validMinutes,
+    );
     await enqueueMail(trx, {
       organisationId: person.organisation_id,
       kind: kind.mailKind,
@@ -78,7 +89,8 @@ export async function mailOneTimeLink(kind: OneTimeLinkKind, email: string, ip: 
     });
     return { kind: 'queued' as const };
   });
-  if (prepared.kind === 'throttled') return { outcome: 'throttled', retryAfterSeconds: prepared.retryAfterSeconds };
+  if (prepared.kind === 'throttled')
+    return { outcome: 'throttled', retryAfterSeconds: prepared.retryAfterSeconds };
   if (prepared.kind === 'queued') wakeOutboxWorker();
   return { outcome: 'accepted' };
 }

@@ -10,7 +10,10 @@ export interface LinkMail {
 }
 
 function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
+  return text.replace(
+    /[&<>"']/g,
+    (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c,
+  );
 }
 
 function htmlBody(paragraphs: string[], link: string, button: string): string {
@@ -18,7 +21,12 @@ function htmlBody(paragraphs: string[], link: string, button: string): string {
   return `<div style="font-family:sans-serif;font-size:16px;line-height:1.5">${text}<p><a href="${escapeHtml(link)}" style="display:inline-block;padding:12px 20px;background:#1d2c3f;color:#fff;border-radius:8px;text-decoration:none">${escapeHtml(button)}</a></p><p style="color:#3b5370;font-size:14px">${escapeHtml(link)}</p></div>`;
 }
 
-export function signInLinkMail(to: { name: string }, organisationName: string, link: string, validMinutes: number): LinkMail {
+export function signInLinkMail(
+  to: { name: string },
+  organisationName: string,
+  link: string,
+  validMinutes: number,
+): LinkMail {
   const paragraphs = [
     `Hello ${to.name},`,
     `Here is your link to sign in to ${organisationName}'s gate safety reports on Latchwell. It works once and for ${validMinutes} minutes.`,
@@ -31,7 +39,13 @@ export function signInLinkMail(to: { name: string }, organisationName: string, l
   };
 }
 
-export function invitationMail(organisationName: string, invitedBy: string, roleLabel: string, link: string, validDays: number): LinkMail {
+export function invitationMail(
+  organisationName: string,
+  invitedBy: string,
+  roleLabel: string,
+  link: string,
+  validDays: number,
+): LinkMail {
   const paragraphs = [
     `${invitedBy} has invited you to join ${organisationName} on Latchwell as ${roleLabel}.`,
     `Open the link to choose your name and password. It works once and for ${validDays} days.`,
@@ -43,7 +57,12 @@ export function invitationMail(organisationName: string, invitedBy: string, role
   };
 }
 
-export function passwordResetMail(to: { name: string }, organisationName: string, link: string, validMinutes: number): LinkMail {
+export function passwordResetMail(
+  to: { name: string },
+  organisationName: string,
+  link: string,
+  validMinutes: number,
+): LinkMail {
   const paragraphs = [
     `Hello ${to.name},`,
     `Someone asked to reset your password for ${organisationName} on Latchwell. Open the link to choose a new one. It works once and for ${validMinutes} minutes, and signs you out everywhere.`,

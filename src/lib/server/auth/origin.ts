@@ -58,7 +58,12 @@ const refusalPage = `<!doctype html>
 
 /** 403: a readable page for a browser's form post or navigation, problem+json for everyone else. */
 export function crossSiteRefusal(request: Request): Response {
-  const page = request.headers.get('sec-fetch-mode') === 'navigate' || (request.headers.get('accept') ?? '').includes('text/html');
+  const page =
+    request.headers.get('sec-fetch-mode') === 'navigate' ||
+    (request.headers.get('accept') ?? '').includes('text/html');
   if (!page) return problem(403, refusalDetail);
-  return new Response(refusalPage, { status: 403, headers: { 'content-type': 'text/html; charset=utf-8', 'cache-control': 'no-store' } });
+  return new Response(refusalPage, {
+    status: 403,
+    headers: { 'content-type': 'text/html; charset=utf-8', 'cache-control': 'no-store' },
+  });
 }

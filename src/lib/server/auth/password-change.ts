@@ -25,10 +25,17 @@ export class PasswordChangeThrottled extends HttpProblem {
   }
 }
 
-type Outcome = { outcome: 'changed'; sessionVersion: number } | { outcome: 'wrong' } | { outcome: 'throttled'; retryAfterSeconds: number };
+type Outcome =
+  | { outcome: 'changed'; sessionVersion: number }
+  | { outcome: 'wrong' }
+  | { outcome: 'throttled'; retryAfterSeconds: number };
 
 /** Returns the new session_version; throws 422 for a wrong current password, 429 when throttled. */
-export async function changePassword(user: SessionUser, input: PasswordChange, ip: string | null): Promise<number> {
+export async function changePassword(
+  user: SessionUser,
+  input: PasswordChange,
+  ip: string | null,
+): Promise<number> {
   if (!staffRoles.includes(user.role)) throw new HttpProblem(403, 'Only staff sign in with a password.');
   const newHash = await hashPassword(input.newPassword);
   const result = await db().transaction(async (trx): Promise<Outcome> => {
@@ -39,25 +46,45 @@ export async function changePassword(user: SessionUser, input: PasswordChange, i
     const throttle = await checkThrottle(trx, 'password', row.email, ip);
     if (throttle.throttled) return { outcome: 'throttled', retryAfterSeconds: throttle.retryAfterSeconds };
     const matches = await verifyPassword(row.password_hash, input.currentPassword);
-    const audit = { organisationId: user.organisationId, actorUserId: user.id, actorLabel: user.email, entityType: 'user', entityId: user.id, ip };
+    const audit = {
+      organisationId: user.organisationId,
+      actorUserId: user.id,
+      actorLabel: user.email,
+      entityType: 'user',
+      entityId: user.id,
+      ip,
+    };
     if (!matches) {
       await recordAttempt(trx, 'password', row.email, ip, false);
-      await recordAudit(trx, { ...audit, action: 'password.change_refused', detail: { reason: 'wrong_current_password' } });
+      await recordAudit(trx, {
+        ...audit,
+        action: 'password.change_refused',
+        detail: { reason: 'wrong_current_password' },
+      });
       return { outcome: 'wrong' };
     }
     const [updated] = await trx('users')
       .where({ id: user.id })
-      .update({ password_hash: newHash, session_version: trx.raw('session_version + 1'), updated_at: trx.fn.now() })
+      .update({
+        password_hash: newHash,
+        session_version: trx.raw('session_version + 1'),
+        updated_at: trx.fn.now(),
+      })
       .returning('session_version');
     await recordAudit(trx, { ...audit, action: 'password.changed', detail: { otherSessionsEnded: true } });
     return { outcome: 'changed', sessionVersion: updated.session_version };
   });
   if (result.outcome === 'throttled') {
     const wait = String(result.retryAfterSeconds);
-    throw new PasswordChangeThrottled(`Too many wrong passwords. Try again in ${waitInWords(result.retryAfterSeconds)}.`, wait);
+    throw new PasswordChangeThrottled(
+      `Too many wrong passwords. Try again in ${waitInWords(result.retryAfterSeconds)}.`,
+      wait,
+    );
   }
   if (result.outcome === 'wrong') {
-    throw new HttpProblem(422, 'The current password is not right.', { errors: [{ field: 'currentPassword', message: 'is not right' }] });
+    throw new HttpProblem(422, 'The current password is not right.', {
+      errors: [{ field: 'currentPassword', message: 'is not right' }],
+    });
   }
   return result.sessionVersion;
 }

@@ -43,7 +43,11 @@ export function requestPasswordReset(email: string, ip: string | null): Promise<
  * every other open reset link of the person is used up with it. False when the link is unknown,
  * used, expired, or the person is no longer active staff (nothing changes then).
  */
-export async function resetPassword(token: unknown, newPassword: string, ip: string | null): Promise<boolean> {
+export async function resetPassword(
+  token: unknown,
+  newPassword: string,
+  ip: string | null,
+): Promise<boolean> {
   if (!looksLikeLinkToken(token)) return false;
   const newHash = await hashPassword(newPassword);
   return db().transaction(async (trx) => {
@@ -54,12 +58,21 @@ export async function resetPassword(token: unknown, newPassword: string, ip: str
       .update({ used_at: trx.fn.now() })
       .returning(['id', 'user_id']);
     if (!link) return false;
-    const person = await trx('users').where({ id: link.user_id }).first('id', 'email', 'role', 'active', 'organisation_id');
+    const person = await trx('users')
+      .where({ id: link.user_id })
+      .first('id', 'email', 'role', 'active', 'organisation_id');
     if (!person || !person.active || !staffRoles.includes(person.role)) return false;
     await trx('users')
       .where({ id: person.id })
-      .update({ password_hash: newHash, session_version: trx.raw('session_version + 1'), updated_at: trx.fn.now() });
-    await trx('sign_in_links').where({ user_id: person.id, purpose: 'password_reset' }).whereNull('used_at').update({ used_at: trx.fn.now() });
+      .update({
+        password_hash: newHash,
+        session_version: trx.raw('session_version + 1'),
+        updated_at: trx.fn.now(),
+      });
+    await trx('sign_in_links')
+      .where({ user_id: person.id, purpose: 'password_reset' })
+      .whereNull('used_at')
+      .update({ used_at: trx.fn.now() });
     await recordAudit(trx, {
       organisationId: person.organisation_id,
       actorUserId: person.id,

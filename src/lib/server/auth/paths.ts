@@ -71,6 +71,13 @@ export function isProtectedPage(path: string): boolean {
 
 /** A `next` target that stays on this site: a path, never `//host` or `/\host`. */
 export function safeNext(next: string | null | undefined, fallback = '/assessments'): string {
-  if (!next || !next.startsWith('/') || next.startsWith('//') || next.startsWith('/\\') || /[\u0000-\u001f]/.test(next)) return fallback;
+  if (
+    !next ||
+    !next.startsWith('/') ||
+    next.startsWith('//') ||
+    next.startsWith('/\\') ||
+    /[\u0000-\u001f]/.test(next)
+  )
+    return fallback;
   return next;
 }

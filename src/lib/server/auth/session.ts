@@ -43,8 +43,21 @@ export async function decodeSessionCookie(request: Request): Promise<SessionToke
   const secure = sentCookie(cookieHeader, sessionCookieNames.secure);
   if (!secure && !sentCookie(cookieHeader, sessionCookieNames.plain)) return 'none';
   const cookieName = secure ? sessionCookieNames.secure : sessionCookieNames.plain;
-  const token = await getToken({ req: request, secret: authSecret(), secureCookie: secure, cookieName, salt: cookieName, logger: quiet }).catch(() => null);
-  if (!token?.sub || typeof token.sessionVersion !== 'number' || typeof token.sid !== 'string' || typeof token.exp !== 'number') return null;
+  const token = await getToken({
+    req: request,
+    secret: authSecret(),
+    secureCookie: secure,
+    cookieName,
+    salt: cookieName,
+    logger: quiet,
+  }).catch(() => null);
+  if (
+    !token?.sub ||
+    typeof token.sessionVersion !== 'number' ||
+    typeof token.sid !== 'string' ||
+    typeof token.exp !== 'number'
+  )
+    return null;
   return { token, id: token.sid, expiresAt: new Date(token.exp * 1000), cookieName, secure };
 }
 
@@ -60,9 +73,24 @@ export async function readSession(request: Request): Promise<SessionRead> {
  * Writes this session's cookie again with a new session_version (after a password change, which
  * moves the version on to end every other session): same session id, same expiry.
  */
-export async function reissueSessionCookie(session: SessionToken, sessionVersion: number, cookies: AstroCookies): Promise<void> {
+export async function reissueSessionCookie(
+  session: SessionToken,
+  sessionVersion: number,
+  cookies: AstroCookies,
+): Promise<void> {
   const maxAge = Math.max(1, Math.floor((session.expiresAt.getTime() - Date.now()) / 1000));
   const { exp: _exp, iat: _iat, jti: _jti, ...claims } = session.token;
-  const value = await encode({ token: { ...claims, sessionVersion }, secret: authSecret(), salt: session.cookieName, maxAge });
-  cookies.set(session.cookieName, value, { path: '/', httpOnly: true, sameSite: 'lax', secure: session.secure, expires: session.expiresAt });
+  const value = await encode({
+    token: { ...claims, sessionVersion },
+    secret: authSecret(),
+    salt: session.cookieName,
+    maxAge,
+  });
+  cookies.set(session.cookieName, value, {
+    path: '/',
+    httpOnly: true,
+    sameSite: 'lax',
+    secure: session.secure,
+    expires: session.expiresAt,
+  });
 }

@@ -21,7 +21,10 @@ export interface SignedInPerson {
   sessionVersion: number;
 }
 
-export type SignInOutcome = { outcome: 'signed_in'; person: SignedInPerson } | { outcome: 'invalid' } | { outcome: 'throttled'; retryAfterSeconds: number };
+export type SignInOutcome =
+  | { outcome: 'signed_in'; person: SignedInPerson }
+  | { outcome: 'invalid' }
+  | { outcome: 'throttled'; retryAfterSeconds: number };
 
 interface PersonRow {
   id: string;
@@ -34,10 +37,25 @@ interface PersonRow {
   session_version: number;
 }
 
-const personColumns = ['id', 'organisation_id', 'email', 'name', 'role', 'password_hash', 'active', 'session_version'] as const;
+const personColumns = [
+  'id',
+  'organisation_id',
+  'email',
+  'name',
+  'role',
+  'password_hash',
+  'active',
+  'session_version',
+] as const;
 
 function toPerson(row: PersonRow): SignedInPerson {
-  return { id: row.id, email: row.email, name: row.name, role: row.role, sessionVersion: row.session_version };
+  return {
+    id: row.id,
+    email: row.email,
+    name: row.name,
+    role: row.role,
+    sessionVersion: row.session_version,
+  };
 }
 
 let dummyHash: Promise<string> | undefined;
@@ -50,7 +68,13 @@ async function passwordMatches(row: PersonRow | undefined, password: string): Pr
   return false;
 }
 
-async function markSignedIn(trx: Knex.Transaction, row: PersonRow, method: 'password' | 'email_link', ip: string | null, userAgent: string | null) {
+async function markSignedIn(
+  trx: Knex.Transaction,
+  row: PersonRow,
+  method: 'password' | 'email_link',
+  ip: string | null,
+  userAgent: string | null,
+) {
   await trx('users').where({ id: row.id }).update({ last_signed_in_at: trx.fn.now() });
   await recordAudit(trx, {
     organisationId: row.organisation_id,
@@ -76,7 +100,9 @@ export async function signInWithPassword(attempt: PasswordAttempt): Promise<Sign
   return db().transaction(async (trx) => {
     // One attempt per account at a time, so parallel guesses cannot overshoot the limit.
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`sign-in:${email}`]);
-    const row: PersonRow | undefined = await trx('users').whereRaw('email = ?::citext', [email]).first(personColumns);
+    const row: PersonRow | undefined = await trx('users')
+      .whereRaw('email = ?::citext', [email])
+      .first(personColumns);
     const throttle = await checkThrottle(trx, 'password', email, attempt.ip);
     if (throttle.throttled) {
       await recordAudit(trx, {
@@ -97,7 +123,13 @@ export async function signInWithPassword(attempt: PasswordAttempt): Promise<Sign
       await markSignedIn(trx, row, 'password', attempt.ip, attempt.userAgent);
       return { outcome: 'signed_in', person: toPerson(row) };
     }
-    const reason = !row ? 'unknown_account' : !matches ? 'wrong_password' : !row.active ? 'deactivated' : 'not_staff';
+    const reason = !row
+      ? 'unknown_account'
+      : !matches
+        ? 'wrong_password'
+        : !row.active
+          ? 'deactivated'
+          : 'not_staff';
     await recordAudit(trx, {
       organisationId: row?.organisation_id ?? null,
       actorLabel: email,
@@ -115,7 +147,11 @@ export async function signInWithPassword(attempt: PasswordAttempt): Promise<Sign
  * Redeems a one-time sign-in link: the token is used up in the same statement that checks it,
  * so two clicks (or a replay) can never both succeed.
  */
-export async function signInWithLink(token: unknown, ip: string | null, userAgent: string | null): Promise<SignInOutcome> {
+export async function signInWithLink(
+  token: unknown,
+  ip: string | null,
+  userAgent: string | null,
+): Promise<SignInOutcome> {
   if (!looksLikeLinkToken(token)) return { outcome: 'invalid' };
   return db().transaction(async (trx) => {
     const [link] = await trx('sign_in_links')
@@ -124,7 +160,9 @@ export async function signInWithLink(token: unknown, ip: string | null, userAgen
       .andWhere('expires_at', '>', trx.fn.now())
       .update({ used_at: trx.fn.now() })
       .returning(['id', 'user_id']);
-    const row: PersonRow | undefined = link ? await trx('users').where({ id: link.user_id }).first(personColumns) : undefined;
+    const row: PersonRow | undefined = link
+      ? await trx('users').where({ id: link.user_id }).first(personColumns)
+      : undefined;
     const allowed = row !== undefined && row.active && row.role === 'homeowner';
     await recordAttempt(trx, 'link', row?.email ?? null, ip, allowed);
     if (allowed) {
@@ -138,7 +176,11 @@ export async function signInWithLink(token: unknown, ip: string | null, userAgen
       entityType: row ? 'user' : null,
       entityId: row?.id ?? null,
       ip,
-      detail: { method: 'email_link', reason: row ? 'deactivated' : 'link_used_or_expired', ...(row ? { email: row.email } : {}) },
+      detail: {
+        method: 'email_link',
+        reason: row ? 'deactivated' : 'link_used_or_expired',
+        ...(row ? { email: row.email } : {}),
+      },
     });
     return { outcome: 'invalid' };
   });

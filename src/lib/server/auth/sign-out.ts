@@ -15,12 +15,19 @@ export interface EndedSession {
   expiresAt: Date;
 }
 
-export async function recordSignOut(userId: string, ip: string | null, session: EndedSession | null): Promise<void> {
+export async function recordSignOut(
+  userId: string,
+  ip: string | null,
+  session: EndedSession | null,
+): Promise<void> {
   await db().transaction(async (trx) => {
     const user = await trx('users').where({ id: userId }).first('id', 'organisation_id', 'email');
     if (!user) return;
     if (session) {
-      await trx('revoked_sessions').insert({ id: session.id, user_id: user.id, expires_at: session.expiresAt }).onConflict('id').ignore();
+      await trx('revoked_sessions')
+        .insert({ id: session.id, user_id: user.id, expires_at: session.expiresAt })
+        .onConflict('id')
+        .ignore();
       // Revoked ids are only needed until their token would have expired anyway.
       await trx('revoked_sessions').where('expires_at', '<', trx.fn.now()).del();
     }

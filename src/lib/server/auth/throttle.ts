@@ -31,14 +31,25 @@ export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount
  * Public report checks (no account): generous for an office checking a batch of reports, tight
  * enough that nobody can keep the server hashing 30 MB uploads. Common practice, no source.
  */
-export const verifyLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 0 /* no account: never checked */, perAddress: 60 };
+export const verifyLimits: ThrottleLimits = {
+  windowMinutes: 15,
+  perAccount: 0 /* no account: never checked */,
+  perAddress: 60,
+};
 
-const limitsOf = (kind: AttemptKind): ThrottleLimits => (kind === 'password' ? passwordLimits : kind === 'verify' ? verifyLimits : linkRequestLimits);
+const limitsOf = (kind: AttemptKind): ThrottleLimits =>
+  kind === 'password' ? passwordLimits : kind === 'verify' ? verifyLimits : linkRequestLimits;
 
-export type ThrottleVerdict = { throttled: false } | { throttled: true; scope: 'account' | 'address'; retryAfterSeconds: number };
+export type ThrottleVerdict =
+  { throttled: false } | { throttled: true; scope: 'account' | 'address'; retryAfterSeconds: number };
 
 /** When the Nth most recent counted event leaves the window, or null when fewer than N. */
-async function freedAt(knex: Knex, query: Knex.QueryBuilder, limit: number, windowMinutes: number): Promise<Date | null> {
+async function freedAt(
+  knex: Knex,
+  query: Knex.QueryBuilder,
+  limit: number,
+  windowMinutes: number,
+): Promise<Date | null> {
   const row = await query
     .clone()
     .where('created_at', '>', knex.raw(`now() - make_interval(mins => ?)`, [windowMinutes]))
@@ -51,10 +62,19 @@ async function freedAt(knex: Knex, query: Knex.QueryBuilder, limit: number, wind
 
 function verdict(scope: 'account' | 'address', until: Date | null): ThrottleVerdict | null {
   if (!until) return null;
-  return { throttled: true, scope, retryAfterSeconds: Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000)) };
+  return {
+    throttled: true,
+    scope,
+    retryAfterSeconds: Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000)),
+  };
 }
 
-export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null): Promise<ThrottleVerdict> {
+export async function checkThrottle(
+  knex: Knex,
+  kind: AttemptKind,
+  email: string | null,
+  ip: string | null,
+): Promise<ThrottleVerdict> {
   const limits = limitsOf(kind);
   if (email && limits.perAccount > 0) {
     const account = knex('sign_in_attempts').where({ kind, email });
@@ -63,8 +83,12 @@ export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string
       // never the owner signing in from elsewhere. A success resets that pair's count.
       const sameAddress = (q: Knex.QueryBuilder) => (ip ? q.where('ip', ip) : q.whereNull('ip'));
       sameAddress(account);
-      const lastSuccess = sameAddress(knex('sign_in_attempts').where({ kind: 'password', email, succeeded: true })).max('created_at');
-      account.where('succeeded', false).andWhere('created_at', '>', knex.raw(`coalesce((?), '-infinity')`, [lastSuccess]));
+      const lastSuccess = sameAddress(
+        knex('sign_in_attempts').where({ kind: 'password', email, succeeded: true }),
+      ).max('created_at');
+      account
+        .where('succeeded', false)
+        .andWhere('created_at', '>', knex.raw(`coalesce((?), '-infinity')`, [lastSuccess]));
     }
     const hit = verdict('account', await freedAt(knex, account, limits.perAccount, limits.windowMinutes));
     if (hit) return hit;
@@ -78,7 +102,13 @@ export async function checkThrottle(knex: Knex, kind: AttemptKind, email: string
   return { throttled: false };
 }
 
-export async function recordAttempt(knex: Knex, kind: AttemptKind, email: string | null, ip: string | null, succeeded: boolean): Promise<void> {
+export async function recordAttempt(
+  knex: Knex,
+  kind: AttemptKind,
+  email: string | null,
+  ip: string | null,
+  succeeded: boolean,
+): Promise<void> {
   await knex('sign_in_attempts').insert({ kind, email, ip, succeeded });
 }
 
@@ -94,7 +124,11 @@ export async function admitFromAddress(knex: Knex, kind: AttemptKind, ip: string
     if (verdict.throttled) return verdict;
     await trx('sign_in_attempts')
       .where({ kind, ip })
-      .andWhere('created_at', '<', trx.raw(`now() - make_interval(mins => ?)`, [limitsOf(kind).windowMinutes]))
+      .andWhere(
+        'created_at',
+        '<',
+        trx.raw(`now() - make_interval(mins => ?)`, [limitsOf(kind).windowMinutes]),
+      )
       .del();
     await recordAttempt(trx, kind, null, ip, true);
     return verdict;

@@ -74,7 +74,11 @@ export async function consumeBody(
 }
 
 /** The whole body as bytes, at most `limit` of them. */
-export async function readBodyBytes(request: Request, limit: number, tooLarge?: TooLarge): Promise<Buffer<ArrayBuffer>> {
+export async function readBodyBytes(
+  request: Request,
+  limit: number,
+  tooLarge?: TooLarge,
+): Promise<Buffer<ArrayBuffer>> {
   const chunks: Uint8Array[] = [];
   const size = await consumeBody(request, limit, (chunk) => chunks.push(chunk), tooLarge);
   return Buffer.concat(chunks, size);
@@ -100,7 +104,9 @@ export async function readFormBody(request: Request, limit: number, tooLarge?: T
   try {
     return await new Response(bytes, { headers: { 'content-type': type } }).formData();
   } catch {
-    throw new HttpProblem(400, 'The form could not be read.', { errors: [{ field: '', message: 'Malformed form body' }] });
+    throw new HttpProblem(400, 'The form could not be read.', {
+      errors: [{ field: '', message: 'Malformed form body' }],
+    });
   }
 }
 
@@ -113,7 +119,10 @@ export async function readPageForm(request: Request, limit = maxPageFormBytes): 
     return await readFormBody(request, limit);
   } catch (error) {
     if (!(error instanceof HttpProblem)) throw error;
-    return new Response(error.message, { status: error.status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+    return new Response(error.message, {
+      status: error.status,
+      headers: { 'content-type': 'text/plain; charset=utf-8' },
+    });
   }
 }
 
@@ -133,5 +142,8 @@ export async function boundedRequest(
   // The copy's body is complete and of known size: whatever framing the original used is over.
   headers.delete('transfer-encoding');
   headers.delete('content-length');
-  return { request: new Request(url, { method: request.method, headers, ...(hasBody ? { body: bytes } : {}) }), bytes };
+  return {
+    request: new Request(url, { method: request.method, headers, ...(hasBody ? { body: bytes } : {}) }),
+    bytes,
+  };
 }

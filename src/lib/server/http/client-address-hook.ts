@@ -30,7 +30,11 @@ export function installClientAddressHook(hops = trustedProxyHops()): void {
   holder[installed] = true;
   diagnosticsChannel.subscribe('http.server.request.start', (message) => {
     const { request, socket } = message as RequestStart;
-    const address = trustedClientAddress(socket?.remoteAddress ?? request.socket?.remoteAddress, request.headers['x-forwarded-for'], hops);
+    const address = trustedClientAddress(
+      socket?.remoteAddress ?? request.socket?.remoteAddress,
+      request.headers['x-forwarded-for'],
+      hops,
+    );
     if (address) request.headers['x-forwarded-for'] = address;
     else delete request.headers['x-forwarded-for'];
   });

@@ -11,7 +11,10 @@ export function requireUser(locals: App.Locals): { user: SessionUser; organisati
   return { user: locals.user, organisation: locals.organisation };
 }
 
-export function requireRole(locals: App.Locals, ...roles: Role[]): { user: SessionUser; organisation: SessionOrganisation } {
+export function requireRole(
+  locals: App.Locals,
+  ...roles: Role[]
+): { user: SessionUser; organisation: SessionOrganisation } {
   const session = requireUser(locals);
   if (!roles.includes(session.user.role)) {
     throw new HttpProblem(403, `This needs one of these roles: ${roles.join(', ')}.`);

@@ -34,14 +34,19 @@ class NotStored extends Error {
   }
 }
 
-const headerProblem = (status: number, detail: string, message: string) => new HttpProblem(status, detail, { errors: [{ field: idempotencyHeader, message }] });
+const headerProblem = (status: number, detail: string, message: string) =>
+  new HttpProblem(status, detail, { errors: [{ field: idempotencyHeader, message }] });
 
 /** The request's Idempotency-Key, or null when none was sent; 400 naming the header when malformed. */
 export function idempotencyKeyOf(request: Request): string | null {
   const key = request.headers.get(idempotencyHeader);
   if (key === null) return null;
   if (!keyPattern.test(key)) {
-    throw headerProblem(400, `The ${idempotencyHeader} header is not usable.`, 'must be 1 to 255 visible ASCII characters (a UUID is a good choice)');
+    throw headerProblem(
+      400,
+      `The ${idempotencyHeader} header is not usable.`,
+      'must be 1 to 255 visible ASCII characters (a UUID is a good choice)',
+    );
   }
   return key;
 }
@@ -54,7 +59,10 @@ interface StoredRow {
 }
 
 function replay(row: StoredRow): Response {
-  return new Response(row.response_body, { status: row.response_status, headers: { ...row.response_headers, [replayedHeader]: 'true' } });
+  return new Response(row.response_body, {
+    status: row.response_status,
+    headers: { ...row.response_headers, [replayedHeader]: 'true' },
+  });
 }
 
 /**
@@ -76,12 +84,19 @@ export async function withIdempotency(
     .update(`${request.method}\n${url.pathname}${url.search}\n${request.headers.get('content-type') ?? ''}\n`)
     .update(body)
     .digest('hex');
-  const copy = new Request(request.url, { method: request.method, headers: request.headers, body: body.byteLength ? new Uint8Array(body) : undefined });
+  const copy = new Request(request.url, {
+    method: request.method,
+    headers: request.headers,
+    body: body.byteLength ? new Uint8Array(body) : undefined,
+  });
   const scope = { organisation_id: user.organisationId, user_id: user.id, key };
   try {
     return await db().transaction(async (trx) => {
       // An expired key is free again; the user's other expired keys go with it.
-      await trx('idempotency_keys').where({ organisation_id: user.organisationId, user_id: user.id }).andWhere('expires_at', '<=', trx.fn.now()).del();
+      await trx('idempotency_keys')
+        .where({ organisation_id: user.organisationId, user_id: user.id })
+        .andWhere('expires_at', '<=', trx.fn.now())
+        .del();
       const claimed = await trx('idempotency_keys')
         .insert({
           ...scope,
@@ -99,7 +114,11 @@ export async function withIdempotency(
         const row: StoredRow | undefined = await trx('idempotency_keys')
           .where(scope)
           .first('request_sha256', 'response_status', 'response_headers', 'response_body');
-        if (!row) throw new HttpProblem(409, `A request with this ${idempotencyHeader} is still being handled; try again shortly.`);
+        if (!row)
+          throw new HttpProblem(
+            409,
+            `A request with this ${idempotencyHeader} is still being handled; try again shortly.`,
+          );
         if (row.request_sha256 !== fingerprint) {
           throw headerProblem(
             422,
@@ -119,7 +138,11 @@ export async function withIdempotency(
       }
       await trx('idempotency_keys')
         .where(scope)
-        .update({ response_status: response.status, response_headers: JSON.stringify(headers), response_body: text });
+        .update({
+          response_status: response.status,
+          response_headers: JSON.stringify(headers),
+          response_body: text,
+        });
       return new Response(text, { status: response.status, headers: response.headers });
     });
   } catch (error) {
@@ -134,14 +157,26 @@ export async function withIdempotency(
  * that id: the header stands in for a missing `clientRef`, and one that names another file is
  * refused. (Their bodies cannot be fingerprinted: a multipart boundary changes on every retry.)
  */
-export function uploadClientRef(request: Request, bodyRef: string | undefined, pattern: RegExp): string | null {
+export function uploadClientRef(
+  request: Request,
+  bodyRef: string | undefined,
+  pattern: RegExp,
+): string | null {
   const key = idempotencyKeyOf(request);
   const ref = bodyRef?.toLowerCase() ?? null;
   if (key === null) return ref;
   if (!pattern.test(key))
-    throw headerProblem(400, `The ${idempotencyHeader} of an upload is the device's id for the file.`, "must be a UUID (the upload's clientRef)");
+    throw headerProblem(
+      400,
+      `The ${idempotencyHeader} of an upload is the device's id for the file.`,
+      "must be a UUID (the upload's clientRef)",
+    );
   if (ref !== null && ref !== key.toLowerCase()) {
-    throw headerProblem(422, `The ${idempotencyHeader} and clientRef name different files.`, 'must equal clientRef when both are sent');
+    throw headerProblem(
+      422,
+      `The ${idempotencyHeader} and clientRef name different files.`,
+      'must equal clientRef when both are sent',
+    );
   }
   return key.toLowerCase();
 }

@@ -9,10 +9,16 @@ import { HttpProblem } from './problem';
 /** Room for the form's other fields and boundaries around one file. */
 const FORM_OVERHEAD_BYTES = 64 * 1024;
 
-export async function readMultipart(request: Request, fileLimitBytes: number, tooLarge: TooLarge): Promise<FormData> {
+export async function readMultipart(
+  request: Request,
+  fileLimitBytes: number,
+  tooLarge: TooLarge,
+): Promise<FormData> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^multipart\/form-data\b/i.test(type)) {
-    throw new HttpProblem(415, 'Send the file as multipart/form-data.', { errors: [{ field: '', message: 'Content-Type must be multipart/form-data' }] });
+    throw new HttpProblem(415, 'Send the file as multipart/form-data.', {
+      errors: [{ field: '', message: 'Content-Type must be multipart/form-data' }],
+    });
   }
   return readFormBody(request, fileLimitBytes + FORM_OVERHEAD_BYTES, tooLarge);
 }

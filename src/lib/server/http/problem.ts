@@ -36,7 +36,12 @@ const titles: Record<number, string> = {
   503: 'Service unavailable',
 };
 
-export function problem(status: number, detail?: string, extra: Partial<ProblemBody> & Record<string, unknown> = {}, headers: HeadersInit = {}): Response {
+export function problem(
+  status: number,
+  detail?: string,
+  extra: Partial<ProblemBody> & Record<string, unknown> = {},
+  headers: HeadersInit = {},
+): Response {
   const body: ProblemBody = {
     type: `https://latchwell.invalid/problems/${status}`,
     title: titles[status] ?? 'Error',
@@ -69,7 +74,10 @@ export function zodFieldErrors(error: z.ZodError): FieldError[] {
   return error.issues.flatMap((issue) => {
     const field = issue.path.map(String).join('.');
     if (issue.code === 'unrecognized_keys') {
-      return issue.keys.map((key) => ({ field: [field, key].filter(Boolean).join('.'), message: 'is not a field of this request' }));
+      return issue.keys.map((key) => ({
+        field: [field, key].filter(Boolean).join('.'),
+        message: 'is not a field of this request',
+      }));
     }
     return [{ field, message: issue.message }];
   });
@@ -83,17 +91,25 @@ export const maxJsonBodyBytes = 256 * 1024;
  * Refuses a wrong content type (415), an oversize body (413), malformed JSON (400) and
  * invalid fields (422, each field named).
  */
-export async function parseBody<S extends z.ZodType>(schema: S, request: Request, limit = maxJsonBodyBytes): Promise<z.infer<S>> {
+export async function parseBody<S extends z.ZodType>(
+  schema: S,
+  request: Request,
+  limit = maxJsonBodyBytes,
+): Promise<z.infer<S>> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^application\/(merge-patch\+)?json\b/i.test(type)) {
-    throw new HttpProblem(415, 'Send the body as application/json.', { errors: [{ field: '', message: 'Content-Type must be application/json' }] });
+    throw new HttpProblem(415, 'Send the body as application/json.', {
+      errors: [{ field: '', message: 'Content-Type must be application/json' }],
+    });
   }
   const text = await readBodyText(request, limit);
   let json: unknown;
   try {
     json = JSON.parse(text);
   } catch {
-    throw new HttpProblem(400, 'The body is not valid JSON.', { errors: [{ field: '', message: 'Malformed JSON' }] });
+    throw new HttpProblem(400, 'The body is not valid JSON.', {
+      errors: [{ field: '', message: 'Malformed JSON' }],
+    });
   }
   return parseValue(schema, json);
 }
@@ -101,7 +117,9 @@ export async function parseBody<S extends z.ZodType>(schema: S, request: Request
 export function parseValue<S extends z.ZodType>(schema: S, value: unknown): z.infer<S> {
   const result = schema.safeParse(value);
   if (!result.success) {
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: zodFieldErrors(result.error) });
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+      errors: zodFieldErrors(result.error),
+    });
   }
   return result.data;
 }
@@ -111,7 +129,10 @@ export function parseQuery<S extends z.ZodType>(schema: S, url: URL): z.infer<S>
   const raw: Record<string, string> = {};
   for (const [key, value] of url.searchParams) raw[key] ??= value;
   const result = schema.safeParse(raw);
-  if (!result.success) throw new HttpProblem(400, 'Some query parameters are invalid.', { errors: zodFieldErrors(result.error) });
+  if (!result.success)
+    throw new HttpProblem(400, 'Some query parameters are invalid.', {
+      errors: zodFieldErrors(result.error),
+    });
   return result.data;
 }
 
@@ -122,7 +143,8 @@ export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
       return await fn(context);
     } catch (error) {
       if (error instanceof HttpProblem) return error.toResponse();
-      if (isDatabaseUnavailable(error)) return problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' });
+      if (isDatabaseUnavailable(error))
+        return problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' });
       console.error('[api] unhandled error', error);
       return problem(500, 'Something went wrong on our side.');
     }
@@ -133,6 +155,22 @@ export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
 export function isDatabaseUnavailable(error: unknown): boolean {
   const e = error as { code?: string; message?: string; name?: string } | null;
   if (!e) return false;
-  if (e.code && ['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', '57P01', '57P02', '57P03', '08000', '08003', '08006'].includes(e.code)) return true;
-  return e.name === 'KnexTimeoutError' || /Connection terminated|ECONNREFUSED|connect ECONN/i.test(e.message ?? '');
+  if (
+    e.code &&
+    [
+      'ECONNREFUSED',
+      'ECONNRESET',
+      'ETIMEDOUT',
+      '57P01',
+      '57P02',
+      '57P03',
+      '08000',
+      '08003',
+      '08006',
+    ].includes(e.code)
+  )
+    return true;
+  return (
+    e.name === 'KnexTimeoutError' || /Connection terminated|ECONNREFUSED|connect ECONN/i.test(e.message ?? '')
+  );
 }

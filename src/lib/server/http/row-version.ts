@@ -27,9 +27,13 @@ export function ifMatchVersion(request: Request): number | undefined {
 export function requireIfMatch(request: Request): number {
   const version = ifMatchVersion(request);
   if (version === undefined) {
-    throw new HttpProblem(428, 'Send If-Match with the ETag you read (the row version), so a stale copy cannot overwrite a newer one.', {
-      errors: [{ field: 'If-Match', message: 'is required' }],
-    });
+    throw new HttpProblem(
+      428,
+      'Send If-Match with the ETag you read (the row version), so a stale copy cannot overwrite a newer one.',
+      {
+        errors: [{ field: 'If-Match', message: 'is required' }],
+      },
+    );
   }
   return version;
 }

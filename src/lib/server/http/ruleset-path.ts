@@ -10,7 +10,10 @@ export function familyFromPath(value: string | undefined): string {
   return parsed.data;
 }
 
-export function versionFromPath(params: Record<string, string | undefined>): { family: string; version: string } {
+export function versionFromPath(params: Record<string, string | undefined>): {
+  family: string;
+  version: string;
+} {
   const family = familyFromPath(params.family);
   const parsed = VersionLabelSchema.safeParse(params.version);
   if (!parsed.success) throw notFound();

@@ -88,7 +88,13 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
   const rawPath = (id: string) => path.join(options.dir, `${id}.eml`);
   const metaPath = (id: string) => path.join(options.dir, `${id}.json`);
 
-  async function readParsed(id: string): Promise<{ raw: Buffer; parsed: ParsedMail; meta: CaughtMessageSummary & { envelope: CaughtMessage['envelope'] } }> {
+  async function readParsed(
+    id: string,
+  ): Promise<{
+    raw: Buffer;
+    parsed: ParsedMail;
+    meta: CaughtMessageSummary & { envelope: CaughtMessage['envelope'] };
+  }> {
     const raw = await fs.readFile(rawPath(id));
     const meta = JSON.parse(await fs.readFile(metaPath(id), 'utf8'));
     return { raw, parsed: await simpleParser(raw), meta };
@@ -96,9 +102,21 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
 
   async function list(): Promise<CaughtMessageSummary[]> {
     const names = (await fs.readdir(options.dir)).filter((n) => n.endsWith('.json'));
-    const items = await Promise.all(names.map(async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage));
+    const items = await Promise.all(
+      names.map(
+        async (n) => JSON.parse(await fs.readFile(path.join(options.dir, n), 'utf8')) as CaughtMessage,
+      ),
+    );
     return items
-      .map(({ id, receivedAt, from, to, subject, attachments, outboxId }) => ({ id, receivedAt, from, to, subject, attachments, outboxId: outboxId ?? null }))
+      .map(({ id, receivedAt, from, to, subject, attachments, outboxId }) => ({
+        id,
+        receivedAt,
+        from,
+        to,
+        subject,
+        attachments,
+        outboxId: outboxId ?? null,
+      }))
       .sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));
   }
 
@@ -125,7 +143,10 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
             to: session.envelope.rcptTo.map((r) => r.address),
           };
           await fs.writeFile(rawPath(id), raw);
-          await fs.writeFile(metaPath(id), JSON.stringify({ ...summarise(id, receivedAt, parsed), envelope }));
+          await fs.writeFile(
+            metaPath(id),
+            JSON.stringify({ ...summarise(id, receivedAt, parsed), envelope }),
+          );
           callback();
         } catch (error) {
           callback(error as Error);
@@ -145,7 +166,8 @@ export async function startMailCatcher(options: CatcherOptions): Promise<Running
       if (req.method === 'GET' && url.pathname === '/health') return send(200, { ok: true });
       if (parts[0] !== 'messages') return send(404, { error: 'not found' });
       if (req.method === 'DELETE' && parts.length === 1) {
-        for (const n of await fs.readdir(options.dir)) await fs.rm(path.join(options.dir, n), { force: true });
+        for (const n of await fs.readdir(options.dir))
+          await fs.rm(path.join(options.dir, n), { force: true });
         return send(200, { ok: true });
       }
       if (req.method !== 'GET') return send(405, { error: 'method not allowed' });

@@ -24,7 +24,10 @@ function catcherUrl(pathname: string) {
 const lower = (address: string) => address.trim().toLowerCase();
 
 /** The ids (of `messages`) the organisation may read. */
-async function visibleIds(organisationId: string, messages: Pick<CaughtMessageSummary, 'id' | 'to' | 'outboxId'>[]): Promise<Set<string>> {
+async function visibleIds(
+  organisationId: string,
+  messages: Pick<CaughtMessageSummary, 'id' | 'to' | 'outboxId'>[],
+): Promise<Set<string>> {
   const candidates = messages.filter((m) => m.outboxId && uuidPattern.test(m.outboxId) && m.to.length > 0);
   if (!candidates.length) return new Set();
   const rows: { id: string; to_addresses: string[]; cc_addresses: string[] }[] = await db()('outbox_messages')
@@ -54,7 +57,10 @@ async function visibleIds(organisationId: string, messages: Pick<CaughtMessageSu
 export async function listCaughtMessages(organisationId: string): Promise<CaughtMessageSummary[] | null> {
   const res = await fetch(catcherUrl('/messages')).catch(() => null);
   if (!res?.ok) return null;
-  const all = ((await res.json()) as CaughtMessageSummary[]).map((m) => ({ ...m, outboxId: m.outboxId ?? null }));
+  const all = ((await res.json()) as CaughtMessageSummary[]).map((m) => ({
+    ...m,
+    outboxId: m.outboxId ?? null,
+  }));
   const visible = await visibleIds(organisationId, all);
   return all.filter((m) => visible.has(m.id));
 }

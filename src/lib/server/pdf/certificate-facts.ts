@@ -45,7 +45,9 @@ export function fingerprintInWords(sha256: string): string {
 export function signerCertificateOfPdf(pdf: Buffer): CertificateFacts | null {
   const at = pdf.lastIndexOf('/ByteRange');
   if (at < 0) return null;
-  const range = /\/ByteRange\s*\[\s*(\d+)\s+(\d+)\s+(\d+)\s+(\d+)\s*\]/.exec(pdf.subarray(at, at + 120).toString('latin1'));
+  const range = /\/ByteRange\s*\[\s*(\d+)\s+(\d+)\s+(\d+)\s+(\d+)\s*\]/.exec(
+    pdf.subarray(at, at + 120).toString('latin1'),
+  );
   if (!range) return null;
   const [start, length, next] = [Number(range[1]), Number(range[2]), Number(range[3])];
   const hex = pdf
@@ -55,15 +57,21 @@ export function signerCertificateOfPdf(pdf: Buffer): CertificateFacts | null {
   try {
     // The placeholder is zero-padded after the DER: parse the value, not the padding.
     const der = forge.util.hexToBytes(hex);
-    const message = forge.pkcs7.messageFromAsn1(forge.asn1.fromDer(der, { parseAllBytes: false } as unknown as boolean)) as forge.pkcs7.PkcsSignedData & {
+    const message = forge.pkcs7.messageFromAsn1(
+      forge.asn1.fromDer(der, { parseAllBytes: false } as unknown as boolean),
+    ) as forge.pkcs7.PkcsSignedData & {
       rawCapture?: { signerInfos?: forge.asn1.Asn1[] };
     };
     const certificates = message.certificates;
     // SignerInfo ::= SEQUENCE { version, issuerAndSerialNumber SEQUENCE { issuer, serialNumber }, … }
     const signerInfo = message.rawCapture?.signerInfos?.[0];
-    const serialNode = (signerInfo?.value as forge.asn1.Asn1[] | undefined)?.[1]?.value as forge.asn1.Asn1[] | undefined;
-    const serial = serialNode?.[1] ? forge.util.bytesToHex(serialNode[1].value as string).toLowerCase() : null;
-    const signer = certificates.find((c) => serial !== null && c.serialNumber.toLowerCase() === serial) ?? certificates[0];
+    const serialNode = (signerInfo?.value as forge.asn1.Asn1[] | undefined)?.[1]?.value as
+      forge.asn1.Asn1[] | undefined;
+    const serial = serialNode?.[1]
+      ? forge.util.bytesToHex(serialNode[1].value as string).toLowerCase()
+      : null;
+    const signer =
+      certificates.find((c) => serial !== null && c.serialNumber.toLowerCase() === serial) ?? certificates[0];
     return signer ? factsOf(signer) : null;
   } catch {
     return null;

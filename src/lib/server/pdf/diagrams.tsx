@@ -22,7 +22,13 @@ function leafPoint(distanceMm: number, angleDeg: number): PointMm {
   return { x: distanceMm * Math.cos(a), y: distanceMm * Math.sin(a) };
 }
 
-export function SwingGeometryDiagram({ geometry, formatLength }: { geometry: SwingGeometryMeasurements | null; formatLength: (mm: number) => string }) {
+export function SwingGeometryDiagram({
+  geometry,
+  formatLength,
+}: {
+  geometry: SwingGeometryMeasurements | null;
+  formatLength: (mm: number) => string;
+}) {
   if (!geometry) return null;
   const { aMm, bMm, bracketFromHingeMm, retractedLengthMm, strokeMm, targetOpeningDeg } = geometry;
   const leafMm = Math.max(geometry.leafWidthMm ?? bracketFromHingeMm * 1.6, bracketFromHingeMm * 1.1);
@@ -47,7 +53,9 @@ export function SwingGeometryDiagram({ geometry, formatLength }: { geometry: Swi
     const front = leafPoint(bracketFromHingeMm, deg);
     return Math.hypot(front.x - rear.x, front.y - rear.y);
   });
-  const reachable = lengths.map((len) => len >= retractedLengthMm - 0.5 && len <= retractedLengthMm + strokeMm + 0.5);
+  const reachable = lengths.map(
+    (len) => len >= retractedLengthMm - 0.5 && len <= retractedLengthMm + strokeMm + 0.5,
+  );
   return (
     <View wrap={false} style={{ flexDirection: 'row', marginTop: 6 }}>
       <Svg width={DIAGRAM_W} height={DIAGRAM_H} viewBox={`0 0 ${DIAGRAM_W} ${DIAGRAM_H}`}>
@@ -57,7 +65,14 @@ export function SwingGeometryDiagram({ geometry, formatLength }: { geometry: Swi
           const front = toSvg(leafPoint(bracketFromHingeMm, deg));
           return (
             <G key={deg}>
-              <Line x1={hinge.x} y1={hinge.y} x2={end.x} y2={end.y} stroke={shades[i]} strokeWidth={i === 0 ? 4 : 2.5} />
+              <Line
+                x1={hinge.x}
+                y1={hinge.y}
+                x2={end.x}
+                y2={end.y}
+                stroke={shades[i]}
+                strokeWidth={i === 0 ? 4 : 2.5}
+              />
               <Line
                 x1={rearSvg.x}
                 y1={rearSvg.y}
@@ -73,23 +88,29 @@ export function SwingGeometryDiagram({ geometry, formatLength }: { geometry: Swi
         })}
         <Circle cx={hinge.x} cy={hinge.y} r={3.5} fill={colours.iron900} />
         <Rect x={rearSvg.x - 3} y={rearSvg.y - 3} width={6} height={6} fill={colours.brass700} />
-        <Path d={`M ${hinge.x - 10} ${hinge.y + 6} L ${hinge.x + 10} ${hinge.y + 6}`} stroke={colours.iron600} strokeWidth={1} />
+        <Path
+          d={`M ${hinge.x - 10} ${hinge.y + 6} L ${hinge.x + 10} ${hinge.y + 6}`}
+          stroke={colours.iron600}
+          strokeWidth={1}
+        />
       </Svg>
       <View style={{ flex: 1, paddingLeft: 12 }}>
         <Text style={styles.h3}>Operator geometry (top view)</Text>
         <Text style={styles.small}>
-          Hinge axis (dot), operator rear pivot (square), leaf at closed (dark), half open (light) and {Math.round(targetOpeningDeg)}° open (brass). Dashed: the
-          ram; red where it cannot reach.
+          Hinge axis (dot), operator rear pivot (square), leaf at closed (dark), half open (light) and{' '}
+          {Math.round(targetOpeningDeg)}° open (brass). Dashed: the ram; red where it cannot reach.
         </Text>
         <Text style={[styles.small, { marginTop: 4 }]}>
-          A {formatLength(aMm)} · B {formatLength(bMm)} · bracket {formatLength(bracketFromHingeMm)} from the hinge
+          A {formatLength(aMm)} · B {formatLength(bMm)} · bracket {formatLength(bracketFromHingeMm)} from the
+          hinge
         </Text>
         <Text style={styles.small}>
           Ram {formatLength(retractedLengthMm)} retracted, stroke {formatLength(strokeMm)}
         </Text>
         {angles.map((deg, i) => (
           <Text key={deg} style={styles.small}>
-            At {Math.round(deg)}°: pivot to pivot {formatLength(lengths[i])}, {reachable[i] ? 'within the stroke' : 'outside the stroke'}
+            At {Math.round(deg)}°: pivot to pivot {formatLength(lengths[i])},{' '}
+            {reachable[i] ? 'within the stroke' : 'outside the stroke'}
           </Text>
         ))}
       </View>
@@ -100,7 +121,13 @@ export function SwingGeometryDiagram({ geometry, formatLength }: { geometry: Swi
 const PLOT_W = 460;
 const PLOT_H = 150;
 
-export function ForceTracePlot({ trace, formatForce }: { trace: ReportForceTrace; formatForce: (n: number) => string }) {
+export function ForceTracePlot({
+  trace,
+  formatForce,
+}: {
+  trace: ReportForceTrace;
+  formatForce: (n: number) => string;
+}) {
   if (trace.samples.length < 2) return null;
   const margin = { left: 38, right: 8, top: 10, bottom: 22 };
   const ts = trace.samples.map(([t]) => t);
@@ -108,8 +135,10 @@ export function ForceTracePlot({ trace, formatForce }: { trace: ReportForceTrace
   const tMin = Math.min(...ts);
   const tMax = Math.max(...ts);
   const fMax = Math.max(...fs, trace.limitN ?? 0) * 1.1 || 1;
-  const x = (t: number) => margin.left + ((t - tMin) / (tMax - tMin || 1)) * (PLOT_W - margin.left - margin.right);
-  const y = (f: number) => PLOT_H - margin.bottom - (Math.max(0, f) / fMax) * (PLOT_H - margin.top - margin.bottom);
+  const x = (t: number) =>
+    margin.left + ((t - tMin) / (tMax - tMin || 1)) * (PLOT_W - margin.left - margin.right);
+  const y = (f: number) =>
+    PLOT_H - margin.bottom - (Math.max(0, f) / fMax) * (PLOT_H - margin.top - margin.bottom);
   const step = Math.max(1, Math.ceil(trace.samples.length / 600));
   const line = trace.samples
     .filter((_, i) => i % step === 0)
@@ -123,10 +152,23 @@ export function ForceTracePlot({ trace, formatForce }: { trace: ReportForceTrace
         {trace.passed === null ? '' : trace.passed ? ' (within limits)' : ' (over the limit)'}
       </Text>
       <Svg width={PLOT_W} height={PLOT_H} viewBox={`0 0 ${PLOT_W} ${PLOT_H}`}>
-        <Rect x={margin.left} y={margin.top} width={PLOT_W - margin.left - margin.right} height={PLOT_H - margin.top - margin.bottom} fill={colours.iron50} />
+        <Rect
+          x={margin.left}
+          y={margin.top}
+          width={PLOT_W - margin.left - margin.right}
+          height={PLOT_H - margin.top - margin.bottom}
+          fill={colours.iron50}
+        />
         {ticks.map((f) => (
           <G key={f}>
-            <Line x1={margin.left} y1={y(f)} x2={PLOT_W - margin.right} y2={y(f)} stroke={colours.iron100} strokeWidth={0.5} />
+            <Line
+              x1={margin.left}
+              y1={y(f)}
+              x2={PLOT_W - margin.right}
+              y2={y(f)}
+              stroke={colours.iron100}
+              strokeWidth={0.5}
+            />
             <SvgText x={2} y={y(f) + 2} style={{ fontSize: 6 }} fill={colours.iron600}>
               {formatForce(f)}
             </SvgText>

@@ -25,7 +25,12 @@ export interface SignatureDetails {
  */
 const SIGNATURE_LENGTH = 8192;
 
-export async function signPdfWithCertificate(pdf: Uint8Array, p12: Buffer, passphrase: string, details: SignatureDetails): Promise<Buffer> {
+export async function signPdfWithCertificate(
+  pdf: Uint8Array,
+  p12: Buffer,
+  passphrase: string,
+  details: SignatureDetails,
+): Promise<Buffer> {
   const pdfDoc = await PDFDocument.load(pdf, { updateMetadata: false });
   pdflibAddPlaceholder({
     pdfDoc,

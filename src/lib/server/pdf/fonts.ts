@@ -10,7 +10,12 @@ import path from 'node:path';
 import { Font } from '@react-pdf/renderer';
 import { woffToSfnt } from './woff';
 
-export const REPORT_FONT_FAMILIES = ['Noto Sans', 'Noto Sans Latin Ext', 'Noto Sans Greek', 'Noto Sans Cyrillic'];
+export const REPORT_FONT_FAMILIES = [
+  'Noto Sans',
+  'Noto Sans Latin Ext',
+  'Noto Sans Greek',
+  'Noto Sans Cyrillic',
+];
 
 const subsets: Array<[family: string, subset: string]> = [
   ['Noto Sans', 'latin'],

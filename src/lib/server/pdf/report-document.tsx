@@ -8,7 +8,13 @@ import { Document, Image, Page, Text, View } from '@react-pdf/renderer';
 import type { ReactElement } from 'react';
 import { fingerprintInWords } from './certificate-facts';
 import { ForceTracePlot, SwingGeometryDiagram } from './diagrams';
-import { DISCLAIMER, verdictWords, type ReportModel, type ReportPhoto, type StoredFinding } from './report-model';
+import {
+  DISCLAIMER,
+  verdictWords,
+  type ReportModel,
+  type ReportPhoto,
+  type StoredFinding,
+} from './report-model';
 import { styles } from './styles';
 import { colours, severityColour, verdictColour } from './theme';
 import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
@@ -36,7 +42,9 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
         <Chrome model={model} />
         <Text style={styles.label}>{pdfText(model.organisation.name)}</Text>
         <Text style={styles.h1}>Gate safety assessment</Text>
-        <Text style={styles.muted}>{pdfText(`${model.gate.label} at ${model.site.name ?? model.site.lines[0] ?? 'the site'}`)}</Text>
+        <Text style={styles.muted}>
+          {pdfText(`${model.gate.label} at ${model.site.name ?? model.site.lines[0] ?? 'the site'}`)}
+        </Text>
 
         <View style={[styles.verdictBox, { backgroundColor: verdictColour[model.result.verdict] }]}>
           <Text style={[styles.label, { color: colours.white }]}>Verdict</Text>
@@ -52,8 +60,17 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
 
         <View style={styles.factGrid}>
           <Fact label="Site" value={[model.site.name, ...model.site.lines].filter(Boolean).join(', ')} />
-          <Fact label="Gate" value={`${model.gate.label}: ${model.gate.kind.replace(/_/g, ' ')}, ${model.gate.leaves} leaf${gateSize(model, units)}`} />
-          <Fact label="Date of visit" value={formatDate(model.assessment.visitedOn ?? model.assessment.submittedAt, model.organisation.timeZone)} />
+          <Fact
+            label="Gate"
+            value={`${model.gate.label}: ${model.gate.kind.replace(/_/g, ' ')}, ${model.gate.leaves} leaf${gateSize(model, units)}`}
+          />
+          <Fact
+            label="Date of visit"
+            value={formatDate(
+              model.assessment.visitedOn ?? model.assessment.submittedAt,
+              model.organisation.timeZone,
+            )}
+          />
           <Fact label="Auditor" value={model.auditor.name} />
           <Fact label="Organisation" value={model.organisation.name} />
           <Fact label="Client" value={model.client.name} />
@@ -79,16 +96,30 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
             {model.needsInfo.map((f) => (
               <View key={f.ruleId} style={{ marginBottom: 4 }} wrap={false}>
                 <Text style={{ fontWeight: 600 }}>{pdfText(f.title)}</Text>
-                <Text style={styles.small}>Missing: {pdfText(f.missing.map((m) => m.prompt || factLabel(m.key)).join('; ') || 'details not recorded')}</Text>
+                <Text style={styles.small}>
+                  Missing:{' '}
+                  {pdfText(
+                    f.missing.map((m) => m.prompt || factLabel(m.key)).join('; ') || 'details not recorded',
+                  )}
+                </Text>
               </View>
             ))}
           </View>
         ) : null}
 
-        {model.assessment.swingGeometry || model.forceTraces.length ? <Text style={styles.h2}>Measurements</Text> : null}
-        <SwingGeometryDiagram geometry={model.assessment.swingGeometry} formatLength={(mm) => formatQuantity(mm, 'mm', units)} />
+        {model.assessment.swingGeometry || model.forceTraces.length ? (
+          <Text style={styles.h2}>Measurements</Text>
+        ) : null}
+        <SwingGeometryDiagram
+          geometry={model.assessment.swingGeometry}
+          formatLength={(mm) => formatQuantity(mm, 'mm', units)}
+        />
         {model.forceTraces.map((trace) => (
-          <ForceTracePlot key={trace.itemKey + trace.label} trace={trace} formatForce={(n) => formatQuantity(n, 'N', units)} />
+          <ForceTracePlot
+            key={trace.itemKey + trace.label}
+            trace={trace}
+            formatForce={(n) => formatQuantity(n, 'N', units)}
+          />
         ))}
 
         {model.otherPhotos.length ? (
@@ -117,7 +148,8 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
           <Text>There are no cautions to acknowledge beyond keeping the gate maintained and inspected.</Text>
         ) : (
           <Text style={[styles.small, { marginBottom: 6 }]}>
-            Until the fixes are done, please read and acknowledge each of these. {model.signing ? 'Each was ticked by the signer.' : ''}
+            Until the fixes are done, please read and acknowledge each of these.{' '}
+            {model.signing ? 'Each was ticked by the signer.' : ''}
           </Text>
         )}
         {model.cautions.map((c) => (
@@ -155,7 +187,11 @@ function Chrome({ model }: { model: ReportModel }) {
       <Text style={styles.footerLeft} fixed>
         {`Document ${model.documentId} · ${pdfText(model.ruleset.title)} ${model.ruleset.version}`}
       </Text>
-      <Text style={styles.footerRight} fixed render={({ pageNumber, totalPages }) => `Page ${pageNumber} of ${totalPages}`} />
+      <Text
+        style={styles.footerRight}
+        fixed
+        render={({ pageNumber, totalPages }) => `Page ${pageNumber} of ${totalPages}`}
+      />
     </>
   );
 }
@@ -187,7 +223,14 @@ function AreaBars({ model }: { model: ReportModel }) {
     <View>
       {model.areas.map((area) => {
         const score = area.score;
-        const colour = score === null ? colours.iron200 : score >= 90 ? colours.clear : score >= 60 ? colours.remedy : colours.withdraw;
+        const colour =
+          score === null
+            ? colours.iron200
+            : score >= 90
+              ? colours.clear
+              : score >= 60
+                ? colours.remedy
+                : colours.withdraw;
         return (
           <View
             key={area.key}
@@ -218,11 +261,15 @@ function AreaBars({ model }: { model: ReportModel }) {
                 />
               )}
             </View>
-            <Text style={{ width: 60, textAlign: 'right' }}>{score === null ? 'not scored' : `${Math.round(score)} / 100`}</Text>
+            <Text style={{ width: 60, textAlign: 'right' }}>
+              {score === null ? 'not scored' : `${Math.round(score)} / 100`}
+            </Text>
           </View>
         );
       })}
-      <Text style={[styles.small, styles.muted, { marginTop: 2 }]}>100 means every applicable check in the area passed; failures weigh by severity.</Text>
+      <Text style={[styles.small, styles.muted, { marginTop: 2 }]}>
+        100 means every applicable check in the area passed; failures weigh by severity.
+      </Text>
     </View>
   );
 }
@@ -231,15 +278,28 @@ function referenceText(f: StoredFinding): string {
   return [f.reference.standard, f.reference.clause].filter(Boolean).join(', ') || 'no reference recorded';
 }
 
-function FindingCard({ finding, photos, model }: { finding: StoredFinding; photos: ReportPhoto[]; model: ReportModel }) {
+function FindingCard({
+  finding,
+  photos,
+  model,
+}: {
+  finding: StoredFinding;
+  photos: ReportPhoto[];
+  model: ReportModel;
+}) {
   const units = model.organisation.displayUnits;
   const observed = Object.entries(finding.observed)
     .slice(0, 8)
     .map(([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units)}`);
   const limits = Object.entries(finding.params)
-    .filter(([, p]) => typeof p.value === 'number' || typeof p.value === 'string' || typeof p.value === 'boolean')
+    .filter(
+      ([, p]) => typeof p.value === 'number' || typeof p.value === 'string' || typeof p.value === 'boolean',
+    )
     .slice(0, 4)
-    .map(([k, p]) => `${factLabel(k)}: ${typeof p.value === 'number' ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`);
+    .map(
+      ([k, p]) =>
+        `${factLabel(k)}: ${typeof p.value === 'number' ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
+    );
   return (
     <View
       style={[
@@ -254,18 +314,26 @@ function FindingCard({ finding, photos, model }: { finding: StoredFinding; photo
       <View wrap={false}>
         <View style={styles.findingHead}>
           <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
-          <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>{finding.severity}</Text>
+          <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>
+            {finding.severity}
+          </Text>
         </View>
         <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
           {pdfText(
             `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
           )}
         </Text>
-        <Field name="What was found" value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'} />
+        <Field
+          name="What was found"
+          value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'}
+        />
         {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
         <Field name="Why it matters" value={finding.caution || '-'} />
         <Field name="Fix" value={finding.remediation || '-'} />
-        <Field name="Reference" value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')} />
+        <Field
+          name="Reference"
+          value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')}
+        />
       </View>
       {photos.length ? <Photos photos={photos} model={model} /> : null}
     </View>
@@ -291,7 +359,12 @@ function Photos({ photos, model }: { photos: ReportPhoto[]; model: ReportModel }
             <Image src={photo.data} style={{ width: 150, height, objectFit: 'cover' }} />
             <Text style={styles.mono}>
               {pdfText(
-                [photo.caption, photo.takenAt ? formatDateTime(photo.takenAt, model.organisation.timeZone) : null].filter(Boolean).join(' · ') || photo.itemKey,
+                [
+                  photo.caption,
+                  photo.takenAt ? formatDateTime(photo.takenAt, model.organisation.timeZone) : null,
+                ]
+                  .filter(Boolean)
+                  .join(' · ') || photo.itemKey,
               )}
             </Text>
           </View>
@@ -323,12 +396,18 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
         </View>
         <Text style={{ fontWeight: 600 }}>{pdfText(model.auditor.name)}</Text>
         <Text style={styles.small}>for {pdfText(model.organisation.name)}</Text>
-        <Text style={styles.small}>{model.signing ? `Sent for signature ${formatDateTime(model.signing.assessor.signedAt, zone)}` : 'Date:'}</Text>
+        <Text style={styles.small}>
+          {model.signing
+            ? `Sent for signature ${formatDateTime(model.signing.assessor.signedAt, zone)}`
+            : 'Date:'}
+        </Text>
       </View>
       <View style={styles.signatureBlock}>
         <Text style={styles.label}>Acknowledged by the owner</Text>
         <View style={styles.signatureLine}>
-          {owner?.imagePng ? <Image src={owner.imagePng} style={{ height: 50, objectFit: 'contain' }} /> : null}
+          {owner?.imagePng ? (
+            <Image src={owner.imagePng} style={{ height: 50, objectFit: 'contain' }} />
+          ) : null}
           {owner && !owner.imagePng ? (
             <Text
               style={{
@@ -342,7 +421,9 @@ function SignatureBlocks({ model }: { model: ReportModel }) {
           ) : null}
         </View>
         <Text style={{ fontWeight: 600 }}>{owner ? pdfText(owner.name) : 'Name:'}</Text>
-        <Text style={styles.small}>{owner ? `Signed electronically ${formatDateTime(owner.signedAt, zone)}` : 'Date:'}</Text>
+        <Text style={styles.small}>
+          {owner ? `Signed electronically ${formatDateTime(owner.signedAt, zone)}` : 'Date:'}
+        </Text>
       </View>
     </View>
   );
@@ -353,7 +434,11 @@ function Identity({ model }: { model: ReportModel }) {
   const zone = model.organisation.timeZone;
   const rows: Array<[string, string]> = [
     ['Document id', model.documentId],
-    ['Assessment', model.assessment.id + (model.assessment.supersedesId ? ` (revision of ${model.assessment.supersedesId})` : '')],
+    [
+      'Assessment',
+      model.assessment.id +
+        (model.assessment.supersedesId ? ` (revision of ${model.assessment.supersedesId})` : ''),
+    ],
     ['Ruleset', `${model.ruleset.title}, version ${model.ruleset.version}`],
     ['Ruleset content SHA-256', model.ruleset.contentSha256],
     ['Result SHA-256', model.assessment.resultSha256 ?? '-'],
@@ -365,7 +450,12 @@ function Identity({ model }: { model: ReportModel }) {
       ['Signature', owner.method === 'drawn' ? 'drawn on screen' : 'typed name (no drawing device)'],
       ['Consent', owner.consentText],
       ['Intent', owner.intentText],
-      ['Cautions acknowledged', owner.cautionsAcknowledged.length ? owner.cautionsAcknowledged.map((c) => c.title).join('; ') : 'none were listed'],
+      [
+        'Cautions acknowledged',
+        owner.cautionsAcknowledged.length
+          ? owner.cautionsAcknowledged.map((c) => c.title).join('; ')
+          : 'none were listed',
+      ],
       ['Signed at', formatDateTime(owner.signedAt, zone)],
       ['From address', owner.ip ?? 'not recorded'],
       ['Browser', (owner.userAgent ?? 'not recorded').slice(0, 160)],
@@ -378,7 +468,12 @@ function Identity({ model }: { model: ReportModel }) {
   if (certificate) {
     rows.push(
       ['Signing certificate', certificate.subject],
-      ['Certificate issued by', certificate.selfSigned ? 'itself: made for this organisation, not by a public certificate authority' : certificate.issuer],
+      [
+        'Certificate issued by',
+        certificate.selfSigned
+          ? 'itself: made for this organisation, not by a public certificate authority'
+          : certificate.issuer,
+      ],
       ['Certificate SHA-256', fingerprintInWords(certificate.sha256)],
     );
   }
@@ -392,7 +487,8 @@ function Identity({ model }: { model: ReportModel }) {
       ))}
       {model.kind === 'signed_report' ? (
         <Text style={[styles.small, { marginTop: 6 }]}>
-          This file carries a digital signature of {pdfText(model.organisation.name)}; a PDF reader shows whether anything changed after signing.
+          This file carries a digital signature of {pdfText(model.organisation.name)}; a PDF reader shows
+          whether anything changed after signing.
           {certificate?.selfSigned
             ? ` The signing certificate was made for ${pdfText(model.organisation.name)} by its report software, not issued by a public certificate authority, so a reader shows the signer or issuer as unknown or not trusted. That says nothing about changes to the file. To check who signed it, compare the certificate's SHA-256 fingerprint in the reader's signature details with the one above and with the one the Verify page (${pdfText(model.signing?.verifyUrl ?? '/verify')}) shows for this file.`
             : certificate

@@ -177,7 +177,9 @@ const bySeverity = (a: StoredFinding, b: StoredFinding) =>
 /** A photo belongs to a finding when its item key is the rule id or a fact the rule read. */
 function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
   if (photo.itemKey === finding.ruleId) return true;
-  const keys = [...Object.keys(finding.observed), ...finding.missing.map((m) => m.key)].map((k) => k.split('.').pop());
+  const keys = [...Object.keys(finding.observed), ...finding.missing.map((m) => m.key)].map((k) =>
+    k.split('.').pop(),
+  );
   return keys.includes(photo.itemKey);
 }
 
@@ -234,7 +236,8 @@ export const verdictWords: Record<Verdict, { label: string; headline: string; me
   clear: {
     label: VERDICT_WORDS.clear.label,
     headline: 'No hazard above minor was found.',
-    meaning: 'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
+    meaning:
+      'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
   },
   remedy: {
     label: VERDICT_WORDS.remedy.label,
@@ -245,7 +248,8 @@ export const verdictWords: Record<Verdict, { label: string; headline: string; me
   withdraw: {
     label: VERDICT_WORDS.withdraw.label,
     headline: 'At least one critical hazard was found.',
-    meaning: 'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
+    meaning:
+      'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
   },
 };
 

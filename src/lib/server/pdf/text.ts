@@ -68,7 +68,11 @@ function round(value: number, digits: number): string {
 }
 
 /** A canonical value (mm, N, kg …) in the organisation's system, with its unit. */
-export function formatQuantity(value: number, unit: string | undefined, system: 'imperial' | 'metric'): string {
+export function formatQuantity(
+  value: number,
+  unit: string | undefined,
+  system: 'imperial' | 'metric',
+): string {
   if (!unit || unit === 'count') return round(value, 2);
   if (system === 'imperial') {
     if (unit === 'mm') return `${round(value / MM_PER_INCH, 2)} in`;
@@ -112,6 +116,7 @@ export function formatObserved(key: string, value: unknown, system: 'imperial' |
   if (typeof value === 'boolean') return value ? 'yes' : 'no';
   if (typeof value === 'number') return formatQuantity(value, unitFromKey(key), system);
   if (typeof value === 'string') return value === 'na' ? 'not applicable' : value.replace(/_/g, ' ');
-  if (Array.isArray(value)) return value.length ? value.map((v) => formatObserved(key, v, system)).join(', ') : 'none';
+  if (Array.isArray(value))
+    return value.length ? value.map((v) => formatObserved(key, v, system)).join(', ') : 'none';
   return JSON.stringify(value).slice(0, 200);
 }

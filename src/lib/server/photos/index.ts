@@ -83,7 +83,11 @@ async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
   return assessment;
 }
 
-export async function listPhotos(viewer: SessionUser, assessmentId: string, knex: Knex = db()): Promise<PhotoRecord[]> {
+export async function listPhotos(
+  viewer: SessionUser,
+  assessmentId: string,
+  knex: Knex = db(),
+): Promise<PhotoRecord[]> {
   await visibleAssessment(viewer, assessmentId);
   const rows = await knex('assessment_photos')
     .where({ assessment_id: assessmentId, organisation_id: viewer.organisationId })
@@ -109,12 +113,18 @@ export interface NewPhoto {
 }
 
 /** Stores a photo for a draft the viewer may edit; `created` is false when the device had already sent it. */
-export async function addPhoto(viewer: SessionUser, assessmentId: string, photo: NewPhoto): Promise<{ photo: PhotoRecord; created: boolean }> {
+export async function addPhoto(
+  viewer: SessionUser,
+  assessmentId: string,
+  photo: NewPhoto,
+): Promise<{ photo: PhotoRecord; created: boolean }> {
   const assessment = await visibleAssessment(viewer, assessmentId);
   assertEditable(viewer, assessment, undefined);
   const knex = db();
   if (photo.clientRef) {
-    const again = await knex('assessment_photos').where({ assessment_id: assessmentId, client_ref: photo.clientRef }).first<PhotoRow | undefined>(columns);
+    const again = await knex('assessment_photos')
+      .where({ assessment_id: assessmentId, client_ref: photo.clientRef })
+      .first<PhotoRow | undefined>(columns);
     if (again) return { photo: toRecord(again), created: false };
   }
   const processed = await processPhoto(photo.bytes);
@@ -154,7 +164,9 @@ export async function addPhoto(viewer: SessionUser, assessmentId: string, photo:
   } catch (error) {
     if (pgErrorCode(error) !== UNIQUE_VIOLATION || !photo.clientRef) throw error;
     // A simultaneous retry of the same photo won the insert: answer with that one.
-    const winner = await knex('assessment_photos').where({ assessment_id: assessmentId, client_ref: photo.clientRef }).first<PhotoRow>(columns);
+    const winner = await knex('assessment_photos')
+      .where({ assessment_id: assessmentId, client_ref: photo.clientRef })
+      .first<PhotoRow>(columns);
     return { photo: toRecord(winner), created: false };
   }
 }
@@ -179,9 +191,15 @@ export async function photoFile(
 }
 
 /** Removes a photo from a draft (its files stay in content-addressed storage, possibly shared). */
-export async function removePhoto(viewer: SessionUser, assessmentId: string, photoId: string): Promise<boolean> {
+export async function removePhoto(
+  viewer: SessionUser,
+  assessmentId: string,
+  photoId: string,
+): Promise<boolean> {
   const assessment = await visibleAssessment(viewer, assessmentId);
   assertEditable(viewer, assessment, undefined);
-  const deleted = await db()('assessment_photos').where({ id: photoId, assessment_id: assessmentId, organisation_id: viewer.organisationId }).delete();
+  const deleted = await db()('assessment_photos')
+    .where({ id: photoId, assessment_id: assessmentId, organisation_id: viewer.organisationId })
+    .delete();
   return deleted > 0;
 }

@@ -37,7 +37,10 @@ export interface ProcessedPhoto {
 /** The size refusal, in words a technician can act on. */
 export function tooLargeProblem(bytes: number | null): HttpProblem {
   const limit = megabytes(MAX_PHOTO_BYTES);
-  const size = bytes === null ? `This photo is larger than the ${limit} limit.` : `This photo is ${megabytes(bytes)}; the limit is ${limit}.`;
+  const size =
+    bytes === null
+      ? `This photo is larger than the ${limit} limit.`
+      : `This photo is ${megabytes(bytes)}; the limit is ${limit}.`;
   return new HttpProblem(413, `${size} Take it again at a lower resolution, or pick a smaller copy.`, {
     errors: [{ field: 'photo', message: `must be at most ${limit}` }],
     limitBytes: MAX_PHOTO_BYTES,
@@ -58,12 +61,17 @@ function exifTakenAt(exif: Buffer | undefined): Date | null {
 /** Checks and converts one uploaded photo; throws HttpProblem 413 / 415 / 422 with a plain message. */
 export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
   if (bytes.byteLength > MAX_PHOTO_BYTES) throw tooLargeProblem(bytes.byteLength);
-  if (bytes.byteLength === 0) throw new HttpProblem(422, 'The photo file is empty.', { errors: [{ field: 'photo', message: 'must not be empty' }] });
+  if (bytes.byteLength === 0)
+    throw new HttpProblem(422, 'The photo file is empty.', {
+      errors: [{ field: 'photo', message: 'must not be empty' }],
+    });
   const type = await fileTypeFromBuffer(bytes);
   if (!type || !ACCEPTED_PHOTO_TYPES[type.mime]) {
     const found = type ? `a ${type.ext.toUpperCase()} file` : 'not a picture we recognise';
     throw new HttpProblem(415, `That file is ${found}. Send a JPEG, PNG, WebP or AVIF photo.`, {
-      errors: [{ field: 'photo', message: `must be one of: ${Object.values(ACCEPTED_PHOTO_TYPES).join(', ')}` }],
+      errors: [
+        { field: 'photo', message: `must be one of: ${Object.values(ACCEPTED_PHOTO_TYPES).join(', ')}` },
+      ],
     });
   }
   let metadata: Metadata;
@@ -84,8 +92,16 @@ export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
     return { bytes: data, contentType: 'image/jpeg' as const, width: info.width, height: info.height };
   };
   try {
-    const [display, thumb] = await Promise.all([render(DISPLAY_LONG_SIDE_PX, 82), render(THUMB_LONG_SIDE_PX, 70)]);
-    return { original: { bytes, contentType: type.mime }, display, thumb, takenAt: exifTakenAt(metadata.exif) };
+    const [display, thumb] = await Promise.all([
+      render(DISPLAY_LONG_SIDE_PX, 82),
+      render(THUMB_LONG_SIDE_PX, 70),
+    ]);
+    return {
+      original: { bytes, contentType: type.mime },
+      display,
+      thumb,
+      takenAt: exifTakenAt(metadata.exif),
+    };
   } catch {
     throw new HttpProblem(422, 'The photo could not be converted; it may be damaged. Take it again.', {
       errors: [{ field: 'photo', message: 'could not be decoded' }],

@@ -13,7 +13,14 @@ export {
   INTENT_TEXT,
   type SignatureSubmit,
 } from './schemas';
-export { describeSignLink, linkProblem, linkStateMessage, signingCopyForLink, type LinkState, type SignPageView } from './links';
+export {
+  describeSignLink,
+  linkProblem,
+  linkStateMessage,
+  signingCopyForLink,
+  type LinkState,
+  type SignPageView,
+} from './links';
 export { signRequestMail, signedReportMail } from './mails';
 export { sendForSignature, type RequestFacts, type SentForSignature } from './send';
 export { submitSignature, type SignedOutcome } from './sign';

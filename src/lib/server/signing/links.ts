@@ -8,7 +8,13 @@ import type { Knex } from 'knex';
 import { db } from '../db';
 import { documentById, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
-import { cautionsOf, StoredResultSchema, verdictWords, type ReportCaution, type Verdict } from '../pdf/report-model';
+import {
+  cautionsOf,
+  StoredResultSchema,
+  verdictWords,
+  type ReportCaution,
+  type Verdict,
+} from '../pdf/report-model';
 import { loadAssessmentForReport } from '../reports';
 import { CONSENT_TEXT, INTENT_TEXT } from './schemas';
 
@@ -18,10 +24,16 @@ export const hashToken = (token: string) => createHash('sha256').update(token, '
 export type LinkState = 'ok' | 'used' | 'expired' | 'revoked' | 'unknown';
 
 const linkMessages: Record<Exclude<LinkState, 'ok'>, { status: number; detail: string }> = {
-  unknown: { status: 404, detail: 'This signing link is not valid. Check that the whole link was copied, or ask for a new one.' },
+  unknown: {
+    status: 404,
+    detail: 'This signing link is not valid. Check that the whole link was copied, or ask for a new one.',
+  },
   used: { status: 409, detail: 'This signing link has already been used: the report is signed.' },
   expired: { status: 410, detail: 'This signing link has expired. Ask the office for a new one.' },
-  revoked: { status: 410, detail: 'This signing link was replaced by a newer one. Use the link in the most recent e-mail.' },
+  revoked: {
+    status: 410,
+    detail: 'This signing link was replaced by a newer one. Use the link in the most recent e-mail.',
+  },
 };
 
 export function linkProblem(state: Exclude<LinkState, 'ok'>): HttpProblem {
@@ -97,14 +109,18 @@ export interface SignPageView {
 }
 
 /** What the public signing page shows for a token; never changes anything. */
-export async function describeSignLink(token: string, knex: Knex = db()): Promise<SignPageView | { state: Exclude<LinkState, 'ok'> }> {
+export async function describeSignLink(
+  token: string,
+  knex: Knex = db(),
+): Promise<SignPageView | { state: Exclude<LinkState, 'ok'> }> {
   const request = await findRequest(knex, token, false);
   const state = stateOf(request);
   if (state !== 'ok' || !request) return { state: state === 'ok' ? 'unknown' : state };
   const row = await loadAssessmentForReport(knex, request.organisation_id, request.assessment_id);
   const document = await knex('documents').where({ id: request.document_id }).first('sha256');
   const result = StoredResultSchema.safeParse(row?.result);
-  if (!row || !document || !result.success || row.status !== 'awaiting_signature') return { state: 'unknown' };
+  if (!row || !document || !result.success || row.status !== 'awaiting_signature')
+    return { state: 'unknown' };
   const words = verdictWords[result.data.verdict];
   const order = ['critical', 'major', 'minor'];
   return {

@@ -9,7 +9,8 @@ export const SIGN_LINK_DEFAULT_DAYS = 14;
 export const SIGN_LINK_MAX_DAYS = 60;
 
 /** Shown beside the consent checkbox and stored with the signature, word for word. */
-export const CONSENT_TEXT = 'I agree to sign this acknowledgement electronically. My typed name and the mark I make here count as my handwritten signature.';
+export const CONSENT_TEXT =
+  'I agree to sign this acknowledgement electronically. My typed name and the mark I make here count as my handwritten signature.';
 
 /** Shown beside the sign button and stored with the signature, word for word. */
 export const INTENT_TEXT =
@@ -30,7 +31,12 @@ export const SendForSignatureSchema = z.strictObject({
    * Who receives the signing link: one of the client's contacts or an address the office types.
    * Absent: the client's contact e-mail.
    */
-  recipient: z.string('must be text').trim().max(254, 'must be at most 254 characters').pipe(z.email('must be an e-mail address')).optional(),
+  recipient: z
+    .string('must be text')
+    .trim()
+    .max(254, 'must be at most 254 characters')
+    .pipe(z.email('must be an e-mail address'))
+    .optional(),
 });
 
 const pngDataUrl = z
@@ -49,6 +55,9 @@ export const SignatureSubmitSchema = z.strictObject({
   intent: z.literal(true, 'confirm that you mean to sign'),
   acknowledgedCautions: z.array(z.string().max(200)).max(500),
   shownPdfSha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be the SHA-256 of the report shown'),
-  signature: z.discriminatedUnion('method', [z.strictObject({ method: z.literal('drawn'), png: pngDataUrl }), z.strictObject({ method: z.literal('typed') })]),
+  signature: z.discriminatedUnion('method', [
+    z.strictObject({ method: z.literal('drawn'), png: pngDataUrl }),
+    z.strictObject({ method: z.literal('typed') }),
+  ]),
 });
 export type SignatureSubmit = z.infer<typeof SignatureSubmitSchema>;

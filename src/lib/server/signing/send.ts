@@ -45,19 +45,31 @@ export async function sendForSignature(
   const knex = db();
   const before = await loadAssessmentForReport(knex, viewer.organisationId, assessmentId);
   if (!before) throw new HttpProblem(404, 'That assessment was not found.');
-  if (viewer.role === 'auditor' && before.auditor_id !== viewer.id) throw new HttpProblem(403, 'An auditor sends their own assessments only.');
+  if (viewer.role === 'auditor' && before.auditor_id !== viewer.id)
+    throw new HttpProblem(403, 'An auditor sends their own assessments only.');
   if (!statusesThatMaySend.includes(before.status)) {
-    throw new HttpProblem(409, `Only a scored assessment can be sent for signature; this one is ${before.status.replace(/_/g, ' ')}.`);
+    throw new HttpProblem(
+      409,
+      `Only a scored assessment can be sent for signature; this one is ${before.status.replace(/_/g, ' ')}.`,
+    );
   }
   const chosen = options.recipient?.trim() || null;
   const recipient = chosen ?? before.client_contact_email;
   if (!recipient) {
     throw new HttpProblem(422, 'The client has no contact e-mail address to send the link to.', {
-      errors: [{ field: 'recipient', message: 'choose who receives the link, or add the client’s e-mail address first' }],
+      errors: [
+        {
+          field: 'recipient',
+          message: 'choose who receives the link, or add the client’s e-mail address first',
+        },
+      ],
     });
   }
   const documentId = randomUUID();
-  const pdf = await renderAssessmentReport(viewer.organisationId, assessmentId, { kind: 'signing_copy', documentId });
+  const pdf = await renderAssessmentReport(viewer.organisationId, assessmentId, {
+    kind: 'signing_copy',
+    documentId,
+  });
   if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
   const token = randomBytes(32).toString('base64url');
   const days = options.expiresInDays ?? SIGN_LINK_DEFAULT_DAYS;
@@ -65,8 +77,15 @@ export async function sendForSignature(
   const link = `${linkOrigin()}/sign/${token}`;
 
   const sent = await knex.transaction(async (trx) => {
-    const locked = await trx('assessments').where({ id: assessmentId, organisation_id: viewer.organisationId }).forUpdate().first('status', 'result_sha256');
-    if (!locked || !statusesThatMaySend.includes(locked.status) || locked.result_sha256 !== before.result_sha256) {
+    const locked = await trx('assessments')
+      .where({ id: assessmentId, organisation_id: viewer.organisationId })
+      .forUpdate()
+      .first('status', 'result_sha256');
+    if (
+      !locked ||
+      !statusesThatMaySend.includes(locked.status) ||
+      locked.result_sha256 !== before.result_sha256
+    ) {
       throw new HttpProblem(409, 'The assessment changed while the report was being prepared. Try again.');
     }
     const document = await storeDocument(trx, {
@@ -78,7 +97,11 @@ export async function sendForSignature(
       filename: `gate-report-${assessmentId.slice(0, 8)}-for-signature.pdf`,
       createdBy: viewer.id,
     });
-    await trx('sign_requests').where({ assessment_id: assessmentId }).whereNull('used_at').whereNull('revoked_at').update({ revoked_at: trx.fn.now() });
+    await trx('sign_requests')
+      .where({ assessment_id: assessmentId })
+      .whereNull('used_at')
+      .whereNull('revoked_at')
+      .update({ revoked_at: trx.fn.now() });
     const [request] = await trx('sign_requests')
       .insert({
         organisation_id: viewer.organisationId,
@@ -93,7 +116,11 @@ export async function sendForSignature(
       .returning(['id', 'expires_at']);
     await trx('assessments')
       .where({ id: assessmentId })
-      .update({ status: 'awaiting_signature', row_version: trx.raw('row_version + 1'), updated_at: trx.fn.now() });
+      .update({
+        status: 'awaiting_signature',
+        row_version: trx.raw('row_version + 1'),
+        updated_at: trx.fn.now(),
+      });
     const mail = signRequestMail({
       organisationName: before.org_name,
       clientName: before.client_name,
@@ -133,7 +160,14 @@ export async function sendForSignature(
         outboxMessageId,
       },
     });
-    return { signRequestId: request.id, assessmentId, recipient, expiresAt: new Date(request.expires_at).toISOString(), document, outboxMessageId };
+    return {
+      signRequestId: request.id,
+      assessmentId,
+      recipient,
+      expiresAt: new Date(request.expires_at).toISOString(),
+      document,
+      outboxMessageId,
+    };
   });
   wakeOutboxWorker();
   return sent;

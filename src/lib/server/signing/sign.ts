@@ -27,9 +27,15 @@ import type { RequestFacts } from './send';
 function decodeSignaturePng(dataUrl: string): Buffer {
   const bytes = Buffer.from(dataUrl.slice(dataUrl.indexOf(',') + 1), 'base64');
   // PNG signature (ISO/IEC 15948, 5.2): 89 50 4E 47 0D 0A 1A 0A.
-  const isPng = bytes.length > 8 && bytes.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
-  if (!isPng) throw new HttpProblem(422, 'The drawn signature is not a PNG image.', { errors: [{ field: 'signature.png', message: 'must be a PNG image' }] });
-  if (bytes.length > MAX_SIGNATURE_PNG_BYTES) throw new HttpProblem(413, 'The drawn signature image is too large.');
+  const isPng =
+    bytes.length > 8 &&
+    bytes.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
+  if (!isPng)
+    throw new HttpProblem(422, 'The drawn signature is not a PNG image.', {
+      errors: [{ field: 'signature.png', message: 'must be a PNG image' }],
+    });
+  if (bytes.length > MAX_SIGNATURE_PNG_BYTES)
+    throw new HttpProblem(413, 'The drawn signature image is too large.');
   return bytes;
 }
 
@@ -45,7 +51,11 @@ export interface SignedOutcome {
  * nothing changes unless the link is live, the shown PDF's hash matches and every caution is
  * acknowledged.
  */
-export async function submitSignature(token: string, body: SignatureSubmit, facts: RequestFacts): Promise<SignedOutcome> {
+export async function submitSignature(
+  token: string,
+  body: SignatureSubmit,
+  facts: RequestFacts,
+): Promise<SignedOutcome> {
   if (!tokenPattern.test(token)) throw linkProblem('unknown');
   const png = body.signature.method === 'drawn' ? decodeSignaturePng(body.signature.png) : null;
   const knex = db();
@@ -54,16 +64,24 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
     // so a resend racing a signature waits instead of deadlocking.
     const unlocked = await findRequest(trx, token, false);
     if (!unlocked) throw linkProblem('unknown');
-    const assessment = await trx('assessments').where({ id: unlocked.assessment_id }).forUpdate().first('id', 'status', 'result', 'organisation_id');
+    const assessment = await trx('assessments')
+      .where({ id: unlocked.assessment_id })
+      .forUpdate()
+      .first('id', 'status', 'result', 'organisation_id');
     const request = await findRequest(trx, token, true);
     const state = stateOf(request);
     if (state !== 'ok' || !request) throw linkProblem(state === 'ok' ? 'unknown' : state);
-    if (!assessment || assessment.status !== 'awaiting_signature') throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
+    if (!assessment || assessment.status !== 'awaiting_signature')
+      throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
     const shown = await trx('documents').where({ id: request.document_id }).first('sha256');
     if (!shown || shown.sha256 !== body.shownPdfSha256) {
-      throw new HttpProblem(409, 'The report you are signing is not the one this link shows. Reload the page and read it again.', {
-        errors: [{ field: 'shownPdfSha256', message: 'does not match the report for this link' }],
-      });
+      throw new HttpProblem(
+        409,
+        'The report you are signing is not the one this link shows. Reload the page and read it again.',
+        {
+          errors: [{ field: 'shownPdfSha256', message: 'does not match the report for this link' }],
+        },
+      );
     }
     const result = StoredResultSchema.parse(assessment.result);
     const cautions = cautionsOf(result);
@@ -71,13 +89,19 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
     const missing = cautions.filter((c) => !acknowledged.has(c.ruleId));
     if (missing.length) {
       throw new HttpProblem(422, 'Tick each caution to show you have read it.', {
-        errors: missing.map((c) => ({ field: `acknowledgedCautions.${c.ruleId}`, message: `not acknowledged: ${c.title}` })),
+        errors: missing.map((c) => ({
+          field: `acknowledgedCautions.${c.ruleId}`,
+          message: `not acknowledged: ${c.title}`,
+        })),
       });
     }
     const unknown = body.acknowledgedCautions.filter((id) => !cautions.some((c) => c.ruleId === id));
     if (unknown.length)
       throw new HttpProblem(422, 'Some acknowledged cautions are not in this report.', {
-        errors: unknown.map((id) => ({ field: `acknowledgedCautions.${id}`, message: 'not a caution of this report' })),
+        errors: unknown.map((id) => ({
+          field: `acknowledgedCautions.${id}`,
+          message: 'not a caution of this report',
+        })),
       });
 
     const imageKey = png ? (await storage().put(png, 'image/png')).key : null;
@@ -93,7 +117,9 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
         intent_text: INTENT_TEXT,
         signature_method: body.signature.method,
         signature_image_key: imageKey,
-        cautions_acknowledged: JSON.stringify(cautions.map((c) => ({ ruleId: c.ruleId, title: c.title, caution: c.caution }))),
+        cautions_acknowledged: JSON.stringify(
+          cautions.map((c) => ({ ruleId: c.ruleId, title: c.title, caution: c.caution })),
+        ),
         shown_pdf_sha256: shown.sha256,
         ip: facts.ip,
         user_agent: facts.userAgent?.slice(0, 500) ?? null,
@@ -155,12 +181,26 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
       filename: `gate-report-${row.id.slice(0, 8)}-signed.pdf`,
       createdBy: null,
     });
-    if (auditHead) await recordAnchor(trx, auditHead, { organisationId: row.organisation_id, kind: 'signed_report', reference: documentId });
+    if (auditHead)
+      await recordAnchor(trx, auditHead, {
+        organisationId: row.organisation_id,
+        kind: 'signed_report',
+        reference: documentId,
+      });
     await trx('assessments')
       .where({ id: row.id })
-      .update({ status: 'signed', signed_at: signedAt, row_version: trx.raw('row_version + 1'), updated_at: trx.fn.now() });
+      .update({
+        status: 'signed',
+        signed_at: signedAt,
+        row_version: trx.raw('row_version + 1'),
+        updated_at: trx.fn.now(),
+      });
 
-    const attachment = { filename: document.filename, contentType: 'application/pdf', storageKey: document.sha256 };
+    const attachment = {
+      filename: document.filename,
+      contentType: 'application/pdf',
+      storageKey: document.sha256,
+    };
     const ownerMail = signedReportMail({
       kind: 'owner',
       organisationName: row.org_name,
@@ -224,7 +264,10 @@ export async function submitSignature(token: string, body: SignatureSubmit, fact
 
 /** Who gets the organisation's copy: the office people, else the owners. */
 async function organisationRecipients(knex: Knex, organisationId: string): Promise<string[]> {
-  const staff = await knex('users').where({ organisation_id: organisationId, active: true }).whereIn('role', ['office', 'owner']).select('email', 'role');
+  const staff = await knex('users')
+    .where({ organisation_id: organisationId, active: true })
+    .whereIn('role', ['office', 'owner'])
+    .select('email', 'role');
   const office = staff.filter((s) => s.role === 'office');
   return (office.length ? office : staff).map((s) => s.email);
 }

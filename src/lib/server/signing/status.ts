@@ -26,11 +26,23 @@ export interface SigningStatus {
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
 
-export async function signingStatus(knex: Knex, organisationId: string, assessmentId: string): Promise<SigningStatus> {
+export async function signingStatus(
+  knex: Knex,
+  organisationId: string,
+  assessmentId: string,
+): Promise<SigningStatus> {
   const requests = await knex('sign_requests')
     .where({ organisation_id: organisationId, assessment_id: assessmentId })
     .orderBy('created_at', 'desc')
-    .select('id', 'recipient_email', 'expires_at', 'used_at', 'revoked_at', 'created_at', knex.raw('expires_at <= now() as expired'));
+    .select(
+      'id',
+      'recipient_email',
+      'expires_at',
+      'used_at',
+      'revoked_at',
+      'created_at',
+      knex.raw('expires_at <= now() as expired'),
+    );
   const signature = await knex('signatures')
     .where({ organisation_id: organisationId, assessment_id: assessmentId })
     .first(

@@ -24,7 +24,8 @@ export interface S3Settings {
 export function s3SettingsFromEnv(env: NodeJS.ProcessEnv): S3Settings {
   if (!env.S3_BUCKET) throw new Error('STORAGE_DRIVER=s3 needs S3_BUCKET');
   const prefix = env.S3_PREFIX ?? '';
-  if (prefix && !/^[A-Za-z0-9._-]+(\/[A-Za-z0-9._-]+)*\/$/.test(prefix)) throw new Error('S3_PREFIX must be folder names ending in "/"');
+  if (prefix && !/^[A-Za-z0-9._-]+(\/[A-Za-z0-9._-]+)*\/$/.test(prefix))
+    throw new Error('S3_PREFIX must be folder names ending in "/"');
   return {
     bucket: env.S3_BUCKET,
     endpoint: env.S3_ENDPOINT || undefined,
@@ -42,7 +43,9 @@ export function createS3Storage(settings: S3Settings): FileStorage {
     endpoint: settings.endpoint,
     forcePathStyle: settings.forcePathStyle,
     credentials:
-      settings.accessKeyId && settings.secretAccessKey ? { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey } : undefined,
+      settings.accessKeyId && settings.secretAccessKey
+        ? { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey }
+        : undefined,
     // Many S3-compatible stores do not understand the SDK's default CRC32 trailers.
     requestChecksumCalculation: 'WHEN_REQUIRED',
     responseChecksumValidation: 'WHEN_REQUIRED',

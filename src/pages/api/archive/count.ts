@@ -8,5 +8,7 @@ import { handle, parseQuery } from '@/lib/server/http/problem';
 /** How many assessments a filter matches (asked for separately, so paging stays cheap). */
 export const GET: APIRoute = handle(async ({ locals, url }) => {
   const { organisation } = requireRole(locals, ...archiveReaders);
-  return Response.json({ total: await countArchive(organisation.id, organisation.timeZone, parseQuery(ArchiveFilterSchema, url)) });
+  return Response.json({
+    total: await countArchive(organisation.id, organisation.timeZone, parseQuery(ArchiveFilterSchema, url)),
+  });
 });

@@ -28,15 +28,29 @@ export const GET: APIRoute = handle(async (context) => {
       detail: { filter: Object.fromEntries(Object.entries(filter).filter(([, v]) => v !== undefined)) },
     });
     const head = { eventId: event.id, hash: event.hash };
-    await recordAnchor(trx, head, { organisationId: organisation.id, kind: 'archive_export', reference: String(event.id) });
+    await recordAnchor(trx, head, {
+      organisationId: organisation.id,
+      kind: 'archive_export',
+      reference: String(event.id),
+    });
     return head;
   });
-  const { stream, filename } = await exportSignedReports(organisation.id, organisation.timeZone, filter, undefined, {
-    auditHead,
-    actor: { userId: user.id, label: user.email, ip },
-  });
+  const { stream, filename } = await exportSignedReports(
+    organisation.id,
+    organisation.timeZone,
+    filter,
+    undefined,
+    {
+      auditHead,
+      actor: { userId: user.id, label: user.email, ip },
+    },
+  );
   return new Response(stream, {
     status: 200,
-    headers: { 'content-type': 'application/zip', 'content-disposition': `attachment; filename="${filename}"`, 'cache-control': 'private, no-store' },
+    headers: {
+      'content-type': 'application/zip',
+      'content-disposition': `attachment; filename="${filename}"`,
+      'cache-control': 'private, no-store',
+    },
   });
 });

@@ -12,6 +12,9 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
   const target = found(await impactTarget(organisation.id, versionId), 'That published ruleset version');
   const filename = `impact-${target.family}-${target.version}.csv`.replace(/[^A-Za-z0-9._-]/g, '_');
   return new Response(impactCsv(organisation.id, target, basis), {
-    headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${filename}"` },
+    headers: {
+      'content-type': 'text/csv; charset=utf-8',
+      'content-disposition': `attachment; filename="${filename}"`,
+    },
   });
 });

@@ -8,5 +8,7 @@ import { handle, parseQuery } from '@/lib/server/http/problem';
 /** One page of the archive: filtered, sorted, keyset-paged (`after` / `before` cursors). */
 export const GET: APIRoute = handle(async ({ locals, url }) => {
   const { organisation } = requireRole(locals, ...archiveReaders);
-  return Response.json(await listArchive(organisation.id, organisation.timeZone, parseQuery(ArchiveListQuerySchema, url)));
+  return Response.json(
+    await listArchive(organisation.id, organisation.timeZone, parseQuery(ArchiveListQuerySchema, url)),
+  );
 });

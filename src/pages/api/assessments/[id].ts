@@ -32,6 +32,7 @@ export const PATCH: APIRoute = handle(async ({ locals, params, request }) => {
 export const DELETE: APIRoute = handle(async (context) => {
   const { user } = requireRole(context.locals, ...assessmentWorkers);
   const id = found(idFromPath(context.params.id), what);
-  if (!(await discardAssessment(user, id, { ip: clientAddressOf(context) }))) throw new HttpProblem(404, `${what} was not found.`);
+  if (!(await discardAssessment(user, id, { ip: clientAddressOf(context) })))
+    throw new HttpProblem(404, `${what} was not found.`);
   return new Response(null, { status: 204 });
 });

@@ -11,7 +11,9 @@ import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 /** Assessments filtered by status, verdict, gate kind, auditor, visit dates, gate, site or client. */
 export const GET: APIRoute = handle(async ({ locals, url }) => {
   const { user, organisation } = requireRole(locals, ...assessmentReaders);
-  return Response.json(await listAssessments(user, organisation.timeZone, parseQuery(AssessmentListQuerySchema, url)));
+  return Response.json(
+    await listAssessments(user, organisation.timeZone, parseQuery(AssessmentListQuerySchema, url)),
+  );
 });
 
 /**

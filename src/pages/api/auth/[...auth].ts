@@ -17,7 +17,16 @@ import { HttpProblem, problem } from '@/lib/server/http/problem';
 
 export const prerender = false;
 
-const actions = new Set(['providers', 'session', 'csrf', 'signin', 'signout', 'callback', 'verify-request', 'error']);
+const actions = new Set([
+  'providers',
+  'session',
+  'csrf',
+  'signin',
+  'signout',
+  'callback',
+  'verify-request',
+  'error',
+]);
 
 /** Sign-in forms are tiny; anything bigger is not one. */
 const maxFormBytes = 16 * 1024;
@@ -31,13 +40,18 @@ const tooLarge = () =>
  * The same request, addressed to the public origin, with its body read within the limit
  * (body.ts) and handed to auth core as a re-built request of those bytes.
  */
-async function forAuthCore(request: Request): Promise<{ request: Request; form: URLSearchParams } | Response> {
+async function forAuthCore(
+  request: Request,
+): Promise<{ request: Request; form: URLSearchParams } | Response> {
   const url = new URL(request.url);
   const target = new URL(`${url.pathname}${url.search}`, publicOrigin(request));
   try {
     const bounded = await boundedRequest(request, maxFormBytes, target, tooLarge);
     const isForm = (request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
-    return { request: bounded.request, form: isForm ? new URLSearchParams(bounded.bytes.toString('utf8')) : new URLSearchParams() };
+    return {
+      request: bounded.request,
+      form: isForm ? new URLSearchParams(bounded.bytes.toString('utf8')) : new URLSearchParams(),
+    };
   } catch (error) {
     if (error instanceof HttpProblem) return error.toResponse();
     throw error;
@@ -45,8 +59,14 @@ async function forAuthCore(request: Request): Promise<{ request: Request; form: 
 }
 
 const refusals: Record<string, { status: number; detail: (ctx: SignInContext) => string }> = {
-  throttled: { status: 429, detail: (ctx) => `Too many sign-in attempts. Try again in ${waitInWords(ctx.retryAfterSeconds ?? 900)}.` },
-  link: { status: 401, detail: () => 'This sign-in link has expired or was already used. Ask for a new one.' },
+  throttled: {
+    status: 429,
+    detail: (ctx) => `Too many sign-in attempts. Try again in ${waitInWords(ctx.retryAfterSeconds ?? 900)}.`,
+  },
+  link: {
+    status: 401,
+    detail: () => 'This sign-in link has expired or was already used. Ask for a new one.',
+  },
   credentials: { status: 401, detail: () => 'The e-mail address or password is not right.' },
 };
 
@@ -54,7 +74,12 @@ const refusals: Record<string, { status: number; detail: (ctx: SignInContext) =>
  * Auth core answers a refused sign-in with a redirect to /signin?error=…&code=…. Browsers get
  * that redirect with `next` (and the wait) kept; other clients get problem+json.
  */
-function adaptRefusal(response: Response, caller: Request, form: URLSearchParams, ctx: SignInContext): Response {
+function adaptRefusal(
+  response: Response,
+  caller: Request,
+  form: URLSearchParams,
+  ctx: SignInContext,
+): Response {
   const location = response.headers.get('location');
   if (!location || response.status < 300 || response.status >= 400) return response;
   const target = new URL(location);
@@ -63,10 +88,16 @@ function adaptRefusal(response: Response, caller: Request, form: URLSearchParams
   const code = target.searchParams.get('code') ?? '';
   const wantsHtml = (caller.headers.get('accept') ?? '').includes('text/html');
   if (!wantsHtml) {
-    const headers: Record<string, string> = ctx.retryAfterSeconds ? { 'retry-after': String(ctx.retryAfterSeconds) } : {};
+    const headers: Record<string, string> = ctx.retryAfterSeconds
+      ? { 'retry-after': String(ctx.retryAfterSeconds) }
+      : {};
     const refusal = refusals[code];
-    if (error === 'CredentialsSignin' && refusal) return problem(refusal.status, refusal.detail(ctx), { code }, headers);
-    if (error === 'MissingCSRF') return problem(403, 'The sign-in form has expired; fetch a new CSRF token and try again.', { code: 'csrf' });
+    if (error === 'CredentialsSignin' && refusal)
+      return problem(refusal.status, refusal.detail(ctx), { code }, headers);
+    if (error === 'MissingCSRF')
+      return problem(403, 'The sign-in form has expired; fetch a new CSRF token and try again.', {
+        code: 'csrf',
+      });
     return problem(400, 'The sign-in could not be completed.', { code: error });
   }
   const next = safeNext(form.get('callbackUrl'), '');
@@ -82,7 +113,10 @@ const handler: APIRoute = async (context) => {
   if (!actions.has(action)) return problem(404, 'No such sign-in endpoint.');
   const prepared = await forAuthCore(context.request);
   if (prepared instanceof Response) return prepared;
-  const ctx: SignInContext = { ip: clientAddressOf(context), userAgent: context.request.headers.get('user-agent') };
+  const ctx: SignInContext = {
+    ip: clientAddressOf(context),
+    userAgent: context.request.headers.get('user-agent'),
+  };
   const response = await runAuthCore(prepared.request, ctx);
   return action === 'callback' ? adaptRefusal(response, context.request, prepared.form, ctx) : response;
 };

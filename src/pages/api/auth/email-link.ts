@@ -26,5 +26,11 @@ export const POST: APIRoute = handle(async (context) => {
       { 'retry-after': String(result.retryAfterSeconds) },
     );
   }
-  return Response.json({ detail: 'If this address belongs to a homeowner or property manager we work for, a sign-in link is on its way.' }, { status: 202 });
+  return Response.json(
+    {
+      detail:
+        'If this address belongs to a homeowner or property manager we work for, a sign-in link is on its way.',
+    },
+    { status: 202 },
+  );
 });

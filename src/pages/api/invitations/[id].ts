@@ -9,6 +9,9 @@ import { revokeInvitation } from '@/lib/server/invitations';
 export const DELETE: APIRoute = handle(async (context) => {
   const { user, organisation } = requireRole(context.locals, 'owner');
   const id = found(idFromPath(context.params.id), 'That invitation');
-  found((await revokeInvitation(organisation.id, id, actorOf(user, context))) || null, 'That open invitation');
+  found(
+    (await revokeInvitation(organisation.id, id, actorOf(user, context))) || null,
+    'That open invitation',
+  );
   return new Response(null, { status: 204 });
 });

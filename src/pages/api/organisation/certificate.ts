@@ -12,7 +12,12 @@ import { actorOf } from '@/lib/server/http/actor';
 import { requireRole } from '@/lib/server/http/guard';
 import { readMultipart } from '@/lib/server/http/multipart';
 import { handle, HttpProblem } from '@/lib/server/http/problem';
-import { certificateOverview, MAX_CERTIFICATE_BYTES, removeSigningCertificate, uploadSigningCertificate } from '@/lib/server/signing-certificates';
+import {
+  certificateOverview,
+  MAX_CERTIFICATE_BYTES,
+  removeSigningCertificate,
+  uploadSigningCertificate,
+} from '@/lib/server/signing-certificates';
 
 /** The form is read up to this size; a certificate over MAX_CERTIFICATE_BYTES inside it gets a 422 naming the field. */
 const MAX_FORM_BYTES = 1024 * 1024;
@@ -33,7 +38,9 @@ export const PUT: APIRoute = handle(async (context) => {
   const passphrase = form.get('passphrase');
   const errors = [
     ...(file instanceof File ? [] : [{ field: 'certificate', message: 'choose the .p12 or .pfx file' }]),
-    ...(typeof passphrase === 'string' ? [] : [{ field: 'passphrase', message: "enter the certificate file's passphrase" }]),
+    ...(typeof passphrase === 'string'
+      ? []
+      : [{ field: 'passphrase', message: "enter the certificate file's passphrase" }]),
   ];
   if (errors.length) throw new HttpProblem(422, 'The certificate cannot be used.', { errors });
   const bytes = Buffer.from(await (file as File).arrayBuffer());

@@ -20,5 +20,7 @@ export const PATCH: APIRoute = handle(async (context) => {
   const { user, organisation } = requireRole(context.locals, 'owner');
   const id = found(idFromPath(context.params.id), 'That person');
   const patch = await parseBody(UserPatchSchema, context.request);
-  return Response.json(found(await updateUser(organisation.id, id, patch, actorOf(user, context)), 'That person'));
+  return Response.json(
+    found(await updateUser(organisation.id, id, patch, actorOf(user, context)), 'That person'),
+  );
 });

@@ -1,7 +1,14 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
-import { admitVerification, referenceOf, sha256Of, streamedSha256, verificationWaitMessage, verifyDocument } from '@/lib/server/document-verification';
+import {
+  admitVerification,
+  referenceOf,
+  sha256Of,
+  streamedSha256,
+  verificationWaitMessage,
+  verifyDocument,
+} from '@/lib/server/document-verification';
 import { readMultipart } from '@/lib/server/http/multipart';
 import { handle, HttpProblem, parseQuery, problem } from '@/lib/server/http/problem';
 
@@ -26,7 +33,12 @@ const tooLarge = () =>
 async function throttled(context: { clientAddress: string }): Promise<Response | null> {
   const admission = await admitVerification(clientAddressOf(context));
   if (admission.admitted) return null;
-  return problem(429, verificationWaitMessage(admission.retryAfterSeconds), {}, { 'retry-after': String(admission.retryAfterSeconds) });
+  return problem(
+    429,
+    verificationWaitMessage(admission.retryAfterSeconds),
+    {},
+    { 'retry-after': String(admission.retryAfterSeconds) },
+  );
 }
 
 /** Public: is this document id or SHA-256 an archived signed report? */
@@ -44,12 +56,16 @@ export const POST: APIRoute = handle(async (context) => {
   const { request } = context;
   const type = request.headers.get('content-type') ?? '';
   if (/^application\/pdf\b/i.test(type)) {
-    return Response.json(await verifyDocument({ sha256: await streamedSha256(request, MAX_PDF_BYTES, tooLarge) }));
+    return Response.json(
+      await verifyDocument({ sha256: await streamedSha256(request, MAX_PDF_BYTES, tooLarge) }),
+    );
   }
   const form = await readMultipart(request, MAX_PDF_BYTES, tooLarge);
   const file = form.get('file');
   if (!(file instanceof File) || file.size === 0) {
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field: 'file', message: 'choose the PDF to check' }] });
+    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
+      errors: [{ field: 'file', message: 'choose the PDF to check' }],
+    });
   }
   return Response.json(await verifyDocument({ sha256: sha256Of(new Uint8Array(await file.arrayBuffer())) }));
 });

@@ -3,7 +3,12 @@
  */
 import type { AssessmentInput } from '@/lib/rules';
 import { EUROPEAN_FIXTURES, euSlideGate, euSwingGate } from '../fixtures/european-powered-gate';
-import { NORTH_AMERICAN_FIXTURES, naSlideGate, naSwingGate, type RuleFixture } from '../fixtures/north-american-gate';
+import {
+  NORTH_AMERICAN_FIXTURES,
+  naSlideGate,
+  naSwingGate,
+  type RuleFixture,
+} from '../fixtures/north-american-gate';
 
 export interface FamilyFixtures {
   base: Record<'swing' | 'slide', () => AssessmentInput>;

@@ -9,7 +9,18 @@ import type { AssessmentInput, ForceTest, RulesetVersion } from '@/lib/rules';
 import { ENTRAPMENT_ZONES } from '@/lib/rules';
 import type { Prng } from './prng';
 
-const KINDS = ['swing', 'swing', 'swing', 'slide', 'slide', 'slide', 'barrier_arm', 'vertical_lift', 'vertical_pivot', 'overhead_pivot'] as const;
+const KINDS = [
+  'swing',
+  'swing',
+  'swing',
+  'slide',
+  'slide',
+  'slide',
+  'barrier_arm',
+  'vertical_lift',
+  'vertical_pivot',
+  'overhead_pivot',
+] as const;
 const DEVICE_TYPES = ['A', 'A', 'B1', 'B1', 'B2', 'B2', 'C', 'D', 'E'] as const;
 const LENGTH_UNITS: LengthUnit[] = ['mm', 'mm', 'in', 'ft', 'cm'];
 
@@ -31,7 +42,10 @@ function thresholdsByFact(version: RulesetVersion): Map<string, number[]> {
 const round = (value: number, decimals: number) => Math.round(value * 10 ** decimals) / 10 ** decimals;
 
 function measuredValue(rng: Prng, answerType: string, near: number[]) {
-  const base = near.length > 0 && rng.chance(0.6) ? rng.pick(near) * (0.8 + rng.next() * 0.4) : Math.exp(rng.next() * Math.log(5000));
+  const base =
+    near.length > 0 && rng.chance(0.6)
+      ? rng.pick(near) * (0.8 + rng.next() * 0.4)
+      : Math.exp(rng.next() * Math.log(5000));
   switch (answerType) {
     case 'length': {
       const unit = rng.pick(LENGTH_UNITS);
@@ -41,7 +55,9 @@ function measuredValue(rng: Prng, answerType: string, near: number[]) {
     case 'force':
       return measure('force', round(base, 1), 'N');
     case 'mass':
-      return rng.chance(0.5) ? measure('mass', round(base / 10, 1), 'kg') : measure('mass', round(base / 4.5, 1), 'lb');
+      return rng.chance(0.5)
+        ? measure('mass', round(base / 10, 1), 'kg')
+        : measure('mass', round(base / 4.5, 1), 'lb');
     case 'speed':
       return measure('speed', round(near.length ? base : rng.next(), 3), 'm/s');
     case 'count': {
@@ -74,7 +90,14 @@ function forceTest(rng: Prng, withSamples: boolean): ForceTest {
     const peak = 150 + rng.next() * 600;
     const samples = Array.from({ length: rate * 7 }, (_, i) => {
       const t = i / rate;
-      const f = t < 0.5 ? 0 : t < 1 ? peak * (t - 0.5) * 2 : t < 1.5 ? peak * (1.5 - t) * 2 + 20 : 20 * Math.max(0, 3 - t);
+      const f =
+        t < 0.5
+          ? 0
+          : t < 1
+            ? peak * (t - 0.5) * 2
+            : t < 1.5
+              ? peak * (1.5 - t) * 2 + 20
+              : 20 * Math.max(0, 3 - t);
       return { t: round(t, 4), f: round(f, 1) };
     });
     return { location: 'closing_edge', direction: 'closing', gapMm, samples };
@@ -123,9 +146,11 @@ export function generateInput(rng: Prng, version: RulesetVersion): AssessmentInp
 
   for (const q of version.questions) {
     if (!q.gateKinds.includes(kind) || rng.chance(0.12)) continue;
-    if (q.answerType === 'yes_no_na') input.answers![q.key] = { value: rng.pick(['yes', 'yes', 'yes', 'no', 'na'] as const) };
+    if (q.answerType === 'yes_no_na')
+      input.answers![q.key] = { value: rng.pick(['yes', 'yes', 'yes', 'no', 'na'] as const) };
     else if (q.answerType === 'choice') input.choices![q.key] = { value: rng.pick(q.options!).value };
-    else if (q.answerType === 'date' || q.answerType === 'text') input.choices![q.key] = { value: '2024-01-01' };
+    else if (q.answerType === 'date' || q.answerType === 'text')
+      input.choices![q.key] = { value: '2024-01-01' };
     else input.measurements![q.key] = measuredValue(rng, q.answerType, thresholds.get(`m.${q.key}`) ?? []);
   }
 
@@ -138,14 +163,19 @@ export function generateInput(rng: Prng, version: RulesetVersion): AssessmentInp
       monitored: rng.chance(0.7),
     }));
     input.entrapment = {
-      zones: Array.from({ length: zoneCount }, () => ({ zone: rng.pick(ENTRAPMENT_ZONES), direction: rng.pick(['closing', 'opening'] as const) })),
+      zones: Array.from({ length: zoneCount }, () => ({
+        zone: rng.pick(ENTRAPMENT_ZONES),
+        direction: rng.pick(['closing', 'opening'] as const),
+      })),
       devices,
     };
     if (rng.chance(0.05)) input.entrapment.edition = rng.pick(['pre-2016', '2016'] as const);
   }
   if (rng.chance(0.5)) {
     const withSamples = rng.chance(0.02);
-    input.forceTests = Array.from({ length: rng.int(1, 5) }, (_, i) => forceTest(rng, withSamples && i === 0));
+    input.forceTests = Array.from({ length: rng.int(1, 5) }, (_, i) =>
+      forceTest(rng, withSamples && i === 0),
+    );
   }
   if (kind === 'swing' && rng.chance(0.5)) {
     input.swingGeometry = {

@@ -34,7 +34,12 @@ export function applyPatch<T>(base: T, patch: Patch): T {
     }
     const current = out[key];
     const bothObjects =
-      typeof value === 'object' && value !== null && !Array.isArray(value) && typeof current === 'object' && current !== null && !Array.isArray(current);
+      typeof value === 'object' &&
+      value !== null &&
+      !Array.isArray(value) &&
+      typeof current === 'object' &&
+      current !== null &&
+      !Array.isArray(current);
     out[key] = bothObjects ? applyPatch(current, value as Patch) : structuredClone(value);
   }
   return out as T;

@@ -27,7 +27,10 @@ export function shippedRulesetFiles(): string[] {
 let cache: ShippedRuleset[] | null = null;
 
 export function shippedRulesets(): ShippedRuleset[] {
-  cache ??= shippedRulesetFiles().map((file) => ({ file: relative(RULESETS_DIR, file), ...loadRulesetFile(readFileSync(file, 'utf8'), file) }));
+  cache ??= shippedRulesetFiles().map((file) => ({
+    file: relative(RULESETS_DIR, file),
+    ...loadRulesetFile(readFileSync(file, 'utf8'), file),
+  }));
   return cache;
 }
 

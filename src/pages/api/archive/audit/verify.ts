@@ -23,5 +23,7 @@ const QuerySchema = z.strictObject({
 export const GET: APIRoute = handle(async ({ locals, url }) => {
   const { organisation } = requireRole(locals, ...auditReaders);
   const { anchor } = parseQuery(QuerySchema, url);
-  return Response.json(await verifyOrganisationTrail(organisation.id, undefined, anchor ? [parseAnchor(anchor)!] : []));
+  return Response.json(
+    await verifyOrganisationTrail(organisation.id, undefined, anchor ? [parseAnchor(anchor)!] : []),
+  );
 });

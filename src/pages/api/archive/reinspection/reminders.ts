@@ -8,6 +8,10 @@ import { queueReinspectionReminders } from '@/lib/server/reinspection-reminders'
 /** Queues reminder e-mails for gates due or overdue that have not had one for their due date. */
 export const POST: APIRoute = handle(async (context) => {
   const { user, organisation } = requireRole(context.locals, ...archiveReaders);
-  const outcome = await queueReinspectionReminders(organisation, { userId: user.id, label: user.email, ip: clientAddressOf(context) });
+  const outcome = await queueReinspectionReminders(organisation, {
+    userId: user.id,
+    label: user.email,
+    ip: clientAddressOf(context),
+  });
   return Response.json(outcome, { status: 202 });
 });

@@ -25,18 +25,34 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
   const id = found(idFromPath(params.id), 'That assessment');
   const assessment = found(await getAssessment(user, id), 'That assessment');
   const archivedKind =
-    assessment.status === 'signed' || assessment.status === 'superseded' ? 'signed_report' : assessment.status === 'awaiting_signature' ? 'signing_copy' : null;
+    assessment.status === 'signed' || assessment.status === 'superseded'
+      ? 'signed_report'
+      : assessment.status === 'awaiting_signature'
+        ? 'signing_copy'
+        : null;
   if (archivedKind) {
     const document = await latestDocument(db(), id, archivedKind);
     if (document) {
       return new Response(new Uint8Array(await documentBytes(document)), {
-        headers: pdfHeaders(document.filename, { etag: `"${document.sha256}"`, 'x-document-id': document.id, 'x-document-sha256': document.sha256 }),
+        headers: pdfHeaders(document.filename, {
+          etag: `"${document.sha256}"`,
+          'x-document-id': document.id,
+          'x-document-sha256': document.sha256,
+        }),
       });
     }
   }
   try {
-    const pdf = found(await renderAssessmentReport(user.organisationId, id, { kind: 'preview', documentId: 'preview (not archived)' }), 'That assessment');
-    return new Response(new Uint8Array(pdf), { headers: pdfHeaders(`gate-report-${id.slice(0, 8)}-preview.pdf`) });
+    const pdf = found(
+      await renderAssessmentReport(user.organisationId, id, {
+        kind: 'preview',
+        documentId: 'preview (not archived)',
+      }),
+      'That assessment',
+    );
+    return new Response(new Uint8Array(pdf), {
+      headers: pdfHeaders(`gate-report-${id.slice(0, 8)}-preview.pdf`),
+    });
   } catch (error) {
     if (error instanceof ReportNotReady) throw new HttpProblem(409, error.message);
     throw error;

@@ -15,7 +15,9 @@ import { SendForSignatureSchema, sendForSignature } from '@/lib/server/signing';
 export const POST: APIRoute = handle(async (context) => {
   const { user } = requireRole(context.locals, 'owner', 'office', 'auditor');
   const id = found(idFromPath(context.params.id), 'That assessment');
-  const hasBody = Number(context.request.headers.get('content-length') ?? 0) > 0 || context.request.headers.has('content-type');
+  const hasBody =
+    Number(context.request.headers.get('content-length') ?? 0) > 0 ||
+    context.request.headers.has('content-type');
   const body = hasBody ? await parseBody(SendForSignatureSchema, context.request) : {};
   const sent = await sendForSignature(user, id, {
     expiresInDays: body.expiresInDays,

@@ -14,6 +14,9 @@ import { handle } from '@/lib/server/http/problem';
 export const POST: APIRoute = handle(async (context) => {
   const { user } = requireRole(context.locals, ...assessmentWorkers);
   const id = found(idFromPath(context.params.id), 'That assessment');
-  const scored = found(await submitAssessment(user, id, ifMatchVersion(context.request), { ip: clientAddressOf(context) }), 'That assessment');
+  const scored = found(
+    await submitAssessment(user, id, ifMatchVersion(context.request), { ip: clientAddressOf(context) }),
+    'That assessment',
+  );
   return Response.json(scored, { headers: { etag: etagOf(scored.rowVersion) } });
 });

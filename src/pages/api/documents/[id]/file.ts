@@ -8,7 +8,10 @@ import { handle } from '@/lib/server/http/problem';
 /** The document's bytes, checked against its recorded SHA-256 on the way out. Never changes: immutable caching. */
 export const GET: APIRoute = handle(async ({ locals, params, request }) => {
   const { user } = requireRole(locals, ...assessmentReaders);
-  const document = found(await getDocument(user, found(idFromPath(params.id), 'That document')), 'That document');
+  const document = found(
+    await getDocument(user, found(idFromPath(params.id), 'That document')),
+    'That document',
+  );
   const etag = `"${document.sha256}"`;
   const headers = {
     'content-type': document.contentType,

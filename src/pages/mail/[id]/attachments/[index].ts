@@ -11,6 +11,9 @@ export const GET: APIRoute = async ({ params, locals }) => {
   if (!upstream || !attachment) return new Response('Not found', { status: 404 });
   const filename = (attachment.filename ?? `attachment-${index}`).replace(/[^\w.\- ]/g, '_');
   return new Response(upstream.body, {
-    headers: { 'content-type': attachment.contentType, 'content-disposition': `attachment; filename="${filename}"` },
+    headers: {
+      'content-type': attachment.contentType,
+      'content-disposition': `attachment; filename="${filename}"`,
+    },
   });
 };

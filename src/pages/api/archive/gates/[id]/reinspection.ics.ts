@@ -14,12 +14,21 @@ import { dueEventOf } from '@/lib/server/reinspection-reminders';
 export const GET: APIRoute = handle(async ({ locals, params }) => {
   const { organisation } = requireRole(locals, ...gateHistoryReaders);
   const id = idFromPath(params.id);
-  const due = found(id ? await reinspectionOfGate(organisation.id, id) : null, 'A re-inspection date for that gate');
+  const due = found(
+    id ? await reinspectionOfGate(organisation.id, id) : null,
+    'A re-inspection date for that gate',
+  );
   const event = dueEventOf(due, organisation.name);
   if (!event)
-    throw new HttpProblem(409, `That gate was withdrawn from service and awaits its fixes: ${AWAITING_FIXES_WORDS}, so it has no date for a calendar.`);
+    throw new HttpProblem(
+      409,
+      `That gate was withdrawn from service and awaits its fixes: ${AWAITING_FIXES_WORDS}, so it has no date for a calendar.`,
+    );
   const body = calendarOf([event], `${organisation.name}: re-inspection`);
   return new Response(body, {
-    headers: { 'content-type': 'text/calendar; charset=utf-8', 'content-disposition': `attachment; filename="reinspection-${event.date}.ics"` },
+    headers: {
+      'content-type': 'text/calendar; charset=utf-8',
+      'content-disposition': `attachment; filename="reinspection-${event.date}.ics"`,
+    },
   });
 });

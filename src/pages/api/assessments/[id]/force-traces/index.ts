@@ -14,11 +14,17 @@ const what = 'That assessment';
 
 const TraceQuerySchema = z.strictObject({
   itemKey: z.string().regex(ITEM_KEY_PATTERN, 'must be the key of a walk-through item'),
-  clientRef: z.string().regex(CLIENT_REF_PATTERN, "must be the device's id for the trace (a UUID)").optional(),
+  clientRef: z
+    .string()
+    .regex(CLIENT_REF_PATTERN, "must be the device's id for the trace (a UUID)")
+    .optional(),
   fileName: z.string().trim().max(200, 'must be at most 200 characters').optional(),
   location: z.enum(TRACE_LOCATIONS, `must be one of: ${TRACE_LOCATIONS.join(', ')}`),
   direction: z.enum(['closing', 'opening'], 'must be closing or opening'),
-  gapMm: z.coerce.number('must be a number').min(0, 'must not be negative').max(10_000, 'must be at most 10000 mm'),
+  gapMm: z.coerce
+    .number('must be a number')
+    .min(0, 'must not be negative')
+    .max(10_000, 'must be at most 10000 mm'),
 });
 
 export const GET: APIRoute = handle(async ({ locals, params }) => {
@@ -30,13 +36,19 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
 async function readCsv(request: Request): Promise<string> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^(text\/csv|text\/plain|application\/octet-stream)\b/i.test(type)) {
-    throw new HttpProblem(415, 'Send the force meter file as text/csv.', { errors: [{ field: 'csv', message: 'Content-Type must be text/csv' }] });
+    throw new HttpProblem(415, 'Send the force meter file as text/csv.', {
+      errors: [{ field: 'csv', message: 'Content-Type must be text/csv' }],
+    });
   }
   const tooLarge = () =>
-    new HttpProblem(413, `The file is larger than ${megabytes(MAX_TRACE_CSV_BYTES)}; export one measuring point per file.`, {
-      errors: [{ field: 'csv', message: `must be at most ${megabytes(MAX_TRACE_CSV_BYTES)}` }],
-      limitBytes: MAX_TRACE_CSV_BYTES,
-    });
+    new HttpProblem(
+      413,
+      `The file is larger than ${megabytes(MAX_TRACE_CSV_BYTES)}; export one measuring point per file.`,
+      {
+        errors: [{ field: 'csv', message: `must be at most ${megabytes(MAX_TRACE_CSV_BYTES)}` }],
+        limitBytes: MAX_TRACE_CSV_BYTES,
+      },
+    );
   return readBodyText(request, MAX_TRACE_CSV_BYTES, tooLarge);
 }
 
@@ -59,5 +71,8 @@ export const POST: APIRoute = handle(async ({ locals, params, request, url }) =>
     gapMm: query.gapMm,
     csv,
   });
-  return Response.json(trace, { status: created ? 201 : 200, headers: created ? {} : { [replayedHeader]: 'true' } });
+  return Response.json(trace, {
+    status: created ? 201 : 200,
+    headers: created ? {} : { [replayedHeader]: 'true' },
+  });
 });

@@ -25,7 +25,12 @@ export const GET: APIRoute = handle(async ({ locals, params, url, request }) => 
     });
   const file = found(await photoFile(user, assessmentId, photoId, size), what);
   const etag = `"${file.key}"`;
-  const headers = { 'content-type': file.contentType, etag, 'cache-control': 'private, max-age=31536000, immutable', 'x-content-type-options': 'nosniff' };
+  const headers = {
+    'content-type': file.contentType,
+    etag,
+    'cache-control': 'private, max-age=31536000, immutable',
+    'x-content-type-options': 'nosniff',
+  };
   if (request.headers.get('if-none-match') === etag) return new Response(null, { status: 304, headers });
   const stream = found(await storage().stream(file.key), what);
   return new Response(Readable.toWeb(stream) as ReadableStream, { headers });

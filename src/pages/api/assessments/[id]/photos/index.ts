@@ -15,7 +15,10 @@ const what = 'That assessment';
 const PhotoFieldsSchema = z
   .strictObject({
     itemKey: z.string().regex(ITEM_KEY_PATTERN, 'must be the key of a walk-through item'),
-    clientRef: z.string().regex(CLIENT_REF_PATTERN, "must be the device's id for the photo (a UUID)").optional(),
+    clientRef: z
+      .string()
+      .regex(CLIENT_REF_PATTERN, "must be the device's id for the photo (a UUID)")
+      .optional(),
     takenAt: z.iso.datetime({ offset: true, message: 'must be a date and time (ISO 8601)' }).optional(),
     caption: z.string().trim().max(300, 'must be at most 300 characters').optional(),
     // The camera's file before the phone reduced it: all three travel together.
@@ -29,7 +32,12 @@ const PhotoFieldsSchema = z
       .positive('must be more than 0')
       .max(2 ** 40, 'is too large')
       .optional(),
-    orientation: z.coerce.number().int().min(1, 'must be an EXIF orientation, 1 to 8').max(8, 'must be an EXIF orientation, 1 to 8').optional(),
+    orientation: z.coerce
+      .number()
+      .int()
+      .min(1, 'must be an EXIF orientation, 1 to 8')
+      .max(8, 'must be an EXIF orientation, 1 to 8')
+      .optional(),
   })
   .refine((f) => (f.sourceSha256 === undefined) === (f.sourceBytes === undefined), {
     message: 'send sourceSha256 and sourceBytes together',
@@ -54,9 +62,17 @@ export const POST: APIRoute = handle(async ({ locals, params, request }) => {
   const id = found(idFromPath(params.id), what);
   const form = await readMultipart(request, MAX_PHOTO_BYTES, tooLargeProblem);
   const file = form.get('photo');
-  if (!(file instanceof File)) throw new HttpProblem(422, 'Attach the photo.', { errors: [{ field: 'photo', message: 'is required (a file)' }] });
+  if (!(file instanceof File))
+    throw new HttpProblem(422, 'Attach the photo.', {
+      errors: [{ field: 'photo', message: 'is required (a file)' }],
+    });
   if (file.size > MAX_PHOTO_BYTES) throw tooLargeProblem(file.size);
-  const fields = parseValue(PhotoFieldsSchema, Object.fromEntries([...form.entries()].filter(([key, value]) => key !== 'photo' && typeof value === 'string')));
+  const fields = parseValue(
+    PhotoFieldsSchema,
+    Object.fromEntries(
+      [...form.entries()].filter(([key, value]) => key !== 'photo' && typeof value === 'string'),
+    ),
+  );
   const { photo, created } = await addPhoto(user, id, {
     itemKey: fields.itemKey,
     clientRef: uploadClientRef(request, fields.clientRef, CLIENT_REF_PATTERN),
@@ -65,7 +81,12 @@ export const POST: APIRoute = handle(async ({ locals, params, request }) => {
     fileName: file.name ? file.name.slice(0, 200) : null,
     bytes: Buffer.from(await file.arrayBuffer()),
     source:
-      fields.sourceSha256 && fields.sourceBytes ? { sha256: fields.sourceSha256, bytes: fields.sourceBytes, orientation: fields.orientation ?? null } : null,
+      fields.sourceSha256 && fields.sourceBytes
+        ? { sha256: fields.sourceSha256, bytes: fields.sourceBytes, orientation: fields.orientation ?? null }
+        : null,
   });
-  return Response.json(photo, { status: created ? 201 : 200, headers: { location: photo.displayUrl, ...(created ? {} : { [replayedHeader]: 'true' }) } });
+  return Response.json(photo, {
+    status: created ? 201 : 200,
+    headers: { location: photo.displayUrl, ...(created ? {} : { [replayedHeader]: 'true' }) },
+  });
 });
