@@ -33,8 +33,11 @@ import type { Actor } from './users';
 export const MAX_CERTIFICATE_BYTES = 64 * 1024;
 const MAX_PASSPHRASE_CHARS = 1024;
 const MIN_RSA_BITS = 2048;
-/** Common tools use 2,048 to 100,000; forge computes them in JavaScript. */
-const MAX_MAC_ITERATIONS = 600_000;
+/**
+ * Common tools use 2,048 to 100,000 (MAC, key and certificate encryption alike); forge spends
+ * about a second per 100,000 on the event loop, so more is refused. Inclusive limit.
+ */
+const MAX_KDF_ITERATIONS = 100_000;
 
 export interface SigningCertificateStatus extends CertificateFacts {
   source: 'uploaded' | 'generated';
@@ -125,6 +128,61 @@ export interface CheckedCertificate {
   chain: forge.pki.Certificate[];
 }
 
+/**
+ * The largest iteration count anywhere in a PKCS#12, nested contents included: the MAC's
+ * (MacData: mac, macSalt, iterations), each PKCS#12 PBE parameter set (salt, iterations) and each
+ * PBKDF2 parameter set (salt, iterationCount, …) of RFC 7292 / RFC 8018. All three are a SEQUENCE
+ * in which an INTEGER follows an OCTET STRING. Encapsulated contents (authSafe, SafeContents)
+ * sit in OCTET STRINGs and are parsed as DER where they parse. A count too long to read is
+ * Infinity.
+ */
+export function largestIterationCount(root: forge.asn1.Asn1): number {
+  const { Class, Type } = forge.asn1;
+  let largest = 0;
+  let visited = 0;
+  const visit = (node: forge.asn1.Asn1, depth: number): void => {
+    if (depth > 24 || ++visited > 20_000) {
+      largest = Infinity;
+      return;
+    }
+    if (typeof node.value === 'string') {
+      if (
+        node.tagClass === Class.UNIVERSAL &&
+        node.type === Type.OCTETSTRING &&
+        node.value.charCodeAt(0) === 0x30
+      ) {
+        let inner: forge.asn1.Asn1 | null = null;
+        try {
+          inner = forge.asn1.fromDer(forge.util.createBuffer(node.value), { strict: true });
+        } catch {
+          inner = null; // a salt or digest that merely starts like a SEQUENCE
+        }
+        if (inner) visit(inner, depth + 1);
+      }
+      return;
+    }
+    const children = node.value as forge.asn1.Asn1[];
+    for (let i = 0; i < children.length; i++) {
+      const child = children[i]!;
+      const before = children[i - 1];
+      if (
+        node.type === Type.SEQUENCE &&
+        child.tagClass === Class.UNIVERSAL &&
+        child.type === Type.INTEGER &&
+        before?.tagClass === Class.UNIVERSAL &&
+        before.type === Type.OCTETSTRING &&
+        typeof child.value === 'string'
+      ) {
+        const count = child.value.length > 4 ? Infinity : forge.asn1.derToInteger(child.value);
+        if (count > largest) largest = count;
+      }
+      visit(child, depth + 1);
+    }
+  };
+  visit(root, 0);
+  return largest;
+}
+
 /** Opens and checks an uploaded PKCS#12; throws 422 naming the field at fault. */
 export function checkPkcs12(bytes: Buffer, passphrase: string, now = new Date()): CheckedCertificate {
   if (bytes.length === 0) throw invalid('certificate', 'choose the .p12 or .pfx file');
@@ -140,19 +198,12 @@ export function checkPkcs12(bytes: Buffer, passphrase: string, now = new Date())
   } catch {
     throw invalid('certificate', 'is not a PKCS#12 (.p12 or .pfx) file');
   }
-  // PFX ::= SEQUENCE { version, authSafe, macData SEQUENCE { mac, macSalt, iterations } }:
-  // forge derives the MAC key in JavaScript, so an absurd iteration count would stall the server.
-  const iterations = ((asn1.value as forge.asn1.Asn1[])[2]?.value as forge.asn1.Asn1[] | undefined)?.[2];
-  const count =
-    iterations && typeof iterations.value === 'string'
-      ? iterations.value.length > 4
-        ? Infinity
-        : forge.asn1.derToInteger(iterations.value)
-      : 1;
-  if (count > MAX_MAC_ITERATIONS) {
+  // forge derives keys synchronously (the MAC key in JavaScript, PBKDF2 on the event loop), so
+  // an absurd iteration count anywhere in the file would stall the server: refuse it unopened.
+  if (largestIterationCount(asn1) > MAX_KDF_ITERATIONS) {
     throw invalid(
       'certificate',
-      `is protected with more than ${MAX_MAC_ITERATIONS} key-derivation iterations; export it again with fewer`,
+      `is protected with more than ${MAX_KDF_ITERATIONS} key-derivation iterations; export it again with fewer`,
     );
   }
   let p12: forge.pkcs12.Pkcs12Pfx;
