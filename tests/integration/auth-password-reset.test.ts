@@ -3,7 +3,7 @@
  * here from the mail catcher), the /signin/reset page sets a new password with it, and every
  * session of the person ends.
  */
-import { afterAll, describe, expect, inject, it } from 'vitest';
+import { afterAll, describe, expect, inject, it, vi } from 'vitest';
 import {
   anonymousClient,
   caughtMailIds,
@@ -209,15 +209,23 @@ describe('staff forgot password', () => {
     expect(await passwordWorks(org.auditor2.email, '1234567890')).toBe(true);
   });
 
-  it('stops after 5 requests for one address in 15 minutes, from any client address', async () => {
+  it('pauses one client after 5 requests for an address, while the person asks from elsewhere', async () => {
+    // Common practice, no source: 5 per (address, client) and 15 per address in 15 minutes.
     const org = await createOrganisation('reset-flood');
-    for (let i = 0; i < 5; i++) expect((await askForReset(org.office.email)).status).toBe(200);
-    const sixth = await askForReset(org.office.email);
+    const stranger = anonymousClient();
+    for (let i = 0; i < 5; i++) expect((await askForReset(org.office.email, stranger)).status).toBe(200);
+    const sixth = await askForReset(org.office.email, stranger);
     expect(sixth.status).toBe(429);
     expect(Number(sixth.headers.get('retry-after'))).toBeGreaterThan(0);
     expect(await sixth.text()).toContain('Too many reset links');
-    await new Promise((r) => setTimeout(r, 800));
-    expect(await resetMailsTo(org.office.email)).toBe(5);
+    expect((await askForReset(org.office.email)).status).toBe(200);
+    for (let i = 0; i < 9; i++) expect((await askForReset(org.office.email)).status).toBe(200);
+    expect((await askForReset(org.office.email)).status).toBe(429);
+    // Delivery through the outbox takes a moment under load.
+    await vi.waitFor(async () => expect(await resetMailsTo(org.office.email)).toBe(15), {
+      timeout: 30_000,
+      interval: 250,
+    });
   });
 
   it('stops one client address after 20 requests in 15 minutes, whatever addresses it names', async () => {

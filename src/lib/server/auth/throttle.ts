@@ -7,8 +7,9 @@
  *   guesses therefore pause the stranger, not the owner signing in from elsewhere. A success
  *   resets its pair's count (not the address's, so signing in to one's own account cannot
  *   unlock guessing at others).
- * - Link requests and staff password-reset requests (`reset_request`) count every request,
- *   so nobody can flood an inbox.
+ * - Link requests and staff password-reset requests (`reset_request`) count every request per
+ *   (account, address) pair, and more loosely per account from any address: a stranger asking
+ *   again and again for someone's link pauses the stranger, while nobody can flood an inbox.
  * - Public report checks (`verify`) count every check, per address only.
  */
 import type { Knex } from 'knex';
@@ -17,7 +18,10 @@ export type AttemptKind = 'password' | 'link_request' | 'link' | 'verify' | 'res
 
 export interface ThrottleLimits {
   windowMinutes: number;
+  /** Per account; for passwords and link requests per account and address together. */
   perAccount: number;
+  /** Per account from any address, where `perAccount` counts pairs (link requests). */
+  perAccountAnyAddress?: number;
   perAddress: number;
 }
 
@@ -26,7 +30,13 @@ export interface ThrottleLimits {
  * standard. For passwords `perAccount` counts per account and address together.
  */
 export const passwordLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
-export const linkRequestLimits: ThrottleLimits = { windowMinutes: 15, perAccount: 5, perAddress: 20 };
+/** Common practice, no source: 5 mails from one place, 15 to one inbox, per quarter hour. */
+export const linkRequestLimits: ThrottleLimits = {
+  windowMinutes: 15,
+  perAccount: 5,
+  perAccountAnyAddress: 15,
+  perAddress: 20,
+};
 /**
  * Public report checks (no account): generous for an office checking a batch of reports, tight
  * enough that nobody can keep the server hashing 30 MB uploads. Common practice, no source.
@@ -78,6 +88,14 @@ export async function checkThrottle(
   const limits = limitsOf(kind);
   if (email && limits.perAccount > 0) {
     const account = knex('sign_in_attempts').where({ kind, email });
+    if (limits.perAccountAnyAddress) {
+      const anywhere = verdict(
+        'account',
+        await freedAt(knex, account, limits.perAccountAnyAddress, limits.windowMinutes),
+      );
+      if (anywhere) return anywhere;
+      account.where((q) => (ip ? q.where('ip', ip) : q.whereNull('ip')));
+    }
     if (kind === 'password') {
       // Counted per account *and* address: a stranger's wrong guesses pause only the stranger,
       // never the owner signing in from elsewhere. A success resets that pair's count.
