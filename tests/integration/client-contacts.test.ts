@@ -133,6 +133,62 @@ describe('correcting a client', () => {
   });
 });
 
+describe('correcting a site or a gate', () => {
+  async function eventsFor(action: string, entityId: string) {
+    return testDb()('audit_events')
+      .where({ organisation_id: org.id, action, entity_id: entityId })
+      .select('detail', 'actor_user_id');
+  }
+
+  it('records each changed column with its old and new value, and nothing for a patch that changes nothing', async () => {
+    const site = await office.json('POST', '/api/sites', {
+      clientId: org.clientId,
+      addressLine1: '12 Quarry Lane',
+      city: 'Millbrook',
+      usageClass: 1,
+    });
+    expect(site.status).toBe(201);
+    const siteId = (await site.json()).id as string;
+    const gate = await office.json('POST', '/api/gates', {
+      siteId,
+      label: 'Front swing',
+      kind: 'swing',
+      leaves: 'double',
+      widthMm: 1800,
+    });
+    expect(gate.status).toBe(201);
+    const gateId = (await gate.json()).id as string;
+
+    const fixed = await office.json('PATCH', `/api/sites/${siteId}`, {
+      addressLine1: '21 Quarry Lane',
+      city: 'Millbrook',
+    });
+    expect(fixed.status).toBe(200);
+    const siteEvents = await eventsFor('site.updated', siteId);
+    expect(siteEvents).toHaveLength(1);
+    expect(siteEvents[0].actor_user_id).toBe(org.office.id);
+    // The unchanged city is not listed.
+    expect(siteEvents[0].detail.changes).toEqual({
+      address_line1: { from: '12 Quarry Lane', to: '21 Quarry Lane' },
+    });
+
+    expect((await office.json('PATCH', `/api/gates/${gateId}`, { widthMm: 2400 })).status).toBe(200);
+    const gateEvents = await eventsFor('gate.updated', gateId);
+    expect(gateEvents).toHaveLength(1);
+    expect(gateEvents[0].detail.changes.width_mm).toEqual({ from: 1800, to: 2400 });
+
+    expect((await office.json('PATCH', `/api/gates/${gateId}`, { widthMm: 2400 })).status).toBe(200);
+    expect(await eventsFor('gate.updated', gateId)).toHaveLength(1);
+
+    const owner = await signIn(org.owner.email, fixturePassword);
+    expect((await owner.fetch(`/api/sites/${siteId}`, { method: 'DELETE' })).status).toBe(204);
+    const deleted = await eventsFor('site.deleted', siteId);
+    expect(deleted).toHaveLength(1);
+    expect(deleted[0].detail.site).toMatchObject({ address_line1: '21 Quarry Lane' });
+    expect(deleted[0].detail.gatesDeleted).toEqual([{ id: gateId, label: 'Front swing' }]);
+  });
+});
+
 describe('choosing who receives the signing link', () => {
   it('sends the link only to the chosen recipient, stores it on the sign request and audits it', async () => {
     const target = await createOrganisation('contacts-sign');

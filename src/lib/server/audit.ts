@@ -41,6 +41,19 @@ function canonical(value: unknown): string {
   return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`).join(',')}}`;
 }
 
+/** The columns among `keys` whose stored value differs, each with its value before and after. */
+export function changedColumns(
+  before: Record<string, unknown>,
+  after: Record<string, unknown>,
+  keys: readonly string[],
+): Record<string, { from: unknown; to: unknown }> {
+  const changes: Record<string, { from: unknown; to: unknown }> = {};
+  for (const key of keys)
+    if (canonical(before[key]) !== canonical(after[key]))
+      changes[key] = { from: before[key] ?? null, to: after[key] ?? null };
+  return changes;
+}
+
 export function auditHash(prevHash: string, fields: StoredAuditFields): string {
   return createHash('sha256').update(prevHash).update('\n').update(canonical(fields)).digest('hex');
 }

@@ -14,6 +14,7 @@ import type {
   OperatorFacts,
 } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
+import { changedColumns, recordAudit } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -179,23 +180,48 @@ export async function createGate(viewer: SessionUser, input: GateCreate, knex: K
   });
 }
 
-export async function updateGate(viewer: SessionUser, id: string, patch: GatePatch): Promise<Gate | null> {
+/** Changes a gate; the columns that changed are recorded in the audit trail with old and new values. */
+export async function updateGate(
+  viewer: SessionUser,
+  id: string,
+  patch: GatePatch,
+  options: { ip?: string | null } = {},
+): Promise<Gate | null> {
   return db().transaction(async (trx) => {
-    const current = await trx('gates')
+    const before = await trx('gates')
       .where({ id, organisation_id: viewer.organisationId })
       .forUpdate()
-      .first<Pick<Gate, 'entered' | 'operator'> | undefined>('entered', 'operator');
-    if (!current) return null;
+      .first();
+    if (!before) return null;
     if (patch.siteId !== undefined) await assertSiteInOrganisation(trx, viewer, patch.siteId);
-    await trx('gates')
+    const values = toRow(patch, before);
+    const [after] = await trx('gates')
       .where({ id, organisation_id: viewer.organisationId })
-      .update({ ...toRow(patch, current), updated_at: trx.fn.now() });
+      .update({ ...values, updated_at: trx.fn.now() })
+      .returning('*');
+    const changes = changedColumns(before, after, Object.keys(values));
+    if (Object.keys(changes).length) {
+      await recordAudit(trx, {
+        organisationId: viewer.organisationId,
+        actorUserId: viewer.id,
+        actorLabel: viewer.email,
+        action: 'gate.updated',
+        entityType: 'gate',
+        entityId: id,
+        ip: options.ip ?? null,
+        detail: { changes },
+      });
+    }
     return getGate(viewer, id, trx);
   });
 }
 
 /** Deletes a gate; refused (409) while it has an assessment on record. */
-export async function deleteGate(viewer: SessionUser, id: string): Promise<boolean> {
+export async function deleteGate(
+  viewer: SessionUser,
+  id: string,
+  options: { ip?: string | null } = {},
+): Promise<boolean> {
   return db().transaction(async (trx) => {
     const gate = await trx('gates')
       .where({ id, organisation_id: viewer.organisationId })
@@ -211,7 +237,20 @@ export async function deleteGate(viewer: SessionUser, id: string): Promise<boole
         `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`,
       );
     }
-    await trx('gates').where({ organisation_id: viewer.organisationId, id }).delete();
+    const [removed] = await trx('gates')
+      .where({ organisation_id: viewer.organisationId, id })
+      .delete()
+      .returning('*');
+    await recordAudit(trx, {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      action: 'gate.deleted',
+      entityType: 'gate',
+      entityId: id,
+      ip: options.ip ?? null,
+      detail: { gate: removed },
+    });
     return true;
   });
 }

@@ -153,7 +153,7 @@ export function largestIterationCount(root: forge.asn1.Asn1): number {
       ) {
         let inner: forge.asn1.Asn1 | null = null;
         try {
-          inner = forge.asn1.fromDer(forge.util.createBuffer(node.value), { strict: true });
+          inner = forge.asn1.fromDer(forge.util.createBuffer(node.value), true);
         } catch {
           inner = null; // a salt or digest that merely starts like a SEQUENCE
         }

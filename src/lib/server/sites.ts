@@ -5,6 +5,7 @@
 import type { Knex } from 'knex';
 import type { Page } from '@/lib/api/common';
 import type { Site, SiteCreate, SiteListQuery, SitePatch } from '@/lib/api/sites';
+import { changedColumns, recordAudit } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -150,18 +151,48 @@ export async function createSite(viewer: SessionUser, input: SiteCreate, knex: K
   });
 }
 
-export async function updateSite(viewer: SessionUser, id: string, patch: SitePatch): Promise<Site | null> {
+/** Changes a site; the columns that changed are recorded in the audit trail with old and new values. */
+export async function updateSite(
+  viewer: SessionUser,
+  id: string,
+  patch: SitePatch,
+  options: { ip?: string | null } = {},
+): Promise<Site | null> {
   return db().transaction(async (trx) => {
     if (patch.clientId !== undefined) await assertClientInOrganisation(trx, viewer, patch.clientId);
-    const updated = await trx('sites')
+    const before = await trx('sites')
       .where({ id, organisation_id: viewer.organisationId })
-      .update({ ...toRow(patch), updated_at: trx.fn.now() });
-    return updated ? getSite(viewer, id, trx) : null;
+      .forUpdate()
+      .first();
+    if (!before) return null;
+    const values = toRow(patch);
+    const [after] = await trx('sites')
+      .where({ id, organisation_id: viewer.organisationId })
+      .update({ ...values, updated_at: trx.fn.now() })
+      .returning('*');
+    const changes = changedColumns(before, after, Object.keys(values));
+    if (Object.keys(changes).length) {
+      await recordAudit(trx, {
+        organisationId: viewer.organisationId,
+        actorUserId: viewer.id,
+        actorLabel: viewer.email,
+        action: 'site.updated',
+        entityType: 'site',
+        entityId: id,
+        ip: options.ip ?? null,
+        detail: { changes },
+      });
+    }
+    return getSite(viewer, id, trx);
   });
 }
 
 /** Deletes a site with its gates; refused (409) while any of its gates has an assessment. */
-export async function deleteSite(viewer: SessionUser, id: string): Promise<boolean> {
+export async function deleteSite(
+  viewer: SessionUser,
+  id: string,
+  options: { ip?: string | null } = {},
+): Promise<boolean> {
   return db().transaction(async (trx) => {
     const site = await trx('sites')
       .where({ id, organisation_id: viewer.organisationId })
@@ -179,8 +210,24 @@ export async function deleteSite(viewer: SessionUser, id: string): Promise<boole
         `A gate at this site has ${count} assessment(s) on record, and assessments are kept; the site cannot be deleted.`,
       );
     }
-    await trx('gates').where({ organisation_id: viewer.organisationId, site_id: id }).delete();
-    await trx('sites').where({ organisation_id: viewer.organisationId, id }).delete();
+    const gates = await trx('gates')
+      .where({ organisation_id: viewer.organisationId, site_id: id })
+      .delete()
+      .returning<{ id: string; label: string }[]>(['id', 'label']);
+    const [removed] = await trx('sites')
+      .where({ organisation_id: viewer.organisationId, id })
+      .delete()
+      .returning('*');
+    await recordAudit(trx, {
+      organisationId: viewer.organisationId,
+      actorUserId: viewer.id,
+      actorLabel: viewer.email,
+      action: 'site.deleted',
+      entityType: 'site',
+      entityId: id,
+      ip: options.ip ?? null,
+      detail: { site: removed, gatesDeleted: gates },
+    });
     return true;
   });
 }
