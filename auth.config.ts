@@ -95,6 +95,7 @@ export default defineConfig({
           name: user.name,
           email: user.email,
           sessionVersion: typeof sessionVersion === 'number' ? sessionVersion : undefined,
+          // Our own session id: auth core changes `jti` whenever it re-encodes the token, so it cannot name a session.
           sid: randomUUID(),
         };
       }

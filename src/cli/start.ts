@@ -1,6 +1,10 @@
 /**
  * `npm start`: database, migrations, rulesets, demo data, build, mail catcher and server,
  * in that order, then the URL and the demo sign-ins. Ctrl-C stops everything it started.
+ *
+ * Runs under plain node with tsx's loader (`node --import tsx`), not the `tsx` command: that
+ * command relays Ctrl-C to its child and kills it when it does not acknowledge within 30 ms,
+ * which could happen while this process waited on `pg_ctl stop`, leaving the database running.
  */
 import path from 'node:path';
 import { ensureDatabase, stopDatabase } from '../../db/launcher';

@@ -5,6 +5,9 @@
  * chunk and the React renderer, with every chunk they import statically; chunks the island
  * loads later (force-trace chart, swing geometry) are listed apart. The page's CSS is shown
  * for scale. Builds first when the build is stale.
+ *
+ * Keep the first figure small (React DOM is most of it): do not import zod, the engine's index or
+ * chart code into the island's first chunk; load such parts lazily after hydration.
  */
 import fs from 'node:fs';
 import path from 'node:path';

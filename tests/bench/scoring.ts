@@ -7,6 +7,13 @@
  * The ratio is conservative: the reference only evaluates conditions, while our figure is a
  * whole assessment (input parsing, calculators, conditions, HRN, area scores, input hash).
  * The conditions-only ratio compares like with like.
+ *
+ * On a shared host, memory-heavy work can run markedly slower for stretches of tens of seconds,
+ * so the bench prints the median of each stretch of 2,000 in run order. To compare two variants,
+ * interleave them in one process, each scoring its own copy of the inputs (whichever touches an
+ * input first pays its cache misses). Profile with `node --cpu-prof --import tsx
+ * tests/bench/scoring.ts` (the largest `.cpuprofile` is the main thread; the other is tsx's
+ * loader); for allocation, `HeapProfiler.startSampling` through `node:inspector`.
  */
 import { readFileSync } from 'node:fs';
 import { loadavg } from 'node:os';

@@ -82,6 +82,7 @@ function scoreWithHash(
   const rules = compiled.rules;
   const skipped = notApplicableAt(compiled, input);
   const findings = new Array<Finding>(rules.length);
+  // Indexed loops over rules and findings: for…of here called the array iterator and allocated per element.
   for (let i = 0; i < rules.length; i++)
     findings[i] = skipped[i] ?? evaluateRule(rules[i]!, facts, input, compiled, contradictions);
   const counts = {

@@ -42,7 +42,8 @@ interface Row {
 }
 
 /**
- * Splits the text into rows with papaparse (double quotes honoured: "0,005";"12,5"), fields
+ * Splits the text into rows with papaparse (chosen over csv-parse for its smaller browser build,
+ * as this also runs on the phone; double quotes honoured: "0,005";"12,5"), fields
  * trimmed, each with the line it starts on. Blank lines and lines starting with # are skipped.
  */
 function readRows(text: string, separator: string): Row[] {

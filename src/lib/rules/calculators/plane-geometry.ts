@@ -42,6 +42,7 @@ export function distanceToSegment(p: Point, a: Point, b: Point): number {
 /**
  * distanceToSegment on plain coordinates: the sweeps call it hundreds of times per gate, and
  * this form builds no point objects. Same arithmetic, in the same order, as the vector form.
+ * Math.hypot stays (rather than a hand-written square root) so results are bit-identical with it.
  */
 export function distanceToSegmentXY(
   px: number,
