@@ -3,6 +3,7 @@
  * `errors` and never a stack trace.
  */
 import { z } from 'zod';
+import { DomainError } from '../errors';
 import { readBodyText } from './body';
 
 export interface FieldError {
@@ -143,12 +144,36 @@ export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
       return await fn(context);
     } catch (error) {
       if (error instanceof HttpProblem) return error.toResponse();
+      if (error instanceof DomainError) return domainProblem(error);
       if (isDatabaseUnavailable(error))
         return problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' });
       console.error('[api] unhandled error', error);
       return problem(500, 'Something went wrong on our side.');
     }
   };
+}
+
+const domainStatus: Record<DomainError['kind'], number> = {
+  not_found: 404,
+  conflict: 409,
+  invalid_input: 422,
+  forbidden: 403,
+  corrupt_record: 500,
+};
+
+/**
+ * The one mapping from domain errors to RFC 9457 problems (pages use `domainStatus` through
+ * the same function). A corrupt record is logged with its reason and answered as a plain 500.
+ */
+export function domainProblem(error: DomainError): Response {
+  const status = domainStatus[error.kind];
+  if (error.kind === 'corrupt_record') {
+    console.error('[domain] corrupt record:', (error as DomainError & { reason: string }).reason);
+    return problem(status, error.message);
+  }
+  const errors =
+    'errors' in error ? { errors: (error as DomainError & { errors: FieldError[] }).errors } : {};
+  return problem(status, error.message, { ...error.details, ...errors });
 }
 
 /** Connection-level failures (server down, pool exhausted) rather than bad queries. */

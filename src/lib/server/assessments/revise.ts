@@ -6,10 +6,10 @@
  * revision (`discardAssessment`) puts the original back to signed.
  */
 import type { Knex } from 'knex';
-import { recordAudit } from './audit';
-import { db } from './db';
-import { HttpProblem } from './http/problem';
-import type { SessionUser } from './session-user';
+import { recordAudit } from '../audit';
+import { db } from '../db';
+import { HttpProblem } from '../http/problem';
+import type { SessionUser } from '../session-user';
 
 /** Copies every column of the child rows except their identity and creation time. */
 async function copyChildren(
