@@ -230,5 +230,11 @@ describe('the database keeps the record fixed', () => {
     const res = await owner.fetch(`/api/assessments/${id}/report.pdf`);
     expect(res.status).toBe(500);
     expect(res.headers.get('content-type')).toContain('application/problem+json');
+    expect((await res.json()).detail).toMatch(/damaged/);
+    const api = await owner.json('GET', `/api/assessments/${id}`);
+    expect(api.status).toBe(500);
+    const page = await owner.fetch(`/assessments/${id}`);
+    expect(page.status).toBe(500);
+    expect(await page.text()).toContain('This assessment cannot be shown');
   });
 });

@@ -16,7 +16,7 @@ import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
 import { mergeDocuments, type AssessmentDocuments } from '../assessment-input';
 import { recordAudit } from '../audit';
 import { db } from '../db';
-import { HttpProblem } from '../http/problem';
+import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
 import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
 import { parseScoredRecord } from './scored-record';
@@ -234,8 +234,8 @@ export async function getAssessment(
   return row ? toAssessment(row) : null;
 }
 
-function invalid(field: string, message: string): HttpProblem {
-  return new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field, message }] });
+function invalid(field: string, message: string): InvalidInputError {
+  return InvalidInputError.field(field, message);
 }
 
 /** The family's current version for this organisation: its own family of that name first, else the shipped one; the latest published. */
@@ -260,8 +260,7 @@ async function resolveAuditor(
   auditorId: string | undefined,
 ): Promise<string> {
   if (auditorId === undefined || auditorId === viewer.id) return viewer.id;
-  if (viewer.role === 'auditor')
-    throw new HttpProblem(403, 'An auditor starts assessments for themself only.');
+  if (viewer.role === 'auditor') throw new ForbiddenError('An auditor starts assessments for themself only.');
   const person = await knex('users')
     .where({ id: auditorId, organisation_id: viewer.organisationId, active: true })
     .whereIn('role', ['owner', 'office', 'auditor'])
@@ -328,14 +327,10 @@ export function assertEditable(
   expectedVersion: number | undefined,
 ): void {
   if (viewer.role === 'auditor' && current.auditor.id !== viewer.id) {
-    throw new HttpProblem(
-      403,
-      "This is another auditor's assessment; only they or the office may change it.",
-    );
+    throw new ForbiddenError("This is another auditor's assessment; only they or the office may change it.");
   }
   if (current.status !== 'draft') {
-    throw new HttpProblem(
-      409,
+    throw new ConflictError(
       `This assessment is ${current.status.replace('_', ' ')} and can no longer be changed.`,
       { current },
     );
@@ -345,9 +340,8 @@ export function assertEditable(
 }
 
 /** 409 for a change made against an older row version; carries the current state to merge with. */
-function staleProblem(current: Assessment, expectedVersion: number): HttpProblem {
-  return new HttpProblem(
-    409,
+function staleProblem(current: Assessment, expectedVersion: number): ConflictError {
+  return new ConflictError(
     `Someone saved this assessment after you read it (you sent version ${expectedVersion}; it is now at ${current.rowVersion}). Apply your change to the current state and send it again.`,
     { current },
   );
@@ -384,8 +378,7 @@ export async function patchAssessment(
     patch,
     await pinnedQuestions(knex, current.ruleset.versionId),
   );
-  if (!merged.ok)
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: merged.errors });
+  if (!merged.ok) throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
   const changes: Record<string, unknown> = {
     answers: JSON.stringify(merged.value.answers),
     measurements: JSON.stringify(merged.value.measurements),
@@ -433,7 +426,7 @@ export async function discardAssessment(
         .delete();
     } catch (error) {
       if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION)
-        throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
+        throw new ConflictError('This draft has photos or force traces attached; remove them first.');
       throw error;
     }
     const actor = {

@@ -25,3 +25,5 @@ export {
   type LockedAssessment,
 } from './transitions';
 export { reviseAssessment } from './revise';
+export { countAssessmentsOfGates } from './counts';
+export { organisationAssessments, organisationAssessmentsWithPlace } from './reads';

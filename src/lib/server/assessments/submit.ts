@@ -14,7 +14,7 @@ import { assertEditable, getAssessment, type RequestFacts } from './drafts';
 import { recordAudit } from '../audit';
 import { db } from '../db';
 import { getGate } from '../gates';
-import { HttpProblem } from '../http/problem';
+import { InvalidInputError } from '../errors';
 import type { SessionUser } from '../session-user';
 
 /** Engine input paths as the API names them (answers and choices are both `answers` here). */
@@ -69,16 +69,16 @@ export async function submitAssessment(
       current,
       content.questions,
     );
-    if (!built.ok)
-      throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: built.errors });
+    if (!built.ok) throw new InvalidInputError('The assessment is not ready to submit.', built.errors);
     let result;
     try {
       result = scoreParsed(built.value, { version: content, contentSha256 });
     } catch (error) {
       if (error instanceof AssessmentInputError) {
-        throw new HttpProblem(422, 'The assessment is not ready to submit.', {
-          errors: error.issues.map((i) => ({ field: apiField(i.path), message: i.message })),
-        });
+        throw new InvalidInputError(
+          'The assessment is not ready to submit.',
+          error.issues.map((i) => ({ field: apiField(i.path), message: i.message })),
+        );
       }
       throw error;
     }

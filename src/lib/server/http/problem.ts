@@ -161,19 +161,52 @@ const domainStatus: Record<DomainError['kind'], number> = {
   corrupt_record: 500,
 };
 
+/** What a page shows for a domain error: the status to answer with, the message, per-field errors. */
+export interface DomainErrorView {
+  status: number;
+  message: string;
+  errors: FieldError[];
+  details: Record<string, unknown>;
+}
+
 /**
- * The one mapping from domain errors to RFC 9457 problems (pages use `domainStatus` through
- * the same function). A corrupt record is logged with its reason and answered as a plain 500.
+ * The one mapping from domain errors to statuses and messages: API routes answer it as an
+ * RFC 9457 problem (`domainProblem`), Astro pages render it (`pageErrorOf`: a 404 page, a 409
+ * message, per-field messages in forms). A corrupt record is logged with its reason and shown
+ * as a plain server error.
  */
-export function domainProblem(error: DomainError): Response {
+export function domainErrorView(error: DomainError): DomainErrorView {
   const status = domainStatus[error.kind];
   if (error.kind === 'corrupt_record') {
     console.error('[domain] corrupt record:', (error as DomainError & { reason: string }).reason);
-    return problem(status, error.message);
+    return { status, message: error.message, errors: [], details: {} };
   }
-  const errors =
-    'errors' in error ? { errors: (error as DomainError & { errors: FieldError[] }).errors } : {};
-  return problem(status, error.message, { ...error.details, ...errors });
+  const errors = 'errors' in error ? (error as DomainError & { errors: FieldError[] }).errors : [];
+  return { status, message: error.message, errors, details: error.details };
+}
+
+export function domainProblem(error: DomainError): Response {
+  const view = domainErrorView(error);
+  return problem(view.status, view.message, {
+    ...view.details,
+    ...(view.errors.length ? { errors: view.errors } : {}),
+  });
+}
+
+/**
+ * For pages: the view of a domain error (or of an HttpProblem thrown by an edge helper); any
+ * other error is rethrown — a bug or an outage is not a message for the form.
+ */
+export function pageErrorOf(error: unknown): DomainErrorView {
+  if (error instanceof DomainError) return domainErrorView(error);
+  if (error instanceof HttpProblem)
+    return {
+      status: error.status,
+      message: error.message,
+      errors: (error.extra.errors as FieldError[] | undefined) ?? [],
+      details: {},
+    };
+  throw error;
 }
 
 /** Connection-level failures (server down, pool exhausted) rather than bad queries. */

@@ -9,7 +9,7 @@
 import type { CertificateFacts } from './certificate-facts';
 import { VERDICT_WORDS } from '@/lib/vocabulary';
 import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
-import { CorruptRecordError } from '../errors';
+import { ConflictError, CorruptRecordError } from '../errors';
 
 export { StoredResultSchema, type StoredFinding, type StoredResult };
 
@@ -137,7 +137,8 @@ export interface ReportModel extends ReportSource {
   otherPhotos: ReportPhoto[];
 }
 
-export class ReportNotReady extends Error {}
+/** Nothing to report yet (a draft): a conflict with the assessment's state, not a fault. */
+export class ReportNotReady extends ConflictError {}
 
 const bySeverity = (a: StoredFinding, b: StoredFinding) =>
   SEVERITY_ORDER.indexOf(a.severity) - SEVERITY_ORDER.indexOf(b.severity) || a.ruleId.localeCompare(b.ruleId);

@@ -8,7 +8,7 @@ import { recordAudit } from '../audit';
 import { linkOrigin } from '../auth/public-origin';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
-import { HttpProblem } from '../http/problem';
+import { ConflictError, ForbiddenError, InvalidInputError, NotFoundError } from '../errors';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import {
   loadFrozenAssessment,
@@ -47,12 +47,11 @@ export async function sendForSignature(
 ): Promise<SentForSignature> {
   const knex = db();
   const before = await loadFrozenAssessment(knex, viewer.organisationId, assessmentId);
-  if (!before) throw new HttpProblem(404, 'That assessment was not found.');
+  if (!before) throw new NotFoundError('That assessment');
   if (viewer.role === 'auditor' && before.auditorId !== viewer.id)
-    throw new HttpProblem(403, 'An auditor sends their own assessments only.');
+    throw new ForbiddenError('An auditor sends their own assessments only.');
   if (!before.record || !SENDABLE_STATUSES.includes(before.status)) {
-    throw new HttpProblem(
-      409,
+    throw new ConflictError(
       `Only a scored assessment can be sent for signature; this one is ${before.status.replace(/_/g, ' ')}.`,
     );
   }
@@ -61,21 +60,19 @@ export async function sendForSignature(
   const chosen = options.recipient?.trim() || null;
   const recipient = chosen ?? record.client.contactEmail;
   if (!recipient) {
-    throw new HttpProblem(422, 'The client has no contact e-mail address to send the link to.', {
-      errors: [
-        {
-          field: 'recipient',
-          message: 'choose who receives the link, or add the client’s e-mail address first',
-        },
-      ],
-    });
+    throw new InvalidInputError('The client has no contact e-mail address to send the link to.', [
+      {
+        field: 'recipient',
+        message: 'choose who receives the link, or add the client’s e-mail address first',
+      },
+    ]);
   }
   const documentId = randomUUID();
   const pdf = await renderAssessmentReport(viewer.organisationId, assessmentId, {
     kind: 'signing_copy',
     documentId,
   });
-  if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
+  if (!pdf) throw new NotFoundError('That assessment');
   const token = randomBytes(32).toString('base64url');
   const days = options.expiresInDays ?? SIGN_LINK_DEFAULT_DAYS;
   // Never the host the request names: see public-origin.ts.
@@ -88,7 +85,7 @@ export async function sendForSignature(
       !SENDABLE_STATUSES.includes(locked.status) ||
       locked.resultSha256 !== record.resultSha256
     ) {
-      throw new HttpProblem(409, 'The assessment changed while the report was being prepared. Try again.');
+      throw new ConflictError('The assessment changed while the report was being prepared. Try again.');
     }
     const document = await storeDocument(trx, {
       id: documentId,

@@ -12,6 +12,7 @@ import { chainHead, recordAnchor } from '../audit-anchors';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
+import { ConflictError, InvalidInputError, NotFoundError } from '../errors';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { signPdfWithCertificate } from '../pdf/digital-signature';
 import { signingCertificateFor } from '../signing-certificates';
@@ -70,11 +71,10 @@ export async function submitSignature(
     const state = stateOf(request);
     if (state !== 'ok' || !request) throw linkProblem(state === 'ok' ? 'unknown' : state);
     if (!assessment || assessment.status !== 'awaiting_signature')
-      throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
+      throw new ConflictError('This report is no longer waiting for a signature.');
     const shown = await trx('documents').where({ id: request.document_id }).first('sha256');
     if (!shown || shown.sha256 !== body.shownPdfSha256) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         'The report you are signing is not the one this link shows. Reload the page and read it again.',
         {
           errors: [{ field: 'shownPdfSha256', message: 'does not match the report for this link' }],
@@ -83,27 +83,29 @@ export async function submitSignature(
     }
     // The cautions of the frozen record: the ones the signing copy and page showed.
     const frozen = await loadFrozenAssessment(trx, assessment.organisationId, assessment.id);
-    if (!frozen?.record) throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
+    if (!frozen?.record) throw new ConflictError('This report is no longer waiting for a signature.');
     const { record } = frozen;
     const cautions = cautionsOf(record.result);
     const acknowledged = new Set(body.acknowledgedCautions);
     const missing = cautions.filter((c) => !acknowledged.has(c.ruleId));
     if (missing.length) {
-      throw new HttpProblem(422, 'Tick each caution to show you have read it.', {
-        errors: missing.map((c) => ({
+      throw new InvalidInputError(
+        'Tick each caution to show you have read it.',
+        missing.map((c) => ({
           field: `acknowledgedCautions.${c.ruleId}`,
           message: `not acknowledged: ${c.title}`,
         })),
-      });
+      );
     }
     const unknown = body.acknowledgedCautions.filter((id) => !cautions.some((c) => c.ruleId === id));
     if (unknown.length)
-      throw new HttpProblem(422, 'Some acknowledged cautions are not in this report.', {
-        errors: unknown.map((id) => ({
+      throw new InvalidInputError(
+        'Some acknowledged cautions are not in this report.',
+        unknown.map((id) => ({
           field: `acknowledgedCautions.${id}`,
           message: 'not a caution of this report',
         })),
-      });
+      );
 
     const imageKey = png ? (await storage().put(png, 'image/png')).key : null;
     const [signature] = await trx('signatures')
@@ -166,7 +168,7 @@ export async function submitSignature(
       },
       trx,
     );
-    if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
+    if (!pdf) throw new NotFoundError('That assessment');
     const signedPdf = await signPdfWithCertificate(pdf, certificate.p12, certificate.passphrase, {
       reason: `Gate safety assessment ${assessment.id}, acknowledged by ${body.name}`,
       name: record.organisation.name,
