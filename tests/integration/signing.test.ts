@@ -556,12 +556,16 @@ describe('who may see the report and send it', () => {
       colour: 'red',
     });
     expect(bad.status).toBe(422);
-    await testDb()('assessments').where({ id: assessment.assessmentId }).update({ status: 'draft' });
-    const draft = await office.json(
-      'POST',
-      `/api/assessments/${assessment.assessmentId}/send-for-signature`,
-      {},
-    );
+    // A submitted assessment never goes back to draft (the database refuses it): a new draft of the same gate.
+    const [unsent] = await testDb()('assessments')
+      .insert({
+        organisation_id: org.id,
+        gate_id: assessment.gateId,
+        ruleset_version_id: assessment.rulesetVersionId,
+        auditor_id: org.auditor.id,
+      })
+      .returning('id');
+    const draft = await office.json('POST', `/api/assessments/${unsent.id}/send-for-signature`, {});
     expect(draft.status).toBe(409);
     expect(draft.headers.get('content-type')).toBe('application/problem+json');
   });

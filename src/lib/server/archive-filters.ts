@@ -10,6 +10,7 @@
  * filter. Either way a rare word does not scan the organisation's whole history.
  */
 import type { Knex } from 'knex';
+import { organisationAssessmentsWithPlace } from './assessments';
 import type { ArchiveFilter } from '@/lib/api/archive';
 import { containsPattern } from './listing';
 
@@ -32,11 +33,7 @@ const FEW_GATES = 300;
 
 /** Every assessment of the organisation with its gate, site and client. */
 export function archiveBase(knex: Knex, organisationId: string): Knex.QueryBuilder {
-  return knex('assessments as a')
-    .join('gates as g', 'g.id', 'a.gate_id')
-    .join('sites as s', 's.id', 'g.site_id')
-    .join('clients as c', 'c.id', 's.client_id')
-    .where('a.organisation_id', organisationId);
+  return organisationAssessmentsWithPlace(knex, organisationId);
 }
 
 const uuidArray = (ids: string[]) => `{${ids.join(',')}}`;

@@ -5,6 +5,7 @@
  * separate call, so typing in the search box does not pay for counting.
  */
 import type { Knex } from 'knex';
+import { organisationAssessments } from './assessments';
 import type {
   ArchiveFilter,
   ArchiveItem,
@@ -249,10 +250,8 @@ export async function countArchive(
   const base = needsSite
     ? archiveBase(knex, organisationId)
     : filter.gateKind
-      ? knex('assessments as a')
-          .join('gates as g', 'g.id', 'a.gate_id')
-          .where('a.organisation_id', organisationId)
-      : knex('assessments as a').where('a.organisation_id', organisationId);
+      ? organisationAssessments(knex, organisationId).join('gates as g', 'g.id', 'a.gate_id')
+      : organisationAssessments(knex, organisationId);
   await applyArchiveFilter(base, knex, organisationId, filter, timeZone);
   const [{ total }] = (await base.count({ total: '*' })) as { total: string | number }[];
   return Number(total);

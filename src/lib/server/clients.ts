@@ -3,6 +3,7 @@
  * is scoped to the viewer's organisation; a homeowner sees only the client they belong to.
  */
 import type { Knex } from 'knex';
+import { countAssessmentsOfGates, loadFrozenAssessment } from './assessments';
 import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/api/clients';
 import type { Page } from '@/lib/api/common';
 import { recordAudit } from './audit';
@@ -229,10 +230,8 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
       .where({ organisation_id: viewer.organisationId, client_id: id });
     const gateIds = trx('gates').select('id').whereIn('site_id', siteIds);
     await trx('gates').whereIn('id', gateIds.clone()).forUpdate().select('id');
-    const [{ count: assessments }] = await trx('assessments')
-      .whereIn('gate_id', gateIds.clone())
-      .count<{ count: string }[]>({ count: '*' });
-    if (Number(assessments) > 0) {
+    const assessments = await countAssessmentsOfGates(trx, gateIds.clone());
+    if (assessments > 0) {
       throw new HttpProblem(
         409,
         `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`,
@@ -256,20 +255,18 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
 
 /**
  * The addresses the office may pick to receive an assessment's signing link: the client's
- * contact e-mail and the e-mails of the client's active sign-in accounts, without repeats.
+ * contact e-mail as frozen at submit and the e-mails of the client's active sign-in accounts,
+ * without repeats.
  */
 export async function signingContactsOfAssessment(
   organisationId: string,
   assessmentId: string,
   knex: Knex = db(),
 ): Promise<string[]> {
-  const client = await knex('assessments as a')
-    .join('gates as g', 'g.id', 'a.gate_id')
-    .join('sites as s', 's.id', 'g.site_id')
-    .join('clients as c', 'c.id', 's.client_id')
-    .where({ 'a.id': assessmentId, 'a.organisation_id': organisationId })
-    .first<{ id: string; contact_email: string | null } | undefined>('c.id', 'c.contact_email');
-  if (!client) return [];
+  // The client as frozen at submit: the link goes to whom the report was made for.
+  const frozen = await loadFrozenAssessment(knex, organisationId, assessmentId);
+  if (!frozen?.record) return [];
+  const client = { id: frozen.record.client.id, contact_email: frozen.record.client.contactEmail };
   const accounts = await knex('users')
     .where({ organisation_id: organisationId, client_id: client.id, active: true })
     .orderBy('email')

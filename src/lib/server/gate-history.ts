@@ -5,6 +5,7 @@
  * of each stored result it needs (area scores, failing rule ids), not whole results.
  */
 import type { Knex } from 'knex';
+import { organisationAssessments } from './assessments';
 import { archiveDateSql } from './archive-filters';
 import { db } from './db';
 import { iso } from './listing';
@@ -91,11 +92,11 @@ export async function gateHistory(
     );
   if (!gate) return null;
 
-  const rows = (await knex('assessments as a')
+  const rows = (await organisationAssessments(knex, organisationId)
     .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
     .join('rulesets as r', 'r.id', 'rv.ruleset_id')
     .join('users as u', 'u.id', 'a.auditor_id')
-    .where({ 'a.gate_id': gateId, 'a.organisation_id': organisationId })
+    .andWhere({ 'a.gate_id': gateId })
     .select(
       'a.id',
       knex.raw(`${archiveDateSql} as archive_date`),
@@ -125,7 +126,7 @@ export async function gateHistory(
 
   const scored = visits.filter((v) => v.areaScores !== null && v.status !== 'superseded');
   const lastVisit = scored.at(-1) ?? null;
-  const openFindings = lastVisit ? await openFindingsOf(knex, lastVisit, scored) : [];
+  const openFindings = lastVisit ? await openFindingsOf(knex, organisationId, lastVisit, scored) : [];
   return {
     gate: {
       id: gate.id,
@@ -145,9 +146,14 @@ export async function gateHistory(
   };
 }
 
-async function openFindingsOf(knex: Knex, last: GateVisit, scored: GateVisit[]): Promise<OpenFinding[]> {
-  const row = await knex('assessments')
-    .where({ id: last.assessmentId })
+async function openFindingsOf(
+  knex: Knex,
+  organisationId: string,
+  last: GateVisit,
+  scored: GateVisit[],
+): Promise<OpenFinding[]> {
+  const row = await organisationAssessments(knex, organisationId)
+    .andWhere({ 'a.id': last.assessmentId })
     .first<{ open: Omit<OpenFinding, 'failingSince' | 'visitsFailing'>[] | null }>(
       knex.raw(
         `jsonb_path_query_array(result, '$.findings[*] \\? (@.outcome == "fail" || @.outcome == "needs_info")') as open`,

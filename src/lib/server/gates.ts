@@ -4,6 +4,7 @@
  * the gates at their own client's sites.
  */
 import type { Knex } from 'knex';
+import { countAssessmentsOfGates } from './assessments';
 import type { Page } from '@/lib/api/common';
 import type {
   EnteredValue,
@@ -228,10 +229,8 @@ export async function deleteGate(
       .forUpdate()
       .first('id');
     if (!gate) return false;
-    const [{ count }] = await trx('assessments')
-      .where({ gate_id: id })
-      .count<{ count: string }[]>({ count: '*' });
-    if (Number(count) > 0) {
+    const count = await countAssessmentsOfGates(trx, [id]);
+    if (count > 0) {
       throw new HttpProblem(
         409,
         `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`,

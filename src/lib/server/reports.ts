@@ -1,11 +1,15 @@
 /**
  * Loads everything a report shows for one assessment (organisation-scoped) and renders it:
- * the stored result, the people, site and gate, the ruleset's identity and area titles, the
- * photos (display size, from file storage), force traces and swing geometry as recorded, and
- * for the final document the signing record. Nothing is re-scored here.
+ * the frozen record made at submit (result, people, site, gate, client, ruleset identity and
+ * area titles, observations), the photos (display size, from file storage) and force traces
+ * kept with the assessment, and for the final document the signing record. Nothing is
+ * re-scored and nothing is read from the live gate, site or client rows: a later edit of those
+ * belongs to the next assessment.
  */
 import type { Knex } from 'knex';
 import { db } from './db';
+import { loadFrozenAssessment, type ScoredRecord } from './assessments';
+import { addressLines } from './assessments/scored-record';
 import {
   buildReportModel,
   ReportNotReady,
@@ -22,104 +26,6 @@ import type { CertificateFacts } from './pdf/certificate-facts';
 
 export { ReportNotReady };
 
-interface AssessmentRow {
-  id: string;
-  organisation_id: string;
-  auditor_id: string;
-  status: string;
-  purpose: string;
-  visited_on: Date | null;
-  submitted_at: Date | null;
-  supersedes_id: string | null;
-  result: unknown;
-  result_sha256: string | null;
-  observations: Record<string, unknown> | null;
-  org_name: string;
-  org_time_zone: string;
-  org_display_units: 'imperial' | 'metric';
-  auditor_name: string;
-  auditor_email: string;
-  client_name: string;
-  client_contact_email: string | null;
-  site_name: string | null;
-  address_line1: string;
-  address_line2: string | null;
-  city: string;
-  region: string | null;
-  postal_code: string | null;
-  country: string;
-  usage_class: number | null;
-  gate_label: string;
-  gate_kind: string;
-  leaves: string;
-  opening_direction: string | null;
-  width_mm: number | null;
-  height_mm: number | null;
-  weight_kg: number | null;
-  ruleset_title: string;
-  ruleset_version: string;
-  ruleset_content_sha256: string;
-  ruleset_areas: unknown;
-}
-
-/** The assessment with its people, site, gate and ruleset, or null when not in the organisation. */
-export async function loadAssessmentForReport(
-  knex: Knex,
-  organisationId: string,
-  assessmentId: string,
-): Promise<AssessmentRow | null> {
-  const row = await knex('assessments as a')
-    .join('organisations as o', 'o.id', 'a.organisation_id')
-    .join('users as u', 'u.id', 'a.auditor_id')
-    .join('gates as g', 'g.id', 'a.gate_id')
-    .join('sites as s', 's.id', 'g.site_id')
-    .join('clients as c', 'c.id', 's.client_id')
-    .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
-    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
-    .where('a.organisation_id', organisationId)
-    .andWhere('a.id', assessmentId)
-    .first<AssessmentRow | undefined>(
-      'a.id',
-      'a.organisation_id',
-      'a.auditor_id',
-      'a.status',
-      'a.purpose',
-      'a.visited_on',
-      'a.submitted_at',
-      'a.supersedes_id',
-      'a.result',
-      'a.result_sha256',
-      'a.observations',
-      'o.name as org_name',
-      'o.time_zone as org_time_zone',
-      'o.display_units as org_display_units',
-      'u.name as auditor_name',
-      'u.email as auditor_email',
-      'c.name as client_name',
-      'c.contact_email as client_contact_email',
-      's.name as site_name',
-      's.address_line1',
-      's.address_line2',
-      's.city',
-      's.region',
-      's.postal_code',
-      's.country',
-      's.usage_class',
-      'g.label as gate_label',
-      'g.kind as gate_kind',
-      'g.leaves',
-      'g.opening_direction',
-      'g.width_mm',
-      'g.height_mm',
-      'g.weight_kg',
-      'r.title as ruleset_title',
-      'rv.version as ruleset_version',
-      'rv.content_sha256 as ruleset_content_sha256',
-      knex.raw(`rv.content -> 'areas' as ruleset_areas`),
-    );
-  return row ?? null;
-}
-
 function areaTitles(areas: unknown): Record<string, string> {
   const titles: Record<string, string> = {};
   if (Array.isArray(areas))
@@ -132,7 +38,7 @@ const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFi
 
 function swingGeometryOf(
   observations: Record<string, unknown> | null,
-  row: AssessmentRow,
+  gate: ScoredRecord['gate'],
 ): SwingGeometryMeasurements | null {
   const g = observations?.swingGeometry as Record<string, unknown> | undefined;
   if (!g) return null;
@@ -147,7 +53,7 @@ function swingGeometryOf(
   const values = fields.map((f) => num(g[f]));
   if (values.some((v) => v === null)) return null;
   const [aMm, bMm, bracketFromHingeMm, retractedLengthMm, strokeMm, targetOpeningDeg] = values as number[];
-  const leafWidthMm = row.width_mm ? (row.leaves === 'double' ? row.width_mm / 2 : row.width_mm) : null;
+  const leafWidthMm = gate.widthMm ? (gate.leaves === 'double' ? gate.widthMm / 2 : gate.widthMm) : null;
   return { aMm, bMm, bracketFromHingeMm, retractedLengthMm, strokeMm, targetOpeningDeg, leafWidthMm };
 }
 
@@ -163,9 +69,13 @@ function samplesOf(raw: unknown): Array<[number, number]> {
   return out;
 }
 
-async function forceTracesOf(knex: Knex, row: AssessmentRow): Promise<ReportForceTrace[]> {
+async function forceTracesOf(
+  knex: Knex,
+  assessmentId: string,
+  observations: Record<string, unknown>,
+): Promise<ReportForceTrace[]> {
   const rows = await knex('force_traces')
-    .where({ assessment_id: row.id })
+    .where({ assessment_id: assessmentId })
     .orderBy('created_at')
     .select('item_key', 'label', 'samples', 'evaluation');
   const traces: ReportForceTrace[] = rows.map((t) => {
@@ -181,8 +91,8 @@ async function forceTracesOf(knex: Knex, row: AssessmentRow): Promise<ReportForc
   });
   if (traces.length) return traces.filter((t) => t.samples.length >= 2);
   // No uploaded traces: plot the raw samples of force tests recorded in the observations.
-  const tests = Array.isArray(row.observations?.forceTests)
-    ? (row.observations.forceTests as Array<Record<string, unknown>>)
+  const tests = Array.isArray(observations.forceTests)
+    ? (observations.forceTests as Array<Record<string, unknown>>)
     : [];
   return tests
     .map((test, i) => ({
@@ -235,64 +145,63 @@ export interface ReportSigning {
   auditHead?: { eventId: number; hash: string } | null;
 }
 
-/** Everything the report of `assessmentId` shows, ready for the renderer. */
+/**
+ * Everything the report of `assessmentId` shows, ready for the renderer; null when it is not in
+ * the organisation. A draft has nothing to report (ReportNotReady); a damaged record throws
+ * CorruptRecordError.
+ */
 export async function loadReportSource(
   knex: Knex,
   organisationId: string,
   assessmentId: string,
   options: { kind: ReportKind; documentId: string; signing?: ReportSigning | null },
 ): Promise<ReportSource | null> {
-  const row = await loadAssessmentForReport(knex, organisationId, assessmentId);
-  if (!row) return null;
-  if (!row.result) throw new ReportNotReady('This assessment has not been scored yet; submit it first.');
-  const [photos, forceTraces] = await Promise.all([photosOf(knex, row.id), forceTracesOf(knex, row)]);
+  const frozen = await loadFrozenAssessment(knex, organisationId, assessmentId);
+  if (!frozen) return null;
+  if (!frozen.record) throw new ReportNotReady('This assessment has not been scored yet; submit it first.');
+  const { record } = frozen;
+  const [photos, forceTraces] = await Promise.all([
+    photosOf(knex, frozen.id),
+    forceTracesOf(knex, frozen.id, record.observations),
+  ]);
   return {
     documentId: options.documentId,
     kind: options.kind,
     generatedAt: new Date(),
     organisation: {
-      id: row.organisation_id,
-      name: row.org_name,
-      timeZone: row.org_time_zone,
-      displayUnits: row.org_display_units,
+      id: record.organisation.id,
+      name: record.organisation.name,
+      timeZone: frozen.timeZone,
+      displayUnits: frozen.displayUnits,
     },
     assessment: {
-      id: row.id,
-      purpose: row.purpose,
-      status: row.status,
-      visitedOn: row.visited_on,
-      submittedAt: row.submitted_at,
-      supersedesId: row.supersedes_id,
-      result: row.result,
-      resultSha256: row.result_sha256,
-      swingGeometry: swingGeometryOf(row.observations, row),
+      id: frozen.id,
+      purpose: record.purpose,
+      status: frozen.status,
+      visitedOn: record.visitedOn ? new Date(record.visitedOn) : null,
+      submittedAt: new Date(record.submittedAt),
+      supersedesId: frozen.supersedesId,
+      result: record.result,
+      resultSha256: record.resultSha256,
+      swingGeometry: swingGeometryOf(record.observations, record.gate),
     },
-    auditor: { name: row.auditor_name, email: row.auditor_email },
-    client: { name: row.client_name, contactEmail: row.client_contact_email },
-    site: {
-      name: row.site_name,
-      lines: [
-        row.address_line1,
-        row.address_line2,
-        [row.city, [row.region, row.postal_code].filter(Boolean).join(' ')].filter(Boolean).join(', '),
-        row.country,
-      ].filter((l): l is string => Boolean(l)),
-      usageClass: row.usage_class,
-    },
+    auditor: { name: record.auditor.name, email: record.auditor.email },
+    client: { name: record.client.name, contactEmail: record.client.contactEmail },
+    site: { name: record.site.name, lines: addressLines(record.site), usageClass: record.site.usageClass },
     gate: {
-      label: row.gate_label,
-      kind: row.gate_kind,
-      leaves: row.leaves,
-      openingDirection: row.opening_direction,
-      widthMm: row.width_mm,
-      heightMm: row.height_mm,
-      weightKg: row.weight_kg,
+      label: record.gate.label,
+      kind: record.gate.kind,
+      leaves: record.gate.leaves,
+      openingDirection: record.gate.openingDirection,
+      widthMm: record.gate.widthMm,
+      heightMm: record.gate.heightMm,
+      weightKg: record.gate.weightKg,
     },
     ruleset: {
-      title: row.ruleset_title,
-      version: row.ruleset_version,
-      contentSha256: row.ruleset_content_sha256,
-      areaTitles: areaTitles(row.ruleset_areas),
+      title: record.ruleset.title,
+      version: record.ruleset.version,
+      contentSha256: record.ruleset.contentSha256,
+      areaTitles: areaTitles(record.ruleset.areas),
     },
     photos,
     forceTraces,

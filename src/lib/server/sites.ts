@@ -3,6 +3,7 @@
  * A homeowner sees only the sites of the client they belong to.
  */
 import type { Knex } from 'knex';
+import { countAssessmentsOfGates } from './assessments';
 import type { Page } from '@/lib/api/common';
 import type { Site, SiteCreate, SiteListQuery, SitePatch } from '@/lib/api/sites';
 import { changedColumns, recordAudit } from './audit';
@@ -201,10 +202,8 @@ export async function deleteSite(
     if (!site) return false;
     const gateIds = trx('gates').select('id').where({ organisation_id: viewer.organisationId, site_id: id });
     await gateIds.clone().forUpdate();
-    const [{ count }] = await trx('assessments')
-      .whereIn('gate_id', gateIds.clone())
-      .count<{ count: string }[]>({ count: '*' });
-    if (Number(count) > 0) {
+    const count = await countAssessmentsOfGates(trx, gateIds.clone());
+    if (count > 0) {
       throw new HttpProblem(
         409,
         `A gate at this site has ${count} assessment(s) on record, and assessments are kept; the site cannot be deleted.`,

@@ -3,6 +3,7 @@
  * `errors` and never a stack trace.
  */
 import { z } from 'zod';
+import { DomainError } from '../errors';
 import { readBodyText } from './body';
 
 export interface FieldError {
@@ -143,12 +144,69 @@ export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
       return await fn(context);
     } catch (error) {
       if (error instanceof HttpProblem) return error.toResponse();
+      if (error instanceof DomainError) return domainProblem(error);
       if (isDatabaseUnavailable(error))
         return problem(503, 'The database is unavailable; try again shortly.', {}, { 'retry-after': '5' });
       console.error('[api] unhandled error', error);
       return problem(500, 'Something went wrong on our side.');
     }
   };
+}
+
+const domainStatus: Record<DomainError['kind'], number> = {
+  not_found: 404,
+  conflict: 409,
+  invalid_input: 422,
+  forbidden: 403,
+  corrupt_record: 500,
+};
+
+/** What a page shows for a domain error: the status to answer with, the message, per-field errors. */
+export interface DomainErrorView {
+  status: number;
+  message: string;
+  errors: FieldError[];
+  details: Record<string, unknown>;
+}
+
+/**
+ * The one mapping from domain errors to statuses and messages: API routes answer it as an
+ * RFC 9457 problem (`domainProblem`), Astro pages render it (`pageErrorOf`: a 404 page, a 409
+ * message, per-field messages in forms). A corrupt record is logged with its reason and shown
+ * as a plain server error.
+ */
+export function domainErrorView(error: DomainError): DomainErrorView {
+  const status = domainStatus[error.kind];
+  if (error.kind === 'corrupt_record') {
+    console.error('[domain] corrupt record:', (error as DomainError & { reason: string }).reason);
+    return { status, message: error.message, errors: [], details: {} };
+  }
+  const errors = 'errors' in error ? (error as DomainError & { errors: FieldError[] }).errors : [];
+  return { status, message: error.message, errors, details: error.details };
+}
+
+export function domainProblem(error: DomainError): Response {
+  const view = domainErrorView(error);
+  return problem(view.status, view.message, {
+    ...view.details,
+    ...(view.errors.length ? { errors: view.errors } : {}),
+  });
+}
+
+/**
+ * For pages: the view of a domain error (or of an HttpProblem thrown by an edge helper); any
+ * other error is rethrown — a bug or an outage is not a message for the form.
+ */
+export function pageErrorOf(error: unknown): DomainErrorView {
+  if (error instanceof DomainError) return domainErrorView(error);
+  if (error instanceof HttpProblem)
+    return {
+      status: error.status,
+      message: error.message,
+      errors: (error.extra.errors as FieldError[] | undefined) ?? [],
+      details: {},
+    };
+  throw error;
 }
 
 /** Connection-level failures (server down, pool exhausted) rather than bad queries. */

@@ -3,51 +3,19 @@
  * re-scored here), the organisation, site, gate, people, photos, force traces and, for the
  * final document, the signing record. Pure: loading is in src/lib/server/reports.ts.
  *
- * The stored result is read leniently (unknown fields ignored, odd values defaulted), so a
- * report of an old assessment still renders after the engine's result grows new fields.
+ * The stored result is read strictly (src/lib/rules/result-schema.ts): a malformed one is a
+ * CorruptRecordError, never a default, so a critical finding can never print as minor.
  */
-import { z } from 'zod';
 import type { CertificateFacts } from './certificate-facts';
 import { VERDICT_WORDS } from '@/lib/vocabulary';
+import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
+import { ConflictError, CorruptRecordError } from '../errors';
+
+export { StoredResultSchema, type StoredFinding, type StoredResult };
 
 const SEVERITY_ORDER = ['critical', 'major', 'minor'] as const;
 export type Severity = (typeof SEVERITY_ORDER)[number];
 export type Verdict = 'clear' | 'remedy' | 'withdraw';
-
-const StoredFindingSchema = z.object({
-  ruleId: z.string(),
-  title: z.string().catch('Untitled check'),
-  area: z.string().catch('other'),
-  severity: z.enum(SEVERITY_ORDER).catch('minor'),
-  outcome: z.enum(['pass', 'fail', 'n/a', 'needs_info']).catch('needs_info'),
-  missing: z.array(z.object({ key: z.string(), prompt: z.string().catch('') })).catch([]),
-  observed: z.record(z.string(), z.unknown()).catch({}),
-  params: z.record(z.string(), z.object({ value: z.unknown(), unit: z.string().optional() })).catch({}),
-  hrn: z.object({ value: z.number(), band: z.string() }).optional().catch(undefined),
-  remediation: z.string().catch(''),
-  caution: z.string().catch(''),
-  reference: z
-    .object({
-      standard: z.string().catch(''),
-      clause: z.string().catch(''),
-      note: z.string().optional(),
-    })
-    .catch({ standard: '', clause: '' }),
-});
-
-export const StoredResultSchema = z.object({
-  ruleset: z.object({
-    family: z.string(),
-    version: z.string(),
-    contentSha256: z.string(),
-  }),
-  verdict: z.enum(['clear', 'remedy', 'withdraw']),
-  complete: z.boolean().catch(true),
-  findings: z.array(StoredFindingSchema),
-  areaScores: z.record(z.string(), z.number().nullable()).catch({}),
-});
-export type StoredResult = z.infer<typeof StoredResultSchema>;
-export type StoredFinding = z.infer<typeof StoredFindingSchema>;
 
 export type ReportKind = 'preview' | 'signing_copy' | 'signed_report';
 
@@ -169,7 +137,8 @@ export interface ReportModel extends ReportSource {
   otherPhotos: ReportPhoto[];
 }
 
-export class ReportNotReady extends Error {}
+/** Nothing to report yet (a draft): a conflict with the assessment's state, not a fault. */
+export class ReportNotReady extends ConflictError {}
 
 const bySeverity = (a: StoredFinding, b: StoredFinding) =>
   SEVERITY_ORDER.indexOf(a.severity) - SEVERITY_ORDER.indexOf(b.severity) || a.ruleId.localeCompare(b.ruleId);
@@ -200,8 +169,19 @@ export function cautionsOf(result: StoredResult): ReportCaution[] {
 }
 
 export function buildReportModel(source: ReportSource): ReportModel {
+  if (source.assessment.result === null || source.assessment.result === undefined)
+    throw new ReportNotReady('This assessment has no stored scoring result to report on.');
   const parsed = StoredResultSchema.safeParse(source.assessment.result);
-  if (!parsed.success) throw new ReportNotReady('This assessment has no stored scoring result to report on.');
+  if (!parsed.success) {
+    const where = parsed.error.issues
+      .slice(0, 5)
+      .map((i) => `${i.path.join('.') || '(result)'}: ${i.message}`)
+      .join('; ');
+    throw new CorruptRecordError(
+      'The stored result of this assessment is damaged; the report cannot be made.',
+      `assessment ${source.assessment.id} result does not parse: ${where}`,
+    );
+  }
   const result = parsed.data;
   const claimed = new Set<ReportPhoto>();
   const failing = result.findings

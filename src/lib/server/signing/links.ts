@@ -8,14 +8,8 @@ import type { Knex } from 'knex';
 import { db } from '../db';
 import { documentById, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
-import {
-  cautionsOf,
-  StoredResultSchema,
-  verdictWords,
-  type ReportCaution,
-  type Verdict,
-} from '../pdf/report-model';
-import { loadAssessmentForReport } from '../reports';
+import { cautionsOf, verdictWords, type ReportCaution, type Verdict } from '../pdf/report-model';
+import { loadFrozenAssessment } from '../assessments';
 import { CONSENT_TEXT, INTENT_TEXT } from './schemas';
 
 export const tokenPattern = /^[A-Za-z0-9_-]{43}$/;
@@ -116,32 +110,32 @@ export async function describeSignLink(
   const request = await findRequest(knex, token, false);
   const state = stateOf(request);
   if (state !== 'ok' || !request) return { state: state === 'ok' ? 'unknown' : state };
-  const row = await loadAssessmentForReport(knex, request.organisation_id, request.assessment_id);
+  // The frozen record only: the page shows what was judged and sent, whatever changed since.
+  const frozen = await loadFrozenAssessment(knex, request.organisation_id, request.assessment_id);
   const document = await knex('documents').where({ id: request.document_id }).first('sha256');
-  const result = StoredResultSchema.safeParse(row?.result);
-  if (!row || !document || !result.success || row.status !== 'awaiting_signature')
-    return { state: 'unknown' };
-  const words = verdictWords[result.data.verdict];
+  if (!frozen?.record || !document || frozen.status !== 'awaiting_signature') return { state: 'unknown' };
+  const { record } = frozen;
+  const words = verdictWords[record.result.verdict];
   const order = ['critical', 'major', 'minor'];
   return {
     state: 'ok',
-    organisationName: row.org_name,
-    clientName: row.client_name,
+    organisationName: record.organisation.name,
+    clientName: record.client.name,
     recipientEmail: request.recipient_email,
-    gateLabel: row.gate_label,
-    siteLine: [row.site_name, row.address_line1, row.city].filter(Boolean).join(', '),
-    verdict: result.data.verdict,
+    gateLabel: record.gate.label,
+    siteLine: [record.site.name, record.site.addressLine1, record.site.city].filter(Boolean).join(', '),
+    verdict: record.result.verdict,
     verdictLabel: words.label,
     verdictHeadline: words.headline,
     verdictMeaning: words.meaning,
-    fixes: result.data.findings
+    fixes: record.result.findings
       .filter((f) => f.outcome === 'fail')
       .sort((a, b) => order.indexOf(a.severity) - order.indexOf(b.severity))
       .map((f) => ({ ruleId: f.ruleId, title: f.title, severity: f.severity, remediation: f.remediation })),
-    cautions: cautionsOf(result.data),
+    cautions: cautionsOf(record.result),
     documentSha256: document.sha256,
     expiresAt: new Date(request.expires_at).toISOString(),
-    auditorName: row.auditor_name,
+    auditorName: record.auditor.name,
     consentText: CONSENT_TEXT,
     intentText: INTENT_TEXT,
   };

@@ -8,10 +8,15 @@ import { recordAudit } from '../audit';
 import { linkOrigin } from '../auth/public-origin';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
-import { HttpProblem } from '../http/problem';
+import { ConflictError, ForbiddenError, InvalidInputError, NotFoundError } from '../errors';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
-import { StoredResultSchema, type Verdict } from '../pdf/report-model';
-import { loadAssessmentForReport, renderAssessmentReport } from '../reports';
+import {
+  loadFrozenAssessment,
+  lockAssessment,
+  markAwaitingSignature,
+  SENDABLE_STATUSES,
+} from '../assessments';
+import { renderAssessmentReport } from '../reports';
 import type { SessionUser } from '../session-user';
 import { hashToken } from './links';
 import { signRequestMail } from './mails';
@@ -31,8 +36,6 @@ export interface SentForSignature {
   outboxMessageId: string;
 }
 
-const statusesThatMaySend = ['scored', 'awaiting_signature'];
-
 /**
  * Renders and stores the copy for signature, opens a new single-use link (revoking any older
  * one), queues the e-mail and moves the assessment to `awaiting_signature`, in one transaction.
@@ -43,50 +46,46 @@ export async function sendForSignature(
   options: { expiresInDays?: number; recipient?: string } & RequestFacts,
 ): Promise<SentForSignature> {
   const knex = db();
-  const before = await loadAssessmentForReport(knex, viewer.organisationId, assessmentId);
-  if (!before) throw new HttpProblem(404, 'That assessment was not found.');
-  if (viewer.role === 'auditor' && before.auditor_id !== viewer.id)
-    throw new HttpProblem(403, 'An auditor sends their own assessments only.');
-  if (!statusesThatMaySend.includes(before.status)) {
-    throw new HttpProblem(
-      409,
+  const before = await loadFrozenAssessment(knex, viewer.organisationId, assessmentId);
+  if (!before) throw new NotFoundError('That assessment');
+  if (viewer.role === 'auditor' && before.auditorId !== viewer.id)
+    throw new ForbiddenError('An auditor sends their own assessments only.');
+  if (!before.record || !SENDABLE_STATUSES.includes(before.status)) {
+    throw new ConflictError(
       `Only a scored assessment can be sent for signature; this one is ${before.status.replace(/_/g, ' ')}.`,
     );
   }
+  // The record's people and places: what was judged, not what the rows say today.
+  const { record } = before;
   const chosen = options.recipient?.trim() || null;
-  const recipient = chosen ?? before.client_contact_email;
+  const recipient = chosen ?? record.client.contactEmail;
   if (!recipient) {
-    throw new HttpProblem(422, 'The client has no contact e-mail address to send the link to.', {
-      errors: [
-        {
-          field: 'recipient',
-          message: 'choose who receives the link, or add the client’s e-mail address first',
-        },
-      ],
-    });
+    throw new InvalidInputError('The client has no contact e-mail address to send the link to.', [
+      {
+        field: 'recipient',
+        message: 'choose who receives the link, or add the client’s e-mail address first',
+      },
+    ]);
   }
   const documentId = randomUUID();
   const pdf = await renderAssessmentReport(viewer.organisationId, assessmentId, {
     kind: 'signing_copy',
     documentId,
   });
-  if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
+  if (!pdf) throw new NotFoundError('That assessment');
   const token = randomBytes(32).toString('base64url');
   const days = options.expiresInDays ?? SIGN_LINK_DEFAULT_DAYS;
   // Never the host the request names: see public-origin.ts.
   const link = `${linkOrigin()}/sign/${token}`;
 
   const sent = await knex.transaction(async (trx) => {
-    const locked = await trx('assessments')
-      .where({ id: assessmentId, organisation_id: viewer.organisationId })
-      .forUpdate()
-      .first('status', 'result_sha256');
+    const locked = await lockAssessment(trx, assessmentId, viewer.organisationId);
     if (
       !locked ||
-      !statusesThatMaySend.includes(locked.status) ||
-      locked.result_sha256 !== before.result_sha256
+      !SENDABLE_STATUSES.includes(locked.status) ||
+      locked.resultSha256 !== record.resultSha256
     ) {
-      throw new HttpProblem(409, 'The assessment changed while the report was being prepared. Try again.');
+      throw new ConflictError('The assessment changed while the report was being prepared. Try again.');
     }
     const document = await storeDocument(trx, {
       id: documentId,
@@ -108,28 +107,22 @@ export async function sendForSignature(
         assessment_id: assessmentId,
         token_hash: hashToken(token),
         recipient_email: recipient,
-        recipient_name: before.client_name,
+        recipient_name: record.client.name,
         document_id: document.id,
         expires_at: trx.raw(`now() + (? * interval '1 day')`, [days]),
         created_by: viewer.id,
       })
       .returning(['id', 'expires_at']);
-    await trx('assessments')
-      .where({ id: assessmentId })
-      .update({
-        status: 'awaiting_signature',
-        row_version: trx.raw('row_version + 1'),
-        updated_at: trx.fn.now(),
-      });
+    await markAwaitingSignature(trx, assessmentId);
     const mail = signRequestMail({
-      organisationName: before.org_name,
-      clientName: before.client_name,
-      gateLabel: before.gate_label,
-      siteLine: [before.site_name, before.address_line1, before.city].filter(Boolean).join(', '),
-      verdict: (StoredResultSchema.safeParse(before.result).data?.verdict ?? 'remedy') as Verdict,
+      organisationName: record.organisation.name,
+      clientName: record.client.name,
+      gateLabel: record.gate.label,
+      siteLine: [record.site.name, record.site.addressLine1, record.site.city].filter(Boolean).join(', '),
+      verdict: record.result.verdict,
       link,
       expiresAt: new Date(request.expires_at),
-      timeZone: before.org_time_zone,
+      timeZone: before.timeZone,
     });
     const outboxMessageId = await enqueueMail(trx, {
       organisationId: viewer.organisationId,
@@ -153,7 +146,7 @@ export async function sendForSignature(
         signRequestId: request.id,
         recipient,
         recipientChosen: chosen !== null,
-        clientContactEmail: before.client_contact_email ?? null,
+        clientContactEmail: record.client.contactEmail ?? null,
         expiresAt: new Date(request.expires_at).toISOString(),
         documentId: document.id,
         documentSha256: document.sha256,

@@ -12,12 +12,14 @@ import { chainHead, recordAnchor } from '../audit-anchors';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
 import { HttpProblem } from '../http/problem';
+import { ConflictError, InvalidInputError, NotFoundError } from '../errors';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { signPdfWithCertificate } from '../pdf/digital-signature';
 import { signingCertificateFor } from '../signing-certificates';
 import { configuredOrigin } from '../auth/public-origin';
-import { cautionsOf, StoredResultSchema } from '../pdf/report-model';
-import { loadAssessmentForReport, renderAssessmentReport } from '../reports';
+import { cautionsOf } from '../pdf/report-model';
+import { loadFrozenAssessment, lockAssessment, markSigned } from '../assessments';
+import { renderAssessmentReport } from '../reports';
 import { storage } from '../storage';
 import { findRequest, linkProblem, stateOf, tokenPattern } from './links';
 import { signedReportMail } from './mails';
@@ -64,45 +66,46 @@ export async function submitSignature(
     // so a resend racing a signature waits instead of deadlocking.
     const unlocked = await findRequest(trx, token, false);
     if (!unlocked) throw linkProblem('unknown');
-    const assessment = await trx('assessments')
-      .where({ id: unlocked.assessment_id })
-      .forUpdate()
-      .first('id', 'status', 'result', 'organisation_id');
+    const assessment = await lockAssessment(trx, unlocked.assessment_id, null);
     const request = await findRequest(trx, token, true);
     const state = stateOf(request);
     if (state !== 'ok' || !request) throw linkProblem(state === 'ok' ? 'unknown' : state);
     if (!assessment || assessment.status !== 'awaiting_signature')
-      throw new HttpProblem(409, 'This report is no longer waiting for a signature.');
+      throw new ConflictError('This report is no longer waiting for a signature.');
     const shown = await trx('documents').where({ id: request.document_id }).first('sha256');
     if (!shown || shown.sha256 !== body.shownPdfSha256) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         'The report you are signing is not the one this link shows. Reload the page and read it again.',
         {
           errors: [{ field: 'shownPdfSha256', message: 'does not match the report for this link' }],
         },
       );
     }
-    const result = StoredResultSchema.parse(assessment.result);
-    const cautions = cautionsOf(result);
+    // The cautions of the frozen record: the ones the signing copy and page showed.
+    const frozen = await loadFrozenAssessment(trx, assessment.organisationId, assessment.id);
+    if (!frozen?.record) throw new ConflictError('This report is no longer waiting for a signature.');
+    const { record } = frozen;
+    const cautions = cautionsOf(record.result);
     const acknowledged = new Set(body.acknowledgedCautions);
     const missing = cautions.filter((c) => !acknowledged.has(c.ruleId));
     if (missing.length) {
-      throw new HttpProblem(422, 'Tick each caution to show you have read it.', {
-        errors: missing.map((c) => ({
+      throw new InvalidInputError(
+        'Tick each caution to show you have read it.',
+        missing.map((c) => ({
           field: `acknowledgedCautions.${c.ruleId}`,
           message: `not acknowledged: ${c.title}`,
         })),
-      });
+      );
     }
     const unknown = body.acknowledgedCautions.filter((id) => !cautions.some((c) => c.ruleId === id));
     if (unknown.length)
-      throw new HttpProblem(422, 'Some acknowledged cautions are not in this report.', {
-        errors: unknown.map((id) => ({
+      throw new InvalidInputError(
+        'Some acknowledged cautions are not in this report.',
+        unknown.map((id) => ({
           field: `acknowledgedCautions.${id}`,
           message: 'not a caution of this report',
         })),
-      });
+      );
 
     const imageKey = png ? (await storage().put(png, 'image/png')).key : null;
     const [signature] = await trx('signatures')
@@ -127,12 +130,13 @@ export async function submitSignature(
       .returning(['id', 'signed_at']);
     await trx('sign_requests').where({ id: request.id }).update({ used_at: trx.fn.now() });
 
-    const row = await loadAssessmentForReport(trx, request.organisation_id, request.assessment_id);
-    if (!row) throw new HttpProblem(404, 'That assessment was not found.');
     const signedAt = new Date(signature.signed_at);
     const documentId = randomUUID();
     // Chosen before rendering: the report names the certificate that signs it.
-    const certificate = await signingCertificateFor({ id: row.organisation_id, name: row.org_name }, trx);
+    const certificate = await signingCertificateFor(
+      { id: assessment.organisationId, name: record.organisation.name },
+      trx,
+    );
     // The trail's head goes into the signed PDF, so the file itself can later show a trail cut short.
     const auditHead = await chainHead(trx);
     const pdf = await renderAssessmentReport(
@@ -142,7 +146,7 @@ export async function submitSignature(
         kind: 'signed_report',
         documentId,
         signing: {
-          assessor: { name: row.auditor_name, signedAt: new Date(request.created_at) },
+          assessor: { name: record.auditor.name, signedAt: new Date(request.created_at) },
           owner: {
             name: body.name,
             email: request.recipient_email,
@@ -164,37 +168,30 @@ export async function submitSignature(
       },
       trx,
     );
-    if (!pdf) throw new HttpProblem(404, 'That assessment was not found.');
+    if (!pdf) throw new NotFoundError('That assessment');
     const signedPdf = await signPdfWithCertificate(pdf, certificate.p12, certificate.passphrase, {
-      reason: `Gate safety assessment ${row.id}, acknowledged by ${body.name}`,
-      name: row.org_name,
-      contactInfo: row.auditor_email,
-      location: [row.city, row.region].filter(Boolean).join(', '),
+      reason: `Gate safety assessment ${assessment.id}, acknowledged by ${body.name}`,
+      name: record.organisation.name,
+      contactInfo: record.auditor.email,
+      location: [record.site.city, record.site.region].filter(Boolean).join(', '),
       signingTime: signedAt,
     });
     const document = await storeDocument(trx, {
       id: documentId,
-      organisationId: row.organisation_id,
-      assessmentId: row.id,
+      organisationId: assessment.organisationId,
+      assessmentId: assessment.id,
       kind: 'signed_report',
       bytes: signedPdf,
-      filename: `gate-report-${row.id.slice(0, 8)}-signed.pdf`,
+      filename: `gate-report-${assessment.id.slice(0, 8)}-signed.pdf`,
       createdBy: null,
     });
     if (auditHead)
       await recordAnchor(trx, auditHead, {
-        organisationId: row.organisation_id,
+        organisationId: assessment.organisationId,
         kind: 'signed_report',
         reference: documentId,
       });
-    await trx('assessments')
-      .where({ id: row.id })
-      .update({
-        status: 'signed',
-        signed_at: signedAt,
-        row_version: trx.raw('row_version + 1'),
-        updated_at: trx.fn.now(),
-      });
+    await markSigned(trx, assessment.id, signedAt);
 
     const attachment = {
       filename: document.filename,
@@ -203,49 +200,49 @@ export async function submitSignature(
     };
     const ownerMail = signedReportMail({
       kind: 'owner',
-      organisationName: row.org_name,
-      gateLabel: row.gate_label,
+      organisationName: record.organisation.name,
+      gateLabel: record.gate.label,
       signerName: body.name,
       sha256: document.sha256,
       documentId,
     });
     await enqueueMail(trx, {
-      organisationId: row.organisation_id,
+      organisationId: assessment.organisationId,
       kind: 'signed_report',
       to: [request.recipient_email],
       subject: ownerMail.subject,
       text: ownerMail.text,
       attachments: [attachment],
       relatedType: 'assessment',
-      relatedId: row.id,
+      relatedId: assessment.id,
     });
-    const office = await organisationRecipients(trx, row.organisation_id);
+    const office = await organisationRecipients(trx, assessment.organisationId);
     if (office.length) {
       const copy = signedReportMail({
         kind: 'organisation',
-        organisationName: row.org_name,
-        gateLabel: row.gate_label,
+        organisationName: record.organisation.name,
+        gateLabel: record.gate.label,
         signerName: body.name,
         sha256: document.sha256,
         documentId,
       });
       await enqueueMail(trx, {
-        organisationId: row.organisation_id,
+        organisationId: assessment.organisationId,
         kind: 'signed_report_copy',
         to: office,
         subject: copy.subject,
         text: copy.text,
         attachments: [attachment],
         relatedType: 'assessment',
-        relatedId: row.id,
+        relatedId: assessment.id,
       });
     }
     await recordAudit(trx, {
-      organisationId: row.organisation_id,
+      organisationId: assessment.organisationId,
       actorLabel: `${body.name} <${request.recipient_email}> (signing link)`,
       action: 'assessment.signed',
       entityType: 'assessment',
-      entityId: row.id,
+      entityId: assessment.id,
       ip: facts.ip,
       detail: {
         signatureId: signature.id,
@@ -256,7 +253,12 @@ export async function submitSignature(
         documentSha256: document.sha256,
       },
     });
-    return { assessmentId: row.id, signatureId: signature.id, document, signedAt: signedAt.toISOString() };
+    return {
+      assessmentId: assessment.id,
+      signatureId: signature.id,
+      document,
+      signedAt: signedAt.toISOString(),
+    };
   });
   wakeOutboxWorker();
   return outcome;

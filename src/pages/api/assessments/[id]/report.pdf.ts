@@ -5,8 +5,8 @@ import { assessmentReaders } from '@/lib/server/domain-access';
 import { documentBytes, latestDocument } from '@/lib/server/documents';
 import { db } from '@/lib/server/db';
 import { found, requireRole } from '@/lib/server/http/guard';
-import { handle, HttpProblem } from '@/lib/server/http/problem';
-import { renderAssessmentReport, ReportNotReady } from '@/lib/server/reports';
+import { handle } from '@/lib/server/http/problem';
+import { renderAssessmentReport } from '@/lib/server/reports';
 
 const pdfHeaders = (filename: string, extra: Record<string, string> = {}) => ({
   'content-type': 'application/pdf',
@@ -42,19 +42,15 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
       });
     }
   }
-  try {
-    const pdf = found(
-      await renderAssessmentReport(user.organisationId, id, {
-        kind: 'preview',
-        documentId: 'preview (not archived)',
-      }),
-      'That assessment',
-    );
-    return new Response(new Uint8Array(pdf), {
-      headers: pdfHeaders(`gate-report-${id.slice(0, 8)}-preview.pdf`),
-    });
-  } catch (error) {
-    if (error instanceof ReportNotReady) throw new HttpProblem(409, error.message);
-    throw error;
-  }
+  // A draft is a ReportNotReady (409); a damaged record a CorruptRecordError (500): both mapped by handle().
+  const pdf = found(
+    await renderAssessmentReport(user.organisationId, id, {
+      kind: 'preview',
+      documentId: 'preview (not archived)',
+    }),
+    'That assessment',
+  );
+  return new Response(new Uint8Array(pdf), {
+    headers: pdfHeaders(`gate-report-${id.slice(0, 8)}-preview.pdf`),
+  });
 });

@@ -4,7 +4,7 @@ import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { handle } from '@/lib/server/http/problem';
-import { reviseAssessment } from '@/lib/server/revisions';
+import { reviseAssessment } from '@/lib/server/assessments';
 
 /**
  * Starts a correction of a signed assessment: a new draft copying its answers, photos and

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { idFromPath } from '@/lib/api/common';
-import { submitAssessment } from '@/lib/server/assessment-submission';
+import { submitAssessment } from '@/lib/server/assessments';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';

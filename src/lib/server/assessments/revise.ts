@@ -6,10 +6,10 @@
  * revision (`discardAssessment`) puts the original back to signed.
  */
 import type { Knex } from 'knex';
-import { recordAudit } from './audit';
-import { db } from './db';
-import { HttpProblem } from './http/problem';
-import type { SessionUser } from './session-user';
+import { recordAudit } from '../audit';
+import { db } from '../db';
+import { ConflictError, ForbiddenError, NotFoundError } from '../errors';
+import type { SessionUser } from '../session-user';
 
 /** Copies every column of the child rows except their identity and creation time. */
 async function copyChildren(
@@ -54,19 +54,16 @@ export async function reviseAssessment(
         'observations',
         'visited_on',
       );
-    if (!old) throw new HttpProblem(404, 'That assessment was not found.');
+    if (!old) throw new NotFoundError('That assessment');
     // Owner and office revise any report; an auditor only a report they walked themselves.
     if (viewer.role === 'auditor' && old.auditor_id !== viewer.id) {
-      throw new HttpProblem(
-        403,
+      throw new ForbiddenError(
         "This is another auditor's report; only they, the office or the owner may revise it.",
       );
     }
-    if (old.status === 'superseded')
-      throw new HttpProblem(409, 'This assessment already has a newer revision.');
+    if (old.status === 'superseded') throw new ConflictError('This assessment already has a newer revision.');
     if (old.status !== 'signed')
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         `Only a signed assessment is revised; this one is ${old.status.replace(/_/g, ' ')} and can be changed directly.`,
       );
     const [created] = await trx('assessments')

@@ -13,12 +13,13 @@ import type {
 } from '@/lib/api/assessments';
 import type { Page } from '@/lib/api/common';
 import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
-import { mergeDocuments, type AssessmentDocuments } from './assessment-input';
-import { recordAudit } from './audit';
-import { db } from './db';
-import { HttpProblem } from './http/problem';
-import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from './listing';
-import type { SessionUser } from './session-user';
+import { mergeDocuments, type AssessmentDocuments } from '../assessment-input';
+import { recordAudit } from '../audit';
+import { db } from '../db';
+import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
+import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
+import type { SessionUser } from '../session-user';
+import { parseScoredRecord } from './scored-record';
 
 /** Statuses a homeowner may see: the report has been sent to them. */
 const HOMEOWNER_VISIBLE = ['awaiting_signature', 'signed', 'superseded'] as const;
@@ -57,48 +58,57 @@ interface FullRow extends SummaryRow {
   measurements: Assessment['measurements'];
   observations: Assessment['observations'];
   gate_snapshot: unknown;
+  scored_record: unknown;
   result: unknown;
   result_sha256: string | null;
 }
 
-const summaryColumns = [
+/**
+ * Once submitted, what the assessment shows of its gate, site, client and ruleset is the frozen
+ * record's (scored-record.ts); a draft shows the live rows it will be scored against.
+ */
+const frozenOr = (path: string, live: string, alias: string, cast = '') =>
+  db().raw(`coalesce((a.scored_record #>> '{${path}}')${cast}, ${live}) as ${alias}`);
+
+const summaryColumns = () => [
   'a.id',
   'a.status',
   'a.purpose',
   'a.verdict',
   'a.row_version',
   'a.gate_id',
-  'g.label as gate_label',
-  'g.kind as gate_kind',
-  's.id as site_id',
-  's.name as site_name',
-  's.address_line1 as site_address_line1',
-  's.city as site_city',
-  's.usage_class as site_usage_class',
-  'c.id as client_id',
-  'c.name as client_name',
+  frozenOr('gate,label', 'g.label', 'gate_label'),
+  frozenOr('gate,kind', 'g.kind', 'gate_kind'),
+  frozenOr('site,id', 's.id::text', 'site_id'),
+  frozenOr('site,name', 's.name', 'site_name'),
+  frozenOr('site,addressLine1', 's.address_line1', 'site_address_line1'),
+  frozenOr('site,city', 's.city', 'site_city'),
+  frozenOr('site,usageClass', 's.usage_class', 'site_usage_class', '::int'),
+  frozenOr('client,id', 'c.id::text', 'client_id'),
+  frozenOr('client,name', 'c.name', 'client_name'),
   'a.auditor_id',
   'u.name as auditor_name',
   'a.ruleset_version_id',
   'r.family as ruleset_family',
   'rv.version as ruleset_version',
-  'r.title as ruleset_title',
+  frozenOr('ruleset,title', 'r.title', 'ruleset_title'),
   'a.visited_on',
   'a.submitted_at',
   'a.signed_at',
   'a.created_at',
   'a.updated_at',
-] as const;
+];
 
-const fullColumns = [
-  ...summaryColumns,
+const fullColumns = () => [
+  ...summaryColumns(),
   'a.answers',
   'a.measurements',
   'a.observations',
   'a.gate_snapshot',
+  'a.scored_record',
   'a.result',
   'a.result_sha256',
-] as const;
+];
 
 const sortColumns: Record<AssessmentListQuery['sort']['field'], string> = {
   visitedOn: 'a.visited_on',
@@ -140,15 +150,30 @@ function toSummary(row: SummaryRow): AssessmentSummary {
   };
 }
 
+/** A submitted assessment's documents and result come from its frozen record, parsed strictly. */
 function toAssessment(row: FullRow): Assessment {
+  const summary = toSummary(row);
+  if (row.status === 'draft') {
+    return {
+      ...summary,
+      answers: row.answers ?? {},
+      measurements: row.measurements ?? {},
+      observations: row.observations ?? {},
+      gateSnapshot: null,
+      result: null,
+      resultSha256: null,
+    };
+  }
+  const record = parseScoredRecord(row.id, row.scored_record);
   return {
-    ...toSummary(row),
-    answers: row.answers ?? {},
-    measurements: row.measurements ?? {},
-    observations: row.observations ?? {},
-    gateSnapshot: row.gate_snapshot,
-    result: row.result,
-    resultSha256: row.result_sha256,
+    ...summary,
+    answers: record.answers as Assessment['answers'],
+    measurements: record.measurements as Assessment['measurements'],
+    observations: record.observations as Assessment['observations'],
+    gateSnapshot: { ...record.gate, site: record.site, client: record.client },
+    // As stored (parsed above only to prove it sound): the engine's fields the schema does not name stay.
+    result: (row.scored_record as { result: unknown }).result,
+    resultSha256: record.resultSha256,
   };
 }
 
@@ -189,7 +214,7 @@ export async function listAssessments(
   return fetchPage<SummaryRow, AssessmentSummary>(
     {
       base,
-      columns: summaryColumns,
+      columns: summaryColumns(),
       order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
       idColumn: 'a.id',
       map: toSummary,
@@ -205,12 +230,12 @@ export async function getAssessment(
 ): Promise<Assessment | null> {
   const row = await visibleAssessments(knex, viewer)
     .andWhere('a.id', id)
-    .first<FullRow | undefined>(fullColumns);
+    .first<FullRow | undefined>(fullColumns());
   return row ? toAssessment(row) : null;
 }
 
-function invalid(field: string, message: string): HttpProblem {
-  return new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field, message }] });
+function invalid(field: string, message: string): InvalidInputError {
+  return InvalidInputError.field(field, message);
 }
 
 /** The family's current version for this organisation: its own family of that name first, else the shipped one; the latest published. */
@@ -235,8 +260,7 @@ async function resolveAuditor(
   auditorId: string | undefined,
 ): Promise<string> {
   if (auditorId === undefined || auditorId === viewer.id) return viewer.id;
-  if (viewer.role === 'auditor')
-    throw new HttpProblem(403, 'An auditor starts assessments for themself only.');
+  if (viewer.role === 'auditor') throw new ForbiddenError('An auditor starts assessments for themself only.');
   const person = await knex('users')
     .where({ id: auditorId, organisation_id: viewer.organisationId, active: true })
     .whereIn('role', ['owner', 'office', 'auditor'])
@@ -303,14 +327,10 @@ export function assertEditable(
   expectedVersion: number | undefined,
 ): void {
   if (viewer.role === 'auditor' && current.auditor.id !== viewer.id) {
-    throw new HttpProblem(
-      403,
-      "This is another auditor's assessment; only they or the office may change it.",
-    );
+    throw new ForbiddenError("This is another auditor's assessment; only they or the office may change it.");
   }
   if (current.status !== 'draft') {
-    throw new HttpProblem(
-      409,
+    throw new ConflictError(
       `This assessment is ${current.status.replace('_', ' ')} and can no longer be changed.`,
       { current },
     );
@@ -320,9 +340,8 @@ export function assertEditable(
 }
 
 /** 409 for a change made against an older row version; carries the current state to merge with. */
-function staleProblem(current: Assessment, expectedVersion: number): HttpProblem {
-  return new HttpProblem(
-    409,
+function staleProblem(current: Assessment, expectedVersion: number): ConflictError {
+  return new ConflictError(
     `Someone saved this assessment after you read it (you sent version ${expectedVersion}; it is now at ${current.rowVersion}). Apply your change to the current state and send it again.`,
     { current },
   );
@@ -359,8 +378,7 @@ export async function patchAssessment(
     patch,
     await pinnedQuestions(knex, current.ruleset.versionId),
   );
-  if (!merged.ok)
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', { errors: merged.errors });
+  if (!merged.ok) throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
   const changes: Record<string, unknown> = {
     answers: JSON.stringify(merged.value.answers),
     measurements: JSON.stringify(merged.value.measurements),
@@ -408,7 +426,7 @@ export async function discardAssessment(
         .delete();
     } catch (error) {
       if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION)
-        throw new HttpProblem(409, 'This draft has photos or force traces attached; remove them first.');
+        throw new ConflictError('This draft has photos or force traces attached; remove them first.');
       throw error;
     }
     const actor = {

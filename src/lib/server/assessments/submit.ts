@@ -1,19 +1,21 @@
 /**
- * Submitting a draft: in one transaction, lock the draft, build the engine input from the gate
- * as it stands, its site and the draft's documents, score it with the pinned ruleset version,
- * and store the result, its SHA-256, the verdict and a snapshot of the gate, with an audit
- * event. The stored result is what the report renders from, forever.
+ * Submitting a draft: in one transaction, lock the draft, then the gate, its site and client
+ * (shared, so none can change until the commit), build the engine input from the gate as it
+ * stands, its site and the draft's documents, score it with the pinned ruleset version, and
+ * store the result, its SHA-256 and the verdict, with an audit event. The same UPDATE makes
+ * the database freeze the scored record (gate, site, client, people, ruleset, documents and
+ * result; see scored-record.ts), which is what every report renders from, forever.
  */
 import type { Assessment } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { AssessmentInputError, resultSha256, scoreParsed, type RulesetVersion } from '@/lib/rules';
-import { buildEngineInput } from './assessment-input';
-import { assertEditable, getAssessment, type RequestFacts } from './assessments';
-import { recordAudit } from './audit';
-import { db } from './db';
-import { getGate } from './gates';
-import { HttpProblem } from './http/problem';
-import type { SessionUser } from './session-user';
+import { buildEngineInput } from '../assessment-input';
+import { assertEditable, getAssessment, type RequestFacts } from './drafts';
+import { recordAudit } from '../audit';
+import { db } from '../db';
+import { getGate } from '../gates';
+import { InvalidInputError } from '../errors';
+import type { SessionUser } from '../session-user';
 
 /** Engine input paths as the API names them (answers and choices are both `answers` here). */
 function apiField(path: string): string {
@@ -38,8 +40,14 @@ export async function submitAssessment(
     if (!current) return null;
     assertEditable(viewer, current, expectedVersion);
 
+    // Locked before reading: what is scored is what the record freezes at the UPDATE below.
+    await trx('gates as g')
+      .join('sites as s', 's.id', 'g.site_id')
+      .join('clients as c', 'c.id', 's.client_id')
+      .where('g.id', current.gate.id)
+      .forShare('g', 's', 'c')
+      .first('g.id');
     const gate = (await getGate(viewer, current.gate.id, trx)) as Gate;
-    await trx('gates').where({ id: gate.id }).forShare().first('id');
     const site = await trx('sites')
       .where({ id: gate.siteId })
       .first<{ usage_class: number; address_line1: string; city: string; name: string | null }>(
@@ -61,31 +69,20 @@ export async function submitAssessment(
       current,
       content.questions,
     );
-    if (!built.ok)
-      throw new HttpProblem(422, 'The assessment is not ready to submit.', { errors: built.errors });
+    if (!built.ok) throw new InvalidInputError('The assessment is not ready to submit.', built.errors);
     let result;
     try {
       result = scoreParsed(built.value, { version: content, contentSha256 });
     } catch (error) {
       if (error instanceof AssessmentInputError) {
-        throw new HttpProblem(422, 'The assessment is not ready to submit.', {
-          errors: error.issues.map((i) => ({ field: apiField(i.path), message: i.message })),
-        });
+        throw new InvalidInputError(
+          'The assessment is not ready to submit.',
+          error.issues.map((i) => ({ field: apiField(i.path), message: i.message })),
+        );
       }
       throw error;
     }
     const sha256 = resultSha256(result);
-    const gateSnapshot = {
-      ...gate,
-      site: {
-        id: gate.siteId,
-        name: site?.name ?? null,
-        addressLine1: site?.address_line1,
-        city: site?.city,
-        usageClass: site?.usage_class,
-      },
-      client: current.client,
-    };
     await trx('assessments')
       .where({ id, row_version: current.rowVersion, status: 'draft' })
       .update({
@@ -93,7 +90,6 @@ export async function submitAssessment(
         result: JSON.stringify(result),
         result_sha256: sha256,
         verdict: result.verdict,
-        gate_snapshot: JSON.stringify(gateSnapshot),
         submitted_at: trx.fn.now(),
         row_version: current.rowVersion + 1,
         updated_at: trx.fn.now(),
