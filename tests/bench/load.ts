@@ -1,10 +1,11 @@
 /**
  * Load on loopback with autocannon: 20 connections (LOAD_CONNECTIONS) for 30 s each against
- * /api/health of the same server (the ceiling), the archive list, a signed-in assessment list,
- * an assessment read, the score endpoint and an autosave, then /api/health again. Prints
- * requests/s, p50/p95/p99 latency and errors, and each endpoint's throughput as a share of
- * health's (the mean of the two health runs, so a machine that slows down or speeds up during
- * the run does not tilt the ratio one way). Bounded in time; traffic goes to 127.0.0.1 only.
+ * the archive list, a signed-in assessment list, an assessment read, the score endpoint and an
+ * autosave, each in LOAD_ROUNDS (3) slices that alternate with equal slices of /api/health of the
+ * same server (the ceiling). Prints requests/s, p50/p95/p99 latency and errors, and each
+ * endpoint's throughput as a share of health's in its own slices, so a machine that slows down
+ * or speeds up during the run tilts both sides alike. Bounded in time; traffic goes to
+ * 127.0.0.1 only.
  *
  * `npx tsx tests/bench/load.ts [seconds]` (default 30, or LOAD_SECONDS); LOAD_TARGETS=read,list
  * runs only those endpoints (and health); BENCH_CPU_PROF_DIR=dir profiles the server. Non-2xx answers are
@@ -78,10 +79,11 @@ export async function runLoadBench(
       await fetch(`${base}/api/gates?kind=swing&pageSize=50`, { headers: headers(auditor) })
     ).json();
 
-    // Drafts of their own for the autosaving virtual users: twice the connections, so a
-    // request lost to a timeout (whose draft is never handed back) does not leave one short.
+    const rounds = Math.max(1, Number(process.env.LOAD_ROUNDS ?? 3));
+    // Drafts of their own for the autosaving virtual users: a set per slice and one more, since
+    // the saves in flight when a slice stops (or lost to a timeout) never hand their draft back.
     const drafts: Array<{ id: string; version: number }> = [];
-    for (let i = 0; i < connections * 2; i++) {
+    for (let i = 0; i < connections * (rounds + 1); i++) {
       const res = await fetch(`${base}/api/assessments`, {
         method: 'POST',
         headers: { ...headers(auditor), 'content-type': 'application/json' },
@@ -108,7 +110,6 @@ export async function runLoadBench(
 
     const health: autocannon.Options = { url: `${base}/api/health` };
     const targets: Record<string, autocannon.Options> = {
-      healthBefore: health,
       archive: { url: `${base}/api/archive?verdict=remedy&sort=-date&limit=25`, headers: headers(office) },
       list: { url: `${base}/api/assessments?status=signed&pageSize=25`, headers: headers(office) },
       read: { url: `${base}/api/assessments/${readId}`, headers: headers(office) },
@@ -149,43 +150,74 @@ export async function runLoadBench(
           },
         ],
       },
-      health,
     };
 
     // LOAD_TARGETS=read,list runs only those (with the two health runs), e.g. to profile one.
     const only = process.env.LOAD_TARGETS?.split(',').filter(Boolean);
-    const out: Record<string, number> = {};
-    for (const [name, options] of Object.entries(targets)) {
-      if (only && !name.startsWith('health') && !only.includes(name)) continue;
-      const result = await run({ connections, duration: seconds, ...options });
-      const f = figures(result);
-      out[`${name}Rps`] = f.rps;
-      out[`${name}P50Ms`] = f.p50;
-      out[`${name}P95Ms`] = f.p95;
-      out[`${name}P99Ms`] = f.p99;
-      out[`${name}Errors`] = f.errors;
-      for (const [status, count] of Object.entries(f.non2xxByStatus)) out[`${name}Status${status}`] = count;
+    // Each endpoint runs in ROUNDS slices, each right after a slice of /api/health of the same
+    // length, and its share is its requests over the health requests of its own slices: the
+    // machine is shared, and a neighbour's burst then weighs on both sides of the ratio alike.
+    const slice = Math.max(1, Math.round(seconds / rounds));
+    const describe = (name: string, f: Figures) => {
       const kinds = [
         ...Object.entries(f.non2xxByStatus).map(([status, count]) => `${status}×${count}`),
         ...(f.connectionErrors ? [`connection errors×${f.connectionErrors}`] : []),
         ...(f.timeouts ? [`timeouts×${f.timeouts}`] : []),
       ];
+      return `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`;
+    };
+    /** The mean of the slices' figures (p95 too: a mean of each slice's p95), errors summed. */
+    const merge = (parts: Figures[]): Figures => {
+      const mean = (pick: (f: Figures) => number) => parts.reduce((a, f) => a + pick(f), 0) / parts.length;
+      const non2xxByStatus: Record<string, number> = {};
+      for (const f of parts)
+        for (const [status, count] of Object.entries(f.non2xxByStatus))
+          non2xxByStatus[status] = (non2xxByStatus[status] ?? 0) + count;
+      return {
+        rps: mean((f) => f.rps),
+        p50: mean((f) => f.p50),
+        p95: mean((f) => f.p95),
+        p99: mean((f) => f.p99),
+        errors: parts.reduce((a, f) => a + f.errors, 0),
+        non2xxByStatus,
+        connectionErrors: parts.reduce((a, f) => a + f.connectionErrors, 0),
+        timeouts: parts.reduce((a, f) => a + f.timeouts, 0),
+      };
+    };
+    const out: Record<string, number> = {};
+    const allHealth: Figures[] = [];
+    for (const [name, options] of Object.entries(targets)) {
+      if (name.startsWith('health') || (only && !only.includes(name))) continue;
+      const mine: Figures[] = [];
+      const ceiling: Figures[] = [];
+      for (let round = 0; round < rounds; round++) {
+        ceiling.push(figures(await run({ connections, duration: slice, ...health })));
+        mine.push(figures(await run({ connections, duration: slice, ...options })));
+      }
+      const f = merge(mine);
+      const h = merge(ceiling);
+      allHealth.push(...ceiling);
+      out[`${name}Rps`] = f.rps;
+      out[`${name}P50Ms`] = f.p50;
+      out[`${name}P95Ms`] = f.p95;
+      out[`${name}P99Ms`] = f.p99;
+      out[`${name}Errors`] = f.errors;
+      out[`${name}VsHealth`] = f.rps / h.rps;
+      for (const [status, count] of Object.entries(f.non2xxByStatus)) out[`${name}Status${status}`] = count;
       console.log(
-        `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`,
+        `${describe(name, f)}  = ${out[`${name}VsHealth`].toFixed(2)} × health in its slices (${h.rps.toFixed(0)} req/s)`,
       );
       if (name === 'autosave')
         for (const [status, body] of Object.entries(autosaveSamples))
           console.log(`          first ${status}: ${body}`);
     }
-    const healthRuns = [out.healthBeforeRps, out.healthRps];
-    out.healthRps = (out.healthBeforeRps + out.healthRps) / 2;
-    out.healthP95Ms = Math.max(out.healthBeforeP95Ms, out.healthP95Ms);
-    out.healthErrors += out.healthBeforeErrors;
-    console.log(
-      `health    ${out.healthRps.toFixed(0).padStart(6)} req/s as the ceiling (mean of ${healthRuns.map((r) => r.toFixed(0)).join(' and ')})`,
-    );
-    for (const name of ['archive', 'list', 'read', 'score', 'autosave'])
-      if (out[`${name}Rps`] !== undefined) out[`${name}VsHealth`] = out[`${name}Rps`] / out.healthRps;
+    const h = merge(allHealth);
+    out.healthRps = h.rps;
+    out.healthP50Ms = h.p50;
+    out.healthP95Ms = h.p95;
+    out.healthP99Ms = h.p99;
+    out.healthErrors = h.errors;
+    console.log(describe('health', h));
     out.connections = connections;
     return out;
   } finally {

@@ -4,11 +4,14 @@
  */
 import knex, { type Knex } from 'knex';
 import { knexConfig } from '../../../knexfile';
+import { watchSessionWrites } from './auth/session-cache';
+import { watchQueryCount } from './http/query-count';
 
 let instance: Knex | undefined;
 
 export function db(): Knex {
-  instance ??= knex(knexConfig());
+  // Writes that can end a session make this process forget its remembered session checks.
+  instance ??= watchQueryCount(watchSessionWrites(knex(knexConfig())));
   return instance;
 }
 
