@@ -60,7 +60,7 @@ export async function startBenchApp(env: Record<string, string> = {}): Promise<B
       AUTH_SECRET: 'bench-secret-0123456789abcdef0123456789',
       AUTH_TRUST_HOST: 'true',
       OUTBOX_WORKER: 'off',
-      DB_POOL_MAX: '20',
+      DB_POOL_MAX: process.env.DB_POOL_MAX ?? '20',
       ...profilingOptions(),
       ...env,
     },
