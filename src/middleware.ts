@@ -4,12 +4,14 @@
  * out of protected pages (redirect to /signin) and the API (401 problem+json), and add the
  * security headers. Role checks per endpoint stay in the handlers (`requireRole`).
  */
+import type { APIContext, MiddlewareNext } from 'astro';
 import { defineMiddleware } from 'astro:middleware';
 import { crossSiteRefusal, isCrossSiteWrite } from '@/lib/server/auth/origin';
 import { isApiPath, isProtectedPage, isPublicApiPath, normalisePath } from '@/lib/server/auth/paths';
 import { readSession } from '@/lib/server/auth/session';
 import { clearSessionCookies } from '@/lib/server/auth/sign-out';
 import { isDatabaseUnavailable, problem } from '@/lib/server/http/problem';
+import { countingQueries, queryCountHeader, queryCountingOn } from '@/lib/server/http/query-count';
 
 const securityHeaders: Record<string, string> = {
   'x-content-type-options': 'nosniff',
@@ -36,7 +38,7 @@ function withSecurityHeaders(response: Response, signedIn: boolean): Response {
   }
 }
 
-export const onRequest = defineMiddleware(async (context, next) => {
+async function guard(context: APIContext, next: MiddlewareNext): Promise<Response> {
   const path = normalisePath(context.url.pathname);
   const api = isApiPath(path);
   context.locals.user = null;
@@ -84,4 +86,17 @@ export const onRequest = defineMiddleware(async (context, next) => {
     return withSecurityHeaders(problem(404, 'There is no such API route.'), signedIn);
   }
   return withSecurityHeaders(response, signedIn);
+}
+
+export const onRequest = defineMiddleware(async (context, next) => {
+  if (!queryCountingOn()) return guard(context, next);
+  const { result, queries } = await countingQueries(() => guard(context, next));
+  try {
+    result.headers.set(queryCountHeader, String(queries));
+    return result;
+  } catch {
+    const copy = new Response(result.body, result);
+    copy.headers.set(queryCountHeader, String(queries));
+    return copy;
+  }
 });

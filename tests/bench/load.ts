@@ -1,10 +1,14 @@
 /**
- * Load on loopback with autocannon: 50 connections for 30 s each against the archive list, an
- * assessment read, the score endpoint and an autosave, then /api/health of the same server as
- * the ceiling. Prints requests/s, p50/p95/p99 latency and errors, and the ratio to health.
- * Bounded in time; traffic goes to 127.0.0.1 only.
+ * Load on loopback with autocannon: 20 connections (LOAD_CONNECTIONS) for 30 s each against
+ * the archive list, a signed-in assessment list, an assessment read, the score endpoint and an
+ * autosave, each in LOAD_ROUNDS (3) slices that alternate with equal slices of /api/health of the
+ * same server (the ceiling). Prints requests/s, p50/p95/p99 latency and errors, and each
+ * endpoint's throughput as a share of health's in its own slices, so a machine that slows down
+ * or speeds up during the run tilts both sides alike. Bounded in time; traffic goes to
+ * 127.0.0.1 only.
  *
- * `npx tsx tests/bench/load.ts [seconds]` (default 30, or LOAD_SECONDS). Non-2xx answers are
+ * `npx tsx tests/bench/load.ts [seconds]` (default 30, or LOAD_SECONDS); LOAD_TARGETS=read,list
+ * runs only those endpoints (and health); BENCH_CPU_PROF_DIR=dir profiles the server. Non-2xx answers are
  * counted by status; for the autosave the first body of each status is printed too.
  */
 import autocannon, { type Result } from 'autocannon';
@@ -15,7 +19,7 @@ import { projectRoot } from '../../src/cli/services';
 import { isMain } from '../../src/cli/is-main';
 import { signInCookie, startBenchApp } from './support/app';
 
-const connections = 50;
+const connections = Number(process.env.LOAD_CONNECTIONS ?? 20);
 
 interface Figures {
   rps: number;
@@ -75,10 +79,11 @@ export async function runLoadBench(
       await fetch(`${base}/api/gates?kind=swing&pageSize=50`, { headers: headers(auditor) })
     ).json();
 
-    // Drafts of their own for the autosaving virtual users: twice the connections, so a
-    // request lost to a timeout (whose draft is never handed back) does not leave one short.
+    const rounds = Math.max(1, Number(process.env.LOAD_ROUNDS ?? 3));
+    // Drafts of their own for the autosaving virtual users: a set per slice and one more, since
+    // the saves in flight when a slice stops (or lost to a timeout) never hand their draft back.
     const drafts: Array<{ id: string; version: number }> = [];
-    for (let i = 0; i < connections * 2; i++) {
+    for (let i = 0; i < connections * (rounds + 1); i++) {
       const res = await fetch(`${base}/api/assessments`, {
         method: 'POST',
         headers: { ...headers(auditor), 'content-type': 'application/json' },
@@ -103,8 +108,10 @@ export async function runLoadBench(
     const autosaveSamples: Record<string, string> = {};
     const scoreBody = fs.readFileSync(path.join(projectRoot, 'tests/bench/support/score-body.json'), 'utf8');
 
+    const health: autocannon.Options = { url: `${base}/api/health` };
     const targets: Record<string, autocannon.Options> = {
       archive: { url: `${base}/api/archive?verdict=remedy&sort=-date&limit=25`, headers: headers(office) },
+      list: { url: `${base}/api/assessments?status=signed&pageSize=25`, headers: headers(office) },
       read: { url: `${base}/api/assessments/${readId}`, headers: headers(office) },
       score: {
         url: `${base}/api/score`,
@@ -143,33 +150,75 @@ export async function runLoadBench(
           },
         ],
       },
-      health: { url: `${base}/api/health` },
     };
 
-    const out: Record<string, number> = {};
-    for (const [name, options] of Object.entries(targets)) {
-      const result = await run({ connections, duration: seconds, ...options });
-      const f = figures(result);
-      out[`${name}Rps`] = f.rps;
-      out[`${name}P50Ms`] = f.p50;
-      out[`${name}P95Ms`] = f.p95;
-      out[`${name}P99Ms`] = f.p99;
-      out[`${name}Errors`] = f.errors;
-      for (const [status, count] of Object.entries(f.non2xxByStatus)) out[`${name}Status${status}`] = count;
+    // LOAD_TARGETS=read,list runs only those (with the two health runs), e.g. to profile one.
+    const only = process.env.LOAD_TARGETS?.split(',').filter(Boolean);
+    // Each endpoint runs in ROUNDS slices, each right after a slice of /api/health of the same
+    // length, and its share is its requests over the health requests of its own slices: the
+    // machine is shared, and a neighbour's burst then weighs on both sides of the ratio alike.
+    const slice = Math.max(1, Math.round(seconds / rounds));
+    const describe = (name: string, f: Figures) => {
       const kinds = [
         ...Object.entries(f.non2xxByStatus).map(([status, count]) => `${status}×${count}`),
         ...(f.connectionErrors ? [`connection errors×${f.connectionErrors}`] : []),
         ...(f.timeouts ? [`timeouts×${f.timeouts}`] : []),
       ];
+      return `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`;
+    };
+    /** The mean of the slices' figures (p95 too: a mean of each slice's p95), errors summed. */
+    const merge = (parts: Figures[]): Figures => {
+      const mean = (pick: (f: Figures) => number) => parts.reduce((a, f) => a + pick(f), 0) / parts.length;
+      const non2xxByStatus: Record<string, number> = {};
+      for (const f of parts)
+        for (const [status, count] of Object.entries(f.non2xxByStatus))
+          non2xxByStatus[status] = (non2xxByStatus[status] ?? 0) + count;
+      return {
+        rps: mean((f) => f.rps),
+        p50: mean((f) => f.p50),
+        p95: mean((f) => f.p95),
+        p99: mean((f) => f.p99),
+        errors: parts.reduce((a, f) => a + f.errors, 0),
+        non2xxByStatus,
+        connectionErrors: parts.reduce((a, f) => a + f.connectionErrors, 0),
+        timeouts: parts.reduce((a, f) => a + f.timeouts, 0),
+      };
+    };
+    const out: Record<string, number> = {};
+    const allHealth: Figures[] = [];
+    for (const [name, options] of Object.entries(targets)) {
+      if (name.startsWith('health') || (only && !only.includes(name))) continue;
+      const mine: Figures[] = [];
+      const ceiling: Figures[] = [];
+      for (let round = 0; round < rounds; round++) {
+        ceiling.push(figures(await run({ connections, duration: slice, ...health })));
+        mine.push(figures(await run({ connections, duration: slice, ...options })));
+      }
+      const f = merge(mine);
+      const h = merge(ceiling);
+      allHealth.push(...ceiling);
+      out[`${name}Rps`] = f.rps;
+      out[`${name}P50Ms`] = f.p50;
+      out[`${name}P95Ms`] = f.p95;
+      out[`${name}P99Ms`] = f.p99;
+      out[`${name}Errors`] = f.errors;
+      out[`${name}VsHealth`] = f.rps / h.rps;
+      for (const [status, count] of Object.entries(f.non2xxByStatus)) out[`${name}Status${status}`] = count;
       console.log(
-        `${name.padEnd(9)} ${f.rps.toFixed(0).padStart(6)} req/s  p50 ${f.p50.toFixed(1)} ms  p95 ${f.p95.toFixed(1)} ms  p99 ${f.p99.toFixed(1)} ms  errors ${f.errors}${kinds.length ? ` (${kinds.join(', ')})` : ''}`,
+        `${describe(name, f)}  = ${out[`${name}VsHealth`].toFixed(2)} × health in its slices (${h.rps.toFixed(0)} req/s)`,
       );
       if (name === 'autosave')
         for (const [status, body] of Object.entries(autosaveSamples))
           console.log(`          first ${status}: ${body}`);
     }
-    for (const name of ['archive', 'read', 'score', 'autosave'])
-      out[`${name}VsHealth`] = out[`${name}Rps`] / out.healthRps;
+    const h = merge(allHealth);
+    out.healthRps = h.rps;
+    out.healthP50Ms = h.p50;
+    out.healthP95Ms = h.p95;
+    out.healthP99Ms = h.p99;
+    out.healthErrors = h.errors;
+    console.log(describe('health', h));
+    out.connections = connections;
     return out;
   } finally {
     await app.server.stop();

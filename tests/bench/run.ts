@@ -99,23 +99,33 @@ const benches: Bench[] = [
     fn: 'runLoadBench',
     rows: (f) => {
       const out: Row[] = [];
-      for (const target of ['archive', 'read', 'score', 'autosave', 'health']) {
+      const at = f.connections ? ` @${f.connections} connections` : '';
+      // Scoring speed has a benchmark of its own; its endpoint is reported here, not held to a share.
+      const held = (target: string) => target !== 'score';
+      for (const target of ['archive', 'list', 'read', 'score', 'autosave', 'health']) {
         if (f[`${target}Rps`] === undefined) continue;
         out.push(row('load', `${target} requests/s`, f[`${target}Rps`], 'req/s', 'reported', () => null));
         out.push(
           row(
             'load',
-            `${target} p95`,
+            `${target} p95${at}`,
             f[`${target}P95Ms`],
             'ms',
-            target === 'autosave' || target === 'score' ? 'reported' : '< 50 ms',
-            (v) => (target === 'autosave' || target === 'score' ? null : v < 50),
+            held(target) ? '< 50 ms' : 'reported',
+            (v) => (held(target) ? v < 50 : null),
           ),
         );
         out.push(row('load', `${target} errors`, f[`${target}Errors`], '', '0', (v) => v === 0));
         if (target !== 'health' && f[`${target}VsHealth`] !== undefined)
           out.push(
-            row('load', `${target} ÷ health throughput`, f[`${target}VsHealth`], '×', 'reported', () => null),
+            row(
+              'load',
+              `${target} ÷ health throughput`,
+              f[`${target}VsHealth`],
+              '×',
+              held(target) ? '≥ 0.5 (same server, same run)' : 'reported',
+              (v) => (held(target) ? v >= 0.5 : null),
+            ),
           );
       }
       return out;
@@ -142,13 +152,13 @@ for (const bench of benches) {
 const fmt = (v: number | null) =>
   v === null ? '—' : v >= 100 ? v.toFixed(0) : v >= 10 ? v.toFixed(1) : v.toFixed(2);
 const table = [
-  ['bench', 'figure', 'value', 'target', 'holds'],
+  ['bench', 'figure', 'value', 'target', 'met?'],
   ...rows.map((r) => [
     r.bench,
     r.figure,
     `${fmt(r.value)} ${r.unit}`.trim(),
     r.target,
-    r.holds === null ? '·' : r.holds ? 'yes' : 'NO',
+    r.holds === null ? '·' : r.holds ? 'met' : 'MISSED',
   ]),
 ];
 const widths = table[0].map((_, i) => Math.max(...table.map((r) => r[i].length)));

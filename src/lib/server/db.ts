@@ -4,11 +4,33 @@
  */
 import knex, { type Knex } from 'knex';
 import { knexConfig } from '../../../knexfile';
+import { watchSessionWrites } from './auth/session-cache';
+import { watchQueryCount } from './http/query-count';
+import { namePreparedStatements, preparedStatementsOn } from './prepared-statements';
 
 let instance: Knex | undefined;
 
+/** Every pooled connection runs the app's parameterised queries as named statements (prepared-statements.ts). */
+function withPreparedStatements(config: Knex.Config): Knex.Config {
+  if (!preparedStatementsOn()) return config;
+  return {
+    ...config,
+    pool: {
+      ...config.pool,
+      afterCreate: (
+        connection: Parameters<typeof namePreparedStatements>[0],
+        done: (e: Error | null) => void,
+      ) => {
+        namePreparedStatements(connection);
+        done(null);
+      },
+    },
+  };
+}
+
 export function db(): Knex {
-  instance ??= knex(knexConfig());
+  // Writes that can end a session make this process forget its remembered session checks.
+  instance ??= watchQueryCount(watchSessionWrites(knex(withPreparedStatements(knexConfig()))));
   return instance;
 }
 

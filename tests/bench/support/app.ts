@@ -3,6 +3,8 @@
  * seeded once), the current build, and a server on a free loopback port; plus a staff sign-in
  * over real HTTP that returns the session cookie.
  */
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import pg from 'pg';
 import { adoptDatabase, appUrlFor, ensureDatabase } from '../../../db/launcher';
 import { migrateLatest } from '../../../src/cli/migrate';
@@ -34,6 +36,18 @@ export async function benchDatabase(name = 'latchwell_bench'): Promise<{ url: st
   return { url: appUrlFor(endpoints, url.toString()), adminUrl: endpoints.adminUrl };
 }
 
+/**
+ * With BENCH_CPU_PROF_DIR set, the server samples its CPU as `node --cpu-prof` would (see
+ * cpu-profile.mjs) and writes the profile there when the bench stops it (open it in Chrome's DevTools, or summarise it with
+ * `npx tsx tests/bench/support/profile-top.ts <file>`).
+ */
+function profilingOptions(): Record<string, string> {
+  const dir = process.env.BENCH_CPU_PROF_DIR;
+  if (!dir) return {};
+  const hook = path.join(path.dirname(fileURLToPath(import.meta.url)), 'cpu-profile.mjs');
+  return { BENCH_CPU_PROF_DIR: path.resolve(dir), NODE_OPTIONS: `--import=${pathToFileURL(hook).href}` };
+}
+
 export async function startBenchApp(env: Record<string, string> = {}): Promise<BenchApp> {
   const { url, adminUrl } = await benchDatabase();
   await ensureBuilt();
@@ -46,7 +60,8 @@ export async function startBenchApp(env: Record<string, string> = {}): Promise<B
       AUTH_SECRET: 'bench-secret-0123456789abcdef0123456789',
       AUTH_TRUST_HOST: 'true',
       OUTBOX_WORKER: 'off',
-      DB_POOL_MAX: '20',
+      DB_POOL_MAX: process.env.DB_POOL_MAX ?? '20',
+      ...profilingOptions(),
       ...env,
     },
   });

@@ -65,6 +65,8 @@ export default async function setup(project: TestProject) {
     // Each project has its own server and catcher on the one test database: keep their mail
     // apart, or one project's outbox worker would deliver the other's messages to its catcher.
     OUTBOX_CHANNEL: project.name === 'integration' ? 'default' : project.name,
+    // Every answer says how many SQL statements it took (session-cost.test.ts counts them).
+    QUERY_COUNT_HEADER: '1',
   };
   const server = await startAppServer({ port, quiet: true, env: serverEnv });
   project.provide('serverEnv', serverEnv);

@@ -3,11 +3,22 @@
  * A session holds only while the user is active, their session_version still matches the one
  * in the token and the token's session id (`sid`) was not signed out, so deactivation, role
  * changes, a password change and signing out end it on the next request.
+ *
+ * The decoded cookie and the answer of that check are remembered for a few seconds
+ * (`session-cache.ts`): a change made by this process is seen at once, one made by another
+ * instance within SESSION_RECHECK_MS.
  */
 import { encode, getToken, type JWT } from '@auth/core/jwt';
 import type { AstroCookies } from 'astro';
 import type { SessionOrganisation, SessionUser } from '../session-user';
 import { loadSession } from '../users';
+import {
+  decodedCookie,
+  heldSession,
+  rememberDecodedCookie,
+  rememberSession,
+  sessionCheckEpoch,
+} from './session-cache';
 import { authSecret, sessionCookieNames } from './settings';
 
 export type SessionRead =
@@ -34,6 +45,18 @@ function sentCookie(cookieHeader: string, name: string): boolean {
   });
 }
 
+/** The session cookie's own pieces (the cookie and its chunks), exactly as sent, in order sent. */
+function sessionCookieText(cookieHeader: string, name: string): string {
+  return cookieHeader
+    .split(';')
+    .map((part) => part.trim())
+    .filter((part) => {
+      const key = part.slice(0, Math.max(0, part.indexOf('=')));
+      return key === name || key.startsWith(`${name}.`);
+    })
+    .join('; ');
+}
+
 const quiet = { error: () => {}, warn: () => {}, debug: () => {} };
 
 /** Decodes the session cookie: 'none' when none was sent, null when it cannot be read or lacks a session id. */
@@ -43,6 +66,10 @@ export async function decodeSessionCookie(request: Request): Promise<SessionToke
   const secure = sentCookie(cookieHeader, sessionCookieNames.secure);
   if (!secure && !sentCookie(cookieHeader, sessionCookieNames.plain)) return 'none';
   const cookieName = secure ? sessionCookieNames.secure : sessionCookieNames.plain;
+  // The same cookie text decodes to the same token (until it expires): decrypt it once.
+  const text = `${cookieName}\n${sessionCookieText(cookieHeader, cookieName)}`;
+  const known = decodedCookie<SessionToken>(text);
+  if (known) return known;
   const token = await getToken({
     req: request,
     secret: authSecret(),
@@ -58,15 +85,25 @@ export async function decodeSessionCookie(request: Request): Promise<SessionToke
     typeof token.exp !== 'number'
   )
     return null;
-  return { token, id: token.sid, expiresAt: new Date(token.exp * 1000), cookieName, secure };
+  const session = { token, id: token.sid, expiresAt: new Date(token.exp * 1000), cookieName, secure };
+  Object.freeze(token);
+  Object.freeze(session);
+  rememberDecodedCookie(text, session, session.expiresAt);
+  return session;
 }
 
 export async function readSession(request: Request): Promise<SessionRead> {
   const decoded = await decodeSessionCookie(request);
   if (decoded === 'none') return { state: 'none' };
   if (!decoded?.token.sub || typeof decoded.token.sessionVersion !== 'number') return { state: 'ended' };
-  const session = await loadSession(decoded.token.sub, decoded.token.sessionVersion, decoded.id);
-  return session ? { state: 'active', ...session, session: decoded } : { state: 'ended' };
+  const { sub, sessionVersion } = decoded.token;
+  const held = heldSession(decoded.id, sub, sessionVersion);
+  if (held) return { state: 'active', ...held, session: decoded };
+  const startedEpoch = sessionCheckEpoch();
+  const session = await loadSession(sub, sessionVersion, decoded.id);
+  if (!session) return { state: 'ended' };
+  rememberSession(decoded.id, sub, sessionVersion, session, startedEpoch);
+  return { state: 'active', ...session, session: decoded };
 }
 
 /**
