@@ -155,7 +155,11 @@ interface ClaimedMessage {
  * whose previous lease ran out (its sender died mid-send). Null when it is not there to send
  * (sent already, given up on, or being sent by another instance right now).
  */
-async function claimMessage(knex: Knex, id: string, settings: OutboxSettings): Promise<ClaimedMessage | null> {
+async function claimMessage(
+  knex: Knex,
+  id: string,
+  settings: OutboxSettings,
+): Promise<ClaimedMessage | null> {
   const [row] = (await knex('outbox_messages')
     .where({ id })
     .andWhere((w) =>
@@ -223,7 +227,9 @@ export async function deliverMessage(
     const lastError = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
     if (message.attempts >= settings.maxAttempts) {
       await knex.transaction(async (trx) => {
-        await trx('outbox_messages').where({ id: message.id }).update({ status: 'failed', last_error: lastError });
+        await trx('outbox_messages')
+          .where({ id: message.id })
+          .update({ status: 'failed', last_error: lastError });
         await sendJob(
           'mail-dead',
           { organisationId: message.organisation_id, outboxId: message.id, lastError },
@@ -245,7 +251,9 @@ export async function deliverMessage(
     });
     return 'retried';
   }
-  const redacted = oneTimeLinkKinds.includes(message.kind) ? { text_body: sentLinkNote, html_body: null } : {};
+  const redacted = oneTimeLinkKinds.includes(message.kind)
+    ? { text_body: sentLinkNote, html_body: null }
+    : {};
   await knex('outbox_messages')
     .where({ id: message.id })
     .update({ status: 'sent', sent_at: knex.fn.now(), last_error: null, ...redacted });

@@ -87,5 +87,9 @@ onJobsStarted(async (boss) => {
     },
   );
   // A server that starts after the hour need not wait for the next one.
-  await sendJob('reinspection-sweep', { organisationId: null }, { singletonKey: 'start', singletonSeconds: 60 });
+  await sendJob(
+    'reinspection-sweep',
+    { organisationId: null },
+    { singletonKey: 'start', singletonSeconds: 60 },
+  );
 });

@@ -65,6 +65,9 @@ export default async function setup(project: TestProject) {
     // Each project has its own server and catcher on the one test database: keep their mail
     // apart, or one project's outbox worker would deliver the other's messages to its catcher.
     OUTBOX_CHANNEL: project.name === 'integration' ? 'default' : project.name,
+    // The suite's servers send no scheduled reminders: they would mail every test organisation
+    // with a due gate. tests/integration/background-jobs.test.ts runs servers with the schedule on.
+    REINSPECTION_SCHEDULE: 'off',
   };
   const server = await startAppServer({ port, quiet: true, env: serverEnv });
   project.provide('serverEnv', serverEnv);
