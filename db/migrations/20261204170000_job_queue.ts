@@ -9,7 +9,8 @@
  * (src/lib/server/jobs/queues.ts) with fixed options. pg-boss's own create/delete functions are
  * not executable by the app role. Row grants on the schema's tables are in db/roles.ts.
  *
- * Also: `reinspection_reminder_runs`, one row per organisation and local day the scheduled
+ * Also: `impact_runs`, a ruleset impact run split into slices (src/lib/server/impact-runs.ts),
+ * and `reinspection_reminder_runs`, one row per organisation and local day the scheduled
  * reminders ran for (the claim that makes the daily run happen once, whatever the instances).
  */
 import type { Knex } from 'knex';
@@ -80,9 +81,37 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.primary(['organisation_id', 'run_on']);
   });
+
+  await knex.schema.createTable('impact_runs', (t) => {
+    t.uuid('id').primary().defaultTo(knex.raw('gen_random_uuid()'));
+    t.uuid('organisation_id').notNullable().references('organisations.id').onDelete('cascade');
+    t.uuid('version_id').notNullable().references('ruleset_versions.id').onDelete('cascade');
+    t.text('basis').notNullable().checkIn(['latest', 'all']);
+    // What started it: a version being published, or someone asking on the impact page.
+    t.text('reason').notNullable().checkIn(['published', 'requested']);
+    t.text('status').notNullable().defaultTo('queued').checkIn(['queued', 'running', 'done', 'failed']);
+    t.integer('slices_total').notNullable().defaultTo(0);
+    t.integer('slices_done').notNullable().defaultTo(0);
+    // Slices already counted (a slice job run twice is counted once).
+    t.specificType('done_slices', 'integer[]').notNullable().defaultTo('{}');
+    for (const column of ['considered', 'worse', 'better', 'same', 'unscorable'])
+      t.integer(column).notNullable().defaultTo(0);
+    // The most severe worse outcomes (at most 500) and a few unscorable ones.
+    t.jsonb('items').notNullable().defaultTo('[]');
+    t.boolean('truncated').notNullable().defaultTo(false);
+    t.jsonb('unscorable_samples').notNullable().defaultTo('[]');
+    // The server instances that scored its slices.
+    t.specificType('instances', 'text[]').notNullable().defaultTo('{}');
+    t.text('last_error');
+    t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
+    t.timestamp('started_at', { useTz: true });
+    t.timestamp('finished_at', { useTz: true });
+    t.index(['organisation_id', 'version_id', 'basis', 'created_at']);
+  });
 }
 
 export async function down(knex: Knex): Promise<void> {
+  await knex.schema.dropTableIfExists('impact_runs');
   await knex.schema.dropTableIfExists('reinspection_reminder_runs');
   await knex.raw('drop schema if exists pgboss cascade');
 }

@@ -64,7 +64,9 @@ const ensuredChannels = new Set<string>();
 /** This process's pg-boss (not started: sending needs no start). */
 export function jobBoss(): PgBoss {
   boss ??= new PgBoss({
-    db: bossDb(db()),
+    // Resolved at each query: constructing the queue must not need DATABASE_URL (the CLI sends
+    // inside its own transactions).
+    db: { executeSql: (text: string, values: unknown[]) => bossDb(db()).executeSql(text, values) },
     schema: 'pgboss',
     migrate: false,
     // Completed jobs leave the live table after an hour; failed ones stay a week for the jobs page.
@@ -75,7 +77,10 @@ export function jobBoss(): PgBoss {
 }
 
 /** Creates this channel's queues if a new channel is used (idempotent; see the migration). */
-export async function ensureQueues(knex: Knex = db(), channel = jobChannel()): Promise<void> {
+export async function ensureQueues(
+  knex: Knex | Knex.Transaction = db(),
+  channel = jobChannel(),
+): Promise<void> {
   if (ensuredChannels.has(channel)) return;
   await knex.raw('select pgboss.latchwell_ensure_queues(?)', [channel]);
   ensuredChannels.add(channel);
@@ -100,7 +105,7 @@ export async function sendJob(
   options: SendJobOptions = {},
 ): Promise<string | null> {
   const { trx, ...rest } = options;
-  await ensureQueues();
+  await ensureQueues(trx ?? db());
   const sendOptions: PgBoss.SendOptions = Object.fromEntries(
     Object.entries(rest).filter(([, v]) => v !== undefined),
   );
