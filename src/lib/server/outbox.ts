@@ -20,7 +20,7 @@
 import type { Knex } from 'knex';
 import { db } from './db';
 import { mailTransport } from './mail/transport';
-import { jobChannel, onJobsStarted, queueName, sendJob, startJobs } from './jobs/boss';
+import { jobChannel, onJobsStarted, queueName, runningJobs, sendJob, startJobs } from './jobs/boss';
 import { storage } from './storage';
 
 export interface OutboxAttachment {
@@ -294,10 +294,13 @@ export function ensureOutboxWorker(): void {
   void startJobs().catch(() => {});
 }
 
-/** Asks this process's mail worker to look now (after a commit that queued mail). */
+/**
+ * Asks this process's mail worker to look now (after a commit that queued mail). Only where the
+ * queue runs already (a server); a script (the demo seed) only queues, and a server sends.
+ */
 export function wakeOutboxWorker(): void {
-  void startJobs()
-    .then((boss) => {
+  void runningJobs()
+    ?.then((boss) => {
       if (mailWorkerId) boss.notifyWorker(mailWorkerId);
     })
     .catch(() => {});

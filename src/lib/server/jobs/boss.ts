@@ -138,6 +138,11 @@ export function startJobs(): Promise<PgBoss> {
   return started;
 }
 
+/** This process's running queue, if it was started (CLI scripts send jobs but never start it). */
+export function runningJobs(): Promise<PgBoss> | undefined {
+  return started;
+}
+
 export async function stopJobs(): Promise<void> {
   const running = started;
   started = undefined;
