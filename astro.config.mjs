@@ -26,6 +26,6 @@ export default defineConfig({
   security: { checkOrigin: false },
   vite: {
     plugins: [tailwindcss()],
-    ssr: { external: ['@node-rs/argon2', 'pg', 'knex'] },
+    ssr: { external: ['@node-rs/argon2', 'pg', 'knex', 'pg-boss'] },
   },
 });

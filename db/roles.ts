@@ -6,7 +6,8 @@
  * The app role reads and writes rows; it never owns a table, so it cannot alter one, disable
  * its triggers or truncate it. The audit trail and its anchors are append-only for it by
  * privilege as well as by trigger (SELECT and INSERT only), and the migration bookkeeping is
- * not its business at all.
+ * not its business at all. In the job queue's schema (`pgboss`) it reads and writes rows and may
+ * call the one function that creates this product's queues; it creates no table there.
  */
 import type { Knex } from 'knex';
 
@@ -42,6 +43,19 @@ export async function grantAppRole(knex: Knex, appRole: string): Promise<void> {
     }
     for (const table of ownerOnlyTables) {
       if (present.has(table)) await trx.raw(`revoke all on ${quoteIdent(table)} from ${role}`);
+    }
+    // The job queue (pg-boss, schema `pgboss`): rows only. Its tables are made by the owner (the
+    // migration, or the queue function that runs as the owner), never by the app role.
+    const { rows: schemas } = await trx.raw<{ rows: unknown[] }>(
+      `select 1 from information_schema.schemata where schema_name = 'pgboss'`,
+    );
+    if (schemas.length) {
+      await trx.raw(`grant usage on schema pgboss to ${role}`);
+      await trx.raw(`grant select, insert, update, delete on all tables in schema pgboss to ${role}`);
+      await trx.raw(
+        `alter default privileges in schema pgboss grant select, insert, update, delete on tables to ${role}`,
+      );
+      await trx.raw(`grant execute on function pgboss.latchwell_ensure_queues(text) to ${role}`);
     }
   });
 }

@@ -9,6 +9,7 @@ import knex from 'knex';
 import { knexConfig } from '../../knexfile';
 import { ensureDatabase } from '../../db/launcher';
 import { loadRulesetFile } from '../lib/rules';
+import { queueImpactAfterPublish } from '../lib/server/impact-runs';
 import { publishShippedVersion } from '../lib/server/rulesets';
 import { isMain } from './is-main';
 import { projectRoot } from './services';
@@ -55,7 +56,17 @@ export async function publishRulesetFiles(
       ).catch((error: Error) => {
         throw new Error(`${relative}: ${error.message}`);
       });
-      if (outcome === 'published') published.push(`${ruleset.family} ${ruleset.version}`);
+      if (outcome === 'published') {
+        published.push(`${ruleset.family} ${ruleset.version}`);
+        // Each organisation with signed assessments of the family gets an impact run, queued
+        // for the servers (src/lib/server/impact-runs.ts).
+        const stored = await instance('ruleset_versions as rv')
+          .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+          .whereNull('r.organisation_id')
+          .andWhere({ 'r.family': ruleset.family, 'rv.version': ruleset.version })
+          .first('rv.id');
+        if (stored) await queueImpactAfterPublish(stored.id, instance);
+      }
     }
     return published;
   } finally {

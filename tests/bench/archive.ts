@@ -16,7 +16,7 @@
  * a realistic stored result (about 40 kB of JSON). The seeded database is kept and reused by the
  * next run (set ARCHIVE_BENCH_RESEED=1 to start over; ARCHIVE_BENCH_DROP=1 drops it afterwards).
  */
-import { loadavg } from 'node:os';
+import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import knex, { type Knex } from 'knex';
 import pg from 'pg';
@@ -40,6 +40,9 @@ export interface ArchiveBenchFigures {
   impactAssessments: number;
   impactWorse: number;
   impactPerAssessmentUs: number;
+  /** The same impact as a queued run (job queue, sliced), taken by one server instance, then by two. */
+  impactQueuedOneInstanceSeconds: number;
+  impactQueuedTwoInstancesSeconds: number;
   assessments: number;
   gates: number;
 }
@@ -446,6 +449,50 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     if (previousUrl === undefined) delete process.env.DATABASE_URL;
     else process.env.DATABASE_URL = previousUrl;
 
+    // The same impact as a queued run on the job queue, its slices taken by one server instance,
+    // then by two (each on a channel of its own, so no other server takes its slices).
+    const queued: number[] = [];
+    for (const instances of [1, 2]) {
+      const channel = `bench-${instances}-${Date.now().toString(36)}`;
+      const env = {
+        DATABASE_URL: appUrlFor(endpoints, databaseUrl),
+        AUTH_SECRET: 'archive-bench-secret-0123456789abcdef',
+        AUTH_TRUST_HOST: 'true',
+        LATCHWELL_ENV: 'test',
+        OUTBOX_WORKER: 'off',
+        OUTBOX_CHANNEL: channel,
+        REINSPECTION_SCHEDULE: 'off',
+        SMTP_URL: 'smtp://127.0.0.1:9',
+      };
+      const running = [];
+      for (let i = 0; i < instances; i++)
+        running.push(await startAppServer({ port: await freePort(), quiet: true, env }));
+      try {
+        const runCookie = await signInCookie(running[0]!.url, 'office@bench-archive.test');
+        const started = performance.now();
+        const res = await fetch(`${running[0]!.url}/api/archive/impact/run`, {
+          method: 'POST',
+          headers: { cookie: runCookie, origin: running[0]!.url, 'content-type': 'application/json' },
+          body: JSON.stringify({ versionId: v2026.id, basis: 'all' }),
+        });
+        if (res.status !== 202) throw new Error(`queueing the impact run answered ${res.status}`);
+        const runId = ((await res.json()) as { run: { id: string } }).run.id;
+        for (;;) {
+          const run = await db('impact_runs').where({ id: runId }).first('status', 'considered', 'instances');
+          if (run.status === 'done') {
+            if (run.considered !== report.considered)
+              throw new Error(`the queued run considered ${run.considered}, not ${report.considered}`);
+            break;
+          }
+          if (run.status === 'failed') throw new Error('the queued impact run failed');
+          await new Promise((r) => setTimeout(r, 250));
+        }
+        queued.push((performance.now() - started) / 1000);
+      } finally {
+        await Promise.all(running.map((r) => r.stop()));
+      }
+    }
+
     const figures: ArchiveBenchFigures = {
       listP50Ms: round2(percentile(all, 0.5)),
       listP95Ms: round2(percentile(all, 0.95)),
@@ -455,6 +502,8 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       impactAssessments: report.considered,
       impactWorse: report.worse,
       impactPerAssessmentUs: round2((impactSeconds * 1e6) / Math.max(1, report.considered)),
+      impactQueuedOneInstanceSeconds: round2(queued[0]!),
+      impactQueuedTwoInstancesSeconds: round2(queued[1]!),
       assessments: Number(assessments),
       gates: Number(gates),
     };
@@ -476,6 +525,9 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     console.log(`  count (kind + status): p95 ${figures.countP95Ms} ms`);
     console.log(
       `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each, ${report.workers ? `${report.workers} worker threads` : 'one thread'}; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,
+    );
+    console.log(
+      `  the same as a queued run (job queue, slices of ${process.env.IMPACT_SLICE_SIZE || 1000}): one server instance ${figures.impactQueuedOneInstanceSeconds} s, two instances ${figures.impactQueuedTwoInstancesSeconds} s (${round2(figures.impactQueuedOneInstanceSeconds / Math.max(0.01, figures.impactQueuedTwoInstancesSeconds))}× faster on ${availableParallelism()} cores)`,
     );
     return figures;
   } finally {

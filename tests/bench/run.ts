@@ -91,6 +91,15 @@ const benches: Bench[] = [
       row('archive', 'list p50 @100k', f.listP50Ms, 'ms', 'reported', () => null),
       row('archive', 'list p95 @100k', f.listP95Ms, 'ms', '< 50 ms', (v) => v < 50),
       row('archive', 'ruleset impact over 100k', f.impactSeconds, 's', '< 30 s', (v) => v < 30),
+      row('archive', 'impact run, 1 instance', f.impactQueuedOneInstanceSeconds, 's', 'reported', () => null),
+      row(
+        'archive',
+        'impact run, 2 instances',
+        f.impactQueuedTwoInstancesSeconds,
+        's',
+        '< 1 instance',
+        (v) => v < (f.impactQueuedOneInstanceSeconds ?? Infinity),
+      ),
     ],
   },
   {

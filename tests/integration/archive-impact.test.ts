@@ -6,7 +6,8 @@
  */
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer } from '../../src/cli/services';
-import type { ImpactReport } from '../../src/lib/api/impact';
+import type { ImpactReport, ImpactRunView } from '../../src/lib/api/impact';
+import { loadRulesetFile } from '../../src/lib/rules';
 import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
 import {
@@ -232,6 +233,142 @@ describe('ruleset impact', () => {
     } finally {
       await server.stop();
     }
+  }, 60_000);
+
+  it('runs on the job queue in slices that two server instances share, with progress, and finds the same', async () => {
+    const expected = await expectJson<ImpactReport>(
+      await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
+    );
+    const channel = `impact-${Date.now().toString(36)}`;
+    const env = {
+      ...inject('serverEnv'),
+      // Their own channel: only these two instances take the slices.
+      OUTBOX_CHANNEL: channel,
+      OUTBOX_WORKER: 'off',
+      // One assessment per slice: three slices for this small archive.
+      IMPACT_SLICE_SIZE: '1',
+    };
+    const servers = [
+      await startAppServer({ port: await freePort(), quiet: true, env }),
+      await startAppServer({ port: await freePort(), quiet: true, env }),
+    ];
+    try {
+      const on = (i: number, path: string, init: RequestInit = {}) =>
+        fetch(`${servers[i]!.url}${path}`, {
+          ...init,
+          headers: {
+            cookie: office.cookie,
+            accept: 'application/json',
+            'content-type': 'application/json',
+            origin: servers[i]!.url,
+          },
+        });
+      const started = await expectJson<ImpactRunView>(
+        await on(0, '/api/archive/impact/run', {
+          method: 'POST',
+          body: JSON.stringify({ versionId: v2026.id, basis: 'all' }),
+        }),
+        202,
+      );
+      expect(started.run).toMatchObject({ reason: 'requested', slicesTotal: 3 });
+      const runId = started.run!.id;
+      const slices = await testDb()('pgboss.job')
+        .where({ name: `impact-slice.${channel}` })
+        .whereRaw(`data ->> 'runId' = ?`, [runId])
+        .select('data');
+      expect(slices).toHaveLength(3);
+      expect(slices.every((j) => j.data.organisationId === org.id)).toBe(true);
+      // Progress, read through the other instance, until done.
+      const seen = new Set<number>();
+      let view: ImpactRunView | undefined;
+      for (const deadline = Date.now() + 30_000; Date.now() < deadline;) {
+        view = await expectJson<ImpactRunView>(
+          await on(1, `/api/archive/impact/run?versionId=${v2026.id}&basis=all`),
+        );
+        seen.add(view.run!.slicesDone);
+        if (view.run!.status === 'done') break;
+        await new Promise((r) => setTimeout(r, 100));
+      }
+      expect(view!.run).toMatchObject({ id: runId, status: 'done', slicesDone: 3 });
+      expect(view!.run!.instances).toBeGreaterThanOrEqual(1);
+      const { durationMs: _a, workers: _b, ...found } = view!.report!;
+      const { durationMs: _c, workers: _d, ...same } = expected;
+      expect(found).toEqual(same);
+      // The impact page reads the run.
+      expect((await on(1, '/archive/impact')).status).toBe(200);
+    } finally {
+      await Promise.all(servers.map((s) => s.stop()));
+    }
+  }, 90_000);
+
+  it('queues a run by itself when the organisation publishes a new version of its own family', async () => {
+    const owner = await signIn(org.owner.email, fixturePassword);
+    const first = await (
+      await owner.json('POST', '/api/rulesets/amendments', {
+        fromFamily: 'north-american-gate',
+        fromVersion: '2015.1',
+      })
+    ).json();
+    expect((await owner.json('POST', `/api/rulesets/${first.family}/${first.version}/publish`)).status).toBe(
+      200,
+    );
+    const stored = await testDb()('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where({ 'r.organisation_id': org.id, 'r.family': first.family, 'rv.version': first.version })
+      .first('rv.id', 'rv.content');
+    // Nothing signed under an earlier version of the local family yet: publishing it queues nothing.
+    expect(await testDb()('impact_runs').where({ version_id: stored.id })).toHaveLength(0);
+    const local: PublishedVersion = {
+      id: stored.id,
+      family: first.family,
+      version: first.version,
+      loaded: loadRulesetFile(stored.content),
+    };
+    const prng = createPrng(77);
+    const client = await addClient(org.id, 'Larkspur Mews', null);
+    const site = await addSite(org.id, client, '9 Larkspur Mews', 'Fenbridge', 2);
+    const gate = sampleGate(prng);
+    await fileAssessment({
+      organisationId: org.id,
+      gateId: await addGate(org.id, site, 'Mews gate', gate),
+      auditorId: org.auditor.id,
+      version: local,
+      gate,
+      usageClass: 2,
+      visitedOn: '2025-06-01T10:00:00Z',
+      prng,
+    });
+
+    const second = await (
+      await owner.json('POST', '/api/rulesets/amendments', {
+        fromFamily: first.family,
+        fromVersion: first.version,
+      })
+    ).json();
+    expect(
+      (await owner.json('POST', `/api/rulesets/${second.family}/${second.version}/publish`)).status,
+    ).toBe(200);
+    const secondId = (
+      await testDb()('ruleset_versions as rv')
+        .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+        .where({ 'r.organisation_id': org.id, 'r.family': second.family, 'rv.version': second.version })
+        .first('rv.id')
+    ).id;
+    const [run] = await testDb()('impact_runs').where({ organisation_id: org.id, version_id: secondId });
+    expect(run).toMatchObject({ reason: 'published', basis: 'latest', slices_total: 1 });
+    // The suite's server takes the slice.
+    for (const deadline = Date.now() + 30_000; Date.now() < deadline;) {
+      const view = await expectJson<ImpactRunView>(
+        await office.fetch(`/api/archive/impact/run?versionId=${secondId}`),
+      );
+      if (view.run?.status === 'done') {
+        expect(view.run.id).toBe(run.id);
+        expect(view.report!.considered).toBe(1);
+        return;
+      }
+      await new Promise((r) => setTimeout(r, 200));
+    }
+    throw new Error('the run queued on publishing did not finish');
   }, 60_000);
 
   it('refuses a version that is not published or not visible, and a bad query', async () => {

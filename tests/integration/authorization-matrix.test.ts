@@ -114,6 +114,27 @@ const siteContext = {
   slopeAcrossSwing: false,
 };
 
+/** A message of the organisation given up on: failed in the outbox, its job on the dead-letter queue. */
+async function deadMessageJob(organisationId: string): Promise<string> {
+  return testDb().transaction(async (trx) => {
+    const [message] = await trx('outbox_messages')
+      .insert({
+        organisation_id: organisationId,
+        kind: 'test_message',
+        to_addresses: [`dead.${Date.now()}@example.test`],
+        subject: 'Given up on',
+        text_body: 'x',
+        status: 'failed',
+        attempts: 10,
+      })
+      .returning('id');
+    const [job] = await trx('pgboss.job')
+      .insert({ name: 'mail-dead.default', data: { organisationId, outboxId: message.id } })
+      .returning('id');
+    return job.id as string;
+  });
+}
+
 /** A fresh draft amendment of the family's current version, derived by the subject organisation's owner. */
 async function freshAmendment(t: Targets): Promise<{ path: string; ruleId: string }> {
   const from = await currentVersion(t.family);
@@ -210,6 +231,10 @@ const matrix: Row[] = [
   row('archive/gates/[id]/reinspection.ics', 'GET', (t) => ({ path: `/api/archive/gates/${t.dir.gateId}/reinspection.ics` }),         s(200, 200, 200, 403, 401, 404)),
   row('archive/impact',              'GET',    (t) => ({ path: `/api/archive/impact?versionId=${t.versionId}` }),                     s(200, 200, 403, 403, 401, 200)),
   row('archive/impact.csv',          'GET',    (t) => ({ path: `/api/archive/impact.csv?versionId=${t.versionId}` }),                 s(200, 200, 403, 403, 401, 200)),
+  row('archive/impact/run',          'GET',    (t) => ({ path: `/api/archive/impact/run?versionId=${t.versionId}` }),                 s(200, 200, 403, 403, 401, 200)),
+  row('archive/impact/run',          'POST',   (t) => ({ path: '/api/archive/impact/run', body: { versionId: t.versionId } }),         s(202, 202, 403, 403, 401, 202)),
+  row('jobs/index',                  'GET',    () => ({ path: '/api/jobs' }),                                                         s(200, 403, 403, 403, 401, 200)),
+  row('jobs/[id]/retry',             'POST',   async (t) => ({ path: `/api/jobs/${await deadMessageJob(t.org.id)}/retry` }),          s(202, 403, 403, 403, 401, 404)),
   row('archive/reinspection/index',  'GET',    () => ({ path: '/api/archive/reinspection' }),                                         s(200, 200, 403, 403, 401, 200)),
   row('archive/reinspection/reminders', 'POST', () => ({ path: '/api/archive/reinspection/reminders' }),                               s(202, 202, 403, 403, 401, 202)),
 

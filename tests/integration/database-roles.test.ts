@@ -98,6 +98,42 @@ describe('the database role the app runs as', () => {
     ).rejects.toThrow(/permission denied/);
   });
 
+  it('works the job queue by rows only: creates no table there, and only the product’s queues through their function', async () => {
+    for (const [sql, error] of [
+      [`select pgboss.create_queue('anything', '{}'::json)`, /permission denied for function/],
+      [`select pgboss.delete_queue('mail.default')`, /permission denied for function/],
+      ['create table pgboss.sneaky (id int)', /permission denied for schema/],
+      ['drop table pgboss.job', /must be owner/],
+      ['alter table pgboss.queue add column note text', /must be owner/],
+      [`select pgboss.latchwell_ensure_queues('Not A Channel!')`, /invalid job channel/],
+    ] as const)
+      await expect(
+        testDb().transaction((trx) => trx.raw(sql)),
+        sql,
+      ).rejects.toThrow(error);
+    // A new channel's queues, made as the owner through the function; the app role then uses them.
+    const channel = `roles-${Date.now().toString(36)}`;
+    await testDb().raw('select pgboss.latchwell_ensure_queues(?)', [channel]);
+    const { rows } = await testDb().raw(
+      `select q.name, pg_get_userbyid(c.relowner) as owner from pgboss.queue q
+         join pg_class c on c.relname = q.partition_name
+        where q.name like ?`,
+      [`%.${channel}`],
+    );
+    expect(rows.map((r: { name: string }) => r.name.split('.')[0]).sort()).toEqual([
+      'impact-slice',
+      'mail',
+      'mail-dead',
+      'reinspection-reminders',
+      'reinspection-sweep',
+    ]);
+    for (const r of rows) expect(r.owner).not.toBe(appUser());
+    const [job] = await testDb()('pgboss.job')
+      .insert({ name: `mail.${channel}`, data: { organisationId: null } })
+      .returning('id');
+    expect(await testDb()('pgboss.job').where({ id: job.id }).delete()).toBe(1);
+  });
+
   it('may read and append to the audit trail, but not update, delete or truncate it', async () => {
     expect(await testDb()('audit_events').where({ id: eventId }).first('id')).toBeTruthy();
     for (const sql of [

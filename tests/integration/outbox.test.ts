@@ -11,6 +11,8 @@ import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import knex, { type Knex } from 'knex';
 import pg from 'pg';
+import PgBoss from 'pg-boss';
+import { bossDb } from '../../src/lib/server/jobs/boss';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, projectRoot, startAppServer, type RunningServer } from '../../src/cli/services';
 import { startMailCatcher, type RunningCatcher } from '../../src/lib/server/mail/catcher';
@@ -228,6 +230,11 @@ describe('the outbox while SMTP is down', () => {
           ]),
         })
         .returning('id');
+      // The job enqueueMail sends with every message, in the same transaction.
+      await new PgBoss({ db: bossDb(trx), migrate: false }).send('mail.default', {
+        organisationId: org.id,
+        outboxId: row.id,
+      });
       return row.id as string;
     });
     // The attachment is missing from storage: the tenth attempt fails and is the last (OUTBOX_MAX_ATTEMPTS default 10).
@@ -237,5 +244,13 @@ describe('the outbox while SMTP is down', () => {
     });
     expect(row.attempts).toBe(10);
     expect(row.last_error).toMatch(/missing from storage/);
+    // Given up on: the message is on the dead-letter queue, with its organisation.
+    const dead = await db('pgboss.job')
+      .where({ name: 'mail-dead.default' })
+      .whereRaw(`data ->> 'outboxId' = ?`, [id])
+      .select('state', 'data');
+    expect(dead).toHaveLength(1);
+    expect(dead[0].state).toBe('created');
+    expect(dead[0].data.organisationId).toBe(org.id);
   });
 });

@@ -1,11 +1,13 @@
 /**
  * The ruleset impact list: pick a published version, and the archive is re-scored against it
- * on the server; gates whose verdict would get worse are listed with the rules responsible,
- * most severe first, and the whole list can be downloaded as CSV.
+ * on the server, as a run on the job queue (queued when the version was published, or here when
+ * none was); the page shows its progress while the server instances score its slices. Gates
+ * whose verdict would get worse are listed with the rules responsible, most severe first, and
+ * the whole list can be downloaded as CSV.
  */
 import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
-import type { ImpactReport } from '@/lib/api/impact';
+import type { ImpactRunView } from '@/lib/api/impact';
 import { VERDICT_LABELS } from '@/lib/archive-query';
 import { count, listOf, SEVERITY_LABEL } from '@/lib/vocabulary';
 import { getJson } from './archive-api';
@@ -60,13 +62,45 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
   useEffect(() => {
     if (versionId) window.history.replaceState(null, '', `?${query}`);
   }, [query, versionId]);
-  const report = useQuery({
-    queryKey: ['impact', query],
-    queryFn: ({ signal }) => getJson<ImpactReport>(`/api/archive/impact?${query}`, signal),
+  const view = useQuery({
+    queryKey: ['impact-run', query],
+    queryFn: ({ signal }) => getJson<ImpactRunView>(`/api/archive/impact/run?${query}`, signal),
     enabled: Boolean(versionId),
+    staleTime: 0,
+    // While the run is queued or running, ask again every second for its progress.
+    refetchInterval: (q) => {
+      const status = q.state.data?.run?.status;
+      return status === 'queued' || status === 'running' ? 1000 : false;
+    },
   });
+  const [startError, setStartError] = useState<string | null>(null);
+  const [starting, setStarting] = useState(false);
+  const start = async () => {
+    setStarting(true);
+    setStartError(null);
+    const res = await fetch('/api/archive/impact/run', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', accept: 'application/json' },
+      body: JSON.stringify({ versionId, basis }),
+    }).catch(() => null);
+    if (!res?.ok) {
+      const body = res ? await res.json().catch(() => null) : null;
+      setStartError(body?.detail ?? 'No connection to the server. Try again in a moment.');
+    }
+    setStarting(false);
+    await view.refetch();
+  };
+  // No run of this version and basis yet: queue one.
+  const noRun = view.data !== undefined && view.data.run === null;
+  useEffect(() => {
+    if (noRun && !starting && !startError) void start();
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [noRun, query]);
+  const run = view.data?.run ?? null;
+  const busy = run !== null && (run.status === 'queued' || run.status === 'running');
+  const report = { ...view, isFetching: busy || starting || (view.isFetching && !view.data) };
   const day = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone });
-  const data = report.data;
+  const data = view.data?.report ?? null;
 
   return (
     <div className="mt-4 grid gap-4">
@@ -102,8 +136,37 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
       </form>
 
       {report.isFetching && (
-        <p className="card" role="status">
-          Re-scoring the archive against the new version… (stored results are not changed)
+        <div className="card" role="status">
+          <p>
+            {run?.status === 'running'
+              ? `Re-scoring the archive against the new version: ${run.slicesDone} of ${run.slicesTotal} slices done${run.instances > 1 ? ` by ${run.instances} server instances` : ''}…`
+              : 'Re-scoring queued: it starts when a server instance is free…'}{' '}
+            (stored results are not changed)
+          </p>
+          {run && run.slicesTotal > 0 && (
+            <progress
+              className="mt-2 w-full"
+              max={run.slicesTotal}
+              value={run.slicesDone}
+              aria-label="Slices re-scored"
+            />
+          )}
+        </div>
+      )}
+      {run?.status === 'failed' && (
+        <div className="card border-withdraw" role="alert">
+          <p className="text-withdraw">
+            The re-scoring stopped: {run.lastError ?? 'a slice failed'}. The owner can retry the failed slice
+            on the Jobs page, or run the whole list again.
+          </p>
+          <button type="button" className="btn mt-2" disabled={starting} onClick={() => void start()}>
+            Run again
+          </button>
+        </div>
+      )}
+      {startError && (
+        <p className="card border-withdraw text-withdraw" role="alert">
+          {startError}
         </p>
       )}
       {report.isError && (
@@ -111,7 +174,7 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
           {(report.error as Error).message}
         </p>
       )}
-      {data && !report.isFetching && (
+      {data && run?.status === 'done' && !report.isFetching && (
         <>
           <section className="card" aria-live="polite">
             <h2 className="text-lg font-bold">
@@ -126,9 +189,18 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                 `, ${data.unscorable} could not be re-scored (the new version needs answers they do not have)`}
               .
             </p>
-            <a className="btn mt-3" href={`/api/archive/impact.csv?${query}`} download>
-              Download the list (CSV)
-            </a>
+            <p className="mt-1 text-sm text-iron-600">
+              Run {run.reason === 'published' ? 'queued when the version was published' : 'asked for here'},
+              finished {day.format(new Date(run.finishedAt ?? run.createdAt))}.
+            </p>
+            <div className="mt-3 flex flex-wrap gap-2">
+              <a className="btn" href={`/api/archive/impact.csv?${query}`} download>
+                Download the list (CSV)
+              </a>
+              <button type="button" className="btn" disabled={starting} onClick={() => void start()}>
+                Run again
+              </button>
+            </div>
           </section>
           {data.items.length > 0 && (
             <ul className="grid gap-2">

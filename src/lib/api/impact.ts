@@ -70,3 +70,25 @@ export interface ImpactReport {
   workers: number;
   durationMs: number;
 }
+
+/** A queued ruleset impact run (split into slices that any server instance takes) and its progress. */
+export interface ImpactRunProgress {
+  id: string;
+  status: 'queued' | 'running' | 'done' | 'failed';
+  reason: 'published' | 'requested';
+  slicesTotal: number;
+  slicesDone: number;
+  /** How many server instances scored its slices so far. */
+  instances: number;
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+  lastError: string | null;
+}
+
+/** GET /api/archive/impact/run: the latest run of a version and basis, with what it has found so far. */
+export interface ImpactRunView {
+  run: ImpactRunProgress | null;
+  /** The counts and list so far (complete once `run.status` is `done`). */
+  report: ImpactReport | null;
+}

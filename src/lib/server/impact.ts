@@ -338,7 +338,7 @@ function candidates(
 }
 
 /** Slices of at most BATCH candidates each, found by reading ids only (keyset, id order). */
-async function* slicesOf(
+export async function* slicesOf(
   knex: Knex,
   organisationId: string,
   target: ImpactTarget,
@@ -458,7 +458,7 @@ export async function* rescoreArchive(
   }
 }
 
-const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
+export const worseFirst = (a: ImpactOutcome, b: ImpactOutcome) =>
   VERDICT_RANK[b.after ?? 'clear'] - VERDICT_RANK[a.after ?? 'clear'] ||
   a.clientName.localeCompare(b.clientName) ||
   a.gateLabel.localeCompare(b.gateLabel) ||

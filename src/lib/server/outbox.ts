@@ -1,20 +1,26 @@
 /**
  * The mail outbox. A message is a row written in the same transaction as the change it
- * announces, so it exists exactly when the change does; a worker inside the server process
- * sends it later through nodemailer. While SMTP is unreachable nothing is lost: the row stays
- * `queued` with a growing back-off and goes out when SMTP answers again.
+ * announces, together with the job that sends it (the job queue, jobs/boss.ts: queue `mail`),
+ * so both exist exactly when the change does. Any server instance of the channel takes the job
+ * and sends through nodemailer. While SMTP is unreachable nothing is lost: each refusal queues
+ * the next attempt as a new job after a growing back-off, and the row stays `queued` with the
+ * time of that attempt; after OUTBOX_MAX_ATTEMPTS the row is `failed` and the message is put on
+ * the dead-letter queue (`mail-dead`), from where the owner's jobs page can retry it.
  *
- * Claiming uses `FOR UPDATE SKIP LOCKED`, so several server processes can run workers side by
- * side without sending a message twice. A claimed row is leased (`sending` with a lease end in
- * next_attempt_at); a process that dies mid-send leaves a lease that expires and is reclaimed.
+ * The table stays the record of what was sent (the caught-mail pages and delivery statuses read
+ * it). Exactly once: pg-boss hands a job to one instance only, and the row itself is claimed
+ * (`queued` to `sending` with a lease end in next_attempt_at) before sending, so a stray second
+ * job finds nothing to do; a process that dies mid-send leaves a lease that runs out, and pg-boss
+ * gives the expired job to another instance.
  *
  * Where the worker runs: `src/integrations/outbox-worker.ts` adds a tiny middleware that starts
- * it on the first request any server process handles (every launcher polls /api/health at
- * boot), and the endpoints that queue mail wake it at once after their commit.
+ * the job queue on the first request any server process handles (every launcher polls
+ * /api/health at boot), and the endpoints that queue mail wake the worker after their commit.
  */
 import type { Knex } from 'knex';
 import { db } from './db';
 import { mailTransport } from './mail/transport';
+import { jobChannel, onJobsStarted, queueName, runningJobs, sendJob, startJobs } from './jobs/boss';
 import { storage } from './storage';
 
 export interface OutboxAttachment {
@@ -56,11 +62,8 @@ const envInt = (name: string, fallback: number) => {
   return Number.isFinite(value) && value > 0 ? value : fallback;
 };
 
-/** The group of workers that delivers this process's mail (OUTBOX_CHANNEL, default `default`). */
-export function outboxChannel(): string {
-  const channel = (process.env.OUTBOX_CHANNEL ?? 'default').trim().toLowerCase();
-  return /^[a-z0-9][a-z0-9_-]{0,39}$/.test(channel) ? channel : 'default';
-}
+/** The group of servers that delivers this process's mail (OUTBOX_CHANNEL, default `default`). */
+export const outboxChannel = jobChannel;
 
 export function outboxSettings(): OutboxSettings {
   return {
@@ -84,7 +87,7 @@ export function retryDelayMs(
   return Math.round(capped * (0.8 + 0.4 * random()));
 }
 
-/** Queues a message inside the caller's transaction; returns its id. */
+/** Queues a message inside the caller's transaction, with the job that sends it; returns its id. */
 export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessage): Promise<string> {
   if (!message.to.length) throw new Error('an outbox message needs at least one recipient');
   const [row] = await trx('outbox_messages')
@@ -102,7 +105,23 @@ export async function enqueueMail(trx: Knex.Transaction, message: NewOutboxMessa
       related_id: message.relatedId ?? null,
     })
     .returning('id');
+  await queueDelivery(trx, row.id, message.organisationId);
   return row.id;
+}
+
+/** The job that makes one delivery attempt of message `outboxId`, sent inside `trx`. */
+async function queueDelivery(
+  trx: Knex.Transaction,
+  outboxId: string,
+  organisationId: string | null,
+  startAfter?: Date,
+): Promise<void> {
+  const settings = outboxSettings();
+  await sendJob(
+    'mail',
+    { organisationId, outboxId },
+    { trx, startAfter, expireInSeconds: Math.max(30, Math.ceil(settings.leaseMs / 1000)) },
+  );
 }
 
 /**
@@ -120,6 +139,7 @@ export const sentLinkNote = 'Sent. The one-time link in this message is not kept
 
 interface ClaimedMessage {
   id: string;
+  organisation_id: string | null;
   kind: string;
   to_addresses: string[];
   cc_addresses: string[];
@@ -130,41 +150,41 @@ interface ClaimedMessage {
   attempts: number;
 }
 
-/** Leases up to `limit` due messages to this worker and counts the attempt. */
-export async function claimDueMessages(knex: Knex, settings: OutboxSettings): Promise<ClaimedMessage[]> {
-  return knex.transaction(async (trx): Promise<ClaimedMessage[]> => {
-    const due = await trx('outbox_messages')
-      .where('channel', outboxChannel())
-      .whereIn('status', ['queued', 'sending'])
-      .andWhere('next_attempt_at', '<=', trx.fn.now())
-      .orderBy('next_attempt_at')
-      .limit(settings.batchSize)
-      .forUpdate()
-      .skipLocked()
-      .select('id');
-    if (!due.length) return [];
-    return trx('outbox_messages')
-      .whereIn(
-        'id',
-        due.map((d) => d.id),
-      )
-      .update({
-        status: 'sending',
-        attempts: trx.raw('attempts + 1'),
-        next_attempt_at: trx.raw(`now() + (? * interval '1 millisecond')`, [settings.leaseMs]),
-      })
-      .returning([
-        'id',
-        'kind',
-        'to_addresses',
-        'cc_addresses',
-        'subject',
-        'text_body',
-        'html_body',
-        'attachments',
-        'attempts',
-      ]) as Promise<ClaimedMessage[]>;
-  });
+/**
+ * Leases message `id` to this worker and counts the attempt: only a `queued` message, or one
+ * whose previous lease ran out (its sender died mid-send). Null when it is not there to send
+ * (sent already, given up on, or being sent by another instance right now).
+ */
+async function claimMessage(
+  knex: Knex,
+  id: string,
+  settings: OutboxSettings,
+): Promise<ClaimedMessage | null> {
+  const [row] = (await knex('outbox_messages')
+    .where({ id })
+    .andWhere((w) =>
+      w
+        .where('status', 'queued')
+        .orWhere((q) => q.where('status', 'sending').andWhere('next_attempt_at', '<=', knex.fn.now())),
+    )
+    .update({
+      status: 'sending',
+      attempts: knex.raw('attempts + 1'),
+      next_attempt_at: knex.raw(`now() + (? * interval '1 millisecond')`, [settings.leaseMs]),
+    })
+    .returning([
+      'id',
+      'organisation_id',
+      'kind',
+      'to_addresses',
+      'cc_addresses',
+      'subject',
+      'text_body',
+      'html_body',
+      'attachments',
+      'attempts',
+    ])) as ClaimedMessage[];
+  return row ?? null;
 }
 
 async function sendOne(message: ClaimedMessage): Promise<void> {
@@ -186,100 +206,104 @@ async function sendOne(message: ClaimedMessage): Promise<void> {
   });
 }
 
-export interface DeliveryReport {
-  sent: number;
-  retried: number;
-  failed: number;
-}
+export type DeliveryOutcome = 'sent' | 'retried' | 'failed' | 'skipped';
 
-/** One pass: claim what is due, send it, record the outcome. */
-export async function deliverDueMessages(
+/**
+ * One delivery attempt of one message (what a `mail` job does). A refusal queues the next
+ * attempt as a new job, due after the back-off (retryDelayMs), in the same transaction as the
+ * row's new state; the last refusal marks the row failed and puts the message on the dead-letter
+ * queue (`mail-dead`), where the owner's jobs page can send it round again.
+ */
+export async function deliverMessage(
+  outboxId: string,
   knex: Knex = db(),
   settings = outboxSettings(),
-): Promise<DeliveryReport> {
-  const report: DeliveryReport = { sent: 0, retried: 0, failed: 0 };
-  const claimed = await claimDueMessages(knex, settings);
-  for (const message of claimed) {
-    try {
-      await sendOne(message);
-      const redacted = oneTimeLinkKinds.includes(message.kind)
-        ? { text_body: sentLinkNote, html_body: null }
-        : {};
-      await knex('outbox_messages')
-        .where({ id: message.id })
-        .update({ status: 'sent', sent_at: knex.fn.now(), last_error: null, ...redacted });
-      report.sent++;
-    } catch (error) {
-      const lastError = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
-      if (message.attempts >= settings.maxAttempts) {
-        await knex('outbox_messages')
+): Promise<DeliveryOutcome> {
+  const message = await claimMessage(knex, outboxId, settings);
+  if (!message) return 'skipped';
+  try {
+    await sendOne(message);
+  } catch (error) {
+    const lastError = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
+    if (message.attempts >= settings.maxAttempts) {
+      await knex.transaction(async (trx) => {
+        await trx('outbox_messages')
           .where({ id: message.id })
           .update({ status: 'failed', last_error: lastError });
-        report.failed++;
-      } else {
-        const delay = retryDelayMs(message.attempts, settings);
-        await knex('outbox_messages')
-          .where({ id: message.id })
-          .update({
-            status: 'queued',
-            last_error: lastError,
-            next_attempt_at: knex.raw(`now() + (? * interval '1 millisecond')`, [delay]),
-          });
-        report.retried++;
-      }
+        await sendJob(
+          'mail-dead',
+          { organisationId: message.organisation_id, outboxId: message.id, lastError },
+          { trx },
+        );
+      });
+      return 'failed';
     }
+    const delay = retryDelayMs(message.attempts, settings);
+    await knex.transaction(async (trx) => {
+      await trx('outbox_messages')
+        .where({ id: message.id })
+        .update({
+          status: 'queued',
+          last_error: lastError,
+          next_attempt_at: trx.raw(`now() + (? * interval '1 millisecond')`, [delay]),
+        });
+      await queueDelivery(trx, message.id, message.organisation_id, new Date(Date.now() + delay));
+    });
+    return 'retried';
   }
-  return report;
+  const redacted = oneTimeLinkKinds.includes(message.kind)
+    ? { text_body: sentLinkNote, html_body: null }
+    : {};
+  await knex('outbox_messages')
+    .where({ id: message.id })
+    .update({ status: 'sent', sent_at: knex.fn.now(), last_error: null, ...redacted });
+  return 'sent';
 }
 
-interface WorkerState {
-  timer: NodeJS.Timeout;
-  running: boolean;
-  again: boolean;
+/**
+ * Sends a message given up on round again (the jobs page's retry of a dead one): the row is
+ * queued with a fresh count of attempts and a new job is queued, in `trx`.
+ */
+export async function requeueFailedMessage(trx: Knex.Transaction, outboxId: string): Promise<boolean> {
+  const [row] = await trx('outbox_messages')
+    .where({ id: outboxId, status: 'failed' })
+    .update({ status: 'queued', attempts: 0, next_attempt_at: trx.fn.now() })
+    .returning(['id', 'organisation_id']);
+  if (!row) return false;
+  await queueDelivery(trx, row.id, row.organisation_id);
+  return true;
 }
 
-let worker: WorkerState | undefined;
+let mailWorkerId: string | undefined;
 
-async function tick(): Promise<void> {
-  if (!worker) return;
-  if (worker.running) {
-    worker.again = true;
-    return;
-  }
-  worker.running = true;
-  try {
-    do {
-      worker.again = false;
-      const report = await deliverDueMessages();
-      // A full batch may mean more are waiting: go again at once.
-      if (report.sent + report.retried + report.failed >= outboxSettings().batchSize) worker.again = true;
-    } while (worker.again);
-  } catch (error) {
-    // The database being briefly away is not worth a stack trace every poll.
-    console.warn('[outbox] delivery pass failed:', error instanceof Error ? error.message : error);
-  } finally {
-    worker.running = false;
-  }
-}
+onJobsStarted(async (boss) => {
+  if (process.env.OUTBOX_WORKER === 'off') return;
+  const settings = outboxSettings();
+  mailWorkerId = await boss.work<{ outboxId: string }>(
+    queueName('mail'),
+    { batchSize: settings.batchSize, pollingIntervalSeconds: Math.max(0.5, settings.pollMs / 1000) },
+    async (jobs) => {
+      // Each message on its own: one refusal must not fail the others of the batch.
+      for (const job of jobs) await deliverMessage(job.data.outboxId);
+    },
+  );
+});
 
-/** Starts this process's worker once; later calls do nothing. Set OUTBOX_WORKER=off to disable. */
+/** Starts this process's job queue and workers (mail included) once. Set OUTBOX_WORKER=off for no mail worker. */
 export function ensureOutboxWorker(): void {
-  if (worker || process.env.OUTBOX_WORKER === 'off') return;
-  const timer = setInterval(() => void tick(), outboxSettings().pollMs);
-  timer.unref();
-  worker = { timer, running: false, again: false };
-  void tick();
+  void startJobs().catch(() => {});
 }
 
-/** Asks the worker to look now (after a commit that queued mail). */
+/**
+ * Asks this process's mail worker to look now (after a commit that queued mail). Only where the
+ * queue runs already (a server); a script (the demo seed) only queues, and a server sends.
+ */
 export function wakeOutboxWorker(): void {
-  ensureOutboxWorker();
-  void tick();
-}
-
-export function stopOutboxWorker(): void {
-  if (worker) clearInterval(worker.timer);
-  worker = undefined;
+  void runningJobs()
+    ?.then((boss) => {
+      if (mailWorkerId) boss.notifyWorker(mailWorkerId);
+    })
+    .catch(() => {});
 }
 
 export interface OutboxMessageStatus {

@@ -15,6 +15,7 @@ import {
   type RulesetVersionDetail,
 } from '@/lib/api/rulesets';
 import { validateRuleset, type LoadedRuleset, type RulesetProblem, type RulesetVersion } from '@/lib/rules';
+import { queueImpactAfterPublish } from './impact-runs';
 import { recordAudit } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
@@ -207,15 +208,12 @@ async function lockOwnVersion(
       `${family} is a shipped family and cannot be ${action}; derive an amendment of it instead.`,
     );
   }
-  const row = await trx('ruleset_versions')
-    .where({ id: stored.id })
-    .forUpdate()
-    .first<{
-      status: string;
-      content: unknown;
-      content_sha256: string;
-      derived_from_version_id: string | null;
-    }>('status', 'content', 'content_sha256', 'derived_from_version_id');
+  const row = await trx('ruleset_versions').where({ id: stored.id }).forUpdate().first<{
+    status: string;
+    content: unknown;
+    content_sha256: string;
+    derived_from_version_id: string | null;
+  }>('status', 'content', 'content_sha256', 'derived_from_version_id');
   if (row.status !== 'draft') {
     throw new HttpProblem(
       409,
@@ -298,7 +296,7 @@ export async function publishDraft(
   version: string,
   request: RequestFacts,
 ): Promise<RulesetVersionDetail> {
-  await db().transaction(async (trx) => {
+  const publishedId = await db().transaction(async (trx) => {
     const draft = await lockOwnVersion(trx, user, family, version, 'published from here');
     const checked = validateRuleset(draft.content);
     if (!checked.ok)
@@ -323,7 +321,12 @@ export async function publishDraft(
         derivedFrom: draft.content.derivedFrom ?? null,
       },
     });
+    return draft.stored.id as string;
   });
+  // The impact of the new version on the archive, on the job queue (src/lib/server/impact-runs.ts).
+  await queueImpactAfterPublish(publishedId).catch((error) =>
+    console.warn('[impact] could not queue the run:', error instanceof Error ? error.message : error),
+  );
   return detailAfterCommit(user, family, version);
 }
 

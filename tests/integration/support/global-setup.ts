@@ -67,6 +67,9 @@ export default async function setup(project: TestProject) {
     OUTBOX_CHANNEL: project.name === 'integration' ? 'default' : project.name,
     // Every answer says how many SQL statements it took (session-cost.test.ts counts them).
     QUERY_COUNT_HEADER: '1',
+    // The suite's servers send no scheduled reminders: they would mail every test organisation
+    // with a due gate. tests/integration/background-jobs.test.ts runs servers with the schedule on.
+    REINSPECTION_SCHEDULE: 'off',
   };
   const server = await startAppServer({ port, quiet: true, env: serverEnv });
   project.provide('serverEnv', serverEnv);

@@ -1,0 +1,105 @@
+/** The owner's background jobs: counts by status and the list, refreshed while the page is open; retry for failed and dead ones. */
+import { useEffect, useState } from 'react';
+import type { JobList, JobStatus } from '@/lib/api/jobs';
+
+interface Props {
+  initial: JobList;
+  timeZone: string;
+}
+
+const STATUS_WORDS: Record<JobStatus, string> = {
+  queued: 'Queued',
+  running: 'Running',
+  failed: 'Failed',
+  dead: 'Dead (given up)',
+};
+const statusClass: Record<JobStatus, string> = {
+  queued: 'text-iron-700',
+  running: 'text-clear',
+  failed: 'text-remedy',
+  dead: 'text-withdraw',
+};
+
+export default function JobsList({ initial, timeZone }: Props) {
+  const [list, setList] = useState(initial);
+  const [message, setMessage] = useState<string | null>(null);
+  const [busy, setBusy] = useState<string | null>(null);
+  const when = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
+
+  const refresh = async () => {
+    const res = await fetch('/api/jobs', { headers: { accept: 'application/json' } }).catch(() => null);
+    if (res?.ok) setList((await res.json()) as JobList);
+  };
+  useEffect(() => {
+    const timer = setInterval(() => void refresh(), 5000);
+    return () => clearInterval(timer);
+  }, []);
+
+  const retry = async (id: string) => {
+    setBusy(id);
+    setMessage(null);
+    const res = await fetch(`/api/jobs/${id}/retry`, {
+      method: 'POST',
+      headers: { accept: 'application/json' },
+    }).catch(() => null);
+    const body = res ? await res.json().catch(() => null) : null;
+    setMessage(
+      res?.ok ? 'Sent round again.' : (body?.detail ?? 'No connection to the server. Try again in a moment.'),
+    );
+    setBusy(null);
+    await refresh();
+  };
+
+  return (
+    <div className="mt-4 grid gap-4">
+      <p className="card" aria-live="polite">
+        {(Object.keys(STATUS_WORDS) as JobStatus[]).map((s, i) => (
+          <span key={s}>
+            {i > 0 && ' · '}
+            <span className={`font-semibold ${statusClass[s]}`}>{list.counts[s]}</span>{' '}
+            {STATUS_WORDS[s].toLowerCase()}
+          </span>
+        ))}
+      </p>
+      {message && (
+        <p className="card" role="status">
+          {message}
+        </p>
+      )}
+      {list.items.length === 0 ? (
+        <p className="card">Nothing waiting, running or failed.</p>
+      ) : (
+        <ul className="grid gap-2">
+          {list.items.map((job) => (
+            <li key={job.id} className="card" data-job-id={job.id} data-job-status={job.status}>
+              <div className="flex flex-wrap items-center gap-2">
+                <span className={`font-semibold ${statusClass[job.status]}`}>{STATUS_WORDS[job.status]}</span>
+                <span className="font-semibold">{job.queueLabel}</span>
+                <span className="text-sm text-iron-600">{job.about}</span>
+              </div>
+              <p className="mt-1 text-sm text-iron-600">
+                Queued {when.format(new Date(job.createdAt))}
+                {job.status === 'queued' && ` · runs from ${when.format(new Date(job.startAfter))}`}
+                {job.startedAt &&
+                  job.status === 'running' &&
+                  ` · started ${when.format(new Date(job.startedAt))}`}
+                {job.retryCount > 0 && ` · retried ${job.retryCount}×`}
+              </p>
+              {job.error && <p className="mt-1 text-sm text-withdraw">{job.error}</p>}
+              {job.canRetry && (
+                <button
+                  type="button"
+                  className="btn mt-2"
+                  disabled={busy === job.id}
+                  onClick={() => void retry(job.id)}
+                >
+                  Retry
+                </button>
+              )}
+            </li>
+          ))}
+        </ul>
+      )}
+    </div>
+  );
+}

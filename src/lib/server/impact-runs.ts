@@ -1,0 +1,257 @@
+/**
+ * Ruleset impact runs on the job queue. Publishing a version (an organisation's own, or a
+ * shipped one for each organisation with signed assessments of its family) queues a run; so can
+ * the impact page. A run is cut into slices (impact.ts `slicesOf`: keyset ranges of assessment
+ * ids, IMPACT_SLICE_SIZE each) and each slice is one `impact-slice` job that any server instance
+ * of the channel takes, scores (impact.ts `rescoreSlice`) and adds into the run's row: counts,
+ * the most severe worse outcomes, progress. More instances, more slices at once.
+ *
+ * A slice job that runs twice (an instance died after adding its counts) is counted once
+ * (`done_slices`). A slice that fails after its retries marks the run failed; the owner's jobs
+ * page can retry it, and the run completes when it succeeds.
+ */
+import os from 'node:os';
+import type { Knex } from 'knex';
+import type {
+  ImpactBasis,
+  ImpactOutcome,
+  ImpactReport,
+  ImpactRunProgress,
+  ImpactRunView,
+  ImpactTarget,
+} from '@/lib/api/impact';
+import { db } from './db';
+import { impactTarget, rescoreSlice, slicesOf, worseFirst, type ImpactSlice } from './impact';
+import { onJobsStarted, queueName, sendJob } from './jobs/boss';
+import { iso } from './listing';
+
+const ITEM_LIMIT = 500;
+const instanceName = `${os.hostname()}:${process.pid}`;
+
+interface RunRow {
+  id: string;
+  organisation_id: string;
+  version_id: string;
+  basis: ImpactBasis;
+  reason: ImpactRunProgress['reason'];
+  status: ImpactRunProgress['status'];
+  slices_total: number;
+  slices_done: number;
+  considered: number;
+  worse: number;
+  better: number;
+  same: number;
+  unscorable: number;
+  items: ImpactOutcome[];
+  truncated: boolean;
+  unscorable_samples: ImpactReport['unscorableSamples'];
+  instances: string[];
+  last_error: string | null;
+  created_at: Date;
+  started_at: Date | null;
+  finished_at: Date | null;
+}
+
+/**
+ * Queues a run of `target` for the organisation: the run's row and one job per slice, in one
+ * transaction (a run with nothing to score is done at once). Answers the run's id.
+ */
+export async function startImpactRun(
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+  reason: ImpactRunProgress['reason'],
+  knex: Knex = db(),
+): Promise<string> {
+  const slices: ImpactSlice[] = [];
+  for await (const slice of slicesOf(knex, organisationId, target, basis)) slices.push(slice);
+  return knex.transaction(async (trx) => {
+    const [run] = await trx('impact_runs')
+      .insert({
+        organisation_id: organisationId,
+        version_id: target.id,
+        basis,
+        reason,
+        slices_total: slices.length,
+        status: slices.length ? 'queued' : 'done',
+        finished_at: slices.length ? null : trx.fn.now(),
+      })
+      .returning('id');
+    for (const [index, slice] of slices.entries())
+      await sendJob(
+        'impact-slice',
+        {
+          organisationId,
+          runId: run.id,
+          slice: index,
+          slices: slices.length,
+          target: { family: target.family, version: target.version },
+          spec: slice,
+        },
+        { trx },
+      );
+    return run.id as string;
+  });
+}
+
+/**
+ * After a version is published: a run for each organisation that has signed assessments under
+ * another version of the family (for an organisation's own family, just that organisation).
+ */
+export async function queueImpactAfterPublish(versionId: string, knex: Knex = db()): Promise<number> {
+  const version = await knex('ruleset_versions as rv')
+    .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+    .where('rv.id', versionId)
+    .first('r.id as ruleset_id', 'r.organisation_id');
+  if (!version) return 0;
+  const organisations = (await knex('assessments as a')
+    .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
+    .where('rv.ruleset_id', version.ruleset_id)
+    .andWhereNot('rv.id', versionId)
+    .andWhere('a.status', 'signed')
+    .modify((q) => {
+      if (version.organisation_id) q.andWhere('a.organisation_id', version.organisation_id);
+    })
+    .distinct('a.organisation_id')) as { organisation_id: string }[];
+  let queued = 0;
+  for (const { organisation_id: organisationId } of organisations) {
+    const target = await impactTarget(organisationId, versionId, knex);
+    if (!target) continue;
+    await startImpactRun(organisationId, target, 'latest', 'published', knex);
+    queued++;
+  }
+  return queued;
+}
+
+/** Adds one scored slice into its run; a slice already counted is skipped. */
+async function addSlice(
+  runId: string,
+  index: number,
+  outcomes: ImpactOutcome[],
+  knex: Knex = db(),
+): Promise<void> {
+  await knex.transaction(async (trx) => {
+    const run = (await trx('impact_runs').where({ id: runId }).forUpdate().first()) as
+      (RunRow & { done_slices: number[] }) | undefined;
+    if (!run || run.done_slices.includes(index)) return;
+    const counts = { considered: 0, worse: 0, better: 0, same: 0, unscorable: 0 };
+    const samples = [...run.unscorable_samples];
+    for (const o of outcomes) {
+      counts.considered++;
+      counts[o.change]++;
+      if (o.change === 'unscorable' && samples.length < 10)
+        samples.push({ assessmentId: o.assessmentId, gateLabel: o.gateLabel, problem: o.problem });
+    }
+    const items = [...run.items, ...outcomes.filter((o) => o.change === 'worse')].sort(worseFirst);
+    const done = run.slices_done + 1;
+    await trx('impact_runs')
+      .where({ id: runId })
+      .update({
+        considered: run.considered + counts.considered,
+        worse: run.worse + counts.worse,
+        better: run.better + counts.better,
+        same: run.same + counts.same,
+        unscorable: run.unscorable + counts.unscorable,
+        items: JSON.stringify(items.slice(0, ITEM_LIMIT)),
+        truncated: run.worse + counts.worse > ITEM_LIMIT,
+        unscorable_samples: JSON.stringify(samples),
+        slices_done: done,
+        done_slices: trx.raw('array_append(done_slices, ?::int)', [index]),
+        instances: trx.raw(
+          'case when ? = any(instances) then instances else array_append(instances, ?::text) end',
+          [instanceName, instanceName],
+        ),
+        status: done >= run.slices_total ? 'done' : 'running',
+        started_at: run.started_at ?? trx.fn.now(),
+        finished_at: done >= run.slices_total ? trx.fn.now() : null,
+        last_error: done >= run.slices_total ? null : run.last_error,
+      });
+  });
+}
+
+interface SliceJob {
+  organisationId: string;
+  runId: string;
+  slice: number;
+  slices: number;
+  spec: ImpactSlice;
+}
+
+onJobsStarted(async (boss) => {
+  if (process.env.IMPACT_QUEUE_WORKER === 'off') return;
+  // Slices at once in this process (IMPACT_CONCURRENCY, default 1: scoring is CPU-bound and runs
+  // in the server's thread, yielding to requests every hundred assessments).
+  const concurrency = Math.max(1, Math.min(8, Number(process.env.IMPACT_CONCURRENCY) || 1));
+  for (let i = 0; i < concurrency; i++)
+    await boss.work<SliceJob>(
+      queueName('impact-slice'),
+      { batchSize: 1, pollingIntervalSeconds: 0.5, includeMetadata: true },
+      async ([job]) => {
+        if (!job) return;
+        const { runId, slice, spec } = job.data;
+        await db()('impact_runs')
+          .where({ id: runId, status: 'queued' })
+          .update({ status: 'running', started_at: db().fn.now() });
+        try {
+          await addSlice(runId, slice, await rescoreSlice(spec));
+        } catch (error) {
+          const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
+          const last = job.retryCount >= job.retryLimit;
+          await db()('impact_runs')
+            .where({ id: runId })
+            .update({ last_error: message, ...(last ? { status: 'failed' } : {}) });
+          throw error;
+        }
+      },
+    );
+});
+
+function progressOf(row: RunRow): ImpactRunProgress {
+  return {
+    id: row.id,
+    status: row.status,
+    reason: row.reason,
+    slicesTotal: row.slices_total,
+    slicesDone: row.slices_done,
+    instances: row.instances.length,
+    createdAt: iso(row.created_at),
+    startedAt: row.started_at ? iso(row.started_at) : null,
+    finishedAt: row.finished_at ? iso(row.finished_at) : null,
+    lastError: row.last_error,
+  };
+}
+
+/** The latest run of this version and basis for the organisation, and its report so far. */
+export async function latestImpactRun(
+  organisationId: string,
+  target: ImpactTarget,
+  basis: ImpactBasis,
+  knex: Knex = db(),
+): Promise<ImpactRunView> {
+  const row = (await knex('impact_runs')
+    .where({ organisation_id: organisationId, version_id: target.id, basis })
+    .orderBy('created_at', 'desc')
+    .first()) as RunRow | undefined;
+  if (!row) return { run: null, report: null };
+  const { otherVersions, ...rest } = target;
+  const end = row.finished_at ?? new Date();
+  return {
+    run: progressOf(row),
+    report: {
+      target: { ...rest, comparedWith: otherVersions.map((v) => v.version) },
+      basis,
+      considered: row.considered,
+      worse: row.worse,
+      better: row.better,
+      same: row.same,
+      unscorable: row.unscorable,
+      items: row.items,
+      truncated: row.truncated,
+      unscorableSamples: row.unscorable_samples,
+      workers: row.instances.length,
+      durationMs: row.started_at
+        ? Math.max(0, new Date(end).getTime() - new Date(row.started_at).getTime())
+        : 0,
+    },
+  };
+}
