@@ -56,7 +56,7 @@ function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
 export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
   const parsed = parseInput.safeParse(input);
   if (!parsed.success) throw new AssessmentInputError(issuesFromZod(parsed.error));
-  return scoreParsed(parsed.data, ruleset);
+  return scoreChecked(parsed.data, ruleset, true);
 }
 
 /**
@@ -65,6 +65,15 @@ export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): 
  * the version (AssessmentInputError): an answer the version asks in another form is refused.
  */
 export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
+  return scoreChecked(input, ruleset, false);
+}
+
+/** `schemaOrdered`: the input is what the schema just built (keys in canonical order), so it hashes natively. */
+function scoreChecked(
+  input: AssessmentInput,
+  ruleset: LoadedRuleset | RulesetVersion,
+  schemaOrdered: boolean,
+): ScoreResult {
   const compiled = resolve(ruleset);
   const issues = checkInputAgainstRuleset(input, compiled);
   if (issues.length > 0) throw new AssessmentInputError(issues);
@@ -96,7 +105,7 @@ export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | Rul
   const verdict = verdictOf(findings);
   const result: ScoreResult = {
     ruleset: { family: version.family, version: version.version, contentSha256: compiled.contentSha256 },
-    inputSha256: inputSha256(input, compiled),
+    inputSha256: inputSha256(input, compiled, schemaOrdered),
     verdict,
     complete: counts.needsInfo === 0 && (contradictions === null || contradictions.length === 0),
     findings,

@@ -7,28 +7,85 @@
  * (everything else, a key the version does not ask included). The engine now takes the one
  * stored answer map, but results signed before that carry hashes of this form, and the same
  * documents scored again must give the same result bytes, so the split is kept here, for the
- * hash only. Everything else is written as canonicalJson writes it (keys sorted, undefined
- * members left out, -0 as 0).
+ * hash only. Everything is written as canonicalJson writes it (keys sorted, undefined members
+ * left out, -0 as 0); a unit test holds it to an independent writer from npm.
+ *
+ * Answers and measurements are most of an input, so their entries (`{ note?, value }` and
+ * `{ canonical, note?, unit, value }`) are written by hand in canonical order; an entry with any
+ * other member goes through the generic writer, so nothing is ever left out of the hash.
  */
 import type { CompiledRuleset } from './compile';
-import { canonicalJson, sha256Hex } from './hash';
+import { canonicalJson, quoted, sha256Hex, writeNumber } from './hash';
 import type { AssessmentInput } from './input';
 
-/** The members of the record form, in canonical (sorted) order, after `answers` and `choices`. */
-const REST = [
-  'entrapment',
-  'forceTests',
-  'hrnOverrides',
-  'measurements',
-  'profile',
-  'site',
-  'swingGeometry',
-] as const;
+/** The members after `answers`, `choices` and `entrapment`…`hrnOverrides`, in canonical (sorted) order. */
+const BEFORE_MEASUREMENTS = ['entrapment', 'forceTests', 'hrnOverrides'] as const;
+const AFTER_MEASUREMENTS = ['profile', 'site', 'swingGeometry'] as const;
 
-/** The canonical JSON of the input's record form (see the module comment). */
-export function inputRecordJson(input: AssessmentInput, compiled: CompiledRuleset): string {
+/** The record's own keys in code-unit order (an insertion sort: a record holds a few dozen). */
+function sortedKeys(record: object): string[] {
+  const keys = Object.keys(record);
+  if (keys.length > 64) return keys.sort();
+  for (let i = 1; i < keys.length; i++) {
+    const key = keys[i]!;
+    let j = i - 1;
+    for (; j >= 0 && keys[j]! > key; j--) keys[j + 1] = keys[j]!;
+    keys[j + 1] = key;
+  }
+  return keys;
+}
+
+function countKeys(value: object): number {
+  let n = 0;
+  for (const key in value) if (Object.prototype.hasOwnProperty.call(value, key)) n++;
+  return n;
+}
+
+function writeAnswer(entry: { value: string; note?: string }): string {
+  const { value, note } = entry;
+  if (typeof value !== 'string' || countKeys(entry) !== (note === undefined ? ('note' in entry ? 2 : 1) : 2))
+    return canonicalJson(entry);
+  if (note === undefined) return '{"value":' + quoted(value) + '}';
+  if (typeof note !== 'string') return canonicalJson(entry);
+  return '{"note":' + JSON.stringify(note) + ',"value":' + quoted(value) + '}';
+}
+
+function writeMeasured(entry: { value: number; unit: string; canonical: number; note?: string }): string {
+  const { value, unit, canonical, note } = entry;
+  const expected = note === undefined && !('note' in entry) ? 3 : 4;
+  if (
+    typeof value !== 'number' ||
+    typeof canonical !== 'number' ||
+    typeof unit !== 'string' ||
+    countKeys(entry) !== expected ||
+    (note !== undefined && typeof note !== 'string')
+  )
+    return canonicalJson(entry);
+  return (
+    '{"canonical":' +
+    writeNumber(canonical) +
+    (note === undefined ? '' : ',"note":' + JSON.stringify(note)) +
+    ',"unit":' +
+    quoted(unit) +
+    ',"value":' +
+    writeNumber(value) +
+    '}'
+  );
+}
+
+/**
+ * The canonical JSON of the input's record form (see the module comment). `schemaOrdered`: the
+ * input is what AssessmentInputSchema just built, every object's keys already in canonical order
+ * (canonicalObject and dictionaryRecord in input.ts) and every number finite, so the native
+ * writer's output is canonical for each member (a unit test holds the two equal).
+ */
+export function inputRecordJson(
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+  schemaOrdered = false,
+): string {
   try {
-    return write(input, compiled);
+    return schemaOrdered ? writeOrdered(input, compiled) : write(input, compiled);
   } catch (error) {
     // Name where the problem is, from the top of the input (canonicalJson throws with the path).
     if (error instanceof TypeError) canonicalJson(input);
@@ -40,29 +97,71 @@ function write(input: AssessmentInput, compiled: CompiledRuleset): string {
   let out = '{';
   const answers = input.answers;
   if (answers !== undefined) {
-    const keys = Object.keys(answers).sort();
     let yesNo = '';
     let choices = '';
     const questions = compiled.questionByKey;
-    for (const key of keys) {
+    for (const key of sortedKeys(answers)) {
       const entry = answers[key];
       if (entry === undefined) continue;
-      const member = canonicalJson(key) + ':' + canonicalJson(entry);
-      if (questions.get(key)?.answerType === 'yes_no_na') yesNo += (yesNo ? ',' : '') + member;
-      else choices += (choices ? ',' : '') + member;
+      const member = quoted(key) + ':' + writeAnswer(entry);
+      if (questions.get(key)?.answerType === 'yes_no_na') yesNo += yesNo ? ',' + member : member;
+      else choices += choices ? ',' + member : member;
     }
     out += '"answers":{' + yesNo + '},"choices":{' + choices + '}';
   }
-  for (const name of REST) {
+  for (const name of BEFORE_MEASUREMENTS) {
     const member = input[name];
     if (member === undefined) continue;
-    if (out.length > 1) out += ',';
-    out += '"' + name + '":' + canonicalJson(member);
+    out += (out.length > 1 ? ',"' : '"') + name + '":' + canonicalJson(member);
+  }
+  const measurements = input.measurements;
+  if (measurements !== undefined) {
+    let written = '';
+    for (const key of sortedKeys(measurements)) {
+      const entry = measurements[key];
+      if (entry === undefined) continue;
+      written += (written ? ',' : '') + quoted(key) + ':' + writeMeasured(entry);
+    }
+    out += (out.length > 1 ? ',' : '') + '"measurements":{' + written + '}';
+  }
+  for (const name of AFTER_MEASUREMENTS) {
+    const member = input[name];
+    if (member === undefined) continue;
+    out += (out.length > 1 ? ',"' : '"') + name + '":' + canonicalJson(member);
   }
   return out + '}';
 }
 
+/** The record form of an input the schema built (see inputRecordJson): the native writer, member by member. */
+function writeOrdered(input: AssessmentInput, compiled: CompiledRuleset): string {
+  let out = '{';
+  const answers = input.answers;
+  if (answers !== undefined) {
+    let yesNo = '';
+    let choices = '';
+    const questions = compiled.questionByKey;
+    for (const key in answers) {
+      const member = quoted(key) + ':' + JSON.stringify(answers[key]);
+      if (questions.get(key)?.answerType === 'yes_no_na') yesNo += yesNo ? ',' + member : member;
+      else choices += choices ? ',' + member : member;
+    }
+    out += '"answers":{' + yesNo + '},"choices":{' + choices + '}';
+  }
+  for (const name of ORDERED_REST) {
+    const member = input[name];
+    if (member === undefined) continue;
+    out += (out.length > 1 ? ',"' : '"') + name + '":' + JSON.stringify(member);
+  }
+  return out + '}';
+}
+
+const ORDERED_REST = [...BEFORE_MEASUREMENTS, 'measurements', ...AFTER_MEASUREMENTS] as const;
+
 /** SHA-256 of the input's record form. */
-export function inputSha256(input: AssessmentInput, compiled: CompiledRuleset): string {
-  return sha256Hex(inputRecordJson(input, compiled));
+export function inputSha256(
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+  schemaOrdered = false,
+): string {
+  return sha256Hex(inputRecordJson(input, compiled, schemaOrdered));
 }
