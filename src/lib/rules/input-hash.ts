@@ -15,7 +15,7 @@
  * other member goes through the generic writer, so nothing is ever left out of the hash.
  */
 import type { CompiledRuleset } from './compile';
-import { canonicalJson, quoted, sha256Hex, writeNumber } from './hash';
+import { canonicalJson, quoted, sha256Hex } from './hash';
 import type { AssessmentInput } from './input';
 
 /** The members after `answers`, `choices` and `entrapment`…`hrnOverrides`, in canonical (sorted) order. */
@@ -50,27 +50,71 @@ function writeAnswer(entry: { value: string; note?: string }): string {
   return '{"note":' + JSON.stringify(note) + ',"value":' + quoted(value) + '}';
 }
 
-function writeMeasured(entry: { value: number; unit: string; canonical: number; note?: string }): string {
-  const { value, unit, canonical, note } = entry;
-  const expected = note === undefined && !('note' in entry) ? 3 : 4;
-  if (
-    typeof value !== 'number' ||
-    typeof canonical !== 'number' ||
-    typeof unit !== 'string' ||
-    countKeys(entry) !== expected ||
-    (note !== undefined && typeof note !== 'string')
-  )
-    return canonicalJson(entry);
-  return (
-    '{"canonical":' +
-    writeNumber(canonical) +
-    (note === undefined ? '' : ',"note":' + JSON.stringify(note)) +
-    ',"unit":' +
-    quoted(unit) +
-    ',"value":' +
-    writeNumber(value) +
-    '}'
-  );
+/**
+ * Measurements: each entry copied into an object literal with its members in canonical order
+ * (`canonical`, `note`, `unit`, `value`), keys added in sorted order, and the whole written by the
+ * native writer. An entry of any other shape, or with a number that is not finite, goes through
+ * the generic writer instead, so nothing is ever left out of the hash or written as `null`.
+ */
+function writeMeasurements(measurements: Readonly<Record<string, unknown>>): string {
+  const mirror: Record<string, unknown> = {};
+  for (const key of sortedKeys(measurements)) {
+    // A key an object literal would not keep in insertion order (an array index) or would not keep at all.
+    const first = key.charCodeAt(0);
+    if (key === '__proto__' || (first >= 48 && first <= 57)) return canonicalJson(measurements);
+    const entry = measurements[key] as { value: number; unit: string; canonical: number; note?: string };
+    if (entry === undefined) continue;
+    const { value, unit, canonical, note } = entry;
+    if (
+      typeof value !== 'number' ||
+      typeof canonical !== 'number' ||
+      !Number.isFinite(value) ||
+      !Number.isFinite(canonical) ||
+      typeof unit !== 'string' ||
+      (note !== undefined && typeof note !== 'string') ||
+      countKeys(entry) !== (note === undefined && !('note' in entry) ? 3 : 4)
+    )
+      return canonicalJson(measurements);
+    mirror[key] = { canonical, note, unit, value };
+  }
+  return JSON.stringify(mirror);
+}
+
+/**
+ * A force trace's samples (thousands of `{ f, t }`): when every sample has exactly `f` then `t`
+ * (the canonical order, which is also the order PostgreSQL's jsonb keeps them in) and finite
+ * numbers, the native writer writes the canonical JSON; otherwise the generic writer does.
+ */
+function writeSamples(samples: readonly { t: number; f: number }[]): string {
+  for (let i = 0; i < samples.length; i++) {
+    const sample = samples[i] as Record<string, unknown> | null;
+    if (typeof sample !== 'object' || sample === null) return canonicalJson(samples);
+    let at = 0;
+    for (const key in sample) {
+      if (key !== (at === 0 ? 'f' : 't') || !Number.isFinite(sample[key])) return canonicalJson(samples);
+      at++;
+    }
+    if (at !== 2) return canonicalJson(samples);
+  }
+  return JSON.stringify(samples);
+}
+
+/** Force tests by the generic writer, but their samples (most of an input that has them) by hand. */
+function writeForceTests(tests: NonNullable<AssessmentInput['forceTests']>): string {
+  let out = '[';
+  for (let i = 0; i < tests.length; i++) {
+    const test = tests[i]!;
+    let written: string;
+    // `samples` sorts after every other member of a force test but `summary` (refused beside samples).
+    if (test && Array.isArray(test.samples) && test.samples.length > 0 && !('summary' in test)) {
+      const { samples, ...rest } = test;
+      const others = canonicalJson(rest);
+      written =
+        others.slice(0, -1) + (others.length > 2 ? ',' : '') + '"samples":' + writeSamples(samples) + '}';
+    } else written = canonicalJson(test);
+    out += i === 0 ? written : ',' + written;
+  }
+  return out + ']';
 }
 
 /**
@@ -112,18 +156,15 @@ function write(input: AssessmentInput, compiled: CompiledRuleset): string {
   for (const name of BEFORE_MEASUREMENTS) {
     const member = input[name];
     if (member === undefined) continue;
-    out += (out.length > 1 ? ',"' : '"') + name + '":' + canonicalJson(member);
+    const written =
+      name === 'forceTests' && Array.isArray(member)
+        ? writeForceTests(member as NonNullable<AssessmentInput['forceTests']>)
+        : canonicalJson(member);
+    out += (out.length > 1 ? ',"' : '"') + name + '":' + written;
   }
   const measurements = input.measurements;
-  if (measurements !== undefined) {
-    let written = '';
-    for (const key of sortedKeys(measurements)) {
-      const entry = measurements[key];
-      if (entry === undefined) continue;
-      written += (written ? ',' : '') + quoted(key) + ':' + writeMeasured(entry);
-    }
-    out += (out.length > 1 ? ',' : '') + '"measurements":{' + written + '}';
-  }
+  if (measurements !== undefined)
+    out += (out.length > 1 ? ',' : '') + '"measurements":' + writeMeasurements(measurements);
   for (const name of AFTER_MEASUREMENTS) {
     const member = input[name];
     if (member === undefined) continue;
