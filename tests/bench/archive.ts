@@ -166,11 +166,7 @@ async function seed(
     const usageClass = 1 + (p % 4);
     for (let v = 0; v < VARIANTS; v++) {
       const documents = sampleDocuments(prng, loaded.version, 0.97);
-      const built = buildEngineInput(
-        { ...gate, usageClass } as never,
-        documents as never,
-        loaded.version.questions,
-      );
+      const built = buildEngineInput({ ...gate, usageClass } as never, documents as never);
       if (!built.ok)
         throw new Error(`generated record does not build: ${JSON.stringify(built.errors).slice(0, 300)}`);
       const result = scoreParsed(built.value, loaded);

@@ -4,9 +4,15 @@
  * and prints the median and p99 microseconds per assessment; then evaluates the same rule
  * conditions over the same facts with json-rules-engine as a reference point.
  *
- * The ratio is conservative: the reference only evaluates conditions, while our figure is a
- * whole assessment (input parsing, calculators, conditions, HRN, area scores, input hash).
- * The conditions-only ratio compares like with like.
+ * The headline figure is a whole assessment of a valid input (scoreParsed: the check against the
+ * version, facts and calculators, every rule, HRN, area scores, needs-info and the input hash),
+ * which is what submit and the impact list pay per assessment (their input is assembled from
+ * documents validated when saved) and what a preview pays after its request body is parsed.
+ * The same with the zod parse of an untrusted input in front (score()) is printed beside it.
+ * Both ratios are conservative: the reference only evaluates conditions, on facts we built for
+ * it outside its timing. The conditions-only ratio compares like with like.
+ *
+ * Targets: median at most 50 µs, and json-rules-engine at least 10× slower, on the same inputs.
  *
  * On a shared host, memory-heavy work can run markedly slower for stretches of tens of seconds,
  * so the bench prints the median of each stretch of 2,000 in run order. To compare two variants,
@@ -34,6 +40,7 @@ import { shippedRulesetFiles } from '../unit/rules/support/shipped';
 import { flattenFacts, referenceEngineFor } from './json-logic-to-rules-engine';
 
 export interface ScoringBenchFigures {
+  /** Median of scoreParsed over valid inputs (see the module comment). */
   medianUs: number;
   p99Us: number;
   referenceMedianUs: number;
@@ -42,8 +49,10 @@ export interface ScoringBenchFigures {
   conditionsMedianUs: number;
   /** json-rules-engine median ÷ our conditions-only median. */
   conditionsRatio: number;
-  /** Median of scoreParsed on inputs parsed beforehand (what an endpoint that already parsed pays). */
-  parsedMedianUs: number;
+  /** Median of score(): the zod parse of an untrusted input, then the same scoring. */
+  untrustedMedianUs: number;
+  /** json-rules-engine median ÷ the score() median. */
+  untrustedRatio: number;
   /** Process CPU time per assessment over the whole scoring loop: less sensitive to a busy machine than wall time. */
   cpuMeanUs: number;
   /** Medians of consecutive stretches of the scoring loop, in run order: shows the machine's speed drifting within a run. */
@@ -51,6 +60,10 @@ export interface ScoringBenchFigures {
   assessments: number;
   untranslatedRules: number;
 }
+
+/** The targets: median per assessment, and how many times slower json-rules-engine must be. */
+export const MEDIAN_TARGET_US = 50;
+export const RATIO_TARGET = 10;
 
 const ASSESSMENTS = 10_000;
 const STRETCH = 2_000;
@@ -92,12 +105,14 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
   const rulesets = shippedRulesetFiles().map((file) => loadRulesetFile(readFileSync(file, 'utf8'), file));
   const cases = generateCases(rulesets);
 
-  for (const c of cases.slice(0, WARM_UP)) score(c.input, c.ruleset);
+  // Valid inputs, as the schema hands them to an endpoint (the parse is not timed here).
+  const valid = cases.map((c) => AssessmentInputSchema.parse(c.input));
+  for (let i = 0; i < WARM_UP; i++) scoreParsed(valid[i]!, cases[i]!.ruleset);
   const ours: number[] = [];
   const cpuBefore = process.cpuUsage();
-  for (const c of cases) {
+  for (let i = 0; i < cases.length; i++) {
     const start = process.hrtime.bigint();
-    score(c.input, c.ruleset);
+    scoreParsed(valid[i]!, cases[i]!.ruleset);
     ours.push(micros(start));
   }
   const cpu = process.cpuUsage(cpuBefore);
@@ -108,13 +123,13 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     stretchMediansUs.push(round2(percentile(stretch, 0.5)));
   }
 
-  const parsedInputs = cases.map((c) => AssessmentInputSchema.parse(c.input));
-  const parsedTimes: number[] = [];
-  cases.forEach((c, i) => {
+  for (const c of cases.slice(0, WARM_UP)) score(c.input, c.ruleset);
+  const untrusted: number[] = [];
+  for (const c of cases) {
     const start = process.hrtime.bigint();
-    scoreParsed(parsedInputs[i]!, c.ruleset);
-    parsedTimes.push(micros(start));
-  });
+    score(c.input, c.ruleset);
+    untrusted.push(micros(start));
+  }
 
   const facts = cases.map((c) => buildFacts(c.input).facts);
   const conditionsOnly: number[] = [];
@@ -139,7 +154,7 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     reference.push(micros(start));
   }
 
-  for (const list of [ours, conditionsOnly, reference, parsedTimes]) list.sort((a, b) => a - b);
+  for (const list of [ours, conditionsOnly, reference, untrusted]) list.sort((a, b) => a - b);
   const medianUs = percentile(ours, 0.5);
   const referenceMedianUs = percentile(reference, 0.5);
   const conditionsMedianUs = percentile(conditionsOnly, 0.5);
@@ -151,7 +166,8 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
     ratio: round2(referenceMedianUs / medianUs),
     conditionsMedianUs: round2(conditionsMedianUs),
     conditionsRatio: round2(referenceMedianUs / conditionsMedianUs),
-    parsedMedianUs: round2(percentile(parsedTimes, 0.5)),
+    untrustedMedianUs: round2(percentile(untrusted, 0.5)),
+    untrustedRatio: round2(referenceMedianUs / percentile(untrusted, 0.5)),
     cpuMeanUs: round2(cpuMeanUs),
     stretchMediansUs,
     assessments: cases.length,
@@ -166,18 +182,24 @@ export async function runScoringBench(): Promise<ScoringBenchFigures> {
   console.log(
     `Scored ${cases.length} generated assessments over ${rulesets.map((r) => `${r.version.family}@${r.version.version}`).join(', ')}`,
   );
+  const verdict = (holds: boolean) => (holds ? 'target met' : 'target NOT met');
   console.log(
-    `  whole assessment: median ${figures.medianUs} µs, p99 ${figures.p99Us} µs (target: median < 100 µs)`,
+    `  whole assessment, valid input (scoreParsed): median ${figures.medianUs} µs, p99 ${figures.p99Us} µs — target ≤ ${MEDIAN_TARGET_US} µs: ${verdict(figures.medianUs <= MEDIAN_TARGET_US)}`,
   );
   console.log(
     `  medians of each stretch of ${STRETCH.toLocaleString('en')}, in run order: ${stretchMediansUs.join(', ')} µs (a shared host can slow a stretch down)`,
   );
   console.log(`  CPU time per assessment (mean, whole loop): ${figures.cpuMeanUs} µs`);
-  console.log(`  input already parsed (scoreParsed): median ${figures.parsedMedianUs} µs`);
+  console.log(
+    `  with the zod parse of an untrusted input in front (score()): median ${figures.untrustedMedianUs} µs — target ≤ ${MEDIAN_TARGET_US} µs: ${verdict(figures.untrustedMedianUs <= MEDIAN_TARGET_US)}`,
+  );
   console.log(`  conditions only:  median ${figures.conditionsMedianUs} µs (checksum ${sink})`);
   console.log(`  json-rules-engine, same conditions and facts: median ${figures.referenceMedianUs} µs`);
   console.log(
-    `  ratio json-rules-engine ÷ ours: ${figures.ratio}× whole assessment, ${figures.conditionsRatio}× conditions only`,
+    `  ratio json-rules-engine ÷ ours: ${figures.ratio}× whole assessment — target ≥ ${RATIO_TARGET}×: ${verdict(figures.ratio >= RATIO_TARGET)}`,
+  );
+  console.log(
+    `  ratio json-rules-engine ÷ score() with the parse: ${figures.untrustedRatio}× — target ≥ ${RATIO_TARGET}×: ${verdict(figures.untrustedRatio >= RATIO_TARGET)}; conditions only: ${figures.conditionsRatio}×`,
   );
   console.log(
     `  not translatable to json-rules-engine (need if/min arithmetic): ${[...new Set(untranslated)].join(', ') || 'none'}`,

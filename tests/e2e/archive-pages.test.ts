@@ -67,7 +67,7 @@ beforeAll(async () => {
     g: ReturnType<typeof sampleGate>,
     d: ReturnType<typeof sampleDocuments>,
   ) => {
-    const built = buildEngineInput({ ...g, usageClass: 1 } as never, d as never, v.loaded.version.questions);
+    const built = buildEngineInput({ ...g, usageClass: 1 } as never, d as never);
     return built.ok ? scoreParsed(built.value, v.loaded).verdict : null;
   };
   for (let i = 0, found = 0; i < 3000 && found < 3; i++) {

@@ -49,11 +49,7 @@ interface Case {
 }
 
 function verdictUnder(version: PublishedVersion, c: Case) {
-  const built = buildEngineInput(
-    { ...c.gate, usageClass: 1 } as never,
-    c.documents as never,
-    version.loaded.version.questions,
-  );
+  const built = buildEngineInput({ ...c.gate, usageClass: 1 } as never, c.documents as never);
   return built.ok ? scoreParsed(built.value, version.loaded).verdict : null;
 }
 

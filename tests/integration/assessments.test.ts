@@ -235,11 +235,7 @@ describe('an assessment from draft to scored', () => {
     const gate = (await (await auditor.json('GET', `/api/gates/${dir.gateId}`)).json()) as Parameters<
       typeof buildEngineInput
     >[0];
-    const input = buildEngineInput(
-      { ...gate, usageClass: 2 },
-      stored,
-      (version.content as RulesetVersion).questions,
-    );
+    const input = buildEngineInput({ ...gate, usageClass: 2 }, stored);
     if (!input.ok) throw new Error(JSON.stringify(input.errors));
     const again = scoreParsed(input.value, {
       version: version.content as RulesetVersion,

@@ -95,11 +95,7 @@ function documentsScoring(
         version.loaded.version,
         diligence,
       );
-      const built = buildEngineInput(
-        { ...gate, usageClass } as never,
-        documents as never,
-        version.loaded.version.questions,
-      );
+      const built = buildEngineInput({ ...gate, usageClass } as never, documents as never);
       if (built.ok && scoreParsed(built.value, version.loaded).verdict === verdict) return documents;
     }
   }

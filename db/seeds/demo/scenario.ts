@@ -225,15 +225,11 @@ async function carryOut(knex: Knex, work: VisitWork): Promise<void> {
   }
   const scoringGate = { ...gate, usageClass: site.usageClass };
   const verdictOf = (walk: WalkDocuments) => {
-    const built = buildEngineInput(
-      scoringGate,
-      {
-        answers: walk.answers as never,
-        measurements: walk.measurements as never,
-        observations: { site: site.context, ...walk.observations } as never,
-      },
-      version.content.questions,
-    );
+    const built = buildEngineInput(scoringGate, {
+      answers: walk.answers as never,
+      measurements: walk.measurements as never,
+      observations: { site: site.context, ...walk.observations } as never,
+    });
     return built.ok
       ? scoreParsed(built.value, { version: version.content, contentSha256: version.contentSha256 }).verdict
       : 'invalid';

@@ -35,10 +35,7 @@ export function usePreview(
   ruleset: WalkRuleset,
   online: boolean,
 ): Preview {
-  const { input, blockers } = useMemo(
-    () => buildPreviewInput(gate, documents, ruleset.questions),
-    [gate, documents, ruleset.questions],
-  );
+  const { input, blockers } = useMemo(() => buildPreviewInput(gate, documents), [gate, documents]);
   // Key order follows whoever wrote the document last; the same answers must be the same request.
   const body = useMemo(
     () => stableJson({ family: ruleset.family, version: ruleset.version, input }),

@@ -12,9 +12,9 @@ import { areaScores } from './area-scores';
 import { compileRuleset, readFact, type CompiledRule, type CompiledRuleset, type FactPath } from './compile';
 import { buildFacts, type Facts } from './facts';
 import { rateFinding } from './finding-hrn';
-import { contentSha256, sha256Hex } from './hash';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
+import { inputSha256 } from './input-hash';
 import { truthy } from './json-logic-compile';
 import { explainMissing, isMissing } from './missing-info';
 import type {
@@ -56,22 +56,23 @@ function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
 export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
   const parsed = parseInput.safeParse(input);
   if (!parsed.success) throw new AssessmentInputError(issuesFromZod(parsed.error));
-  // What the schema just built has every key in canonical order (canonicalObject and
-  // dictionaryRecord in input.ts) and only finite numbers, so the native writer's output is the
-  // canonical JSON (a unit test holds the two equal).
-  return scoreWithHash(parsed.data, ruleset, () => sha256Hex(JSON.stringify(parsed.data)));
+  return scoreChecked(parsed.data, ruleset, true);
 }
 
-/** Scores an input already parsed with AssessmentInputSchema (an endpoint that parsed it itself). */
+/**
+ * Scores an input that is already valid: parsed on the way in (an API body) or assembled from
+ * stored documents that were checked when saved (assembleInput). It is still checked against
+ * the version (AssessmentInputError): an answer the version asks in another form is refused.
+ */
 export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
-  // The input may have been assembled in code rather than parsed: the generic writer sorts its keys.
-  return scoreWithHash(input, ruleset, () => contentSha256(input));
+  return scoreChecked(input, ruleset, false);
 }
 
-function scoreWithHash(
+/** `schemaOrdered`: the input is what the schema just built (keys in canonical order), so it hashes natively. */
+function scoreChecked(
   input: AssessmentInput,
   ruleset: LoadedRuleset | RulesetVersion,
-  inputSha256: () => string,
+  schemaOrdered: boolean,
 ): ScoreResult {
   const compiled = resolve(ruleset);
   const issues = checkInputAgainstRuleset(input, compiled);
@@ -105,7 +106,7 @@ function scoreWithHash(
   const verdict = verdictOf(findings);
   const result: ScoreResult = {
     ruleset: { family: version.family, version: version.version, contentSha256: compiled.contentSha256 },
-    inputSha256: inputSha256(),
+    inputSha256: inputSha256(input, compiled, schemaOrdered),
     verdict,
     complete: counts.needsInfo === 0 && (contradictions === null || contradictions.length === 0),
     findings,

@@ -71,8 +71,6 @@ export function buildFacts(input: AssessmentInput, options: FactOptions = {}): F
   const answers: Record<string, string> = Object.create(null) as Record<string, string>;
   const given = input.answers ?? {};
   for (const key of Object.keys(given)) answers[key] = (given[key] as { value: string }).value;
-  const choices = input.choices ?? {};
-  for (const key of Object.keys(choices)) answers[key] = (choices[key] as { value: string }).value;
   const m: Record<string, number> = Object.create(null) as Record<string, number>;
   const measurements = input.measurements ?? {};
   for (const key of Object.keys(measurements))

@@ -19,6 +19,12 @@ export function canonicalJson(value: unknown): string {
   }
 }
 
+/** A finite number as canonical JSON writes it (-0 as 0); a non-finite one is refused. */
+export function writeNumber(value: number): string {
+  if (!Number.isFinite(value)) throw new TypeError('non-finite number');
+  return value === 0 ? '0' : String(value);
+}
+
 function write(value: unknown): string {
   if (value === null) return 'null';
   switch (typeof value) {
@@ -46,6 +52,9 @@ function writeArray(items: readonly unknown[]): string {
   return out + ']';
 }
 
+/** Up to this many keys an insertion sort beats the built-in sort. */
+const SMALL_OBJECT = 32;
+
 /** Strings up to this length are remembered quoted (keys, units, yes/no answers, outcomes recur constantly). */
 const SHORT_STRING = 24;
 
@@ -53,7 +62,8 @@ const SHORT_STRING = 24;
 const quotedKeys = new Map<string, string>();
 const QUOTED_KEYS_LIMIT = 4096;
 
-function quoted(key: string): string {
+/** A string as canonical JSON writes it (short ones remembered). */
+export function quoted(key: string): string {
   let q = quotedKeys.get(key);
   if (q === undefined) {
     q = JSON.stringify(key);
@@ -64,7 +74,15 @@ function quoted(key: string): string {
 
 function writeObject(record: Record<string, unknown>): string {
   const keys = Object.keys(record);
-  if (keys.length > 1) keys.sort();
+  if (keys.length > SMALL_OBJECT) keys.sort();
+  else
+    // An insertion sort (code-unit order, as the default sort): most objects here have a handful of keys.
+    for (let i = 1; i < keys.length; i++) {
+      const key = keys[i]!;
+      let j = i - 1;
+      for (; j >= 0 && keys[j]! > key; j--) keys[j + 1] = keys[j]!;
+      keys[j + 1] = key;
+    }
   let out = '{';
   let first = true;
   for (const key of keys) {

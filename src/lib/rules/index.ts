@@ -23,20 +23,29 @@ export { compileRuleset, type CompiledRuleset, type CompiledRule } from './compi
 export { compileLogic, truthy, COMPILED_OPERATORS, type CompiledLogic } from './json-logic-compile';
 export { buildFacts, type Facts, type FactsResult, type EvidenceProblem } from './facts';
 export { FACT_CATALOGUE, POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS, type FactSpec } from './fact-catalogue';
-export { AssessmentInputError, checkInputAgainstRuleset, type InputIssue } from './input-check';
+export { AssessmentInputError, checkInputAgainstRuleset, isIsoDate, type InputIssue } from './input-check';
+export { inputRecordJson, inputSha256 } from './input-hash';
+export {
+  assembleInput,
+  SITE_FACT_KEYS,
+  type AssembledInput,
+  type GateForScoring,
+  type MissingField,
+  type StoredDocuments,
+} from './assemble-input';
 export {
   AssessmentInputSchema,
   GateProfileSchema,
   SiteContextSchema,
   MeasuredValueSchema,
   AnswerSchema,
-  ChoiceSchema,
   EntrapmentInputSchema,
   ForceTestSchema,
   SwingGeometryInputSchema,
   HrnOverrideSchema,
   ENTRAPMENT_ZONES,
   type AssessmentInput,
+  type Answer,
   type GateProfile,
   type SiteContext,
   type MeasuredValue,

@@ -1,14 +1,13 @@
 /**
  * Checks an input against the ruleset version it is scored with: a measurement entered in the
- * wrong kind of unit (a force in millimetres), a yes/no given for a measured question, a choice
- * the question does not offer, an HRN override for a rule or factor the version does not have.
+ * wrong kind of unit (a force in millimetres), an answer given for a measured question, a yes/no
+ * answer that is not yes, no or na, a choice the question does not offer, a date that is not one, an HRN override for a rule or factor the version does not have.
  * Keys the version does not ask are ignored: an input may carry answers from another version.
  */
-import { z } from 'zod';
+import type { z } from 'zod';
 import type { CompiledRuleset } from './compile';
 import type { AssessmentInput } from './input';
-import { kindOfUnit } from './measures';
-import { MEASURED_ANSWER_TYPES } from './measures';
+import { kindOfUnit, MEASURED_ANSWER_TYPES } from './measures';
 
 /** One problem with an input, at the path the form or API should highlight. */
 export interface InputIssue {
@@ -36,8 +35,19 @@ export function issuesFromZod(error: z.ZodError): InputIssue[] {
 }
 
 const measured = new Set<string>(MEASURED_ANSWER_TYPES);
-/** A calendar date written YYYY-MM-DD (built once: a zod schema is dear to make per call). */
-const IsoDate = z.iso.date();
+
+/** A real calendar date written YYYY-MM-DD (no 2023-02-29), as zod's iso.date() accepts. */
+export function isIsoDate(value: string): boolean {
+  if (value.length !== 10 || !/^\d{4}-\d{2}-\d{2}$/.test(value)) return false;
+  const year = Number(value.slice(0, 4));
+  const month = Number(value.slice(5, 7));
+  const day = Number(value.slice(8, 10));
+  if (month < 1 || month > 12 || day < 1) return false;
+  const leap = year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+  const days =
+    month === 2 ? (leap ? 29 : 28) : month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
+  return day <= days;
+}
 
 /** Problems of an already-parsed input against one version; empty when it fits. */
 export function checkInputAgainstRuleset(input: AssessmentInput, compiled: CompiledRuleset): InputIssue[] {
@@ -59,34 +69,34 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
         message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it`,
       });
   }
-  for (const key of Object.keys(input.answers ?? {})) {
-    const q = questions.get(key);
-    if (q && q.answerType !== 'yes_no_na')
-      issues.push({
-        path: `answers.${key}`,
-        message: `"${key}" is answered as ${q.answerType}, not yes/no/na`,
-      });
-  }
-  const choices = input.choices ?? {};
-  for (const key of Object.keys(choices)) {
+  const answers = input.answers ?? {};
+  for (const key of Object.keys(answers)) {
     const q = questions.get(key);
     if (!q) continue;
-    const choice = choices[key] as { value: string };
-    if (q.answerType === 'choice') {
-      if (!q.options?.some((o) => o.value === choice.value)) {
+    const { value } = answers[key] as { value: string };
+    switch (q.answerType) {
+      case 'yes_no_na':
+        if (value !== 'yes' && value !== 'no' && value !== 'na')
+          issues.push({ path: `answers.${key}.value`, message: 'answer yes, no or na' });
+        break;
+      case 'choice':
+        if (!q.options?.some((o) => o.value === value))
+          issues.push({
+            path: `answers.${key}.value`,
+            message: `"${value}" is not one of ${q.options?.map((o) => o.value).join(', ')}`,
+          });
+        break;
+      case 'date':
+        if (!isIsoDate(value))
+          issues.push({ path: `answers.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
+        break;
+      case 'text':
+        break;
+      default:
         issues.push({
-          path: `choices.${key}.value`,
-          message: `"${choice.value}" is not one of ${q.options?.map((o) => o.value).join(', ')}`,
+          path: `answers.${key}`,
+          message: `"${key}" is a measured question (${q.answerType}): send it under measurements`,
         });
-      }
-    } else if (q.answerType === 'date') {
-      if (!IsoDate.safeParse(choice.value).success)
-        issues.push({ path: `choices.${key}.value`, message: 'must be a date written YYYY-MM-DD' });
-    } else if (q.answerType !== 'text') {
-      issues.push({
-        path: `choices.${key}`,
-        message: `"${key}" is answered as ${q.answerType}, not as a choice`,
-      });
     }
   }
   const { ruleIds, hrnKeys: factorKeys } = compiled;

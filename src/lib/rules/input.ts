@@ -1,6 +1,7 @@
 /**
  * What an auditor brings back from a gate, as the engine reads it: the gate profile, the site,
- * answers, measurements (each with the unit it was entered in and its canonical value),
+ * answers (one map of every answer that is not measured), measurements (each with the unit it
+ * was entered in and its canonical value),
  * entrapment zones and devices, force tests, swing-operator geometry and HRN overrides.
  * The API and the walk-through forms parse with these same schemas, so a value the engine
  * would refuse is refused at the form, with the field named.
@@ -9,7 +10,7 @@ import { z } from 'zod';
 import { dictionaryRecord } from './dictionary-record';
 import { ENTRAPMENT_DEVICE_TYPES } from './calculators/ul325-entrapment-types';
 import { CANONICAL_TOLERANCE, exactCanonicalValue, kindOfUnit } from './measures';
-import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS, YES_NO_NA } from './vocabulary';
+import { GATE_KINDS, KEY_PATTERN, TRAVEL_DIRECTIONS } from './vocabulary';
 
 /**
  * A strict object whose members are handed to zod in sorted key order, so a parsed value's keys
@@ -152,15 +153,16 @@ export const SiteContextSchema = canonicalObject({
 });
 export type SiteContext = z.infer<typeof SiteContextSchema>;
 
+/**
+ * An answer to a question that is not measured: yes / no / na, a choice, a date or short text.
+ * Which it must be is the question's answer type in the version scored against, so the value is
+ * checked there (checkInputAgainstRuleset), not here.
+ */
 export const AnswerSchema = canonicalObject({
-  value: z.enum(YES_NO_NA, { message: 'answer yes, no or na' }),
+  value: z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters'),
   note: note.optional(),
 });
-/** A choice, date or short text answer (choice values are checked against the ruleset's options when scoring). */
-export const ChoiceSchema = canonicalObject({
-  value: z.string().trim().min(1).max(200),
-  note: note.optional(),
-});
+export type Answer = z.infer<typeof AnswerSchema>;
 
 /** Places along a gate where someone can be caught (UL 325 entrapment zones, as the auditor finds them). */
 export const ENTRAPMENT_ZONES = [
@@ -266,32 +268,20 @@ export const HrnOverrideSchema = canonicalObject({
   reason: z.string().trim().min(1, 'say why the rating was changed').max(500),
 });
 
-/** The whole assessment input scored against a ruleset version. */
-export const AssessmentInputSchema = withCheck(
-  canonicalObject({
-    profile: GateProfileSchema,
-    site: SiteContextSchema,
-    // Records keyed by question parse into dictionaries (null-prototype objects): see dictionary-record.ts.
-    answers: dictionaryRecord(key, AnswerSchema).optional(),
-    choices: dictionaryRecord(key, ChoiceSchema).optional(),
-    measurements: dictionaryRecord(key, MeasuredValueSchema).optional(),
-    entrapment: EntrapmentInputSchema.optional(),
-    forceTests: z.array(ForceTestSchema).max(50).optional(),
-    swingGeometry: SwingGeometryInputSchema.optional(),
-    hrnOverrides: dictionaryRecord(z.string().min(3).max(120), HrnOverrideSchema).optional(),
-  }),
-  (input) => {
-    if (!input.choices || !input.answers) return undefined;
-    let problems: Problem[] | undefined;
-    for (const k of Object.keys(input.choices)) {
-      if (Object.prototype.hasOwnProperty.call(input.answers, k)) {
-        (problems ??= []).push({
-          path: ['choices', k],
-          message: `"${k}" is answered both as yes/no and as a choice`,
-        });
-      }
-    }
-    return problems;
-  },
-);
+/**
+ * The whole assessment input scored against a ruleset version. `answers` holds every answer that
+ * is not a measurement (yes / no / na, choices, dates, text), keyed by question, as the draft
+ * stores them.
+ */
+export const AssessmentInputSchema = canonicalObject({
+  profile: GateProfileSchema,
+  site: SiteContextSchema,
+  // Records keyed by question parse into dictionaries (null-prototype objects): see dictionary-record.ts.
+  answers: dictionaryRecord(key, AnswerSchema).optional(),
+  measurements: dictionaryRecord(key, MeasuredValueSchema).optional(),
+  entrapment: EntrapmentInputSchema.optional(),
+  forceTests: z.array(ForceTestSchema).max(50).optional(),
+  swingGeometry: SwingGeometryInputSchema.optional(),
+  hrnOverrides: dictionaryRecord(z.string().min(3).max(120), HrnOverrideSchema).optional(),
+});
 export type AssessmentInput = z.infer<typeof AssessmentInputSchema>;

@@ -1,8 +1,8 @@
 /**
  * Between a draft's stored documents and the rules engine: applying a PATCH to the documents
- * (checked against the questions of the pinned ruleset version), and building the engine's
- * input from the gate, its site and the documents at submit. Pure functions: errors come back
- * as per-field messages named the way the API client knows the fields.
+ * (checked against the questions of the pinned ruleset version: the one place they are
+ * validated), and handing them to the engine at submit. Pure functions: errors come back as
+ * per-field messages named the way the API client knows the fields.
  */
 import { z } from 'zod';
 import {
@@ -12,19 +12,21 @@ import {
   type DraftObservations,
   type MeasurementEntry,
 } from '@/lib/api/assessments';
-import type { Gate } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
 import {
-  AssessmentInputSchema,
+  assembleInput,
   MEASURED_ANSWER_TYPES,
   MeasuredValueSchema,
   YES_NO_NA,
   type AssessmentInput,
+  type GateForScoring,
   type MeasuredValue,
   type RulesetQuestion,
 } from '@/lib/rules';
 import { canonicalValue, kindOfUnit } from '@/lib/rules/measures';
 import type { FieldError } from './http/problem';
+
+export type { GateForScoring };
 
 export interface AssessmentDocuments {
   answers: Record<string, AnswerEntry>;
@@ -140,94 +142,16 @@ export function mergeDocuments(
   return { ok: true, value: { answers, measurements, observations: observations.data } };
 }
 
-/** What the engine is told about the gate: the gate row as it stands, with its site's usage class. */
-export interface GateForScoring extends Pick<
-  Gate,
-  'kind' | 'leaves' | 'openingDirection' | 'widthMm' | 'heightMm' | 'weightKg' | 'entered' | 'operator'
-> {
-  usageClass: number;
-}
-
-function measuredDimension(
-  stored: number | null,
-  entered: { value: number; unit: string } | undefined,
-  canonicalUnit: 'mm' | 'kg',
-): MeasuredValue | undefined {
-  if (stored === null) return undefined;
-  const { value, unit } = entered ?? { value: stored, unit: canonicalUnit };
-  const kind = kindOfUnit(unit) ?? (canonicalUnit === 'mm' ? 'length' : 'mass');
-  return { value, unit, canonical: canonicalValue(kind, value, unit) };
-}
-
-/** Where an engine input path is edited through the API, for error messages. */
-function apiFieldOf(path: readonly PropertyKey[]): string {
-  const [head, ...rest] = path.map(String);
-  const profileFields: Record<string, string> = {
-    leafWidth: 'gate.width',
-    leafHeight: 'gate.height',
-    leafWeight: 'gate.weight',
-    operatorListed: 'gate.operator.listed',
-    automaticClosing: 'gate.operator.automaticClosing',
-    operatorManufacturedOn: 'gate.operator.manufacturedOn',
-    usageClass: 'site.usageClass',
-  };
-  if (head === 'profile')
-    return [profileFields[rest[0] ?? ''] ?? `gate.${rest[0] ?? ''}`, ...rest.slice(1)].join('.');
-  if (head === 'site') return ['observations.site', ...rest].join('.');
-  if (head === 'choices') return ['answers', ...rest].join('.');
-  if (head === 'answers' || head === 'measurements') return [head, ...rest].join('.');
-  return ['observations', head, ...rest].filter(Boolean).join('.');
-}
-
 /**
- * Builds and checks the engine input. Answers split into yes/no/na answers and choices by the
- * pinned version's question types; the profile comes from the gate row, which the auditor can
- * correct on site before submitting.
+ * The engine input for submit, from the gate as it stands, its site's usage class and the
+ * draft's documents (assembleInput, the same function the preview and the impact list call).
+ * Nothing is parsed again: the documents were checked when saved. What is still missing comes
+ * back as field errors.
  */
 export function buildEngineInput(
   gate: GateForScoring,
   documents: AssessmentDocuments,
-  questions: readonly RulesetQuestion[],
 ): Outcome<AssessmentInput> {
-  const byKey = new Map(questions.map((q) => [q.key, q]));
-  const answers: Record<string, AnswerEntry> = {};
-  const choices: Record<string, AnswerEntry> = {};
-  for (const [key, entry] of Object.entries(documents.answers)) {
-    if (byKey.get(key)?.answerType === 'yes_no_na') answers[key] = entry;
-    else choices[key] = entry;
-  }
-  const { site, entrapment, forceTests, swingGeometry, hrnOverrides } = documents.observations;
-  const candidate = {
-    profile: {
-      kind: gate.kind,
-      leaves: gate.leaves,
-      openingDirection: gate.openingDirection ?? undefined,
-      usageClass: gate.usageClass,
-      leafWidth: measuredDimension(gate.widthMm, gate.entered.width, 'mm'),
-      leafHeight: measuredDimension(gate.heightMm, gate.entered.height, 'mm'),
-      leafWeight: measuredDimension(gate.weightKg, gate.entered.weight, 'kg'),
-      operatorListed: gate.operator.listed ?? undefined,
-      automaticClosing: gate.operator.automaticClosing ?? undefined,
-      operatorManufacturedOn: gate.operator.manufacturedOn ?? undefined,
-    },
-    site: site ?? {},
-    answers,
-    choices,
-    measurements: documents.measurements,
-    entrapment,
-    forceTests,
-    swingGeometry,
-    hrnOverrides,
-  };
-  const parsed = AssessmentInputSchema.safeParse(candidate);
-  if (!parsed.success) {
-    return {
-      ok: false,
-      errors: parsed.error.issues.map((issue) => ({
-        field: apiFieldOf(issue.path),
-        message: /received undefined/.test(issue.message) ? 'is required before submitting' : issue.message,
-      })),
-    };
-  }
-  return { ok: true, value: parsed.data };
+  const { input, missing } = assembleInput(gate, documents);
+  return missing.length ? { ok: false, errors: missing } : { ok: true, value: input };
 }

@@ -23,14 +23,13 @@ import type {
 } from '@/lib/api/impact';
 import {
   AssessmentInputError,
+  assembleInput,
   scoreParsed,
   type Finding,
+  type GateForScoring,
   type LoadedRuleset,
-  type RulesetVersion,
 } from '@/lib/rules';
-import type { AssessmentDocuments, GateForScoring } from './assessment-input';
-import { buildEngineInput } from './assessment-input';
-import { archivedEngineInput } from './archived-input';
+import type { AssessmentDocuments } from './assessment-input';
 import { archiveDateSql } from './archive-filters';
 import { csvRow } from './csv';
 import { db } from './db';
@@ -171,23 +170,17 @@ function rescoreVerdict(
     measurements: row.measurements ?? {},
     observations: row.observations ?? {},
   };
-  const questions = (target.version as RulesetVersion).questions;
+  // The same assembler as submit; the documents were checked when saved, so nothing is parsed.
+  const { input, missing } = assembleInput(gate, documents);
+  if (missing.length) return { problem: missing.map((m) => `${m.field}: ${m.message}`).join('; ') };
   let result: ReturnType<typeof scoreParsed>;
   try {
-    result = scoreParsed(archivedEngineInput(gate, documents, questions), target);
+    result = scoreParsed(input, target);
   } catch (error) {
     if (error instanceof AssessmentInputError)
       return { problem: error.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
-    // Not the shape it was signed with after all: take the validating road for a proper answer.
-    const built = buildEngineInput(gate, documents, questions);
-    if (!built.ok) return { problem: built.errors.map((e) => `${e.field}: ${e.message}`).join('; ') };
-    try {
-      result = scoreParsed(built.value, target);
-    } catch (again) {
-      if (again instanceof AssessmentInputError)
-        return { problem: again.issues.map((i) => `${i.path}: ${i.message}`).join('; ') };
-      throw again;
-    }
+    // A stored record the engine cannot read at all is listed as unscorable, not the end of the run.
+    return { problem: `could not be scored: ${error instanceof Error ? error.message : String(error)}` };
   }
   const drivers =
     VERDICT_RANK[result.verdict] > VERDICT_RANK[row.verdict]

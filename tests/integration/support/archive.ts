@@ -150,7 +150,6 @@ export async function fileAssessment(options: FileOptions): Promise<FiledAssessm
     const built = buildEngineInput(
       { ...options.gate, usageClass: options.usageClass } as never,
       documents as never,
-      options.version.loaded.version.questions,
     );
     if (!built.ok) throw new Error(`sample documents do not build: ${JSON.stringify(built.errors)}`);
     const result = scoreParsed(built.value, options.version.loaded);

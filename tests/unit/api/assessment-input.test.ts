@@ -121,15 +121,11 @@ describe('mergeDocuments', () => {
 
 describe('buildEngineInput', () => {
   it('takes the profile from the gate, with each dimension as entered and in canonical units', () => {
-    const built = buildEngineInput(
-      gate,
-      {
-        ...empty,
-        answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } },
-        observations: { site },
-      },
-      questions,
-    );
+    const built = buildEngineInput(gate, {
+      ...empty,
+      answers: { hingeSideGuarded: { value: 'yes' }, wireGaugeAwg: { value: 'awg12' } },
+      observations: { site },
+    });
     expect(built.ok).toBe(true);
     if (!built.ok) return;
     // 12 ft = 3657.6 mm exactly: the canonical value follows what was entered, not the rounded column.
@@ -140,15 +136,17 @@ describe('buildEngineInput', () => {
       leafHeight: { value: 1500, unit: 'mm', canonical: 1500 },
     });
     expect(built.value.profile.leafWeight).toBeUndefined();
-    expect(built.value.answers).toEqual({ hingeSideGuarded: { value: 'yes' } });
-    expect(built.value.choices).toEqual({ wireGaugeAwg: { value: 'awg12' } });
+    // The one stored answer map, as it is: the engine knows which questions are yes/no.
+    expect(built.value.answers).toEqual({
+      hingeSideGuarded: { value: 'yes' },
+      wireGaugeAwg: { value: 'awg12' },
+    });
   });
 
   it('says where to record what the engine needs, in the API’s own field names', () => {
     const built = buildEngineInput(
       { ...gate, operator: {} },
       { ...empty, observations: { site: { publicAccess: true } } },
-      questions,
     );
     expect(built.ok).toBe(false);
     if (built.ok) return;

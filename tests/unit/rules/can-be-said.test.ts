@@ -72,7 +72,7 @@ describe('wire runs in feet, and the drop in volts', () => {
   it('shows the drop in volts beside the percentage in the finding', () => {
     // NEC Chapter 9 Table 8: AWG 18 stranded 7.95 Ω/1000 ft; 100 ft one way, 5 A → 2 × 5 × 100 × 7.95 / 1000 = 7.95 V of 24 V
     const input = applyPatch(naSwingGate(), {
-      choices: { wireGaugeAwg: { value: 'awg18' } },
+      answers: { wireGaugeAwg: { value: 'awg18' } },
       measurements: {
         lowVoltageRunMm: len(100, 'ft'),
         operatorCurrentA: { value: 5, unit: 'A', canonical: 5 },

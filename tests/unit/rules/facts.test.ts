@@ -6,7 +6,7 @@ import { applyPatch, NO, REMOVE, YES } from './support/inputs';
 import { shipped } from './support/shipped';
 
 describe('buildFacts', () => {
-  it('reads answers, choices and canonical measurements under their own namespaces', () => {
+  it('reads yes/no and choice answers under answers and canonical measurements under m', () => {
     const { facts } = buildFacts(naSwingGate());
     expect(facts.answers.placardsLegible).toBe('yes');
     expect(facts.answers.wireGaugeAwg).toBe('awg12');

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { AssessmentInputError, AssessmentInputSchema, score } from '@/lib/rules';
+import { AssessmentInputError, AssessmentInputSchema, isIsoDate, score } from '@/lib/rules';
 import { naSlideGate, naSwingGate } from './fixtures/north-american-gate';
 import { applyPatch, choice, force, len, REMOVE } from './support/inputs';
 import { shipped } from './support/shipped';
@@ -35,15 +35,68 @@ describe('assessment input schema', () => {
     ]);
   });
 
-  it('rejects an unknown unit and an answer other than yes, no or na', () => {
+  it('rejects an unknown unit and an empty answer', () => {
     const input = applyPatch(naSwingGate(), {
       measurements: { hingeGapMm: { value: 1, unit: 'furlong', canonical: 1 } },
-      answers: { placardsLegible: { value: 'maybe' } },
+      answers: { placardsLegible: { value: '  ' } },
     });
     expect(issuesOf(input)).toEqual([
-      'answers.placardsLegible.value: answer yes, no or na',
+      'answers.placardsLegible.value: must not be empty',
       'measurements.hingeGapMm.unit: unknown unit "furlong"',
     ]);
+  });
+
+  it('takes yes/no and choice answers in the one answers map, each checked by its question when scoring', () => {
+    const version = shipped('north-american-gate', '2026.1');
+    const measured = version.version.questions.find((q) => q.answerType === 'length')!;
+    const input = applyPatch(naSwingGate(), {
+      answers: {
+        placardsLegible: { value: 'maybe' },
+        wireGaugeAwg: choice('awg14'),
+        [measured.key]: choice('yes'),
+      },
+      measurements: { [measured.key]: REMOVE },
+    });
+    expect(issuesOf(input)).toEqual([]);
+    let thrown: unknown;
+    try {
+      score(input, version);
+    } catch (error) {
+      thrown = error;
+    }
+    expect(thrown).toBeInstanceOf(AssessmentInputError);
+    expect((thrown as AssessmentInputError).issues).toEqual(
+      expect.arrayContaining([
+        { path: 'answers.placardsLegible.value', message: 'answer yes, no or na' },
+        {
+          path: `answers.${measured.key}`,
+          message: `"${measured.key}" is a measured question (length): send it under measurements`,
+        },
+      ]),
+    );
+    expect(
+      (thrown as AssessmentInputError).issues.some((i) => i.path.startsWith('answers.wireGaugeAwg')),
+    ).toBe(false);
+    // The same choice among the yes/no answers, with the others put right, scores.
+    const fine = applyPatch(naSwingGate(), { answers: { wireGaugeAwg: choice('awg14') } });
+    expect(score(fine, version).findings.length).toBeGreaterThan(0);
+  });
+
+  it('knows a calendar date written YYYY-MM-DD from one that is not (date answers, checked without zod)', () => {
+    for (const good of ['2024-02-29', '2000-02-29', '2023-12-31', '1999-01-01'])
+      expect([good, isIsoDate(good)]).toEqual([good, true]);
+    for (const bad of [
+      '2023-02-29',
+      '1900-02-29',
+      '2023-04-31',
+      '2023-13-01',
+      '2023-00-10',
+      '2023-1-01',
+      '23-01-01',
+      ' 2023-01-01',
+      '2023-01-00',
+    ])
+      expect([bad, isIsoDate(bad)]).toEqual([bad, false]);
   });
 
   it('needs the opening direction of a swing gate', () => {
@@ -64,13 +117,11 @@ describe('assessment input schema', () => {
     const input = applyPatch(naSwingGate(), {
       profile: { leafWidth: { value: 90, unit: 'kg', canonical: 90 } },
       swingGeometry: { aMm: 0, bMm: 0 },
-      choices: { placardsLegible: choice('yes') },
     });
     const issues = issuesOf(input);
     expect(issues).toEqual([
       'profile.leafWidth.unit: leafWidth must be entered as a length',
       'swingGeometry.bMm: the rear pivot cannot sit on the hinge axis',
-      'choices.placardsLegible: "placardsLegible" is answered both as yes/no and as a choice',
     ]);
     let thrown: unknown;
     try {
@@ -85,7 +136,7 @@ describe('assessment input schema', () => {
   it('refuses, when scoring, a force entered for a length question and a choice it does not offer', () => {
     const input = applyPatch(naSwingGate(), {
       measurements: { hingeGapMm: force(10) },
-      choices: { wireGaugeAwg: choice('awg8') },
+      answers: { wireGaugeAwg: choice('awg8') },
     });
     expect(() => score(input, shipped('north-american-gate', '2026.1'))).toThrowError(AssessmentInputError);
     try {
@@ -97,7 +148,7 @@ describe('assessment input schema', () => {
           message: '"hingeGapMm" is a length; "N" is not a unit of it',
         },
         {
-          path: 'choices.wireGaugeAwg.value',
+          path: 'answers.wireGaugeAwg.value',
           message: '"awg8" is not one of awg10, awg12, awg14, awg16, awg18, other',
         },
       ]);

@@ -9,8 +9,7 @@ import { shipped } from './support/shipped';
 // one placard missing, thin wire on a long run, and the reversal travel not measured.
 const gate = applyPatch(naSwingGate(), {
   site: { slopeAcrossSwing: false },
-  answers: { objectBehindOpenGate: NO },
-  choices: { wireGaugeAwg: choice('awg16'), wireConductor: choice('solid') },
+  answers: { objectBehindOpenGate: NO, wireGaugeAwg: choice('awg16'), wireConductor: choice('solid') },
   measurements: {
     hingeGapMm: len(12),
     fixedObjectClearanceMm: len(12, 'in'),

@@ -1,11 +1,11 @@
 /**
- * The walk-through builds the live preview's engine input on the device without zod; these
- * tests hold it to the engine's own schema and scoring with a shipped ruleset, so the preview
- * and the submitted result read the same facts.
+ * The walk-through builds the live preview's engine input on the device with the assembler the
+ * server uses at submit (no zod); these tests hold it to the engine's own schema and scoring
+ * with a shipped ruleset, so the preview and the submitted result read the same facts.
  */
 import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { AssessmentInputSchema, loadRulesetFile, score, type RulesetVersion } from '@/lib/rules';
+import { AssessmentInputSchema, buildFacts, loadRulesetFile, score, type RulesetVersion } from '@/lib/rules';
 import type { WalkDocuments } from '@/lib/walk/documents';
 import {
   groupBySection,
@@ -14,6 +14,7 @@ import {
   type WalkGate,
   type WalkRuleset,
 } from '@/lib/walk/model';
+import { buildEngineInput } from '@/lib/server/assessment-input';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
 const file = JSON.parse(
@@ -55,7 +56,6 @@ describe('the live preview input', () => {
     const { blockers } = buildPreviewInput(
       { ...gate, operator: {} },
       { answers: {}, measurements: {}, observations: { site: { publicAccess: true } } },
-      ruleset.questions,
     );
     expect(blockers).toHaveLength(5);
     expect(blockers.join(' ')).toMatch(/people walk through/);
@@ -63,7 +63,7 @@ describe('the live preview input', () => {
     expect(blockers.join(' ')).toMatch(/automatic closing/);
   });
 
-  it('splits answers into yes/no and choices, keeps the gate as measured, and parses with the engine’s schema', () => {
+  it('hands over the stored answers as one map, keeps the gate as measured, and parses with the engine’s schema', () => {
     const documents: WalkDocuments = {
       answers: {
         hingeSideGuarded: { value: 'yes', note: 'mesh guard' },
@@ -73,26 +73,31 @@ describe('the live preview input', () => {
       measurements: { hingeGapMm: { value: 2.25, unit: 'in', canonical: 57.15 } },
       observations: { site },
     };
-    const { input, blockers } = buildPreviewInput(gate, documents, ruleset.questions);
+    const { input, blockers } = buildPreviewInput(gate, documents);
     expect(blockers).toEqual([]);
-    expect(input.answers).toEqual({ hingeSideGuarded: { value: 'yes', note: 'mesh guard' } });
-    expect(input.choices).toEqual({ wireGaugeAwg: { value: 'awg12' } });
+    expect(input.answers).toEqual(documents.answers);
     expect((input.profile as Record<string, unknown>).leafWidth).toEqual({
       value: 12,
       unit: 'ft',
       canonical: 3657.6,
     });
-    expect(AssessmentInputSchema.safeParse(input).success).toBe(true);
+    // What the device sends is what the server assembles from the same gate and documents.
+    const sent = JSON.parse(JSON.stringify(input));
+    expect(AssessmentInputSchema.safeParse(sent).success).toBe(true);
+    expect(sent).toEqual(JSON.parse(JSON.stringify(buildEngineInput(gate, documents as never))).value);
+    // The engine scores it (a key the version does not ask is ignored) and reads the choice as a fact.
+    expect(score(sent, loaded).findings.length).toBeGreaterThan(0);
+    expect(buildFacts(sent).facts.answers.wireGaugeAwg).toBe('awg12');
   });
 
   it('scores with the engine: the hinge-side gap the auditor measured decides its finding', () => {
     const hingeOutcome = (value: number, unit: 'mm' | 'in', canonical: number) =>
       score(
-        buildPreviewInput(
-          gate,
-          { answers: {}, measurements: { hingeGapMm: { value, unit, canonical } }, observations: { site } },
-          ruleset.questions,
-        ).input,
+        buildPreviewInput(gate, {
+          answers: {},
+          measurements: { hingeGapMm: { value, unit, canonical } },
+          observations: { site },
+        }).input,
         loaded,
       ).findings.find((f) => f.ruleId === 'pinch.hinge-side')?.outcome;
     // The ruleset's own params: a finger is safe below 4 mm and clear above 25 mm.

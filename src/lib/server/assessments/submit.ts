@@ -17,9 +17,8 @@ import { getGate } from '../gates';
 import { InvalidInputError } from '../errors';
 import type { SessionUser } from '../session-user';
 
-/** Engine input paths as the API names them (answers and choices are both `answers` here). */
+/** Engine input paths as the API names them. */
 function apiField(path: string): string {
-  if (path.startsWith('choices.')) return `answers.${path.slice('choices.'.length)}`;
   if (path.startsWith('site.')) return `observations.${path}`;
   return path;
 }
@@ -64,11 +63,7 @@ export async function submitAssessment(
       content_sha256: string;
     };
 
-    const built = buildEngineInput(
-      { ...gate, usageClass: site?.usage_class ?? 0 },
-      current,
-      content.questions,
-    );
+    const built = buildEngineInput({ ...gate, usageClass: site?.usage_class ?? 0 }, current);
     if (!built.ok) throw new InvalidInputError('The assessment is not ready to submit.', built.errors);
     let result;
     try {

@@ -134,7 +134,6 @@ export function generateInput(rng: Prng, version: RulesetVersion): AssessmentInp
       slopeAcrossSwing: rng.chance(0.3),
     },
     answers: {},
-    choices: {},
     measurements: {},
   };
   if (kind === 'swing') input.profile.openingDirection = rng.pick(['pull_to_open', 'push_to_open'] as const);
@@ -148,9 +147,9 @@ export function generateInput(rng: Prng, version: RulesetVersion): AssessmentInp
     if (!q.gateKinds.includes(kind) || rng.chance(0.12)) continue;
     if (q.answerType === 'yes_no_na')
       input.answers![q.key] = { value: rng.pick(['yes', 'yes', 'yes', 'no', 'na'] as const) };
-    else if (q.answerType === 'choice') input.choices![q.key] = { value: rng.pick(q.options!).value };
+    else if (q.answerType === 'choice') input.answers![q.key] = { value: rng.pick(q.options!).value };
     else if (q.answerType === 'date' || q.answerType === 'text')
-      input.choices![q.key] = { value: '2024-01-01' };
+      input.answers![q.key] = { value: '2024-01-01' };
     else input.measurements![q.key] = measuredValue(rng, q.answerType, thresholds.get(`m.${q.key}`) ?? []);
   }
 
