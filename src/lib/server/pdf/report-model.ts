@@ -184,6 +184,17 @@ function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
 }
 
 /**
+ * Published rulesets end many cautions with the same sentence on what the assessment does not
+ * replace. The report says that once, in its disclaimer; a caution keeps only its own words.
+ */
+const DISCLAIMER_SENTENCE =
+  /\s*This (?:assessment|report) supports, and (?:never|does not) replaces?,[^.]*\./gi;
+
+export function cautionWithoutDisclaimer(caution: string): string {
+  return caution.replace(DISCLAIMER_SENTENCE, '').trim();
+}
+
+/**
  * The cautions the owner acknowledges: one per failing finding (worst first) with a caution
  * text, the same text once. The signing page and the report list exactly these.
  */
@@ -191,7 +202,7 @@ export function cautionsOf(result: StoredResult): ReportCaution[] {
   const cautions: ReportCaution[] = [];
   const seen = new Set<string>();
   for (const f of result.findings.filter((x) => x.outcome === 'fail').sort(bySeverity)) {
-    const text = f.caution.trim();
+    const text = cautionWithoutDisclaimer(f.caution);
     if (!text || seen.has(text)) continue;
     seen.add(text);
     cautions.push({ ruleId: f.ruleId, title: f.title, severity: f.severity, caution: text });
@@ -210,7 +221,7 @@ export function buildReportModel(source: ReportSource): ReportModel {
     .map((f) => {
       const photos = source.photos.filter((p) => photoBelongsTo(p, f));
       photos.forEach((p) => claimed.add(p));
-      return { ...f, photos };
+      return { ...f, caution: cautionWithoutDisclaimer(f.caution), photos };
     });
   const cautions = cautionsOf(result);
   const areaKeys = Object.keys(result.areaScores);

@@ -208,6 +208,7 @@ export async function submitSignature(
       signerName: body.name,
       sha256: document.sha256,
       documentId,
+      verdict: result.verdict,
     });
     await enqueueMail(trx, {
       organisationId: row.organisation_id,
@@ -228,6 +229,7 @@ export async function submitSignature(
         signerName: body.name,
         sha256: document.sha256,
         documentId,
+        verdict: result.verdict,
       });
       await enqueueMail(trx, {
         organisationId: row.organisation_id,
