@@ -9,6 +9,7 @@ import type { MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
 import type { MeasurementValue } from '@/lib/walk/documents';
 import { parseEntered, toMeasurement, unitLabel, unitsFor } from '@/lib/walk/entry';
+import { parseFeetAndInches } from '@/lib/measure-display';
 
 interface Props {
   kind: MeasuredAnswerType;
@@ -32,8 +33,10 @@ function otherSystem(kind: MeasuredAnswerType, canonical: number, unit: string):
 }
 
 export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUnits, onChange }: Props) {
-  const options = unitsFor(kind, units, entryUnits);
-  const [unit, setUnit] = useState(value?.unit ?? (options[0] as string));
+  const offered = unitsFor(kind, units, entryUnits);
+  const [unit, setUnit] = useState(value?.unit ?? (offered[0] as string));
+  // Feet typed as 12' 6" (or "12 ft") are kept in feet: the unit joins the choices shown.
+  const options = offered.includes(unit) ? offered : [...offered, unit];
   const [text, setText] = useState(value ? String(value.value) : '');
   const [error, setError] = useState<string | null>(null);
   const editing = useRef(false);
@@ -54,10 +57,22 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
       if (value) onChange(null);
       return;
     }
+    const feetAndInches = kind === 'length' ? parseFeetAndInches(nextText) : null;
+    if (feetAndInches) {
+      setError(null);
+      setUnit(feetAndInches.unit);
+      if (value && value.value === feetAndInches.value && value.unit === feetAndInches.unit) return;
+      onChange(toMeasurement(kind, feetAndInches.value, feetAndInches.unit, value?.note));
+      return;
+    }
     const number = parseEntered(nextText);
     if (number === null || number < 0) {
       if (report)
-        setError(number === null ? 'Type a number, e.g. 12.5 or 2-1/4' : 'A measurement cannot be negative');
+        setError(
+          number === null
+            ? `Type a number, e.g. 12.5 or 2-1/4${kind === 'length' ? `, or feet and inches: 6' 2"` : ''}`
+            : 'A measurement cannot be negative',
+        );
       return;
     }
     setError(null);

@@ -4,6 +4,7 @@
  * photos (display size, from file storage), force traces and swing geometry as recorded, and
  * for the final document the signing record. Nothing is re-scored here.
  */
+import type { EnteredMeasurement } from '@/lib/measure-display';
 import type { Knex } from 'knex';
 import { db } from './db';
 import {
@@ -34,6 +35,8 @@ interface AssessmentRow {
   result: unknown;
   result_sha256: string | null;
   observations: Record<string, unknown> | null;
+  measurements: Record<string, unknown> | null;
+  gate_entered: Record<string, unknown> | null;
   org_name: string;
   org_time_zone: string;
   org_display_units: 'imperial' | 'metric';
@@ -90,6 +93,7 @@ export async function loadAssessmentForReport(
       'a.result',
       'a.result_sha256',
       'a.observations',
+      'a.measurements',
       'o.name as org_name',
       'o.time_zone as org_time_zone',
       'o.display_units as org_display_units',
@@ -112,6 +116,7 @@ export async function loadAssessmentForReport(
       'g.width_mm',
       'g.height_mm',
       'g.weight_kg',
+      'g.entered as gate_entered',
       'r.title as ruleset_title',
       'rv.version as ruleset_version',
       'rv.content_sha256 as ruleset_content_sha256',
@@ -129,6 +134,24 @@ function areaTitles(areas: unknown): Record<string, string> {
 }
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+
+/** A value as entered ({ value, unit }) from stored JSON, or null when it is not one. */
+function enteredMeasurement(raw: unknown): EnteredMeasurement | null {
+  if (!raw || typeof raw !== 'object') return null;
+  const { value, unit, canonical } = raw as Record<string, unknown>;
+  if (typeof value !== 'number' || !Number.isFinite(value) || typeof unit !== 'string') return null;
+  return { value, unit, ...(typeof canonical === 'number' ? { canonical } : {}) };
+}
+
+/** The walk-through's measurements as entered, by question key. */
+export function enteredMeasurements(raw: Record<string, unknown> | null): Record<string, EnteredMeasurement> {
+  const out: Record<string, EnteredMeasurement> = {};
+  for (const [key, value] of Object.entries(raw ?? {})) {
+    const measured = enteredMeasurement(value);
+    if (measured) out[key] = measured;
+  }
+  return out;
+}
 
 function swingGeometryOf(
   observations: Record<string, unknown> | null,
@@ -266,6 +289,7 @@ export async function loadReportSource(
       result: row.result,
       resultSha256: row.result_sha256,
       swingGeometry: swingGeometryOf(row.observations, row),
+      measurementsAsEntered: enteredMeasurements(row.measurements),
     },
     auditor: { name: row.auditor_name, email: row.auditor_email },
     client: { name: row.client_name, contactEmail: row.client_contact_email },
@@ -287,6 +311,10 @@ export async function loadReportSource(
       widthMm: row.width_mm,
       heightMm: row.height_mm,
       weightKg: row.weight_kg,
+      entered: {
+        width: enteredMeasurement(row.gate_entered?.width),
+        height: enteredMeasurement(row.gate_entered?.height),
+      },
     },
     ruleset: {
       title: row.ruleset_title,

@@ -62,8 +62,14 @@ describe('report PDF', () => {
     expect(text).toMatch(/Page 1 of (\d+)/);
     expect(text).toContain('Operator geometry (top view)');
     expect(text).toContain('Force trace: Closing edge, 300 mm gap');
-    // Imperial organisation: lengths in inches.
-    expect(text).toMatch(/144\.09 in wide/);
+    // The gate's size and each measurement as entered; other lengths in the organisation's
+    // system (imperial: feet and inches to 1/16 in), limits rounded say "about".
+    expect(text).toContain('12 ft × 5 ft (width × height)');
+    expect(text).toContain('gap item0: 30 mm');
+    expect(text).toContain('gap item3: 1-5/16 in');
+    expect(text).toContain('max gap: about 1 in');
+    expect(text).toContain('Limit 89.9 lbf');
+    expect(text).not.toMatch(/\d+\.\d{2} in/);
   }, 30_000);
 
   it('skips the drawings when the assessment has no geometry or trace', async () => {

@@ -16,6 +16,7 @@ import {
   type StoredFinding,
 } from './report-model';
 import { styles } from './styles';
+import { formatAsEntered, formatLimit } from '@/lib/measure-display';
 import { colours, severityColour, verdictColour } from './theme';
 import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
 
@@ -247,12 +248,22 @@ function Fact({ label, value }: { label: string; value: string }) {
   );
 }
 
+/** Width × height as entered on the gate form ("12 ft × 6 ft"); converted only when nothing was kept. */
 function gateSize(model: ReportModel, units: 'imperial' | 'metric'): string {
+  const width =
+    model.gate.entered?.width ?? (model.gate.widthMm ? { value: model.gate.widthMm, unit: 'mm' } : null);
+  const height =
+    model.gate.entered?.height ?? (model.gate.heightMm ? { value: model.gate.heightMm, unit: 'mm' } : null);
+  const shown = (m: { value: number; unit: string }, entered: boolean) =>
+    entered ? formatAsEntered(m) : formatQuantity(m.value, 'mm', units);
   const parts = [
-    model.gate.widthMm ? `${formatQuantity(model.gate.widthMm, 'mm', units)} wide` : null,
-    model.gate.heightMm ? `${formatQuantity(model.gate.heightMm, 'mm', units)} high` : null,
+    width ? shown(width, Boolean(model.gate.entered?.width)) : null,
+    height ? shown(height, Boolean(model.gate.entered?.height)) : null,
   ].filter(Boolean);
-  return parts.length ? `, ${parts.join(', ')}` : '';
+  if (!parts.length) return '';
+  return width && height
+    ? `, ${parts.join(' × ')} (width × height)`
+    : `, ${parts[0]} ${width ? 'wide' : 'high'}`;
 }
 
 function summaryLine(model: ReportModel): string {
@@ -332,7 +343,9 @@ function FindingCard({
   const units = model.organisation.displayUnits;
   const observed = Object.entries(finding.observed)
     .slice(0, 8)
-    .map(([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units)}`);
+    .map(
+      ([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units, model.assessment.measurementsAsEntered)}`,
+    );
   const limits = Object.entries(finding.params)
     .filter(
       ([, p]) => typeof p.value === 'number' || typeof p.value === 'string' || typeof p.value === 'boolean',
@@ -340,7 +353,7 @@ function FindingCard({
     .slice(0, 4)
     .map(
       ([k, p]) =>
-        `${factLabel(k)}: ${typeof p.value === 'number' ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
+        `${factLabel(k)}: ${typeof p.value === 'number' ? formatLimit(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
     );
   // A finding and its photos stay on one page: the whole card moves to the next page rather
   // than leave a photo apart from the words it shows. Many photos get smaller so they fit.

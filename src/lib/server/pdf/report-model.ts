@@ -9,6 +9,7 @@
 import { z } from 'zod';
 import type { CertificateFacts } from './certificate-facts';
 import { VERDICT_WORDS } from '@/lib/vocabulary';
+import type { EnteredMeasurement } from '@/lib/measure-display';
 
 const SEVERITY_ORDER = ['critical', 'major', 'minor'] as const;
 export type Severity = (typeof SEVERITY_ORDER)[number];
@@ -116,6 +117,8 @@ export interface ReportSource {
     result: unknown;
     resultSha256: string | null;
     swingGeometry: SwingGeometryMeasurements | null;
+    /** Each measurement as the auditor entered it (value and unit), by question key. */
+    measurementsAsEntered?: Record<string, EnteredMeasurement>;
   };
   auditor: { name: string; email: string };
   client: { name: string; contactEmail: string | null };
@@ -128,6 +131,8 @@ export interface ReportSource {
     widthMm: number | null;
     heightMm: number | null;
     weightKg: number | null;
+    /** Width and height as entered on the gate form, shown as entered ("12 ft × 6 ft"). */
+    entered?: { width: EnteredMeasurement | null; height: EnteredMeasurement | null };
   };
   ruleset: {
     title: string;
