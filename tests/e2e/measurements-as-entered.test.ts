@@ -72,6 +72,10 @@ describe('measurements as entered, imperial organisation', () => {
     // The picker shows feet chosen, and the metric figure underneath as a check on a unit slip.
     expect(await card.getByRole('radio', { name: 'ft' }).isChecked()).toBe(true);
     await expect(card.innerText()).resolves.toContain('= 1879.6 mm');
+    // The field shows it as typed on site, not as a decimal of feet.
+    await page.reload();
+    await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
+    await expect.poll(() => card.locator('input[inputmode=decimal]').first().inputValue()).toBe(`6' 2"`);
     expect(await seriousAxeViolations(page, ['#q-controlDistanceMm'])).toEqual([]);
     await screenshotBothWidths(page, 'measure-02-walk-feet-and-inches', { focus: '#q-controlDistanceMm' });
   });
