@@ -4,6 +4,7 @@
  * and store the result, its SHA-256, the verdict and a snapshot of the gate, with an audit
  * event. The stored result is what the report renders from, forever.
  */
+import { assertCarriedForwardConfirmed, carriedForwardOf } from './carry-forward';
 import type { Assessment } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { AssessmentInputError, resultSha256, scoreParsed, type RulesetVersion } from '@/lib/rules';
@@ -37,6 +38,7 @@ export async function submitAssessment(
     const current = await getAssessment(viewer, id, trx);
     if (!current) return null;
     assertEditable(viewer, current, expectedVersion);
+    assertCarriedForwardConfirmed(await carriedForwardOf(trx, viewer.organisationId, id));
 
     const gate = (await getGate(viewer, current.gate.id, trx)) as Gate;
     await trx('gates').where({ id: gate.id }).forShare().first('id');
