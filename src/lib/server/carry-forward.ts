@@ -60,6 +60,21 @@ export async function lastSignedVisit(
   return row ?? null;
 }
 
+/** Each gate's last signed visit date, for the gates that have one (offering to carry forward). */
+export async function lastSignedVisitDays(
+  knex: Knex,
+  organisationId: string,
+  gateIds: string[],
+): Promise<Map<string, Date>> {
+  if (gateIds.length === 0) return new Map();
+  const rows = await knex('assessments')
+    .where({ organisation_id: organisationId, status: 'signed' })
+    .whereIn('gate_id', gateIds)
+    .groupBy('gate_id')
+    .select<{ gate_id: string; last: Date }[]>('gate_id', knex.raw('max(visited_on) as last'));
+  return new Map(rows.map((r) => [r.gate_id, r.last]));
+}
+
 /**
  * Copies the last signed visit's answers and measurements into the new draft `assessmentId`
  * (in the same transaction that created it), keeping only keys the draft's pinned questions ask
