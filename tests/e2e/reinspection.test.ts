@@ -35,6 +35,14 @@ beforeAll(async () => {
   await signInThroughForm(browser.page, org.auditor.email, `/sites/${dir.siteId}`);
 });
 
+/** The gate card's islands are live (islands in closed panels elsewhere stay server-rendered). */
+async function gateCardReady(gateId: string) {
+  await browser.page.waitForFunction(
+    (sel) => !document.querySelector(`${sel} astro-island[ssr]`),
+    `#gate-${gateId}`,
+  );
+}
+
 afterAll(async () => {
   await browser?.close();
 });
@@ -57,7 +65,7 @@ describe('a re-inspection from the last signed visit', () => {
   it('offers to start from the signed visit and carries its answers into the walk-through, each to confirm', async () => {
     const { page } = browser;
     await page.goto(`/sites/${dir.siteId}`);
-    await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
+    await gateCardReady(dir.gateId);
     const card = page.locator(`#gate-${dir.gateId}`);
     const carry = card.getByRole('checkbox', {
       name: /Start from the answers of the signed visit on Mar 2, 2026/,
@@ -102,7 +110,7 @@ describe('duplicating a gate', () => {
   it('copies the gate to a new one on the same site and opens it to name it', async () => {
     const { page } = browser;
     await page.goto(`/sites/${dir.siteId}`);
-    await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'));
+    await gateCardReady(dir.gateId);
     const label = (await testDb()('gates').where({ id: dir.gateId }).first('label')).label as string;
     await page
       .locator(`#gate-${dir.gateId}`)

@@ -100,7 +100,10 @@ describe('searching and filtering the audit trail', () => {
     expect(actions(await search(owner, `q=${encodeURIComponent(org.office.email)}`))).toEqual([
       'gate.updated',
     ]);
-    expect(actions(await search(owner, 'q=%25'))).toEqual(['gate.updated']);
+    expect(actions(await search(owner, `q=${encodeURIComponent('50% wider')}`))).toEqual(['gate.updated']);
+    // As a wildcard, % would match "hinge gap 50% wider"; typed, it is a letter.
+    expect(await search(owner, `q=${encodeURIComponent('hinge%wider')}`)).toEqual([]);
+    expect(await search(owner, `q=${encodeURIComponent('hinge_gap')}`)).toEqual([]);
     expect(await search(owner, 'q=no_such_word_anywhere')).toEqual([]);
   });
 
