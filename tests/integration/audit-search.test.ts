@@ -97,9 +97,9 @@ const actions = (items: AuditPage['items']) => items.map((e) => e.action).sort()
 describe('searching and filtering the audit trail', () => {
   it('finds text in the details, the person and the event kind; % and _ are plain letters', async () => {
     expect(actions(await search(owner, 'q=newhire-audit'))).toEqual(['user.invited']);
-    expect(actions(await search(owner, `q=${encodeURIComponent(org.office.email)}`))).toEqual([
-      'gate.updated',
-    ]);
+    // The office's own sign-in is an event of theirs too.
+    const byOffice = await search(owner, `q=${encodeURIComponent(org.office.email)}`);
+    expect(actions(byOffice).filter((a) => !a.startsWith('sign_in.'))).toEqual(['gate.updated']);
     expect(actions(await search(owner, `q=${encodeURIComponent('50% wider')}`))).toEqual(['gate.updated']);
     // As a wildcard, % would match "hinge gap 50% wider"; typed, it is a letter.
     expect(await search(owner, `q=${encodeURIComponent('hinge%wider')}`)).toEqual([]);
