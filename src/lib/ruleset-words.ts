@@ -5,7 +5,8 @@
  * clearance is at least 406.4 mm (16 in)"). Pure; shared by pages and islands.
  */
 import { FACT_CATALOGUE } from '@/lib/rules/fact-catalogue';
-import { formatForce, formatLength, formatMass, formatSpeed, type UnitSystem } from '@/lib/units';
+import { formatLimit } from '@/lib/measure-display';
+import type { UnitSystem } from '@/lib/units';
 
 export interface ParamLike {
   value: unknown;
@@ -16,31 +17,16 @@ function trimmed(value: number, decimals = 4): string {
   return String(Number(value.toFixed(decimals)));
 }
 
-/** `inches` written to the 1/16 in is exact, so no "about". */
-function exactInSixteenths(mm: number): boolean {
-  const sixteenths = (mm / 25.4) * 16;
-  return Math.abs(sixteenths - Math.round(sixteenths)) < 1e-6;
-}
-
-/** A threshold as stored (its own unit) and, where it converts, in the other unit system. */
+/**
+ * A threshold in the organisation's own system, with the trade's rounding: UL 325's 1828.8 mm
+ * reads "6 ft" to an imperial organisation, EN 12453's 500 mm "500 mm" to a metric one; an
+ * imperial figure that is rounded says "about". The stored value is in the ruleset file.
+ */
 export function formatParam(param: ParamLike, system: UnitSystem = 'metric'): string {
   const { value, unit } = param;
   if (typeof value !== 'number') return Array.isArray(value) ? value.join(', ') : String(value);
-  const stored =
-    unit === 'count' || unit === undefined
-      ? trimmed(value)
-      : unit === 'deg'
-        ? `${trimmed(value)}°`
-        : `${trimmed(value)} ${unit}`;
-  let other: string | null = null;
-  if (unit === 'mm')
-    other = `${exactInSixteenths(value) ? '' : 'about '}${formatLength(value, 'imperial', { fractionDenominator: 16 })}`;
-  else if (unit === 'N') other = `about ${formatForce(value, 'imperial')}`;
-  else if (unit === 'kg') other = `about ${formatMass(value, 'imperial')}`;
-  else if (unit === 'm/s') other = `about ${formatSpeed(value, 'imperial')}`;
-  if (!other) return stored;
-  // An imperial organisation reads its own system first; the stored value stays beside it.
-  return system === 'imperial' ? `${other} (${stored})` : `${stored} (${other})`;
+  if (unit === 'count' || unit === undefined) return trimmed(value);
+  return formatLimit(value, unit, system);
 }
 
 const SUFFIXES = /(Mm|Mps|Kg|Deg|N|S|V|A)$/;

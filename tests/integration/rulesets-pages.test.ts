@@ -8,6 +8,7 @@ import {
   fixturePassword,
   signIn,
   signInHomeowner,
+  testDb,
   type FixtureOrganisation,
   type TestClient,
 } from './support/fixtures';
@@ -53,16 +54,29 @@ describe('ruleset pages', () => {
     expect(forOwner.html).toContain('>Amend<');
   });
 
-  it('shows a version readably: rules by hazard area with what passes in plain words, units in both systems, and its questions', async () => {
+  it('shows a version readably: rules by hazard area with what passes in plain words, limits in the organisation units, and its questions', async () => {
     const { status, html } = await page(auditor, `/rulesets/${NA}/2026.1`);
     expect(status).toBe(200);
     const text = textOf(html);
     expect(text).toContain('Pinch and crush points');
-    expect(text).toContain('fixed object clearance is at least 406.4 mm (16 in)');
+    expect(text).toContain('fixed object clearance is at least 406.4 mm');
     expect(text).toContain('Caution for the homeowner');
     expect(text).toContain('ASTM F2200');
     expect(text).toContain('How many warning placards can you read standing on the street side of the gate?');
     expect(html).toContain('id="rule-pinch.fixed-objects"');
+  });
+
+  it('reads limits in feet and inches to an imperial organisation: 1828.8 mm is "6 ft"', async () => {
+    await testDb()('organisations').where({ id: org.id }).update({ display_units: 'imperial' });
+    try {
+      const text = textOf((await page(auditor, `/rulesets/${NA}/2026.1`)).html);
+      expect(text).toContain('fixed object clearance is at least 16 in');
+      expect(text).toMatch(/min distance: 6 ft/);
+      expect(text).not.toContain('1828.8 mm');
+      expect(text).not.toContain('406.4 mm');
+    } finally {
+      await testDb()('organisations').where({ id: org.id }).update({ display_units: 'metric' });
+    }
   });
 
   it('shows which band a value exactly on an HRN band edge falls in, and the re-inspection plan', async () => {

@@ -115,6 +115,11 @@ export async function sampleReportSource(
         targetOpeningDeg: 90,
         leafWidthMm: 1830,
       },
+      // Two measurements as the auditor entered them: one in mm although the organisation is imperial.
+      measurementsAsEntered: {
+        gapItem0Mm: { value: 30, unit: 'mm', canonical: 30 },
+        gapItem3Mm: { value: 1.3125, unit: 'in', canonical: 33.3375 },
+      },
     },
     auditor: { name: 'Rowan Tessier', email: 'rowan@ironbark.test' },
     client: { name: 'Quillfeather Household', contactEmail: 'home@quillfeather.test' },
@@ -127,6 +132,10 @@ export async function sampleReportSource(
       widthMm: 3660,
       heightMm: 1520,
       weightKg: 140,
+      entered: {
+        width: { value: 12, unit: 'ft', canonical: 3657.6 },
+        height: { value: 5, unit: 'ft', canonical: 1524 },
+      },
     },
     ruleset: {
       title: 'North American residential gates',

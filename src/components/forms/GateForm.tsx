@@ -14,6 +14,7 @@ import {
   type Gate,
 } from '@/lib/api/gates';
 import type { UnitSystem } from '@/lib/units';
+import { parseFeetAndInches } from '@/lib/measure-display';
 import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
 
 type Tri = boolean | undefined;
@@ -69,13 +70,22 @@ const number = {
   setValueAs: (v: unknown) =>
     v === '' || v === undefined ? Number.NaN : Number(String(v).replace(',', '.')),
 };
+/** A length field also takes feet and inches as typed (12' 6", 12 ft 6 in): kept as text until sent. */
+const length = {
+  setValueAs: (v: unknown) => (parseFeetAndInches(String(v ?? '')) ? String(v) : number.setValueAs(v)),
+};
 
 /** The body as the API takes it: a dimension without a number is not sent; a swing's direction only for swings. */
 function toBody(values: Values, mode: 'create' | 'edit'): unknown {
   const body = withoutBlanks(values) as Record<string, unknown>;
   for (const key of ['width', 'height', 'weight']) {
-    const dimension = body[key] as { value?: number } | undefined;
+    const dimension = body[key] as { value?: number | string; unit?: string } | undefined;
     if (!dimension || dimension.value === undefined) delete body[key];
+    else if (typeof dimension.value === 'string') {
+      // Feet and inches as typed: sent in feet (or inches), the unit it was measured in.
+      const typed = parseFeetAndInches(dimension.value);
+      if (typed) body[key] = { value: typed.value, unit: typed.unit };
+    }
   }
   if (values.kind !== 'swing') delete body.openingDirection;
   if (mode === 'edit') delete body.siteId;
@@ -151,7 +161,7 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
             aria-describedby={d}
             className="field tabular-nums"
             inputMode="decimal"
-            {...register(`${key}.value`, number)}
+            {...register(`${key}.value`, key === 'weight' ? number : length)}
           />
           <select aria-label={`${label} unit`} className="field w-24" {...register(`${key}.unit`)}>
             {unitsOffered.map((u) => (

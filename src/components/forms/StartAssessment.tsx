@@ -6,6 +6,8 @@ import { createKey } from '@/lib/create-key';
 interface Props {
   gateId: string;
   families: { family: string; title: string; current: string }[];
+  /** The day of the gate's last signed visit, in words, when it has one: offers to start from its answers. */
+  lastSignedOn?: string | null;
 }
 
 const PURPOSES = [
@@ -14,7 +16,8 @@ const PURPOSES = [
   { value: 'handover', label: 'Handover of a new install' },
 ] as const;
 
-export default function StartAssessment({ gateId, families }: Props) {
+export default function StartAssessment({ gateId, families, lastSignedOn }: Props) {
+  const [carryForward, setCarryForward] = useState(false);
   const [family, setFamily] = useState(families[0]?.family ?? '');
   const [purpose, setPurpose] = useState<string>('inspection');
   const [busy, setBusy] = useState(false);
@@ -25,7 +28,7 @@ export default function StartAssessment({ gateId, families }: Props) {
     setBusy(true);
     setMessage(null);
     try {
-      const text = JSON.stringify({ gateId, family, purpose });
+      const text = JSON.stringify({ gateId, family, purpose, ...(carryForward ? { carryForward } : {}) });
       // A retry after a lost answer (or a double tap) reuses the key, so it never starts two drafts.
       const create = createKey('/api/assessments', text);
       const response = await fetch('/api/assessments', {
@@ -86,6 +89,22 @@ export default function StartAssessment({ gateId, families }: Props) {
           ))}
         </select>
       </div>
+      {lastSignedOn ? (
+        <label className="flex min-h-11 items-start gap-2 sm:col-span-3 sm:order-last">
+          <input
+            type="checkbox"
+            className="mt-1 size-5 shrink-0"
+            checked={carryForward}
+            onChange={(e) => setCarryForward(e.target.checked)}
+          />
+          <span>
+            Start from the answers of the signed visit on {lastSignedOn}
+            <span className="block text-sm text-iron-600">
+              Each carried answer is marked &ldquo;confirm&rdquo; until you confirm or change it at the gate.
+            </span>
+          </span>
+        </label>
+      ) : null}
       <button type="button" className="btn" disabled={busy} onClick={() => void start()}>
         {busy ? 'Starting…' : 'Start the walk-through'}
       </button>

@@ -8,6 +8,7 @@ import { useId, useMemo, useState } from 'react';
 import {
   evaluateForceTrace,
   ForceTraceError,
+  HEADERLESS_TRACE_UNITS,
   parseForceTraceCsv,
   type ForceTraceResult,
 } from '@/lib/rules/calculators/force-trace';
@@ -267,6 +268,12 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
       <p className="mt-1 text-sm text-iron-600">
         Upload the CSV your force meter exported at each measuring point (time and force; comma or semicolon;
         header optional). The trace is judged against the limits for the gap left at that point.
+      </p>
+      <p className="mt-1 text-sm text-iron-700" data-headerless-units>
+        A file without a header is read as time in{' '}
+        {HEADERLESS_TRACE_UNITS.time === 's' ? 'seconds' : 'milliseconds'} and force in{' '}
+        {HEADERLESS_TRACE_UNITS.force === 'N' ? 'newtons (N)' : HEADERLESS_TRACE_UNITS.force}. If your meter
+        records pounds-force or milliseconds, keep its header line (e.g. <code>time [ms];force [lbf]</code>).
       </p>
       {editable && (
         <div className="mt-3 grid gap-3 sm:grid-cols-3">

@@ -9,6 +9,7 @@ import type { MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
 import type { MeasurementValue } from '@/lib/walk/documents';
 import { parseEntered, toMeasurement, unitLabel, unitsFor } from '@/lib/walk/entry';
+import { formatAsEntered, parseFeetAndInches } from '@/lib/measure-display';
 
 interface Props {
   kind: MeasuredAnswerType;
@@ -31,10 +32,22 @@ function otherSystem(kind: MeasuredAnswerType, canonical: number, unit: string):
   return null;
 }
 
+/** The number in the field: feet with a fraction as the tape reads them (6' 2"), else the number. */
+function shownText(value: MeasurementValue): string {
+  if (value.unit === 'ft' && !Number.isInteger(value.value)) {
+    const shown = formatAsEntered(value); // "6 ft 2 in"
+    const match = /^(\d+) ft (.+) in$/.exec(shown);
+    if (match) return `${match[1]}' ${match[2]}"`;
+  }
+  return String(value.value);
+}
+
 export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUnits, onChange }: Props) {
-  const options = unitsFor(kind, units, entryUnits);
-  const [unit, setUnit] = useState(value?.unit ?? (options[0] as string));
-  const [text, setText] = useState(value ? String(value.value) : '');
+  const offered = unitsFor(kind, units, entryUnits);
+  const [unit, setUnit] = useState(value?.unit ?? (offered[0] as string));
+  // Feet typed as 12' 6" (or "12 ft") are kept in feet: the unit joins the choices shown.
+  const options = offered.includes(unit) ? offered : [...offered, unit];
+  const [text, setText] = useState(value ? shownText(value) : '');
   const [error, setError] = useState<string | null>(null);
   const editing = useRef(false);
   const inputId = useId();
@@ -43,7 +56,7 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
   // Another device's value (after a sync or a conflict) replaces what is shown, unless typing.
   useEffect(() => {
     if (editing.current) return;
-    setText(value ? String(value.value) : '');
+    setText(value ? shownText(value) : '');
     if (value) setUnit(value.unit);
   }, [value]);
 
@@ -54,10 +67,22 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
       if (value) onChange(null);
       return;
     }
+    const feetAndInches = kind === 'length' ? parseFeetAndInches(nextText) : null;
+    if (feetAndInches) {
+      setError(null);
+      setUnit(feetAndInches.unit);
+      if (value && value.value === feetAndInches.value && value.unit === feetAndInches.unit) return;
+      onChange(toMeasurement(kind, feetAndInches.value, feetAndInches.unit, value?.note));
+      return;
+    }
     const number = parseEntered(nextText);
     if (number === null || number < 0) {
       if (report)
-        setError(number === null ? 'Type a number, e.g. 12.5 or 2-1/4' : 'A measurement cannot be negative');
+        setError(
+          number === null
+            ? `Type a number, e.g. 12.5 or 2-1/4${kind === 'length' ? `, or feet and inches: 6' 2"` : ''}`
+            : 'A measurement cannot be negative',
+        );
       return;
     }
     setError(null);
@@ -71,7 +96,7 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
       <div className="flex items-stretch gap-2">
         <input
           id={inputId}
-          className="field max-w-40 text-lg font-semibold tabular-nums"
+          className="field min-w-0 flex-1 max-w-40 text-lg font-semibold tabular-nums"
           inputMode="decimal"
           autoComplete="off"
           enterKeyHint="done"
@@ -95,12 +120,12 @@ export function MeasureInput({ kind, labelledBy, value, units, disabled, entryUn
             role="radiogroup"
             aria-label="Unit"
             id={`${inputId}-unit`}
-            className="flex overflow-hidden rounded-lg border-2 border-iron-200"
+            className="flex shrink-0 overflow-hidden rounded-lg border-2 border-iron-200"
           >
             {options.map((option) => (
               <label
                 key={option}
-                className={`flex min-h-11 min-w-14 cursor-pointer items-center justify-center px-3 font-semibold focus-within:outline-3 focus-within:-outline-offset-3 focus-within:outline-brass-500 ${
+                className={`flex min-h-11 ${options.length > 2 ? 'min-w-11 px-2' : 'min-w-14 px-3'} cursor-pointer items-center justify-center font-semibold focus-within:outline-3 focus-within:-outline-offset-3 focus-within:outline-brass-500 ${
                   unit === option ? 'bg-iron-800 text-white' : 'bg-white text-iron-800'
                 }`}
               >

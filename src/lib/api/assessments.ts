@@ -54,6 +54,16 @@ export const AssessmentCreateSchema = z.strictObject({
   visitedOn: visitedOn.optional(),
   /** Owner / office may start a draft for an auditor; an auditor's drafts are their own. */
   auditorId: IdSchema.optional(),
+  /** Start from the gate's last signed visit: its answers, each to be confirmed or changed. */
+  carryForward: z.boolean('must be true or false').optional(),
+});
+
+/** Carried-forward answers confirmed as they are: `answers.<key>` / `measurements.<key>`. */
+export const CarriedForwardConfirmSchema = z.strictObject({
+  keys: z
+    .array(z.string().max(200, 'must be at most 200 characters'), 'must be a list of keys')
+    .min(1, 'name at least one key')
+    .max(500, 'at most 500 keys at once'),
 });
 export type AssessmentCreate = z.infer<typeof AssessmentCreateSchema>;
 

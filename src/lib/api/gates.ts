@@ -198,3 +198,8 @@ export interface Gate {
   createdAt: string;
   updatedAt: string;
 }
+
+/** Copying a gate's profile to a new gate on its site: the new gate's name (default: "<label> (copy)"). */
+export const GateDuplicateSchema = z.strictObject({
+  label: z.string().trim().min(1, 'must not be empty').max(120, 'must be at most 120 characters').optional(),
+});

@@ -99,6 +99,53 @@ export interface AuditListOptions {
   limit: number;
   action?: string;
   entityId?: string;
+  /** Free text: found in the event kind, the person, the record kind or the event's details. */
+  q?: string;
+  /** The person who acted (user id). */
+  actor?: string;
+  /** First and last day (YYYY-MM-DD, inclusive) in `timeZone`. */
+  from?: string;
+  to?: string;
+  timeZone?: string;
+  /** Events of the gate itself and of every assessment of it. */
+  gateId?: string;
+}
+
+/** `%` and `_` typed by a person are literal characters, not wildcards. */
+function likePattern(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+/** The search and filters of the audit trail, as bound parameters only. */
+function applyAuditFilters(query: Knex.QueryBuilder, options: AuditListOptions, knex: Knex): void {
+  const zone = options.timeZone ?? 'UTC';
+  if (options.action) query.andWhere('action', options.action);
+  if (options.entityId) query.andWhere('entity_id', options.entityId);
+  if (options.actor) query.andWhere('actor_user_id', options.actor);
+  // Whole days in the organisation's zone: from its first instant to the next day's first.
+  if (options.from)
+    query.andWhereRaw('created_at >= (?::date)::timestamp at time zone ?', [options.from, zone]);
+  if (options.to)
+    query.andWhereRaw('created_at < ((?::date) + 1)::timestamp at time zone ?', [options.to, zone]);
+  if (options.gateId) {
+    const gateId = options.gateId;
+    query.andWhere((w) =>
+      w
+        .where('entity_id', gateId)
+        .orWhereRaw("detail ->> 'gateId' = ?", [gateId])
+        .orWhereIn('entity_id', knex('assessments').select(knex.raw('id::text')).where('gate_id', gateId)),
+    );
+  }
+  if (options.q) {
+    const pattern = likePattern(options.q);
+    query.andWhere((w) =>
+      w
+        .whereILike('action', pattern)
+        .orWhereILike('actor_label', pattern)
+        .orWhereILike('entity_type', pattern)
+        .orWhereRaw('detail::text ilike ?', [pattern]),
+    );
+  }
 }
 
 export async function listAuditEvents(
@@ -108,8 +155,7 @@ export async function listAuditEvents(
 ): Promise<AuditPage> {
   const query = knex('audit_events').where('organisation_id', organisationId);
   if (options.before) query.andWhere('id', '<', options.before);
-  if (options.action) query.andWhere('action', options.action);
-  if (options.entityId) query.andWhere('entity_id', options.entityId);
+  applyAuditFilters(query, options, knex);
   const rows = (await query
     .orderBy('id', 'desc')
     .limit(options.limit + 1)
@@ -224,4 +270,27 @@ export async function verifyOrganisationTrail(
     },
     { isolationLevel: 'repeatable read', readOnly: true },
   );
+}
+
+/** What the filter lists offer: the event kinds and the people found in the organisation's trail. */
+export async function auditFilterChoices(
+  organisationId: string,
+  knex: Knex = db(),
+): Promise<{ actions: string[]; people: Array<{ id: string; label: string }> }> {
+  const [actions, people] = await Promise.all([
+    knex('audit_events').where('organisation_id', organisationId).distinct('action').orderBy('action'),
+    knex('audit_events')
+      .where('organisation_id', organisationId)
+      .whereNotNull('actor_user_id')
+      .groupBy('actor_user_id')
+      .select<{ actor_user_id: string; label: string | null }[]>(
+        'actor_user_id',
+        knex.raw('max(actor_label) as label'),
+      )
+      .orderBy('label'),
+  ]);
+  return {
+    actions: actions.map((r: { action: string }) => r.action),
+    people: people.map((p) => ({ id: p.actor_user_id, label: p.label ?? 'Unknown person' })),
+  };
 }

@@ -181,6 +181,42 @@ export async function createGate(viewer: SessionUser, input: GateCreate, knex: K
   });
 }
 
+/**
+ * A new gate on the same site with the profile of `id` (kind, leaves, direction, sizes as
+ * entered, weight, operator facts, install date): for a site with several gates alike. Only the
+ * label differs; assessments, re-inspection dates and history stay with the original.
+ */
+export async function duplicateGate(viewer: SessionUser, id: string, label: string): Promise<Gate | null> {
+  return db().transaction(async (trx) => {
+    const source = await trx('gates')
+      .where({ id, organisation_id: viewer.organisationId })
+      .forShare()
+      .first(
+        'site_id',
+        'kind',
+        'leaves',
+        'opening_direction',
+        'width_mm',
+        'height_mm',
+        'weight_kg',
+        'entered',
+        'operator',
+        'installed_on',
+      );
+    if (!source) return null;
+    const [{ id: copyId }] = await trx('gates')
+      .insert({
+        ...source,
+        entered: JSON.stringify(source.entered ?? {}),
+        operator: JSON.stringify(source.operator ?? {}),
+        label,
+        organisation_id: viewer.organisationId,
+      })
+      .returning<{ id: string }[]>('id');
+    return (await getGate(viewer, copyId as string, trx)) as Gate;
+  });
+}
+
 /** Changes a gate; the columns that changed are recorded in the audit trail with old and new values. */
 export async function updateGate(
   viewer: SessionUser,

@@ -6,6 +6,7 @@
  * re-scored and nothing is read from the live gate, site or client rows: a later edit of those
  * belongs to the next assessment.
  */
+import type { EnteredMeasurement } from '@/lib/measure-display';
 import type { Knex } from 'knex';
 import { db } from './db';
 import { loadFrozenAssessment, type ScoredRecord } from './assessments';
@@ -35,6 +36,24 @@ function areaTitles(areas: unknown): Record<string, string> {
 }
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+
+/** A value as entered ({ value, unit }) from stored JSON, or null when it is not one. */
+function enteredMeasurement(raw: unknown): EnteredMeasurement | null {
+  if (!raw || typeof raw !== 'object') return null;
+  const { value, unit, canonical } = raw as Record<string, unknown>;
+  if (typeof value !== 'number' || !Number.isFinite(value) || typeof unit !== 'string') return null;
+  return { value, unit, ...(typeof canonical === 'number' ? { canonical } : {}) };
+}
+
+/** The walk-through's measurements as entered, by question key. */
+export function enteredMeasurements(raw: Record<string, unknown> | null): Record<string, EnteredMeasurement> {
+  const out: Record<string, EnteredMeasurement> = {};
+  for (const [key, value] of Object.entries(raw ?? {})) {
+    const measured = enteredMeasurement(value);
+    if (measured) out[key] = measured;
+  }
+  return out;
+}
 
 function swingGeometryOf(
   observations: Record<string, unknown> | null,
@@ -184,6 +203,7 @@ export async function loadReportSource(
       result: record.result,
       resultSha256: record.resultSha256,
       swingGeometry: swingGeometryOf(record.observations, record.gate),
+      measurementsAsEntered: enteredMeasurements(record.measurements),
     },
     auditor: { name: record.auditor.name, email: record.auditor.email },
     client: { name: record.client.name, contactEmail: record.client.contactEmail },
@@ -196,6 +216,10 @@ export async function loadReportSource(
       widthMm: record.gate.widthMm,
       heightMm: record.gate.heightMm,
       weightKg: record.gate.weightKg,
+      entered: {
+        width: enteredMeasurement(record.gate.entered?.width),
+        height: enteredMeasurement(record.gate.entered?.height),
+      },
     },
     ruleset: {
       title: record.ruleset.title,

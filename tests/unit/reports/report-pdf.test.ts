@@ -11,7 +11,7 @@ import {
   StoredResultSchema,
 } from '../../../src/lib/server/pdf/report-model';
 import { renderReportPdf } from '../../../src/lib/server/pdf/render';
-import { extractPdfText } from '../../support/pdf-text';
+import { extractPdfPages, extractPdfText } from '../../support/pdf-text';
 import { sampleReportSource, sampleResult } from '../../support/sample-report';
 
 describe('report model', () => {
@@ -62,8 +62,14 @@ describe('report PDF', () => {
     expect(text).toMatch(/Page 1 of (\d+)/);
     expect(text).toContain('Operator geometry (top view)');
     expect(text).toContain('Force trace: Closing edge, 300 mm gap');
-    // Imperial organisation: lengths in inches.
-    expect(text).toMatch(/144\.09 in wide/);
+    // The gate's size and each measurement as entered; other lengths in the organisation's
+    // system (imperial: feet and inches to 1/16 in), limits rounded say "about".
+    expect(text).toContain('12 ft × 5 ft (width × height)');
+    expect(text).toContain('gap item0: 30 mm');
+    expect(text).toContain('gap item3: 1-5/16 in');
+    expect(text).toContain('max gap: about 1 in');
+    expect(text).toContain('Limit 89.9 lbf');
+    expect(text).not.toMatch(/\d+\.\d{2} in/);
   }, 30_000);
 
   it('skips the drawings when the assessment has no geometry or trace', async () => {
@@ -75,6 +81,74 @@ describe('report PDF', () => {
     expect(text).not.toContain('Force trace:');
     expect(text).toContain('Cautions for the owner');
   }, 30_000);
+
+  const rulesetDisclaimer =
+    "This assessment supports, and never replaces, a qualified gate technician, the manufacturer's instructions, local codes and the authority having jurisdiction.";
+
+  it('prints the disclaimer once, not again inside every caution', async () => {
+    const source = await sampleReportSource({ findings: 9, photos: 0 });
+    const result = source.assessment.result as ReturnType<typeof sampleResult>;
+    for (const f of result.findings) f.caution = `${f.caution} ${rulesetDisclaimer}`;
+    const model = buildReportModel(source);
+    expect(model.cautions.map((c) => c.caution)).toContain(
+      'Keep hands and feet away from this part of the gate while it moves (item 1).',
+    );
+    const text = await extractPdfText(await renderReportPdf(model));
+    expect(text.split('authority having jurisdiction').length - 1).toBe(1);
+    expect(text).toContain('Keep hands and feet away from this part of the gate while it moves (item 1).');
+  }, 30_000);
+
+  it('keeps every finding on one page with its photos and leaves no heading at a page foot', async () => {
+    const headings = [
+      'What needs fixing',
+      'Checks that need more information',
+      'Measurements',
+      'Further photos',
+      'Checks passed',
+      'Cautions for the owner',
+      'Signatures',
+      'Record',
+    ];
+    // Layouts that put page breaks in different places: more findings, more photos, signed.
+    for (const [findings, photos, signed] of [
+      [9, 9, false],
+      [12, 12, true],
+      [24, 14, true],
+      [30, 20, false],
+    ] as const) {
+      const source = await sampleReportSource({ findings, photos });
+      if (signed)
+        source.signing = {
+          assessor: { name: 'Rowan Tessier', signedAt: new Date('2026-11-21T09:00:00Z') },
+          owner: {
+            name: 'Imke Quillfeather',
+            email: 'home@quillfeather.test',
+            signedAt: new Date('2026-11-22T09:00:00Z'),
+            method: 'typed',
+            imagePng: null,
+            ip: null,
+            userAgent: null,
+            shownPdfSha256: 'd'.repeat(64),
+            consentText: 'I agree to sign electronically.',
+            intentText: 'I have read this report.',
+            cautionsAcknowledged: [],
+          },
+        };
+      const model = buildReportModel(source);
+      const pages = await extractPdfPages(await renderReportPdf(model));
+      for (const finding of model.failing) {
+        const page = pages.find((p) => p.includes(` · ${finding.ruleId}`));
+        expect(page, finding.title).toBeDefined();
+        for (const photo of finding.photos)
+          expect(page, `${finding.title}: ${photo.caption}`).toContain(`${photo.caption} ·`);
+      }
+      for (const [i, page] of pages.entries())
+        for (const heading of headings)
+          expect(page.endsWith(heading), `page ${i + 1} of ${findings}/${photos} ends with ${heading}`).toBe(
+            false,
+          );
+    }
+  }, 120_000);
 
   it('embeds Noto Sans and spells out symbols the font lacks', async () => {
     const source = await sampleReportSource({ findings: 3, photos: 0 });

@@ -37,6 +37,7 @@ describe('signing e-mails', () => {
       signerName: 'Imke',
       sha256: 'f'.repeat(64),
       documentId: 'doc-1',
+      verdict: 'remedy',
     });
     expect(owner.text).toContain(`SHA-256 ${'f'.repeat(64)}`);
     const copy = signedReportMail({
@@ -46,8 +47,40 @@ describe('signing e-mails', () => {
       signerName: 'Imke',
       sha256: 'f'.repeat(64),
       documentId: 'doc-1',
+      verdict: 'remedy',
     });
     expect(copy.subject).toBe('Signed: gate safety report for Driveway gate (Imke)');
+  });
+});
+
+describe('e-mails about a gate to take out of service', () => {
+  const manualNow = /Switch the gate to manual operation now/;
+
+  it('tell the owner first thing to switch the gate to manual operation', () => {
+    const request = signRequestMail({
+      organisationName: 'Ironbark',
+      clientName: 'Imke',
+      gateLabel: 'Driveway gate',
+      siteLine: '9 Larchmere Rise',
+      verdict: 'withdraw',
+      link: 'https://gates.example.test/sign/x',
+      expiresAt: new Date('2026-12-16T12:00:00Z'),
+      timeZone: 'UTC',
+    });
+    expect(request.text.split('\n')[2]).toMatch(manualNow);
+    expect(request.html).toMatch(manualNow);
+    const facts = { organisationName: 'Ironbark', gateLabel: 'Driveway gate', signerName: 'Imke' };
+    const signed = { sha256: 'f'.repeat(64), documentId: 'doc-1', verdict: 'withdraw' as const };
+    expect(signedReportMail({ kind: 'owner', ...facts, ...signed }).text.split('\n')[2]).toMatch(manualNow);
+    expect(signedReportMail({ kind: 'organisation', ...facts, ...signed }).text).toMatch(manualNow);
+  });
+
+  it('say nothing of manual operation when the gate may stay in use', () => {
+    const facts = { organisationName: 'Ironbark', gateLabel: 'Driveway gate', signerName: 'Imke' };
+    for (const verdict of ['clear', 'remedy'] as const) {
+      const mail = signedReportMail({ kind: 'owner', ...facts, sha256: 'f', documentId: 'd', verdict });
+      expect(mail.text).not.toMatch(manualNow);
+    }
   });
 });
 

@@ -16,6 +16,12 @@ export interface ForceTraceCsvOptions {
 
 type ForceUnitInFile = 'N' | 'kN' | 'lbf' | 'kgf';
 
+/**
+ * The units a file without a header is read in (time, force). The upload form says so, so a
+ * meter set to pounds-force is not read as newtons unnoticed: such a file needs a header.
+ */
+export const HEADERLESS_TRACE_UNITS = { time: 's', force: 'N' } as const;
+
 const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
 const DECIMAL_COMMA = /^[+-]?\d*,\d+$/;
 const TIME_COLUMN = /^(?:t|time|zeit|temps|tiempo)(?![a-z])/i;
@@ -114,8 +120,8 @@ export function parseForceTraceCsv(text: string, options: ForceTraceCsvOptions =
 
   let timeColumn = 0;
   let forceColumn = 1;
-  let timeUnit: 's' | 'ms' = options.timeUnit ?? 's';
-  let forceUnit: ForceUnitInFile = 'N';
+  let timeUnit: 's' | 'ms' = options.timeUnit ?? HEADERLESS_TRACE_UNITS.time;
+  let forceUnit: ForceUnitInFile = HEADERLESS_TRACE_UNITS.force;
   if (hasHeader) {
     const named = (pattern: RegExp) => firstFields.findIndex((cell) => pattern.test(cell));
     if (named(TIME_COLUMN) >= 0) timeColumn = named(TIME_COLUMN);

@@ -9,7 +9,7 @@ import { requireFinite, roundN, roundS, roundTo } from './numbers';
 
 // The error and the CSV reader belong to this concept; callers import them from here.
 export { ForceTraceError, type ForceTraceErrorCode } from './force-trace-error';
-export { parseForceTraceCsv, type ForceTraceCsvOptions } from './force-trace-csv';
+export { HEADERLESS_TRACE_UNITS, parseForceTraceCsv, type ForceTraceCsvOptions } from './force-trace-csv';
 
 /** One reading: time in seconds, force in newtons. */
 export interface ForceSample {

@@ -3,6 +3,7 @@
  * submitted for scoring. The one module holding their SQL. Staff see the organisation's
  * assessments; a homeowner sees only those of their own client that were sent for signature.
  */
+import { carriedForwardOf, carryForwardIntoDraft, pendingAfterPatch } from '../carry-forward';
 import type { Knex } from 'knex';
 import type {
   Assessment,
@@ -299,6 +300,9 @@ export async function createAssessment(
         visited_on: input.visitedOn ?? trx.fn.now(),
       })
       .returning<{ id: string }[]>('id');
+    const carried = input.carryForward
+      ? await carryForwardIntoDraft(trx, viewer.organisationId, input.gateId, id, version.id)
+      : null;
     await recordAudit(trx, {
       organisationId: viewer.organisationId,
       actorUserId: viewer.id,
@@ -314,6 +318,7 @@ export async function createAssessment(
         rulesetVersionId: version.id,
         purpose: input.purpose,
         auditorId,
+        ...(carried ? { carriedForwardFrom: carried.fromAssessmentId, carried: carried.pending.length } : {}),
       },
     });
     return (await getAssessment(viewer, id as string, trx)) as Assessment;
@@ -387,6 +392,10 @@ export async function patchAssessment(
     updated_at: knex.fn.now(),
   };
   if (patch.purpose !== undefined) changes.purpose = patch.purpose;
+  // Saving a carried-forward answer (changed or not) confirms it.
+  const carried = await carriedForwardOf(knex, viewer.organisationId, id);
+  if (carried?.pending.length)
+    changes.carried_forward = JSON.stringify({ ...carried, pending: pendingAfterPatch(carried, patch) });
   if (patch.visitedOn !== undefined) changes.visited_on = patch.visitedOn;
   const updated = await knex('assessments')
     .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' })

@@ -6,6 +6,7 @@
  * the database freeze the scored record (gate, site, client, people, ruleset, documents and
  * result; see scored-record.ts), which is what every report renders from, forever.
  */
+import { assertCarriedForwardConfirmed, carriedForwardOf } from '../carry-forward';
 import type { Assessment } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { AssessmentInputError, resultSha256, scoreParsed, type RulesetVersion } from '@/lib/rules';
@@ -38,6 +39,7 @@ export async function submitAssessment(
     const current = await getAssessment(viewer, id, trx);
     if (!current) return null;
     assertEditable(viewer, current, expectedVersion);
+    assertCarriedForwardConfirmed(await carriedForwardOf(trx, viewer.organisationId, id));
 
     // Locked before reading: what is scored is what the record freezes at the UPDATE below.
     await trx('gates as g')

@@ -4,7 +4,7 @@
  * severity, drawings, photos, the cautions the owner acknowledges, the disclaimer, the ruleset
  * and document identity, and the signature blocks (filled in on the signed document).
  */
-import { Document, Image, Page, Text, View } from '@react-pdf/renderer';
+import { Document, Image, Page, Path, Svg, Text, View } from '@react-pdf/renderer';
 import type { ReactElement } from 'react';
 import { fingerprintInWords } from './certificate-facts';
 import { ForceTracePlot, SwingGeometryDiagram } from './diagrams';
@@ -16,6 +16,7 @@ import {
   type StoredFinding,
 } from './report-model';
 import { styles } from './styles';
+import { formatAsEntered, formatLimit } from '@/lib/measure-display';
 import { colours, severityColour, verdictColour } from './theme';
 import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
 
@@ -78,43 +79,69 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
           <Fact label="Summary" value={summaryLine(model)} />
         </View>
 
-        <Text style={styles.h2}>Scores by hazard area</Text>
-        <AreaBars model={model} />
+        <View wrap={false}>
+          <Text style={styles.h2}>Scores by hazard area</Text>
+          <AreaBars model={model} />
+        </View>
       </Page>
 
       <Page size="LETTER" style={styles.page}>
         <Chrome model={model} />
-        <Text style={styles.h2}>What needs fixing</Text>
-        {model.failing.length === 0 ? <Text>No check failed.</Text> : null}
-        {model.failing.map((finding) => (
+        {/* Each heading is kept on one page with the first thing under it (a View that does not wrap). */}
+        <View wrap={false}>
+          <Text style={styles.h2}>What needs fixing</Text>
+          {model.failing.length === 0 ? <Text>No check failed.</Text> : null}
+          {model.failing.slice(0, 1).map((finding) => (
+            <FindingCard key={finding.ruleId} finding={finding} photos={finding.photos} model={model} />
+          ))}
+        </View>
+        {model.failing.slice(1).map((finding) => (
           <FindingCard key={finding.ruleId} finding={finding} photos={finding.photos} model={model} />
         ))}
 
         {model.needsInfo.length ? (
           <View>
-            <Text style={styles.h2}>Checks that need more information</Text>
-            {model.needsInfo.map((f) => (
-              <View key={f.ruleId} style={{ marginBottom: 4 }} wrap={false}>
-                <Text style={{ fontWeight: 600 }}>{pdfText(f.title)}</Text>
-                <Text style={styles.small}>
-                  Missing:{' '}
-                  {pdfText(
-                    f.missing.map((m) => m.prompt || factLabel(m.key)).join('; ') || 'details not recorded',
-                  )}
-                </Text>
-              </View>
-            ))}
+            {model.needsInfo.map((f, i) => {
+              const item = (
+                <View key={f.ruleId} style={{ marginBottom: 4 }} wrap={false}>
+                  <Text style={{ fontWeight: 600 }}>{pdfText(f.title)}</Text>
+                  <Text style={styles.small}>
+                    Missing:{' '}
+                    {pdfText(
+                      f.missing.map((m) => m.prompt || factLabel(m.key)).join('; ') || 'details not recorded',
+                    )}
+                  </Text>
+                </View>
+              );
+              return i === 0 ? (
+                <View key={f.ruleId} wrap={false}>
+                  <Text style={styles.h2}>Checks that need more information</Text>
+                  {item}
+                </View>
+              ) : (
+                item
+              );
+            })}
           </View>
         ) : null}
 
         {model.assessment.swingGeometry || model.forceTraces.length ? (
-          <Text style={styles.h2}>Measurements</Text>
+          <View wrap={false}>
+            <Text style={styles.h2}>Measurements</Text>
+            {model.assessment.swingGeometry ? (
+              <SwingGeometryDiagram
+                geometry={model.assessment.swingGeometry}
+                formatLength={(mm) => formatQuantity(mm, 'mm', units)}
+              />
+            ) : (
+              <ForceTracePlot
+                trace={model.forceTraces[0]}
+                formatForce={(n) => formatQuantity(n, 'N', units)}
+              />
+            )}
+          </View>
         ) : null}
-        <SwingGeometryDiagram
-          geometry={model.assessment.swingGeometry}
-          formatLength={(mm) => formatQuantity(mm, 'mm', units)}
-        />
-        {model.forceTraces.map((trace) => (
+        {model.forceTraces.slice(model.assessment.swingGeometry ? 0 : 1).map((trace) => (
           <ForceTracePlot
             key={trace.itemKey + trace.label}
             trace={trace}
@@ -123,18 +150,30 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
         ))}
 
         {model.otherPhotos.length ? (
-          <View>
+          <View wrap={false}>
             <Text style={styles.h2}>Further photos</Text>
-            <Photos photos={model.otherPhotos} model={model} />
+            <Photos photos={model.otherPhotos.slice(0, MAX_PHOTOS_IN_CARD)} model={model} />
           </View>
         ) : null}
+        {chunks(model.otherPhotos.slice(MAX_PHOTOS_IN_CARD), MAX_PHOTOS_IN_CARD).map((group, i) => (
+          <View key={i} wrap={false}>
+            <Photos photos={group} model={model} />
+          </View>
+        ))}
 
-        <Text style={styles.h2}>Checks passed</Text>
-        <Text style={styles.small}>
-          {model.passed.length} checks passed
-          {model.notApplicable ? `; ${model.notApplicable} did not apply to this gate` : ''}.
-        </Text>
-        {model.passed.map((f) => (
+        <View wrap={false}>
+          <Text style={styles.h2}>Checks passed</Text>
+          <Text style={styles.small}>
+            {model.passed.length} checks passed
+            {model.notApplicable ? `; ${model.notApplicable} did not apply to this gate` : ''}.
+          </Text>
+          {model.passed.slice(0, 3).map((f) => (
+            <Text key={f.ruleId} style={styles.small}>
+              {pdfText(`${f.title} (${referenceText(f)})`)}
+            </Text>
+          ))}
+        </View>
+        {model.passed.slice(3).map((f) => (
           <Text key={f.ruleId} style={styles.small}>
             {pdfText(`${f.title} (${referenceText(f)})`)}
           </Text>
@@ -154,7 +193,7 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
         )}
         {model.cautions.map((c) => (
           <View key={c.ruleId} style={styles.caution} wrap={false}>
-            <View style={[styles.box, model.signing ? { backgroundColor: colours.iron800 } : {}]} />
+            <CautionBox ticked={Boolean(model.signing)} />
             <View style={{ flex: 1 }}>
               <Text style={{ fontWeight: 700 }}>{pdfText(c.title)}</Text>
               <Text>{pdfText(c.caution)}</Text>
@@ -167,11 +206,15 @@ export function ReportDocument({ model }: { model: ReportModel }): ReactElement 
           <Text>{DISCLAIMER}</Text>
         </View>
 
-        <Text style={styles.h2}>Signatures</Text>
-        <SignatureBlocks model={model} />
+        <View wrap={false}>
+          <Text style={styles.h2}>Signatures</Text>
+          <SignatureBlocks model={model} />
+        </View>
 
-        <Text style={styles.h2}>Record</Text>
-        <Identity model={model} />
+        <View wrap={false}>
+          <Text style={styles.h2}>Record</Text>
+          <Identity model={model} />
+        </View>
       </Page>
     </Document>
   );
@@ -205,12 +248,22 @@ function Fact({ label, value }: { label: string; value: string }) {
   );
 }
 
+/** Width × height as entered on the gate form ("12 ft × 6 ft"); converted only when nothing was kept. */
 function gateSize(model: ReportModel, units: 'imperial' | 'metric'): string {
+  const width =
+    model.gate.entered?.width ?? (model.gate.widthMm ? { value: model.gate.widthMm, unit: 'mm' } : null);
+  const height =
+    model.gate.entered?.height ?? (model.gate.heightMm ? { value: model.gate.heightMm, unit: 'mm' } : null);
+  const shown = (m: { value: number; unit: string }, entered: boolean) =>
+    entered ? formatAsEntered(m) : formatQuantity(m.value, 'mm', units);
   const parts = [
-    model.gate.widthMm ? `${formatQuantity(model.gate.widthMm, 'mm', units)} wide` : null,
-    model.gate.heightMm ? `${formatQuantity(model.gate.heightMm, 'mm', units)} high` : null,
+    width ? shown(width, Boolean(model.gate.entered?.width)) : null,
+    height ? shown(height, Boolean(model.gate.entered?.height)) : null,
   ].filter(Boolean);
-  return parts.length ? `, ${parts.join(', ')}` : '';
+  if (!parts.length) return '';
+  return width && height
+    ? `, ${parts.join(' × ')} (width × height)`
+    : `, ${parts[0]} ${width ? 'wide' : 'high'}`;
 }
 
 function summaryLine(model: ReportModel): string {
@@ -290,7 +343,9 @@ function FindingCard({
   const units = model.organisation.displayUnits;
   const observed = Object.entries(finding.observed)
     .slice(0, 8)
-    .map(([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units)}`);
+    .map(
+      ([k, v]) => `${factLabel(k)}: ${formatObserved(k, v, units, model.assessment.measurementsAsEntered)}`,
+    );
   const limits = Object.entries(finding.params)
     .filter(
       ([, p]) => typeof p.value === 'number' || typeof p.value === 'string' || typeof p.value === 'boolean',
@@ -298,44 +353,90 @@ function FindingCard({
     .slice(0, 4)
     .map(
       ([k, p]) =>
-        `${factLabel(k)}: ${typeof p.value === 'number' ? formatQuantity(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
+        `${factLabel(k)}: ${typeof p.value === 'number' ? formatLimit(p.value, p.unit, units) : formatObserved(k, p.value, units)}`,
     );
+  // A finding and its photos stay on one page: the whole card moves to the next page rather
+  // than leave a photo apart from the words it shows. Many photos get smaller so they fit.
+  const kept = photos.slice(0, MAX_PHOTOS_IN_CARD);
+  const more = photos.slice(MAX_PHOTOS_IN_CARD);
   return (
-    <View
-      style={[
-        styles.card,
-        {
-          borderLeftWidth: 3,
-          borderLeftColor: severityColour[finding.severity],
-        },
-      ]}
-    >
-      {/* The words of a finding stay together; its photos may follow on the next page. */}
-      <View wrap={false}>
-        <View style={styles.findingHead}>
-          <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
-          <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>
-            {finding.severity}
+    <>
+      <View
+        wrap={false}
+        style={[
+          styles.card,
+          {
+            borderLeftWidth: 3,
+            borderLeftColor: severityColour[finding.severity],
+          },
+        ]}
+      >
+        <View>
+          <View style={styles.findingHead}>
+            <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
+            <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>
+              {finding.severity}
+            </Text>
+          </View>
+          <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
+            {pdfText(
+              `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
+            )}
           </Text>
+          <Field
+            name="What was found"
+            value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'}
+          />
+          {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
+          <Field name="Why it matters" value={finding.caution || '-'} />
+          <Field name="Fix" value={finding.remediation || '-'} />
+          <Field
+            name="Reference"
+            value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')}
+          />
         </View>
-        <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>
-          {pdfText(
-            `${model.ruleset.areaTitles[finding.area] ?? finding.area} · ${finding.ruleId}${finding.hrn ? ` · HRN ${finding.hrn.value} (${finding.hrn.band})` : ''}`,
-          )}
-        </Text>
-        <Field
-          name="What was found"
-          value={observed.length ? observed.join('; ') : 'The check failed on the answers given.'}
-        />
-        {limits.length ? <Field name="Judged against" value={limits.join('; ')} /> : null}
-        <Field name="Why it matters" value={finding.caution || '-'} />
-        <Field name="Fix" value={finding.remediation || '-'} />
-        <Field
-          name="Reference"
-          value={referenceText(finding) + (finding.reference.note ? ` (${finding.reference.note})` : '')}
-        />
+        {kept.length ? <Photos photos={kept} model={model} /> : null}
       </View>
-      {photos.length ? <Photos photos={photos} model={model} /> : null}
+      {chunks(more, MAX_PHOTOS_IN_CARD).map((group, i) => (
+        <View
+          key={i}
+          wrap={false}
+          style={[styles.card, { borderLeftWidth: 3, borderLeftColor: severityColour[finding.severity] }]}
+        >
+          <Text style={styles.h3}>{pdfText(`${finding.title}: more photos`)}</Text>
+          <Photos photos={group} model={model} />
+        </View>
+      ))}
+    </>
+  );
+}
+
+/** Beyond this many photos a finding continues in a card of its own that repeats its title. */
+const MAX_PHOTOS_IN_CARD = 15;
+
+function chunks<T>(items: T[], size: number): T[][] {
+  const out: T[][] = [];
+  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size));
+  return out;
+}
+
+/** Photo width (points) by how many share a card: three, four or five to a row. */
+function photoWidth(count: number): number {
+  return count <= 3 ? 150 : count <= 8 ? 118 : 92;
+}
+
+/**
+ * The box before a caution; ticked once the owner signed. The tick is drawn, not typed: the
+ * report's font (Noto Sans) has no check-mark glyph.
+ */
+function CautionBox({ ticked }: { ticked: boolean }) {
+  return (
+    <View style={styles.box}>
+      {ticked ? (
+        <Svg width={8} height={8} viewBox="0 0 10 10">
+          <Path d="M1.5 5.2 L4 7.8 L8.8 2" stroke={colours.iron900} strokeWidth={1.8} fill="none" />
+        </Svg>
+      ) : null}
     </View>
   );
 }
@@ -353,10 +454,11 @@ function Photos({ photos, model }: { photos: ReportPhoto[]; model: ReportModel }
   return (
     <View style={styles.photoRow}>
       {photos.map((photo, i) => {
-        const height = Math.min(150, (150 * photo.height) / Math.max(1, photo.width));
+        const width = photoWidth(photos.length);
+        const height = Math.min(width, (width * photo.height) / Math.max(1, photo.width));
         return (
-          <View key={`${photo.itemKey}-${i}`} style={styles.photo} wrap={false}>
-            <Image src={photo.data} style={{ width: 150, height, objectFit: 'cover' }} />
+          <View key={`${photo.itemKey}-${i}`} style={[styles.photo, { width }]} wrap={false}>
+            <Image src={photo.data} style={{ width, height, objectFit: 'cover' }} />
             <Text style={styles.mono}>
               {pdfText(
                 [

@@ -8,6 +8,7 @@
  */
 import type { CertificateFacts } from './certificate-facts';
 import { VERDICT_WORDS } from '@/lib/vocabulary';
+import type { EnteredMeasurement } from '@/lib/measure-display';
 import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
 import { ConflictError, CorruptRecordError } from '../errors';
 
@@ -84,6 +85,8 @@ export interface ReportSource {
     result: unknown;
     resultSha256: string | null;
     swingGeometry: SwingGeometryMeasurements | null;
+    /** Each measurement as the auditor entered it (value and unit), by question key. */
+    measurementsAsEntered?: Record<string, EnteredMeasurement>;
   };
   auditor: { name: string; email: string };
   client: { name: string; contactEmail: string | null };
@@ -96,6 +99,8 @@ export interface ReportSource {
     widthMm: number | null;
     heightMm: number | null;
     weightKg: number | null;
+    /** Width and height as entered on the gate form, shown as entered ("12 ft × 6 ft"). */
+    entered?: { width: EnteredMeasurement | null; height: EnteredMeasurement | null };
   };
   ruleset: {
     title: string;
@@ -153,6 +158,17 @@ function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
 }
 
 /**
+ * Published rulesets end many cautions with the same sentence on what the assessment does not
+ * replace. The report says that once, in its disclaimer; a caution keeps only its own words.
+ */
+const DISCLAIMER_SENTENCE =
+  /\s*This (?:assessment|report) supports, and (?:never|does not) replaces?,[^.]*\./gi;
+
+export function cautionWithoutDisclaimer(caution: string): string {
+  return caution.replace(DISCLAIMER_SENTENCE, '').trim();
+}
+
+/**
  * The cautions the owner acknowledges: one per failing finding (worst first) with a caution
  * text, the same text once. The signing page and the report list exactly these.
  */
@@ -160,7 +176,7 @@ export function cautionsOf(result: StoredResult): ReportCaution[] {
   const cautions: ReportCaution[] = [];
   const seen = new Set<string>();
   for (const f of result.findings.filter((x) => x.outcome === 'fail').sort(bySeverity)) {
-    const text = f.caution.trim();
+    const text = cautionWithoutDisclaimer(f.caution);
     if (!text || seen.has(text)) continue;
     seen.add(text);
     cautions.push({ ruleId: f.ruleId, title: f.title, severity: f.severity, caution: text });
@@ -190,7 +206,7 @@ export function buildReportModel(source: ReportSource): ReportModel {
     .map((f) => {
       const photos = source.photos.filter((p) => photoBelongsTo(p, f));
       photos.forEach((p) => claimed.add(p));
-      return { ...f, photos };
+      return { ...f, caution: cautionWithoutDisclaimer(f.caution), photos };
     });
   const cautions = cautionsOf(result);
   const areaKeys = Object.keys(result.areaScores);

@@ -133,6 +133,8 @@ export const styles = StyleSheet.create({
     borderColor: colours.iron700,
     marginRight: 7,
     marginTop: 1.5,
+    alignItems: 'center',
+    justifyContent: 'center',
   },
   signatureBlock: {
     flex: 1,

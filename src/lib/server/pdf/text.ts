@@ -2,6 +2,7 @@
  * Small formatting helpers for the report: plain text safe for the embedded fonts, dates in
  * the organisation's time zone, measured values in its unit system.
  */
+import { formatAsEntered, formatCanonical, type EnteredMeasurement } from '@/lib/measure-display';
 
 /** Glyphs Noto Sans' Latin subsets lack, spelled out so nothing prints as a blank box. */
 const replacements: Array<[RegExp, string]> = [
@@ -57,31 +58,16 @@ function safeZone(zone: string): string {
   }
 }
 
-const MM_PER_INCH = 25.4;
-const N_PER_LBF = 4.4482216152605;
-const KG_PER_LB = 0.45359237;
-
-function round(value: number, digits: number): string {
-  return Number(value.toFixed(digits)).toLocaleString('en-US', {
-    maximumFractionDigits: digits,
-  });
-}
-
-/** A canonical value (mm, N, kg …) in the organisation's system, with its unit. */
+/**
+ * A canonical value (mm, N, kg …) in the organisation's system, with its unit: imperial
+ * lengths in feet and inches to 1/16 in, metric in mm to 0.1 mm (see measure-display).
+ */
 export function formatQuantity(
   value: number,
   unit: string | undefined,
   system: 'imperial' | 'metric',
 ): string {
-  if (!unit || unit === 'count') return round(value, 2);
-  if (system === 'imperial') {
-    if (unit === 'mm') return `${round(value / MM_PER_INCH, 2)} in`;
-    if (unit === 'N') return `${round(value / N_PER_LBF, 1)} lbf`;
-    if (unit === 'kg') return `${round(value / KG_PER_LB, 1)} lb`;
-  }
-  if (unit === 'deg') return `${round(value, 1)}°`;
-  if (unit === '%') return `${round(value, 1)} %`;
-  return `${round(value, 2)} ${unit}`;
+  return formatCanonical(value, unit, system);
 }
 
 /** `hingeGapMm` -> `hinge gap`; `m.closingEdgeForceN` -> `closing edge force`. */
@@ -111,7 +97,18 @@ export function unitFromKey(key: string): string | undefined {
   }[match[1]];
 }
 
-export function formatObserved(key: string, value: unknown, system: 'imperial' | 'metric'): string {
+/**
+ * An observed fact for the report: a measurement as the auditor entered it when the fact is one
+ * (`m.<question>`), else the canonical value in the organisation's system.
+ */
+export function formatObserved(
+  key: string,
+  value: unknown,
+  system: 'imperial' | 'metric',
+  asEntered: Record<string, EnteredMeasurement> = {},
+): string {
+  const entered = key.startsWith('m.') ? asEntered[key.slice(2)] : undefined;
+  if (entered && typeof value === 'number') return formatAsEntered(entered);
   if (value === null || value === undefined) return 'not recorded';
   if (typeof value === 'boolean') return value ? 'yes' : 'no';
   if (typeof value === 'number') return formatQuantity(value, unitFromKey(key), system);

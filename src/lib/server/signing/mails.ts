@@ -19,6 +19,13 @@ function formatDay(date: Date, timeZone: string): string {
   }
 }
 
+/**
+ * Said first in every e-mail about a gate whose verdict is withdraw, in words that tell the
+ * reader what to do now rather than what the verdict is called.
+ */
+export const WITHDRAW_ACTION_WORDS =
+  'Switch the gate to manual operation now: turn the operator off or use its manual release, and do not let it open or close by itself until the fixes are done and checked. At least one critical hazard was found.';
+
 export function signRequestMail(input: {
   organisationName: string;
   clientName: string;
@@ -35,6 +42,7 @@ export function signRequestMail(input: {
   const text = [
     `Hello ${input.clientName},`,
     '',
+    ...(input.verdict === 'withdraw' ? [WITHDRAW_ACTION_WORDS, ''] : []),
     `${input.organisationName} has assessed the ${input.gateLabel} at ${input.siteLine}.`,
     `Verdict: ${words.label}. ${words.headline}`,
     '',
@@ -47,7 +55,7 @@ export function signRequestMail(input: {
     input.organisationName,
   ].join('\n');
   const html = `<p>Hello ${escapeHtml(input.clientName)},</p>
-<p>${escapeHtml(input.organisationName)} has assessed the ${escapeHtml(input.gateLabel)} at ${escapeHtml(input.siteLine)}.</p>
+${input.verdict === 'withdraw' ? `<p><strong>${escapeHtml(WITHDRAW_ACTION_WORDS)}</strong></p>\n` : ''}<p>${escapeHtml(input.organisationName)} has assessed the ${escapeHtml(input.gateLabel)} at ${escapeHtml(input.siteLine)}.</p>
 <p><strong>Verdict: ${escapeHtml(words.label)}.</strong> ${escapeHtml(words.headline)}</p>
 <p><a href="${escapeHtml(input.link)}">Read and sign the report</a> (no account needed). The link works once and expires on ${escapeHtml(until)}.</p>
 <p>If you did not expect this message, you can ignore it.</p>
@@ -62,13 +70,16 @@ export function signedReportMail(input: {
   signerName: string;
   sha256: string;
   documentId: string;
+  verdict: Verdict;
 }): { subject: string; text: string } {
+  const withdraw = input.verdict === 'withdraw' ? [WITHDRAW_ACTION_WORDS, ''] : [];
   if (input.kind === 'owner') {
     return {
       subject: `Your signed gate safety report: ${input.gateLabel}`,
       text: [
         `Hello ${input.signerName},`,
         '',
+        ...withdraw,
         `Thank you for signing. Your copy of the gate safety report for the ${input.gateLabel} is attached, signed by you and digitally signed by ${input.organisationName}.`,
         'Keep it with the gate’s papers. Please follow the cautions you acknowledged until the fixes are done.',
         '',
@@ -82,6 +93,7 @@ export function signedReportMail(input: {
   return {
     subject: `Signed: gate safety report for ${input.gateLabel} (${input.signerName})`,
     text: [
+      ...withdraw,
       `${input.signerName} signed the gate safety report for the ${input.gateLabel}. The signed document is attached and kept in the archive.`,
       '',
       `Document ${input.documentId}`,

@@ -205,6 +205,7 @@ export async function submitSignature(
       signerName: body.name,
       sha256: document.sha256,
       documentId,
+      verdict: record.result.verdict,
     });
     await enqueueMail(trx, {
       organisationId: assessment.organisationId,
@@ -225,6 +226,7 @@ export async function submitSignature(
         signerName: body.name,
         sha256: document.sha256,
         documentId,
+        verdict: record.result.verdict,
       });
       await enqueueMail(trx, {
         organisationId: assessment.organisationId,
