@@ -291,7 +291,7 @@ describe('the auditor walks a swing gate on a phone', () => {
     });
 
     await page.reload();
-    // Waiting, not loading: the island has read the device's outbox.
+    // Waiting, not loading: the island has read the device's edit queue.
     await page.locator('[data-save-state="waiting"]').waitFor();
     for (const key of offlineKeys)
       await expect(page.locator(`#q-${key} input[value=yes]`).isChecked()).resolves.toBe(true);

@@ -2,7 +2,7 @@
  * The auditor's walk-through of one gate: the pinned ruleset version's questions grouped by
  * walk section in the order one walks a gate, each with its answer, note and photos; the
  * gate-and-site facts, entrapment protection, force traces and swing geometry where they
- * belong; autosave through the device outbox; the live result and Submit.
+ * belong; autosave through the device's edit queue; the live result and Submit.
  */
 import { QueryClient, QueryClientProvider, useMutation } from '@tanstack/react-query';
 import { lazy, Suspense, useCallback, useEffect, useMemo, useRef, useState } from 'react';

@@ -5,7 +5,7 @@
  */
 import type { Assessment } from '@/lib/api/assessments';
 import type { JsonObject } from './merge-patch';
-import type { PhotoSource } from './outbox';
+import type { PhotoSource } from './edit-queue';
 import type { PhotoRecord, TraceRecord } from './records';
 
 export type { PhotoRecord, TraceRecord } from './records';

@@ -1,6 +1,6 @@
 /**
  * Keeps one assessment's edits flowing from the device to the server: every edit goes to the
- * IndexedDB outbox first, is shown at once, and is sent in the order it was made whenever the
+ * IndexedDB edit queue first, is shown at once, and is sent in the order it was made whenever the
  * server can be reached. A newer server copy is merged when nobody else touched the same
  * fields; when they did, sending stops and the auditor picks, field by field, which value
  * stays. Framework-free: the React side subscribes (useSyncExternalStore) and supplies the
@@ -27,13 +27,13 @@ import {
   type WalkDocuments,
 } from './documents';
 import { composeMergePatches, type JsonObject } from './merge-patch';
-import * as outbox from './outbox';
-import type { OutboxOp, OutboxOpBody, PhotoSource } from './outbox';
+import * as editQueue from './edit-queue';
+import type { QueuedEdit, QueuedEditBody, PhotoSource } from './edit-queue';
 
 /**
  * One request the sync loop makes; the React side runs these through a react-query mutation.
  * A create (photo, trace) carries the `Idempotency-Key` of its queued edit: the edit's own
- * device id, stored with it in the outbox, so every retry of one edit sends the same key and
+ * device id, stored with it in the edit queue, so every retry of one edit sends the same key and
  * a retry after a lost answer never makes a second row.
  */
 export type SendJob =
@@ -54,7 +54,7 @@ export type SendJob =
       kind: 'trace';
       assessmentId: string;
       idempotencyKey: string;
-      op: Extract<OutboxOpBody, { kind: 'trace' }>;
+      op: Extract<QueuedEditBody, { kind: 'trace' }>;
     }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
@@ -101,7 +101,7 @@ export interface SyncState {
   server: WalkDocuments;
   /** What the auditor sees: the server copy with every waiting edit applied. */
   view: WalkDocuments;
-  pending: OutboxOp[];
+  pending: QueuedEdit[];
   /** Fields (answers, measurements, observation parts) and files waiting to be sent. */
   pendingCount: number;
   photos: PhotoRecord[];
@@ -133,7 +133,7 @@ function describeProblem(problem: Problem): string {
     .join(' — ');
 }
 
-function whatOf(op: OutboxOp): string {
+function whatOf(op: QueuedEdit): string {
   if (op.kind === 'patch')
     return changedFields(op.patch)
       .map((f) => f.slice(1).join('.'))
@@ -212,8 +212,8 @@ export class WalkSync {
   async start(): Promise<void> {
     await this.serial(async () => {
       const [snapshot, pending] = await Promise.all([
-        outbox.loadSnapshot(this.initial.id),
-        outbox.pendingOps(this.initial.id),
+        editQueue.loadSnapshot(this.initial.id),
+        editQueue.pendingOps(this.initial.id),
       ]);
       const initialSnapshot = {
         assessmentId: this.initial.id,
@@ -225,7 +225,7 @@ export class WalkSync {
         snapshot && (pending.length > 0 || snapshot.rowVersion > this.initial.rowVersion)
           ? snapshot
           : initialSnapshot;
-      if (base === initialSnapshot) await outbox.saveSnapshot(initialSnapshot);
+      if (base === initialSnapshot) await editQueue.saveSnapshot(initialSnapshot);
       this.applyBase(base.rowVersion, asDocuments(base.documents), pending);
     });
     if (typeof window !== 'undefined') {
@@ -241,7 +241,7 @@ export class WalkSync {
           status: 409,
           detail: 'The assessment was submitted before this change reached the server.',
         });
-      if (left.length) await this.serial(() => outbox.removeOps(left));
+      if (left.length) await this.serial(() => editQueue.removeOps(left));
       this.set({ phase: 'closed', online, pending: [], pendingCount: 0, view: this.state.server });
       return;
     }
@@ -268,9 +268,9 @@ export class WalkSync {
     this.set({ online: false, phase: open && this.state.pending.length ? 'waiting' : this.state.phase });
   };
 
-  private applyBase(rowVersion: number, server: WalkDocuments, pending: OutboxOp[]): void {
+  private applyBase(rowVersion: number, server: WalkDocuments, pending: QueuedEdit[]): void {
     const patches = pending
-      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .filter((op): op is QueuedEdit & { kind: 'patch' } => op.kind === 'patch')
       .map((op) => op.patch);
     const pendingCount =
       new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size +
@@ -285,7 +285,7 @@ export class WalkSync {
   }
 
   private async reloadPending(): Promise<void> {
-    this.applyBase(this.state.rowVersion, this.state.server, await outbox.pendingOps(this.initial.id));
+    this.applyBase(this.state.rowVersion, this.state.server, await editQueue.pendingOps(this.initial.id));
   }
 
   /** Records an edit of the documents (a merge patch), shows it at once and schedules sending. */
@@ -294,14 +294,14 @@ export class WalkSync {
     // Shown before IndexedDB answers, so typing never lags.
     this.set({ view: applyDocumentsPatch(this.state.view, patch) });
     return this.serial(async () => {
-      const pending = await outbox.pendingOps(this.initial.id);
+      const pending = await editQueue.pendingOps(this.initial.id);
       const last = pending[pending.length - 1];
       const folded =
         last?.kind === 'patch' && !this.inFlight.has(last.seq)
           ? composeMergePatches(last.patch, patch)
           : null;
-      if (last?.kind === 'patch' && folded) await outbox.replaceOp({ ...last, patch: folded });
-      else await outbox.enqueue(this.initial.id, { kind: 'patch', patch });
+      if (last?.kind === 'patch' && folded) await editQueue.replaceOp({ ...last, patch: folded });
+      else await editQueue.enqueue(this.initial.id, { kind: 'patch', patch });
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush();
@@ -320,16 +320,16 @@ export class WalkSync {
     blob: Blob,
   ): Promise<void> {
     return this.serial(async () => {
-      await outbox.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
+      await editQueue.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush(0);
     });
   }
 
-  addTrace(trace: Extract<OutboxOpBody, { kind: 'trace' }>): Promise<void> {
+  addTrace(trace: Extract<QueuedEditBody, { kind: 'trace' }>): Promise<void> {
     return this.serial(async () => {
-      await outbox.enqueue(this.initial.id, trace);
+      await editQueue.enqueue(this.initial.id, trace);
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush(0);
@@ -346,9 +346,9 @@ export class WalkSync {
           !this.inFlight.has(op.seq),
       );
       if (waiting) {
-        await outbox.removeOps([waiting]);
+        await editQueue.removeOps([waiting]);
         this.setUpload(clientRef, null);
-      } else if (serverId) await outbox.enqueue(this.initial.id, { kind, clientRef, serverId });
+      } else if (serverId) await editQueue.enqueue(this.initial.id, { kind, clientRef, serverId });
       if (kind === 'removePhoto') this.set({ photos: this.state.photos.filter((p) => p.id !== serverId) });
       else this.set({ traces: this.state.traces.filter((t) => t.id !== serverId) });
       await this.reloadPending();
@@ -386,7 +386,7 @@ export class WalkSync {
     this.retryTimer = setTimeout(() => void this.flush(), RETRY_MS);
   }
 
-  private refuse(op: OutboxOp, problem: Problem): void {
+  private refuse(op: QueuedEdit, problem: Problem): void {
     this.refusedSeq += 1;
     this.set({
       refused: [
@@ -403,7 +403,7 @@ export class WalkSync {
       measurements: assessment.measurements,
       observations: assessment.observations,
     } as never);
-    await outbox.saveSnapshot({
+    await editQueue.saveSnapshot({
       assessmentId: this.initial.id,
       rowVersion: assessment.rowVersion,
       documents: toJson(documents),
@@ -444,7 +444,7 @@ export class WalkSync {
     clearTimeout(this.retryTimer);
     try {
       for (;;) {
-        const pending = await this.serial(() => outbox.pendingOps(this.initial.id));
+        const pending = await this.serial(() => editQueue.pendingOps(this.initial.id));
         this.applyBase(this.state.rowVersion, this.state.server, pending);
         const head = pending[0];
         if (!head) {
@@ -472,12 +472,12 @@ export class WalkSync {
     }
   }
 
-  private drop(ops: OutboxOp[]): Promise<void> {
-    return this.serial(() => outbox.removeOps(ops));
+  private drop(ops: QueuedEdit[]): Promise<void> {
+    return this.serial(() => editQueue.removeOps(ops));
   }
 
   /** Sends the first waiting edit (with the patches right after it folded in); false stops the loop. */
-  private async send(head: OutboxOp, pending: OutboxOp[]): Promise<boolean> {
+  private async send(head: QueuedEdit, pending: QueuedEdit[]): Promise<boolean> {
     const id = this.initial.id;
     if (head.kind === 'patch') {
       const batch = [head];
@@ -510,7 +510,7 @@ export class WalkSync {
     this.inFlight.add(head.seq);
     let result: Answer<unknown>;
     if (head.kind === 'photo') {
-      const blob = await outbox.photoBlob(head.clientRef);
+      const blob = await editQueue.photoBlob(head.clientRef);
       if (!blob) {
         await this.drop([head]);
         return true;
@@ -596,9 +596,9 @@ export class WalkSync {
       measurements: current.measurements,
       observations: current.observations,
     } as never);
-    const pending = await this.serial(() => outbox.pendingOps(this.initial.id));
+    const pending = await this.serial(() => editQueue.pendingOps(this.initial.id));
     const patches = pending
-      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .filter((op): op is QueuedEdit & { kind: 'patch' } => op.kind === 'patch')
       .map((op) => op.patch);
     const conflicts = findConflicts(this.state.server, theirs, patches);
     if (conflicts.length === 0) {
@@ -619,15 +619,15 @@ export class WalkSync {
     const theirs = this.theirs;
     if (!theirs) return Promise.resolve();
     return this.serial(async () => {
-      const pending = await outbox.pendingOps(this.initial.id);
+      const pending = await editQueue.pendingOps(this.initial.id);
       for (const op of pending) {
         if (op.kind !== 'patch') continue;
         let patch = op.patch;
         for (const conflict of this.state.conflicts) {
           if (choices.get(conflict.field.join('.')) === 'theirs') patch = withoutField(patch, conflict.field);
         }
-        if (Object.keys(patch).length === 0) await outbox.removeOps([op]);
-        else if (patch !== op.patch) await outbox.replaceOp({ ...op, patch });
+        if (Object.keys(patch).length === 0) await editQueue.removeOps([op]);
+        else if (patch !== op.patch) await editQueue.replaceOp({ ...op, patch });
       }
       this.theirs = null;
       await this.adopt(theirs);

@@ -1,5 +1,5 @@
 /**
- * The device outbox and its sync loop against a fake server, with IndexedDB from
+ * The device's edit queue and its sync loop against a fake server, with IndexedDB from
  * fake-indexeddb: order, folding, offline and reload, conflicts, refusals.
  */
 import 'fake-indexeddb/auto';
@@ -87,7 +87,7 @@ async function open(id: string, server: ReturnType<typeof fakeServer>, rowVersio
 const patches = (calls: SendJob[]) =>
   calls.filter((c): c is Extract<SendJob, { kind: 'patch' }> => c.kind === 'patch');
 
-describe('the device outbox', () => {
+describe("the device's edit queue", () => {
   it('sends edits made in a row as one save, over the row version it read', async () => {
     const server = fakeServer();
     const sync = await open(newId(), server);
@@ -249,7 +249,7 @@ describe('the device outbox', () => {
   });
 });
 
-describe('creates from the device outbox', () => {
+describe("creates from the device's edit queue", () => {
   const traceOp = (clientRef: string) => ({
     kind: 'trace' as const,
     clientRef,
