@@ -22,7 +22,7 @@ import {
   TRACE_LOCATIONS,
   type TraceLocation,
   type TraceRecord,
-} from '@/lib/walk/records';
+} from '@/lib/api/uploads';
 import { useWalkActions } from './context';
 import { DIRECTION_LABEL, TRACE_LOCATION_LABEL } from './labels';
 import { TraceChart } from './TraceChart';

@@ -2,9 +2,9 @@
  * First thing on the walk: who is around this gate (the site context the rules and hazard
  * ratings depend on) and the gate facts from the office record, with a way to correct them.
  */
+import type { WalkGate } from '@/lib/api/walk-through';
 import { memo } from 'react';
 import type { Json } from '@/lib/walk/merge-patch';
-import type { WalkGate } from '@/lib/walk/model';
 import { formatLength, formatMass, type UnitSystem } from '@/lib/units';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';

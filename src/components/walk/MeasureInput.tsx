@@ -3,11 +3,11 @@
  * picker defaulting to the organisation's system. Stored as entered plus its canonical value;
  * the other system's figure is shown underneath as a check against a unit slip.
  */
+import type { MeasurementValue } from '@/lib/api/walk-through';
 import { useEffect, useId, useRef, useState } from 'react';
 import { formatForce, formatLength, formatMass, formatSpeed } from '@/lib/units';
 import type { MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
-import type { MeasurementValue } from '@/lib/walk/documents';
 import { parseEntered, toMeasurement, unitLabel, unitsFor } from '@/lib/walk/entry';
 
 interface Props {

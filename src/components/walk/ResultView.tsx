@@ -3,11 +3,12 @@
  * their remedy); then Submit, which scores on the server with the pinned version and shows
  * the stored verdict, the failing findings with remediation and what still needs information.
  */
+import type { WalkRuleset } from '@/lib/api/walk-through';
 import { useState } from 'react';
 import type { Finding, ScoreResult } from '@/lib/rules/result-types';
 import { count } from '@/lib/vocabulary';
 import type { Problem } from '@/lib/walk/api';
-import { mergeNeeds, type WalkRuleset } from '@/lib/walk/model';
+import { mergeNeeds } from '@/lib/walk/model';
 import ConfirmDialog from '../ConfirmDialog';
 import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from './labels';
 

@@ -4,13 +4,13 @@
  * gate-and-site facts, entrapment protection, force traces and swing geometry where they
  * belong; autosave through the device's edit queue; the live result and Submit.
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import { QueryClient, QueryClientProvider, useMutation } from '@tanstack/react-query';
 import { lazy, Suspense, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { AssessmentStatus } from '@/lib/api/assessments';
 import type { ScoreResult } from '@/lib/rules/result-types';
 import type { UnitSystem } from '@/lib/units';
 import { submitAssessment, type Problem } from '@/lib/walk/api';
-import type { WalkDocuments } from '@/lib/walk/documents';
 import {
   groupBySection,
   isAnswered,
@@ -18,10 +18,8 @@ import {
   questionKeyOfFact,
   questionsToShow,
   toolOfFact,
-  type WalkGate,
-  type WalkRuleset,
 } from '@/lib/walk/model';
-import type { PhotoRecord, TraceRecord } from '@/lib/walk/records';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 import { ConflictDialog } from './ConflictDialog';
 import { WalkActionsContext, type WalkActions } from './context';
 import { EntrapmentCard } from './EntrapmentCard';
@@ -43,7 +41,7 @@ const SwingGeometryPanel = lazy(() => import('./SwingGeometryPanel'));
 
 export interface WalkThroughProps {
   assessment: { id: string; status: AssessmentStatus; rowVersion: number; result: ScoreResult | null };
-  documents: WalkDocuments;
+  draft: WalkDraft;
   gate: WalkGate;
   ruleset: WalkRuleset;
   photos: PhotoRecord[];
@@ -73,7 +71,7 @@ function ToolSlot({ children, mounted }: { children: React.ReactNode; mounted: b
 
 function WalkApp({
   assessment,
-  documents,
+  draft,
   gate,
   ruleset,
   photos,
@@ -86,7 +84,7 @@ function WalkApp({
     id: assessment.id,
     rowVersion: assessment.rowVersion,
     status: assessment.status,
-    documents,
+    draft,
     photos,
     traces,
   });

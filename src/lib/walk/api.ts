@@ -6,9 +6,9 @@
 import type { Assessment } from '@/lib/api/assessments';
 import type { JsonObject } from './merge-patch';
 import type { PhotoSource } from './edit-queue';
-import type { PhotoRecord, TraceRecord } from './records';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 
-export type { PhotoRecord, TraceRecord } from './records';
+export type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 
 export class OfflineError extends Error {
   constructor(cause?: unknown) {

@@ -7,7 +7,7 @@
 import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
 import type { JsonObject } from './merge-patch';
 
-/** An edit of the assessment's documents, as a JSON merge patch. */
+/** An edit of the draft (answers, measurements, observations), as a JSON merge patch. */
 export interface PatchOp {
   kind: 'patch';
   patch: JsonObject;
@@ -57,6 +57,7 @@ export type QueuedEdit = QueuedEditBody & { seq: number; assessmentId: string; c
 export interface ServerSnapshot {
   assessmentId: string;
   rowVersion: number;
+  /** The draft as the server confirmed it (stored under this name on devices: keep it). */
   documents: JsonObject;
   savedAt: string;
 }

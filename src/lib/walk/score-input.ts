@@ -1,12 +1,11 @@
 /**
  * The engine input for the live preview, built on the device from the gate and the draft's
- * documents the way the server builds it at submit (src/lib/server/assessment-input.ts):
+ * draft the way the server builds it at submit (src/lib/server/assessment-input.ts):
  * answers split into yes/no/na answers and choices by question type, the profile from the
  * gate. Kept free of zod so the walk-through's script stays small; the server checks the input.
  */
+import type { WalkDraft, WalkGate, WalkQuestion } from '@/lib/api/walk-through';
 import { canonicalValue, kindOfUnit } from '@/lib/rules/measures';
-import type { WalkDocuments } from './documents';
-import type { WalkGate, WalkQuestion } from './model';
 
 export interface PreviewInput {
   input: Record<string, unknown>;
@@ -34,7 +33,7 @@ function dimension(
 
 export function buildPreviewInput(
   gate: WalkGate,
-  documents: WalkDocuments,
+  documents: WalkDraft,
   questions: readonly WalkQuestion[],
 ): PreviewInput {
   const typeOf = new Map(questions.map((q) => [q.key, q.answerType]));

@@ -6,6 +6,7 @@
  * stays. Framework-free: the React side subscribes (useSyncExternalStore) and supplies the
  * sender (a react-query mutation).
  */
+import type { WalkDraft } from '@/lib/api/walk-through';
 import type { Assessment } from '@/lib/api/assessments';
 import {
   OfflineError,
@@ -17,15 +18,14 @@ import {
 } from './api';
 import * as api from './api';
 import {
-  applyDocumentsPatch,
-  asDocuments,
+  applyDraftPatch,
+  asDraft,
   changedFields,
   findConflicts,
   toJson,
   withoutField,
   type FieldConflict,
-  type WalkDocuments,
-} from './documents';
+} from './draft';
 import { composeMergePatches, type JsonObject } from './merge-patch';
 import * as editQueue from './edit-queue';
 import type { QueuedEdit, QueuedEditBody, PhotoSource } from './edit-queue';
@@ -98,9 +98,9 @@ export interface SyncState {
   rowVersion: number;
   status: Assessment['status'];
   /** The last copy the server confirmed. */
-  server: WalkDocuments;
+  server: WalkDraft;
   /** What the auditor sees: the server copy with every waiting edit applied. */
-  view: WalkDocuments;
+  view: WalkDraft;
   pending: QueuedEdit[];
   /** Fields (answers, measurements, observation parts) and files waiting to be sent. */
   pendingCount: number;
@@ -118,7 +118,7 @@ export interface InitialAssessment {
   id: string;
   rowVersion: number;
   status: Assessment['status'];
-  documents: WalkDocuments;
+  draft: WalkDraft;
   photos: PhotoRecord[];
   traces: TraceRecord[];
 }
@@ -169,8 +169,8 @@ export class WalkSync {
       online: true,
       rowVersion: initial.rowVersion,
       status: initial.status,
-      server: initial.documents,
-      view: initial.documents,
+      server: initial.draft,
+      view: initial.draft,
       pending: [],
       pendingCount: 0,
       photos: initial.photos,
@@ -218,7 +218,7 @@ export class WalkSync {
       const initialSnapshot = {
         assessmentId: this.initial.id,
         rowVersion: this.initial.rowVersion,
-        documents: toJson(this.initial.documents),
+        documents: toJson(this.initial.draft),
         savedAt: new Date().toISOString(),
       };
       const base =
@@ -226,7 +226,7 @@ export class WalkSync {
           ? snapshot
           : initialSnapshot;
       if (base === initialSnapshot) await editQueue.saveSnapshot(initialSnapshot);
-      this.applyBase(base.rowVersion, asDocuments(base.documents), pending);
+      this.applyBase(base.rowVersion, asDraft(base.documents), pending);
     });
     if (typeof window !== 'undefined') {
       window.addEventListener('online', this.handleOnline);
@@ -268,7 +268,7 @@ export class WalkSync {
     this.set({ online: false, phase: open && this.state.pending.length ? 'waiting' : this.state.phase });
   };
 
-  private applyBase(rowVersion: number, server: WalkDocuments, pending: QueuedEdit[]): void {
+  private applyBase(rowVersion: number, server: WalkDraft, pending: QueuedEdit[]): void {
     const patches = pending
       .filter((op): op is QueuedEdit & { kind: 'patch' } => op.kind === 'patch')
       .map((op) => op.patch);
@@ -278,7 +278,7 @@ export class WalkSync {
     this.set({
       rowVersion,
       server,
-      view: patches.reduce(applyDocumentsPatch, server),
+      view: patches.reduce(applyDraftPatch, server),
       pending,
       pendingCount,
     });
@@ -288,11 +288,11 @@ export class WalkSync {
     this.applyBase(this.state.rowVersion, this.state.server, await editQueue.pendingOps(this.initial.id));
   }
 
-  /** Records an edit of the documents (a merge patch), shows it at once and schedules sending. */
+  /** Records an edit of the draft (a merge patch), shows it at once and schedules sending. */
   edit(patch: JsonObject): Promise<void> {
     if (this.state.status !== 'draft') return Promise.resolve();
     // Shown before IndexedDB answers, so typing never lags.
-    this.set({ view: applyDocumentsPatch(this.state.view, patch) });
+    this.set({ view: applyDraftPatch(this.state.view, patch) });
     return this.serial(async () => {
       const pending = await editQueue.pendingOps(this.initial.id);
       const last = pending[pending.length - 1];
@@ -398,7 +398,7 @@ export class WalkSync {
 
   /** The server's copy became the base: remember it on the device too. */
   private async adopt(assessment: Assessment): Promise<void> {
-    const documents = asDocuments({
+    const draft = asDraft({
       answers: assessment.answers,
       measurements: assessment.measurements,
       observations: assessment.observations,
@@ -406,10 +406,10 @@ export class WalkSync {
     await editQueue.saveSnapshot({
       assessmentId: this.initial.id,
       rowVersion: assessment.rowVersion,
-      documents: toJson(documents),
+      documents: toJson(draft),
       savedAt: new Date().toISOString(),
     });
-    this.set({ status: assessment.status, server: documents, rowVersion: assessment.rowVersion });
+    this.set({ status: assessment.status, server: draft, rowVersion: assessment.rowVersion });
     this.onServerCopy(assessment);
   }
 
@@ -591,7 +591,7 @@ export class WalkSync {
 
   private async handleConflict(current: Assessment): Promise<boolean> {
     if (current.status !== 'draft') return this.close(current);
-    const theirs = asDocuments({
+    const theirs = asDraft({
       answers: current.answers,
       measurements: current.measurements,
       observations: current.observations,

@@ -3,17 +3,11 @@
  * tests hold it to the engine's own schema and scoring with a shipped ruleset, so the preview
  * and the submitted result read the same facts.
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { AssessmentInputSchema, loadRulesetFile, score, type RulesetVersion } from '@/lib/rules';
-import type { WalkDocuments } from '@/lib/walk/documents';
-import {
-  groupBySection,
-  mergeNeeds,
-  questionsToShow,
-  type WalkGate,
-  type WalkRuleset,
-} from '@/lib/walk/model';
+import { groupBySection, mergeNeeds, questionsToShow } from '@/lib/walk/model';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
 const file = JSON.parse(
@@ -64,7 +58,7 @@ describe('the live preview input', () => {
   });
 
   it('splits answers into yes/no and choices, keeps the gate as measured, and parses with the engine’s schema', () => {
-    const documents: WalkDocuments = {
+    const draft: WalkDraft = {
       answers: {
         hingeSideGuarded: { value: 'yes', note: 'mesh guard' },
         wireGaugeAwg: { value: 'awg12' },
@@ -73,7 +67,7 @@ describe('the live preview input', () => {
       measurements: { hingeGapMm: { value: 2.25, unit: 'in', canonical: 57.15 } },
       observations: { site },
     };
-    const { input, blockers } = buildPreviewInput(gate, documents, ruleset.questions);
+    const { input, blockers } = buildPreviewInput(gate, draft, ruleset.questions);
     expect(blockers).toEqual([]);
     expect(input.answers).toEqual({ hingeSideGuarded: { value: 'yes', note: 'mesh guard' } });
     expect(input.choices).toEqual({ wireGaugeAwg: { value: 'awg12' } });
@@ -103,7 +97,7 @@ describe('the live preview input', () => {
 });
 
 describe('which questions the walk shows', () => {
-  const empty: WalkDocuments = { answers: {}, measurements: {}, observations: {} };
+  const empty: WalkDraft = { answers: {}, measurements: {}, observations: {} };
 
   it('asks a follow-up only once its trigger is answered', () => {
     expect(questionsToShow(ruleset, gate, empty).map((q) => q.key)).not.toContain('barbedTapeHeightMm');

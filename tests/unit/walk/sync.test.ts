@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import type { Assessment } from '@/lib/api/assessments';
 import { applyMergePatch } from '@/lib/merge-patch';
 import { OfflineError, type Answer } from '@/lib/walk/api';
-import { emptyDocuments } from '@/lib/walk/documents';
+import { emptyDraft } from '@/lib/walk/draft';
 import type { JsonObject } from '@/lib/walk/merge-patch';
 import { WalkSync, type SendJob } from '@/lib/walk/sync';
 
@@ -75,7 +75,7 @@ async function open(id: string, server: ReturnType<typeof fakeServer>, rowVersio
     id,
     rowVersion,
     status: 'draft',
-    documents: emptyDocuments(),
+    draft: emptyDraft(),
     photos: [],
     traces: [],
   });
@@ -229,7 +229,7 @@ describe("the device's edit queue", () => {
       id,
       rowVersion: 3,
       status: 'scored',
-      documents: emptyDocuments(),
+      draft: emptyDraft(),
       photos: [],
       traces: [],
     });
