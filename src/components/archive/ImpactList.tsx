@@ -6,7 +6,7 @@
 import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
 import type { ImpactReport } from '@/lib/api/impact';
-import { VERDICT_LABELS } from '@/lib/archive-query';
+import { formatDay, verdictLabel } from '@/lib/vocabulary';
 import { count, listOf, SEVERITY_LABEL } from '@/lib/vocabulary';
 import { getJson } from './archive-api';
 
@@ -65,7 +65,7 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
     queryFn: ({ signal }) => getJson<ImpactReport>(`/api/archive/impact?${query}`, signal),
     enabled: Boolean(versionId),
   });
-  const day = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone });
+  const day = { format: (date: Date) => formatDay(date, timeZone) };
   const data = report.data;
 
   return (
@@ -145,13 +145,13 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                   </div>
                   <p className="mt-1 flex flex-wrap items-center gap-1 text-sm">
                     <span className={`text-sm font-semibold ${verdictClass[item.before]}`}>
-                      {VERDICT_LABELS[item.before]}
+                      {verdictLabel(item.before)}
                     </span>
                     <span aria-hidden="true">→</span>
                     <span className="sr-only">would become</span>
                     {item.after && (
                       <span className={`text-sm font-semibold ${verdictClass[item.after]}`}>
-                        {VERDICT_LABELS[item.after]}
+                        {verdictLabel(item.after)}
                       </span>
                     )}
                   </p>

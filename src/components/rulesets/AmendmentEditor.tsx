@@ -4,6 +4,7 @@
  * stored while any remains), the diff against the version the draft came from, and publishing.
  * Every change goes through /api; the draft on the server is always the truth.
  */
+import { fieldWords } from '@/lib/vocabulary';
 import { useMemo, useState } from 'react';
 import type { AmendmentPatch, AmendmentProblem, LocalRule, RulesetVersionDetail } from '@/lib/api/rulesets';
 import type { RulesetDiff } from '@/lib/rules/diff';
@@ -161,7 +162,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
           <ul className="card mt-2 grid gap-1 border-withdraw text-sm">
             {general.map((p) => (
               <li key={`${p.field}:${p.message}`}>
-                <code className="text-xs">{p.field}</code>: {p.message}
+                <span className="font-semibold">{fieldWords(p.field)}</span>: {p.message}
               </li>
             ))}
           </ul>

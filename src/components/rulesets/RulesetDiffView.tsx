@@ -2,6 +2,7 @@
  * What changed between two ruleset versions, rule by rule and field by field (old → new).
  * Rendered on the server for the diff page and inside the amendment editor; no state of its own.
  */
+import { fieldWords } from '@/lib/vocabulary';
 import type { FieldChange, ItemsDiff, RulesetDiff } from '@/lib/rules/diff';
 
 interface Props {
@@ -38,7 +39,7 @@ function Changes({ changes, units }: { changes: FieldChange[]; units?: Record<st
         const unit = c.field.startsWith('params.') && c.field.split('.').length === 2 ? units?.[c.field.slice('params.'.length)] : undefined;
         return (
           <li key={c.field} className="rounded-lg bg-iron-50 p-2">
-            <code className="text-xs font-semibold text-iron-800">{c.field}</code>
+            <span className="text-xs font-semibold text-iron-800">{fieldWords(c.field)}</span>
             <div className="mt-1 grid min-w-0 gap-1 sm:grid-cols-[auto_1fr]">
               <span className="text-xs font-semibold text-withdraw">was</span>
               <del className="decoration-withdraw">
@@ -72,7 +73,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-1">
             {items.added.map((a) => (
               <li key={a.id} className="card py-2">
-                {link(a.id, a.title)} <code className="text-xs text-iron-600 break-all">{a.id}</code>
+                {link(a.id, a.title)}
               </li>
             ))}
           </ul>
@@ -84,7 +85,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-1">
             {items.removed.map((r) => (
               <li key={r.id} className="card py-2">
-                <del>{r.title}</del> <code className="text-xs text-iron-600 break-all">{r.id}</code>
+                <del>{r.title}</del>
               </li>
             ))}
           </ul>
@@ -96,7 +97,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-2">
             {items.changed.map((c) => (
               <li key={c.id} className="card">
-                {link(c.id, c.title)} <code className="text-xs text-iron-600 break-all">{c.id}</code>
+                {link(c.id, c.title)}
                 <Changes changes={c.changes} units={paramUnits?.[c.id]} />
               </li>
             ))}

@@ -7,7 +7,7 @@ import type { WalkQuestion } from '@/lib/api/walk-through';
 import { useEffect, useRef, useState } from 'react';
 import type { FieldConflict } from '@/lib/walk/draft';
 import type { Json } from '@/lib/walk/merge-patch';
-import { YES_NO_NA_LABEL } from './labels';
+import { YES_NO_NA_LABEL } from '@/lib/vocabulary';
 
 function describe(value: Json | undefined): string {
   if (value === undefined || value === null) return 'Nothing';

@@ -5,7 +5,8 @@
 import type { WalkGate } from '@/lib/api/walk-through';
 import { memo } from 'react';
 import type { Json } from '@/lib/walk/merge-patch';
-import { formatLength, formatMass, type UnitSystem } from '@/lib/units';
+import type { UnitSystem } from '@/lib/units';
+import { formatLength, formatMass } from '@/lib/vocabulary';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';
 

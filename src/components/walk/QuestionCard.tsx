@@ -9,7 +9,7 @@ import { isMeasured } from '@/lib/walk/model';
 import type { PhotoRecord } from '@/lib/api/uploads';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';
-import { YES_NO_NA_LABEL } from './labels';
+import { YES_NO_NA_LABEL } from '@/lib/vocabulary';
 import { MeasureInput } from './MeasureInput';
 import { PhotoStrip, type PendingPhoto } from './PhotoStrip';
 

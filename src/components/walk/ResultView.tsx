@@ -10,7 +10,7 @@ import { count } from '@/lib/vocabulary';
 import type { Problem } from '@/lib/walk/api';
 import { mergeNeeds } from '@/lib/walk/model';
 import ConfirmDialog from '../ConfirmDialog';
-import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from './labels';
+import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from '@/lib/vocabulary';
 
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
 

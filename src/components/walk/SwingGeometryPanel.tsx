@@ -11,7 +11,8 @@ import {
   OPERATOR_LEAF_MIN_CLEARANCE_MM,
   type SwingOperatorGeometryResult,
 } from '@/lib/rules/calculators/swing-geometry';
-import { formatLength, fromMillimetres, type LengthUnit } from '@/lib/units';
+import { fromMillimetres, type LengthUnit } from '@/lib/units';
+import { formatLength } from '@/lib/vocabulary';
 import { parseEntered, shortNumber, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
 import { ClearanceChart } from './ClearanceChart';

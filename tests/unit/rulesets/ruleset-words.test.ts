@@ -1,6 +1,6 @@
 /** A rule's condition and thresholds in plain words, with units in both systems. */
 import { describe, expect, it } from 'vitest';
-import { describeCondition, factName, formatParam, keyWords } from '@/lib/ruleset-words';
+import { describeCondition, factName, formatParam, keyWords } from '@/lib/vocabulary';
 
 describe('formatParam', () => {
   it('shows a length in mm with its inches beside it, "about" only when inexact', () => {

@@ -2,6 +2,7 @@
  * Small formatting helpers for the report: plain text safe for the embedded fonts, dates in
  * the organisation's time zone, measured values in its unit system.
  */
+import { formatLongDate, formatLongDateTime, formatQuantity } from '@/lib/vocabulary';
 
 /** Glyphs Noto Sans' Latin subsets lack, spelled out so nothing prints as a blank box. */
 const replacements: Array<[RegExp, string]> = [
@@ -22,67 +23,17 @@ export function pdfText(value: unknown): string {
   return text.replace(/[\u0000-\u0009\u000b-\u001f\u007f]/g, '');
 }
 
+/** A date in the report: the vocabulary's long date, in the organisation's zone ("-" when none). */
 export function formatDate(value: Date | string | null | undefined, timeZone: string): string {
-  if (!value) return '-';
-  const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat('en-US', {
-    timeZone: safeZone(timeZone),
-    year: 'numeric',
-    month: 'long',
-    day: 'numeric',
-  }).format(date);
+  return value ? formatLongDate(value, timeZone) : '-';
 }
 
+/** A moment in the report, to the second, with the zone ("-" when none). */
 export function formatDateTime(value: Date | string | null | undefined, timeZone: string): string {
-  if (!value) return '-';
-  const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat('en-US', {
-    timeZone: safeZone(timeZone),
-    year: 'numeric',
-    month: 'short',
-    day: 'numeric',
-    hour: '2-digit',
-    minute: '2-digit',
-    second: '2-digit',
-    timeZoneName: 'short',
-  }).format(date);
+  return value ? formatLongDateTime(value, timeZone) : '-';
 }
 
-function safeZone(zone: string): string {
-  try {
-    new Intl.DateTimeFormat('en-US', { timeZone: zone });
-    return zone;
-  } catch {
-    return 'UTC';
-  }
-}
-
-const MM_PER_INCH = 25.4;
-const N_PER_LBF = 4.4482216152605;
-const KG_PER_LB = 0.45359237;
-
-function round(value: number, digits: number): string {
-  return Number(value.toFixed(digits)).toLocaleString('en-US', {
-    maximumFractionDigits: digits,
-  });
-}
-
-/** A canonical value (mm, N, kg …) in the organisation's system, with its unit. */
-export function formatQuantity(
-  value: number,
-  unit: string | undefined,
-  system: 'imperial' | 'metric',
-): string {
-  if (!unit || unit === 'count') return round(value, 2);
-  if (system === 'imperial') {
-    if (unit === 'mm') return `${round(value / MM_PER_INCH, 2)} in`;
-    if (unit === 'N') return `${round(value / N_PER_LBF, 1)} lbf`;
-    if (unit === 'kg') return `${round(value / KG_PER_LB, 1)} lb`;
-  }
-  if (unit === 'deg') return `${round(value, 1)}°`;
-  if (unit === '%') return `${round(value, 1)} %`;
-  return `${round(value, 2)} ${unit}`;
-}
+export { formatQuantity };
 
 /** `hingeGapMm` -> `hinge gap`; `m.closingEdgeForceN` -> `closing edge force`. */
 export function factLabel(key: string): string {

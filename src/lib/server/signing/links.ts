@@ -103,6 +103,8 @@ export interface SignPageView {
   cautions: ReportCaution[];
   documentSha256: string;
   expiresAt: string;
+  /** The organisation's time zone, for the expiry and dates on the page. */
+  timeZone: string;
   auditorName: string;
   consentText: string;
   intentText: string;
@@ -141,6 +143,7 @@ export async function describeSignLink(
     cautions: cautionsOf(result.data),
     documentSha256: document.sha256,
     expiresAt: new Date(request.expires_at).toISOString(),
+    timeZone: row.org_time_zone,
     auditorName: row.auditor_name,
     consentText: CONSENT_TEXT,
     intentText: INTENT_TEXT,

@@ -1,11 +1,52 @@
 /**
- * A ruleset in plain words, for the pages that show one and the amendment editor: thresholds
- * with their units (and the other unit system beside them), fact paths as names a technician
- * recognises, and a rule's JSON Logic condition as a sentence ("passes when fixed object
- * clearance is at least 406.4 mm (16 in)"). Pure; shared by pages and islands.
+ * Rulesets in words: a version's name and status, answer types, thresholds with their units
+ * (and the other unit system beside them), fact paths as names a technician recognises, a
+ * rule's condition as a sentence ("passes when fixed object clearance is at least 406.4 mm
+ * (16 in)"), and how a version scores (HRN bands with their edge convention, area caps, the
+ * re-inspection plan).
  */
+import type { RulesetStatus } from '@/lib/api/rulesets';
 import { FACT_CATALOGUE } from '@/lib/rules/fact-catalogue';
-import { formatForce, formatLength, formatMass, formatSpeed, type UnitSystem } from '@/lib/units';
+import type { HrnTable, RulesetVersion } from '@/lib/rules/ruleset-schema';
+import type { UnitSystem } from '@/lib/units';
+import { humanise } from './humanise';
+import { formatForce, formatLength, formatMass, formatSpeed } from './numbers';
+
+/** A ruleset as people name it: "North American automated vehicular gates 2026.1". */
+export function rulesetLabel(ruleset: { title?: string | null; family: string; version: string }): string {
+  return `${ruleset.title?.trim() || humanise(ruleset.family.replace(/-/g, ' '))} ${ruleset.version}`;
+}
+
+export const RULESET_STATUS_LABEL: Record<RulesetStatus, string> = {
+  draft: 'Draft',
+  published: 'Published',
+  retired: 'Retired',
+};
+
+export const RULESET_STATUS_CLASS: Record<RulesetStatus, string> = {
+  draft: 'bg-brass-100 text-brass-700',
+  published: 'bg-clear text-white',
+  retired: 'bg-iron-100 text-iron-600',
+};
+
+export const ANSWER_TYPE_LABEL: Record<string, string> = {
+  yes_no_na: 'Yes / no / not applicable',
+  length: 'Length (mm)',
+  force: 'Force (N)',
+  mass: 'Mass (kg)',
+  speed: 'Speed (m/s)',
+  time: 'Time (s)',
+  voltage: 'Voltage (V)',
+  current: 'Current (A)',
+  angle: 'Angle (°)',
+  count: 'Count',
+  choice: 'Choice',
+  date: 'Date',
+  text: 'Text',
+};
+
+// ---------------------------------------------------------------------------------------------
+// Thresholds and conditions
 
 export interface ParamLike {
   value: unknown;
@@ -174,4 +215,100 @@ export function describeCondition(
   system: UnitSystem = 'metric',
 ): string {
   return words(logic, { params, system });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Scoring
+
+/** One band with the range it holds, written out for its edges. */
+export interface BandRow {
+  key: string;
+  label: string;
+  range: string;
+}
+
+const n = (value: number): string => String(value);
+
+/** The version's edge convention, in one sentence. */
+export function bandEdgesSentence(hrn: HrnTable): string {
+  return (hrn.bandEdges ?? 'upper_inclusive') === 'lower_inclusive'
+    ? 'A value exactly on an edge falls in the higher band (each band starts at its lower edge).'
+    : 'A value exactly on an edge falls in the lower band (each band includes its upper edge).';
+}
+
+/** Each band with its range: "from 50 up to but not including 100" or "over 50 up to and including 100". */
+export function bandRows(hrn: HrnTable): BandRow[] {
+  const lowerInclusive = hrn.bandEdges === 'lower_inclusive';
+  return hrn.bands.map((band, i) => {
+    const from = i === 0 ? null : hrn.bands[i - 1]!.upTo;
+    let range: string;
+    if (lowerInclusive) {
+      if (from === null) range = band.upTo === null ? 'any value' : `under ${n(band.upTo)}`;
+      else
+        range =
+          band.upTo === null
+            ? `${n(from)} and over`
+            : `from ${n(from)} up to but not including ${n(band.upTo)}`;
+    } else if (from === null)
+      range = band.upTo === null ? 'any value' : `up to and including ${n(band.upTo)}`;
+    else
+      range = band.upTo === null ? `over ${n(from)}` : `over ${n(from)} up to and including ${n(band.upTo)}`;
+    return { key: band.key, label: band.label, range };
+  });
+}
+
+/** Scoring facts beyond the bands, one line each (empty when the version says nothing more). */
+export function scoringLines(version: RulesetVersion): string[] {
+  const lines: string[] = [];
+  const w = version.scoring.severityWeights;
+  lines.push(
+    `Area scores weigh critical rules ${n(w.critical)}, major ${n(w.major)}, minor ${n(w.minor)}; rules that do not apply are left out and unchecked ones count as not passed.`,
+  );
+  if (version.scoring.criticalFailureAreaCap !== undefined)
+    lines.push(
+      `An area with a failing critical rule scores at most ${n(version.scoring.criticalFailureAreaCap)}.`,
+    );
+  const step = version.hrn.likelihoodStepBySeverity;
+  if (step) {
+    const say = (by: number) =>
+      by === 0
+        ? 'as derived'
+        : by > 0
+          ? `${by} step${by === 1 ? '' : 's'} more likely`
+          : `${-by} step${by === -1 ? '' : 's'} less likely`;
+    lines.push(
+      `Default HRN likelihood by severity: critical ${say(step.critical)}, major ${say(step.major)}, minor ${say(step.minor)}.`,
+    );
+  }
+  return lines;
+}
+
+/** The re-inspection plan, one line per verdict; empty when the version has none. */
+export function reinspectionLines(version: RulesetVersion): string[] {
+  const plan = version.reinspection;
+  if (!plan) return [];
+  const days = (byClass: Record<'1' | '2' | '3' | '4', number>) =>
+    (['1', '2', '3', '4'] as const).map((c) => `class ${c}: ${byClass[c]} days`).join(', ');
+  return [
+    `Clear: ${days(plan.clearAfterDays)}.`,
+    `Remedy: ${days(plan.remedyAfterDays)}.`,
+    'Withdraw: when the fixes are reported (no calendar date while the gate is out of automatic use).',
+  ];
+}
+
+const RULE_PARTS =
+  'params|severity|enabled|title|remediation|caution|appliesTo|references|reference|condition|area';
+
+/**
+ * A field path from a problem or a diff, in words: "params.maxGapMm" → "max gap",
+ * "appliesTo.gateKinds" → "applies to › gate kinds". The rule id in "rules.<id>.…" is left
+ * out (the card the message sits on names the rule).
+ */
+export function fieldWords(field: string): string {
+  const inRule = field.replace(new RegExp(`^rules\\.[a-z0-9.-]+?\\.(?=(${RULE_PARTS})\\b)`), '');
+  const parts = inRule
+    .split('.')
+    .filter((p) => p && p !== 'params' && p !== 'rules')
+    .map((p) => (/^\d+$/.test(p) ? `no. ${Number(p) + 1}` : keyWords(p)));
+  return parts.length ? parts.join(' › ') : 'this rule';
 }
