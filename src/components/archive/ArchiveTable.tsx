@@ -40,7 +40,7 @@ import {
   VERDICT_WORDS,
 } from '@/lib/vocabulary';
 import type { Verdict } from '@/lib/rules/vocabulary';
-import { fetchArchiveCount, fetchArchivePage } from './archive-api';
+import { archiveCount, archivePage, valueOf } from '@/lib/api/client';
 
 export interface ArchiveOptions {
   auditors: { id: string; name: string }[];
@@ -155,12 +155,12 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
 
   const page = useQuery({
     queryKey: ['archive', query],
-    queryFn: ({ signal }) => fetchArchivePage(query, signal),
+    queryFn: ({ signal }) => valueOf(archivePage(query, signal)),
     placeholderData: keepPreviousData,
   });
   const count = useQuery({
     queryKey: ['archive-count', filterQuery],
-    queryFn: ({ signal }) => fetchArchiveCount(filterQuery, signal),
+    queryFn: ({ signal }) => valueOf(archiveCount(filterQuery, signal)),
     placeholderData: keepPreviousData,
   });
 

@@ -5,10 +5,9 @@
  */
 import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
-import type { ImpactReport } from '@/lib/api/impact';
 import { formatDay, verdictLabel } from '@/lib/vocabulary';
 import { count, listOf, SEVERITY_LABEL } from '@/lib/vocabulary';
-import { getJson } from './archive-api';
+import { impactReport, valueOf } from '@/lib/api/client';
 
 export interface ImpactCandidate {
   id: string;
@@ -62,7 +61,7 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
   }, [query, versionId]);
   const report = useQuery({
     queryKey: ['impact', query],
-    queryFn: ({ signal }) => getJson<ImpactReport>(`/api/archive/impact?${query}`, signal),
+    queryFn: ({ signal }) => valueOf(impactReport(query, signal)),
     enabled: Boolean(versionId),
   });
   const day = { format: (date: Date) => formatDay(date, timeZone) };

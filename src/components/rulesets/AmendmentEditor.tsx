@@ -12,7 +12,8 @@ import type { UnitSystem } from '@/lib/units';
 import LocalRuleForm from './LocalRuleForm';
 import RuleEditCard, { type BaselineRule, type RuleEdit } from './RuleEditCard';
 import RulesetDiffView, { paramUnitsOf } from './RulesetDiffView';
-import { amendDraft, deleteDraft, fetchDiff, publishDraft } from './rulesets-api';
+import { amendDraft, deleteDraft, publishDraft, rulesetDiff } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 
 interface Props {
   initial: RulesetVersionDetail;
@@ -77,7 +78,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
   const refreshDiff = async (saved: RulesetVersionDetail) => {
     const from = saved.content.derivedFrom;
     if (!from) return;
-    const answer = await fetchDiff(saved.family, { fromFamily: from.family, from: from.version, to: saved.version });
+    const answer = await rulesetDiff(saved.family, { fromFamily: from.family, from: from.version, to: saved.version });
     if (answer.ok) setDiff(answer.value);
   };
 
@@ -89,7 +90,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     setBusy(false);
     if (!answer.ok) {
       setProblems(answer.problem.errors);
-      setMessage({ tone: 'error', text: `${answer.problem.detail}${answer.problem.errors.length ? ` (${answer.problem.errors.length} problem${answer.problem.errors.length === 1 ? '' : 's'})` : ''}` });
+      setMessage({ tone: 'error', text: `${problemMessage(answer.problem)}${answer.problem.errors.length ? ` (${answer.problem.errors.length} problem${answer.problem.errors.length === 1 ? '' : 's'})` : ''}` });
       return answer.problem.errors;
     }
     setDetail(answer.value);
@@ -130,7 +131,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     setBusy(false);
     setConfirming(null);
     setProblems(answer.problem.errors);
-    setMessage({ tone: 'error', text: answer.problem.detail });
+    setMessage({ tone: 'error', text: problemMessage(answer.problem) });
   };
 
   const discard = async () => {
@@ -142,7 +143,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     }
     setBusy(false);
     setConfirming(null);
-    setMessage({ tone: 'error', text: answer.problem.detail });
+    setMessage({ tone: 'error', text: problemMessage(answer.problem) });
   };
 
   const needle = filter.trim().toLowerCase();

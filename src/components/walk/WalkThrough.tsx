@@ -10,7 +10,8 @@ import { lazy, Suspense, useCallback, useEffect, useMemo, useRef, useState } fro
 import type { AssessmentStatus } from '@/lib/api/assessments';
 import type { ScoreResult } from '@/lib/rules/result-types';
 import type { UnitSystem } from '@/lib/units';
-import { submitAssessment, type Problem } from '@/lib/walk/api';
+import { submitAssessment } from '@/lib/api/client';
+import { offlineProblem, type Problem } from '@/lib/api/problem';
 import {
   groupBySection,
   isAnswered,
@@ -165,8 +166,7 @@ function WalkApp({
       setSubmitted((answer.value.result as ScoreResult | null) ?? null);
       window.scrollTo({ top: 0 });
     },
-    onError: () =>
-      setSubmitProblem({ status: 0, detail: 'No connection: try again when the signal is back.' }),
+    onError: () => setSubmitProblem(offlineProblem()),
   });
   const submitBlocked =
     state.phase === 'conflict'

@@ -7,7 +7,8 @@ import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { useEffect, useMemo, useState } from 'react';
 import type { ScoreResult } from '@/lib/rules/result-types';
-import { scorePreview, type Problem } from '@/lib/walk/api';
+import { scorePreview } from '@/lib/api/client';
+import type { Problem } from '@/lib/api/problem';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
 const SETTLE_MS = 700;

@@ -8,15 +8,10 @@
  */
 import type { WalkDraft } from '@/lib/api/walk-through';
 import type { Assessment } from '@/lib/api/assessments';
-import {
-  OfflineError,
-  type Answer,
-  type PhotoRecord,
-  type Problem,
-  type TraceRecord,
-  type UploadProgress,
-} from './api';
-import * as api from './api';
+import * as api from '@/lib/api/client';
+import { OfflineError, type ApiResult, type UploadProgress } from '@/lib/api/client';
+import type { Problem } from '@/lib/api/problem';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 import {
   applyDraftPatch,
   asDraft,
@@ -58,7 +53,7 @@ export type SendJob =
     }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
-export type Sender = (job: SendJob) => Promise<Answer<unknown>>;
+export type Sender = (job: SendJob) => Promise<ApiResult<unknown>>;
 
 /** Calls the API directly; the default when no mutation is supplied. */
 export const sendDirect: Sender = (job) => {
@@ -239,6 +234,7 @@ export class WalkSync {
       for (const op of left)
         this.refuse(op, {
           status: 409,
+          errors: [],
           detail: 'The assessment was submitted before this change reached the server.',
         });
       if (left.length) await this.serial(() => editQueue.removeOps(left));
@@ -508,7 +504,7 @@ export class WalkSync {
       return true;
     }
     this.inFlight.add(head.seq);
-    let result: Answer<unknown>;
+    let result: ApiResult<unknown>;
     if (head.kind === 'photo') {
       const blob = await editQueue.photoBlob(head.clientRef);
       if (!blob) {

@@ -6,7 +6,7 @@ import 'fake-indexeddb/auto';
 import { describe, expect, it } from 'vitest';
 import type { Assessment } from '@/lib/api/assessments';
 import { applyMergePatch } from '@/lib/merge-patch';
-import { OfflineError, type Answer } from '@/lib/walk/api';
+import { OfflineError, type ApiResult } from '@/lib/api/client';
 import { emptyDraft } from '@/lib/walk/draft';
 import type { JsonObject } from '@/lib/walk/merge-patch';
 import { WalkSync, type SendJob } from '@/lib/walk/sync';
@@ -26,7 +26,7 @@ function fakeServer() {
   const calls: SendJob[] = [];
   const state = { offline: false, refuseNext: false };
   const current = () => ({ ...structuredClone(row) }) as unknown as Assessment;
-  const send = async (job: SendJob): Promise<Answer<unknown>> => {
+  const send = async (job: SendJob): Promise<ApiResult<unknown>> => {
     calls.push(job);
     if (state.offline) throw new OfflineError();
     if (job.kind === 'patch') {
@@ -42,7 +42,7 @@ function fakeServer() {
         };
       }
       if (job.rowVersion !== row.rowVersion)
-        return { ok: false, problem: { status: 409, current: current() } };
+        return { ok: false, problem: { status: 409, errors: [], current: current() } };
       row.answers = applyMergePatch(row.answers, job.patch.answers ?? {}) as JsonObject;
       row.observations = applyMergePatch(row.observations, job.patch.observations ?? {}) as JsonObject;
       row.rowVersion += 1;
