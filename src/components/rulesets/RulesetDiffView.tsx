@@ -2,7 +2,7 @@
  * What changed between two ruleset versions, rule by rule and field by field (old → new).
  * Rendered on the server for the diff page and inside the amendment editor; no state of its own.
  */
-import { fieldWords } from '@/lib/vocabulary';
+import { fieldWords, plainValue } from '@/lib/vocabulary';
 import type { FieldChange, ItemsDiff, RulesetDiff } from '@/lib/rules/diff';
 
 interface Props {
@@ -13,16 +13,8 @@ interface Props {
   ruleHref?: string;
 }
 
-function show(value: unknown, unit?: string): string {
-  if (value === null || value === undefined) return '(none)';
-  if (typeof value === 'number') return unit && unit !== 'count' ? `${value} ${unit}` : String(value);
-  if (typeof value === 'string') return value;
-  if (typeof value === 'boolean') return value ? 'yes' : 'no';
-  return JSON.stringify(value);
-}
-
-function Value({ value, unit }: { value: unknown; unit?: string }) {
-  const text = show(value, unit);
+function Value({ value, unit, field }: { value: unknown; unit?: string; field: string }) {
+  const text = plainValue(value, unit, field);
   if (text.length <= 140) return <span className="wrap-anywhere">{text}</span>;
   return (
     <details>
@@ -43,11 +35,11 @@ function Changes({ changes, units }: { changes: FieldChange[]; units?: Record<st
             <div className="mt-1 grid min-w-0 gap-1 sm:grid-cols-[auto_1fr]">
               <span className="text-xs font-semibold text-withdraw">was</span>
               <del className="decoration-withdraw">
-                <Value value={c.from} unit={unit} />
+                <Value value={c.from} unit={unit} field={c.field} />
               </del>
               <span className="text-xs font-semibold text-clear">now</span>
               <ins className="no-underline">
-                <Value value={c.to} unit={unit} />
+                <Value value={c.to} unit={unit} field={c.field} />
               </ins>
             </div>
           </li>

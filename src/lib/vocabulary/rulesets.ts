@@ -9,6 +9,7 @@ import type { RulesetStatus } from '@/lib/api/rulesets';
 import { FACT_CATALOGUE } from '@/lib/rules/fact-catalogue';
 import type { HrnTable, RulesetVersion } from '@/lib/rules/ruleset-schema';
 import type { UnitSystem } from '@/lib/units';
+import { AREA_LABEL } from './assessments';
 import { humanise } from './humanise';
 import { formatForce, formatLength, formatMass, formatSpeed } from './numbers';
 
@@ -311,4 +312,36 @@ export function fieldWords(field: string): string {
     .filter((p) => p && p !== 'params' && p !== 'rules')
     .map((p) => (/^\d+$/.test(p) ? `no. ${Number(p) + 1}` : keyWords(p)));
   return parts.length ? parts.join(' › ') : 'this rule';
+}
+
+/** A rule id ("pinch.fixed-objects") as words: "pinch and crush points › fixed objects". */
+export function ruleIdWords(id: string): string {
+  const [area, ...rest] = id.split('.');
+  const areaWords = (AREA_LABEL[area ?? ''] ?? humanise(area ?? '')).toLowerCase();
+  return [areaWords, ...rest.map((part) => part.replace(/-/g, ' '))].join(' › ');
+}
+
+const RULE_ID = /^[a-z]+(?:\.[a-z0-9]+(?:-[a-z0-9]+)*)+$/;
+const LOGIC_FIELDS = /(^|\.)(condition|appliesWhen|askWhen)$/;
+
+/**
+ * Any stored ruleset value in words, for the differences between versions: codes humanised,
+ * rule ids named, lists and records written out, conditions as sentences.
+ */
+export function plainValue(value: unknown, unit?: string, field = ''): string {
+  if (value === null || value === undefined) return '(none)';
+  if (LOGIC_FIELDS.test(field) && typeof value === 'object') return describeCondition(value, {});
+  if (typeof value === 'number')
+    return unit && unit !== 'count' ? formatParam({ value, unit }) : String(value);
+  if (typeof value === 'boolean') return value ? 'yes' : 'no';
+  if (typeof value === 'string') {
+    if (value.includes('.') && RULE_ID.test(value)) return ruleIdWords(value);
+    return /^[a-z0-9]+(?:_[a-z0-9]+)+$/.test(value) ? humanise(value).toLowerCase() : value;
+  }
+  if (Array.isArray(value)) return value.length ? value.map((v) => plainValue(v)).join('; ') : '(none)';
+  if (typeof value === 'object')
+    return Object.entries(value as Record<string, unknown>)
+      .map(([k, v]) => `${keyWords(k)}: ${plainValue(v, undefined, k)}`)
+      .join(', ');
+  return String(value);
 }
