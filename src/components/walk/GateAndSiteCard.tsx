@@ -6,7 +6,7 @@ import type { WalkGate } from '@/lib/api/walk-through';
 import { memo } from 'react';
 import type { Json } from '@/lib/walk/merge-patch';
 import type { UnitSystem } from '@/lib/units';
-import { formatLength, formatMass } from '@/lib/vocabulary';
+import { formatLength, formatMass, usageClassLabel } from '@/lib/vocabulary';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';
 
@@ -79,7 +79,7 @@ function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neede
           ? formatMass(gate.weightKg, units)
           : 'Not recorded',
     ],
-    ['Usage class', ['I', 'II', 'III', 'IV'][gate.usageClass - 1] ?? String(gate.usageClass)],
+    ['Usage class', usageClassLabel(gate.usageClass)],
     ['Operator listed', yesNoUnknown(gate.operator.listed)],
     ['Automatic closing', yesNoUnknown(gate.operator.automaticClosing)],
   ];
