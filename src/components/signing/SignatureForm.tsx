@@ -25,7 +25,7 @@ interface Props {
   recipientEmail: string;
 }
 
-interface Problem {
+interface FormIssue {
   /** The id of the field that fixes it, for a link from the summary. */
   target: string | null;
   text: string;
@@ -90,8 +90,8 @@ export default function SignatureForm({
   }, [typedOnly]);
 
   /** What still stands between the person and signing, each with the field that fixes it. */
-  const localProblems = (): Problem[] => {
-    const problems: Problem[] = [];
+  const localProblems = (): FormIssue[] => {
+    const problems: FormIssue[] = [];
     const unticked = cautions.filter((c) => !ticked[c.ruleId]);
     if (unticked.length)
       problems.push({
@@ -108,7 +108,7 @@ export default function SignatureForm({
       });
     return problems;
   };
-  const errors: Problem[] = [
+  const errors: FormIssue[] = [
     ...(attempted ? localProblems() : []),
     ...serverErrors.map((text) => ({ target: null, text })),
   ];
