@@ -246,7 +246,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
       {content.derivedFrom && (
         <section aria-labelledby="diff-heading">
           <h2 id="diff-heading" className="text-xl font-bold">
-            Changes from {content.derivedFrom.family} {content.derivedFrom.version}
+            Changes from version {content.derivedFrom.version}
           </h2>
           <p className="text-sm text-iron-600">What is saved in the draft; unsaved edits are not in it yet.</p>
           {diff ? <RulesetDiffView diff={diff} paramUnits={paramUnitsOf(content.rules)} /> : <p>The comparison is not available.</p>}
