@@ -6,8 +6,10 @@ import {
   formatCalendarDate,
   formatDay,
   formatDayTime,
+  fieldWords,
   formatLongDate,
   isoDayIn,
+  plainValue,
   humanise,
   rulesetLabel,
   statusLabel,
@@ -70,5 +72,17 @@ describe('vocabulary', () => {
     // A zone the runtime does not know falls back to UTC rather than breaking the page.
     expect(formatDay(moment, 'Not/AZone')).toBe('Nov 18, 2026');
     expect(formatDay(null, 'UTC')).toBe('—');
+  });
+
+  it('writes ruleset fields and values in words, never codes or rule ids', () => {
+    expect(fieldWords('params.minClearanceMm')).toBe('min clearance');
+    expect(fieldWords('rules.pinch.fixed-objects.params.minClearanceMm')).toBe('min clearance');
+    expect(fieldWords('appliesTo.gateKinds')).toBe('applies to › gate kinds');
+    expect(plainValue('lower_inclusive')).toBe('lower inclusive');
+    expect(plainValue('pinch.fixed-objects')).toBe('pinch and crush points › fixed objects');
+    expect(plainValue([{ zone: 'open_side', rule: 'pinch.hinge-side' }])).toBe(
+      'zone: open side, rule: pinch and crush points › hinge side',
+    );
+    expect(plainValue(406.4, 'mm')).toMatch(/^406\.4 mm/);
   });
 });
