@@ -335,6 +335,8 @@ export function plainValue(value: unknown, unit?: string, field = ''): string {
     return unit && unit !== 'count' ? formatParam({ value, unit }) : String(value);
   if (typeof value === 'boolean') return value ? 'yes' : 'no';
   if (typeof value === 'string') {
+    // A family slug ("north-american-gate-local") as words: "North american gate local".
+    if (/(^|\.)family$/.test(field)) return humanise(value.replace(/-/g, ' '));
     if (value.includes('.') && RULE_ID.test(value)) return ruleIdWords(value);
     return /^[a-z0-9]+(?:_[a-z0-9]+)+$/.test(value) ? humanise(value).toLowerCase() : value;
   }

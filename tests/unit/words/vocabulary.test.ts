@@ -84,5 +84,8 @@ describe('vocabulary', () => {
       'zone: open side, rule: pinch and crush points › hinge side',
     );
     expect(plainValue(406.4, 'mm')).toMatch(/^406\.4 mm/);
+    expect(plainValue('north-american-gate-local', undefined, 'derivedFrom.family')).toBe(
+      'North american gate local',
+    );
   });
 });
