@@ -3,7 +3,6 @@
  * page cursor. Pure, so the page (server) and the island (browser) read a bookmarked URL the
  * same way. Unknown keys are dropped; values are validated by the API, not here.
  */
-import { VERDICT_WORDS } from './vocabulary';
 
 /** The archive's filters (src/lib/api/archive.ts parses each), in the order URLs write them. */
 export const ARCHIVE_FILTER_KEYS = [
@@ -73,10 +72,3 @@ export function viewParams(state: ArchiveViewState): URLSearchParams {
   else if (state.before) params.set('before', state.before);
   return params;
 }
-
-/** Labels for the filters and the table: the vocabulary's own. */
-export { GATE_KIND_LABEL as GATE_KIND_LABELS, STATUS_LABEL as STATUS_LABELS } from './vocabulary';
-
-export const VERDICT_LABELS: Record<string, string> = Object.fromEntries(
-  Object.entries(VERDICT_WORDS).map(([k, w]) => [k, w.label]),
-);

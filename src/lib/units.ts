@@ -4,7 +4,8 @@
  * The product stores lengths in millimetres, forces in newtons, masses in kilograms and
  * speeds in metres per second; every entered value also keeps the unit it was entered in
  * (see `Measured`), so reports can show what was actually measured. Pure and framework-free:
- * islands, server and rules engine all use this module.
+ * islands, server and rules engine all use this module. Showing a value to people is the
+ * vocabulary's job (src/lib/vocabulary/numbers.ts).
  */
 
 /** Units a technician may enter a length in. */
@@ -143,84 +144,4 @@ export function measure<K extends MeasureKind>(kind: K, value: number, unit: Uni
   const canonical = finite(value, 'Value') * factorFor(kind, unit);
   const scale = 10 ** CANONICAL_DECIMALS;
   return { value, unit, canonical: Math.round(Number((canonical * scale).toPrecision(15))) / scale + 0 };
-}
-
-/** Rounds for display and drops trailing zeros ("406", "7.5"). */
-function trimmed(value: number, decimals: number): string {
-  const scale = 10 ** decimals;
-  const rounded = Math.round(Number((value * scale).toPrecision(15))) / scale + 0;
-  return String(rounded);
-}
-
-/** Inches shown the way the trade writes them: whole plus a reduced fraction, e.g. "2-1/4". */
-function inchesWithFraction(inches: number, denominator: number): string {
-  const parts = Math.round(Math.abs(inches) * denominator);
-  const whole = Math.floor(parts / denominator);
-  let numerator = parts % denominator;
-  let den = denominator;
-  while (numerator > 0 && numerator % 2 === 0 && den % 2 === 0) {
-    numerator /= 2;
-    den /= 2;
-  }
-  const sign = inches < 0 && parts > 0 ? '-' : '';
-  if (numerator === 0) return `${sign}${whole}`;
-  return whole === 0 ? `${sign}${numerator}/${den}` : `${sign}${whole}-${numerator}/${den}`;
-}
-
-/** Display options for lengths. */
-export interface FormatLengthOptions {
-  /** Imperial: smallest fraction of an inch shown (2, 4, 8 or 16). Default 8. */
-  fractionDenominator?: 2 | 4 | 8 | 16;
-}
-
-/** Lengths of at least 36 in are shown in feet and inches ("6 ft 1-1/2 in"); shorter ones in inches. */
-const IMPERIAL_FEET_FROM_INCHES = 36;
-/** Metric lengths from 10 m up are shown in metres; shorter ones in millimetres as technicians measure them. */
-const METRIC_METRES_FROM_MM = 10_000;
-
-/**
- * Formats a stored length for people: millimetres (0.1 mm, trailing zeros dropped) in metric,
- * fractional inches or feet-and-inches in imperial, as the trade writes them.
- */
-export function formatLength(mm: number, system: UnitSystem, options: FormatLengthOptions = {}): string {
-  finite(mm, 'Length');
-  if (system === 'metric') {
-    return Math.abs(mm) >= METRIC_METRES_FROM_MM ? `${trimmed(mm / 1000, 2)} m` : `${trimmed(mm, 1)} mm`;
-  }
-  const denominator = options.fractionDenominator ?? 8;
-  const inches = mm / MILLIMETRES_PER_INCH;
-  if (Math.abs(inches) < IMPERIAL_FEET_FROM_INCHES) return `${inchesWithFraction(inches, denominator)} in`;
-  const totalParts = Math.round(Math.abs(inches) * denominator);
-  const feet = Math.floor(totalParts / (12 * denominator));
-  const restInches = (totalParts - feet * 12 * denominator) / denominator;
-  const sign = inches < 0 ? '-' : '';
-  return restInches === 0
-    ? `${sign}${feet} ft`
-    : `${sign}${feet} ft ${inchesWithFraction(restInches, denominator)} in`;
-}
-
-/** Formats a stored force (N) as newtons or pounds-force, 0.1 precision. */
-export function formatForce(newtons: number, system: UnitSystem): string {
-  return system === 'metric'
-    ? `${trimmed(finite(newtons, 'Force'), 1)} N`
-    : `${trimmed(fromNewtons(newtons, 'lbf'), 1)} lbf`;
-}
-
-/** Formats a stored mass (kg) as kilograms or pounds, 0.1 precision. */
-export function formatMass(kg: number, system: UnitSystem): string {
-  return system === 'metric'
-    ? `${trimmed(finite(kg, 'Mass'), 1)} kg`
-    : `${trimmed(fromKilograms(kg, 'lb'), 1)} lb`;
-}
-
-/** Formats a stored speed (m/s) as m/s or ft/s, 0.01 precision. */
-export function formatSpeed(metresPerSecond: number, system: UnitSystem): string {
-  return system === 'metric'
-    ? `${trimmed(finite(metresPerSecond, 'Speed'), 2)} m/s`
-    : `${trimmed(fromMetresPerSecond(metresPerSecond, 'ft/s'), 2)} ft/s`;
-}
-
-/** Shows a measurement exactly as the technician entered it ("16 in"). */
-export function formatMeasured(measured: Measured): string {
-  return `${measured.value} ${measured.unit}`;
 }

@@ -7,7 +7,7 @@
  *   signal): the page carries the draft, the gate and the pinned ruleset version's questions;
  * - photo thumbnails and display sizes of those drafts (content-addressed, so cache first).
  * Nothing else: no other HTML, no other API answer, never a POST (unsent edits live in
- * IndexedDB, src/lib/walk/outbox.ts). Kept pages and photos belong to one person: they are
+ * IndexedDB, src/lib/walk/edit-queue.ts). Kept pages and photos belong to one person: they are
  * dropped when anyone signs in or out on this phone, or when a page says another person is
  * signed in.
  */

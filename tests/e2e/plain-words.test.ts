@@ -73,7 +73,7 @@ describe('plain words on the pages', () => {
     await page.getByRole('heading', { name: 'Next inspection' }).waitFor();
     const text = await mainText();
     expect(text).toMatch(/\(in \d+ days?\)/);
-    expect(text).toMatch(/usage class II/);
+    expect(text).toMatch(/Class II\b/);
     expect(text).not.toMatch(machineWords);
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'words-01-gate-history', { fullPage: true });

@@ -205,13 +205,11 @@ describe('the auditor walks a swing gate on a phone', () => {
       .locator('input[type=file]')
       .setInputFiles({ name: 'damaged.csv', mimeType: 'text/csv', buffer: Buffer.from(damagedTraceCsv()) });
     await expect(force.getByRole('alert').textContent()).resolves.toMatch(/Line 4: .*"0.004,zz"/);
-    await force
-      .locator('input[type=file]')
-      .setInputFiles({
-        name: 'closing-edge-300.csv',
-        mimeType: 'text/csv',
-        buffer: Buffer.from(passingTraceCsv()),
-      });
+    await force.locator('input[type=file]').setInputFiles({
+      name: 'closing-edge-300.csv',
+      mimeType: 'text/csv',
+      buffer: Buffer.from(passingTraceCsv()),
+    });
     await force.getByText('Within the limits').waitFor();
     await force.locator('canvas').first().waitFor();
     await checkPage('walk-09-force-trace', { focus: '#item-force li', only: ['#item-force'] });
@@ -291,7 +289,7 @@ describe('the auditor walks a swing gate on a phone', () => {
     });
 
     await page.reload();
-    // Waiting, not loading: the island has read the device's outbox.
+    // Waiting, not loading: the island has read the device's edit queue.
     await page.locator('[data-save-state="waiting"]').waitFor();
     for (const key of offlineKeys)
       await expect(page.locator(`#q-${key} input[value=yes]`).isChecked()).resolves.toBe(true);

@@ -1,10 +1,5 @@
 import { describe, expect, it } from 'vitest';
 import {
-  formatForce,
-  formatLength,
-  formatMass,
-  formatMeasured,
-  formatSpeed,
   fromKilograms,
   fromMetresPerSecond,
   fromMillimetres,
@@ -16,6 +11,7 @@ import {
   toMillimetres,
   toNewtons,
 } from '@/lib/units';
+import { formatForce, formatLength, formatMass, formatMeasured, formatSpeed } from '@/lib/vocabulary';
 
 describe('length conversions', () => {
   it('converts an inch to exactly 25.4 mm', () => {

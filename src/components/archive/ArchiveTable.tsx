@@ -18,9 +18,6 @@ import { useEffect, useMemo, useRef, useState } from 'react';
 import type { ArchiveItem } from '@/lib/api/archive';
 import {
   ARCHIVE_PAGE_SIZES,
-  GATE_KIND_LABELS,
-  STATUS_LABELS,
-  VERDICT_LABELS,
   filterParams,
   viewParams,
   viewStateFrom,
@@ -30,12 +27,20 @@ import {
 } from '@/lib/archive-query';
 import {
   count as countOf,
+  formatDay,
+  GATE_KIND_LABEL,
+  gateKindLabel,
   rulesetLabel,
+  STATUS_LABEL,
+  statusLabel,
   usageClassLabel,
+  VERDICT_ICON,
+  VERDICT_LABEL,
+  VERDICT_TEXT_CLASS,
   VERDICT_WORDS,
-  type VerdictCode,
 } from '@/lib/vocabulary';
-import { fetchArchiveCount, fetchArchivePage } from './archive-api';
+import type { Verdict } from '@/lib/rules/vocabulary';
+import { archiveCount, archivePage, valueOf } from '@/lib/api/client';
 
 export interface ArchiveOptions {
   auditors: { id: string; name: string }[];
@@ -74,13 +79,13 @@ const column = createColumnHelper<ArchiveItem>();
 
 /** Status as a chip and the verdict as coloured text with an icon: a status, not a button. */
 function Outcome({ item }: { item: ArchiveItem }) {
-  const tone = { clear: 'text-clear', remedy: 'text-remedy', withdraw: 'text-withdraw' } as const;
-  const icon = { clear: '✓', remedy: '!', withdraw: '■' } as const;
-  const verdict = item.verdict as VerdictCode | null;
+  const tone = VERDICT_TEXT_CLASS;
+  const icon = VERDICT_ICON;
+  const verdict = item.verdict as Verdict | null;
   return (
     <span className="inline-flex flex-wrap items-center gap-x-2 gap-y-1">
       <span className="rounded bg-iron-100 px-2 py-0.5 text-xs font-semibold">
-        {STATUS_LABELS[item.status as keyof typeof STATUS_LABELS] ?? 'Unknown'}
+        {statusLabel(item.status)}
       </span>
       {verdict && (
         <span className={`inline-flex items-center gap-1 text-xs font-semibold ${tone[verdict]}`}>
@@ -150,19 +155,16 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
 
   const page = useQuery({
     queryKey: ['archive', query],
-    queryFn: ({ signal }) => fetchArchivePage(query, signal),
+    queryFn: ({ signal }) => valueOf(archivePage(query, signal)),
     placeholderData: keepPreviousData,
   });
   const count = useQuery({
     queryKey: ['archive-count', filterQuery],
-    queryFn: ({ signal }) => fetchArchiveCount(filterQuery, signal),
+    queryFn: ({ signal }) => valueOf(archiveCount(filterQuery, signal)),
     placeholderData: keepPreviousData,
   });
 
-  const dateFormat = useMemo(
-    () => new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone }),
-    [timeZone],
-  );
+  const dateFormat = useMemo(() => ({ format: (date: Date) => formatDay(date, timeZone) }), [timeZone]);
   const titleOf = useMemo(() => {
     const titles = new Map(options.rulesets.map((r) => [r.family, r.title]));
     return (family: string) => titles.get(family) ?? null;
@@ -213,9 +215,7 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
             >
               {c.getValue()}
             </a>
-            <span className="block text-xs text-iron-600">
-              {GATE_KIND_LABELS[c.row.original.gate.kind] ?? c.row.original.gate.kind}
-            </span>
+            <span className="block text-xs text-iron-600">{gateKindLabel(c.row.original.gate.kind)}</span>
           </span>
         ),
       }),
@@ -315,7 +315,7 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
               label="Gate kind"
               value={state.filters.gateKind}
               onChange={(v) => setFilter('gateKind', v)}
-              options={Object.entries(GATE_KIND_LABELS)}
+              options={Object.entries(GATE_KIND_LABEL)}
             />
             <Select
               label="Usage class"
@@ -327,13 +327,13 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
               label="Status"
               value={state.filters.status}
               onChange={(v) => setFilter('status', v)}
-              options={Object.entries(STATUS_LABELS)}
+              options={Object.entries(STATUS_LABEL)}
             />
             <Select
               label="Verdict"
               value={state.filters.verdict}
               onChange={(v) => setFilter('verdict', v)}
-              options={Object.entries(VERDICT_LABELS)}
+              options={Object.entries(VERDICT_LABEL)}
             />
             <label>
               <span className="label">Ruleset</span>
@@ -434,7 +434,7 @@ function ArchiveTable({ initialSearch, options, timeZone }: Props) {
               <a href={`/archive/gates/${item.gate.id}`} className="inline-flex min-h-11 items-center">
                 {item.gate.label}
               </a>
-              <span className="text-iron-600"> · {GATE_KIND_LABELS[item.gate.kind] ?? 'Gate'}</span>
+              <span className="text-iron-600"> · {gateKindLabel(item.gate.kind)}</span>
             </p>
             <p className="text-xs text-iron-600">
               {rulesetLabel({ ...item.ruleset, title: titleOf(item.ruleset.family) })} · {item.auditor.name}

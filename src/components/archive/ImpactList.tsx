@@ -8,9 +8,9 @@
 import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
 import type { ImpactRunView } from '@/lib/api/impact';
-import { VERDICT_LABELS } from '@/lib/archive-query';
-import { count, listOf, SEVERITY_LABEL } from '@/lib/vocabulary';
-import { getJson } from './archive-api';
+import { count, formatDay, listOf, SEVERITY_LABEL, verdictLabel } from '@/lib/vocabulary';
+import { impactRun, startImpactRun, valueOf } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 
 export interface ImpactCandidate {
   id: string;
@@ -64,7 +64,7 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
   }, [query, versionId]);
   const view = useQuery({
     queryKey: ['impact-run', query],
-    queryFn: ({ signal }) => getJson<ImpactRunView>(`/api/archive/impact/run?${query}`, signal),
+    queryFn: ({ signal }) => valueOf(impactRun(query, signal)),
     enabled: Boolean(versionId),
     staleTime: 0,
     // While the run is queued or running, ask again every second for its progress.
@@ -78,15 +78,8 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
   const start = async () => {
     setStarting(true);
     setStartError(null);
-    const res = await fetch('/api/archive/impact/run', {
-      method: 'POST',
-      headers: { 'content-type': 'application/json', accept: 'application/json' },
-      body: JSON.stringify({ versionId, basis }),
-    }).catch(() => null);
-    if (!res?.ok) {
-      const body = res ? await res.json().catch(() => null) : null;
-      setStartError(body?.detail ?? 'No connection to the server. Try again in a moment.');
-    }
+    const answer = await startImpactRun({ versionId, basis });
+    if (!answer.ok) setStartError(problemMessage(answer.problem));
     setStarting(false);
     await view.refetch();
   };
@@ -99,7 +92,7 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
   const run = view.data?.run ?? null;
   const busy = run !== null && (run.status === 'queued' || run.status === 'running');
   const report = { ...view, isFetching: busy || starting || (view.isFetching && !view.data) };
-  const day = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeZone });
+  const day = { format: (date: Date) => formatDay(date, timeZone) };
   const data = view.data?.report ?? null;
 
   return (
@@ -217,13 +210,13 @@ function ImpactList({ candidates, initialVersionId, initialBasis, timeZone }: Pr
                   </div>
                   <p className="mt-1 flex flex-wrap items-center gap-1 text-sm">
                     <span className={`text-sm font-semibold ${verdictClass[item.before]}`}>
-                      {VERDICT_LABELS[item.before]}
+                      {verdictLabel(item.before)}
                     </span>
                     <span aria-hidden="true">→</span>
                     <span className="sr-only">would become</span>
                     {item.after && (
                       <span className={`text-sm font-semibold ${verdictClass[item.after]}`}>
-                        {VERDICT_LABELS[item.after]}
+                        {verdictLabel(item.after)}
                       </span>
                     )}
                   </p>

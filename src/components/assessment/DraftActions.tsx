@@ -3,6 +3,8 @@
  * mistake (after a confirmation that says what goes). Talks to the server only through /api.
  */
 import { useState } from 'react';
+import { discardDraft } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 import ConfirmDialog from '../ConfirmDialog';
 
 interface Props {
@@ -19,20 +21,17 @@ export default function DraftActions({ assessmentId, gateLabel }: Props) {
   async function discard() {
     setBusy(true);
     setMessage(null);
-    try {
-      const res = await fetch(`/api/assessments/${assessmentId}`, {
-        method: 'DELETE',
-        headers: { accept: 'application/json' },
-      });
-      if (res.status === 204 || res.status === 404) return window.location.assign('/assessments?discarded=1');
-      const problem = await res.json().catch(() => ({}));
-      setMessage(problem.detail ?? `The draft could not be discarded (the server answered ${res.status}).`);
-    } catch {
-      setMessage('No connection to the server. Try again when you have signal.');
-    } finally {
-      setBusy(false);
-      setAsking(false);
-    }
+    const answer = await discardDraft(assessmentId);
+    setBusy(false);
+    setAsking(false);
+    // Gone already (another device discarded it) is as good as discarded here.
+    if (answer.ok || answer.problem.status === 404) return window.location.assign('/assessments?discarded=1');
+    setMessage(
+      problemMessage(
+        answer.problem,
+        `The draft could not be discarded (the server answered ${answer.problem.status}).`,
+      ),
+    );
   }
 
   return (

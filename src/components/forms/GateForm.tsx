@@ -14,7 +14,7 @@ import {
   type Gate,
 } from '@/lib/api/gates';
 import type { UnitSystem } from '@/lib/units';
-import { parseFeetAndInches } from '@/lib/measure-display';
+import { parseFeetAndInches } from '@/lib/vocabulary';
 import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
 
 type Tri = boolean | undefined;

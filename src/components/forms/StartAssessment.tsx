@@ -1,6 +1,7 @@
 /** Starts a draft assessment of one gate, pinned to the chosen family's current version, and opens its walk-through. */
 import { useId, useState } from 'react';
-import type { Assessment } from '@/lib/api/assessments';
+import { startAssessment } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 import { createKey } from '@/lib/create-key';
 
 interface Props {
@@ -27,31 +28,21 @@ export default function StartAssessment({ gateId, families, lastSignedOn }: Prop
   const start = async () => {
     setBusy(true);
     setMessage(null);
-    try {
-      const text = JSON.stringify({ gateId, family, purpose, ...(carryForward ? { carryForward } : {}) });
-      // A retry after a lost answer (or a double tap) reuses the key, so it never starts two drafts.
-      const create = createKey('/api/assessments', text);
-      const response = await fetch('/api/assessments', {
-        method: 'POST',
-        headers: {
-          'content-type': 'application/json',
-          accept: 'application/json',
-          'idempotency-key': create.key,
-        },
-        body: text,
-      });
-      if (response.ok) create.done();
-      const body = await response.json().catch(() => null);
-      if (!response.ok) throw new Error(body?.detail ?? `The server answered ${response.status}.`);
-      window.location.assign(`/assessments/${(body as Assessment).id}/walk`);
-    } catch (error) {
-      setMessage(
-        error instanceof TypeError
-          ? 'No connection: starting an assessment needs signal once.'
-          : (error as Error).message,
-      );
-      setBusy(false);
+    const body = { gateId, family, purpose, ...(carryForward ? { carryForward } : {}) };
+    // A retry after a lost answer (or a double tap) reuses the key, so it never starts two drafts.
+    const create = createKey('/api/assessments', JSON.stringify(body));
+    const answer = await startAssessment(body, create.key);
+    if (answer.ok) {
+      create.done();
+      window.location.assign(`/assessments/${answer.value.id}/walk`);
+      return;
     }
+    setMessage(
+      answer.problem.status === 0
+        ? 'No connection: starting an assessment needs signal once.'
+        : problemMessage(answer.problem),
+    );
+    setBusy(false);
   };
   return (
     <div className="grid gap-2 sm:grid-cols-[1fr_1fr_auto] sm:items-end">

@@ -7,6 +7,8 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useId, type ReactNode } from 'react';
 import type { FieldValues, Path, Resolver, UseFormSetError } from 'react-hook-form';
 import type { z } from 'zod';
+import { send } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 import { createKey } from '@/lib/create-key';
 
 /** Empty strings and NaN become "not given", so optional fields stay optional. */
@@ -60,26 +62,19 @@ export async function sendJson<T, F extends FieldValues>(
   body: unknown,
   setError: UseFormSetError<F>,
 ): Promise<SendResult<T>> {
-  let response: Response;
-  const text = JSON.stringify(body);
-  const create = method === 'POST' ? createKey(url, text) : null;
-  try {
-    const headers: Record<string, string> = {
-      'content-type': 'application/json',
-      accept: 'application/json',
-    };
-    if (create) headers['idempotency-key'] = create.key;
-    response = await fetch(url, { method, headers, body: text });
-  } catch {
-    return { ok: false, body: null, message: 'No connection to the server. Try again when you have signal.' };
+  const create = method === 'POST' ? createKey(url, JSON.stringify(body)) : null;
+  const answer = await send<T>(method, url, {
+    body,
+    headers: create ? { 'idempotency-key': create.key } : {},
+  });
+  if (answer.ok) {
+    create?.done();
+    return { ok: true, body: answer.value, message: null };
   }
-  const json = await response.json().catch(() => null);
-  if (response.ok) create?.done();
-  if (response.ok) return { ok: true, body: json as T, message: null };
-  for (const error of (json?.errors ?? []) as { field: string; message: string }[]) {
+  for (const error of answer.problem.errors) {
     if (error.field) setError(error.field as Path<F>, { type: 'server', message: error.message });
   }
-  return { ok: false, body: null, message: json?.detail ?? `The server answered ${response.status}.` };
+  return { ok: false, body: null, message: problemMessage(answer.problem) };
 }
 
 interface FieldProps {

@@ -4,6 +4,7 @@
  * stored while any remains), the diff against the version the draft came from, and publishing.
  * Every change goes through /api; the draft on the server is always the truth.
  */
+import { fieldWords } from '@/lib/vocabulary';
 import { useMemo, useState } from 'react';
 import type { AmendmentPatch, AmendmentProblem, LocalRule, RulesetVersionDetail } from '@/lib/api/rulesets';
 import type { RulesetDiff } from '@/lib/rules/diff';
@@ -11,7 +12,8 @@ import type { UnitSystem } from '@/lib/units';
 import LocalRuleForm from './LocalRuleForm';
 import RuleEditCard, { type BaselineRule, type RuleEdit } from './RuleEditCard';
 import RulesetDiffView, { paramUnitsOf } from './RulesetDiffView';
-import { amendDraft, deleteDraft, fetchDiff, publishDraft } from './rulesets-api';
+import { amendDraft, deleteDraft, publishDraft, rulesetDiff } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 
 interface Props {
   initial: RulesetVersionDetail;
@@ -76,7 +78,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
   const refreshDiff = async (saved: RulesetVersionDetail) => {
     const from = saved.content.derivedFrom;
     if (!from) return;
-    const answer = await fetchDiff(saved.family, { fromFamily: from.family, from: from.version, to: saved.version });
+    const answer = await rulesetDiff(saved.family, { fromFamily: from.family, from: from.version, to: saved.version });
     if (answer.ok) setDiff(answer.value);
   };
 
@@ -88,7 +90,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     setBusy(false);
     if (!answer.ok) {
       setProblems(answer.problem.errors);
-      setMessage({ tone: 'error', text: `${answer.problem.detail}${answer.problem.errors.length ? ` (${answer.problem.errors.length} problem${answer.problem.errors.length === 1 ? '' : 's'})` : ''}` });
+      setMessage({ tone: 'error', text: `${problemMessage(answer.problem)}${answer.problem.errors.length ? ` (${answer.problem.errors.length} problem${answer.problem.errors.length === 1 ? '' : 's'})` : ''}` });
       return answer.problem.errors;
     }
     setDetail(answer.value);
@@ -129,7 +131,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     setBusy(false);
     setConfirming(null);
     setProblems(answer.problem.errors);
-    setMessage({ tone: 'error', text: answer.problem.detail });
+    setMessage({ tone: 'error', text: problemMessage(answer.problem) });
   };
 
   const discard = async () => {
@@ -141,7 +143,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
     }
     setBusy(false);
     setConfirming(null);
-    setMessage({ tone: 'error', text: answer.problem.detail });
+    setMessage({ tone: 'error', text: problemMessage(answer.problem) });
   };
 
   const needle = filter.trim().toLowerCase();
@@ -161,7 +163,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
           <ul className="card mt-2 grid gap-1 border-withdraw text-sm">
             {general.map((p) => (
               <li key={`${p.field}:${p.message}`}>
-                <code className="text-xs">{p.field}</code>: {p.message}
+                <span className="font-semibold">{fieldWords(p.field)}</span>: {p.message}
               </li>
             ))}
           </ul>
@@ -244,7 +246,7 @@ export default function AmendmentEditor({ initial, baseline, initialDiff, system
       {content.derivedFrom && (
         <section aria-labelledby="diff-heading">
           <h2 id="diff-heading" className="text-xl font-bold">
-            Changes from {content.derivedFrom.family} {content.derivedFrom.version}
+            Changes from version {content.derivedFrom.version}
           </h2>
           <p className="text-sm text-iron-600">What is saved in the draft; unsaved edits are not in it yet.</p>
           {diff ? <RulesetDiffView diff={diff} paramUnits={paramUnitsOf(content.rules)} /> : <p>The comparison is not available.</p>}

@@ -9,7 +9,7 @@ import { LocalRuleSchema, type AmendmentProblem, type LocalRule } from '@/lib/ap
 import { CANONICAL_UNIT_OF, MEASURED_ANSWER_TYPES, type MeasuredAnswerType } from '@/lib/rules/measures';
 import type { RulesetVersion } from '@/lib/rules/ruleset-schema';
 import { GATE_KINDS, SEVERITIES, type GateKind } from '@/lib/rules/vocabulary';
-import { GATE_KIND_LABEL, SEVERITY_LABEL } from './labels';
+import { fieldWords, GATE_KIND_LABEL, SEVERITY_LABEL } from '@/lib/vocabulary';
 
 interface Props {
   content: RulesetVersion;
@@ -214,7 +214,7 @@ export default function LocalRuleForm({ content, busy, onSubmit, onCancel }: Pro
       </Field>
       {unplaced.map((e) => (
         <p key={`${e.field}:${e.message}`} role="alert" className="text-sm text-withdraw">
-          <code className="text-xs">{e.field}</code>: {e.message}
+          <span className="font-semibold">{fieldWords(e.field)}</span>: {e.message}
         </p>
       ))}
       <div className="flex flex-wrap gap-2">

@@ -7,9 +7,9 @@ import { useId } from 'react';
 import type { AmendmentProblem } from '@/lib/api/rulesets';
 import type { RulesetRule } from '@/lib/rules/ruleset-schema';
 import { SEVERITIES, type Severity } from '@/lib/rules/vocabulary';
-import { describeCondition, formatParam, keyWords, type ParamLike } from '@/lib/ruleset-words';
+import { describeCondition, fieldWords, formatParam, keyWords, type ParamLike } from '@/lib/vocabulary';
 import type { UnitSystem } from '@/lib/units';
-import { SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from './labels';
+import { SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from '@/lib/vocabulary';
 
 /** What the owner has changed on this rule and not saved yet; param values as typed. */
 export interface RuleEdit {
@@ -66,7 +66,7 @@ export default function RuleEditCard({ rule, edit, baseline, problems, system, o
         </div>
       </div>
       <p className="mt-1 text-xs text-iron-600">
-        <code className="break-all">{rule.id}</code> · {gateKindsText(rule.appliesTo.gateKinds)}
+        {gateKindsText(rule.appliesTo.gateKinds)}
       </p>
       <p className="mt-2 text-sm">
         <span className="font-semibold">Passes when </span>
@@ -140,7 +140,7 @@ export default function RuleEditCard({ rule, edit, baseline, problems, system, o
       </div>
       {ruleProblems.map((p) => (
         <p key={`${p.field}:${p.message}`} role="alert" className="mt-2 text-sm text-withdraw">
-          <code className="text-xs">{p.field}</code>: {p.message}
+          <span className="font-semibold">{fieldWords(p.field)}</span>: {p.message}
         </p>
       ))}
       <details className="mt-2 text-sm">

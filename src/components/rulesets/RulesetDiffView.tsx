@@ -2,6 +2,7 @@
  * What changed between two ruleset versions, rule by rule and field by field (old → new).
  * Rendered on the server for the diff page and inside the amendment editor; no state of its own.
  */
+import { fieldWords, plainValue } from '@/lib/vocabulary';
 import type { FieldChange, ItemsDiff, RulesetDiff } from '@/lib/rules/diff';
 
 interface Props {
@@ -12,16 +13,8 @@ interface Props {
   ruleHref?: string;
 }
 
-function show(value: unknown, unit?: string): string {
-  if (value === null || value === undefined) return '(none)';
-  if (typeof value === 'number') return unit && unit !== 'count' ? `${value} ${unit}` : String(value);
-  if (typeof value === 'string') return value;
-  if (typeof value === 'boolean') return value ? 'yes' : 'no';
-  return JSON.stringify(value);
-}
-
-function Value({ value, unit }: { value: unknown; unit?: string }) {
-  const text = show(value, unit);
+function Value({ value, unit, field }: { value: unknown; unit?: string; field: string }) {
+  const text = plainValue(value, unit, field);
   if (text.length <= 140) return <span className="wrap-anywhere">{text}</span>;
   return (
     <details>
@@ -38,15 +31,15 @@ function Changes({ changes, units }: { changes: FieldChange[]; units?: Record<st
         const unit = c.field.startsWith('params.') && c.field.split('.').length === 2 ? units?.[c.field.slice('params.'.length)] : undefined;
         return (
           <li key={c.field} className="rounded-lg bg-iron-50 p-2">
-            <code className="text-xs font-semibold text-iron-800">{c.field}</code>
+            <span className="text-xs font-semibold text-iron-800">{fieldWords(c.field)}</span>
             <div className="mt-1 grid min-w-0 gap-1 sm:grid-cols-[auto_1fr]">
               <span className="text-xs font-semibold text-withdraw">was</span>
               <del className="decoration-withdraw">
-                <Value value={c.from} unit={unit} />
+                <Value value={c.from} unit={unit} field={c.field} />
               </del>
               <span className="text-xs font-semibold text-clear">now</span>
               <ins className="no-underline">
-                <Value value={c.to} unit={unit} />
+                <Value value={c.to} unit={unit} field={c.field} />
               </ins>
             </div>
           </li>
@@ -72,7 +65,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-1">
             {items.added.map((a) => (
               <li key={a.id} className="card py-2">
-                {link(a.id, a.title)} <code className="text-xs text-iron-600 break-all">{a.id}</code>
+                {link(a.id, a.title)}
               </li>
             ))}
           </ul>
@@ -84,7 +77,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-1">
             {items.removed.map((r) => (
               <li key={r.id} className="card py-2">
-                <del>{r.title}</del> <code className="text-xs text-iron-600 break-all">{r.id}</code>
+                <del>{r.title}</del>
               </li>
             ))}
           </ul>
@@ -96,7 +89,7 @@ function Items({ title, items, paramUnits, href }: { title: string; items: Items
           <ul className="mt-1 grid gap-2">
             {items.changed.map((c) => (
               <li key={c.id} className="card">
-                {link(c.id, c.title)} <code className="text-xs text-iron-600 break-all">{c.id}</code>
+                {link(c.id, c.title)}
                 <Changes changes={c.changes} units={paramUnits?.[c.id]} />
               </li>
             ))}

@@ -5,6 +5,7 @@
  * failed try) is described as waiting for it.
  */
 import { useEffect, useState } from 'react';
+import { signingStatus } from '@/lib/api/client';
 import { formatDayTime, MAIL_KIND_LABEL, count } from '@/lib/vocabulary';
 
 export interface MailMessage {
@@ -39,17 +40,11 @@ export default function MailStatus({ assessmentId, initial, timeZone, pollForMs 
     let stopped = false;
     let timer: ReturnType<typeof setTimeout>;
     const ask = async () => {
-      try {
-        const res = await fetch(`/api/assessments/${assessmentId}/signing`, {
-          headers: { accept: 'application/json' },
-        });
-        if (res.ok) {
-          const body = (await res.json()) as { messages: MailMessage[] };
-          if (!stopped) setMessages(body.messages);
-          if (!body.messages.some(pending)) return;
-        }
-      } catch {
-        // No answer this time; ask again below.
+      // No answer this time (or a refusal): ask again below.
+      const answer = await signingStatus<{ messages: MailMessage[] }>(assessmentId);
+      if (answer.ok) {
+        if (!stopped) setMessages(answer.value.messages);
+        if (!answer.value.messages.some(pending)) return;
       }
       if (stopped) return;
       if (Date.now() - started > pollForMs) setGaveUp(true);

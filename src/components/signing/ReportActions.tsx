@@ -3,6 +3,8 @@
  * revision of a signed one. Talks to the server only through /api.
  */
 import { useState } from 'react';
+import { sendForSignature, startRevision } from '@/lib/api/client';
+import { fieldProblem, problemMessage } from '@/lib/api/problem';
 
 interface Props {
   assessmentId: string;
@@ -34,48 +36,25 @@ export default function ReportActions({
   const [message, setMessage] = useState<string | null>(null);
   const [days, setDays] = useState(14);
 
-  async function post(path: string, body: unknown): Promise<Response | null> {
-    setBusy(true);
-    setMessage(null);
-    try {
-      return await fetch(path, {
-        method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
-        body: JSON.stringify(body),
-      });
-    } catch {
-      setMessage('The server could not be reached. Try again.');
-      return null;
-    } finally {
-      setBusy(false);
-    }
-  }
-
   async function send() {
     setFieldError(null);
-    const res = await post(`/api/assessments/${assessmentId}/send-for-signature`, {
-      expiresInDays: days,
-      recipient: to,
-    });
-    if (!res) return;
-    if (res.ok) return window.location.reload();
-    const problem = await res.json().catch(() => ({}));
-    const recipientError = (problem.errors as { field: string; message: string }[] | undefined)?.find(
-      (e) => e.field === 'recipient',
-    );
-    if (recipientError) setFieldError(`The address ${recipientError.message}.`);
-    setMessage(problem.detail ?? `Sending failed (${res.status}).`);
+    setBusy(true);
+    setMessage(null);
+    const answer = await sendForSignature(assessmentId, { expiresInDays: days, recipient: to });
+    setBusy(false);
+    if (answer.ok) return window.location.reload();
+    const recipientError = fieldProblem(answer.problem, 'recipient');
+    if (recipientError) setFieldError(`The address ${recipientError}.`);
+    setMessage(problemMessage(answer.problem, `Sending failed (${answer.problem.status}).`));
   }
 
   async function revise() {
-    const res = await post(`/api/assessments/${assessmentId}/revise`, {});
-    if (!res) return;
-    if (res.ok) {
-      const created = await res.json();
-      return window.location.assign(`/assessments/${created.id}/walk`);
-    }
-    const problem = await res.json().catch(() => ({}));
-    setMessage(problem.detail ?? `Starting a revision failed (${res.status}).`);
+    setBusy(true);
+    setMessage(null);
+    const answer = await startRevision(assessmentId);
+    setBusy(false);
+    if (answer.ok) return window.location.assign(`/assessments/${answer.value.id}/walk`);
+    setMessage(problemMessage(answer.problem, `Starting a revision failed (${answer.problem.status}).`));
   }
 
   return (

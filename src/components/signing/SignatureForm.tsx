@@ -8,6 +8,7 @@
  */
 import { useEffect, useRef, useState, type FormEvent } from 'react';
 import SignaturePad from 'signature_pad';
+import { submitSignature } from '@/lib/api/client';
 
 export interface CautionItem {
   ruleId: string;
@@ -24,7 +25,7 @@ interface Props {
   recipientEmail: string;
 }
 
-interface Problem {
+interface FormIssue {
   /** The id of the field that fixes it, for a link from the summary. */
   target: string | null;
   text: string;
@@ -89,8 +90,8 @@ export default function SignatureForm({
   }, [typedOnly]);
 
   /** What still stands between the person and signing, each with the field that fixes it. */
-  const localProblems = (): Problem[] => {
-    const problems: Problem[] = [];
+  const localProblems = (): FormIssue[] => {
+    const problems: FormIssue[] = [];
     const unticked = cautions.filter((c) => !ticked[c.ruleId]);
     if (unticked.length)
       problems.push({
@@ -107,7 +108,7 @@ export default function SignatureForm({
       });
     return problems;
   };
-  const errors: Problem[] = [
+  const errors: FormIssue[] = [
     ...(attempted ? localProblems() : []),
     ...serverErrors.map((text) => ({ target: null, text })),
   ];
@@ -130,34 +131,29 @@ export default function SignatureForm({
       typedOnly || !pad.current
         ? { method: 'typed' as const }
         : { method: 'drawn' as const, png: pad.current.toDataURL('image/png') };
-    try {
-      const res = await fetch(`/api/sign/${encodeURIComponent(token)}/submit`, {
-        method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
-        body: JSON.stringify({
-          name: name.trim(),
-          consent: true,
-          intent: true,
-          acknowledgedCautions: cautions.map((c) => c.ruleId),
-          shownPdfSha256: documentSha256,
-          signature,
-        }),
-      });
-      const body = await res.json().catch(() => ({}));
-      if (res.ok) return setPhase({ kind: 'signed', documentSha256: body.document?.sha256 ?? '' });
-      if (body.linkState)
-        return setPhase({ kind: 'closed', message: body.detail ?? 'This link can no longer be used.' });
-      setServerErrors([
-        body.detail ?? 'Something went wrong; try again.',
-        ...((body.errors ?? []) as Array<{ message: string }>).map((e) => e.message),
-      ]);
-      setPhase({ kind: 'editing' });
-    } catch {
+    const answer = await submitSignature<{ document?: { sha256?: string } }>(token, {
+      name: name.trim(),
+      consent: true,
+      intent: true,
+      acknowledgedCautions: cautions.map((c) => c.ruleId),
+      shownPdfSha256: documentSha256,
+      signature,
+    });
+    if (answer.ok) return setPhase({ kind: 'signed', documentSha256: answer.value?.document?.sha256 ?? '' });
+    const { problem } = answer;
+    if (problem.status === 0) {
       setServerErrors([
         'We could not reach the server. Check your connection and press Sign again; nothing was signed yet.',
       ]);
-      setPhase({ kind: 'editing' });
+    } else if (problem.linkState) {
+      return setPhase({ kind: 'closed', message: problem.detail ?? 'This link can no longer be used.' });
+    } else {
+      setServerErrors([
+        problem.detail ?? 'Something went wrong; try again.',
+        ...problem.errors.map((e) => e.message),
+      ]);
     }
+    setPhase({ kind: 'editing' });
   }
 
   if (phase.kind === 'signed') {

@@ -1,5 +1,6 @@
 /** The gap between ram body and leaf over the swing, against the clearance wanted: a small SVG chart. */
-import { formatLength, type UnitSystem } from '@/lib/units';
+import type { UnitSystem } from '@/lib/units';
+import { formatLength } from '@/lib/vocabulary';
 import type { SwingGeometryChart } from '@/lib/rules/calculators/swing-geometry';
 
 const W = 320;

@@ -3,11 +3,11 @@
  * the same items this phone changed. Nothing is overwritten until the auditor picks, item by
  * item, which value stays.
  */
+import type { WalkQuestion } from '@/lib/api/walk-through';
 import { useEffect, useRef, useState } from 'react';
-import type { FieldConflict } from '@/lib/walk/documents';
+import type { FieldConflict } from '@/lib/walk/draft';
 import type { Json } from '@/lib/walk/merge-patch';
-import type { WalkQuestion } from '@/lib/walk/model';
-import { YES_NO_NA_LABEL } from './labels';
+import { YES_NO_NA_LABEL } from '@/lib/vocabulary';
 
 function describe(value: Json | undefined): string {
   if (value === undefined || value === null) return 'Nothing';

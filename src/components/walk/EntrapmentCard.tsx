@@ -5,7 +5,7 @@
 import { memo, useId } from 'react';
 import type { Json } from '@/lib/walk/merge-patch';
 import { useWalkActions } from './context';
-import { DEVICE_LABEL, DIRECTION_LABEL, ZONE_LABEL } from './labels';
+import { DEVICE_LABEL, DIRECTION_LABEL, ZONE_LABEL } from '@/lib/vocabulary';
 
 interface Zone {
   zone: string;

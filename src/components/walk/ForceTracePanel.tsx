@@ -13,25 +13,26 @@ import {
   type ForceTraceResult,
 } from '@/lib/rules/calculators/force-trace';
 import type { GateKind } from '@/lib/rules/vocabulary';
-import { formatLength, type UnitSystem } from '@/lib/units';
+import type { UnitSystem } from '@/lib/units';
+import { formatLength } from '@/lib/vocabulary';
 import { newClientRef, parseEntered, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
-import type { OutboxOp, TraceOp } from '@/lib/walk/outbox';
+import type { QueuedEdit, TraceOp } from '@/lib/walk/edit-queue';
 import {
   MAX_TRACE_CSV_BYTES,
   megabytes,
   TRACE_LOCATIONS,
   type TraceLocation,
   type TraceRecord,
-} from '@/lib/walk/records';
+} from '@/lib/api/uploads';
 import { useWalkActions } from './context';
-import { DIRECTION_LABEL, TRACE_LOCATION_LABEL } from './labels';
+import { DIRECTION_LABEL, TRACE_LOCATION_LABEL } from '@/lib/vocabulary';
 import { TraceChart } from './TraceChart';
 
 interface Props {
   gateKind: GateKind;
   traces: readonly TraceRecord[];
-  pending: readonly OutboxOp[];
+  pending: readonly QueuedEdit[];
   needed: boolean;
 }
 
@@ -146,7 +147,7 @@ export default function ForceTracePanel({ gateKind, traces, pending, needed }: P
   const ids = { location: useId(), direction: useId(), gap: useId(), file: useId(), error: useId() };
 
   const shown: ShownTrace[] = useMemo(() => {
-    const waiting = pending.filter((op): op is OutboxOp & TraceOp => op.kind === 'trace');
+    const waiting = pending.filter((op): op is QueuedEdit & TraceOp => op.kind === 'trace');
     const local = waiting.map((op) => {
       let samples: [number, number][] = [];
       let evaluation: ForceTraceResult | null = null;

@@ -2,10 +2,11 @@
  * First thing on the walk: who is around this gate (the site context the rules and hazard
  * ratings depend on) and the gate facts from the office record, with a way to correct them.
  */
+import type { WalkGate } from '@/lib/api/walk-through';
 import { memo } from 'react';
 import type { Json } from '@/lib/walk/merge-patch';
-import type { WalkGate } from '@/lib/walk/model';
-import { formatLength, formatMass, type UnitSystem } from '@/lib/units';
+import type { UnitSystem } from '@/lib/units';
+import { formatLength, formatMass, usageClassLabel } from '@/lib/vocabulary';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';
 
@@ -78,7 +79,7 @@ function GateAndSiteCardView({ site, gate, gateEditUrl, units, neededSite, neede
           ? formatMass(gate.weightKg, units)
           : 'Not recorded',
     ],
-    ['Usage class', ['I', 'II', 'III', 'IV'][gate.usageClass - 1] ?? String(gate.usageClass)],
+    ['Usage class', usageClassLabel(gate.usageClass)],
     ['Operator listed', yesNoUnknown(gate.operator.listed)],
     ['Automatic closing', yesNoUnknown(gate.operator.automaticClosing)],
   ];

@@ -1,7 +1,7 @@
 /** The live result at a glance, beside the questions on a wide screen: verdict, counts, area scores. */
+import type { WalkRuleset } from '@/lib/api/walk-through';
 import type { ScoreResult } from '@/lib/rules/result-types';
-import type { WalkRuleset } from '@/lib/walk/model';
-import { VERDICT_EXPLANATION, VERDICT_ICON, VERDICT_LABEL, VERDICT_TEXT_CLASS } from './labels';
+import { VERDICT_EXPLANATION, VERDICT_ICON, VERDICT_LABEL, VERDICT_TEXT_CLASS } from '@/lib/vocabulary';
 
 interface Props {
   result: ScoreResult | undefined;

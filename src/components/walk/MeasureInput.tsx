@@ -3,13 +3,13 @@
  * picker defaulting to the organisation's system. Stored as entered plus its canonical value;
  * the other system's figure is shown underneath as a check against a unit slip.
  */
+import type { MeasurementValue } from '@/lib/api/walk-through';
 import { useEffect, useId, useRef, useState } from 'react';
-import { formatForce, formatLength, formatMass, formatSpeed } from '@/lib/units';
+import { formatForce, formatLength, formatMass, formatSpeed } from '@/lib/vocabulary';
 import type { MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
-import type { MeasurementValue } from '@/lib/walk/documents';
 import { parseEntered, toMeasurement, unitLabel, unitsFor } from '@/lib/walk/entry';
-import { formatAsEntered, parseFeetAndInches } from '@/lib/measure-display';
+import { formatAsEntered, parseFeetAndInches } from '@/lib/vocabulary';
 
 interface Props {
   kind: MeasuredAnswerType;

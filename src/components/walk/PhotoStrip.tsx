@@ -6,7 +6,7 @@
  */
 import { useId, useState, useSyncExternalStore, type ReactNode } from 'react';
 import { newClientRef } from '@/lib/walk/entry';
-import { MAX_PHOTO_BYTES, megabytes, type PhotoRecord } from '@/lib/walk/records';
+import { MAX_PHOTO_BYTES, megabytes, type PhotoRecord } from '@/lib/api/uploads';
 import type { PhotoUpload } from '@/lib/walk/sync';
 import { useWalkActions } from './context';
 

@@ -2,14 +2,14 @@
  * One item of the walk-through: the prompt, why it matters, the answer control for its type,
  * a note, photos, and a flag when the result is waiting on it.
  */
+import type { AnswerValue, MeasurementValue, WalkQuestion } from '@/lib/api/walk-through';
 import { memo, useState } from 'react';
 import type { MeasuredAnswerType } from '@/lib/rules/measures';
-import type { AnswerValue, MeasurementValue } from '@/lib/walk/documents';
-import { isMeasured, type WalkQuestion } from '@/lib/walk/model';
-import type { PhotoRecord } from '@/lib/walk/records';
+import { isMeasured } from '@/lib/walk/model';
+import type { PhotoRecord } from '@/lib/api/uploads';
 import { ChoiceButtons } from './ChoiceButtons';
 import { useWalkActions } from './context';
-import { YES_NO_NA_LABEL } from './labels';
+import { YES_NO_NA_LABEL } from '@/lib/vocabulary';
 import { MeasureInput } from './MeasureInput';
 import { PhotoStrip, type PendingPhoto } from './PhotoStrip';
 

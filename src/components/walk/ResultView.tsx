@@ -3,13 +3,14 @@
  * their remedy); then Submit, which scores on the server with the pinned version and shows
  * the stored verdict, the failing findings with remediation and what still needs information.
  */
+import type { WalkRuleset } from '@/lib/api/walk-through';
 import { useState } from 'react';
 import type { Finding, ScoreResult } from '@/lib/rules/result-types';
 import { count } from '@/lib/vocabulary';
-import type { Problem } from '@/lib/walk/api';
-import { mergeNeeds, type WalkRuleset } from '@/lib/walk/model';
+import type { Problem } from '@/lib/api/problem';
+import { mergeNeeds } from '@/lib/walk/model';
 import ConfirmDialog from '../ConfirmDialog';
-import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from './labels';
+import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from '@/lib/vocabulary';
 
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
 

@@ -4,7 +4,7 @@
  */
 import type { Verdict } from '@/lib/rules/vocabulary';
 import type { SyncState } from '@/lib/walk/sync';
-import { VERDICT_ICON, VERDICT_SHORT, VERDICT_TEXT_CLASS } from './labels';
+import { VERDICT_ICON, VERDICT_SHORT, VERDICT_TEXT_CLASS } from '@/lib/vocabulary';
 
 export type WalkView = 'walk' | 'check' | 'result';
 

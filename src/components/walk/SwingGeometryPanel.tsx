@@ -4,16 +4,17 @@
  * and the top view shows leaf and operator at closed, half and open. Valid inputs are saved
  * with the assessment, where the rules read them.
  */
+import type { WalkGate } from '@/lib/api/walk-through';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import {
   assessSwingOperatorGeometry,
   OPERATOR_LEAF_MIN_CLEARANCE_MM,
   type SwingOperatorGeometryResult,
 } from '@/lib/rules/calculators/swing-geometry';
-import { formatLength, fromMillimetres, type LengthUnit } from '@/lib/units';
+import { fromMillimetres, type LengthUnit } from '@/lib/units';
+import { formatLength } from '@/lib/vocabulary';
 import { parseEntered, shortNumber, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
-import type { WalkGate } from '@/lib/walk/model';
 import { ClearanceChart } from './ClearanceChart';
 import { useWalkActions } from './context';
 import { SwingTopView } from './SwingTopView';

@@ -3,8 +3,9 @@
  * many rules need it), what must be known before anything can be scored, and the questions
  * not answered yet.
  */
+import type { WalkQuestion } from '@/lib/api/walk-through';
 import type { NeedsInfoItem } from '@/lib/rules/result-types';
-import { mergeNeeds, questionKeyOfFact, toolOfFact, type WalkQuestion } from '@/lib/walk/model';
+import { mergeNeeds, questionKeyOfFact, toolOfFact } from '@/lib/walk/model';
 
 export interface CheckTarget {
   id: string;

@@ -2,15 +2,16 @@
  * The auditor's walk-through of one gate: the pinned ruleset version's questions grouped by
  * walk section in the order one walks a gate, each with its answer, note and photos; the
  * gate-and-site facts, entrapment protection, force traces and swing geometry where they
- * belong; autosave through the device outbox; the live result and Submit.
+ * belong; autosave through the device's edit queue; the live result and Submit.
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import { QueryClient, QueryClientProvider, useMutation } from '@tanstack/react-query';
 import { lazy, Suspense, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { AssessmentStatus } from '@/lib/api/assessments';
 import type { ScoreResult } from '@/lib/rules/result-types';
 import type { UnitSystem } from '@/lib/units';
-import { submitAssessment, type Problem } from '@/lib/walk/api';
-import type { WalkDocuments } from '@/lib/walk/documents';
+import { submitAssessment } from '@/lib/api/client';
+import { offlineProblem, type Problem } from '@/lib/api/problem';
 import {
   groupBySection,
   isAnswered,
@@ -18,10 +19,8 @@ import {
   questionKeyOfFact,
   questionsToShow,
   toolOfFact,
-  type WalkGate,
-  type WalkRuleset,
 } from '@/lib/walk/model';
-import type { PhotoRecord, TraceRecord } from '@/lib/walk/records';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 import { ConflictDialog } from './ConflictDialog';
 import { WalkActionsContext, type WalkActions } from './context';
 import { EntrapmentCard } from './EntrapmentCard';
@@ -43,7 +42,7 @@ const SwingGeometryPanel = lazy(() => import('./SwingGeometryPanel'));
 
 export interface WalkThroughProps {
   assessment: { id: string; status: AssessmentStatus; rowVersion: number; result: ScoreResult | null };
-  documents: WalkDocuments;
+  draft: WalkDraft;
   gate: WalkGate;
   ruleset: WalkRuleset;
   photos: PhotoRecord[];
@@ -73,7 +72,7 @@ function ToolSlot({ children, mounted }: { children: React.ReactNode; mounted: b
 
 function WalkApp({
   assessment,
-  documents,
+  draft,
   gate,
   ruleset,
   photos,
@@ -86,7 +85,7 @@ function WalkApp({
     id: assessment.id,
     rowVersion: assessment.rowVersion,
     status: assessment.status,
-    documents,
+    draft,
     photos,
     traces,
   });
@@ -167,8 +166,7 @@ function WalkApp({
       setSubmitted((answer.value.result as ScoreResult | null) ?? null);
       window.scrollTo({ top: 0 });
     },
-    onError: () =>
-      setSubmitProblem({ status: 0, detail: 'No connection: try again when the signal is back.' }),
+    onError: () => setSubmitProblem(offlineProblem()),
   });
   const submitBlocked =
     state.phase === 'conflict'

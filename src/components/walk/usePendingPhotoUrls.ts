@@ -1,8 +1,8 @@
 /** Object URLs for photos still waiting on the device, so they show before they are uploaded. */
 import { useEffect, useRef, useState } from 'react';
-import { photoBlob, type OutboxOp } from '@/lib/walk/outbox';
+import { photoBlob, type QueuedEdit } from '@/lib/walk/edit-queue';
 
-export function usePendingPhotoUrls(pending: readonly OutboxOp[]): Record<string, string> {
+export function usePendingPhotoUrls(pending: readonly QueuedEdit[]): Record<string, string> {
   const known = useRef(new Map<string, string>());
   const [urls, setUrls] = useState<Record<string, string>>({});
   const refs = pending.flatMap((op) => (op.kind === 'photo' ? [op.clientRef] : [])).join(',');

@@ -3,12 +3,12 @@
  * pinned ruleset version, a moment after the last change, while online. The previous result
  * stays on screen while the next one is worked out (and while offline, marked as such).
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { useEffect, useMemo, useState } from 'react';
 import type { ScoreResult } from '@/lib/rules/result-types';
-import { scorePreview, type Problem } from '@/lib/walk/api';
-import type { WalkDocuments } from '@/lib/walk/documents';
-import type { WalkGate, WalkRuleset } from '@/lib/walk/model';
+import { scorePreview } from '@/lib/api/client';
+import type { Problem } from '@/lib/api/problem';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
 const SETTLE_MS = 700;
@@ -29,13 +29,8 @@ export interface Preview {
   stale: boolean;
 }
 
-export function usePreview(
-  gate: WalkGate,
-  documents: WalkDocuments,
-  ruleset: WalkRuleset,
-  online: boolean,
-): Preview {
-  const { input, blockers } = useMemo(() => buildPreviewInput(gate, documents), [gate, documents]);
+export function usePreview(gate: WalkGate, draft: WalkDraft, ruleset: WalkRuleset, online: boolean): Preview {
+  const { input, blockers } = useMemo(() => buildPreviewInput(gate, draft), [gate, draft]);
   // Key order follows whoever wrote the document last; the same answers must be the same request.
   const body = useMemo(
     () => stableJson({ family: ruleset.family, version: ruleset.version, input }),

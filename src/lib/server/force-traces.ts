@@ -10,7 +10,7 @@ import {
   parseForceTraceCsv,
   type ForceTraceResult,
 } from '@/lib/rules/calculators/force-trace';
-import type { TraceLocation, TraceRecord } from '@/lib/walk/records';
+import type { TraceLocation, TraceRecord } from '@/lib/api/uploads';
 import { assertEditable, getAssessment } from './assessments';
 import { db } from './db';
 import { HttpProblem } from './http/problem';

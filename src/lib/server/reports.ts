@@ -6,7 +6,7 @@
  * re-scored and nothing is read from the live gate, site or client rows: a later edit of those
  * belongs to the next assessment.
  */
-import type { EnteredMeasurement } from '@/lib/measure-display';
+import type { EnteredMeasurement } from '@/lib/vocabulary';
 import type { Knex } from 'knex';
 import { db } from './db';
 import { loadFrozenAssessment, type ScoredRecord } from './assessments';

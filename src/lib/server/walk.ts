@@ -1,14 +1,13 @@
 /**
  * Everything the walk-through page needs for one assessment, read once on the server: the
- * draft and its documents, the gate as it stands (with its site's usage class), the pinned
+ * draft (its answers, measurements and observations), the gate as it stands (with its site's usage class), the pinned
  * ruleset version's sections, areas and questions (not its rules: the island never needs
  * them), the photos and force traces, and whether this viewer may edit.
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import type { Assessment } from '@/lib/api/assessments';
 import type { ScoreResult } from '@/lib/rules/result-types';
-import type { WalkDocuments } from '@/lib/walk/documents';
-import type { WalkGate, WalkRuleset } from '@/lib/walk/model';
-import type { PhotoRecord, TraceRecord } from '@/lib/walk/records';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 import { getAssessment } from './assessments';
 import { listTraces } from './force-traces';
 import { getGate } from './gates';
@@ -18,7 +17,7 @@ import type { SessionUser } from './session-user';
 
 export interface WalkPageData {
   assessment: Assessment;
-  documents: WalkDocuments;
+  draft: WalkDraft;
   gate: WalkGate;
   ruleset: WalkRuleset;
   photos: PhotoRecord[];
@@ -76,10 +75,10 @@ export async function loadWalk(viewer: SessionUser, assessmentId: string): Promi
     (viewer.role !== 'auditor' || assessment.auditor.id === viewer.id);
   return {
     assessment,
-    documents: {
+    draft: {
       answers: assessment.answers,
-      measurements: assessment.measurements as WalkDocuments['measurements'],
-      observations: assessment.observations as WalkDocuments['observations'],
+      measurements: assessment.measurements as WalkDraft['measurements'],
+      observations: assessment.observations as WalkDraft['observations'],
     },
     gate: {
       id: gate.id,

@@ -3,9 +3,9 @@
  * measurement. "2-1/4", "2 1/4" and "1/2" are inches as the tape reads; "12,5" is a decimal
  * comma. The canonical value is worked out by the same code the engine uses.
  */
+import type { MeasurementValue } from '@/lib/api/walk-through';
 import { canonicalValue, type MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
-import type { MeasurementValue } from './documents';
 
 const FRACTION = /^([+-]?\d+)?(?:[\s-]+)?(\d+)\/(\d+)$/;
 const DECIMAL = /^[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)$/;

@@ -3,65 +3,20 @@
  * to show for this gate right now (kind, `askWhen`), grouped by walk section in the order one
  * walks a gate, and which ones still need information.
  */
-import type { Gate } from '@/lib/api/gates';
 import { compileLogic, truthy, type CompiledLogic } from '@/lib/rules/json-logic-compile';
-import type { AnswerType, RulesetQuestion } from '@/lib/rules/ruleset-schema';
-import type { HazardArea, WalkSection } from '@/lib/rules/vocabulary';
-import type { WalkDocuments } from './documents';
-
-export type WalkQuestion = Pick<
-  RulesetQuestion,
-  | 'key'
-  | 'section'
-  | 'area'
-  | 'prompt'
-  | 'whyItMatters'
-  | 'answerType'
-  | 'options'
-  | 'askWhen'
-  | 'gateKinds'
-  | 'entryUnits'
->;
-
-export interface WalkRuleset {
-  family: string;
-  version: string;
-  title: string;
-  sections: { key: WalkSection; title: string }[];
-  areas: { key: HazardArea; title: string; description: string }[];
-  questions: WalkQuestion[];
-}
-
-export type WalkGate = Pick<
-  Gate,
-  | 'id'
-  | 'label'
-  | 'kind'
-  | 'leaves'
-  | 'openingDirection'
-  | 'widthMm'
-  | 'heightMm'
-  | 'weightKg'
-  | 'entered'
-  | 'operator'
-> & {
-  usageClass: number;
-};
-
-export interface WalkPlace {
-  clientName: string;
-  siteLabel: string;
-}
+import type { AnswerType } from '@/lib/rules/ruleset-schema';
+import type { WalkDraft, WalkGate, WalkQuestion, WalkRuleset } from '@/lib/api/walk-through';
+import type { WalkSection } from '@/lib/rules/vocabulary';
 
 export const isMeasured = (type: AnswerType): boolean =>
   !['yes_no_na', 'choice', 'date', 'text'].includes(type);
 
 /** The facts `askWhen` may read that the device knows: the gate, the site, answers and measurements. */
-export function visibilityFacts(gate: WalkGate, documents: WalkDocuments): Record<string, unknown> {
+export function visibilityFacts(gate: WalkGate, draft: WalkDraft): Record<string, unknown> {
   const answers: Record<string, string> = {};
-  for (const [key, entry] of Object.entries(documents.answers)) answers[key] = entry.value;
+  for (const [key, entry] of Object.entries(draft.answers)) answers[key] = entry.value;
   const m: Record<string, number> = {};
-  for (const [key, entry] of Object.entries(documents.measurements)) m[key] = entry.canonical;
+  for (const [key, entry] of Object.entries(draft.measurements)) m[key] = entry.canonical;
   return {
     profile: {
       kind: gate.kind,
@@ -74,7 +29,7 @@ export function visibilityFacts(gate: WalkGate, documents: WalkDocuments): Recor
       leafHeightMm: gate.heightMm,
       leafWeightKg: gate.weightKg,
     },
-    site: documents.observations.site ?? {},
+    site: draft.observations.site ?? {},
     answers,
     m,
     calc: {},
@@ -84,12 +39,8 @@ export function visibilityFacts(gate: WalkGate, documents: WalkDocuments): Recor
 const compiled = new Map<string, CompiledLogic>();
 
 /** Questions asked for this gate now, in the version's section order then file order. */
-export function questionsToShow(
-  ruleset: WalkRuleset,
-  gate: WalkGate,
-  documents: WalkDocuments,
-): WalkQuestion[] {
-  const facts = visibilityFacts(gate, documents);
+export function questionsToShow(ruleset: WalkRuleset, gate: WalkGate, draft: WalkDraft): WalkQuestion[] {
+  const facts = visibilityFacts(gate, draft);
   const rank = new Map(ruleset.sections.map((s, i) => [s.key, i]));
   return ruleset.questions
     .map((q, i) => ({ q, i }))
@@ -132,10 +83,10 @@ export function groupBySection(
     .filter((group) => group.questions.length > 0 || alwaysShow.has(group.key));
 }
 
-export function isAnswered(question: WalkQuestion, documents: WalkDocuments): boolean {
+export function isAnswered(question: WalkQuestion, draft: WalkDraft): boolean {
   return isMeasured(question.answerType)
-    ? documents.measurements[question.key] !== undefined
-    : Boolean(documents.answers[question.key]?.value);
+    ? draft.measurements[question.key] !== undefined
+    : Boolean(draft.answers[question.key]?.value);
 }
 
 /** The question a missing fact (`answers.x`, `m.x`) points at, if it is one. */

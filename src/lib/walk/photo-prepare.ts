@@ -7,7 +7,7 @@
  */
 import imageCompression from 'browser-image-compression';
 import { readCameraFacts } from './photo-exif';
-import { UPLOAD_JPEG_QUALITY, UPLOAD_LONG_SIDE_PX } from './records';
+import { UPLOAD_JPEG_QUALITY, UPLOAD_LONG_SIDE_PX } from '@/lib/api/uploads';
 
 export interface PreparedPhoto {
   /** What is uploaded: the reduced copy, or the camera's file when reducing does not make it smaller. */

@@ -5,8 +5,7 @@
  */
 import { assembleInput, type StoredDocuments } from '@/lib/rules/assemble-input';
 import type { AssessmentInput } from '@/lib/rules/input';
-import type { WalkDocuments } from './documents';
-import type { WalkGate } from './model';
+import type { WalkDraft, WalkGate } from '@/lib/api/walk-through';
 
 export interface PreviewInput {
   input: AssessmentInput;
@@ -29,7 +28,7 @@ const BLOCKER_WORDS: Readonly<Record<string, string>> = {
   'site.usageClass': 'Say how the site is used (its usage class, on the site).',
 };
 
-export function buildPreviewInput(gate: WalkGate, documents: WalkDocuments): PreviewInput {
-  const { input, missing } = assembleInput(gate, documents as unknown as StoredDocuments);
+export function buildPreviewInput(gate: WalkGate, draft: WalkDraft): PreviewInput {
+  const { input, missing } = assembleInput(gate, draft as unknown as StoredDocuments);
   return { input, blockers: missing.map((m) => BLOCKER_WORDS[m.field] ?? `${m.field}: ${m.message}`) };
 }

@@ -1,39 +1,34 @@
 /**
  * Keeps one assessment's edits flowing from the device to the server: every edit goes to the
- * IndexedDB outbox first, is shown at once, and is sent in the order it was made whenever the
+ * IndexedDB edit queue first, is shown at once, and is sent in the order it was made whenever the
  * server can be reached. A newer server copy is merged when nobody else touched the same
  * fields; when they did, sending stops and the auditor picks, field by field, which value
  * stays. Framework-free: the React side subscribes (useSyncExternalStore) and supplies the
  * sender (a react-query mutation).
  */
+import type { WalkDraft } from '@/lib/api/walk-through';
 import type { Assessment } from '@/lib/api/assessments';
+import * as api from '@/lib/api/client';
+import { OfflineError, type ApiResult, type UploadProgress } from '@/lib/api/client';
+import type { Problem } from '@/lib/api/problem';
+import type { PhotoRecord, TraceRecord } from '@/lib/api/uploads';
 import {
-  OfflineError,
-  type Answer,
-  type PhotoRecord,
-  type Problem,
-  type TraceRecord,
-  type UploadProgress,
-} from './api';
-import * as api from './api';
-import {
-  applyDocumentsPatch,
-  asDocuments,
+  applyDraftPatch,
+  asDraft,
   changedFields,
   findConflicts,
   toJson,
   withoutField,
   type FieldConflict,
-  type WalkDocuments,
-} from './documents';
+} from './draft';
 import { composeMergePatches, type JsonObject } from './merge-patch';
-import * as outbox from './outbox';
-import type { OutboxOp, OutboxOpBody, PhotoSource } from './outbox';
+import * as editQueue from './edit-queue';
+import type { QueuedEdit, QueuedEditBody, PhotoSource } from './edit-queue';
 
 /**
  * One request the sync loop makes; the React side runs these through a react-query mutation.
  * A create (photo, trace) carries the `Idempotency-Key` of its queued edit: the edit's own
- * device id, stored with it in the outbox, so every retry of one edit sends the same key and
+ * device id, stored with it in the edit queue, so every retry of one edit sends the same key and
  * a retry after a lost answer never makes a second row.
  */
 export type SendJob =
@@ -54,11 +49,11 @@ export type SendJob =
       kind: 'trace';
       assessmentId: string;
       idempotencyKey: string;
-      op: Extract<OutboxOpBody, { kind: 'trace' }>;
+      op: Extract<QueuedEditBody, { kind: 'trace' }>;
     }
   | { kind: 'removePhoto' | 'removeTrace'; assessmentId: string; serverId: string };
 
-export type Sender = (job: SendJob) => Promise<Answer<unknown>>;
+export type Sender = (job: SendJob) => Promise<ApiResult<unknown>>;
 
 /** Calls the API directly; the default when no mutation is supplied. */
 export const sendDirect: Sender = (job) => {
@@ -98,10 +93,10 @@ export interface SyncState {
   rowVersion: number;
   status: Assessment['status'];
   /** The last copy the server confirmed. */
-  server: WalkDocuments;
+  server: WalkDraft;
   /** What the auditor sees: the server copy with every waiting edit applied. */
-  view: WalkDocuments;
-  pending: OutboxOp[];
+  view: WalkDraft;
+  pending: QueuedEdit[];
   /** Fields (answers, measurements, observation parts) and files waiting to be sent. */
   pendingCount: number;
   photos: PhotoRecord[];
@@ -118,7 +113,7 @@ export interface InitialAssessment {
   id: string;
   rowVersion: number;
   status: Assessment['status'];
-  documents: WalkDocuments;
+  draft: WalkDraft;
   photos: PhotoRecord[];
   traces: TraceRecord[];
 }
@@ -133,7 +128,7 @@ function describeProblem(problem: Problem): string {
     .join(' — ');
 }
 
-function whatOf(op: OutboxOp): string {
+function whatOf(op: QueuedEdit): string {
   if (op.kind === 'patch')
     return changedFields(op.patch)
       .map((f) => f.slice(1).join('.'))
@@ -169,8 +164,8 @@ export class WalkSync {
       online: true,
       rowVersion: initial.rowVersion,
       status: initial.status,
-      server: initial.documents,
-      view: initial.documents,
+      server: initial.draft,
+      view: initial.draft,
       pending: [],
       pendingCount: 0,
       photos: initial.photos,
@@ -212,21 +207,21 @@ export class WalkSync {
   async start(): Promise<void> {
     await this.serial(async () => {
       const [snapshot, pending] = await Promise.all([
-        outbox.loadSnapshot(this.initial.id),
-        outbox.pendingOps(this.initial.id),
+        editQueue.loadSnapshot(this.initial.id),
+        editQueue.pendingOps(this.initial.id),
       ]);
       const initialSnapshot = {
         assessmentId: this.initial.id,
         rowVersion: this.initial.rowVersion,
-        documents: toJson(this.initial.documents),
+        documents: toJson(this.initial.draft),
         savedAt: new Date().toISOString(),
       };
       const base =
         snapshot && (pending.length > 0 || snapshot.rowVersion > this.initial.rowVersion)
           ? snapshot
           : initialSnapshot;
-      if (base === initialSnapshot) await outbox.saveSnapshot(initialSnapshot);
-      this.applyBase(base.rowVersion, asDocuments(base.documents), pending);
+      if (base === initialSnapshot) await editQueue.saveSnapshot(initialSnapshot);
+      this.applyBase(base.rowVersion, asDraft(base.documents), pending);
     });
     if (typeof window !== 'undefined') {
       window.addEventListener('online', this.handleOnline);
@@ -239,9 +234,10 @@ export class WalkSync {
       for (const op of left)
         this.refuse(op, {
           status: 409,
+          errors: [],
           detail: 'The assessment was submitted before this change reached the server.',
         });
-      if (left.length) await this.serial(() => outbox.removeOps(left));
+      if (left.length) await this.serial(() => editQueue.removeOps(left));
       this.set({ phase: 'closed', online, pending: [], pendingCount: 0, view: this.state.server });
       return;
     }
@@ -268,9 +264,9 @@ export class WalkSync {
     this.set({ online: false, phase: open && this.state.pending.length ? 'waiting' : this.state.phase });
   };
 
-  private applyBase(rowVersion: number, server: WalkDocuments, pending: OutboxOp[]): void {
+  private applyBase(rowVersion: number, server: WalkDraft, pending: QueuedEdit[]): void {
     const patches = pending
-      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .filter((op): op is QueuedEdit & { kind: 'patch' } => op.kind === 'patch')
       .map((op) => op.patch);
     const pendingCount =
       new Set(patches.flatMap(changedFields).map((f) => f.join('.'))).size +
@@ -278,30 +274,30 @@ export class WalkSync {
     this.set({
       rowVersion,
       server,
-      view: patches.reduce(applyDocumentsPatch, server),
+      view: patches.reduce(applyDraftPatch, server),
       pending,
       pendingCount,
     });
   }
 
   private async reloadPending(): Promise<void> {
-    this.applyBase(this.state.rowVersion, this.state.server, await outbox.pendingOps(this.initial.id));
+    this.applyBase(this.state.rowVersion, this.state.server, await editQueue.pendingOps(this.initial.id));
   }
 
-  /** Records an edit of the documents (a merge patch), shows it at once and schedules sending. */
+  /** Records an edit of the draft (a merge patch), shows it at once and schedules sending. */
   edit(patch: JsonObject): Promise<void> {
     if (this.state.status !== 'draft') return Promise.resolve();
     // Shown before IndexedDB answers, so typing never lags.
-    this.set({ view: applyDocumentsPatch(this.state.view, patch) });
+    this.set({ view: applyDraftPatch(this.state.view, patch) });
     return this.serial(async () => {
-      const pending = await outbox.pendingOps(this.initial.id);
+      const pending = await editQueue.pendingOps(this.initial.id);
       const last = pending[pending.length - 1];
       const folded =
         last?.kind === 'patch' && !this.inFlight.has(last.seq)
           ? composeMergePatches(last.patch, patch)
           : null;
-      if (last?.kind === 'patch' && folded) await outbox.replaceOp({ ...last, patch: folded });
-      else await outbox.enqueue(this.initial.id, { kind: 'patch', patch });
+      if (last?.kind === 'patch' && folded) await editQueue.replaceOp({ ...last, patch: folded });
+      else await editQueue.enqueue(this.initial.id, { kind: 'patch', patch });
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush();
@@ -320,16 +316,16 @@ export class WalkSync {
     blob: Blob,
   ): Promise<void> {
     return this.serial(async () => {
-      await outbox.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
+      await editQueue.enqueue(this.initial.id, { kind: 'photo', ...photo }, blob);
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush(0);
     });
   }
 
-  addTrace(trace: Extract<OutboxOpBody, { kind: 'trace' }>): Promise<void> {
+  addTrace(trace: Extract<QueuedEditBody, { kind: 'trace' }>): Promise<void> {
     return this.serial(async () => {
-      await outbox.enqueue(this.initial.id, trace);
+      await editQueue.enqueue(this.initial.id, trace);
       await this.reloadPending();
       this.set({ phase: this.state.phase === 'conflict' ? 'conflict' : 'waiting' });
       this.scheduleFlush(0);
@@ -346,9 +342,9 @@ export class WalkSync {
           !this.inFlight.has(op.seq),
       );
       if (waiting) {
-        await outbox.removeOps([waiting]);
+        await editQueue.removeOps([waiting]);
         this.setUpload(clientRef, null);
-      } else if (serverId) await outbox.enqueue(this.initial.id, { kind, clientRef, serverId });
+      } else if (serverId) await editQueue.enqueue(this.initial.id, { kind, clientRef, serverId });
       if (kind === 'removePhoto') this.set({ photos: this.state.photos.filter((p) => p.id !== serverId) });
       else this.set({ traces: this.state.traces.filter((t) => t.id !== serverId) });
       await this.reloadPending();
@@ -386,7 +382,7 @@ export class WalkSync {
     this.retryTimer = setTimeout(() => void this.flush(), RETRY_MS);
   }
 
-  private refuse(op: OutboxOp, problem: Problem): void {
+  private refuse(op: QueuedEdit, problem: Problem): void {
     this.refusedSeq += 1;
     this.set({
       refused: [
@@ -398,18 +394,18 @@ export class WalkSync {
 
   /** The server's copy became the base: remember it on the device too. */
   private async adopt(assessment: Assessment): Promise<void> {
-    const documents = asDocuments({
+    const draft = asDraft({
       answers: assessment.answers,
       measurements: assessment.measurements,
       observations: assessment.observations,
     } as never);
-    await outbox.saveSnapshot({
+    await editQueue.saveSnapshot({
       assessmentId: this.initial.id,
       rowVersion: assessment.rowVersion,
-      documents: toJson(documents),
+      documents: toJson(draft),
       savedAt: new Date().toISOString(),
     });
-    this.set({ status: assessment.status, server: documents, rowVersion: assessment.rowVersion });
+    this.set({ status: assessment.status, server: draft, rowVersion: assessment.rowVersion });
     this.onServerCopy(assessment);
   }
 
@@ -444,7 +440,7 @@ export class WalkSync {
     clearTimeout(this.retryTimer);
     try {
       for (;;) {
-        const pending = await this.serial(() => outbox.pendingOps(this.initial.id));
+        const pending = await this.serial(() => editQueue.pendingOps(this.initial.id));
         this.applyBase(this.state.rowVersion, this.state.server, pending);
         const head = pending[0];
         if (!head) {
@@ -472,12 +468,12 @@ export class WalkSync {
     }
   }
 
-  private drop(ops: OutboxOp[]): Promise<void> {
-    return this.serial(() => outbox.removeOps(ops));
+  private drop(ops: QueuedEdit[]): Promise<void> {
+    return this.serial(() => editQueue.removeOps(ops));
   }
 
   /** Sends the first waiting edit (with the patches right after it folded in); false stops the loop. */
-  private async send(head: OutboxOp, pending: OutboxOp[]): Promise<boolean> {
+  private async send(head: QueuedEdit, pending: QueuedEdit[]): Promise<boolean> {
     const id = this.initial.id;
     if (head.kind === 'patch') {
       const batch = [head];
@@ -508,9 +504,9 @@ export class WalkSync {
       return true;
     }
     this.inFlight.add(head.seq);
-    let result: Answer<unknown>;
+    let result: ApiResult<unknown>;
     if (head.kind === 'photo') {
-      const blob = await outbox.photoBlob(head.clientRef);
+      const blob = await editQueue.photoBlob(head.clientRef);
       if (!blob) {
         await this.drop([head]);
         return true;
@@ -591,14 +587,14 @@ export class WalkSync {
 
   private async handleConflict(current: Assessment): Promise<boolean> {
     if (current.status !== 'draft') return this.close(current);
-    const theirs = asDocuments({
+    const theirs = asDraft({
       answers: current.answers,
       measurements: current.measurements,
       observations: current.observations,
     } as never);
-    const pending = await this.serial(() => outbox.pendingOps(this.initial.id));
+    const pending = await this.serial(() => editQueue.pendingOps(this.initial.id));
     const patches = pending
-      .filter((op): op is OutboxOp & { kind: 'patch' } => op.kind === 'patch')
+      .filter((op): op is QueuedEdit & { kind: 'patch' } => op.kind === 'patch')
       .map((op) => op.patch);
     const conflicts = findConflicts(this.state.server, theirs, patches);
     if (conflicts.length === 0) {
@@ -619,15 +615,15 @@ export class WalkSync {
     const theirs = this.theirs;
     if (!theirs) return Promise.resolve();
     return this.serial(async () => {
-      const pending = await outbox.pendingOps(this.initial.id);
+      const pending = await editQueue.pendingOps(this.initial.id);
       for (const op of pending) {
         if (op.kind !== 'patch') continue;
         let patch = op.patch;
         for (const conflict of this.state.conflicts) {
           if (choices.get(conflict.field.join('.')) === 'theirs') patch = withoutField(patch, conflict.field);
         }
-        if (Object.keys(patch).length === 0) await outbox.removeOps([op]);
-        else if (patch !== op.patch) await outbox.replaceOp({ ...op, patch });
+        if (Object.keys(patch).length === 0) await editQueue.removeOps([op]);
+        else if (patch !== op.patch) await editQueue.replaceOp({ ...op, patch });
       }
       this.theirs = null;
       await this.adopt(theirs);

@@ -19,7 +19,7 @@ describe('signing e-mails', () => {
     expect(mail.subject).toBe('Please read and sign: gate safety report for Driveway gate');
     expect(mail.text).toContain(input.link);
     expect(mail.text).toContain('Verdict: Fix by a date.');
-    expect(mail.text).toContain('expires on December 16, 2026');
+    expect(mail.text).toContain('expires on Dec 16, 2026, 5:00 AM MST');
   });
 
   it('escapes names in the HTML part', () => {

@@ -1,6 +1,6 @@
 /** A rule's condition and thresholds in plain words, in the organisation's unit system. */
 import { describe, expect, it } from 'vitest';
-import { describeCondition, factName, formatParam, keyWords } from '@/lib/ruleset-words';
+import { describeCondition, factName, formatParam, keyWords } from '@/lib/vocabulary';
 
 describe('formatParam', () => {
   it('shows a length in mm to a metric organisation and in feet and inches to an imperial one', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { bandEdgesSentence, bandRows, reinspectionLines, scoringLines } from '@/components/rulesets/scoring-words';
+import { bandEdgesSentence, bandRows, reinspectionLines, scoringLines } from '@/lib/vocabulary';
 import { shipped } from '../rules/support/shipped';
 
 describe('the ruleset page says how bands, areas and re-inspection work', () => {

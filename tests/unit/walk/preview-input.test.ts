@@ -3,17 +3,11 @@
  * server uses at submit (no zod); these tests hold it to the engine's own schema and scoring
  * with a shipped ruleset, so the preview and the submitted result read the same facts.
  */
+import type { WalkDraft, WalkGate, WalkRuleset } from '@/lib/api/walk-through';
 import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { AssessmentInputSchema, buildFacts, loadRulesetFile, score, type RulesetVersion } from '@/lib/rules';
-import type { WalkDocuments } from '@/lib/walk/documents';
-import {
-  groupBySection,
-  mergeNeeds,
-  questionsToShow,
-  type WalkGate,
-  type WalkRuleset,
-} from '@/lib/walk/model';
+import { groupBySection, mergeNeeds, questionsToShow } from '@/lib/walk/model';
 import { buildEngineInput } from '@/lib/server/assessment-input';
 import { buildPreviewInput } from '@/lib/walk/score-input';
 
@@ -64,7 +58,7 @@ describe('the live preview input', () => {
   });
 
   it('hands over the stored answers as one map, keeps the gate as measured, and parses with the engine’s schema', () => {
-    const documents: WalkDocuments = {
+    const documents: WalkDraft = {
       answers: {
         hingeSideGuarded: { value: 'yes', note: 'mesh guard' },
         wireGaugeAwg: { value: 'awg12' },
@@ -108,7 +102,7 @@ describe('the live preview input', () => {
 });
 
 describe('which questions the walk shows', () => {
-  const empty: WalkDocuments = { answers: {}, measurements: {}, observations: {} };
+  const empty: WalkDraft = { answers: {}, measurements: {}, observations: {} };
 
   it('asks a follow-up only once its trigger is answered', () => {
     expect(questionsToShow(ruleset, gate, empty).map((q) => q.key)).not.toContain('barbedTapeHeightMm');

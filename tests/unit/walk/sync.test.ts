@@ -1,13 +1,13 @@
 /**
- * The device outbox and its sync loop against a fake server, with IndexedDB from
+ * The device's edit queue and its sync loop against a fake server, with IndexedDB from
  * fake-indexeddb: order, folding, offline and reload, conflicts, refusals.
  */
 import 'fake-indexeddb/auto';
 import { describe, expect, it } from 'vitest';
 import type { Assessment } from '@/lib/api/assessments';
 import { applyMergePatch } from '@/lib/merge-patch';
-import { OfflineError, type Answer } from '@/lib/walk/api';
-import { emptyDocuments } from '@/lib/walk/documents';
+import { OfflineError, type ApiResult } from '@/lib/api/client';
+import { emptyDraft } from '@/lib/walk/draft';
 import type { JsonObject } from '@/lib/walk/merge-patch';
 import { WalkSync, type SendJob } from '@/lib/walk/sync';
 
@@ -26,7 +26,7 @@ function fakeServer() {
   const calls: SendJob[] = [];
   const state = { offline: false, refuseNext: false };
   const current = () => ({ ...structuredClone(row) }) as unknown as Assessment;
-  const send = async (job: SendJob): Promise<Answer<unknown>> => {
+  const send = async (job: SendJob): Promise<ApiResult<unknown>> => {
     calls.push(job);
     if (state.offline) throw new OfflineError();
     if (job.kind === 'patch') {
@@ -42,7 +42,7 @@ function fakeServer() {
         };
       }
       if (job.rowVersion !== row.rowVersion)
-        return { ok: false, problem: { status: 409, current: current() } };
+        return { ok: false, problem: { status: 409, errors: [], current: current() } };
       row.answers = applyMergePatch(row.answers, job.patch.answers ?? {}) as JsonObject;
       row.observations = applyMergePatch(row.observations, job.patch.observations ?? {}) as JsonObject;
       row.rowVersion += 1;
@@ -75,7 +75,7 @@ async function open(id: string, server: ReturnType<typeof fakeServer>, rowVersio
     id,
     rowVersion,
     status: 'draft',
-    documents: emptyDocuments(),
+    draft: emptyDraft(),
     photos: [],
     traces: [],
   });
@@ -87,7 +87,7 @@ async function open(id: string, server: ReturnType<typeof fakeServer>, rowVersio
 const patches = (calls: SendJob[]) =>
   calls.filter((c): c is Extract<SendJob, { kind: 'patch' }> => c.kind === 'patch');
 
-describe('the device outbox', () => {
+describe("the device's edit queue", () => {
   it('sends edits made in a row as one save, over the row version it read', async () => {
     const server = fakeServer();
     const sync = await open(newId(), server);
@@ -229,7 +229,7 @@ describe('the device outbox', () => {
       id,
       rowVersion: 3,
       status: 'scored',
-      documents: emptyDocuments(),
+      draft: emptyDraft(),
       photos: [],
       traces: [],
     });
@@ -249,7 +249,7 @@ describe('the device outbox', () => {
   });
 });
 
-describe('creates from the device outbox', () => {
+describe("creates from the device's edit queue", () => {
   const traceOp = (clientRef: string) => ({
     kind: 'trace' as const,
     clientRef,

@@ -15,8 +15,9 @@ import {
   type ReportPhoto,
   type StoredFinding,
 } from './report-model';
+import { SEVERITY_LABEL } from '@/lib/vocabulary';
 import { styles } from './styles';
-import { formatAsEntered, formatLimit } from '@/lib/measure-display';
+import { formatAsEntered, formatLimit } from '@/lib/vocabulary';
 import { colours, severityColour, verdictColour } from './theme';
 import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
 
@@ -375,7 +376,7 @@ function FindingCard({
           <View style={styles.findingHead}>
             <Text style={[styles.h3, { flex: 1 }]}>{pdfText(finding.title)}</Text>
             <Text style={[styles.pill, { backgroundColor: severityColour[finding.severity] }]}>
-              {finding.severity}
+              {SEVERITY_LABEL[finding.severity]}
             </Text>
           </View>
           <Text style={[styles.small, styles.muted, { marginBottom: 3 }]}>

@@ -8,7 +8,7 @@
  */
 import type { CertificateFacts } from './certificate-facts';
 import { VERDICT_WORDS } from '@/lib/vocabulary';
-import type { EnteredMeasurement } from '@/lib/measure-display';
+import type { EnteredMeasurement } from '@/lib/vocabulary';
 import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
 import { ConflictError, CorruptRecordError } from '../errors';
 
@@ -227,25 +227,22 @@ export function buildReportModel(source: ReportSource): ReportModel {
   };
 }
 
-/** The verdict in plain words, for the owner as much as the office. */
+/** The verdict in plain words, for the owner as much as the office (the vocabulary's words). */
 export const verdictWords: Record<Verdict, { label: string; headline: string; meaning: string }> = {
   clear: {
     label: VERDICT_WORDS.clear.label,
-    headline: 'No hazard above minor was found.',
-    meaning:
-      'The gate met every check that matters for safety on the day of the visit. Keep it maintained and have it checked again at the next due date.',
+    headline: VERDICT_WORDS.clear.headline,
+    meaning: VERDICT_WORDS.clear.owner,
   },
   remedy: {
     label: VERDICT_WORDS.remedy.label,
-    headline: 'Hazards were found that must be fixed.',
-    meaning:
-      'The gate may stay in use while the fixes listed below are arranged, following the cautions in this report. Agree a date for the work with your installer.',
+    headline: VERDICT_WORDS.remedy.headline,
+    meaning: VERDICT_WORDS.remedy.owner,
   },
   withdraw: {
     label: VERDICT_WORDS.withdraw.label,
-    headline: 'At least one critical hazard was found.',
-    meaning:
-      'Stop automatic operation now (switch the operator off or to manual release) and keep it off until the critical fixes below are done and checked.',
+    headline: VERDICT_WORDS.withdraw.headline,
+    meaning: VERDICT_WORDS.withdraw.owner,
   },
 };
 

@@ -2,7 +2,8 @@
  * Small formatting helpers for the report: plain text safe for the embedded fonts, dates in
  * the organisation's time zone, measured values in its unit system.
  */
-import { formatAsEntered, formatCanonical, type EnteredMeasurement } from '@/lib/measure-display';
+import { formatAsEntered, formatCanonical, type EnteredMeasurement } from '@/lib/vocabulary';
+import { formatLongDate, formatLongDateTime } from '@/lib/vocabulary';
 
 /** Glyphs Noto Sans' Latin subsets lack, spelled out so nothing prints as a blank box. */
 const replacements: Array<[RegExp, string]> = [
@@ -23,39 +24,14 @@ export function pdfText(value: unknown): string {
   return text.replace(/[\u0000-\u0009\u000b-\u001f\u007f]/g, '');
 }
 
+/** A date in the report: the vocabulary's long date, in the organisation's zone ("-" when none). */
 export function formatDate(value: Date | string | null | undefined, timeZone: string): string {
-  if (!value) return '-';
-  const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat('en-US', {
-    timeZone: safeZone(timeZone),
-    year: 'numeric',
-    month: 'long',
-    day: 'numeric',
-  }).format(date);
+  return value ? formatLongDate(value, timeZone) : '-';
 }
 
+/** A moment in the report, to the second, with the zone ("-" when none). */
 export function formatDateTime(value: Date | string | null | undefined, timeZone: string): string {
-  if (!value) return '-';
-  const date = value instanceof Date ? value : new Date(value);
-  return new Intl.DateTimeFormat('en-US', {
-    timeZone: safeZone(timeZone),
-    year: 'numeric',
-    month: 'short',
-    day: 'numeric',
-    hour: '2-digit',
-    minute: '2-digit',
-    second: '2-digit',
-    timeZoneName: 'short',
-  }).format(date);
-}
-
-function safeZone(zone: string): string {
-  try {
-    new Intl.DateTimeFormat('en-US', { timeZone: zone });
-    return zone;
-  } catch {
-    return 'UTC';
-  }
+  return value ? formatLongDateTime(value, timeZone) : '-';
 }
 
 /**

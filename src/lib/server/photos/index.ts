@@ -4,7 +4,7 @@
  * retry after a dropped connection) is stored once, found again by the device's own id.
  */
 import type { Knex } from 'knex';
-import type { PhotoRecord } from '@/lib/walk/records';
+import type { PhotoRecord } from '@/lib/api/uploads';
 import { assertEditable, getAssessment } from '../assessments';
 import { db } from '../db';
 import { HttpProblem } from '../http/problem';

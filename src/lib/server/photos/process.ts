@@ -7,10 +7,10 @@
 import exifReader from 'exif-reader';
 import { fileTypeFromBuffer } from 'file-type';
 import sharp, { type Metadata } from 'sharp';
-import { MAX_PHOTO_BYTES, megabytes } from '@/lib/walk/records';
+import { MAX_PHOTO_BYTES, megabytes } from '@/lib/api/uploads';
 import { HttpProblem } from '../http/problem';
 
-export { MAX_PHOTO_BYTES } from '@/lib/walk/records';
+export { MAX_PHOTO_BYTES } from '@/lib/api/uploads';
 /** Longest side of the display size, px: sharp on a report page and a tablet. */
 export const DISPLAY_LONG_SIDE_PX = 1600;
 /** Longest side of the thumbnail, px: the walk-through's photo strip. */

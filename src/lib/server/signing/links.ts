@@ -97,6 +97,8 @@ export interface SignPageView {
   cautions: ReportCaution[];
   documentSha256: string;
   expiresAt: string;
+  /** The organisation's time zone, for the expiry and dates on the page. */
+  timeZone: string;
   auditorName: string;
   consentText: string;
   intentText: string;
@@ -135,6 +137,7 @@ export async function describeSignLink(
     cautions: cautionsOf(record.result),
     documentSha256: document.sha256,
     expiresAt: new Date(request.expires_at).toISOString(),
+    timeZone: frozen.timeZone,
     auditorName: record.auditor.name,
     consentText: CONSENT_TEXT,
     intentText: INTENT_TEXT,

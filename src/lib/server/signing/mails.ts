@@ -2,6 +2,7 @@
  * The e-mails of the signing flow: the link to sign, and the signed report to the signer and
  * to the office. Plain text first; the HTML part escapes every name.
  */
+import { formatDayTime } from '@/lib/vocabulary';
 import { verdictWords, type Verdict } from '../pdf/report-model';
 
 function escapeHtml(text: string): string {
@@ -9,14 +10,6 @@ function escapeHtml(text: string): string {
     /[&<>"']/g,
     (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!,
   );
-}
-
-function formatDay(date: Date, timeZone: string): string {
-  try {
-    return new Intl.DateTimeFormat('en-US', { timeZone, dateStyle: 'long' }).format(date);
-  } catch {
-    return date.toISOString().slice(0, 10);
-  }
 }
 
 /**
@@ -37,7 +30,7 @@ export function signRequestMail(input: {
   timeZone: string;
 }): { subject: string; text: string; html: string } {
   const words = verdictWords[input.verdict];
-  const until = formatDay(input.expiresAt, input.timeZone);
+  const until = formatDayTime(input.expiresAt, input.timeZone);
   const subject = `Please read and sign: gate safety report for ${input.gateLabel}`;
   const text = [
     `Hello ${input.clientName},`,

@@ -7,8 +7,8 @@ import { readBodyText } from '@/lib/server/http/body';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { uploadClientRef, replayedHeader } from '@/lib/server/http/idempotency';
 import { handle, HttpProblem, parseQuery } from '@/lib/server/http/problem';
-import { MAX_TRACE_CSV_BYTES, megabytes, TRACE_LOCATIONS } from '@/lib/walk/records';
-import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/walk/upload-fields';
+import { MAX_TRACE_CSV_BYTES, megabytes, TRACE_LOCATIONS } from '@/lib/api/uploads';
+import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/api/uploads';
 
 const what = 'That assessment';
 

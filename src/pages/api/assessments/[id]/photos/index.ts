@@ -8,7 +8,7 @@ import { uploadClientRef, replayedHeader } from '@/lib/server/http/idempotency';
 import { handle, HttpProblem, parseValue } from '@/lib/server/http/problem';
 import { addPhoto, listPhotos } from '@/lib/server/photos';
 import { MAX_PHOTO_BYTES, tooLargeProblem } from '@/lib/server/photos/process';
-import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/walk/upload-fields';
+import { CLIENT_REF_PATTERN, ITEM_KEY_PATTERN } from '@/lib/api/uploads';
 
 const what = 'That assessment';
 

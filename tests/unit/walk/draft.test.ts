@@ -1,13 +1,8 @@
+import type { WalkDraft } from '@/lib/api/walk-through';
 import { describe, expect, it } from 'vitest';
-import {
-  applyDocumentsPatch,
-  changedFields,
-  findConflicts,
-  withoutField,
-  type WalkDocuments,
-} from '@/lib/walk/documents';
+import { applyDraftPatch, changedFields, findConflicts, withoutField } from '@/lib/walk/draft';
 
-const base: WalkDocuments = {
+const base: WalkDraft = {
   answers: { hingeSideGuarded: { value: 'no', note: 'open hinge' }, latchFitted: { value: 'yes' } },
   measurements: { hingeGapMm: { value: 2, unit: 'in', canonical: 50.8, note: 'at the top' } },
   observations: { site: { publicAccess: false, slopeAcrossSwing: false } },
@@ -15,7 +10,7 @@ const base: WalkDocuments = {
 
 describe('applying an edit on the device the way the server does', () => {
   it('merges an answer (a note survives a new value) but replaces a measurement whole', () => {
-    const next = applyDocumentsPatch(base, {
+    const next = applyDraftPatch(base, {
       answers: { hingeSideGuarded: { value: 'yes' } },
       measurements: { hingeGapMm: { value: 60, unit: 'mm', canonical: 60 } },
     });
@@ -24,7 +19,7 @@ describe('applying an edit on the device the way the server does', () => {
   });
 
   it('removes a field set to null and leaves untouched entries as they were (same objects)', () => {
-    const next = applyDocumentsPatch(base, {
+    const next = applyDraftPatch(base, {
       answers: { latchFitted: null },
       measurements: { hingeGapMm: null },
     });
@@ -51,17 +46,17 @@ describe('applying an edit on the device the way the server does', () => {
 
 describe('a newer server copy against edits waiting on the device', () => {
   it('finds no conflict when the other device changed other fields', () => {
-    const theirs = applyDocumentsPatch(base, { answers: { latchFitted: { value: 'no' } } });
+    const theirs = applyDraftPatch(base, { answers: { latchFitted: { value: 'no' } } });
     expect(findConflicts(base, theirs, [{ answers: { hingeSideGuarded: { value: 'yes' } } }])).toEqual([]);
   });
 
   it('finds no conflict when both set the same value', () => {
-    const theirs = applyDocumentsPatch(base, { observations: { site: { publicAccess: true } } });
+    const theirs = applyDraftPatch(base, { observations: { site: { publicAccess: true } } });
     expect(findConflicts(base, theirs, [{ observations: { site: { publicAccess: true } } }])).toEqual([]);
   });
 
   it('reports a field both changed to different values, with the base, their value and ours', () => {
-    const theirs = applyDocumentsPatch(base, { answers: { hingeSideGuarded: { value: 'na' } } });
+    const theirs = applyDraftPatch(base, { answers: { hingeSideGuarded: { value: 'na' } } });
     const conflicts = findConflicts(base, theirs, [
       { answers: { hingeSideGuarded: { value: 'yes' } } },
       { answers: { latchFitted: { value: 'no' } } },

@@ -1,5 +1,5 @@
 /**
- * The device's copy of unsent work, in IndexedDB (through `idb`): every edit the walk-through
+ * The device's edit queue: its copy of unsent work, in IndexedDB (through `idb`): every edit the walk-through
  * makes is written here first and only removed once the server has taken it, so a dropped
  * signal, a closed tab or a reload while offline loses nothing. Edits are kept in the order
  * they were made and sent in that order.
@@ -7,7 +7,7 @@
 import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
 import type { JsonObject } from './merge-patch';
 
-/** An edit of the assessment's documents, as a JSON merge patch. */
+/** An edit of the draft (answers, measurements, observations), as a JSON merge patch. */
 export interface PatchOp {
   kind: 'patch';
   patch: JsonObject;
@@ -50,19 +50,20 @@ export interface RemoveOp {
   serverId: string | null;
 }
 
-export type OutboxOpBody = PatchOp | PhotoOp | TraceOp | RemoveOp;
-export type OutboxOp = OutboxOpBody & { seq: number; assessmentId: string; createdAt: string };
+export type QueuedEditBody = PatchOp | PhotoOp | TraceOp | RemoveOp;
+export type QueuedEdit = QueuedEditBody & { seq: number; assessmentId: string; createdAt: string };
 
 /** The last state the server confirmed: the base that queued edits apply to and conflicts are judged against. */
 export interface ServerSnapshot {
   assessmentId: string;
   rowVersion: number;
+  /** The draft as the server confirmed it (stored under this name on devices: keep it). */
   documents: JsonObject;
   savedAt: string;
 }
 
 interface WalkDb extends DBSchema {
-  ops: { key: number; value: OutboxOp; indexes: { byAssessment: string } };
+  ops: { key: number; value: QueuedEdit; indexes: { byAssessment: string } };
   blobs: { key: string; value: { clientRef: string; assessmentId: string; blob: Blob } };
   snapshots: { key: string; value: ServerSnapshot };
 }
@@ -85,32 +86,32 @@ function database(): Promise<IDBPDatabase<WalkDb>> {
 }
 
 /** Appends an edit; a photo's bytes are stored in the same transaction, so neither exists without the other. */
-export async function enqueue(assessmentId: string, body: OutboxOpBody, blob?: Blob): Promise<OutboxOp> {
+export async function enqueue(assessmentId: string, body: QueuedEditBody, blob?: Blob): Promise<QueuedEdit> {
   const db = await database();
   const tx = db.transaction(['ops', 'blobs'], 'readwrite');
-  const op = { ...body, assessmentId, createdAt: new Date().toISOString() } as Omit<OutboxOp, 'seq'>;
-  const seq = await tx.objectStore('ops').add(op as OutboxOp);
+  const op = { ...body, assessmentId, createdAt: new Date().toISOString() } as Omit<QueuedEdit, 'seq'>;
+  const seq = await tx.objectStore('ops').add(op as QueuedEdit);
   if (blob && body.kind === 'photo')
     await tx.objectStore('blobs').put({ clientRef: body.clientRef, assessmentId, blob });
   await tx.done;
-  return { ...op, seq } as OutboxOp;
+  return { ...op, seq } as QueuedEdit;
 }
 
 /** Replaces a queued edit in place (used to fold a quick run of keystrokes into one edit). */
-export async function replaceOp(op: OutboxOp): Promise<void> {
+export async function replaceOp(op: QueuedEdit): Promise<void> {
   const db = await database();
   await db.put('ops', op);
 }
 
 /** The assessment's waiting edits, oldest first. */
-export async function pendingOps(assessmentId: string): Promise<OutboxOp[]> {
+export async function pendingOps(assessmentId: string): Promise<QueuedEdit[]> {
   const db = await database();
   const ops = await db.getAllFromIndex('ops', 'byAssessment', assessmentId);
   return ops.sort((a, b) => a.seq - b.seq);
 }
 
 /** Drops edits the server has taken, and any photo bytes they carried. */
-export async function removeOps(ops: readonly OutboxOp[]): Promise<void> {
+export async function removeOps(ops: readonly QueuedEdit[]): Promise<void> {
   const db = await database();
   const tx = db.transaction(['ops', 'blobs'], 'readwrite');
   for (const op of ops) {

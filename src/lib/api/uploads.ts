@@ -1,7 +1,8 @@
 /**
- * Photos and force traces as the API returns them, and the limits the device checks before
- * sending (the server checks them again). Types and constants only: shared by the island and
- * the server without pulling either's code into the other.
+ * Photo and force-trace uploads in the API's contract: the records the API returns, the fields
+ * that travel with an upload, and the limits the device checks before sending (the server
+ * checks them again). Types and constants only: shared by the island and the server without
+ * pulling either's code into the other.
  */
 
 /** The largest photo accepted. Phone cameras write 2–8 MB; 15 MB leaves room for 48 MP shots. */
@@ -55,3 +56,9 @@ export interface TraceRecord {
   evaluation: unknown;
   createdAt: string;
 }
+
+// The fields that travel with an upload, checked the same way on the device and the server.
+
+/** A question key (`hingeGapMm`) or a walk-through tool's item (`forceTest.closing_edge`, `site`). */
+export const ITEM_KEY_PATTERN = /^[a-z][a-zA-Z0-9]{0,63}(?:\.[a-z][a-zA-Z0-9_]{0,63})?$/;
+export const CLIENT_REF_PATTERN = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;

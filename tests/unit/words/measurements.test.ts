@@ -6,7 +6,7 @@ import {
   formatLimit,
   formatSize,
   parseFeetAndInches,
-} from '@/lib/measure-display';
+} from '@/lib/vocabulary';
 
 describe('a measurement as entered', () => {
   it('keeps the unit it was measured in, never converting', () => {

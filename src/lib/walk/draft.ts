@@ -1,48 +1,31 @@
 /**
- * The three documents an assessment draft keeps (answers, measurements, observations), and
+ * A draft's three parts (answers, measurements, observations), and
  * how the walk-through applies its edits to them exactly as the server does: answers and
  * observations merge (RFC 7396), a measurement entry is replaced whole.
  */
+import type { MeasurementValue, WalkDraft } from '@/lib/api/walk-through';
 import { applyMergePatch, isObject, jsonEqual, valueAt, type Json, type JsonObject } from './merge-patch';
 
-export interface AnswerValue {
-  value: string;
-  note?: string;
-}
+export const emptyDraft = (): WalkDraft => ({ answers: {}, measurements: {}, observations: {} });
 
-export interface MeasurementValue {
-  value: number;
-  unit: string;
-  canonical: number;
-  note?: string;
-}
-
-export interface WalkDocuments {
-  answers: Record<string, AnswerValue>;
-  measurements: Record<string, MeasurementValue>;
-  observations: Record<string, Json>;
-}
-
-export const emptyDocuments = (): WalkDocuments => ({ answers: {}, measurements: {}, observations: {} });
-
-export function asDocuments(value: Json | undefined): WalkDocuments {
+export function asDraft(value: Json | undefined): WalkDraft {
   const doc = isObject(value) ? value : {};
   return {
-    answers: (isObject(doc.answers) ? doc.answers : {}) as unknown as WalkDocuments['answers'],
+    answers: (isObject(doc.answers) ? doc.answers : {}) as unknown as WalkDraft['answers'],
     measurements: (isObject(doc.measurements)
       ? doc.measurements
-      : {}) as unknown as WalkDocuments['measurements'],
+      : {}) as unknown as WalkDraft['measurements'],
     observations: isObject(doc.observations) ? doc.observations : {},
   };
 }
 
-export function toJson(documents: WalkDocuments): JsonObject {
-  return documents as unknown as JsonObject;
+export function toJson(draft: WalkDraft): JsonObject {
+  return draft as unknown as JsonObject;
 }
 
-/** Applies one PATCH body's documents to a local copy, the way the server merges them. */
-export function applyDocumentsPatch(documents: WalkDocuments, patch: JsonObject): WalkDocuments {
-  const measurements = { ...documents.measurements };
+/** Applies one PATCH body's draft parts to a local copy, the way the server merges them. */
+export function applyDraftPatch(draft: WalkDraft, patch: JsonObject): WalkDraft {
+  const measurements = { ...draft.measurements };
   if (isObject(patch.measurements)) {
     for (const [key, entry] of Object.entries(patch.measurements)) {
       if (entry === null) delete measurements[key];
@@ -51,15 +34,12 @@ export function applyDocumentsPatch(documents: WalkDocuments, patch: JsonObject)
   }
   return {
     answers: (patch.answers === undefined
-      ? documents.answers
-      : applyMergePatch(
-          documents.answers as unknown as Json,
-          patch.answers,
-        )) as unknown as WalkDocuments['answers'],
+      ? draft.answers
+      : applyMergePatch(draft.answers as unknown as Json, patch.answers)) as unknown as WalkDraft['answers'],
     measurements,
     observations: (patch.observations === undefined
-      ? documents.observations
-      : applyMergePatch(documents.observations, patch.observations)) as Record<string, Json>,
+      ? draft.observations
+      : applyMergePatch(draft.observations, patch.observations)) as Record<string, Json>,
   };
 }
 
@@ -116,11 +96,11 @@ export interface FieldConflict {
  * be re-sent.
  */
 export function findConflicts(
-  base: WalkDocuments,
-  theirs: WalkDocuments,
+  base: WalkDraft,
+  theirs: WalkDraft,
   pending: readonly JsonObject[],
 ): FieldConflict[] {
-  const mineDocs = pending.reduce(applyDocumentsPatch, base);
+  const mineDocs = pending.reduce(applyDraftPatch, base);
   const seen = new Set<string>();
   const conflicts: FieldConflict[] = [];
   for (const field of pending.flatMap(changedFields)) {

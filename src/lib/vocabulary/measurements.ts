@@ -2,16 +2,10 @@
  * Measurements for people: a value as the technician entered it ("12 ft 6 in", "2-1/4 in",
  * "406 mm"), a stored value or a ruleset limit in the organisation's system with the trade's
  * rounding, and feet-and-inches as typed on site ("12' 6\"", "12 ft 6 in"). Pure; the PDF,
- * the pages and the islands share it. The vocabulary module may re-export these.
+ * the pages and the islands share it, through the vocabulary's index.
  */
-import {
-  formatForce,
-  formatLength,
-  formatMass,
-  formatSpeed,
-  MILLIMETRES_PER_INCH,
-  type UnitSystem,
-} from './units';
+import { MILLIMETRES_PER_INCH, type UnitSystem } from '@/lib/units';
+import { formatForce, formatLength, formatMass, formatSpeed } from './numbers';
 
 /** A stored measurement: as entered, with its canonical value (mm, N, kg, m/s). */
 export interface EnteredMeasurement {
