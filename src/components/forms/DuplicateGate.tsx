@@ -1,5 +1,7 @@
 /** Copies a gate's profile to a new gate on the same site (for sites with several gates alike) and shows it. */
 import { useState } from 'react';
+import { duplicateGate } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 
 interface Props {
   gateId: string;
@@ -13,24 +15,18 @@ export default function DuplicateGate({ gateId, siteId, label }: Props) {
   const duplicate = async () => {
     setBusy(true);
     setMessage(null);
-    try {
-      const response = await fetch(`/api/gates/${gateId}/duplicate`, {
-        method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
-        body: '{}',
-      });
-      const body = await response.json().catch(() => null);
-      if (!response.ok) throw new Error(body?.detail ?? `The server answered ${response.status}.`);
-      const id = (body as { id: string }).id;
+    const answer = await duplicateGate(gateId);
+    if (answer.ok) {
+      const id = answer.value.id;
       window.location.assign(
         `/gates/${id}?next=${encodeURIComponent(`/sites/${siteId}?gate=${id}#gate-${id}`)}`,
       );
-    } catch (error) {
-      setMessage(
-        error instanceof TypeError ? 'No connection: try again with signal.' : (error as Error).message,
-      );
-      setBusy(false);
+      return;
     }
+    setMessage(
+      answer.problem.status === 0 ? 'No connection: try again with signal.' : problemMessage(answer.problem),
+    );
+    setBusy(false);
   };
   return (
     <>

@@ -1,6 +1,9 @@
 /** The owner's background jobs: counts by status and the list, refreshed while the page is open; retry for failed and dead ones. */
 import { useEffect, useState } from 'react';
 import type { JobList, JobStatus } from '@/lib/api/jobs';
+import { jobList, retryJob } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
+import { formatDayTime } from '@/lib/vocabulary';
 
 interface Props {
   initial: JobList;
@@ -24,11 +27,11 @@ export default function JobsList({ initial, timeZone }: Props) {
   const [list, setList] = useState(initial);
   const [message, setMessage] = useState<string | null>(null);
   const [busy, setBusy] = useState<string | null>(null);
-  const when = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
+  const when = { format: (date: Date) => formatDayTime(date, timeZone) };
 
   const refresh = async () => {
-    const res = await fetch('/api/jobs', { headers: { accept: 'application/json' } }).catch(() => null);
-    if (res?.ok) setList((await res.json()) as JobList);
+    const answer = await jobList<JobList>();
+    if (answer.ok) setList(answer.value);
   };
   useEffect(() => {
     const timer = setInterval(() => void refresh(), 5000);
@@ -38,14 +41,8 @@ export default function JobsList({ initial, timeZone }: Props) {
   const retry = async (id: string) => {
     setBusy(id);
     setMessage(null);
-    const res = await fetch(`/api/jobs/${id}/retry`, {
-      method: 'POST',
-      headers: { accept: 'application/json' },
-    }).catch(() => null);
-    const body = res ? await res.json().catch(() => null) : null;
-    setMessage(
-      res?.ok ? 'Sent round again.' : (body?.detail ?? 'No connection to the server. Try again in a moment.'),
-    );
+    const answer = await retryJob(id);
+    setMessage(answer.ok ? 'Sent round again.' : problemMessage(answer.problem));
     setBusy(null);
     await refresh();
   };

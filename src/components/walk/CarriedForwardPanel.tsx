@@ -4,6 +4,8 @@
  * Submit is refused while any is left; the list refreshes from the server after each action.
  */
 import { useState } from 'react';
+import { carriedForward, confirmCarriedForward } from '@/lib/api/client';
+import { problemMessage } from '@/lib/api/problem';
 
 export interface CarriedItem {
   /** `answers.<key>` or `measurements.<key>`. */
@@ -24,36 +26,24 @@ export default function CarriedForwardPanel({ assessmentId, fromVisitedOn, items
   const [pending, setPending] = useState(items);
   const [busy, setBusy] = useState(false);
   const [message, setMessage] = useState<string | null>(null);
-  const url = `/api/assessments/${assessmentId}/carried-forward`;
-
   const refresh = async () => {
-    const response = await fetch(url, { headers: { accept: 'application/json' } });
-    if (!response.ok) return;
-    const { pending: keys } = (await response.json()) as { pending: string[] };
+    const answer = await carriedForward(assessmentId);
+    if (!answer.ok) return;
+    const keys = answer.value.pending;
     setPending((list) => list.filter((item) => keys.includes(item.key)));
   };
 
   const confirm = async (keys: string[]) => {
     setBusy(true);
     setMessage(null);
-    try {
-      const response = await fetch(url, {
-        method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
-        body: JSON.stringify({ keys }),
-      });
-      if (!response.ok && response.status !== 422) {
-        const body = await response.json().catch(() => null);
-        setMessage(body?.detail ?? `The server answered ${response.status}.`);
-      }
-      await refresh();
-    } catch {
+    const answer = await confirmCarriedForward(assessmentId, keys);
+    if (!answer.ok && answer.problem.status === 0)
       setMessage(
         'No connection: confirming needs signal. Changing an answer in the walk-through confirms it too.',
       );
-    } finally {
-      setBusy(false);
-    }
+    else if (!answer.ok && answer.problem.status !== 422) setMessage(problemMessage(answer.problem));
+    await refresh();
+    setBusy(false);
   };
 
   if (pending.length === 0)

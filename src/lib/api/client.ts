@@ -288,6 +288,26 @@ export function startImpactRun(body: { versionId: string; basis: string }): Prom
   return send('POST', '/api/archive/impact/run', { body });
 }
 
+export function carriedForward(assessmentId: string): Promise<ApiResult<{ pending: string[] }>> {
+  return send('GET', `/api/assessments/${enc(assessmentId)}/carried-forward`);
+}
+
+export function confirmCarriedForward(assessmentId: string, keys: string[]): Promise<ApiResult<unknown>> {
+  return send('POST', `/api/assessments/${enc(assessmentId)}/carried-forward`, { body: { keys } });
+}
+
+export function duplicateGate(gateId: string, label?: string): Promise<ApiResult<{ id: string }>> {
+  return send('POST', `/api/gates/${enc(gateId)}/duplicate`, { body: label ? { label } : {} });
+}
+
+export function jobList<T>(): Promise<ApiResult<T>> {
+  return send('GET', '/api/jobs');
+}
+
+export function retryJob(id: string): Promise<ApiResult<unknown>> {
+  return send('POST', `/api/jobs/${enc(id)}/retry`);
+}
+
 export function archiveCount(query: string, signal?: AbortSignal): Promise<ApiResult<{ total: number }>> {
   return send('GET', `/api/archive/count?${query}`, { signal });
 }
