@@ -36,10 +36,16 @@ beforeAll(async () => {
   org = await createOrganisation('plain words');
   const version = await publishedVersion('north-american-gate', '2026.1');
   const prng = createPrng(777);
-  const gate = { ...sampleGate(prng), kind: 'swing' as const, openingDirection: 'pull_to_open' as const };
+  const gate = {
+    ...sampleGate(prng),
+    kind: 'swing' as const,
+    openingDirection: 'pull_to_open' as const,
+    widthMm: 3500,
+    entered: { width: { value: 3500, unit: 'mm' } },
+  };
   const client = await addClient(org.id, 'Quenby Almshouses');
   siteId = await addSite(org.id, client, '2 Quenby Row', 'Eastholm', 2);
-  gateId = await addGate(org.id, siteId, 'Almshouse gate', gate, { width_mm: 3500 });
+  gateId = await addGate(org.id, siteId, 'Almshouse gate', gate);
   const lastYear = new Date(Date.now() - 300 * 86_400_000).toISOString();
   await fileAssessment({
     organisationId: org.id,
@@ -64,7 +70,8 @@ describe('plain words on the pages', () => {
     const { page } = browser;
     await page.goto(`/sites/${siteId}`);
     const line = (await page.locator(`#gate-${gateId} p`).first().innerText()).trim();
-    expect(line).toMatch(/^Swing, (one leaf|two leaves), 3,?500 mm wide$/);
+    // The width as it was entered on the gate form.
+    expect(line).toMatch(/^Swing, (one leaf|two leaves), 3,?500 mm$/);
   });
 
   it('says when a gate is due in days, with dates as dates and findings without codes', async () => {

@@ -10,6 +10,7 @@ import type { AuditPage } from '@/lib/server/audit-trail';
 import {
   createOrganisation,
   fixturePassword,
+  saveOrganisationSettings,
   signIn,
   testDb,
   type FixtureOrganisation,
@@ -131,7 +132,7 @@ describe('searching and filtering the audit trail', () => {
     expect(await search(owner, `from=${dayAfter(today, 1)}`)).toEqual([]);
     expect(await search(owner, `to=${dayAfter(today, -1)}`)).toEqual([]);
     // 14 hours ahead of UTC, "today" may be tomorrow there: the day is the organisation's.
-    await testDb()('organisations').where({ id: org.id }).update({ time_zone: 'Pacific/Kiritimati' });
+    await saveOrganisationSettings(owner, org.id, { timeZone: 'Pacific/Kiritimati' });
     try {
       const zoneToday = new Intl.DateTimeFormat('en-CA', { timeZone: 'Pacific/Kiritimati' }).format(
         new Date(),
@@ -141,7 +142,7 @@ describe('searching and filtering the audit trail', () => {
       ]);
       expect(await search(owner, `from=${dayAfter(zoneToday, 1)}&q=newhire-audit`)).toEqual([]);
     } finally {
-      await testDb()('organisations').where({ id: org.id }).update({ time_zone: 'UTC' });
+      await saveOrganisationSettings(owner, org.id, { timeZone: 'UTC' });
     }
   });
 

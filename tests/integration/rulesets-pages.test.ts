@@ -8,7 +8,7 @@ import {
   fixturePassword,
   signIn,
   signInHomeowner,
-  testDb,
+  saveOrganisationSettings,
   type FixtureOrganisation,
   type TestClient,
 } from './support/fixtures';
@@ -67,7 +67,7 @@ describe('ruleset pages', () => {
   });
 
   it('reads limits in feet and inches to an imperial organisation: 1828.8 mm is "6 ft"', async () => {
-    await testDb()('organisations').where({ id: org.id }).update({ display_units: 'imperial' });
+    await saveOrganisationSettings(owner, org.id, { displayUnits: 'imperial' });
     try {
       const text = textOf((await page(auditor, `/rulesets/${NA}/2026.1`)).html);
       expect(text).toContain('fixed object clearance is at least 16 in');
@@ -75,7 +75,7 @@ describe('ruleset pages', () => {
       expect(text).not.toContain('1828.8 mm');
       expect(text).not.toContain('406.4 mm');
     } finally {
-      await testDb()('organisations').where({ id: org.id }).update({ display_units: 'metric' });
+      await saveOrganisationSettings(owner, org.id, { displayUnits: 'metric' });
     }
   });
 
@@ -97,7 +97,9 @@ describe('ruleset pages', () => {
     const { status, html } = await page(homeowner, `/rulesets/${NA}/diff?from=2015.1&to=2026.1`);
     expect(status).toBe(200);
     const text = textOf(html);
-    expect(text).toContain('gaps.slide-screen-height');
+    // Rules are named by their titles, not their ids.
+    expect(text).toContain('Slide gate screened high enough');
+    expect(text).not.toContain('gaps.slide-screen-height');
     expect(text).toMatch(/was 1219\.2 mm now 1828\.8 mm/);
     expect(text).toContain('Two independent means of entrapment protection while closing');
   });

@@ -69,7 +69,7 @@ const script = (url: string) => `
     const columnGone = (await k.raw("select count(*)::int as n from information_schema.columns where table_name = 'assessments' and column_name = 'scored_record'")).rows[0].n === 0;
     await k.migrate.latest();
     const again = (await k('assessments').where({ id: signed.id }).first('scored_record')).scored_record;
-    console.log(JSON.stringify({ record, restSame: JSON.stringify(rest) === JSON.stringify(rowBefore), draft: draftAfter.scored_record, refused, undone, columnGone, againSource: again?.source ?? null }));
+    console.log(JSON.stringify({ record, restSame: Object.keys(rowBefore).every((c) => JSON.stringify(rest[c]) === JSON.stringify(rowBefore[c])), draft: draftAfter.scored_record, refused, undone, columnGone, againSource: again?.source ?? null }));
   } finally {
     await k.destroy();
   }

@@ -6,6 +6,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
+import type { SessionUser } from './session-user';
 
 export const genesisHash = '0'.repeat(64);
 
@@ -83,4 +84,20 @@ export async function recordAudit(
     .insert({ ...fields, detail: JSON.stringify(fields.detail), prev_hash: prevHash, hash })
     .returning('id');
   return { id: Number(row.id), hash };
+}
+
+/** Appends an event done by a signed-in person (actor, organisation and client address filled in). */
+export function recordByPerson(
+  trx: Knex.Transaction,
+  person: Pick<SessionUser, 'id' | 'email' | 'organisationId'>,
+  ip: string | null | undefined,
+  event: Pick<AuditEventInput, 'action' | 'entityType' | 'entityId' | 'detail'>,
+): Promise<{ id: number; hash: string }> {
+  return recordAudit(trx, {
+    ...event,
+    organisationId: person.organisationId,
+    actorUserId: person.id,
+    actorLabel: person.email,
+    ip: ip ?? null,
+  });
 }

@@ -15,7 +15,7 @@ import type {
   OperatorFacts,
 } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
-import { changedColumns, recordAudit } from './audit';
+import { changedColumns, recordByPerson } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -238,14 +238,10 @@ export async function updateGate(
       .returning('*');
     const changes = changedColumns(before, after, Object.keys(values));
     if (Object.keys(changes).length) {
-      await recordAudit(trx, {
-        organisationId: viewer.organisationId,
-        actorUserId: viewer.id,
-        actorLabel: viewer.email,
+      await recordByPerson(trx, viewer, options.ip, {
         action: 'gate.updated',
         entityType: 'gate',
         entityId: id,
-        ip: options.ip ?? null,
         detail: { changes },
       });
     }
@@ -276,14 +272,10 @@ export async function deleteGate(
       .where({ organisation_id: viewer.organisationId, id })
       .delete()
       .returning('*');
-    await recordAudit(trx, {
-      organisationId: viewer.organisationId,
-      actorUserId: viewer.id,
-      actorLabel: viewer.email,
+    await recordByPerson(trx, viewer, options.ip, {
       action: 'gate.deleted',
       entityType: 'gate',
       entityId: id,
-      ip: options.ip ?? null,
       detail: { gate: removed },
     });
     return true;

@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
 import { countAssessmentsOfGates } from './assessments';
 import type { Page } from '@/lib/api/common';
 import type { Site, SiteCreate, SiteListQuery, SitePatch } from '@/lib/api/sites';
-import { changedColumns, recordAudit } from './audit';
+import { changedColumns, recordByPerson } from './audit';
 import { db } from './db';
 import { HttpProblem } from './http/problem';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -173,14 +173,10 @@ export async function updateSite(
       .returning('*');
     const changes = changedColumns(before, after, Object.keys(values));
     if (Object.keys(changes).length) {
-      await recordAudit(trx, {
-        organisationId: viewer.organisationId,
-        actorUserId: viewer.id,
-        actorLabel: viewer.email,
+      await recordByPerson(trx, viewer, options.ip, {
         action: 'site.updated',
         entityType: 'site',
         entityId: id,
-        ip: options.ip ?? null,
         detail: { changes },
       });
     }
@@ -217,14 +213,10 @@ export async function deleteSite(
       .where({ organisation_id: viewer.organisationId, id })
       .delete()
       .returning('*');
-    await recordAudit(trx, {
-      organisationId: viewer.organisationId,
-      actorUserId: viewer.id,
-      actorLabel: viewer.email,
+    await recordByPerson(trx, viewer, options.ip, {
       action: 'site.deleted',
       entityType: 'site',
       entityId: id,
-      ip: options.ip ?? null,
       detail: { site: removed, gatesDeleted: gates },
     });
     return true;

@@ -362,3 +362,30 @@ export async function signInAll(
   ]);
   return { owner, office, auditor, auditor2, homeowner };
 }
+
+/**
+ * Changes the organisation's display units or time zone the way its owner does, through the
+ * settings form, so the server sees the change at once (a write straight into the database, as
+ * another instance would make it, reaches a warm session only after SESSION_RECHECK_MS).
+ */
+export async function saveOrganisationSettings(
+  owner: TestClient,
+  organisationId: string,
+  changes: { displayUnits?: 'metric' | 'imperial'; timeZone?: string },
+): Promise<void> {
+  const row = await testDb()('organisations')
+    .where({ id: organisationId })
+    .first('name', 'display_units', 'time_zone', 'reinspection_months', 'remind_clients');
+  const res = await owner.fetch('/settings', {
+    method: 'POST',
+    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    body: new URLSearchParams({
+      name: row.name,
+      displayUnits: changes.displayUnits ?? row.display_units,
+      timeZone: changes.timeZone ?? row.time_zone,
+      reinspectionMonths: String(row.reinspection_months),
+      ...(row.remind_clients ? { remindClients: 'on' } : {}),
+    }),
+  });
+  if (res.status !== 303) throw new Error(`the settings were not saved: ${res.status} ${await res.text()}`);
+}

@@ -3,7 +3,7 @@
  * submitted for scoring. The one module holding their SQL. Staff see the organisation's
  * assessments; a homeowner sees only those of their own client that were sent for signature.
  */
-import { carriedForwardOf, carryForwardIntoDraft, pendingAfterPatch } from '../carry-forward';
+import { carriedForwardOf, carryForwardIntoDraft, pendingAfterPatch } from './carry-forward';
 import type { Knex } from 'knex';
 import type {
   Assessment,

@@ -27,3 +27,9 @@ export {
 export { reviseAssessment } from './revise';
 export { countAssessmentsOfGates } from './counts';
 export { organisationAssessments, organisationAssessmentsWithPlace } from './reads';
+export {
+  carriedForwardOf,
+  confirmCarriedForward,
+  lastSignedVisitDays,
+  type CarriedForward,
+} from './carry-forward';

@@ -6,7 +6,7 @@
  * the database freeze the scored record (gate, site, client, people, ruleset, documents and
  * result; see scored-record.ts), which is what every report renders from, forever.
  */
-import { assertCarriedForwardConfirmed, carriedForwardOf } from '../carry-forward';
+import { assertCarriedForwardConfirmed, carriedForwardOf } from './carry-forward';
 import type { Assessment } from '@/lib/api/assessments';
 import type { Gate } from '@/lib/api/gates';
 import { AssessmentInputError, resultSha256, scoreParsed, type RulesetVersion } from '@/lib/rules';

@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { CarriedForwardConfirmSchema } from '@/lib/api/assessments';
 import { idFromPath } from '@/lib/api/common';
 import { assertEditable, getAssessment } from '@/lib/server/assessments';
-import { carriedForwardOf, confirmCarriedForward } from '@/lib/server/carry-forward';
+import { carriedForwardOf, confirmCarriedForward } from '@/lib/server/assessments';
 import { db } from '@/lib/server/db';
 import { assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';

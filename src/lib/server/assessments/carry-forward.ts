@@ -13,7 +13,8 @@
  * measured again.
  */
 import type { Knex } from 'knex';
-import { HttpProblem } from './http/problem';
+import { MEASURED_ANSWER_TYPES } from '@/lib/rules/measures';
+import { ConflictError, InvalidInputError } from '../errors';
 
 export interface CarriedForward {
   fromAssessmentId: string;
@@ -27,17 +28,7 @@ interface Question {
   answerType: string;
 }
 
-const MEASURED = new Set([
-  'length',
-  'force',
-  'mass',
-  'speed',
-  'time',
-  'voltage',
-  'current',
-  'angle',
-  'count',
-]);
+const MEASURED: ReadonlySet<string> = new Set(MEASURED_ANSWER_TYPES);
 
 /** The gate's most recent signed assessment in the organisation, or null. */
 export async function lastSignedVisit(
@@ -89,9 +80,9 @@ export async function carryForwardIntoDraft(
 ): Promise<CarriedForward> {
   const last = await lastSignedVisit(trx, organisationId, gateId);
   if (!last)
-    throw new HttpProblem(422, 'This gate has no signed visit to carry answers forward from.', {
-      errors: [{ field: 'carryForward', message: 'the gate has no signed visit' }],
-    });
+    throw new InvalidInputError('This gate has no signed visit to carry answers forward from.', [
+      { field: 'carryForward', message: 'the gate has no signed visit' },
+    ]);
   const version = await trx('ruleset_versions')
     .where({ id: rulesetVersionId })
     .first<{ questions: Question[] | null }>(trx.raw("content -> 'questions' as questions"));
@@ -171,7 +162,7 @@ export async function confirmCarriedForward(
       );
     if (!row) return null;
     if (row.status !== 'draft')
-      throw new HttpProblem(409, 'This assessment is no longer a draft; its answers cannot be confirmed.');
+      throw new ConflictError('This assessment is no longer a draft; its answers cannot be confirmed.');
     const carried = row.carried_forward;
     const errors = keys
       .map((key, i) => ({ key, i }))
@@ -180,7 +171,7 @@ export async function confirmCarriedForward(
         field: `keys.${i}`,
         message: 'not a carried-forward answer waiting for confirmation',
       }));
-    if (errors.length || !carried) throw new HttpProblem(422, 'Some keys cannot be confirmed.', { errors });
+    if (errors.length || !carried) throw new InvalidInputError('Some keys cannot be confirmed.', errors);
     const next = { ...carried, pending: carried.pending.filter((k) => !keys.includes(k)) };
     await trx('assessments')
       .where({ id: assessmentId })
@@ -192,14 +183,11 @@ export async function confirmCarriedForward(
 /** Submit's check: 422 naming each carried answer not yet confirmed or changed. */
 export function assertCarriedForwardConfirmed(carried: CarriedForward | null): void {
   if (!carried || carried.pending.length === 0) return;
-  throw new HttpProblem(
-    422,
+  throw new InvalidInputError(
     'Some answers were carried forward from the last signed visit and are not confirmed yet. Confirm or change each one.',
-    {
-      errors: carried.pending.map((field) => ({
-        field,
-        message: 'carried forward from the last signed visit: confirm or change it',
-      })),
-    },
+    carried.pending.map((field) => ({
+      field,
+      message: 'carried forward from the last signed visit: confirm or change it',
+    })),
   );
 }
