@@ -122,7 +122,10 @@ describe('duplicating a gate', () => {
       .first('id', 'kind');
     expect(copy).toBeTruthy();
     expect(page.url()).toContain(`/gates/${copy.id}`);
-    expect(await page.getByLabel('Name of the gate').inputValue()).toBe(`${label} (copy)`);
+    // The form's island may still be starting when the page arrives.
+    await expect
+      .poll(() => page.getByLabel('Name of the gate').inputValue(), { timeout: 10_000 })
+      .toBe(`${label} (copy)`);
     await page.goto(`/sites/${dir.siteId}`);
     await page.locator(`#gate-${copy.id}`).waitFor();
     expect(await seriousAxeViolations(page)).toEqual([]);
