@@ -3,34 +3,10 @@
  * latest schema, step down until 20261202003000_documents_signing is undone (its tables,
  * functions and the signed-assessment guard gone, the outbox channel column gone), then up again.
  */
-import { spawnSync } from 'node:child_process';
-import { randomBytes } from 'node:crypto';
-import pg from 'pg';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { projectRoot } from '../../src/cli/services';
+import { describe, expect, it } from 'vitest';
+import { runTsx, useScratchDatabase } from './support/scratch-database';
 
-let databaseName: string;
-let databaseUrl: string;
-
-beforeAll(async () => {
-  databaseName = `latchwell_migration_${randomBytes(4).toString('hex')}`;
-  const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
-  await admin.connect();
-  await admin.query(
-    `create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`,
-  );
-  await admin.end();
-  const url = new URL(inject('migrationDatabaseUrl'));
-  url.pathname = `/${databaseName}`;
-  databaseUrl = url.toString();
-});
-
-afterAll(async () => {
-  const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
-  await admin.connect();
-  await admin.query(`drop database if exists "${databaseName}" with (force)`);
-  await admin.end();
-});
+const scratch = useScratchDatabase('latchwell_migration');
 
 /** Runs in a tsx child: knex loads .ts migrations with Node's own import(). */
 const script = (url: string) => `
@@ -62,11 +38,7 @@ const script = (url: string) => `
 
 describe('documents and signing migrations', () => {
   it('go down and up again cleanly', () => {
-    const run = spawnSync(
-      process.execPath,
-      ['--import', 'tsx', '--input-type=module', '-e', script(databaseUrl)],
-      { cwd: projectRoot, encoding: 'utf8' },
-    );
+    const run = runTsx(script(scratch.url));
     expect(run.status, run.stderr).toBe(0);
     const result = JSON.parse(run.stdout.trim().split('\n').pop()!);
     const all = ['assessment_photos', 'documents', 'force_traces', 'sign_requests', 'signatures'];

@@ -4,34 +4,10 @@
  * even though the gate row changed since) and its stored result, marked as backfilled; a draft
  * gets none; the signed row is otherwise unchanged; and the migration goes down and up again.
  */
-import { spawnSync } from 'node:child_process';
-import { randomBytes } from 'node:crypto';
-import pg from 'pg';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { projectRoot } from '../../src/cli/services';
+import { describe, expect, it } from 'vitest';
+import { runTsx, useScratchDatabase } from './support/scratch-database';
 
-let databaseName: string;
-let databaseUrl: string;
-
-beforeAll(async () => {
-  databaseName = `latchwell_record_${randomBytes(4).toString('hex')}`;
-  const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
-  await admin.connect();
-  await admin.query(
-    `create database "${databaseName}" owner "${decodeURIComponent(new URL(inject('migrationDatabaseUrl')).username)}"`,
-  );
-  await admin.end();
-  const url = new URL(inject('migrationDatabaseUrl'));
-  url.pathname = `/${databaseName}`;
-  databaseUrl = url.toString();
-});
-
-afterAll(async () => {
-  const admin = new pg.Client({ connectionString: inject('adminDatabaseUrl') });
-  await admin.connect();
-  await admin.query(`drop database if exists "${databaseName}" with (force)`);
-  await admin.end();
-});
+const scratch = useScratchDatabase('latchwell_record');
 
 /** Runs in a tsx child: knex loads .ts migrations with Node's own import(). */
 const script = (url: string) => `
@@ -77,11 +53,7 @@ const script = (url: string) => `
 
 describe('the scored-record migration', () => {
   it('backfills submitted rows from their snapshot and stored result, leaves drafts alone, and reverses', () => {
-    const run = spawnSync(
-      process.execPath,
-      ['--import', 'tsx', '--input-type=module', '-e', script(databaseUrl)],
-      { cwd: projectRoot, encoding: 'utf8' },
-    );
+    const run = runTsx(script(scratch.url));
     expect(run.status, run.stderr).toBe(0);
     const out = JSON.parse(run.stdout.trim().split('\n').pop()!);
     expect(out.record).toMatchObject({
