@@ -367,6 +367,32 @@ describe('ruleset impact', () => {
     throw new Error('the run queued on publishing did not finish');
   }, 60_000);
 
+  it('answers the run already queued for a version and basis instead of queuing another', async () => {
+    const [waiting] = await testDb()('impact_runs')
+      .insert({ organisation_id: org.id, version_id: v2026.id, basis: 'latest', reason: 'requested' })
+      .returning('id');
+    const count = async () =>
+      Number(
+        (
+          await testDb()('impact_runs')
+            .where({ organisation_id: org.id, version_id: v2026.id, basis: 'latest' })
+            .count<{ n: string }[]>({ n: '*' })
+        )[0]!.n,
+      );
+    try {
+      const before = await count();
+      const res = await office.json('POST', '/api/archive/impact/run', {
+        versionId: v2026.id,
+        basis: 'latest',
+      });
+      expect(res.status).toBe(202);
+      expect(((await res.json()) as ImpactRunView).run?.id).toBe(waiting.id);
+      expect(await count()).toBe(before);
+    } finally {
+      await testDb()('impact_runs').where({ id: waiting.id }).update({ status: 'failed' });
+    }
+  });
+
   it('refuses a version that is not published or not visible, and a bad query', async () => {
     expect(
       (await office.fetch('/api/archive/impact?versionId=00000000-0000-4000-8000-000000000000')).status,

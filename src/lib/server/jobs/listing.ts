@@ -144,16 +144,23 @@ export async function retryJob(
   if (!row || !queue) return 'not_found';
   if (queue === 'mail-dead') {
     const outboxId = String(row.data?.outboxId ?? '');
-    return knex.transaction(async (trx) => {
-      const deleted = await trx('pgboss.job').where({ name: row.name, id: row.id }).delete();
-      if (!deleted) return 'not_found';
-      // The row's organisation was checked through the job; the message must be the same one's.
-      const mine = await trx('outbox_messages')
-        .where({ id: outboxId, organisation_id: organisationId })
-        .first('id');
-      if (!mine || !(await requeueFailedMessage(trx, outboxId))) return 'not_retryable';
-      return 'retried';
-    });
+    // Refused after the delete: the transaction rolls back, so the dead job stays listed.
+    const refused = new Error('not retryable');
+    return knex
+      .transaction(async (trx): Promise<RetryOutcome> => {
+        const deleted = await trx('pgboss.job').where({ name: row.name, id: row.id }).delete();
+        if (!deleted) return 'not_found';
+        // The row's organisation was checked through the job; the message must be the same one's.
+        const mine = await trx('outbox_messages')
+          .where({ id: outboxId, organisation_id: organisationId })
+          .first('id');
+        if (!mine || !(await requeueFailedMessage(trx, outboxId))) throw refused;
+        return 'retried';
+      })
+      .catch((error: unknown) => {
+        if (error === refused) return 'not_retryable' as const;
+        throw error;
+      });
   }
   if (row.state !== 'failed') return 'not_retryable';
   // pg-boss answers { affected } here, though its types say nothing.
