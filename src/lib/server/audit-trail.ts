@@ -20,6 +20,7 @@
 import type { Knex } from 'knex';
 import { auditHash, genesisHash } from './audit';
 import { checkAnchors, TRUNCATED_MESSAGE, type AuditAnchor } from './audit-anchors';
+import { gateAssessmentIdsAsText } from './assessments';
 import { db } from './db';
 import { iso } from './listing';
 
@@ -133,7 +134,7 @@ function applyAuditFilters(query: Knex.QueryBuilder, options: AuditListOptions, 
       w
         .where('entity_id', gateId)
         .orWhereRaw("detail ->> 'gateId' = ?", [gateId])
-        .orWhereIn('entity_id', knex('assessments').select(knex.raw('id::text')).where('gate_id', gateId)),
+        .orWhereIn('entity_id', gateAssessmentIdsAsText(knex, gateId)),
     );
   }
   if (options.q) {

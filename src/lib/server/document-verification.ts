@@ -9,6 +9,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
+import { joinAssessment } from './assessments';
 import { anchorOfPdf, anchorStateWords, checkAnchors, type AnchorState } from './audit-anchors';
 import { admitFromAddress, waitInWords } from './auth/throttle';
 import { db } from './db';
@@ -79,9 +80,10 @@ export async function verifyDocument(
   reference: DocumentReference,
   knex: Knex = db(),
 ): Promise<VerificationAnswer> {
-  const query = knex('documents as d')
-    .join('organisations as o', 'o.id', 'd.organisation_id')
-    .join('assessments as a', 'a.id', 'd.assessment_id')
+  const query = joinAssessment(
+    knex('documents as d').join('organisations as o', 'o.id', 'd.organisation_id'),
+    'd.assessment_id',
+  )
     .leftJoin('signatures as s', 's.assessment_id', 'd.assessment_id')
     .where('d.kind', 'signed_report');
   if ('sha256' in reference) query.andWhere('d.sha256', reference.sha256);

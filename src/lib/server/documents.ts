@@ -4,6 +4,7 @@
  * a homeowner reads only documents of their own client's assessments.
  */
 import type { Knex } from 'knex';
+import { joinAssessmentOfClient } from './assessments';
 import { db } from './db';
 import type { SessionUser } from './session-user';
 import { storage } from './storage';
@@ -98,14 +99,9 @@ export async function storeDocument(
 
 function visibleDocuments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
   const query = knex('documents as d').where('d.organisation_id', viewer.organisationId);
-  if (viewer.role === 'homeowner') {
-    query
-      .join('assessments as a', 'a.id', 'd.assessment_id')
-      .join('gates as g', 'g.id', 'a.gate_id')
-      .join('sites as s', 's.id', 'g.site_id')
-      .andWhere('s.client_id', viewer.clientId);
-  }
-  return query;
+  return viewer.role === 'homeowner'
+    ? joinAssessmentOfClient(query, 'd.assessment_id', viewer.clientId)
+    : query;
 }
 
 export async function getDocument(

@@ -20,6 +20,7 @@ import type {
   ImpactRunView,
   ImpactTarget,
 } from '@/lib/api/impact';
+import { organisationsSignedUnderOtherVersions } from './assessments';
 import { db } from './db';
 import { impactTarget, rescoreSlice, slicesOf, worseFirst, type ImpactSlice } from './impact';
 import { onJobsStarted, queueName, sendJob } from './jobs/boss';
@@ -104,17 +105,14 @@ export async function queueImpactAfterPublish(versionId: string, knex: Knex = db
     .where('rv.id', versionId)
     .first('r.id as ruleset_id', 'r.organisation_id');
   if (!version) return 0;
-  const organisations = (await knex('assessments as a')
-    .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
-    .where('rv.ruleset_id', version.ruleset_id)
-    .andWhereNot('rv.id', versionId)
-    .andWhere('a.status', 'signed')
-    .modify((q) => {
-      if (version.organisation_id) q.andWhere('a.organisation_id', version.organisation_id);
-    })
-    .distinct('a.organisation_id')) as { organisation_id: string }[];
+  const organisations = await organisationsSignedUnderOtherVersions(
+    knex,
+    version.ruleset_id,
+    versionId,
+    version.organisation_id,
+  );
   let queued = 0;
-  for (const { organisation_id: organisationId } of organisations) {
+  for (const organisationId of organisations) {
     const target = await impactTarget(organisationId, versionId, knex);
     if (!target) continue;
     await startImpactRun(organisationId, target, 'latest', 'published', knex);

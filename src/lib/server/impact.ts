@@ -29,8 +29,13 @@ import {
   type GateForScoring,
   type LoadedRuleset,
 } from '@/lib/rules';
-import type { AssessmentDocuments } from './assessment-input';
-import { archiveDateSql } from './archive-filters';
+import {
+  lastIdOfRescorePage,
+  rescoreRowsInRange,
+  signedRuleOutcomes,
+  type ImpactRow,
+  type SignedRuleOutcomes,
+} from './assessments';
 import { csvRow } from './csv';
 import { db } from './db';
 import { iso } from './listing';
@@ -39,23 +44,6 @@ import { loadedRuleset } from './ruleset-cache';
 
 type Verdict = 'clear' | 'remedy' | 'withdraw';
 const VERDICT_RANK: Record<Verdict, number> = { clear: 0, remedy: 1, withdraw: 2 };
-
-interface ImpactRow {
-  id: string;
-  gate_id: string;
-  gate_label: string;
-  gate_kind: string;
-  client_name: string;
-  address_line1: string;
-  city: string;
-  archive_date: Date;
-  signed_at: Date | null;
-  verdict: Verdict;
-  answers: AssessmentDocuments['answers'];
-  measurements: AssessmentDocuments['measurements'];
-  observations: AssessmentDocuments['observations'];
-  gate_snapshot: (Partial<GateForScoring> & { site?: { usageClass?: number } }) | null;
-}
 
 /** The published version `versionId` (a shipped family, or the organisation's own) and its family's other versions. */
 export async function impactTarget(
@@ -198,10 +186,8 @@ function rescoreVerdict(
   };
 }
 
-type OldOutcomes = Record<string, [ResponsibleRule['before'], Finding['severity']]>;
-
 /** The rules responsible: drivers that were not already failing at this severity or worse when signed. */
-function responsibleRules(drivers: Driver[], old: OldOutcomes): ResponsibleRule[] {
+function responsibleRules(drivers: Driver[], old: SignedRuleOutcomes): ResponsibleRule[] {
   return drivers
     .filter((f) => {
       const [outcome, severity] = old[f.ruleId] ?? ['absent', null];
@@ -241,22 +227,6 @@ function baseOutcome(row: ImpactRow, fromVersion: string): Omit<ImpactOutcome, '
   };
 }
 
-/** How each rule stood in the signed results of these assessments (read only for the few that got worse). */
-async function oldOutcomesOf(knex: Knex, ids: string[]): Promise<Map<string, OldOutcomes>> {
-  if (!ids.length) return new Map();
-  const rows = await knex('assessments as a')
-    .whereIn('a.id', ids)
-    .select(
-      'a.id',
-      knex.raw(
-        `(select jsonb_object_agg(f ->> 'ruleId', jsonb_build_array(f ->> 'outcome', f ->> 'severity')) from jsonb_array_elements(a.result -> 'findings') f) as old_outcomes`,
-      ),
-    );
-  return new Map(
-    rows.map((r: { id: string; old_outcomes: OldOutcomes | null }) => [r.id, r.old_outcomes ?? {}]),
-  );
-}
-
 /** Re-scores stored assessments against the target version. */
 export async function rescoreRows(
   knex: Knex,
@@ -273,7 +243,7 @@ export async function rescoreRows(
   const worse = scored
     .filter((s) => 'after' in s.verdict && VERDICT_RANK[s.verdict.after] > VERDICT_RANK[s.row.verdict])
     .map((s) => s.row.id);
-  const old = await oldOutcomesOf(knex, worse);
+  const old = await signedRuleOutcomes(knex, worse);
   return scored.map(({ row, verdict }) => {
     const base = baseOutcome(row, fromVersion);
     if ('problem' in verdict)
@@ -304,32 +274,6 @@ export interface ImpactSlice {
   upToId: string;
 }
 
-/** The signed assessments of one version the impact considers (see the module comment for `basis`). */
-function candidates(
-  knex: Knex,
-  organisationId: string,
-  target: ImpactTarget,
-  versionId: string,
-  basis: ImpactBasis,
-): Knex.QueryBuilder {
-  const familyVersionIds = [target.id, ...target.otherVersions.map((v) => v.id)];
-  const query = knex('assessments as a')
-    .where({ 'a.organisation_id': organisationId, 'a.ruleset_version_id': versionId, 'a.status': 'signed' })
-    .whereNotNull('a.verdict');
-  if (basis === 'latest') {
-    // The gate's most recent signed assessment of this family is this one.
-    query.whereNotExists(
-      knex('assessments as later')
-        .whereRaw('later.organisation_id = a.organisation_id and later.gate_id = a.gate_id')
-        .andWhere('later.status', 'signed')
-        .whereIn('later.ruleset_version_id', familyVersionIds)
-        .andWhereRaw(`(coalesce(later.visited_on, later.created_at), later.id) > (${archiveDateSql}, a.id)`)
-        .select(knex.raw('1')),
-    );
-  }
-  return query;
-}
-
 /** Slices of at most BATCH candidates each, found by reading ids only (keyset, id order). */
 export async function* slicesOf(
   knex: Knex,
@@ -340,16 +284,13 @@ export async function* slicesOf(
   for (const from of target.otherVersions) {
     let afterId: string | null = null;
     for (;;) {
-      const query = candidates(knex, organisationId, target, from.id, basis);
-      if (afterId) query.andWhere('a.id', '>', afterId);
-      const [last] = (await knex
-        .from(query.orderBy('a.id').limit(BATCH).select('a.id').as('page'))
-        .orderBy('id', 'desc')
-        .limit(1)
-        .select('id')) as {
-        id: string;
-      }[];
-      if (!last) break;
+      const upToId = await lastIdOfRescorePage(
+        knex,
+        { organisationId, target, versionId: from.id, basis },
+        afterId,
+        BATCH,
+      );
+      if (!upToId) break;
       yield {
         organisationId,
         target,
@@ -357,44 +298,19 @@ export async function* slicesOf(
         fromVersion: from.version,
         basis,
         afterId,
-        upToId: last.id,
+        upToId,
       };
-      afterId = last.id;
+      afterId = upToId;
     }
   }
 }
 
-/** The rows of one slice, with what re-scoring and listing need. */
-async function rowsOf(knex: Knex, slice: ImpactSlice): Promise<ImpactRow[]> {
-  const query = candidates(knex, slice.organisationId, slice.target, slice.versionId, slice.basis)
-    .join('gates as g', 'g.id', 'a.gate_id')
-    .join('sites as s', 's.id', 'g.site_id')
-    .join('clients as c', 'c.id', 's.client_id')
-    .andWhere('a.id', '<=', slice.upToId);
-  if (slice.afterId) query.andWhere('a.id', '>', slice.afterId);
-  return (await query
-    .orderBy('a.id')
-    .select(
-      'a.id',
-      'a.gate_id',
-      'g.label as gate_label',
-      'g.kind as gate_kind',
-      'c.name as client_name',
-      's.address_line1',
-      's.city',
-      knex.raw(`${archiveDateSql} as archive_date`),
-      'a.signed_at',
-      'a.verdict',
-      'a.answers',
-      'a.measurements',
-      'a.observations',
-      'a.gate_snapshot',
-    )) as ImpactRow[];
-}
-
 /** Reads and re-scores one slice in this thread (also what each worker thread runs). */
 export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promise<ImpactOutcome[]> {
-  const [loaded, rows] = await Promise.all([loadTarget(knex, slice.target.id), rowsOf(knex, slice)]);
+  const [loaded, rows] = await Promise.all([
+    loadTarget(knex, slice.target.id),
+    rescoreRowsInRange(knex, slice),
+  ]);
   return rescoreRows(knex, rows, loaded, slice.fromVersion);
 }
 

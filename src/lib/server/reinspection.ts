@@ -17,6 +17,7 @@
  */
 import type { Knex } from 'knex';
 import { daysFromNow, formatCalendarDate } from '@/lib/vocabulary';
+import { lastSignedOfEachGateSql } from './assessments';
 import { db } from './db';
 
 /** `awaiting_fixes`: withdrawn at the last signed visit; re-visit when the fixes are reported (no date). */
@@ -105,11 +106,7 @@ function dueGatesQuery(
        select id, time_zone, reinspection_months, (now() at time zone time_zone)::date as today from organisations where id = ?
      ),
      last_signed as (
-       select distinct on (a.gate_id) a.gate_id, a.id, a.verdict, (coalesce(a.visited_on, a.created_at) at time zone org.time_zone)::date as visit,
-              a.result -> 'reinspection' as plan
-       from assessments a cross join org
-       where a.organisation_id = org.id and a.status = 'signed'
-       order by a.gate_id, coalesce(a.visited_on, a.created_at) desc, a.id desc
+       ${lastSignedOfEachGateSql()}
      ),
      planned as (
        -- The result's own plan, read defensively: a malformed one counts as no plan.

@@ -26,7 +26,23 @@ export {
 } from './transitions';
 export { reviseAssessment } from './revise';
 export { countAssessmentsOfGates } from './counts';
-export { organisationAssessments, organisationAssessmentsWithPlace } from './reads';
+export {
+  gateAssessmentIdsAsText,
+  joinAssessment,
+  joinAssessmentOfClient,
+  lastSignedOfEachGateSql,
+  organisationAssessments,
+  organisationAssessmentsWithPlace,
+  organisationsSignedUnderOtherVersions,
+} from './reads';
+export {
+  lastIdOfRescorePage,
+  rescoreRowsInRange,
+  signedRuleOutcomes,
+  type ImpactRow,
+  type RescoreScope,
+  type SignedRuleOutcomes,
+} from './impact-reads';
 export {
   carriedForwardOf,
   confirmCarriedForward,
