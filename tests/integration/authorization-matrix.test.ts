@@ -22,6 +22,7 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { makePkcs12, type TestPkcs12 } from './support/pkcs12';
+import { queueOutboxMessage } from './support/outbox';
 import {
   insertClient,
   insertDraft,
@@ -116,23 +117,20 @@ const siteContext = {
 
 /** A message of the organisation given up on: failed in the outbox, its job on the dead-letter queue. */
 async function deadMessageJob(organisationId: string): Promise<string> {
-  return testDb().transaction(async (trx) => {
-    const [message] = await trx('outbox_messages')
-      .insert({
-        organisation_id: organisationId,
-        kind: 'test_message',
-        to_addresses: [`dead.${Date.now()}@example.test`],
-        subject: 'Given up on',
-        text_body: 'x',
-        status: 'failed',
-        attempts: 10,
-      })
-      .returning('id');
-    const [job] = await trx('pgboss.job')
-      .insert({ name: 'mail-dead.default', data: { organisationId, outboxId: message.id } })
-      .returning('id');
-    return job.id as string;
-  });
+  const { jobId } = await queueOutboxMessage(
+    testDb(),
+    {
+      organisation_id: organisationId,
+      kind: 'test_message',
+      to_addresses: [`dead.${Date.now()}@example.test`],
+      subject: 'Given up on',
+      text_body: 'x',
+      status: 'failed',
+      attempts: 10,
+    },
+    { queue: 'mail-dead' },
+  );
+  return jobId;
 }
 
 /** A fresh draft amendment of the family's current version, derived by the subject organisation's owner. */

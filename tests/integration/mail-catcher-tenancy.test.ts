@@ -5,10 +5,9 @@
  * mail, never the other's, not even by guessing a message id or naming the other's homeowner as
  * one of their own client contacts.
  */
-import PgBoss from 'pg-boss';
-import { bossDb } from '../../src/lib/server/jobs/boss';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { serverStorage } from './support/archive';
+import { queueOutboxMessage } from './support/outbox';
 import {
   createOrganisation,
   fixturePassword,
@@ -59,24 +58,13 @@ beforeAll(async () => {
   bLink = await caught(b.homeowner.email);
   // A signed report mailed by B's outbox, as the signing flow queues it.
   const stored = await serverStorage().put(pdf, 'application/pdf');
-  await testDb().transaction(async (trx) => {
-    const [row] = await trx('outbox_messages')
-      .insert({
-        organisation_id: b.id,
-        kind: 'signed_report',
-        to_addresses: [b.homeowner.email],
-        subject: 'Your signed gate safety report (tenancy test)',
-        text_body: 'Your signed report is attached.',
-        attachments: JSON.stringify([
-          { filename: 'signed-report.pdf', contentType: 'application/pdf', storageKey: stored.key },
-        ]),
-      })
-      .returning('id');
-    // The job enqueueMail sends with every message, in the same transaction.
-    await new PgBoss({ db: bossDb(trx), migrate: false }).send('mail.default', {
-      organisationId: b.id,
-      outboxId: row.id,
-    });
+  await queueOutboxMessage(testDb(), {
+    organisation_id: b.id,
+    kind: 'signed_report',
+    to_addresses: [b.homeowner.email],
+    subject: 'Your signed gate safety report (tenancy test)',
+    text_body: 'Your signed report is attached.',
+    attachments: [{ filename: 'signed-report.pdf', contentType: 'application/pdf', storageKey: stored.key }],
   });
   bReport = await caught(b.homeowner.email, (m) => m.attachments.length === 1);
 });

@@ -9,8 +9,6 @@ import os from 'node:os';
 import path from 'node:path';
 import S3rver from 's3rver';
 import sharp from 'sharp';
-import PgBoss from 'pg-boss';
-import { bossDb } from '../../src/lib/server/jobs/boss';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer, type RunningServer } from '../../src/cli/services';
 import {
@@ -21,6 +19,7 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { currentVersion, insertDraft, seedDirectory } from './support/domain';
+import { queueOutboxMessages } from './support/outbox';
 
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-two-'));
 let s3: S3rver;
@@ -156,23 +155,16 @@ describe('two app instances behind one load balancer', () => {
     async () => {
       const recipient = `once.${Date.now()}@example.test`;
       const count = 24;
-      // As enqueueMail does: each row with its job, in one transaction.
-      await testDb().transaction(async (trx) => {
-        const rows = await trx('outbox_messages')
-          .insert(
-            Array.from({ length: count }, (_, i) => ({
-              organisation_id: org.id,
-              kind: 'test_message',
-              to_addresses: [recipient],
-              subject: `exactly once #${i}`,
-              text_body: `message ${i}`,
-            })),
-          )
-          .returning('id');
-        const boss = new PgBoss({ db: bossDb(trx), migrate: false });
-        for (const row of rows)
-          await boss.send('mail.default', { organisationId: org.id, outboxId: row.id as string });
-      });
+      await queueOutboxMessages(
+        testDb(),
+        Array.from({ length: count }, (_, i) => ({
+          organisation_id: org.id,
+          kind: 'test_message',
+          to_addresses: [recipient],
+          subject: `exactly once #${i}`,
+          text_body: `message ${i}`,
+        })),
+      );
       // Wake both workers (each starts on the first request its process handles).
       await Promise.all(servers.map((s) => fetch(`${s.url}/api/health`)));
       const deadline = Date.now() + 45_000;

@@ -11,8 +11,6 @@ import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import knex, { type Knex } from 'knex';
 import pg from 'pg';
-import PgBoss from 'pg-boss';
-import { bossDb } from '../../src/lib/server/jobs/boss';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, projectRoot, startAppServer, type RunningServer } from '../../src/cli/services';
 import { startMailCatcher, type RunningCatcher } from '../../src/lib/server/mail/catcher';
@@ -22,6 +20,7 @@ import {
   type MinimalOrganisation,
   type SeededAssessment,
 } from './support/signing-seed';
+import { queueOutboxMessage } from './support/outbox';
 
 let adminUrl: string;
 let databaseUrl: string;
@@ -216,26 +215,14 @@ describe('the outbox while SMTP is down', () => {
   });
 
   it('marks a message failed after the last attempt and keeps it for the record', async () => {
-    const id = await db.transaction(async (trx) => {
-      const [row] = await trx('outbox_messages')
-        .insert({
-          organisation_id: org.id,
-          kind: 'test',
-          to_addresses: ['nobody@fixtures.test'],
-          subject: 'Bound to fail',
-          text_body: 'x',
-          attempts: 9,
-          attachments: JSON.stringify([
-            { filename: 'gone.pdf', contentType: 'application/pdf', storageKey: 'f'.repeat(64) },
-          ]),
-        })
-        .returning('id');
-      // The job enqueueMail sends with every message, in the same transaction.
-      await new PgBoss({ db: bossDb(trx), migrate: false }).send('mail.default', {
-        organisationId: org.id,
-        outboxId: row.id,
-      });
-      return row.id as string;
+    const { id } = await queueOutboxMessage(db, {
+      organisation_id: org.id,
+      kind: 'test',
+      to_addresses: ['nobody@fixtures.test'],
+      subject: 'Bound to fail',
+      text_body: 'x',
+      attempts: 9,
+      attachments: [{ filename: 'gone.pdf', contentType: 'application/pdf', storageKey: 'f'.repeat(64) }],
     });
     // The attachment is missing from storage: the tenth attempt fails and is the last (OUTBOX_MAX_ATTEMPTS default 10).
     const row = await until('the message to be marked failed', async () => {

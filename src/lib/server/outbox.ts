@@ -319,29 +319,36 @@ export interface OutboxMessageStatus {
   sentAt: string | null;
 }
 
-/** Messages about one record (e.g. an assessment), newest first, for the UI and API. */
-export async function messagesAbout(
-  knex: Knex,
-  organisationId: string,
-  relatedType: string,
-  relatedId: string,
-): Promise<OutboxMessageStatus[]> {
-  const rows = await knex('outbox_messages')
-    .where({ organisation_id: organisationId, related_type: relatedType, related_id: relatedId })
-    .orderBy('created_at', 'desc')
-    .select(
-      'id',
-      'kind',
-      'to_addresses',
-      'subject',
-      'status',
-      'attempts',
-      'next_attempt_at',
-      'last_error',
-      'created_at',
-      'sent_at',
-    );
-  return rows.map((r) => ({
+/** The columns a message's status is read from (statusOf). */
+const statusColumns = [
+  'id',
+  'kind',
+  'to_addresses',
+  'subject',
+  'status',
+  'attempts',
+  'next_attempt_at',
+  'last_error',
+  'created_at',
+  'sent_at',
+] as const;
+
+interface StatusRow {
+  id: string;
+  kind: string;
+  to_addresses: string[];
+  subject: string;
+  status: OutboxMessageStatus['status'];
+  attempts: number;
+  next_attempt_at: Date;
+  last_error: string | null;
+  created_at: Date;
+  sent_at: Date | null;
+}
+
+/** A message's status as the UI and API show it: a sent or failed one has no next attempt. */
+function statusOf(r: StatusRow): OutboxMessageStatus {
+  return {
     id: r.id,
     kind: r.kind,
     to: r.to_addresses,
@@ -353,7 +360,21 @@ export async function messagesAbout(
     lastError: r.last_error,
     createdAt: new Date(r.created_at).toISOString(),
     sentAt: r.sent_at ? new Date(r.sent_at).toISOString() : null,
-  }));
+  };
+}
+
+/** Messages about one record (e.g. an assessment), newest first, for the UI and API. */
+export async function messagesAbout(
+  knex: Knex,
+  organisationId: string,
+  relatedType: string,
+  relatedId: string,
+): Promise<OutboxMessageStatus[]> {
+  const rows = await knex('outbox_messages')
+    .where({ organisation_id: organisationId, related_type: relatedType, related_id: relatedId })
+    .orderBy('created_at', 'desc')
+    .select<StatusRow[]>(statusColumns);
+  return rows.map(statusOf);
 }
 
 export interface UndeliveredMessage extends OutboxMessageStatus {
@@ -382,37 +403,15 @@ export async function undeliveredMessages(
     base()
       .orderBy('created_at', 'desc')
       .limit(limit)
-      .select(
-        'id',
-        'kind',
-        'to_addresses',
-        'subject',
-        'status',
-        'attempts',
-        'next_attempt_at',
-        'last_error',
-        'created_at',
-        'sent_at',
+      .select<(StatusRow & { related_type: string | null; related_id: string | null })[]>([
+        ...statusColumns,
         'related_type',
         'related_id',
-      ),
+      ]),
     base().count<{ n: string }[]>({ n: '*' }),
   ]);
   return {
     total: Number(n),
-    items: rows.map((r) => ({
-      id: r.id,
-      kind: r.kind,
-      to: r.to_addresses,
-      subject: r.subject,
-      status: r.status,
-      attempts: r.attempts,
-      nextAttemptAt: r.status === 'failed' ? null : new Date(r.next_attempt_at).toISOString(),
-      lastError: r.last_error,
-      createdAt: new Date(r.created_at).toISOString(),
-      sentAt: null,
-      relatedType: r.related_type,
-      relatedId: r.related_id,
-    })),
+    items: rows.map((r) => ({ ...statusOf(r), relatedType: r.related_type, relatedId: r.related_id })),
   };
 }
