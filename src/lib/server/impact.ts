@@ -34,6 +34,7 @@ import {
   rescoreRowsInRange,
   signedRuleOutcomes,
   type ImpactRow,
+  type RescoreScope,
   type SignedRuleOutcomes,
 } from './assessments';
 import { csvRow } from './csv';
@@ -264,12 +265,8 @@ export async function rescoreRows(
 const BATCH = Math.min(10_000, Math.max(1, Number(process.env.IMPACT_SLICE_SIZE) || 1000));
 
 /** One slice of the work: a version's candidate assessments with ids in (afterId, upToId]. */
-export interface ImpactSlice {
-  organisationId: string;
-  target: ImpactTarget;
-  versionId: string;
+export interface ImpactSlice extends RescoreScope {
   fromVersion: string;
-  basis: ImpactBasis;
   afterId: string | null;
   upToId: string;
 }
