@@ -35,14 +35,8 @@ export {
   organisationAssessmentsWithPlace,
   organisationsSignedUnderOtherVersions,
 } from './reads';
-export {
-  lastIdOfRescorePage,
-  rescoreRowsInRange,
-  signedRuleOutcomes,
-  type ImpactRow,
-  type RescoreScope,
-  type SignedRuleOutcomes,
-} from './impact-reads';
+// Ruleset impact's reads: the whole of impact-reads.ts is public.
+export * from './impact-reads';
 export {
   carriedForwardOf,
   confirmCarriedForward,
