@@ -21,7 +21,15 @@ import type {
   ImpactTarget,
 } from '@/lib/api/impact';
 import { db } from './db';
-import { impactTarget, rescoreSlice, slicesOf, worseFirst, type ImpactSlice } from './impact';
+import {
+  impactModuleUrl,
+  impactTarget,
+  rescoreSlice,
+  slicesOf,
+  worseFirst,
+  type ImpactSlice,
+} from './impact';
+import { startRescorePool, workerCount, type RescorePool } from './impact-workers';
 import { onJobsStarted, queueName, sendJob } from './jobs/boss';
 import { iso } from './listing';
 
@@ -169,7 +177,7 @@ async function addSlice(
   });
 }
 
-interface SliceJob {
+export interface SliceJob {
   organisationId: string;
   runId: string;
   slice: number;
@@ -177,31 +185,59 @@ interface SliceJob {
   spec: ImpactSlice;
 }
 
+/**
+ * This instance's re-scoring threads for queued slices (impact-workers.ts): IMPACT_WORKERS, by
+ * default one per core (at most 4) and at least one, so scoring never blocks the event loop that
+ * answers requests. Started with the job queue and kept; null where threads cannot load the
+ * module (the dev server), and then slices are scored in this thread.
+ */
+let slicePool: Promise<RescorePool | null> | undefined;
+export function impactSlicePool(): Promise<RescorePool | null> {
+  slicePool ??= startRescorePool(impactModuleUrl, workerCount(1), { unref: true }).catch(() => null);
+  return slicePool;
+}
+
+/**
+ * Slices this instance takes at once (IMPACT_CONCURRENCY, 1–16): by default one per thread, so
+ * each thread has a slice and an instance takes no more than it can score while others wait.
+ */
+export function impactConcurrency(threads: number): number {
+  const configured = Number(process.env.IMPACT_CONCURRENCY);
+  if (Number.isFinite(configured) && configured >= 1) return Math.min(16, Math.floor(configured));
+  return Math.max(1, threads);
+}
+
+/** Scores one queued slice and adds it into its run; a failure is recorded on the run, and the job retried. */
+export async function workSlice(
+  job: { data: SliceJob; retryCount: number; retryLimit: number },
+  pool: RescorePool | null,
+): Promise<void> {
+  const { runId, slice, spec } = job.data;
+  await db()('impact_runs')
+    .where({ id: runId, status: 'queued' })
+    .update({ status: 'running', started_at: db().fn.now() });
+  try {
+    await addSlice(runId, slice, pool ? await pool.run(spec) : await rescoreSlice(spec));
+  } catch (error) {
+    const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
+    const last = job.retryCount >= job.retryLimit;
+    await db()('impact_runs')
+      .where({ id: runId })
+      .update({ last_error: message, ...(last ? { status: 'failed' } : {}) });
+    throw error;
+  }
+}
+
 onJobsStarted(async (boss) => {
   if (process.env.IMPACT_QUEUE_WORKER === 'off') return;
-  // Slices at once in this process (IMPACT_CONCURRENCY, default 1: scoring is CPU-bound and runs
-  // in the server's thread, yielding to requests every hundred assessments).
-  const concurrency = Math.max(1, Math.min(8, Number(process.env.IMPACT_CONCURRENCY) || 1));
+  const pool = await impactSlicePool();
+  const concurrency = impactConcurrency(pool?.size ?? 1);
   for (let i = 0; i < concurrency; i++)
     await boss.work<SliceJob>(
       queueName('impact-slice'),
       { batchSize: 1, pollingIntervalSeconds: 0.5, includeMetadata: true },
       async ([job]) => {
-        if (!job) return;
-        const { runId, slice, spec } = job.data;
-        await db()('impact_runs')
-          .where({ id: runId, status: 'queued' })
-          .update({ status: 'running', started_at: db().fn.now() });
-        try {
-          await addSlice(runId, slice, await rescoreSlice(spec));
-        } catch (error) {
-          const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
-          const last = job.retryCount >= job.retryLimit;
-          await db()('impact_runs')
-            .where({ id: runId })
-            .update({ last_error: message, ...(last ? { status: 'failed' } : {}) });
-          throw error;
-        }
+        if (job) await workSlice(job, pool);
       },
     );
 });
