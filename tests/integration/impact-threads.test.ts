@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer } from '../../src/cli/services';
 import type { ImpactOutcome, ImpactRunView } from '../../src/lib/api/impact';
 import type { JobList } from '../../src/lib/api/jobs';
-import type { RescorePool } from '../../src/lib/server/impact-workers';
+import { startRescorePool, type RescorePool } from '../../src/lib/server/impact-workers';
 import { scoreParsed } from '../../src/lib/rules';
 import { buildEngineInput } from '../../src/lib/server/assessment-input';
 import {
@@ -115,7 +115,7 @@ describe('queued impact slices in re-scoring threads', () => {
   it('score a slice in a thread with the same findings as the engine in this thread, and add it to the run once', async () => {
     const slice = await sliceOfAll();
     const here = await impact.rescoreSlice(slice, testDb());
-    pool = await runs.impactSlicePool();
+    pool = await startRescorePool(impact.impactModuleUrl, 1);
     expect(pool).not.toBeNull();
     const there = await pool!.run(slice);
     expect(there).toHaveLength(20);
