@@ -10,6 +10,8 @@
  *  - the time to compute a ruleset impact over all of them: every assessment is signed under
  *    north-american-gate 2015.1 and re-scored in memory against 2026.1.
  * Targets: list p95 < 50 ms; impact < 30 s.
+ * `runImpactRunsBench` (`npx tsx tests/bench/archive.ts impact-runs`, or `npm run bench --
+ * impact-runs`) times the same impact as a queued run, one server instance against two.
  *
  * Seeding happens inside PostgreSQL: 2,000 walk-through records are generated and scored with
  * the real engine, and generate_series spreads them over the gates' visits, so every row carries
@@ -40,9 +42,6 @@ export interface ArchiveBenchFigures {
   impactAssessments: number;
   impactWorse: number;
   impactPerAssessmentUs: number;
-  /** The same impact as a queued run (job queue, sliced), taken by one server instance, then by two. */
-  impactQueuedOneInstanceSeconds: number;
-  impactQueuedTwoInstancesSeconds: number;
   assessments: number;
   gates: number;
 }
@@ -332,7 +331,8 @@ async function timeGet(
   return { ms, body };
 }
 
-export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
+/** The seeded scratch database (seeded on first use), migrated and with the rulesets published. */
+async function preparedArchive() {
   process.env.LATCHWELL_QUIET ??= '1';
   const endpoints = await ensureDatabase();
   // Migrated and seeded as the owner role; the server runs as the app role, as in production.
@@ -344,7 +344,6 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
   await migrateLatest(databaseUrl, endpoints.appRole);
   await publishRulesetFiles(databaseUrl);
   const db = knex({ ...knexConfig(databaseUrl), pool: { min: 0, max: 4 } });
-  let server: Awaited<ReturnType<typeof startAppServer>> | undefined;
   try {
     let org = await db('organisations').where('slug', `${SEED_MARK}-done`).first('id');
     if (!org) {
@@ -359,7 +358,25 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       console.log(`  seeded in ${((performance.now() - started) / 1000).toFixed(1)} s`);
       org = await db('organisations').where('slug', `${SEED_MARK}-done`).first('id');
     }
-    const organisationId = org.id as string;
+    return { endpoints, databaseUrl, db, organisationId: org.id as string };
+  } catch (error) {
+    await db.destroy();
+    throw error;
+  }
+}
+
+async function dropArchiveIfAsked(adminUrl: string): Promise<void> {
+  if (process.env.ARCHIVE_BENCH_DROP !== '1') return;
+  const admin = new pg.Client({ connectionString: adminUrl });
+  await admin.connect();
+  await admin.query(`drop database if exists "${DATABASE}" with (force)`);
+  await admin.end();
+}
+
+export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
+  const { endpoints, databaseUrl, db, organisationId } = await preparedArchive();
+  let server: Awaited<ReturnType<typeof startAppServer>> | undefined;
+  try {
     const [{ n: assessments }] = await db('assessments')
       .where('organisation_id', organisationId)
       .count({ n: '*' });
@@ -445,50 +462,6 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     if (previousUrl === undefined) delete process.env.DATABASE_URL;
     else process.env.DATABASE_URL = previousUrl;
 
-    // The same impact as a queued run on the job queue, its slices taken by one server instance,
-    // then by two (each on a channel of its own, so no other server takes its slices).
-    const queued: number[] = [];
-    for (const instances of [1, 2]) {
-      const channel = `bench-${instances}-${Date.now().toString(36)}`;
-      const env = {
-        DATABASE_URL: appUrlFor(endpoints, databaseUrl),
-        AUTH_SECRET: 'archive-bench-secret-0123456789abcdef',
-        AUTH_TRUST_HOST: 'true',
-        LATCHWELL_ENV: 'test',
-        OUTBOX_WORKER: 'off',
-        OUTBOX_CHANNEL: channel,
-        REINSPECTION_SCHEDULE: 'off',
-        SMTP_URL: 'smtp://127.0.0.1:9',
-      };
-      const running = [];
-      for (let i = 0; i < instances; i++)
-        running.push(await startAppServer({ port: await freePort(), quiet: true, env }));
-      try {
-        const runCookie = await signInCookie(running[0]!.url, 'office@bench-archive.test');
-        const started = performance.now();
-        const res = await fetch(`${running[0]!.url}/api/archive/impact/run`, {
-          method: 'POST',
-          headers: { cookie: runCookie, origin: running[0]!.url, 'content-type': 'application/json' },
-          body: JSON.stringify({ versionId: v2026.id, basis: 'all' }),
-        });
-        if (res.status !== 202) throw new Error(`queueing the impact run answered ${res.status}`);
-        const runId = ((await res.json()) as { run: { id: string } }).run.id;
-        for (;;) {
-          const run = await db('impact_runs').where({ id: runId }).first('status', 'considered', 'instances');
-          if (run.status === 'done') {
-            if (run.considered !== report.considered)
-              throw new Error(`the queued run considered ${run.considered}, not ${report.considered}`);
-            break;
-          }
-          if (run.status === 'failed') throw new Error('the queued impact run failed');
-          await new Promise((r) => setTimeout(r, 250));
-        }
-        queued.push((performance.now() - started) / 1000);
-      } finally {
-        await Promise.all(running.map((r) => r.stop()));
-      }
-    }
-
     const figures: ArchiveBenchFigures = {
       listP50Ms: round2(percentile(all, 0.5)),
       listP95Ms: round2(percentile(all, 0.95)),
@@ -498,8 +471,6 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
       impactAssessments: report.considered,
       impactWorse: report.worse,
       impactPerAssessmentUs: round2((impactSeconds * 1e6) / Math.max(1, report.considered)),
-      impactQueuedOneInstanceSeconds: round2(queued[0]!),
-      impactQueuedTwoInstancesSeconds: round2(queued[1]!),
       assessments: Number(assessments),
       gates: Number(gates),
     };
@@ -522,24 +493,200 @@ export async function runArchiveBench(): Promise<ArchiveBenchFigures> {
     console.log(
       `  impact of 2026.1 over ${report.considered.toLocaleString('en-GB')} signed assessments: ${figures.impactSeconds} s (${figures.impactPerAssessmentUs} µs each, ${report.workers ? `${report.workers} worker threads` : 'one thread'}; ${report.worse} worse, ${report.same} same, ${report.better} better, ${report.unscorable} unscorable) (target < 30 s)`,
     );
-    console.log(
-      `  the same as a queued run (job queue, slices of ${process.env.IMPACT_SLICE_SIZE || 1000}): one server instance ${figures.impactQueuedOneInstanceSeconds} s, two instances ${figures.impactQueuedTwoInstancesSeconds} s (${round2(figures.impactQueuedOneInstanceSeconds / Math.max(0.01, figures.impactQueuedTwoInstancesSeconds))}× faster on ${availableParallelism()} cores)`,
-    );
     return figures;
   } finally {
     await server?.stop();
     await db.destroy();
-    if (process.env.ARCHIVE_BENCH_DROP === '1') {
-      const admin = new pg.Client({ connectionString: endpoints.adminUrl });
-      await admin.connect();
-      await admin.query(`drop database if exists "${DATABASE}" with (force)`);
-      await admin.end();
+    await dropArchiveIfAsked(endpoints.adminUrl);
+  }
+}
+
+/** Figures of the queued-run bench, flat: `t<threads>…` per series (see runImpactRunsBench). */
+export type ImpactRunsBenchFigures = Record<string, number>;
+
+const p95 = (values: number[]) =>
+  round2(
+    percentile(
+      [...values].sort((x, y) => x - y),
+      0.95,
+    ),
+  );
+
+/** Times GET /api/health on `url` back to back (a pause between) until `stop()` says so. */
+function healthProbe(url: string, pauseMs = 100) {
+  const samples: number[] = [];
+  let stopping = false;
+  const done = (async () => {
+    while (!stopping) {
+      const started = performance.now();
+      const res = await fetch(`${url}/api/health`, { headers: { accept: 'application/json' } });
+      await res.arrayBuffer();
+      samples.push(performance.now() - started);
+      await new Promise((r) => setTimeout(r, pauseMs));
     }
+  })();
+  return {
+    samples,
+    async stop() {
+      stopping = true;
+      await done;
+      return samples;
+    },
+  };
+}
+
+interface QueuedRun {
+  seconds: number;
+  considered: number;
+  worse: number;
+  instancesUsed: number;
+  slices: number;
+  healthIdleP95Ms: number;
+  healthDuringP95Ms: number;
+  healthDuringMaxMs: number;
+}
+
+/** One queued impact run of `versionId` taken by `instances` app servers on a channel of their own. */
+async function queuedRun(
+  db: Knex,
+  serverEnv: Record<string, string>,
+  instances: number,
+  versionId: string,
+  basis: 'latest' | 'all',
+): Promise<QueuedRun> {
+  const env = { ...serverEnv, OUTBOX_CHANNEL: `bench-${instances}-${Date.now().toString(36)}` };
+  const running = [];
+  try {
+    for (let i = 0; i < instances; i++)
+      running.push(await startAppServer({ port: await freePort(), quiet: true, env }));
+    // Every instance starts its job queue (and its re-scoring threads) with its first request.
+    for (const server of running) await fetch(`${server.url}/api/health`).then((r) => r.arrayBuffer());
+    await new Promise((r) => setTimeout(r, 5000));
+    const url = running[0]!.url;
+    const idle = healthProbe(url, 50);
+    await new Promise((r) => setTimeout(r, 2000));
+    const healthIdle = await idle.stop();
+    const cookie = await signInCookie(url, 'office@bench-archive.test');
+    const started = performance.now();
+    const res = await fetch(`${url}/api/archive/impact/run`, {
+      method: 'POST',
+      headers: { cookie, origin: url, 'content-type': 'application/json' },
+      body: JSON.stringify({ versionId, basis }),
+    });
+    if (res.status !== 202) throw new Error(`queueing the impact run answered ${res.status}`);
+    const runId = ((await res.json()) as { run: { id: string } }).run.id;
+    const during = healthProbe(url);
+    let run: { status: string; considered: number; worse: number; instances: string[]; slices_total: number };
+    try {
+      for (;;) {
+        run = await db('impact_runs')
+          .where({ id: runId })
+          .first('status', 'considered', 'worse', 'instances', 'slices_total');
+        if (run.status === 'done') break;
+        if (run.status === 'failed') throw new Error('the queued impact run failed');
+        await new Promise((r) => setTimeout(r, 250));
+      }
+    } finally {
+      await during.stop();
+    }
+    const seconds = (performance.now() - started) / 1000;
+    return {
+      seconds: round2(seconds),
+      considered: run.considered,
+      worse: run.worse,
+      instancesUsed: run.instances.length,
+      slices: run.slices_total,
+      healthIdleP95Ms: p95(healthIdle),
+      healthDuringP95Ms: p95(during.samples),
+      healthDuringMaxMs: round2(Math.max(...during.samples)),
+    };
+  } finally {
+    await Promise.all(running.map((r) => r.stop()));
+  }
+}
+
+/**
+ * Queued impact runs (`npm run bench -- impact-runs`): the same run of 2026.1 over the seeded
+ * archive, its slices taken by one server instance, then by two against the same database, for
+ * each thread setting in IMPACT_BENCH_SERIES (re-scoring threads per instance, comma-separated;
+ * default `0,1,2`: 0 is scoring in the server's main thread). Also GET /api/health on the first
+ * instance, timed idle and while the run goes: what a load balancer sees of its event loop.
+ * IMPACT_BENCH_BASIS `latest` (default: each gate's last signed visit, 20,000 of the 100,000) or
+ * `all` (every signed assessment, about 92,000).
+ */
+export async function runImpactRunsBench(): Promise<ImpactRunsBenchFigures> {
+  const { endpoints, databaseUrl, db } = await preparedArchive();
+  const basis = process.env.IMPACT_BENCH_BASIS === 'all' ? 'all' : 'latest';
+  const series = (process.env.IMPACT_BENCH_SERIES ?? '0,1,2')
+    .split(',')
+    .map((t) => Number(t.trim()))
+    .filter((t) => Number.isInteger(t) && t >= 0);
+  try {
+    await ensureBuilt(console.log, true);
+    const [v2026] = await db('ruleset_versions as rv')
+      .join('rulesets as r', 'r.id', 'rv.ruleset_id')
+      .where({ 'r.family': 'north-american-gate', 'rv.version': '2026.1' })
+      .select('rv.id');
+    const figures: ImpactRunsBenchFigures = {};
+    let considered: number | undefined;
+    const sliceSize = process.env.IMPACT_SLICE_SIZE || '1000';
+    console.log(
+      `Queued impact runs of north-american-gate 2026.1 (basis ${basis}), slices of ${sliceSize}, on ${availableParallelism()} cores`,
+    );
+    for (const threads of series) {
+      const serverEnv = {
+        DATABASE_URL: appUrlFor(endpoints, databaseUrl),
+        AUTH_SECRET: 'archive-bench-secret-0123456789abcdef',
+        AUTH_TRUST_HOST: 'true',
+        LATCHWELL_ENV: 'test',
+        OUTBOX_WORKER: 'off',
+        REINSPECTION_SCHEDULE: 'off',
+        SMTP_URL: 'smtp://127.0.0.1:9',
+        IMPACT_WORKERS: String(threads),
+        IMPACT_SLICE_SIZE: sliceSize,
+        ...(process.env.IMPACT_CONCURRENCY ? { IMPACT_CONCURRENCY: process.env.IMPACT_CONCURRENCY } : {}),
+      };
+      const runs: QueuedRun[] = [];
+      for (const instances of [1, 2]) {
+        const load = loadavg()[0]!;
+        const run = await queuedRun(db, serverEnv, instances, v2026.id, basis);
+        considered ??= run.considered;
+        if (run.considered !== considered)
+          throw new Error(`a queued run considered ${run.considered}, another ${considered}`);
+        runs.push(run);
+        console.log(
+          `  ${threads ? `${threads} re-scoring thread${threads > 1 ? 's' : ''}` : 'main thread'} per instance, ${instances} instance${instances > 1 ? 's' : ''}: ${run.seconds} s for ${run.considered.toLocaleString('en-GB')} assessments in ${run.slices} slices (${run.worse} worse; ${run.instancesUsed} instance(s) took slices); health on instance 1 p95 idle ${run.healthIdleP95Ms} ms, during ${run.healthDuringP95Ms} ms (max ${run.healthDuringMaxMs} ms); load average at start ${load.toFixed(1)}`,
+        );
+      }
+      const [one, two] = runs as [QueuedRun, QueuedRun];
+      const key = `t${threads}`;
+      figures[`${key}OneSeconds`] = one.seconds;
+      figures[`${key}TwoSeconds`] = two.seconds;
+      figures[`${key}Speedup`] = round2(one.seconds / Math.max(0.01, two.seconds));
+      figures[`${key}HealthIdleP95Ms`] = one.healthIdleP95Ms;
+      figures[`${key}HealthDuringP95Ms`] = one.healthDuringP95Ms;
+      figures[`${key}PerHundredThousandSeconds`] = round2(
+        (one.seconds * 100_000) / Math.max(1, one.considered),
+      );
+      console.log(
+        `    speed-up with two instances ${figures[`${key}Speedup`]}×; 100,000 assessments by extrapolation: one instance ${figures[`${key}PerHundredThousandSeconds`]} s, two ${round2((two.seconds * 100_000) / Math.max(1, two.considered))} s`,
+      );
+    }
+    figures.assessments = considered ?? 0;
+    console.log(
+      `Machine: load average ${loadavg()
+        .map((l) => l.toFixed(1))
+        .join(' ')}`,
+    );
+    return figures;
+  } finally {
+    await db.destroy();
+    await dropArchiveIfAsked(endpoints.adminUrl);
   }
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  runArchiveBench()
+  (process.argv.includes('impact-runs') ? runImpactRunsBench() : runArchiveBench())
     .then(() => process.exit(0))
     .catch((error) => {
       console.error(error);

@@ -93,16 +93,57 @@ const benches: Bench[] = [
       row('archive', 'list p50 @100k', f.listP50Ms, 'ms', 'reported', () => null),
       row('archive', 'list p95 @100k', f.listP95Ms, 'ms', '< 50 ms', (v) => v < 50),
       row('archive', 'ruleset impact over 100k', f.impactSeconds, 's', '< 30 s', (v) => v < 30),
-      row('archive', 'impact run, 1 instance', f.impactQueuedOneInstanceSeconds, 's', 'reported', () => null),
-      row(
-        'archive',
-        'impact run, 2 instances',
-        f.impactQueuedTwoInstancesSeconds,
-        's',
-        '< 1 instance',
-        (v) => v < (f.impactQueuedOneInstanceSeconds ?? Infinity),
-      ),
     ],
+  },
+  {
+    name: 'impact-runs',
+    module: './archive',
+    fn: 'runImpactRunsBench',
+    rows: (f) => {
+      const out: Row[] = [];
+      const n = f.assessments ? ` (${f.assessments})` : '';
+      for (const key of Object.keys(f).filter((k) => /^t\d+OneSeconds$/.test(k))) {
+        const t = key.slice(0, -'OneSeconds'.length);
+        const label = t === 't0' ? 'main thread' : `${t.slice(1)} thread(s)`;
+        out.push(
+          row(
+            'impact-runs',
+            `run${n}, 1 instance, ${label}`,
+            f[`${t}OneSeconds`],
+            's',
+            'reported',
+            () => null,
+          ),
+          row(
+            'impact-runs',
+            `run${n}, 2 instances, ${label}`,
+            f[`${t}TwoSeconds`],
+            's',
+            'reported',
+            () => null,
+          ),
+          // Two instances on one machine share its cores: faster only while cores are free.
+          row('impact-runs', `speed-up, ${label}`, f[`${t}Speedup`], '×', 'reported', () => null),
+          row(
+            'impact-runs',
+            `health p95 idle, ${label}`,
+            f[`${t}HealthIdleP95Ms`],
+            'ms',
+            'reported',
+            () => null,
+          ),
+          row(
+            'impact-runs',
+            `health p95 during run, ${label}`,
+            f[`${t}HealthDuringP95Ms`],
+            'ms',
+            t === 't0' ? 'reported' : '< 50 ms',
+            (v) => (t === 't0' ? null : v < 50),
+          ),
+        );
+      }
+      return out;
+    },
   },
   {
     name: 'load',

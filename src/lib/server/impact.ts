@@ -314,6 +314,9 @@ export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promi
 // Worker threads find rescoreSlice here after importing this module (see impact-workers.ts).
 (globalThis as Record<symbol, unknown>)[Symbol.for('latchwell.impact.rescoreSlice')] = rescoreSlice;
 
+/** This module's URL: what a re-scoring thread imports (the bundled chunk in the built server). */
+export const impactModuleUrl = import.meta.url;
+
 /**
  * Re-scores the archive against `target`, one outcome per assessment considered, as an async
  * stream: callers count, list or write CSV without holding the whole archive. Large archives are
@@ -335,7 +338,7 @@ export async function* rescoreArchive(
     yield* await rescoreSlice(first.value, knex);
     return;
   }
-  const pool = await startRescorePool(import.meta.url);
+  const pool = await startRescorePool(impactModuleUrl);
   info.workers = pool?.size ?? 0;
   try {
     // Two slices per worker in flight, or two here: one is read from the database while the
