@@ -12,6 +12,18 @@ import { generateInput } from './support/generate-input';
 import { createPrng } from './support/prng';
 import { shipped, shippedRulesets } from './support/shipped';
 
+/** The same object with every key order reversed, all the way down (as jsonb may hand a version back). */
+function reverseKeys<T>(value: T): T {
+  if (Array.isArray(value)) return value.map(reverseKeys) as T;
+  if (value && typeof value === 'object')
+    return Object.fromEntries(
+      Object.entries(value)
+        .reverse()
+        .map(([k, v]) => [k, reverseKeys(v)]),
+    ) as T;
+  return value;
+}
+
 /** A shipped version amended locally: one rule's params changed and a local rule added. */
 function amended(): LoadedRuleset {
   const doc = structuredClone(shipped('north-american-gate', '2026.2').version);
@@ -28,9 +40,15 @@ function amended(): LoadedRuleset {
 }
 
 describe('resultJson', () => {
-  it('writes the bytes JSON.stringify writes for generated results of every shipped version and an amended one', () => {
+  it('writes the bytes JSON.stringify writes for generated results of every shipped version, an amended one and one with its keys reordered', () => {
     const rng = createPrng(90_210);
-    const rulesets = [...shippedRulesets(), amended()];
+    const reordered = shipped('european-powered-gate', '2026.2');
+    const rulesets = [
+      ...shippedRulesets(),
+      amended(),
+      // Its own cache key: under the real one the compiled cache would hand back the shipped order.
+      { version: reverseKeys(reordered.version), contentSha256: 'f'.repeat(64) },
+    ];
     const outcomes = new Set<string>();
     let local = 0;
     let rated = 0;
@@ -46,11 +64,14 @@ describe('resultJson', () => {
         JSON.stringify(result),
       );
     }
+    // The reordered version writes its rule text in its own key order.
+    const input = generateInput(rng, reordered.version);
+    expect(JSON.stringify(score(input, rulesets.at(-1)!))).not.toBe(JSON.stringify(score(input, reordered)));
     // The inputs reach every outcome, local rules and HRN ratings.
     expect([...outcomes].sort()).toEqual(['fail', 'n/a', 'needs_info', 'pass']);
     expect(local).toBeGreaterThan(0);
     expect(rated).toBeGreaterThan(0);
-  }, 60_000); // six versions, 400 inputs scored: seconds on a busy 2-core host
+  }, 60_000); // seven versions, 400 inputs scored: seconds on a busy 2-core host
 
   it('writes a finding changed after scoring as it now stands', () => {
     const ruleset = shipped('european-powered-gate', '2026.2');
@@ -62,7 +83,11 @@ describe('resultJson', () => {
       (r) => (r.findings[1] = { ...r.findings[1]!, params: { limit: { value: 1 } } }),
       (r) => (r.findings[2] = { ...r.findings[2]!, note: 'added' } as never),
       (r) => (r.findings[3] = { ...r.findings[3]!, hrn: undefined }),
-      (r) => (r.findings[4] = { outcome: r.findings[4]!.outcome, ...r.findings[4]! }),
+      // The same members in another order.
+      (r) => {
+        const { ruleId, ...rest } = r.findings[4]!;
+        r.findings[4] = { ...rest, ruleId };
+      },
       (r) => (r.findings[5] = { ...r.findings[5]!, local: true }),
       (r) => (r.findings[6] = { ...r.findings[6]!, caution: undefined as never }),
       (r) => (r.findings[7] = undefined as never),
