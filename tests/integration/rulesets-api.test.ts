@@ -6,7 +6,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { loadRulesetFile } from '../../src/lib/rules';
+import { loadRulesetFile, score } from '../../src/lib/rules';
 import {
   createOrganisation,
   fixturePassword,
@@ -118,6 +118,20 @@ describe('POST /api/score', () => {
       await auditor.json('POST', '/api/score', { family: NA, input: swingGateInput() })
     ).text();
     expect(second).toBe(first);
+  });
+
+  // The version comes from the database (jsonb reorders keys), so the text is compared as data here;
+  // tests/unit/rules/result-json.test.ts holds the endpoint's writer to JSON.stringify byte for byte.
+  it('answers the result the engine gives, as application/json', async () => {
+    for (const [version, input] of [
+      ['2026.2', swingGateInput()],
+      ['2015.1', slideGateInput()],
+    ] as const) {
+      const res = await auditor.json('POST', '/api/score', { family: NA, version, input });
+      expect(res.status).toBe(200);
+      expect(res.headers.get('content-type')).toBe('application/json');
+      expect(JSON.parse(await res.text())).toEqual(score(input, shipped(version)));
+    }
   });
 
   it('scores against a named older version when asked', async () => {

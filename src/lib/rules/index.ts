@@ -25,6 +25,7 @@ export { buildFacts, type Facts, type FactsResult, type EvidenceProblem } from '
 export { FACT_CATALOGUE, POWER_INPUT_KEYS, SIGNAGE_INPUT_KEYS, type FactSpec } from './fact-catalogue';
 export { AssessmentInputError, checkInputAgainstRuleset, isIsoDate, type InputIssue } from './input-check';
 export { inputRecordJson, inputSha256 } from './input-hash';
+export { resultJson } from './result-json';
 export {
   assembleInput,
   SITE_FACT_KEYS,

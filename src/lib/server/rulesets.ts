@@ -18,7 +18,9 @@ import type {
 } from '@/lib/api/rulesets';
 import {
   AssessmentInputError,
+  compileRuleset,
   diffRulesets,
+  resultJson,
   scoreParsed,
   type LoadedRuleset,
   type RulesetDiff,
@@ -351,10 +353,20 @@ export async function diffVersions(
 
 /**
  * Scores an input against the family's current version or the named one (a draft included, for
- * its owner's preview). A family or version the viewer cannot see is a field error; an input that
- * does not fit the version is a 422 naming each field under `input.`.
+ * its owner's preview) and gives the result as the endpoint answers it: the JSON text
+ * JSON.stringify(result) writes, written by resultJson (each rule's text, most of a result's
+ * bytes, once per version). A family or version the viewer cannot see is a field error; an input
+ * that does not fit the version is a 422 naming each field under `input.`.
  */
-export async function scorePreview(viewer: SessionUser, request: ScoreRequest): Promise<ScoreResult> {
+export async function scorePreviewJson(viewer: SessionUser, request: ScoreRequest): Promise<string> {
+  const { result, loaded } = await scorePreview(viewer, request);
+  return resultJson(result, compileRuleset(loaded.version, loaded.contentSha256));
+}
+
+async function scorePreview(
+  viewer: SessionUser,
+  request: ScoreRequest,
+): Promise<{ result: ScoreResult; loaded: LoadedRuleset }> {
   const target = await findScorableVersion(viewer, request.family, request.version);
   if (!target) {
     const family = await resolveFamily(viewer, request.family);
@@ -375,7 +387,7 @@ export async function scorePreview(viewer: SessionUser, request: ScoreRequest): 
     async () => (await db()('ruleset_versions').where({ id: target.id }).first('content'))?.content,
   );
   try {
-    return scoreParsed(request.input, loaded);
+    return { result: scoreParsed(request.input, loaded), loaded };
   } catch (error) {
     if (!(error instanceof AssessmentInputError)) throw error;
     throw new HttpProblem(422, `The input does not fit ${loaded.version.family} ${loaded.version.version}.`, {

@@ -1,9 +1,13 @@
 import type { APIRoute } from 'astro';
+import { z } from 'zod';
 import { ScoreRequestSchema } from '@/lib/api/rulesets';
 import { requireRole } from '@/lib/server/http/guard';
 import { handle, parseBody } from '@/lib/server/http/problem';
-import { scorePreview } from '@/lib/server/rulesets';
+import { scorePreviewJson } from '@/lib/server/rulesets';
 import { staffRoles } from '@/lib/server/session-user';
+
+/** The request schema with zod's compiled fast path (an invalid body falls back to the ordinary parser: the same errors). */
+const scoreRequest = z.compile(ScoreRequestSchema);
 
 /**
  * A scoring preview: the input scored against the family's current version (the organisation's
@@ -11,5 +15,8 @@ import { staffRoles } from '@/lib/server/session-user';
  */
 export const POST: APIRoute = handle(async ({ locals, request }) => {
   const { user } = requireRole(locals, ...staffRoles);
-  return Response.json(await scorePreview(user, await parseBody(ScoreRequestSchema, request)));
+  // The same bytes and content type as Response.json(result), written faster (see resultJson).
+  return new Response(await scorePreviewJson(user, await parseBody(scoreRequest, request)), {
+    headers: { 'content-type': 'application/json' },
+  });
 });

@@ -17,8 +17,27 @@ export const scale = (a: Point, k: number): Point => ({ x: a.x * k, y: a.y * k }
 export const dot = (a: Point, b: Point): number => a.x * b.x + a.y * b.y;
 /** z-component of the 3D cross product: signed area spanned by a and b. */
 export const cross = (a: Point, b: Point): number => a.x * b.y - a.y * b.x;
+/**
+ * √(x² + y²) by the steps of V8's Math.hypot for two arguments (each magnitude divided by the
+ * larger, squares summed, square root times the larger; its Kahan compensation is exactly 0 after
+ * the first of two terms), so the result is bit-identical with Math.hypot(x, y), infinities and
+ * NaN included (a unit test compares the two over a million pairs). The builtin copies its
+ * arguments into a new array on every call; the swing sweep makes over a thousand calls per gate.
+ */
+export function hypot(x: number, y: number): number {
+  const ax = Math.abs(x);
+  const ay = Math.abs(y);
+  if (ax === Infinity || ay === Infinity) return Infinity;
+  if (Number.isNaN(ax) || Number.isNaN(ay)) return Number.NaN;
+  const max = ax > ay ? ax : ay;
+  if (max === 0) return 0;
+  const nx = ax / max;
+  const ny = ay / max;
+  return Math.sqrt(nx * nx + ny * ny) * max;
+}
+
 /** Vector length and the distance between two points. */
-export const length = (a: Point): number => Math.hypot(a.x, a.y);
+export const length = (a: Point): number => hypot(a.x, a.y);
 export const distance = (a: Point, b: Point): number => length(subtract(a, b));
 
 /** Angle conversions: inputs and results speak degrees, Math speaks radians. */
@@ -42,7 +61,7 @@ export function distanceToSegment(p: Point, a: Point, b: Point): number {
 /**
  * distanceToSegment on plain coordinates: the sweeps call it hundreds of times per gate, and
  * this form builds no point objects. Same arithmetic, in the same order, as the vector form.
- * Math.hypot stays (rather than a hand-written square root) so results are bit-identical with it.
+ * hypot (not a plain square root) keeps results bit-identical with Math.hypot.
  */
 export function distanceToSegmentXY(
   px: number,
@@ -55,9 +74,9 @@ export function distanceToSegmentXY(
   const abx = bx - ax;
   const aby = by - ay;
   const lengthSquared = abx * abx + aby * aby;
-  if (lengthSquared === 0) return Math.hypot(px - ax, py - ay);
+  if (lengthSquared === 0) return hypot(px - ax, py - ay);
   const t = Math.min(1, Math.max(0, ((px - ax) * abx + (py - ay) * aby) / lengthSquared));
-  return Math.hypot(px - (ax + abx * t), py - (ay + aby * t));
+  return hypot(px - (ax + abx * t), py - (ay + aby * t));
 }
 
 /** True when segments a1–a2 and b1–b2 cross or touch. */

@@ -14,6 +14,7 @@ import {
   cross,
   direction,
   distance,
+  hypot,
   point,
   scale,
   segmentDistance,
@@ -115,7 +116,7 @@ function layoutOf(input: SwingOperatorGeometryInput): Layout {
     throw new RangeError('The rear pivot cannot sit on the hinge axis');
   return {
     rearPivot,
-    frontRadius: Math.hypot(input.bracketFromHingeMm, offset),
+    frontRadius: hypot(input.bracketFromHingeMm, offset),
     frontAngleOffsetDeg: side * toDegrees(Math.atan2(offset, input.bracketFromHingeMm)),
     side,
     input,
@@ -180,7 +181,7 @@ function reachableRanges(
   shortest: number,
   longest: number,
 ): Array<{ fromDeg: number; toDeg: number }> {
-  const R = Math.hypot(layout.rearPivot.x, layout.rearPivot.y);
+  const R = hypot(layout.rearPivot.x, layout.rearPivot.y);
   const r = layout.frontRadius;
   // Law of cosines: L² = r² + R² − 2·r·R·cos ψ, so the angle where L hits a stroke end is ψ = ±acos(...).
   const gamma = (L: number) =>
@@ -292,7 +293,7 @@ function sweepSwing(
   const step = requirePositive('angleStepDeg', input.angleStepDeg ?? SWING_GEOMETRY_ANGLE_STEP_DEG);
   const shortest = input.retractedLengthMm;
   const longest = input.retractedLengthMm + input.strokeMm;
-  const rearRadius = Math.hypot(layout.rearPivot.x, layout.rearPivot.y);
+  const rearRadius = hypot(layout.rearPivot.x, layout.rearPivot.y);
   const leafLength = rearRadius + longest; // no part of the operator reaches beyond this along the leaf
 
   // One pass over the sampled angles; the first smallest value wins a tie.
@@ -322,7 +323,7 @@ function sweepSwing(
       cos * bracket + (onGrid ? (grid.cosNormal[i] as number) : Math.cos(toRadians(angle + 90))) * offset;
     const frontY =
       sin * bracket + (onGrid ? (grid.sinNormal[i] as number) : Math.sin(toRadians(angle + 90))) * offset;
-    const length = Math.hypot(frontX - rearX, frontY - rearY);
+    const length = hypot(frontX - rearX, frontY - rearY);
     const lever = Math.abs(rearX * frontY - rearY * frontX) / length;
     const bodyFraction = Math.min(bodyLengthMm, length) / length;
     const clearance =
