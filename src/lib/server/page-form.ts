@@ -35,6 +35,8 @@ function sentence(label: string, message: string): string {
 export function formErrors(
   view: Pick<DomainErrorView, 'status' | 'message' | 'errors'>,
   fields: Record<string, FormField>,
+  /** The summary's heading when the lines below name fields (what was not done), instead of the error's message. */
+  heading?: string,
 ): FormErrors {
   const byField: Record<string, string> = {};
   const loose: string[] = [];
@@ -51,7 +53,8 @@ export function formErrors(
       .filter((m) => m !== view.message)
       .map((m) => ({ text: /[.!?]$/.test(m) ? m : `${m}.`, target: null })),
   ];
-  return { status: view.status, message: view.message, items, byField };
+  const message = heading && items.some((item) => item.target) ? heading : view.message;
+  return { status: view.status, message, items, byField };
 }
 
 /** No errors: what a form shows before anything was posted. */

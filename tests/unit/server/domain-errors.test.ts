@@ -204,6 +204,19 @@ describe('what a page shows for an error', () => {
     expect(shown.items).toEqual([{ text: 'Current password is not right.', target: 'currentPassword' }]);
   });
 
+  it('heads the summary with what was not done when its lines name fields, else with the error', () => {
+    const wrong = new InvalidInputError('The current password is not right.', [
+      { field: 'currentPassword', message: 'is not right' },
+    ]);
+    expect(formErrors(pageErrorOf(wrong), fields, 'The password was not changed.').message).toBe(
+      'The password was not changed.',
+    );
+    const throttled = new RateLimitedError('Too many wrong passwords. Try again in 5 minutes.', 300);
+    expect(formErrors(pageErrorOf(throttled), fields, 'The password was not changed.').message).toBe(
+      'Too many wrong passwords. Try again in 5 minutes.',
+    );
+  });
+
   it('shows a message for a field the form does not have as a summary line without a link', () => {
     const shown = formErrors(
       pageErrorOf(new ConflictError('Not saved.', {}, [{ field: 'other', message: 'is taken' }])),
