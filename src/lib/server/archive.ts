@@ -15,7 +15,7 @@ import type {
 } from '@/lib/api/archive';
 import { applyArchiveFilter, archiveBase, archiveDateSql, archiveLookups } from './archive-filters';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { InvalidQueryError } from './errors';
 import { iso } from './listing';
 
 interface ArchiveRow {
@@ -144,7 +144,7 @@ export function decodeCursor(text: string, sort: ArchiveSort, field: 'after' | '
     parsed = null;
   }
   const bad = (message: string) =>
-    new HttpProblem(400, 'Some query parameters are invalid.', { errors: [{ field, message }] });
+    new InvalidQueryError('Some query parameters are invalid.', [{ field, message }]);
   if (!Array.isArray(parsed) || parsed.length !== 4) throw bad('is not a cursor from this list');
   const [cursorSort, value, parentId, id] = parsed as unknown[];
   if (cursorSort !== sort) throw bad('belongs to another sort order; start again from the first page');

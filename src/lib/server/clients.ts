@@ -8,7 +8,7 @@ import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/a
 import type { Page } from '@/lib/api/common';
 import { recordAudit } from './audit';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
 import type { SessionUser } from './session-user';
 
@@ -152,12 +152,10 @@ export async function updateClient(
       if (accounts.length) {
         const taken = await trx('users').whereRaw('email = ?::citext', [newEmail]).first('id');
         if (taken) {
-          throw new HttpProblem(
-            409,
+          throw new ConflictError(
             'Another sign-in account already uses that e-mail address; the client was not changed.',
-            {
-              errors: [{ field: 'contactEmail', message: 'already belongs to another sign-in account' }],
-            },
+            {},
+            [{ field: 'contactEmail', message: 'already belongs to another sign-in account' }],
           );
         }
       }
@@ -232,8 +230,7 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
     await trx('gates').whereIn('id', gateIds.clone()).forUpdate().select('id');
     const assessments = await countAssessmentsOfGates(trx, gateIds.clone());
     if (assessments > 0) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         `This client has ${assessments} assessment(s) on record, and assessments are kept; the client cannot be deleted.`,
       );
     }
@@ -241,8 +238,7 @@ export async function deleteClient(viewer: SessionUser, id: string): Promise<boo
       .where({ organisation_id: viewer.organisationId, client_id: id })
       .count<{ count: string }[]>({ count: '*' });
     if (Number(accounts) > 0) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         `${accounts} sign-in account(s) belong to this client; remove them before deleting the client.`,
       );
     }

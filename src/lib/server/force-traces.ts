@@ -13,7 +13,7 @@ import {
 import type { TraceLocation, TraceRecord } from '@/lib/api/uploads';
 import { assertEditable, getAssessment } from './assessments';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { InvalidInputError, NotFoundError } from './errors';
 import { iso, pgErrorCode } from './listing';
 import type { SessionUser } from './session-user';
 import { storage } from './storage';
@@ -65,7 +65,7 @@ function toRecord(row: TraceRow): TraceRecord {
 
 async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
   const assessment = await getAssessment(viewer, assessmentId);
-  if (!assessment) throw new HttpProblem(404, 'That assessment was not found.');
+  if (!assessment) throw new NotFoundError('That assessment');
   return assessment;
 }
 
@@ -103,11 +103,11 @@ export function judgeTrace(
     return { samples, evaluation: evaluateForceTrace(samples, { gateKind, gapMm }) };
   } catch (error) {
     if (!(error instanceof ForceTraceError)) throw error;
-    throw new HttpProblem(422, error.message, {
-      errors: [{ field: error.line ? `csv.line${error.line}` : 'csv', message: error.message }],
-      code: error.code,
-      line: error.line,
-    });
+    throw new InvalidInputError(
+      error.message,
+      [{ field: error.line ? `csv.line${error.line}` : 'csv', message: error.message }],
+      { code: error.code, line: error.line },
+    );
   }
 }
 

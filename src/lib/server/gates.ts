@@ -17,7 +17,7 @@ import type {
 import { applyMergePatch } from '@/lib/merge-patch';
 import { changedColumns, recordByPerson } from './audit';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError, InvalidInputError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
 import type { SessionUser } from './session-user';
 
@@ -165,10 +165,7 @@ async function assertSiteInOrganisation(knex: Knex, viewer: SessionUser, siteId:
     .where({ id: siteId, organisation_id: viewer.organisationId })
     .forShare()
     .first('id');
-  if (!site)
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
-      errors: [{ field: 'siteId', message: 'no such site in this organisation' }],
-    });
+  if (!site) throw InvalidInputError.field('siteId', 'no such site in this organisation');
 }
 
 export async function createGate(viewer: SessionUser, input: GateCreate, knex: Knex = db()): Promise<Gate> {
@@ -263,8 +260,7 @@ export async function deleteGate(
     if (!gate) return false;
     const count = await countAssessmentsOfGates(trx, [id]);
     if (count > 0) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         `This gate has ${count} assessment(s) on record, and assessments are kept; the gate cannot be deleted.`,
       );
     }

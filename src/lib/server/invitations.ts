@@ -15,7 +15,7 @@ import { invitationMail } from './auth/mails';
 import { linkOrigin } from './auth/public-origin';
 import { hashLinkToken, looksLikeLinkToken, newLinkToken } from './auth/tokens';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError, NotFoundError } from './errors';
 import { iso, pgErrorCode } from './listing';
 import { enqueueMail, wakeOutboxWorker } from './outbox';
 import { hashPassword } from './passwords';
@@ -70,9 +70,9 @@ export async function inviteStaff(
   const invitation = await db().transaction(async (trx) => {
     const existing = await trx('users').whereRaw('email = ?::citext', [input.email]).first('id');
     if (existing)
-      throw new HttpProblem(409, 'Someone with this e-mail address already has an account.', {
-        errors: [{ field: 'email', message: 'already has an account' }],
-      });
+      throw new ConflictError('Someone with this e-mail address already has an account.', {}, [
+        { field: 'email', message: 'already has an account' },
+      ]);
     const revoked = await trx('invitations')
       .where({ organisation_id: organisationId })
       .whereRaw('email = ?::citext', [input.email])
@@ -94,9 +94,9 @@ export async function inviteStaff(
         .returning(['id', 'email', 'role', 'expires_at', 'created_at']);
     } catch (error) {
       if (pgErrorCode(error) === UNIQUE_VIOLATION) {
-        throw new HttpProblem(409, 'This address already has an open invitation elsewhere.', {
-          errors: [{ field: 'email', message: 'already invited' }],
-        });
+        throw new ConflictError('This address already has an open invitation elsewhere.', {}, [
+          { field: 'email', message: 'already invited' },
+        ]);
       }
       throw error;
     }
@@ -174,14 +174,16 @@ export async function findOpenInvitation(token: string): Promise<OpenInvitation 
   return row ? { email: row.email, role: row.role, organisationName: row.organisation_name } : null;
 }
 
-/** Creates the invited person's account; 404 when the link is used, revoked, expired or unknown. */
+const invitationNotValid = () =>
+  new NotFoundError({ message: 'This invitation link is not valid any more. Ask for a new one.' });
+
+/** Creates the invited person's account; NotFoundError when the link is used, revoked, expired or unknown. */
 export async function acceptInvitation(
   token: string,
   input: InvitationAccept,
   ip: string | null,
 ): Promise<{ id: string; email: string; role: StaffRole }> {
-  if (!looksLikeLinkToken(token))
-    throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
+  if (!looksLikeLinkToken(token)) throw invitationNotValid();
   const passwordHash = await hashPassword(input.password);
   return db().transaction(async (trx) => {
     const invitation = await trx('invitations')
@@ -191,8 +193,7 @@ export async function acceptInvitation(
       .andWhere('expires_at', '>', trx.fn.now())
       .forUpdate()
       .first('id', 'organisation_id', 'email', 'role');
-    if (!invitation)
-      throw new HttpProblem(404, 'This invitation link is not valid any more. Ask for a new one.');
+    if (!invitation) throw invitationNotValid();
     let user: { id: string; email: string; role: StaffRole };
     try {
       [user] = await trx('users')
@@ -206,7 +207,7 @@ export async function acceptInvitation(
         .returning(['id', 'email', 'role']);
     } catch (error) {
       if (pgErrorCode(error) === UNIQUE_VIOLATION)
-        throw new HttpProblem(409, 'Someone with this e-mail address already has an account.');
+        throw new ConflictError('Someone with this e-mail address already has an account.');
       throw error;
     }
     await trx('invitations')

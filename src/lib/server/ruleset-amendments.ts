@@ -18,7 +18,7 @@ import { validateRuleset, type LoadedRuleset, type RulesetProblem, type RulesetV
 import { queueImpactAfterPublish } from './impact-runs';
 import { recordAudit } from './audit';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError, InvalidInputError, NotFoundError } from './errors';
 import { FOREIGN_KEY_VIOLATION, pgErrorCode } from './listing';
 import { loadedRuleset } from './ruleset-cache';
 import { amendmentContent, applyAmendment, localFamilyTitle, nextLocalVersionLabel } from './ruleset-edits';
@@ -41,9 +41,7 @@ export interface RequestFacts {
   ip: string | null;
 }
 
-function invalid(field: string, message: string): HttpProblem {
-  return new HttpProblem(422, 'Some fields are missing or invalid.', { errors: [{ field, message }] });
-}
+const invalid = InvalidInputError.field;
 
 /** Detail of a version just written, read back after the commit. */
 async function detailAfterCommit(
@@ -201,10 +199,9 @@ async function lockOwnVersion(
   action: string,
 ): Promise<LockedDraft> {
   const stored = await findVersion(user, family, version, trx);
-  if (!stored) throw new HttpProblem(404, 'That ruleset version was not found.');
+  if (!stored) throw new NotFoundError('That ruleset version');
   if (!stored.family.organisation_id) {
-    throw new HttpProblem(
-      409,
+    throw new ConflictError(
       `${family} is a shipped family and cannot be ${action}; derive an amendment of it instead.`,
     );
   }
@@ -215,8 +212,7 @@ async function lockOwnVersion(
     derived_from_version_id: string | null;
   }>('status', 'content', 'content_sha256', 'derived_from_version_id');
   if (row.status !== 'draft') {
-    throw new HttpProblem(
-      409,
+    throw new ConflictError(
       `${family} ${version} is ${row.status}: a published version never changes. Derive a new amendment to change it.`,
     );
   }
@@ -251,14 +247,13 @@ export async function amendDraft(
     const baseline = draft.derivedFromVersionId ? await contentById(draft.derivedFromVersionId, trx) : null;
     const edit = applyAmendment(draft.content, patch, baseline);
     if (!edit.ok)
-      throw new HttpProblem(422, 'Some changes cannot be made; nothing was saved.', {
-        errors: edit.problems,
-      });
+      throw new InvalidInputError('Some changes cannot be made; nothing was saved.', edit.problems);
     const checked = validateRuleset(edit.content);
     if (!checked.ok) {
-      throw new HttpProblem(422, 'The amended ruleset would not be valid; nothing was saved.', {
-        errors: documentProblems(checked.problems, edit.content),
-      });
+      throw new InvalidInputError(
+        'The amended ruleset would not be valid; nothing was saved.',
+        documentProblems(checked.problems, edit.content),
+      );
     }
     const { version: document, contentSha256 } = checked.ruleset;
     if (contentSha256 === draft.contentSha256) return;
@@ -300,9 +295,10 @@ export async function publishDraft(
     const draft = await lockOwnVersion(trx, user, family, version, 'published from here');
     const checked = validateRuleset(draft.content);
     if (!checked.ok)
-      throw new HttpProblem(422, 'This draft is not a valid ruleset; fix it before publishing.', {
-        errors: documentProblems(checked.problems, draft.content),
-      });
+      throw new InvalidInputError(
+        'This draft is not a valid ruleset; fix it before publishing.',
+        documentProblems(checked.problems, draft.content),
+      );
     await trx('ruleset_versions')
       .where({ id: draft.stored.id })
       .update({ status: 'published', published_at: trx.fn.now() });
@@ -343,7 +339,7 @@ export async function deleteDraft(
       await trx('ruleset_versions').where({ id: draft.stored.id }).delete();
     } catch (error) {
       if (pgErrorCode(error) === FOREIGN_KEY_VIOLATION)
-        throw new HttpProblem(409, 'Something on record refers to this draft, so it is kept.');
+        throw new ConflictError('Something on record refers to this draft, so it is kept.');
       throw error;
     }
     const left = await trx('ruleset_versions').where({ ruleset_id: draft.stored.family.id }).first('id');

@@ -28,7 +28,7 @@ import {
   type ScoreResult,
 } from '@/lib/rules';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { InvalidInputError } from './errors';
 import { iso } from './listing';
 import { loadedRuleset } from './ruleset-cache';
 import type { SessionUser } from './session-user';
@@ -371,14 +371,10 @@ async function scorePreview(
   if (!target) {
     const family = await resolveFamily(viewer, request.family);
     if (family && request.version) {
-      throw new HttpProblem(422, 'Some fields are missing or invalid.', {
-        errors: [
-          {
-            field: 'version',
-            message: `no version "${request.version}" of "${request.family}" that you can see`,
-          },
-        ],
-      });
+      throw InvalidInputError.field(
+        'version',
+        `no version "${request.version}" of "${request.family}" that you can see`,
+      );
     }
     invalidFamily(request.family, family);
   }
@@ -390,9 +386,10 @@ async function scorePreview(
     return { result: scoreParsed(request.input, loaded), loaded };
   } catch (error) {
     if (!(error instanceof AssessmentInputError)) throw error;
-    throw new HttpProblem(422, `The input does not fit ${loaded.version.family} ${loaded.version.version}.`, {
-      errors: error.issues.map((issue) => ({ field: `input.${issue.path}`, message: issue.message })),
-    });
+    throw new InvalidInputError(
+      `The input does not fit ${loaded.version.family} ${loaded.version.version}.`,
+      error.issues.map((issue) => ({ field: `input.${issue.path}`, message: issue.message })),
+    );
   }
 }
 
@@ -427,9 +424,7 @@ function invalidFamily(family: string, known: FamilyRow | undefined): never {
   const message = known
     ? `"${family}" has no published version yet`
     : `no ruleset family "${family}" that you can see`;
-  throw new HttpProblem(422, 'Some fields are missing or invalid.', {
-    errors: [{ field: 'family', message }],
-  });
+  throw InvalidInputError.field('family', message);
 }
 
 /** The parsed document of a version by its row id (the amendment lifecycle's baseline). */

@@ -22,7 +22,7 @@ import { PDFDocument } from 'pdf-lib';
 import { recordAudit } from './audit';
 import { authSecret } from './auth/settings';
 import { db } from './db';
-import { HttpProblem, type FieldError } from './http/problem';
+import { InvalidInputError } from './errors';
 import { iso } from './listing';
 import { factsOf, type CertificateFacts } from './pdf/certificate-facts';
 import { signPdfWithCertificate } from './pdf/digital-signature';
@@ -114,10 +114,8 @@ export function unsealPassphrase(organisationId: string, sealed: string): string
 
 // --- reading an upload ----------------------------------------------------------------------
 
-function invalid(field: 'certificate' | 'passphrase', message: string): HttpProblem {
-  return new HttpProblem(422, 'The certificate cannot be used.', {
-    errors: [{ field, message } satisfies FieldError],
-  });
+function invalid(field: 'certificate' | 'passphrase', message: string): InvalidInputError {
+  return new InvalidInputError('The certificate cannot be used.', [{ field, message }]);
 }
 
 const dateOnly = (d: Date) => d.toISOString().slice(0, 10);

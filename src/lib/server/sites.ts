@@ -8,7 +8,7 @@ import type { Page } from '@/lib/api/common';
 import type { Site, SiteCreate, SiteListQuery, SitePatch } from '@/lib/api/sites';
 import { changedColumns, recordByPerson } from './audit';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError, InvalidInputError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
 import type { SessionUser } from './session-user';
 
@@ -136,10 +136,7 @@ async function assertClientInOrganisation(knex: Knex, viewer: SessionUser, clien
     .where({ id: clientId, organisation_id: viewer.organisationId })
     .forShare()
     .first('id');
-  if (!client)
-    throw new HttpProblem(422, 'Some fields are missing or invalid.', {
-      errors: [{ field: 'clientId', message: 'no such client in this organisation' }],
-    });
+  if (!client) throw InvalidInputError.field('clientId', 'no such client in this organisation');
 }
 
 export async function createSite(viewer: SessionUser, input: SiteCreate, knex: Knex = db()): Promise<Site> {
@@ -200,8 +197,7 @@ export async function deleteSite(
     await gateIds.clone().forUpdate();
     const count = await countAssessmentsOfGates(trx, gateIds.clone());
     if (count > 0) {
-      throw new HttpProblem(
-        409,
+      throw new ConflictError(
         `A gate at this site has ${count} assessment(s) on record, and assessments are kept; the site cannot be deleted.`,
       );
     }

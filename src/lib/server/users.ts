@@ -8,7 +8,7 @@ import type { Page } from '@/lib/api/common';
 import type { User, UserListQuery, UserPatch } from '@/lib/api/users';
 import { recordAudit } from './audit';
 import { db } from './db';
-import { HttpProblem } from './http/problem';
+import { ConflictError, InvalidInputError } from './errors';
 import { fetchPage, iso } from './listing';
 import { toSessionOrganisation, organisationColumns, type OrganisationRow } from './organisations';
 import type { Role, SessionOrganisation, SessionUser } from './session-user';
@@ -150,12 +150,9 @@ export async function updateUser(
     const before = await getUser(organisationId, id, trx);
     if (!before) return null;
     if (before.role === 'homeowner' && patch.role !== undefined) {
-      throw new HttpProblem(
-        422,
+      throw new InvalidInputError(
         'A homeowner or property manager cannot be given a staff role; invite them as staff instead.',
-        {
-          errors: [{ field: 'role', message: 'cannot change the role of a homeowner or property manager' }],
-        },
+        [{ field: 'role', message: 'cannot change the role of a homeowner or property manager' }],
       );
     }
     const role = patch.role ?? before.role;
@@ -167,8 +164,7 @@ export async function updateUser(
         .whereNot({ id })
         .count({ count: '*' });
       if (Number(count) === 0)
-        throw new HttpProblem(
-          409,
+        throw new ConflictError(
           'The organisation needs at least one active owner; make someone else owner first.',
         );
     }

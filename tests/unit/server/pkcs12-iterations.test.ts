@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import forge from 'node-forge';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { HttpProblem } from '@/lib/server/http/problem';
+import { InvalidInputError } from '@/lib/server/errors';
 import { checkPkcs12, largestIterationCount } from '@/lib/server/signing-certificates';
 
 let dir: string;
@@ -64,11 +64,11 @@ function pkcs12(name: string, ...options: string[]): Buffer {
 
 const asn1Of = (bytes: Buffer) => forge.asn1.fromDer(forge.util.createBuffer(bytes.toString('binary')));
 
-function problemOf(call: () => unknown): HttpProblem {
+function problemOf(call: () => unknown): InvalidInputError {
   try {
     call();
   } catch (error) {
-    if (error instanceof HttpProblem) return error;
+    if (error instanceof InvalidInputError) return error;
     throw error;
   }
   throw new Error('expected the upload to be refused');
@@ -91,8 +91,8 @@ describe('iteration counts in an uploaded PKCS#12', () => {
 
     const over = pkcs12('over-limit', '-iter', '100001', '-nomaciter');
     const refused = problemOf(() => checkPkcs12(over, passphrase));
-    expect(refused.status).toBe(422);
-    expect(refused.extra.errors).toEqual([expect.objectContaining({ field: 'certificate' })]);
-    expect(refused.extra.errors?.[0]?.message).toMatch(/100000 key-derivation iterations/);
+    expect(refused.kind).toBe('invalid_input');
+    expect(refused.errors).toEqual([expect.objectContaining({ field: 'certificate' })]);
+    expect(refused.errors[0]?.message).toMatch(/100000 key-derivation iterations/);
   }, 60_000);
 });

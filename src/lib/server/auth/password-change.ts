@@ -7,42 +7,32 @@
 import type { PasswordChange } from '@/lib/api/users';
 import { recordAudit } from '../audit';
 import { db } from '../db';
-import { HttpProblem, problem } from '../http/problem';
+import { ForbiddenError, InvalidInputError, RateLimitedError, SignInRequiredError } from '../errors';
 import { hashPassword, verifyPassword } from '../passwords';
 import { staffRoles, type SessionUser } from '../session-user';
 import { checkThrottle, recordAttempt, waitInWords } from './throttle';
-
-/** 429 with Retry-After. */
-export class PasswordChangeThrottled extends HttpProblem {
-  constructor(
-    detail: string,
-    readonly retryAfter: string,
-  ) {
-    super(429, detail);
-  }
-  override toResponse(): Response {
-    return problem(429, this.message, {}, { 'retry-after': this.retryAfter });
-  }
-}
 
 type Outcome =
   | { outcome: 'changed'; sessionVersion: number }
   | { outcome: 'wrong' }
   | { outcome: 'throttled'; retryAfterSeconds: number };
 
-/** Returns the new session_version; throws 422 for a wrong current password, 429 when throttled. */
+/**
+ * Returns the new session_version; throws InvalidInputError for a wrong current password and
+ * RateLimitedError (with the wait) when throttled.
+ */
 export async function changePassword(
   user: SessionUser,
   input: PasswordChange,
   ip: string | null,
 ): Promise<number> {
-  if (!staffRoles.includes(user.role)) throw new HttpProblem(403, 'Only staff sign in with a password.');
+  if (!staffRoles.includes(user.role)) throw new ForbiddenError('Only staff sign in with a password.');
   const newHash = await hashPassword(input.newPassword);
   const result = await db().transaction(async (trx): Promise<Outcome> => {
     // The same lock as a sign-in of this account, so guesses here and there are counted in order.
     await trx.raw('select pg_advisory_xact_lock(hashtext(?))', [`sign-in:${user.email.toLowerCase()}`]);
     const row = await trx('users').where({ id: user.id, active: true }).first('id', 'email', 'password_hash');
-    if (!row) throw new HttpProblem(401, 'Sign in to use this.');
+    if (!row) throw new SignInRequiredError('Sign in to use this.');
     const throttle = await checkThrottle(trx, 'password', row.email, ip);
     if (throttle.throttled) return { outcome: 'throttled', retryAfterSeconds: throttle.retryAfterSeconds };
     const matches = await verifyPassword(row.password_hash, input.currentPassword);
@@ -75,16 +65,15 @@ export async function changePassword(
     return { outcome: 'changed', sessionVersion: updated.session_version };
   });
   if (result.outcome === 'throttled') {
-    const wait = String(result.retryAfterSeconds);
-    throw new PasswordChangeThrottled(
+    throw new RateLimitedError(
       `Too many wrong passwords. Try again in ${waitInWords(result.retryAfterSeconds)}.`,
-      wait,
+      result.retryAfterSeconds,
     );
   }
   if (result.outcome === 'wrong') {
-    throw new HttpProblem(422, 'The current password is not right.', {
-      errors: [{ field: 'currentPassword', message: 'is not right' }],
-    });
+    throw new InvalidInputError('The current password is not right.', [
+      { field: 'currentPassword', message: 'is not right' },
+    ]);
   }
   return result.sessionVersion;
 }

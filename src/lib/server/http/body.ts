@@ -9,10 +9,14 @@
  * Routes never call `request.json()`, `.formData()`, `.arrayBuffer()`, `.text()` or read
  * `request.body` themselves (tests/unit/server/body-readers.test.ts fails if one does).
  */
+import type { TooLargeError } from '../errors';
 import { HttpProblem } from './problem';
 
-/** Builds the refusal; `declaredBytes` is the announced Content-Length when that was the reason. */
-export type TooLarge = (declaredBytes: number | null) => HttpProblem;
+/**
+ * Builds the refusal; `declaredBytes` is the announced Content-Length when that was the reason.
+ * A domain module's own refusal (a photo's size in words) is a `TooLargeError`.
+ */
+export type TooLarge = (declaredBytes: number | null) => HttpProblem | TooLargeError;
 
 /** Forms posted to pages (sign-in, settings, staff, invitations, rulesets): a few short fields. */
 export const maxPageFormBytes = 64 * 1024;

@@ -3,7 +3,7 @@
  * `errors` and never a stack trace.
  */
 import { z } from 'zod';
-import { DomainError } from '../errors';
+import { CorruptRecordError, DomainError, RateLimitedError } from '../errors';
 import { readBodyText } from './body';
 
 export interface FieldError {
@@ -157,7 +157,13 @@ const domainStatus: Record<DomainError['kind'], number> = {
   not_found: 404,
   conflict: 409,
   invalid_input: 422,
+  invalid_query: 400,
   forbidden: 403,
+  sign_in_required: 401,
+  gone: 410,
+  too_large: 413,
+  unsupported_type: 415,
+  rate_limited: 429,
   corrupt_record: 500,
 };
 
@@ -167,6 +173,8 @@ export interface DomainErrorView {
   message: string;
   errors: FieldError[];
   details: Record<string, unknown>;
+  /** Response headers that belong to the answer (Retry-After of a rate limit). */
+  headers: Record<string, string>;
 }
 
 /**
@@ -177,25 +185,28 @@ export interface DomainErrorView {
  */
 export function domainErrorView(error: DomainError): DomainErrorView {
   const status = domainStatus[error.kind];
-  if (error.kind === 'corrupt_record') {
-    console.error('[domain] corrupt record:', (error as DomainError & { reason: string }).reason);
-    return { status, message: error.message, errors: [], details: {} };
+  if (error instanceof CorruptRecordError) {
+    console.error('[domain] corrupt record:', error.reason);
+    return { status, message: error.message, errors: [], details: {}, headers: {} };
   }
-  const errors = 'errors' in error ? (error as DomainError & { errors: FieldError[] }).errors : [];
-  return { status, message: error.message, errors, details: error.details };
+  const headers: Record<string, string> =
+    error instanceof RateLimitedError ? { 'retry-after': String(error.retryAfterSeconds) } : {};
+  return { status, message: error.message, errors: error.errors, details: error.details, headers };
 }
 
 export function domainProblem(error: DomainError): Response {
   const view = domainErrorView(error);
-  return problem(view.status, view.message, {
-    ...view.details,
-    ...(view.errors.length ? { errors: view.errors } : {}),
-  });
+  return problem(
+    view.status,
+    view.message,
+    { ...(view.errors.length ? { errors: view.errors } : {}), ...view.details },
+    view.headers,
+  );
 }
 
 /**
- * For pages: the view of a domain error (or of an HttpProblem thrown by an edge helper); any
- * other error is rethrown — a bug or an outage is not a message for the form.
+ * For pages: the view of a domain error (or of an HttpProblem thrown by an edge helper such as
+ * a body reader); any other error is rethrown — a bug or an outage is not a message for the form.
  */
 export function pageErrorOf(error: unknown): DomainErrorView {
   if (error instanceof DomainError) return domainErrorView(error);
@@ -205,8 +216,16 @@ export function pageErrorOf(error: unknown): DomainErrorView {
       message: error.message,
       errors: (error.extra.errors as FieldError[] | undefined) ?? [],
       details: {},
+      headers: {},
     };
   throw error;
+}
+
+/** A view's field errors by field (the first message of each), for a page to put beside its fields. */
+export function fieldMessages(view: Pick<DomainErrorView, 'errors'> | null): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const e of view?.errors ?? []) out[e.field] ??= e.message;
+  return out;
 }
 
 /** Connection-level failures (server down, pool exhausted) rather than bad queries. */

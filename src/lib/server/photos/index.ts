@@ -7,7 +7,7 @@ import type { Knex } from 'knex';
 import type { PhotoRecord } from '@/lib/api/uploads';
 import { assertEditable, getAssessment } from '../assessments';
 import { db } from '../db';
-import { HttpProblem } from '../http/problem';
+import { NotFoundError } from '../errors';
 import { iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
 import { storage } from '../storage';
@@ -79,7 +79,7 @@ function toRecord(row: PhotoRow): PhotoRecord {
 /** The assessment, if the viewer may see it (404 otherwise). */
 async function visibleAssessment(viewer: SessionUser, assessmentId: string) {
   const assessment = await getAssessment(viewer, assessmentId);
-  if (!assessment) throw new HttpProblem(404, 'That assessment was not found.');
+  if (!assessment) throw new NotFoundError('That assessment');
   return assessment;
 }
 

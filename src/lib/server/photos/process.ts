@@ -8,7 +8,7 @@ import exifReader from 'exif-reader';
 import { fileTypeFromBuffer } from 'file-type';
 import sharp, { type Metadata } from 'sharp';
 import { MAX_PHOTO_BYTES, megabytes } from '@/lib/api/uploads';
-import { HttpProblem } from '../http/problem';
+import { InvalidInputError, TooLargeError, UnsupportedTypeError } from '../errors';
 
 export { MAX_PHOTO_BYTES } from '@/lib/api/uploads';
 /** Longest side of the display size, px: sharp on a report page and a tablet. */
@@ -35,16 +35,17 @@ export interface ProcessedPhoto {
 }
 
 /** The size refusal, in words a technician can act on. */
-export function tooLargeProblem(bytes: number | null): HttpProblem {
+export function tooLargeProblem(bytes: number | null): TooLargeError {
   const limit = megabytes(MAX_PHOTO_BYTES);
   const size =
     bytes === null
       ? `This photo is larger than the ${limit} limit.`
       : `This photo is ${megabytes(bytes)}; the limit is ${limit}.`;
-  return new HttpProblem(413, `${size} Take it again at a lower resolution, or pick a smaller copy.`, {
-    errors: [{ field: 'photo', message: `must be at most ${limit}` }],
-    limitBytes: MAX_PHOTO_BYTES,
-  });
+  return new TooLargeError(
+    `${size} Take it again at a lower resolution, or pick a smaller copy.`,
+    [{ field: 'photo', message: `must be at most ${limit}` }],
+    { limitBytes: MAX_PHOTO_BYTES },
+  );
 }
 
 function exifTakenAt(exif: Buffer | undefined): Date | null {
@@ -58,29 +59,30 @@ function exifTakenAt(exif: Buffer | undefined): Date | null {
   }
 }
 
-/** Checks and converts one uploaded photo; throws HttpProblem 413 / 415 / 422 with a plain message. */
+/**
+ * Checks and converts one uploaded photo; throws TooLargeError, UnsupportedTypeError or
+ * InvalidInputError with a plain message.
+ */
 export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
   if (bytes.byteLength > MAX_PHOTO_BYTES) throw tooLargeProblem(bytes.byteLength);
   if (bytes.byteLength === 0)
-    throw new HttpProblem(422, 'The photo file is empty.', {
-      errors: [{ field: 'photo', message: 'must not be empty' }],
-    });
+    throw new InvalidInputError('The photo file is empty.', [
+      { field: 'photo', message: 'must not be empty' },
+    ]);
   const type = await fileTypeFromBuffer(bytes);
   if (!type || !ACCEPTED_PHOTO_TYPES[type.mime]) {
     const found = type ? `a ${type.ext.toUpperCase()} file` : 'not a picture we recognise';
-    throw new HttpProblem(415, `That file is ${found}. Send a JPEG, PNG, WebP or AVIF photo.`, {
-      errors: [
-        { field: 'photo', message: `must be one of: ${Object.values(ACCEPTED_PHOTO_TYPES).join(', ')}` },
-      ],
-    });
+    throw new UnsupportedTypeError(`That file is ${found}. Send a JPEG, PNG, WebP or AVIF photo.`, [
+      { field: 'photo', message: `must be one of: ${Object.values(ACCEPTED_PHOTO_TYPES).join(', ')}` },
+    ]);
   }
   let metadata: Metadata;
   try {
     metadata = await sharp(bytes, { limitInputPixels: MAX_INPUT_PIXELS }).metadata();
   } catch {
-    throw new HttpProblem(422, 'The photo could not be read; it may be damaged. Take it again.', {
-      errors: [{ field: 'photo', message: 'could not be decoded' }],
-    });
+    throw new InvalidInputError('The photo could not be read; it may be damaged. Take it again.', [
+      { field: 'photo', message: 'could not be decoded' },
+    ]);
   }
   const oriented = () => sharp(bytes, { limitInputPixels: MAX_INPUT_PIXELS }).rotate();
   const render = async (longSide: number, quality: number) => {
@@ -103,8 +105,8 @@ export async function processPhoto(bytes: Buffer): Promise<ProcessedPhoto> {
       takenAt: exifTakenAt(metadata.exif),
     };
   } catch {
-    throw new HttpProblem(422, 'The photo could not be converted; it may be damaged. Take it again.', {
-      errors: [{ field: 'photo', message: 'could not be decoded' }],
-    });
+    throw new InvalidInputError('The photo could not be converted; it may be damaged. Take it again.', [
+      { field: 'photo', message: 'could not be decoded' },
+    ]);
   }
 }

@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { db } from '../db';
 import { documentById, type DocumentRecord } from '../documents';
-import { HttpProblem } from '../http/problem';
+import { ConflictError, GoneError, NotFoundError, type DomainError } from '../errors';
 import { cautionsOf, verdictWords, type ReportCaution, type Verdict } from '../pdf/report-model';
 import { loadFrozenAssessment } from '../assessments';
 import { CONSENT_TEXT, INTENT_TEXT } from './schemas';
@@ -17,26 +17,24 @@ export const hashToken = (token: string) => createHash('sha256').update(token, '
 
 export type LinkState = 'ok' | 'used' | 'expired' | 'revoked' | 'unknown';
 
-const linkMessages: Record<Exclude<LinkState, 'ok'>, { status: number; detail: string }> = {
-  unknown: {
-    status: 404,
-    detail: 'This signing link is not valid. Check that the whole link was copied, or ask for a new one.',
-  },
-  used: { status: 409, detail: 'This signing link has already been used: the report is signed.' },
-  expired: { status: 410, detail: 'This signing link has expired. Ask the office for a new one.' },
-  revoked: {
-    status: 410,
-    detail: 'This signing link was replaced by a newer one. Use the link in the most recent e-mail.',
-  },
+const linkMessages: Record<Exclude<LinkState, 'ok'>, string> = {
+  unknown: 'This signing link is not valid. Check that the whole link was copied, or ask for a new one.',
+  used: 'This signing link has already been used: the report is signed.',
+  expired: 'This signing link has expired. Ask the office for a new one.',
+  revoked: 'This signing link was replaced by a newer one. Use the link in the most recent e-mail.',
 };
 
-export function linkProblem(state: Exclude<LinkState, 'ok'>): HttpProblem {
-  const { status, detail } = linkMessages[state];
-  return new HttpProblem(status, detail, { linkState: state });
+/** Why a link cannot be used: unknown is not found, used a conflict, expired or replaced gone. */
+export function linkProblem(state: Exclude<LinkState, 'ok'>): DomainError {
+  const message = linkMessages[state];
+  const details = { linkState: state };
+  if (state === 'unknown') return new NotFoundError({ message }, details);
+  if (state === 'used') return new ConflictError(message, details);
+  return new GoneError(message, details);
 }
 
 export function linkStateMessage(state: Exclude<LinkState, 'ok'>): string {
-  return linkMessages[state].detail;
+  return linkMessages[state];
 }
 
 export interface SignRequestRow {

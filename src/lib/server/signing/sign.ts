@@ -11,8 +11,7 @@ import { recordAudit } from '../audit';
 import { chainHead, recordAnchor } from '../audit-anchors';
 import { db } from '../db';
 import { storeDocument, type DocumentRecord } from '../documents';
-import { HttpProblem } from '../http/problem';
-import { ConflictError, InvalidInputError, NotFoundError } from '../errors';
+import { ConflictError, InvalidInputError, NotFoundError, TooLargeError } from '../errors';
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { signPdfWithCertificate } from '../pdf/digital-signature';
 import { signingCertificateFor } from '../signing-certificates';
@@ -33,11 +32,11 @@ function decodeSignaturePng(dataUrl: string): Buffer {
     bytes.length > 8 &&
     bytes.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
   if (!isPng)
-    throw new HttpProblem(422, 'The drawn signature is not a PNG image.', {
-      errors: [{ field: 'signature.png', message: 'must be a PNG image' }],
-    });
+    throw new InvalidInputError('The drawn signature is not a PNG image.', [
+      { field: 'signature.png', message: 'must be a PNG image' },
+    ]);
   if (bytes.length > MAX_SIGNATURE_PNG_BYTES)
-    throw new HttpProblem(413, 'The drawn signature image is too large.');
+    throw new TooLargeError('The drawn signature image is too large.');
   return bytes;
 }
 
