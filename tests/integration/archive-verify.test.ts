@@ -140,7 +140,7 @@ describe('public verification', () => {
     await testDb()('organisations').where({ id: org.id }).update({ time_zone: 'America/Denver' });
     try {
       const byId = new FormData();
-      byId.set('document', signed.documentId);
+      byId.set('document', signed.documentId!);
       const html = await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text();
       // Signed 2026-10-02 11:00 UTC: 05:00 in Denver (MDT, UTC-6).
       expect(html).toContain('Oct 2, 2026, 5:00 AM MDT');
@@ -156,7 +156,7 @@ describe('public verification', () => {
     const visitor = await signIn(visitorOrg.owner.email, fixturePassword);
     await saveOrganisationSettings(visitor, visitorOrg.id, { timeZone: 'Asia/Tokyo' });
     const byId = new FormData();
-    byId.set('document', signed.documentId);
+    byId.set('document', signed.documentId!);
     const html = await (await visitor.fetch('/verify', { method: 'POST', body: byId })).text();
     expect(html).toContain('Genuine');
     // 11:00 UTC is 20:00 in Tokyo (UTC+9, no daylight saving).

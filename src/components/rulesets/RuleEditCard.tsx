@@ -7,9 +7,8 @@ import { useId } from 'react';
 import type { AmendmentProblem } from '@/lib/api/rulesets';
 import type { RulesetRule } from '@/lib/rules/ruleset-schema';
 import { SEVERITIES, type Severity } from '@/lib/rules/vocabulary';
-import { describeCondition, fieldWords, formatParam, keyWords, type ParamLike } from '@/lib/vocabulary';
+import { describeCondition, fieldWords, formatParam, keyWords, type ParamLike, SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from '@/lib/vocabulary';
 import type { UnitSystem } from '@/lib/units';
-import { SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from '@/lib/vocabulary';
 
 /** What the owner has changed on this rule and not saved yet; param values as typed. */
 export interface RuleEdit {

@@ -7,8 +7,7 @@
  * CorruptRecordError, never a default, so a critical finding can never print as minor.
  */
 import type { CertificateFacts } from './certificate-facts';
-import { VERDICT_WORDS } from '@/lib/vocabulary';
-import type { EnteredMeasurement } from '@/lib/vocabulary';
+import { VERDICT_WORDS, type EnteredMeasurement } from '@/lib/vocabulary';
 import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
 import { ConflictError, CorruptRecordError } from '../errors';
 
