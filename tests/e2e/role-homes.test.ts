@@ -176,8 +176,11 @@ describe("the owner's background jobs", () => {
     await page.goto('/jobs');
     await page.getByRole('heading', { name: 'Background jobs', level: 1 }).waitFor();
     const dead = page.locator('[data-job-status="dead"]');
-    await dead.getByRole('button', { name: 'Retry' }).waitFor();
-    expect(await dead.innerText()).toContain('Please read and sign');
+    await dead.getByRole('button', { name: 'Retry: E-mail, Please read and sign' }).waitFor();
+    // Said once, in words: "Given up", the kind of job, what it is about, when it was given up.
+    expect(await dead.innerText()).toMatch(
+      /^Given up\s+E-mail\s+Please read and sign\s+Given up \w{3} \d{1,2}, \d{4}/,
+    );
     expect(await page.locator('[data-job-status="queued"]').count()).toBe(2);
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'jobs-01-owner', { fullPage: true });
