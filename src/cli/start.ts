@@ -21,7 +21,14 @@ const port = Number(process.env.PORT ?? 4321);
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_HTTP_PORT ?? 2526);
 // E-mailed links (the demo seed's too) point here unless AUTH_URL / PUBLIC_URL says otherwise.
-if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) process.env.PUBLIC_URL = listeningOrigin(host, port);
+// Forms are accepted only from that address too.
+if (!process.env.AUTH_URL && !process.env.PUBLIC_URL) {
+  process.env.PUBLIC_URL = listeningOrigin(host, port);
+  if (host === '0.0.0.0' || host === '::')
+    console.warn(
+      `[server] forms are accepted only from ${process.env.PUBLIC_URL}; set PUBLIC_URL to the address other devices use`,
+    );
+}
 
 const db = await ensureDatabase();
 const applied = await migrateLatest(db.migrationUrl, db.appRole);

@@ -3,8 +3,10 @@
  * today's visits and open drafts; the office on what waits for it (signatures, overdue
  * re-inspections, mail that did not go out, drafts of everyone); the owner on the same plus
  * staff and rulesets. The office's assessment list counts everyone's drafts, not only its own.
- * Screenshots into tests/e2e/screenshots/home-*.png.
+ * The owner's background jobs page lists queued and given-up work with its retry.
+ * Screenshots into tests/e2e/screenshots/home-*.png and jobs-*.png.
  */
+import PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPrng, sampleDocuments, sampleGate } from '../support/archive-samples';
 import {
@@ -15,6 +17,7 @@ import {
   publishedVersion,
 } from '../integration/support/archive';
 import { createOrganisation, testDb, type FixtureOrganisation } from '../integration/support/fixtures';
+import { bossDb } from '../../src/lib/server/jobs/boss';
 import { launchBrowser, type BrowserSession } from './support/browser';
 import { screenshotBothWidths, seriousAxeViolations } from './support/page-checks';
 import { signInThroughForm } from './support/sign-in';
@@ -22,6 +25,7 @@ import { signInThroughForm } from './support/sign-in';
 let org: FixtureOrganisation;
 let browser: BrowserSession;
 let awaitingId: string;
+let failedMailId: string;
 
 beforeAll(async () => {
   org = await createOrganisation('role homes');
@@ -57,19 +61,21 @@ beforeAll(async () => {
     documents: docs(),
   });
   // A sign request the mail server refused until the outbox gave up.
-  await testDb()('outbox_messages').insert({
-    organisation_id: org.id,
-    kind: 'sign_request',
-    to_addresses: ['stables@clients.test'],
-    subject: 'Please read and sign',
-    text_body: 'Please read and sign.',
-    status: 'failed',
-    attempts: 8,
-    last_error: '550 mailbox unavailable',
-    related_type: 'assessment',
-    related_id: awaitingId,
-    channel: 'e2e-role-homes',
-  });
+  [{ id: failedMailId }] = await testDb()('outbox_messages')
+    .insert({
+      organisation_id: org.id,
+      kind: 'sign_request',
+      to_addresses: ['stables@clients.test'],
+      subject: 'Please read and sign',
+      text_body: 'Please read and sign.',
+      status: 'failed',
+      attempts: 8,
+      last_error: '550 mailbox unavailable',
+      related_type: 'assessment',
+      related_id: awaitingId,
+      channel: 'e2e-role-homes',
+    })
+    .returning('id');
   browser = await launchBrowser(inject('baseUrl'));
 });
 
@@ -140,5 +146,43 @@ describe('each role lands on its own home', () => {
       .waitFor();
     expect(await seriousAxeViolations(page)).toEqual([]);
     await screenshotBothWidths(page, 'home-03-owner', { fullPage: true });
+  });
+});
+
+describe("the owner's background jobs", () => {
+  it('lists queued and given-up work readably on a phone and a desk, with retry for the dead message', async () => {
+    // Jobs on a channel of their own, so the test server's workers leave them where they are.
+    const channel = 'e2ejobspage';
+    const db = testDb();
+    await db.raw('select pgboss.latchwell_ensure_queues(?)', [channel]);
+    const boss = new PgBoss({ db: bossDb(db), migrate: false });
+    await boss.send(
+      `mail-dead.${channel}`,
+      { organisationId: org.id, outboxId: failedMailId, lastError: '550 mailbox unavailable' },
+      {},
+    );
+    await boss.send(
+      `mail.${channel}`,
+      { organisationId: org.id, outboxId: failedMailId },
+      { startAfter: new Date(Date.now() + 3 * 3_600_000) },
+    );
+    await boss.send(
+      `reinspection-reminders.${channel}`,
+      { organisationId: org.id },
+      { startAfter: new Date(Date.now() + 26 * 3_600_000) },
+    );
+    const { page } = browser;
+    await signInThroughForm(page, org.owner.email);
+    await page.goto('/jobs');
+    await page.getByRole('heading', { name: 'Background jobs', level: 1 }).waitFor();
+    const dead = page.locator('[data-job-status="dead"]');
+    await dead.getByRole('button', { name: 'Retry: E-mail, Please read and sign' }).waitFor();
+    // Said once, in words: "Given up", the kind of job, what it is about, when it was given up.
+    expect(await dead.innerText()).toMatch(
+      /^Given up\s+E-mail\s+Please read and sign\s+Given up \w{3} \d{1,2}, \d{4}/,
+    );
+    expect(await page.locator('[data-job-status="queued"]').count()).toBe(2);
+    expect(await seriousAxeViolations(page)).toEqual([]);
+    await screenshotBothWidths(page, 'jobs-01-owner', { fullPage: true });
   });
 });

@@ -256,7 +256,8 @@ describe('ruleset impact', () => {
             cookie: office.cookie,
             accept: 'application/json',
             'content-type': 'application/json',
-            origin: servers[i]!.url,
+            // Both serve the suite's public address, as behind a load balancer.
+            origin: inject('serverEnv').PUBLIC_URL,
           },
         });
       const started = await expectJson<ImpactRunView>(

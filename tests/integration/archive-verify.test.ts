@@ -6,7 +6,15 @@
 import { createHash } from 'node:crypto';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { createPrng, sampleGate } from '../support/archive-samples';
-import { anonymousClient, createOrganisation, testDb, type FixtureOrganisation } from './support/fixtures';
+import {
+  anonymousClient,
+  createOrganisation,
+  fixturePassword,
+  saveOrganisationSettings,
+  signIn,
+  testDb,
+  type FixtureOrganisation,
+} from './support/fixtures';
 import {
   addClient,
   addGate,
@@ -126,6 +134,34 @@ describe('public verification', () => {
     expect(await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text()).toContain(
       'No match',
     );
+  });
+
+  it("shows when it was signed in the signing organisation's zone to a visitor without one, and names the zone", async () => {
+    await testDb()('organisations').where({ id: org.id }).update({ time_zone: 'America/Denver' });
+    try {
+      const byId = new FormData();
+      byId.set('document', signed.documentId!);
+      const html = await (await anonymousClient().fetch('/verify', { method: 'POST', body: byId })).text();
+      // Signed 2026-10-02 11:00 UTC: 05:00 in Denver (MDT, UTC-6).
+      expect(html).toContain('Oct 2, 2026, 5:00 AM MDT');
+      expect(html).toContain('(time zone America/Denver)');
+      expect(html).not.toContain('(UTC)');
+    } finally {
+      await testDb()('organisations').where({ id: org.id }).update({ time_zone: 'UTC' });
+    }
+  });
+
+  it("shows it in the visitor's own organisation's zone when they are signed in", async () => {
+    const visitorOrg = await createOrganisation('verify-visitor');
+    const visitor = await signIn(visitorOrg.owner.email, fixturePassword);
+    await saveOrganisationSettings(visitor, visitorOrg.id, { timeZone: 'Asia/Tokyo' });
+    const byId = new FormData();
+    byId.set('document', signed.documentId!);
+    const html = await (await visitor.fetch('/verify', { method: 'POST', body: byId })).text();
+    expect(html).toContain('Genuine');
+    // 11:00 UTC is 20:00 in Tokyo (UTC+9, no daylight saving).
+    expect(html).toContain('Oct 2, 2026, 8:00 PM GMT+9');
+    expect(html).toContain('(time zone Asia/Tokyo)');
   });
 
   it('throttles one address after 60 checks in 15 minutes, API and page alike, and leaves other addresses alone', async () => {

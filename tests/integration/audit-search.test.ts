@@ -180,3 +180,44 @@ describe('searching and filtering the audit trail', () => {
     expect((await office.json('GET', '/api/archive/audit?q=newhire')).status).toBe(403);
   });
 });
+
+describe('gates in the audit trail', () => {
+  it('records a gate made over the API once (a replay adds nothing), with who made it', async () => {
+    const key = crypto.randomUUID();
+    const body = { siteId: dir.siteId, label: 'Audited side gate', kind: 'swing', leaves: 'single' };
+    const made = await office.fetch('/api/gates', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'idempotency-key': key },
+      body: JSON.stringify(body),
+    });
+    expect(made.status, await made.clone().text()).toBe(201);
+    const gate = (await made.json()) as { id: string };
+    const replay = await office.fetch('/api/gates', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'idempotency-key': key },
+      body: JSON.stringify(body),
+    });
+    expect(replay.headers.get('idempotent-replayed')).toBe('true');
+    const events = await search(owner, `gateId=${gate.id}`);
+    expect(actions(events)).toEqual(['gate.created']);
+    expect(events[0]).toMatchObject({ actorUserId: org.office.id, entityType: 'gate', entityId: gate.id });
+    expect(actions(await search(owner, `q=${encodeURIComponent('Audited side gate')}`))).toEqual([
+      'gate.created',
+    ]);
+    expect(await search(otherOwner, `gateId=${gate.id}`)).toEqual([]);
+  });
+
+  it("records a duplicated gate under the copy and in the original's history", async () => {
+    const res = await office.json('POST', `/api/gates/${dir.gateId}/duplicate`, {
+      label: 'Twin of the slider',
+    });
+    expect(res.status, await res.clone().text()).toBe(201);
+    const copy = (await res.json()) as { id: string };
+    const events = await search(owner, `gateId=${copy.id}`);
+    expect(actions(events)).toEqual(['gate.duplicated']);
+    expect(events[0]).toMatchObject({ actorUserId: org.office.id, entityId: copy.id });
+    expect(events[0]!.detail).toMatchObject({ gateId: dir.gateId });
+    expect(actions(await search(owner, `gateId=${dir.gateId}`))).toContain('gate.duplicated');
+    expect(actions(await search(owner, 'action=gate.duplicated'))).toEqual(['gate.duplicated']);
+  });
+});

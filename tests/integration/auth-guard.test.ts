@@ -9,6 +9,7 @@ import {
   type FixtureOrganisation,
   type TestClient,
 } from './support/fixtures';
+import { rawRequest } from './support/raw-http';
 
 const baseUrl = inject('baseUrl');
 let org: FixtureOrganisation;
@@ -134,6 +135,68 @@ describe('cross-site writes', () => {
     expect(res.status).toBe(403);
     expect(hasSession(owner)).toBe(true);
     expect((await owner.json('GET', '/api/organisation')).status).toBe(200);
+  });
+
+  // The same-site check compares Origin with the configured public address only: Host and
+  // X-Forwarded-* are written by whoever sends the request (or a DNS name pointed at the server).
+  const forgedHosts: { name: string; origin: string; headers: Record<string, string> }[] = [
+    { name: 'Host', origin: 'http://attacker.example', headers: { host: 'attacker.example' } },
+    {
+      name: 'X-Forwarded-Host',
+      origin: 'http://attacker.example',
+      headers: { 'x-forwarded-host': 'attacker.example' },
+    },
+    {
+      name: 'X-Forwarded-Proto and X-Forwarded-Host',
+      origin: 'https://attacker.example:8443',
+      headers: { 'x-forwarded-proto': 'https', 'x-forwarded-host': 'attacker.example:8443' },
+    },
+  ];
+  for (const forged of forgedHosts) {
+    it(`refuse a write whose Origin matches a forged ${forged.name}, changing nothing`, async () => {
+      const res = await rawRequest(`${baseUrl}/api/organisation`, {
+        method: 'PATCH',
+        headers: {
+          ...forged.headers,
+          origin: forged.origin,
+          cookie: owner.cookie,
+          'content-type': 'application/json',
+          accept: 'application/json',
+        },
+        body: JSON.stringify({ name: 'Taken over' }),
+      });
+      expect(res.status).toBe(403);
+      expect(res.json().detail).toBe('Requests from another site are refused.');
+      const row = await testDb()('organisations').where({ id: org.id }).first('name');
+      expect(row.name).toBe(org.name);
+      // The same forged headers with the configured public address as Origin pass.
+      const own = await rawRequest(`${baseUrl}/api/organisation`, {
+        method: 'PATCH',
+        headers: {
+          ...forged.headers,
+          origin: inject('serverEnv').PUBLIC_URL,
+          cookie: owner.cookie,
+          'content-type': 'application/json',
+        },
+        body: JSON.stringify({ reinspectionMonths: 19 }),
+      });
+      expect(own.status).toBe(200);
+      expect(own.json().reinspectionMonths).toBe(19);
+    });
+  }
+
+  it('refuse a sign-in form posted from a forged Host', async () => {
+    const res = await rawRequest(`${baseUrl}/api/auth/callback/credentials`, {
+      method: 'POST',
+      headers: {
+        host: 'attacker.example',
+        origin: 'http://attacker.example',
+        'content-type': 'application/x-www-form-urlencoded',
+      },
+      body: new URLSearchParams({ email: org.owner.email, password: fixturePassword }).toString(),
+    });
+    expect(res.status).toBe(403);
+    expect(res.json().detail).toBe('Requests from another site are refused.');
   });
 
   it('allow the same write from the site itself', async () => {

@@ -75,10 +75,11 @@ const photoPrefix = Buffer.from(
 );
 
 beforeAll(async () => {
+  const port = await freePort();
   server = await startAppServer({
-    port: await freePort(),
+    port,
     quiet: true,
-    env: { ...inject('serverEnv'), OUTBOX_WORKER: 'off' },
+    env: { ...inject('serverEnv'), PUBLIC_URL: `http://127.0.0.1:${port}`, OUTBOX_WORKER: 'off' },
   });
   org = await createOrganisation('body limits');
   const dir = await seedDirectory(org);

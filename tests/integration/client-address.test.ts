@@ -31,10 +31,11 @@ let office: TestClient;
 
 beforeAll(async () => {
   const { TRUST_PROXY: _trusted, ...env } = inject('serverEnv');
+  const port = await freePort();
   untrusted = await startAppServer({
-    port: await freePort(),
+    port,
     quiet: true,
-    env: { ...env, OUTBOX_WORKER: 'off' },
+    env: { ...env, PUBLIC_URL: `http://127.0.0.1:${port}`, OUTBOX_WORKER: 'off' },
   });
   org = await createOrganisation('client address');
   office = await signIn(org.office.email, fixturePassword);

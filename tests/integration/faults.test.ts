@@ -46,6 +46,7 @@ function startServer(): Promise<RunningServer> {
     env: {
       ...inject('serverEnv'),
       DATABASE_URL: databaseUrl,
+      PUBLIC_URL: `http://127.0.0.1:${serverPort}`,
       OUTBOX_WORKER: 'off',
       LATCHWELL_DATA_DIR: path.join(dataDir, 'files'),
     },

@@ -26,13 +26,15 @@ let s3: S3rver;
 const servers: RunningServer[] = [];
 let org: FixtureOrganisation;
 let auditorOnA: TestClient;
+/** Both instances serve one public address (PUBLIC_URL), as behind a load balancer. */
+const publicUrl = inject('serverEnv').PUBLIC_URL;
 
 /** Requests to instance B carrying the cookie the fixture client got from instance A. */
 function onB(client: TestClient, pathname: string, init: RequestInit = {}) {
   const b = servers[1];
   return fetch(`${b.url}${pathname}`, {
     ...init,
-    headers: { ...(init.headers as Record<string, string>), cookie: client.cookie, origin: b.url },
+    headers: { ...(init.headers as Record<string, string>), cookie: client.cookie, origin: publicUrl },
     redirect: 'manual',
   });
 }
@@ -83,7 +85,7 @@ function onA(client: TestClient, pathname: string, init: RequestInit = {}) {
   const a = servers[0];
   return fetch(`${a.url}${pathname}`, {
     ...init,
-    headers: { ...(init.headers as Record<string, string>), cookie: client.cookie, origin: a.url },
+    headers: { ...(init.headers as Record<string, string>), cookie: client.cookie, origin: publicUrl },
     redirect: 'manual',
   });
 }

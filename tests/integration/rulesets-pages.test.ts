@@ -126,4 +126,17 @@ describe('ruleset pages', () => {
     });
     expect(refused.status).toBe(403);
   });
+
+  it('shows each caution as the homeowner reads it, without the disclaimer sentence, on the version page and in the editor', async () => {
+    const caution = 'Nobody should be able to work the gate while standing where it moves.';
+    const disclaimer = 'This assessment supports, and never replaces';
+    const version = textOf((await page(owner, `/rulesets/${NA}/2026.1`)).html);
+    expect(version).toContain(caution);
+    expect(version).not.toContain(disclaimer);
+    const editor = await page(owner, `/rulesets/${NA}-local/2026.1-local.1/edit`);
+    expect(editor.status).toBe(200);
+    const text = textOf(editor.html);
+    expect(text).toContain(`Homeowner: ${caution}`);
+    expect(text).not.toContain(disclaimer);
+  });
 });

@@ -6,7 +6,15 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { CLIENT_KINDS, ClientCreateSchema, ClientPatchSchema, type Client } from '@/lib/api/clients';
-import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+import {
+  apiResolver,
+  Field,
+  FormMessage,
+  InputField,
+  SelectField,
+  sendJson,
+  withoutBlanks,
+} from './form-kit';
 
 interface Values {
   name: string;
@@ -21,6 +29,7 @@ const KIND_LABEL = {
   property_manager: 'Property manager',
   business: 'Business',
 } as const;
+const KIND_OPTIONS = CLIENT_KINDS.map((k) => ({ value: k, label: KIND_LABEL[k] }));
 
 /** The fields that differ from the stored client; a blanked optional field is sent as null. */
 function changes(client: Client, values: Values): Partial<Record<keyof Values, string | null>> {
@@ -67,50 +76,31 @@ export default function ClientForm({ client }: { client?: Client } = {}) {
   });
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
-      <Field label="Name" error={errors.name?.message} className="sm:col-span-2">
-        {(id, d) => (
-          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />
-        )}
-      </Field>
-      <Field label="Kind of client" error={errors.kind?.message}>
-        {(id, d) => (
-          <select id={id} aria-describedby={d} className="field" {...register('kind')}>
-            {CLIENT_KINDS.map((k) => (
-              <option key={k} value={k}>
-                {KIND_LABEL[k]}
-              </option>
-            ))}
-          </select>
-        )}
-      </Field>
-      <Field label="Phone" error={errors.phone?.message}>
-        {(id, d) => (
-          <input
-            id={id}
-            aria-describedby={d}
-            className="field"
-            type="tel"
-            autoComplete="off"
-            {...register('phone')}
-          />
-        )}
-      </Field>
-      <Field
+      <InputField
+        label="Name"
+        error={errors.name?.message}
+        className="sm:col-span-2"
+        registration={register('name')}
+      />
+      <SelectField
+        label="Kind of client"
+        error={errors.kind?.message}
+        registration={register('kind')}
+        options={KIND_OPTIONS}
+      />
+      <InputField
+        label="Phone"
+        error={errors.phone?.message}
+        registration={register('phone')}
+        input={{ type: 'tel' }}
+      />
+      <InputField
         label="E-mail for reports and signing"
         error={errors.contactEmail?.message}
         className="sm:col-span-2"
-      >
-        {(id, d) => (
-          <input
-            id={id}
-            aria-describedby={d}
-            className="field"
-            type="email"
-            autoComplete="off"
-            {...register('contactEmail')}
-          />
-        )}
-      </Field>
+        registration={register('contactEmail')}
+        input={{ type: 'email' }}
+      />
       <Field label="Notes" error={errors.notes?.message} className="sm:col-span-2">
         {(id, d) => (
           <textarea id={id} aria-describedby={d} className="field min-h-20" {...register('notes')} />

@@ -15,7 +15,15 @@ import {
 } from '@/lib/api/gates';
 import type { UnitSystem } from '@/lib/units';
 import { parseFeetAndInches } from '@/lib/vocabulary';
-import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+import {
+  apiResolver,
+  Field,
+  FormMessage,
+  InputField,
+  SelectField,
+  sendJson,
+  withoutBlanks,
+} from './form-kit';
 
 type Tri = boolean | undefined;
 interface Values {
@@ -62,6 +70,27 @@ const POWER_LABEL: Record<string, string> = {
   solar: 'Solar',
   other: 'Other',
 };
+
+const KIND_OPTIONS = GATE_KIND_VALUES.map((k) => ({ value: k, label: KIND_LABEL[k] ?? k }));
+const LEAVES_OPTIONS = [
+  { value: 'single', label: 'One leaf' },
+  { value: 'double', label: 'Two leaves' },
+];
+const OPENING_OPTIONS = [
+  { value: 'pull_to_open', label: 'Toward the operator side (pull to open)' },
+  { value: 'push_to_open', label: 'Away from the operator side (push to open)' },
+];
+const notRecorded = { value: '', label: 'Not recorded' };
+const MOUNTING_OPTIONS = [
+  notRecorded,
+  ...OPERATOR_MOUNTINGS.map((m) => ({ value: m, label: MOUNTING_LABEL[m] ?? m })),
+];
+const POWER_OPTIONS = [notRecorded, ...OPERATOR_POWER.map((p) => ({ value: p, label: POWER_LABEL[p] ?? p }))];
+const TRI_OPTIONS = [
+  { value: '', label: 'Not known yet' },
+  { value: 'true', label: 'Yes' },
+  { value: 'false', label: 'No' },
+];
 
 const triState = {
   setValueAs: (v: unknown) => (v === '' || v === undefined ? undefined : v === true || v === 'true'),
@@ -181,66 +210,54 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
     hint: string,
     error?: string,
   ) => (
-    <Field label={label} hint={hint} error={error}>
-      {(id, d) => (
-        <select id={id} aria-describedby={d} className="field" {...register(name, triState)}>
-          <option value="">Not known yet</option>
-          <option value="true">Yes</option>
-          <option value="false">No</option>
-        </select>
-      )}
-    </Field>
+    <SelectField
+      label={label}
+      hint={hint}
+      error={error}
+      registration={register(name, triState)}
+      options={TRI_OPTIONS}
+    />
   );
 
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
-      <Field
+      <InputField
         label="Name of the gate"
         hint="As the owner calls it, e.g. “Driveway gate”."
         error={errors.label?.message}
         className="sm:col-span-2"
-      >
-        {(id, d) => (
-          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('label')} />
-        )}
-      </Field>
-      <Field label="Kind" error={errors.kind?.message}>
-        {(id, d) => (
-          <select id={id} aria-describedby={d} className="field" {...register('kind')}>
-            {GATE_KIND_VALUES.map((k) => (
-              <option key={k} value={k}>
-                {KIND_LABEL[k]}
-              </option>
-            ))}
-          </select>
-        )}
-      </Field>
-      <Field label="Leaves" error={errors.leaves?.message}>
-        {(id, d) => (
-          <select id={id} aria-describedby={d} className="field" {...register('leaves')}>
-            <option value="single">One leaf</option>
-            <option value="double">Two leaves</option>
-          </select>
-        )}
-      </Field>
+        registration={register('label')}
+      />
+      <SelectField
+        label="Kind"
+        error={errors.kind?.message}
+        registration={register('kind')}
+        options={KIND_OPTIONS}
+      />
+      <SelectField
+        label="Leaves"
+        error={errors.leaves?.message}
+        registration={register('leaves')}
+        options={LEAVES_OPTIONS}
+      />
       {kind === 'swing' && (
-        <Field label="Opens" error={errors.openingDirection?.message} className="sm:col-span-2">
-          {(id, d) => (
-            <select id={id} aria-describedby={d} className="field" {...register('openingDirection')}>
-              <option value="pull_to_open">Toward the operator side (pull to open)</option>
-              <option value="push_to_open">Away from the operator side (push to open)</option>
-            </select>
-          )}
-        </Field>
+        <SelectField
+          label="Opens"
+          error={errors.openingDirection?.message}
+          className="sm:col-span-2"
+          registration={register('openingDirection')}
+          options={OPENING_OPTIONS}
+        />
       )}
       {dimension('width', 'Opening width', ['mm', 'cm', 'm', 'in', 'ft'])}
       {dimension('height', 'Leaf height', ['mm', 'cm', 'm', 'in', 'ft'])}
       {dimension('weight', 'Leaf weight', ['kg', 'lb'])}
-      <Field label="Installed on" error={errors.installedOn?.message}>
-        {(id, d) => (
-          <input id={id} aria-describedby={d} type="date" className="field" {...register('installedOn')} />
-        )}
-      </Field>
+      <InputField
+        label="Installed on"
+        error={errors.installedOn?.message}
+        registration={register('installedOn')}
+        input={{ type: 'date' }}
+      />
       <fieldset className="grid gap-4 rounded-lg border border-iron-200 p-3 sm:col-span-2 sm:grid-cols-2">
         <legend className="px-1 font-semibold text-iron-900">Operator</legend>
         {tri(
@@ -255,52 +272,29 @@ export default function GateForm({ siteId, units, gate, next }: Props) {
           'The gate closes by itself after a delay.',
           errors.operator?.automaticClosing?.message,
         )}
-        <Field label="Made on (from its label)" error={errors.operator?.manufacturedOn?.message}>
-          {(id, d) => (
-            <input
-              id={id}
-              aria-describedby={d}
-              type="date"
-              className="field"
-              {...register('operator.manufacturedOn')}
-            />
-          )}
-        </Field>
-        <Field label="Make and model" error={errors.operator?.model?.message}>
-          {(id, d) => (
-            <input
-              id={id}
-              aria-describedby={d}
-              className="field"
-              autoComplete="off"
-              {...register('operator.model')}
-            />
-          )}
-        </Field>
-        <Field label="Mounted" error={errors.operator?.mounting?.message}>
-          {(id, d) => (
-            <select id={id} aria-describedby={d} className="field" {...register('operator.mounting')}>
-              <option value="">Not recorded</option>
-              {OPERATOR_MOUNTINGS.map((m) => (
-                <option key={m} value={m}>
-                  {MOUNTING_LABEL[m]}
-                </option>
-              ))}
-            </select>
-          )}
-        </Field>
-        <Field label="Power" error={errors.operator?.power?.message}>
-          {(id, d) => (
-            <select id={id} aria-describedby={d} className="field" {...register('operator.power')}>
-              <option value="">Not recorded</option>
-              {OPERATOR_POWER.map((p) => (
-                <option key={p} value={p}>
-                  {POWER_LABEL[p]}
-                </option>
-              ))}
-            </select>
-          )}
-        </Field>
+        <InputField
+          label="Made on (from its label)"
+          error={errors.operator?.manufacturedOn?.message}
+          registration={register('operator.manufacturedOn')}
+          input={{ type: 'date' }}
+        />
+        <InputField
+          label="Make and model"
+          error={errors.operator?.model?.message}
+          registration={register('operator.model')}
+        />
+        <SelectField
+          label="Mounted"
+          error={errors.operator?.mounting?.message}
+          registration={register('operator.mounting')}
+          options={MOUNTING_OPTIONS}
+        />
+        <SelectField
+          label="Power"
+          error={errors.operator?.power?.message}
+          registration={register('operator.power')}
+          options={POWER_OPTIONS}
+        />
       </fieldset>
       <div className="grid gap-2 sm:col-span-2">
         <FormMessage message={message} />

@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { SiteCreateSchema, SitePatchSchema, type Site } from '@/lib/api/sites';
-import { apiResolver, Field, FormMessage, sendJson, withoutBlanks } from './form-kit';
+import { apiResolver, Field, FormMessage, InputField, sendJson, withoutBlanks } from './form-kit';
 
 interface Values {
   clientId: string;
@@ -121,60 +121,32 @@ export default function SiteForm({ clientId, site }: { clientId: string; site?: 
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-4 sm:grid-cols-2">
       <input type="hidden" {...register('clientId')} />
-      <Field label="Street address" error={errors.addressLine1?.message} className="sm:col-span-2">
-        {(id, d) => (
-          <input
-            id={id}
-            aria-describedby={d}
-            className="field"
-            autoComplete="off"
-            {...register('addressLine1')}
-          />
-        )}
-      </Field>
-      <Field label="Town or city" error={errors.city?.message}>
-        {(id, d) => (
-          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('city')} />
-        )}
-      </Field>
-      <Field label="State or region" error={errors.region?.message}>
-        {(id, d) => (
-          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('region')} />
-        )}
-      </Field>
-      <Field label="Postal code" error={errors.postalCode?.message}>
-        {(id, d) => (
-          <input
-            id={id}
-            aria-describedby={d}
-            className="field"
-            autoComplete="off"
-            {...register('postalCode')}
-          />
-        )}
-      </Field>
-      <Field label="Country (two letters)" error={errors.country?.message}>
-        {(id, d) => (
-          <input
-            id={id}
-            aria-describedby={d}
-            className="field uppercase"
-            maxLength={2}
-            autoComplete="off"
-            {...register('country')}
-          />
-        )}
-      </Field>
-      <Field
+      <InputField
+        label="Street address"
+        error={errors.addressLine1?.message}
+        className="sm:col-span-2"
+        registration={register('addressLine1')}
+      />
+      <InputField label="Town or city" error={errors.city?.message} registration={register('city')} />
+      <InputField label="State or region" error={errors.region?.message} registration={register('region')} />
+      <InputField
+        label="Postal code"
+        error={errors.postalCode?.message}
+        registration={register('postalCode')}
+      />
+      <InputField
+        label="Country (two letters)"
+        error={errors.country?.message}
+        registration={register('country')}
+        input={{ className: 'uppercase', maxLength: 2 }}
+      />
+      <InputField
         label="Name of the site (optional)"
         hint="For example “Main house” or “Rear yard”."
         error={errors.name?.message}
         className="sm:col-span-2"
-      >
-        {(id, d) => (
-          <input id={id} aria-describedby={d} className="field" autoComplete="off" {...register('name')} />
-        )}
-      </Field>
+        registration={register('name')}
+      />
       <fieldset className="sm:col-span-2">
         <legend className="label">Who uses the gate (usage class)</legend>
         <div className="grid gap-2 sm:grid-cols-2">

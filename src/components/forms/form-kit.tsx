@@ -4,8 +4,8 @@
  * drops empty optional fields before the API's own zod schema checks the body.
  */
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useId, type ReactNode } from 'react';
-import type { FieldValues, Path, Resolver, UseFormSetError } from 'react-hook-form';
+import { useId, type InputHTMLAttributes, type ReactNode } from 'react';
+import type { FieldValues, Path, Resolver, UseFormRegisterReturn, UseFormSetError } from 'react-hook-form';
 import type { z } from 'zod';
 import { send } from '@/lib/api/client';
 import { problemMessage } from '@/lib/api/problem';
@@ -106,6 +106,55 @@ export function Field({ label, error, hint, children, className }: FieldProps) {
         </p>
       )}
     </div>
+  );
+}
+
+type LabelledProps = Omit<FieldProps, 'children'> & { registration: UseFormRegisterReturn };
+
+/**
+ * A labelled input registered with the form (`register('city')`): text by default, any other
+ * type through `input`; `input.className` adds to the shared `field` look.
+ */
+export function InputField({
+  registration,
+  input = {},
+  ...field
+}: LabelledProps & { input?: InputHTMLAttributes<HTMLInputElement> }) {
+  const { className, ...attributes } = input;
+  return (
+    <Field {...field}>
+      {(id, describedBy) => (
+        <input
+          id={id}
+          aria-describedby={describedBy}
+          className={className ? `field ${className}` : 'field'}
+          autoComplete="off"
+          {...attributes}
+          {...registration}
+        />
+      )}
+    </Field>
+  );
+}
+
+/** A labelled select registered with the form, offering `options` in order. */
+export function SelectField({
+  registration,
+  options,
+  ...field
+}: LabelledProps & { options: readonly { value: string; label: string }[] }) {
+  return (
+    <Field {...field}>
+      {(id, describedBy) => (
+        <select id={id} aria-describedby={describedBy} className="field" {...registration}>
+          {options.map((o) => (
+            <option key={o.value} value={o.value}>
+              {o.label}
+            </option>
+          ))}
+        </select>
+      )}
+    </Field>
   );
 }
 

@@ -14,7 +14,7 @@ const STATUS_WORDS: Record<JobStatus, string> = {
   queued: 'Queued',
   running: 'Running',
   failed: 'Failed',
-  dead: 'Dead (given up)',
+  dead: 'Given up',
 };
 const statusClass: Record<JobStatus, string> = {
   queued: 'text-iron-700',
@@ -48,7 +48,7 @@ export default function JobsList({ initial, timeZone }: Props) {
   };
 
   return (
-    <div className="mt-4 grid gap-4">
+    <div className="mt-4 grid max-w-4xl gap-4">
       <p className="card" aria-live="polite">
         {(Object.keys(STATUS_WORDS) as JobStatus[]).map((s, i) => (
           <span key={s}>
@@ -66,7 +66,7 @@ export default function JobsList({ initial, timeZone }: Props) {
       {list.items.length === 0 ? (
         <p className="card">Nothing waiting, running or failed.</p>
       ) : (
-        <ul className="grid gap-2">
+        <ul className="grid gap-2" aria-label="Jobs, newest first">
           {list.items.map((job) => (
             <li key={job.id} className="card" data-job-id={job.id} data-job-status={job.status}>
               <div className="flex flex-wrap items-center gap-2">
@@ -75,7 +75,8 @@ export default function JobsList({ initial, timeZone }: Props) {
                 <span className="text-sm text-iron-600">{job.about}</span>
               </div>
               <p className="mt-1 text-sm text-iron-600">
-                Queued {when.format(new Date(job.createdAt))}
+                {/* A dead job is made when its message is given up on. */}
+                {job.status === 'dead' ? 'Given up' : 'Queued'} {when.format(new Date(job.createdAt))}
                 {job.status === 'queued' && ` · runs from ${when.format(new Date(job.startAfter))}`}
                 {job.startedAt &&
                   job.status === 'running' &&
@@ -88,6 +89,7 @@ export default function JobsList({ initial, timeZone }: Props) {
                   type="button"
                   className="btn mt-2"
                   disabled={busy === job.id}
+                  aria-label={`Retry: ${job.queueLabel}, ${job.about}`}
                   onClick={() => void retry(job.id)}
                 >
                   Retry

@@ -7,9 +7,8 @@ import { useId } from 'react';
 import type { AmendmentProblem } from '@/lib/api/rulesets';
 import type { RulesetRule } from '@/lib/rules/ruleset-schema';
 import { SEVERITIES, type Severity } from '@/lib/rules/vocabulary';
-import { describeCondition, fieldWords, formatParam, keyWords, type ParamLike } from '@/lib/vocabulary';
+import { cautionWithoutDisclaimer, describeCondition, fieldWords, formatParam, keyWords, type ParamLike, SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from '@/lib/vocabulary';
 import type { UnitSystem } from '@/lib/units';
-import { SEVERITY_CLASS, SEVERITY_LABEL, gateKindsText } from '@/lib/vocabulary';
 
 /** What the owner has changed on this rule and not saved yet; param values as typed. */
 export interface RuleEdit {
@@ -146,7 +145,7 @@ export default function RuleEditCard({ rule, edit, baseline, problems, system, o
       <details className="mt-2 text-sm">
         <summary className="cursor-pointer text-iron-700">Remedy, caution and reference</summary>
         <p className="mt-1">{rule.remediation}</p>
-        <p className="mt-1 text-iron-600">Homeowner: {rule.caution}</p>
+        <p className="mt-1 text-iron-600">Homeowner: {cautionWithoutDisclaimer(rule.caution)}</p>
         <p className="mt-1 text-iron-600">
           {rule.reference.standard}, {rule.reference.clause}
         </p>

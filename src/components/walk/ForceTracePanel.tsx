@@ -14,7 +14,7 @@ import {
 } from '@/lib/rules/calculators/force-trace';
 import type { GateKind } from '@/lib/rules/vocabulary';
 import type { UnitSystem } from '@/lib/units';
-import { formatLength } from '@/lib/vocabulary';
+import { formatLength, DIRECTION_LABEL, TRACE_LOCATION_LABEL } from '@/lib/vocabulary';
 import { newClientRef, parseEntered, toMeasurement, unitsFor } from '@/lib/walk/entry';
 import type { Json } from '@/lib/walk/merge-patch';
 import type { QueuedEdit, TraceOp } from '@/lib/walk/edit-queue';
@@ -26,7 +26,6 @@ import {
   type TraceRecord,
 } from '@/lib/api/uploads';
 import { useWalkActions } from './context';
-import { DIRECTION_LABEL, TRACE_LOCATION_LABEL } from '@/lib/vocabulary';
 import { TraceChart } from './TraceChart';
 
 interface Props {

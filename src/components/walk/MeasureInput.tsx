@@ -5,11 +5,17 @@
  */
 import type { MeasurementValue } from '@/lib/api/walk-through';
 import { useEffect, useId, useRef, useState } from 'react';
-import { formatForce, formatLength, formatMass, formatSpeed } from '@/lib/vocabulary';
+import {
+  formatForce,
+  formatLength,
+  formatMass,
+  formatSpeed,
+  formatAsEntered,
+  parseFeetAndInches,
+} from '@/lib/vocabulary';
 import type { MeasuredAnswerType } from '@/lib/rules/measures';
 import type { UnitSystem } from '@/lib/units';
 import { parseEntered, toMeasurement, unitLabel, unitsFor } from '@/lib/walk/entry';
-import { formatAsEntered, parseFeetAndInches } from '@/lib/vocabulary';
 
 interface Props {
   kind: MeasuredAnswerType;

@@ -6,11 +6,10 @@
 import type { WalkRuleset } from '@/lib/api/walk-through';
 import { useState } from 'react';
 import type { Finding, ScoreResult } from '@/lib/rules/result-types';
-import { count } from '@/lib/vocabulary';
+import { count, SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from '@/lib/vocabulary';
 import type { Problem } from '@/lib/api/problem';
 import { mergeNeeds } from '@/lib/walk/model';
 import ConfirmDialog from '../ConfirmDialog';
-import { SEVERITY_LABEL, VERDICT_CLASS, VERDICT_EXPLANATION, VERDICT_LABEL } from '@/lib/vocabulary';
 
 const SEVERITY_ORDER = { critical: 0, major: 1, minor: 2 } as const;
 

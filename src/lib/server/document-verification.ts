@@ -141,3 +141,15 @@ export async function streamedSha256(request: Request, limit: number, tooLarge: 
   await consumeBody(request, limit, (chunk) => hash.update(chunk), tooLarge);
   return hash.digest('hex');
 }
+
+/**
+ * The time zone of the organisation whose archive holds a signed report: the verify page shows
+ * the signing time there to a visitor who has no organisation of their own.
+ */
+export async function timeZoneOfDocument(documentId: string, knex: Knex = db()): Promise<string | null> {
+  const row = await knex('documents as d')
+    .join('organisations as o', 'o.id', 'd.organisation_id')
+    .where('d.id', documentId)
+    .first<{ time_zone: string } | undefined>('o.time_zone');
+  return row?.time_zone ?? null;
+}

@@ -168,13 +168,25 @@ async function assertSiteInOrganisation(knex: Knex, viewer: SessionUser, siteId:
   if (!site) throw InvalidInputError.field('siteId', 'no such site in this organisation');
 }
 
-export async function createGate(viewer: SessionUser, input: GateCreate, knex: Knex = db()): Promise<Gate> {
+/** Creates a gate; the audit trail records it with the stored row. */
+export async function createGate(
+  viewer: SessionUser,
+  input: GateCreate,
+  knex: Knex = db(),
+  options: { ip?: string | null } = {},
+): Promise<Gate> {
   return knex.transaction(async (trx) => {
     await assertSiteInOrganisation(trx, viewer, input.siteId);
-    const [{ id }] = await trx('gates')
+    const [created] = await trx('gates')
       .insert({ operator: '{}', ...toRow(input), organisation_id: viewer.organisationId })
-      .returning<{ id: string }[]>('id');
-    return (await getGate(viewer, id as string, trx)) as Gate;
+      .returning('*');
+    await recordByPerson(trx, viewer, options.ip, {
+      action: 'gate.created',
+      entityType: 'gate',
+      entityId: created.id,
+      detail: { gate: created },
+    });
+    return (await getGate(viewer, created.id as string, trx)) as Gate;
   });
 }
 
@@ -183,7 +195,12 @@ export async function createGate(viewer: SessionUser, input: GateCreate, knex: K
  * entered, weight, operator facts, install date): for a site with several gates alike. Only the
  * label differs; assessments, re-inspection dates and history stay with the original.
  */
-export async function duplicateGate(viewer: SessionUser, id: string, label: string): Promise<Gate | null> {
+export async function duplicateGate(
+  viewer: SessionUser,
+  id: string,
+  label: string,
+  options: { ip?: string | null } = {},
+): Promise<Gate | null> {
   return db().transaction(async (trx) => {
     const source = await trx('gates')
       .where({ id, organisation_id: viewer.organisationId })
@@ -201,7 +218,7 @@ export async function duplicateGate(viewer: SessionUser, id: string, label: stri
         'installed_on',
       );
     if (!source) return null;
-    const [{ id: copyId }] = await trx('gates')
+    const [copy] = await trx('gates')
       .insert({
         ...source,
         entered: JSON.stringify(source.entered ?? {}),
@@ -209,8 +226,15 @@ export async function duplicateGate(viewer: SessionUser, id: string, label: stri
         label,
         organisation_id: viewer.organisationId,
       })
-      .returning<{ id: string }[]>('id');
-    return (await getGate(viewer, copyId as string, trx)) as Gate;
+      .returning('*');
+    // The copy is the record; `gateId` names the original, so the original's history lists it too.
+    await recordByPerson(trx, viewer, options.ip, {
+      action: 'gate.duplicated',
+      entityType: 'gate',
+      entityId: copy.id,
+      detail: { gateId: id, gate: copy },
+    });
+    return (await getGate(viewer, copy.id as string, trx)) as Gate;
   });
 }
 

@@ -15,6 +15,10 @@ export const AUDIT_ACTION_LABEL: Record<string, string> = {
   'assessment.signed': 'Signed by the client',
   'assessment.revised': 'Revision started',
   'archive.exported': 'Archive exported',
+  'gate.created': 'Gate added',
+  'gate.duplicated': 'Gate duplicated',
+  'gate.updated': 'Gate corrected',
+  'gate.deleted': 'Gate deleted',
   'invitation.created': 'Invitation sent',
   'invitation.accepted': 'Invitation accepted',
   'invitation.revoked': 'Invitation cancelled',
@@ -38,6 +42,7 @@ export function auditActionLabel(action: string): string {
 export const ENTITY_LABEL: Record<string, string> = {
   assessment: 'Assessment',
   user: 'Person',
+  gate: 'Gate',
   invitation: 'Invitation',
   organisation: 'Organisation',
   ruleset_version: 'Ruleset version',

@@ -18,6 +18,19 @@ export function rulesetLabel(ruleset: { title?: string | null; family: string; v
   return `${ruleset.title?.trim() || humanise(ruleset.family.replace(/-/g, ' '))} ${ruleset.version}`;
 }
 
+/**
+ * Published rulesets end many cautions with the same sentence on what the assessment does not
+ * replace. The report and the signing page say that once, in the disclaimer; wherever a caution
+ * is shown (report, assessment page, ruleset pages and editor) it keeps only its own words. The
+ * ruleset files keep the sentence.
+ */
+const DISCLAIMER_SENTENCE =
+  /\s*This (?:assessment|report) supports, and (?:never|does not) replaces?,[^.]*\./gi;
+
+export function cautionWithoutDisclaimer(caution: string): string {
+  return caution.replace(DISCLAIMER_SENTENCE, '').trim();
+}
+
 export const RULESET_STATUS_LABEL: Record<RulesetStatus, string> = {
   draft: 'Draft',
   published: 'Published',

@@ -2,7 +2,9 @@
  * Refuses state-changing requests sent from another site: HTML forms, JSON and any other body
  * (Astro's own checkOrigin is off; see astro.config.mjs). Browsers send Origin on every
  * cross-site POST/PUT/PATCH/DELETE (and Referer when they do not); a request with neither is
- * not from a browser page and cannot ride on a visitor's cookies.
+ * not from a browser page and cannot ride on a visitor's cookies. The claimed origin must be the
+ * configured public origin (`linkOrigin`), never one derived from the request's Host or
+ * X-Forwarded-* headers, which whoever sends the request writes.
  *
  * `Origin: null` is what a browser sends for a form on a page with `Referrer-Policy:
  * no-referrer`, and also for sandboxed frames and data: pages on any site. So it passes only
@@ -10,7 +12,7 @@
  * `Sec-Fetch-Site: cross-site` is refused whatever Origin says.
  */
 import { problem } from '../http/problem';
-import { configuredOrigin, directOrigin, publicOrigin } from './public-origin';
+import { linkOrigin } from './public-origin';
 
 const stateChanging = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
@@ -32,8 +34,7 @@ export function isCrossSiteWrite(request: Request): boolean {
   if (origin?.trim() === 'null') return fetchSite !== 'same-origin';
   const claimed = originOf(origin) ?? originOf(request.headers.get('referer'));
   if (claimed === null) return false;
-  const own = new Set([directOrigin(request), publicOrigin(request), configuredOrigin()].filter(Boolean));
-  return claimed === 'opaque' || !own.has(claimed);
+  return claimed === 'opaque' || claimed !== linkOrigin();
 }
 
 const refusalDetail = 'Requests from another site are refused.';

@@ -13,14 +13,6 @@ export function authSecret(): string {
   return secret;
 }
 
-/**
- * AUTH_TRUST_HOST=true says the app sits behind a proxy we trust: auth core then takes the
- * public protocol and host from X-Forwarded-Proto / X-Forwarded-Host, and so do we.
- */
-export function trustProxy(): boolean {
-  return process.env.AUTH_TRUST_HOST === 'true' || process.env.AUTH_TRUST_HOST === '1';
-}
-
 export const sessionCookieNames = {
   plain: 'authjs.session-token',
   secure: '__Secure-authjs.session-token',

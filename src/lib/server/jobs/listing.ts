@@ -5,6 +5,7 @@
  */
 import type { Knex } from 'knex';
 import type { JobList, JobStatus, JobSummary } from '@/lib/api/jobs';
+import { formatCalendarDate } from '@/lib/vocabulary';
 import { db } from '../db';
 import { requeueFailedMessage } from '../outbox';
 import { baseOf, jobBoss, queueBases, type QueueBase } from './boss';
@@ -13,7 +14,8 @@ export type { JobStatus, JobSummary } from '@/lib/api/jobs';
 
 const QUEUE_WORDS: Record<QueueBase, string> = {
   mail: 'E-mail',
-  'mail-dead': 'E-mail (given up)',
+  // The status beside it already says "Given up".
+  'mail-dead': 'E-mail',
   'reinspection-sweep': 'Reminder sweep',
   'reinspection-reminders': 'Re-inspection reminders',
   'impact-slice': 'Ruleset impact',
@@ -96,7 +98,9 @@ export async function listJobs(organisationId: string, limit = 200, knex: Knex =
         : queue === 'impact-slice'
           ? `${row.impact_version ?? 'A ruleset version'}, slice ${Number(row.data?.slice ?? 0) + 1} of ${Number(row.data?.slices ?? 1)}`
           : queue === 'reinspection-reminders'
-            ? `Reminders for ${String(row.data?.day ?? 'today')}`
+            ? typeof row.data?.day === 'string'
+              ? `Reminders for ${formatCalendarDate(row.data.day)}`
+              : 'Reminders for today'
             : QUEUE_WORDS[queue];
     const error =
       status === 'dead'

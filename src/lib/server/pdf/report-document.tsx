@@ -15,9 +15,8 @@ import {
   type ReportPhoto,
   type StoredFinding,
 } from './report-model';
-import { SEVERITY_LABEL } from '@/lib/vocabulary';
+import { SEVERITY_LABEL, formatAsEntered, formatLimit } from '@/lib/vocabulary';
 import { styles } from './styles';
-import { formatAsEntered, formatLimit } from '@/lib/vocabulary';
 import { colours, severityColour, verdictColour } from './theme';
 import { factLabel, formatDate, formatDateTime, formatObserved, formatQuantity, pdfText } from './text';
 

@@ -7,8 +7,7 @@
  * CorruptRecordError, never a default, so a critical finding can never print as minor.
  */
 import type { CertificateFacts } from './certificate-facts';
-import { VERDICT_WORDS } from '@/lib/vocabulary';
-import type { EnteredMeasurement } from '@/lib/vocabulary';
+import { cautionWithoutDisclaimer, VERDICT_WORDS, type EnteredMeasurement } from '@/lib/vocabulary';
 import { StoredResultSchema, type StoredFinding, type StoredResult } from '@/lib/rules/result-schema';
 import { ConflictError, CorruptRecordError } from '../errors';
 
@@ -157,16 +156,8 @@ function photoBelongsTo(photo: ReportPhoto, finding: StoredFinding): boolean {
   return keys.includes(photo.itemKey);
 }
 
-/**
- * Published rulesets end many cautions with the same sentence on what the assessment does not
- * replace. The report says that once, in its disclaimer; a caution keeps only its own words.
- */
-const DISCLAIMER_SENTENCE =
-  /\s*This (?:assessment|report) supports, and (?:never|does not) replaces?,[^.]*\./gi;
-
-export function cautionWithoutDisclaimer(caution: string): string {
-  return caution.replace(DISCLAIMER_SENTENCE, '').trim();
-}
+/** The report says the disclaimer once; a caution keeps only its own words (see the vocabulary). */
+export { cautionWithoutDisclaimer };
 
 /**
  * The cautions the owner acknowledges: one per failing finding (worst first) with a caution

@@ -2,8 +2,13 @@
  * Small formatting helpers for the report: plain text safe for the embedded fonts, dates in
  * the organisation's time zone, measured values in its unit system.
  */
-import { formatAsEntered, formatCanonical, type EnteredMeasurement } from '@/lib/vocabulary';
-import { formatLongDate, formatLongDateTime } from '@/lib/vocabulary';
+import {
+  formatAsEntered,
+  formatCanonical,
+  type EnteredMeasurement,
+  formatLongDate,
+  formatLongDateTime,
+} from '@/lib/vocabulary';
 
 /** Glyphs Noto Sans' Latin subsets lack, spelled out so nothing prints as a blank box. */
 const replacements: Array<[RegExp, string]> = [

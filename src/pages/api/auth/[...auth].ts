@@ -8,7 +8,7 @@
 import type { APIRoute } from 'astro';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { safeNext } from '@/lib/server/auth/paths';
-import { publicOrigin } from '@/lib/server/auth/public-origin';
+import { linkOrigin } from '@/lib/server/auth/public-origin';
 import { runAuthCore } from '@/lib/server/auth/core';
 import type { SignInContext } from '@/lib/server/auth/request-context';
 import { waitInWords } from '@/lib/server/auth/throttle';
@@ -44,7 +44,7 @@ async function forAuthCore(
   request: Request,
 ): Promise<{ request: Request; form: URLSearchParams } | Response> {
   const url = new URL(request.url);
-  const target = new URL(`${url.pathname}${url.search}`, publicOrigin(request));
+  const target = new URL(`${url.pathname}${url.search}`, linkOrigin());
   try {
     const bounded = await boundedRequest(request, maxFormBytes, target, tooLarge);
     const isForm = (request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');

@@ -1,5 +1,6 @@
 import type { APIRoute } from 'astro';
 import { GateCreateSchema, GateListQuerySchema } from '@/lib/api/gates';
+import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { createGate, listGates } from '@/lib/server/gates';
 import { directoryReaders, directoryWriters } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
@@ -13,10 +14,12 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
 });
 
 /** Creates one; an `Idempotency-Key` header makes a retry answer the first response instead of creating again. */
-export const POST: APIRoute = handle(async ({ locals, request }) => {
-  const { user } = requireRole(locals, ...directoryWriters);
-  return withIdempotency(user, request, async (knex, body) => {
-    const created = await createGate(user, await parseBody(GateCreateSchema, body), knex);
+export const POST: APIRoute = handle(async (context) => {
+  const { user } = requireRole(context.locals, ...directoryWriters);
+  return withIdempotency(user, context.request, async (knex, body) => {
+    const created = await createGate(user, await parseBody(GateCreateSchema, body), knex, {
+      ip: clientAddressOf(context),
+    });
     return Response.json(created, { status: 201, headers: { location: `/api/gates/${created.id}` } });
   });
 });
