@@ -184,6 +184,8 @@ export async function acceptInvitation(
   ip: string | null,
 ): Promise<{ id: string; email: string; role: StaffRole }> {
   if (!looksLikeLinkToken(token)) throw invitationNotValid();
+  // A dead or made-up token costs one indexed read, never a password hash (see resetPassword).
+  if (!(await findOpenInvitation(token))) throw invitationNotValid();
   const passwordHash = await hashPassword(input.password);
   return db().transaction(async (trx) => {
     const invitation = await trx('invitations')

@@ -49,6 +49,14 @@ export async function resetPassword(
   ip: string | null,
 ): Promise<boolean> {
   if (!looksLikeLinkToken(token)) return false;
+  // A dead or made-up token costs one indexed read, never a password hash: hashing first would
+  // let anyone make the server spend an argon2 hash per request with random tokens.
+  const live = await db()('sign_in_links')
+    .where({ token_hash: hashLinkToken(token), purpose: 'password_reset' })
+    .whereNull('used_at')
+    .andWhere('expires_at', '>', db().fn.now())
+    .first('id');
+  if (!live) return false;
   const newHash = await hashPassword(newPassword);
   return db().transaction(async (trx) => {
     const [link] = await trx('sign_in_links')
