@@ -100,6 +100,43 @@ const summaryColumns = () => [
   'a.updated_at',
 ];
 
+/**
+ * The list's columns: the same values as summaryColumns, the frozen ones read from the small
+ * `scored_summary` the database keeps beside each record (migration
+ * 20261204181800_assessment_scored_summary), so a page never decompresses a whole record.
+ */
+const frozenListed = (key: string, live: string, alias: string, cast = '') =>
+  db().raw(`coalesce((a.scored_summary ->> '${key}')${cast}, ${live}) as ${alias}`);
+
+const listColumns = () => [
+  'a.id',
+  'a.status',
+  'a.purpose',
+  'a.verdict',
+  'a.row_version',
+  'a.gate_id',
+  frozenListed('gateLabel', 'g.label', 'gate_label'),
+  frozenListed('gateKind', 'g.kind', 'gate_kind'),
+  frozenListed('siteId', 's.id::text', 'site_id'),
+  frozenListed('siteName', 's.name', 'site_name'),
+  frozenListed('siteAddressLine1', 's.address_line1', 'site_address_line1'),
+  frozenListed('siteCity', 's.city', 'site_city'),
+  frozenListed('siteUsageClass', 's.usage_class', 'site_usage_class', '::int'),
+  frozenListed('clientId', 'c.id::text', 'client_id'),
+  frozenListed('clientName', 'c.name', 'client_name'),
+  'a.auditor_id',
+  'u.name as auditor_name',
+  'a.ruleset_version_id',
+  'r.family as ruleset_family',
+  'rv.version as ruleset_version',
+  frozenListed('rulesetTitle', 'r.title', 'ruleset_title'),
+  'a.visited_on',
+  'a.submitted_at',
+  'a.signed_at',
+  'a.created_at',
+  'a.updated_at',
+];
+
 const fullColumns = () => [
   ...summaryColumns(),
   'a.answers',
@@ -215,7 +252,7 @@ export async function listAssessments(
   return fetchPage<SummaryRow, AssessmentSummary>(
     {
       base,
-      columns: summaryColumns(),
+      columns: listColumns(),
       order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
       idColumn: 'a.id',
       map: toSummary,
