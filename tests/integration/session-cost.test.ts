@@ -95,6 +95,46 @@ describe('the cost of a signed-in request', () => {
   });
 });
 
+describe('the cost of an autosave', () => {
+  it('saves a draft in two statements and answers it as GET shows it; a stale save changes nothing', async () => {
+    const fresh = await createOrganisation('session-cost-save');
+    const dir = await seedDirectory(fresh);
+    const version = await currentVersion('north-american-gate');
+    const id = await insertDraft(fresh.id, dir.gateId, fresh.auditor.id, version.id);
+    const auditor = await signIn(fresh.auditor.email, fixturePassword);
+    await queriesFor(auditor, '/api/no-such-route'); // the session check, out of the way
+    const save = (rowVersion: number, note: string) =>
+      auditor.fetch(`/api/assessments/${id}`, {
+        method: 'PATCH',
+        headers: {
+          'content-type': 'application/merge-patch+json',
+          accept: 'application/json',
+          'if-match': `"${rowVersion}"`,
+        },
+        body: JSON.stringify({ answers: { latchFitted: { value: 'no', note } } }),
+      });
+    // The first save may load the pinned version into the process's cache.
+    expect((await save(1, 'first')).status).toBe(200);
+
+    const second = await save(2, 'second');
+    const saved = await second.json();
+    expect(second.status).toBe(200);
+    expect(second.headers.get('x-query-count')).toBe('2');
+    expect(second.headers.get('etag')).toBe('"3"');
+    expect(saved.rowVersion).toBe(3);
+    expect(saved.answers).toEqual({ latchFitted: { value: 'no', note: 'second' } });
+    const read = await auditor.fetch(`/api/assessments/${id}`, { headers: { accept: 'application/json' } });
+    expect(read.headers.get('etag')).toBe('"3"');
+    expect(await read.json()).toEqual(saved);
+
+    const stale = await save(2, 'stale');
+    expect(stale.status).toBe(409);
+    expect((await stale.json()).current).toEqual(saved);
+    const row = await testDb()('assessments').where({ id }).first('row_version', 'answers');
+    expect(row).toEqual({ row_version: 3, answers: { latchFitted: { value: 'no', note: 'second' } } });
+  });
+});
+
 describe('ending a session with its check warm', () => {
   it('signing out refuses a copied cookie on the very next request', async () => {
     const fresh = await createOrganisation('session-cost-signout');
