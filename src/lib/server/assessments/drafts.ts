@@ -18,7 +18,7 @@ import { mergeDocuments, type AssessmentDocuments } from '../assessment-input';
 import { recordAudit } from '../audit';
 import { db } from '../db';
 import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
-import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
+import { fetchPageCounted, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
 import { loadedRuleset } from '../ruleset-cache';
 import { parseScoredRecord } from './scored-record';
@@ -253,7 +253,7 @@ export async function listAssessments(
     base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
   if (query.to)
     base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
-  return fetchPage<SummaryRow, AssessmentSummary>(
+  return fetchPageCounted<SummaryRow, AssessmentSummary>(
     {
       base,
       columns: listColumns(),
