@@ -146,6 +146,32 @@ describe('a submitted assessment keeps what was judged', () => {
     expect(api.client.name).toBe('Quillwater Holdings');
   });
 
+  it('lists the frozen values too', async () => {
+    const res = await owner.json('GET', `/api/assessments?gateId=${gateId}&status=scored`);
+    expect(res.status).toBe(200);
+    const { items } = await res.json();
+    expect(items.map((a: { id: string }) => a.id)).toEqual([assessmentId]);
+    expect(items[0]).toMatchObject({
+      gate: { id: gateId, label, kind: 'swing' },
+      site: { id: siteId, addressLine1: '14 Larchmere Close', city: 'Oldbridge', usageClass: 2 },
+      client: { id: clientId, name: 'Quillwater Holdings' },
+    });
+    // A draft of the same gate lists the live values.
+    const draft = await owner.json('POST', '/api/assessments', { gateId, family, purpose: 'service' });
+    expect(draft.status).toBe(201);
+    const draftId = (await draft.json()).id;
+    const drafts = await (await owner.json('GET', `/api/assessments?gateId=${gateId}&status=draft`)).json();
+    expect(drafts.items).toEqual([
+      expect.objectContaining({
+        id: draftId,
+        gate: expect.objectContaining({ label: 'Renamed gate' }),
+        site: expect.objectContaining({ id: otherSiteId, addressLine1: '99 Farrowgate Lane', usageClass: 4 }),
+        client: expect.objectContaining({ name: 'Renamed Holdings' }),
+      }),
+    ]);
+    expect((await owner.fetch(`/api/assessments/${draftId}`, { method: 'DELETE' })).status).toBe(204);
+  });
+
   it('sends the link to the frozen contact and the signing page shows the frozen record', async () => {
     const seen = await caughtMailIds(contactEmail);
     const sent = await owner.json('POST', `/api/assessments/${assessmentId}/send-for-signature`, {});
@@ -198,6 +224,47 @@ describe('the database keeps the record fixed', () => {
     );
     const row = await knex('assessments').where({ id: assessmentId }).first('scored_record');
     expect(row.scored_record.gate.widthMm).toBe(3660);
+  });
+
+  it('keeps the list summary derived from the record, whatever a statement supplies', async () => {
+    const knex = testDb();
+    const summaryOf = async (id: string) =>
+      (await knex('assessments').where({ id }).first('scored_summary')).scored_summary;
+    const expected = {
+      gateLabel: label,
+      gateKind: 'swing',
+      siteId,
+      siteName: null,
+      siteAddressLine1: '14 Larchmere Close',
+      siteCity: 'Oldbridge',
+      siteUsageClass: 2,
+      clientId,
+      clientName: 'Quillwater Holdings',
+      rulesetTitle: expect.stringMatching(/\S/),
+    };
+    expect(await summaryOf(assessmentId)).toEqual(expected);
+    await knex('assessments')
+      .where({ id: assessmentId })
+      .update({ scored_summary: JSON.stringify({ ...expected, gateLabel: 'forged' }) });
+    expect(await summaryOf(assessmentId)).toEqual(expected);
+    // A draft has no record, so no summary either.
+    const [{ id: draftId }] = await knex('assessments')
+      .insert({
+        organisation_id: org.id,
+        gate_id: gateId,
+        ruleset_version_id: (
+          await knex('assessments').where({ id: assessmentId }).first('ruleset_version_id')
+        ).ruleset_version_id,
+        auditor_id: org.owner.id,
+        scored_summary: JSON.stringify({ gateLabel: 'forged' }),
+      })
+      .returning('id');
+    expect(await summaryOf(draftId)).toBeNull();
+    await knex('assessments')
+      .where({ id: draftId })
+      .update({ scored_summary: JSON.stringify({ gateLabel: 'forged' }) });
+    expect(await summaryOf(draftId)).toBeNull();
+    await knex('assessments').where({ id: draftId }).delete();
   });
 
   it('builds the record itself when a row leaves draft, ignoring one the statement supplies', async () => {

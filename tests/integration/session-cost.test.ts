@@ -72,7 +72,7 @@ describe('the cost of a signed-in request', () => {
     expect(anonymous.headers.get('x-query-count')).toBe('0');
   });
 
-  it('reads an assessment in one statement and lists them in two, however many rows there are', async () => {
+  it('reads an assessment in one statement and lists a page with its total in one, however many rows there are', async () => {
     const fresh = await createOrganisation('session-cost-list');
     const dir = await seedDirectory(fresh);
     const version = await currentVersion('north-american-gate');
@@ -88,10 +88,70 @@ describe('the cost of a signed-in request', () => {
     expect(one).toEqual({ status: 200, queries: 1 });
     const small = await queriesFor(office, '/api/assessments?pageSize=2');
     const large = await queriesFor(office, '/api/assessments?pageSize=25');
-    expect(small).toEqual({ status: 200, queries: 2 });
-    expect(large).toEqual({ status: 200, queries: 2 });
+    expect(small).toEqual({ status: 200, queries: 1 });
+    expect(large).toEqual({ status: 200, queries: 1 });
     const body = await (await office.fetch('/api/assessments?pageSize=25')).json();
     expect(body.items).toHaveLength(6);
+    expect(body.total).toBe(6);
+    // The total of every page, the last (partial) one and one past the end (which asks apart) too.
+    const pages = [];
+    for (const page of [1, 2, 3]) {
+      const res = await office.fetch(`/api/assessments?pageSize=4&page=${page}`, {
+        headers: { accept: 'application/json' },
+      });
+      const { items, total } = await res.json();
+      pages.push({ items: items.length, total, queries: Number(res.headers.get('x-query-count')) });
+    }
+    expect(pages).toEqual([
+      { items: 4, total: 6, queries: 1 },
+      { items: 2, total: 6, queries: 1 },
+      { items: 0, total: 6, queries: 2 },
+    ]);
+    const none = await office.fetch('/api/assessments?status=signed', {
+      headers: { accept: 'application/json' },
+    });
+    expect(await none.json()).toMatchObject({ items: [], total: 0 });
+    expect(none.headers.get('x-query-count')).toBe('1');
+  });
+});
+
+describe('the cost of an autosave', () => {
+  it('saves a draft in two statements and answers it as GET shows it; a stale save changes nothing', async () => {
+    const fresh = await createOrganisation('session-cost-save');
+    const dir = await seedDirectory(fresh);
+    const version = await currentVersion('north-american-gate');
+    const id = await insertDraft(fresh.id, dir.gateId, fresh.auditor.id, version.id);
+    const auditor = await signIn(fresh.auditor.email, fixturePassword);
+    await queriesFor(auditor, '/api/no-such-route'); // the session check, out of the way
+    const save = (rowVersion: number, note: string) =>
+      auditor.fetch(`/api/assessments/${id}`, {
+        method: 'PATCH',
+        headers: {
+          'content-type': 'application/merge-patch+json',
+          accept: 'application/json',
+          'if-match': `"${rowVersion}"`,
+        },
+        body: JSON.stringify({ answers: { latchFitted: { value: 'no', note } } }),
+      });
+    // The first save may load the pinned version into the process's cache.
+    expect((await save(1, 'first')).status).toBe(200);
+
+    const second = await save(2, 'second');
+    const saved = await second.json();
+    expect(second.status).toBe(200);
+    expect(second.headers.get('x-query-count')).toBe('2');
+    expect(second.headers.get('etag')).toBe('"3"');
+    expect(saved.rowVersion).toBe(3);
+    expect(saved.answers).toEqual({ latchFitted: { value: 'no', note: 'second' } });
+    const read = await auditor.fetch(`/api/assessments/${id}`, { headers: { accept: 'application/json' } });
+    expect(read.headers.get('etag')).toBe('"3"');
+    expect(await read.json()).toEqual(saved);
+
+    const stale = await save(2, 'stale');
+    expect(stale.status).toBe(409);
+    expect((await stale.json()).current).toEqual(saved);
+    const row = await testDb()('assessments').where({ id }).first('row_version', 'answers');
+    expect(row).toEqual({ row_version: 3, answers: { latchFitted: { value: 'no', note: 'second' } } });
   });
 });
 

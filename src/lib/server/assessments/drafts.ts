@@ -3,7 +3,7 @@
  * submitted for scoring. The one module holding their SQL. Staff see the organisation's
  * assessments; a homeowner sees only those of their own client that were sent for signature.
  */
-import { carriedForwardOf, carryForwardIntoDraft, pendingAfterPatch } from './carry-forward';
+import { carryForwardIntoDraft, pendingAfterPatch, type CarriedForward } from './carry-forward';
 import type { Knex } from 'knex';
 import type {
   Assessment,
@@ -18,8 +18,9 @@ import { mergeDocuments, type AssessmentDocuments } from '../assessment-input';
 import { recordAudit } from '../audit';
 import { db } from '../db';
 import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
-import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
+import { fetchPageCounted, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
+import { loadedRuleset } from '../ruleset-cache';
 import { parseScoredRecord } from './scored-record';
 
 /** Statuses a homeowner may see: the report has been sent to them. */
@@ -93,6 +94,43 @@ const summaryColumns = () => [
   'r.family as ruleset_family',
   'rv.version as ruleset_version',
   frozenOr('ruleset,title', 'r.title', 'ruleset_title'),
+  'a.visited_on',
+  'a.submitted_at',
+  'a.signed_at',
+  'a.created_at',
+  'a.updated_at',
+];
+
+/**
+ * The list's columns: the same values as summaryColumns, the frozen ones read from the small
+ * `scored_summary` the database keeps beside each record (migration
+ * 20261204181800_assessment_scored_summary), so a page never decompresses a whole record.
+ */
+const frozenListed = (key: string, live: string, alias: string, cast = '') =>
+  db().raw(`coalesce((a.scored_summary ->> '${key}')${cast}, ${live}) as ${alias}`);
+
+const listColumns = () => [
+  'a.id',
+  'a.status',
+  'a.purpose',
+  'a.verdict',
+  'a.row_version',
+  'a.gate_id',
+  frozenListed('gateLabel', 'g.label', 'gate_label'),
+  frozenListed('gateKind', 'g.kind', 'gate_kind'),
+  frozenListed('siteId', 's.id::text', 'site_id'),
+  frozenListed('siteName', 's.name', 'site_name'),
+  frozenListed('siteAddressLine1', 's.address_line1', 'site_address_line1'),
+  frozenListed('siteCity', 's.city', 'site_city'),
+  frozenListed('siteUsageClass', 's.usage_class', 'site_usage_class', '::int'),
+  frozenListed('clientId', 'c.id::text', 'client_id'),
+  frozenListed('clientName', 'c.name', 'client_name'),
+  'a.auditor_id',
+  'u.name as auditor_name',
+  'a.ruleset_version_id',
+  'r.family as ruleset_family',
+  'rv.version as ruleset_version',
+  frozenListed('rulesetTitle', 'r.title', 'ruleset_title'),
   'a.visited_on',
   'a.submitted_at',
   'a.signed_at',
@@ -178,9 +216,12 @@ function toAssessment(row: FullRow): Assessment {
   };
 }
 
-/** The assessments a viewer may see, joined to what the list shows about each. */
-function visibleAssessments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
-  const query = knex('assessments as a')
+/**
+ * The assessments a viewer may see, joined to what the list shows about each; `from` names
+ * another source of assessment rows as `a` (a save's updated row).
+ */
+function visibleAssessments(knex: Knex, viewer: SessionUser, from = 'assessments as a'): Knex.QueryBuilder {
+  const query = knex(from)
     .join('gates as g', 'g.id', 'a.gate_id')
     .join('sites as s', 's.id', 'g.site_id')
     .join('clients as c', 'c.id', 's.client_id')
@@ -212,10 +253,10 @@ export async function listAssessments(
     base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
   if (query.to)
     base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
-  return fetchPage<SummaryRow, AssessmentSummary>(
+  return fetchPageCounted<SummaryRow, AssessmentSummary>(
     {
       base,
-      columns: summaryColumns(),
+      columns: listColumns(),
       order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
       idColumn: 'a.id',
       map: toSummary,
@@ -352,17 +393,46 @@ function staleProblem(current: Assessment, expectedVersion: number): ConflictErr
   );
 }
 
-async function pinnedQuestions(knex: Knex, rulesetVersionId: string): Promise<RulesetQuestion[]> {
-  const row = await knex('ruleset_versions')
-    .where({ id: rulesetVersionId })
-    .first<{ questions: RulesetQuestion[] | null }>(knex.raw("content -> 'questions' as questions"));
-  return row?.questions ?? [];
+/** The columns of a draft a save reads: the checks, the documents to merge into, the pinned content's hash. */
+interface DraftForSave {
+  status: Assessment['status'];
+  auditor_id: string;
+  row_version: number;
+  ruleset_version_id: string;
+  content_sha256: string;
+  answers: Assessment['answers'] | null;
+  measurements: Assessment['measurements'] | null;
+  observations: Assessment['observations'] | null;
+  carried_forward: CarriedForward | null;
+}
+
+/**
+ * The pinned version's questions from the process's ruleset cache (content-addressed by the
+ * version's SHA-256, so never stale): a save no longer reads and parses the version's content.
+ */
+async function pinnedQuestions(
+  knex: Knex,
+  draft: Pick<DraftForSave, 'ruleset_version_id' | 'content_sha256'>,
+): Promise<readonly RulesetQuestion[]> {
+  const loaded = await loadedRuleset(draft.content_sha256, async () => {
+    const row = await knex('ruleset_versions')
+      .where({ id: draft.ruleset_version_id })
+      .first<{ content: unknown } | undefined>('content');
+    if (!row) throw new Error(`ruleset version ${draft.ruleset_version_id} disappeared while loading`);
+    return row.content;
+  });
+  return loaded.version.questions;
 }
 
 /**
  * Saves a merge patch to a draft, but only over the row version the client read: the update
  * is one `UPDATE … WHERE id = ? AND row_version = ?`, so of two saves made from the same
  * version exactly one wins and the other gets 409 with the current state.
+ *
+ * Two statements when it succeeds: the draft's own row (no joins but its version's hash), then
+ * the conditional update, which answers the saved assessment as GET shows it in the same
+ * statement (`WITH saved AS (UPDATE … RETURNING *) SELECT …`). Only a refusal reads the full
+ * assessment, for the problem's `current`.
  */
 export async function patchAssessment(
   viewer: SessionUser,
@@ -371,17 +441,44 @@ export async function patchAssessment(
   patch: AssessmentPatch,
 ): Promise<Assessment | null> {
   const knex = db();
-  const current = await getAssessment(viewer, id, knex);
-  if (!current) return null;
-  assertEditable(viewer, current, expectedVersion);
+  /** The refusal, with the assessment as it is now; null when the viewer cannot see it. */
+  const refuse = async (): Promise<null> => {
+    const now = await getAssessment(viewer, id, knex);
+    if (!now) return null;
+    assertEditable(viewer, now, expectedVersion);
+    throw staleProblem(now, expectedVersion);
+  };
+  const draft = await knex('assessments as a')
+    .join('ruleset_versions as rv', 'rv.id', 'a.ruleset_version_id')
+    .where({ 'a.id': id, 'a.organisation_id': viewer.organisationId })
+    .first<DraftForSave | undefined>(
+      'a.status',
+      'a.auditor_id',
+      'a.row_version',
+      'a.ruleset_version_id',
+      'rv.content_sha256',
+      'a.answers',
+      'a.measurements',
+      'a.observations',
+      'a.carried_forward',
+    );
+  if (!draft) return null;
+  // The same checks as assertEditable, on the row alone; any that fails is answered from the full read.
+  if (
+    viewer.role === 'homeowner' ||
+    (viewer.role === 'auditor' && draft.auditor_id !== viewer.id) ||
+    draft.status !== 'draft' ||
+    draft.row_version !== expectedVersion
+  )
+    return refuse();
   const merged = mergeDocuments(
     {
-      answers: current.answers,
-      measurements: current.measurements,
-      observations: current.observations,
+      answers: draft.answers ?? {},
+      measurements: draft.measurements ?? {},
+      observations: draft.observations ?? {},
     } satisfies AssessmentDocuments,
     patch,
-    await pinnedQuestions(knex, current.ruleset.versionId),
+    await pinnedQuestions(knex, draft),
   );
   if (!merged.ok) throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
   const changes: Record<string, unknown> = {
@@ -393,20 +490,20 @@ export async function patchAssessment(
   };
   if (patch.purpose !== undefined) changes.purpose = patch.purpose;
   // Saving a carried-forward answer (changed or not) confirms it.
-  const carried = await carriedForwardOf(knex, viewer.organisationId, id);
+  const carried = draft.carried_forward;
   if (carried?.pending.length)
     changes.carried_forward = JSON.stringify({ ...carried, pending: pendingAfterPatch(carried, patch) });
   if (patch.visitedOn !== undefined) changes.visited_on = patch.visitedOn;
-  const updated = await knex('assessments')
-    .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' })
-    .update(changes);
-  if (updated === 0) {
-    const now = await getAssessment(viewer, id, knex);
-    if (!now) return null;
-    assertEditable(viewer, now, expectedVersion);
-    throw staleProblem(now, expectedVersion);
-  }
-  return getAssessment(viewer, id, knex);
+  const saved = await visibleAssessments(knex, viewer, 'saved as a')
+    .with('saved', (update) =>
+      update
+        .from('assessments')
+        .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' })
+        .update(changes)
+        .returning('*'),
+    )
+    .first<FullRow | undefined>(fullColumns());
+  return saved ? toAssessment(saved) : refuse();
 }
 
 /**
