@@ -20,12 +20,12 @@ import { db } from '../db';
 import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
 import { fetchPage, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
-import { parseScoredRecord } from './scored-record';
+import { parseScoredRecord, type ScoredRecord } from './scored-record';
 
 /** Statuses a homeowner may see: the report has been sent to them. */
 const HOMEOWNER_VISIBLE = ['awaiting_signature', 'signed', 'superseded'] as const;
 
-interface SummaryRow {
+export interface SummaryRow {
   id: string;
   status: Assessment['status'];
   purpose: Assessment['purpose'];
@@ -58,9 +58,7 @@ interface FullRow extends SummaryRow {
   answers: Assessment['answers'];
   measurements: Assessment['measurements'];
   observations: Assessment['observations'];
-  gate_snapshot: unknown;
   scored_record: unknown;
-  result: unknown;
   result_sha256: string | null;
 }
 
@@ -105,9 +103,8 @@ const fullColumns = () => [
   'a.answers',
   'a.measurements',
   'a.observations',
-  'a.gate_snapshot',
+  // Not a.result or a.gate_snapshot: what is shown of them comes from the record.
   'a.scored_record',
-  'a.result',
   'a.result_sha256',
 ];
 
@@ -120,7 +117,7 @@ const sortColumns: Record<AssessmentListQuery['sort']['field'], string> = {
 
 const isoOrNull = (value: Date | null) => (value ? iso(value) : null);
 
-function toSummary(row: SummaryRow): AssessmentSummary {
+export function toSummary(row: SummaryRow): AssessmentSummary {
   return {
     id: row.id,
     status: row.status,
@@ -165,21 +162,24 @@ function toAssessment(row: FullRow): Assessment {
       resultSha256: null,
     };
   }
-  const record = parseScoredRecord(row.id, row.scored_record);
+  return { ...summary, ...frozenDocuments(parseScoredRecord(row.id, row.scored_record), row.scored_record) };
+}
+
+/** What a submitted assessment shows of its frozen record beside the summary. */
+export function frozenDocuments(record: ScoredRecord, raw: unknown) {
   return {
-    ...summary,
     answers: record.answers as Assessment['answers'],
     measurements: record.measurements as Assessment['measurements'],
     observations: record.observations as Assessment['observations'],
     gateSnapshot: { ...record.gate, site: record.site, client: record.client },
-    // As stored (parsed above only to prove it sound): the engine's fields the schema does not name stay.
-    result: (row.scored_record as { result: unknown }).result,
+    // As stored (parsed only to prove it sound): the engine's fields the schema does not name stay.
+    result: (raw as { result: unknown }).result,
     resultSha256: record.resultSha256,
   };
 }
 
 /** The assessments a viewer may see, joined to what the list shows about each. */
-function visibleAssessments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
+export function visibleAssessments(knex: Knex, viewer: SessionUser): Knex.QueryBuilder {
   const query = knex('assessments as a')
     .join('gates as g', 'g.id', 'a.gate_id')
     .join('sites as s', 's.id', 'g.site_id')
