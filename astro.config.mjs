@@ -7,17 +7,21 @@ import auth from 'auth-astro';
 import outboxWorker from './src/integrations/outbox-worker.ts';
 import clientAddress from './src/integrations/client-address.ts';
 import walkServiceWorker from './src/integrations/walk-service-worker.ts';
+import serverEntry from './src/integrations/server-entry.ts';
 
-// Server-rendered app behind the Node standalone adapter: `node dist/server/entry.mjs`.
+// Server-rendered app: the Node adapter in middleware mode gives Astro's request handler
+// (dist/server/entry.mjs); our own server around it (src/serve.ts, bundled by serverEntry) is
+// what runs: `node dist/server/serve.mjs`.
 export default defineConfig({
   output: 'server',
-  adapter: node({ mode: 'standalone' }),
+  adapter: node({ mode: 'middleware' }),
   integrations: [
     react(),
     auth({ injectEndpoints: false }),
     outboxWorker(),
     clientAddress(),
     walkServiceWorker(),
+    serverEntry(),
   ],
   server: { host: process.env.HOST ?? '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
   // Cross-site writes (forms and JSON alike) are refused by src/middleware.ts, which compares

@@ -12,7 +12,8 @@ import { fileURLToPath } from 'node:url';
 export const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 export const dataDir = path.resolve(process.env.LATCHWELL_DATA_DIR ?? path.join(projectRoot, '.data'));
 const distDir = path.join(projectRoot, 'dist');
-const serverEntry = path.join(distDir, 'server/entry.mjs');
+/** The server's main (src/serve.ts, bundled by src/integrations/server-entry.ts). */
+const serverEntry = path.join(distDir, 'server/serve.mjs');
 const buildInputs = [
   'src',
   'public',
@@ -103,7 +104,7 @@ export async function snapshotBuild(target: string): Promise<string> {
   fs.rmSync(target, { recursive: true, force: true });
   fs.mkdirSync(path.dirname(target), { recursive: true });
   fs.cpSync(distDir, target, { recursive: true });
-  return path.join(target, 'server/entry.mjs');
+  return path.join(target, 'server/serve.mjs');
 }
 
 /** A port on 127.0.0.1 nobody listens on right now. */

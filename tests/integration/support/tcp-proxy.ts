@@ -11,12 +11,15 @@ export interface TcpProxy {
   /** Accept connections again on the same port. */
   restore(): Promise<void>;
   close(): Promise<void>;
+  /** Bytes relayed from the target to the clients so far (what the database sent). */
+  readonly bytesFromTarget: number;
 }
 
 export async function startTcpProxy(targetHost: string, targetPort: number): Promise<TcpProxy> {
   const sockets = new Set<net.Socket>();
   let server: net.Server;
   let port = 0;
+  let bytesFromTarget = 0;
 
   const listen = () =>
     new Promise<void>((resolve, reject) => {
@@ -29,6 +32,9 @@ export async function startTcpProxy(targetHost: string, targetPort: number): Pro
           sockets.delete(client);
           sockets.delete(upstream);
         };
+        upstream.on('data', (chunk: Buffer) => {
+          bytesFromTarget += chunk.length;
+        });
         client.on('error', drop).on('close', drop);
         upstream.on('error', drop).on('close', drop);
         client.pipe(upstream).pipe(client);
@@ -51,6 +57,9 @@ export async function startTcpProxy(targetHost: string, targetPort: number): Pro
   return {
     get port() {
       return port;
+    },
+    get bytesFromTarget() {
+      return bytesFromTarget;
     },
     cut: stop,
     restore: listen,

@@ -21,12 +21,12 @@ import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
 import { fetchPageCounted, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
 import type { SessionUser } from '../session-user';
 import { loadedRuleset } from '../ruleset-cache';
-import { parseScoredRecord } from './scored-record';
+import { parseScoredRecord, type ScoredRecord } from './scored-record';
 
 /** Statuses a homeowner may see: the report has been sent to them. */
 const HOMEOWNER_VISIBLE = ['awaiting_signature', 'signed', 'superseded'] as const;
 
-interface SummaryRow {
+export interface SummaryRow {
   id: string;
   status: Assessment['status'];
   purpose: Assessment['purpose'];
@@ -59,9 +59,7 @@ interface FullRow extends SummaryRow {
   answers: Assessment['answers'];
   measurements: Assessment['measurements'];
   observations: Assessment['observations'];
-  gate_snapshot: unknown;
   scored_record: unknown;
-  result: unknown;
   result_sha256: string | null;
 }
 
@@ -143,9 +141,8 @@ const fullColumns = () => [
   'a.answers',
   'a.measurements',
   'a.observations',
-  'a.gate_snapshot',
+  // Not a.result or a.gate_snapshot: what is shown of them comes from the record.
   'a.scored_record',
-  'a.result',
   'a.result_sha256',
 ];
 
@@ -158,7 +155,7 @@ const sortColumns: Record<AssessmentListQuery['sort']['field'], string> = {
 
 const isoOrNull = (value: Date | null) => (value ? iso(value) : null);
 
-function toSummary(row: SummaryRow): AssessmentSummary {
+export function toSummary(row: SummaryRow): AssessmentSummary {
   return {
     id: row.id,
     status: row.status,
@@ -203,15 +200,18 @@ function toAssessment(row: FullRow): Assessment {
       resultSha256: null,
     };
   }
-  const record = parseScoredRecord(row.id, row.scored_record);
+  return { ...summary, ...frozenDocuments(parseScoredRecord(row.id, row.scored_record), row.scored_record) };
+}
+
+/** What a submitted assessment shows of its frozen record beside the summary. */
+export function frozenDocuments(record: ScoredRecord, raw: unknown) {
   return {
-    ...summary,
     answers: record.answers as Assessment['answers'],
     measurements: record.measurements as Assessment['measurements'],
     observations: record.observations as Assessment['observations'],
     gateSnapshot: { ...record.gate, site: record.site, client: record.client },
-    // As stored (parsed above only to prove it sound): the engine's fields the schema does not name stay.
-    result: (row.scored_record as { result: unknown }).result,
+    // As stored (parsed only to prove it sound): the engine's fields the schema does not name stay.
+    result: (raw as { result: unknown }).result,
     resultSha256: record.resultSha256,
   };
 }
@@ -220,7 +220,11 @@ function toAssessment(row: FullRow): Assessment {
  * The assessments a viewer may see, joined to what the list shows about each; `from` names
  * another source of assessment rows as `a` (a save's updated row).
  */
-function visibleAssessments(knex: Knex, viewer: SessionUser, from = 'assessments as a'): Knex.QueryBuilder {
+export function visibleAssessments(
+  knex: Knex,
+  viewer: SessionUser,
+  from = 'assessments as a',
+): Knex.QueryBuilder {
   const query = knex(from)
     .join('gates as g', 'g.id', 'a.gate_id')
     .join('sites as s', 's.id', 'g.site_id')

@@ -14,6 +14,7 @@ export {
   revisionLinks,
   type RequestFacts,
 } from './drafts';
+export { readAssessmentJson } from './read';
 export { submitAssessment } from './submit';
 export { loadFrozenAssessment, type FrozenAssessment } from './frozen';
 export { addressLines, parseScoredRecord, ScoredRecordSchema, type ScoredRecord } from './scored-record';

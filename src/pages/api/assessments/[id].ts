@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { AssessmentPatchSchema } from '@/lib/api/assessments';
 import { idFromPath } from '@/lib/api/common';
-import { discardAssessment, getAssessment, patchAssessment } from '@/lib/server/assessments';
+import { discardAssessment, patchAssessment, readAssessmentJson } from '@/lib/server/assessments';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';
@@ -10,12 +10,17 @@ import { handle, HttpProblem, parseBody } from '@/lib/server/http/problem';
 
 const what = 'That assessment';
 
-/** The assessment with its documents; the ETag is its row version, for If-Match on PATCH. */
+/**
+ * The assessment with its documents (`getAssessment`'s answer, made as text by `readAssessmentJson`);
+ * the ETag is its row version, for If-Match on PATCH.
+ */
 export const GET: APIRoute = handle(async ({ locals, params }) => {
   const { user } = requireRole(locals, ...assessmentReaders);
   const id = idFromPath(params.id);
-  const assessment = found(id ? await getAssessment(user, id) : null, what);
-  return Response.json(assessment, { headers: { etag: etagOf(assessment.rowVersion) } });
+  const read = found(id ? await readAssessmentJson(user, id) : null, what);
+  return new Response(read.body, {
+    headers: { 'content-type': 'application/json', etag: etagOf(read.rowVersion) },
+  });
 });
 
 /** Merge-patches a draft's answers, measurements and observations over the row version in If-Match. */

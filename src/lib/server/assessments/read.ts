@@ -1,0 +1,151 @@
+/**
+ * `GET /api/assessments/:id` as JSON text, the same document `getAssessment` gives, made cheaply.
+ *
+ * The summary columns of a submitted assessment come from its frozen record; read through
+ * `#>>` once per column, PostgreSQL decompressed the whole record (tens of KB) for each, and the
+ * record was then sent, parsed, checked with zod and stringified again on every read. Here:
+ *
+ * - The row is read with its live columns and its `xmin` (the transaction that wrote this version
+ *   of the row; any UPDATE, even one that disables a trigger, gives a new one). The record is
+ *   sent only when this process holds nothing for that `xmin`.
+ * - A record that came back is parsed strictly (`parseScoredRecord`: a damaged record is a 500,
+ *   never a default), and what the answer shows of it is kept as JSON text by assessment id and
+ *   `xmin`, in a bounded LRU. Another instance or a change by hand cannot make it stale: a row
+ *   whose `xmin` moved on is read again.
+ * - Who may see the row is decided by the query every time; the cache holds only what the
+ *   record says, which is the same for every viewer allowed to see it.
+ */
+import { LRUCache } from 'lru-cache';
+import type { Assessment } from '@/lib/api/assessments';
+import { db } from '../db';
+import type { SessionUser } from '../session-user';
+import { frozenDocuments, toSummary, visibleAssessments, type SummaryRow } from './drafts';
+import { parseScoredRecord } from './scored-record';
+
+interface ReadRow extends SummaryRow {
+  row_xmin: string;
+  answers: Assessment['answers'] | null;
+  measurements: Assessment['measurements'] | null;
+  observations: Assessment['observations'] | null;
+  /** Sent only when out of draft and not already held for this `xmin`. */
+  scored_record: unknown;
+}
+
+/** What a frozen record shows: the summary's frozen values and the rest of the answer as JSON text. */
+interface HeldRecord {
+  xmin: string;
+  gate: { label: string; kind: string };
+  site: { id: string; name: string | null; addressLine1: string; city: string; usageClass: number };
+  client: { id: string; name: string };
+  rulesetTitle: string;
+  /** `"answers":…,"measurements":…,"observations":…,"gateSnapshot":…,"result":…,"resultSha256":…` */
+  tail: string;
+}
+
+/** About 32 MB of records at most (a full record's text is some 50 KB). */
+const held = new LRUCache<string, HeldRecord>({
+  maxSize: 32 * 1024 * 1024,
+  sizeCalculation: (entry) => entry.tail.length * 2 + 512,
+});
+
+/** Forgets every held record (tests). */
+export function forgetHeldRecords(): void {
+  held.clear();
+}
+
+function hold(id: string, xmin: string, raw: unknown): HeldRecord {
+  const record = parseScoredRecord(id, raw);
+  const tail = JSON.stringify(frozenDocuments(record, raw)).slice(1, -1);
+  const entry: HeldRecord = {
+    xmin,
+    gate: { label: record.gate.label, kind: record.gate.kind },
+    site: {
+      id: record.site.id,
+      name: record.site.name,
+      addressLine1: record.site.addressLine1,
+      city: record.site.city,
+      usageClass: record.site.usageClass,
+    },
+    client: { id: record.client.id, name: record.client.name },
+    rulesetTitle: record.ruleset.title,
+    tail,
+  };
+  held.set(id, entry);
+  return entry;
+}
+
+/** The assessment as the JSON text of `getAssessment`'s answer, or null when this viewer cannot see it. */
+export async function readAssessmentJson(
+  viewer: SessionUser,
+  id: string,
+): Promise<{ body: string; rowVersion: number } | null> {
+  const knex = db();
+  const known = held.get(id);
+  const row = await visibleAssessments(knex, viewer)
+    .andWhere('a.id', id)
+    .first<ReadRow | undefined>([
+      'a.id',
+      'a.status',
+      'a.purpose',
+      'a.verdict',
+      'a.row_version',
+      'a.gate_id',
+      'g.label as gate_label',
+      'g.kind as gate_kind',
+      knex.raw('s.id::text as site_id'),
+      's.name as site_name',
+      's.address_line1 as site_address_line1',
+      's.city as site_city',
+      's.usage_class as site_usage_class',
+      knex.raw('c.id::text as client_id'),
+      'c.name as client_name',
+      'a.auditor_id',
+      'u.name as auditor_name',
+      'a.ruleset_version_id',
+      'r.family as ruleset_family',
+      'rv.version as ruleset_version',
+      'r.title as ruleset_title',
+      'a.visited_on',
+      'a.submitted_at',
+      'a.signed_at',
+      'a.created_at',
+      'a.updated_at',
+      knex.raw('a.xmin::text as row_xmin'),
+      knex.raw(`case when a.status = 'draft' then a.answers end as answers`),
+      knex.raw(`case when a.status = 'draft' then a.measurements end as measurements`),
+      knex.raw(`case when a.status = 'draft' then a.observations end as observations`),
+      knex.raw(
+        `case when a.status <> 'draft' and a.xmin::text is distinct from ? then a.scored_record end as scored_record`,
+        [known?.xmin ?? null],
+      ),
+    ]);
+  if (!row) return null;
+  if (row.status === 'draft') {
+    const draft: Assessment = {
+      ...toSummary(row),
+      answers: row.answers ?? {},
+      measurements: row.measurements ?? {},
+      observations: row.observations ?? {},
+      gateSnapshot: null,
+      result: null,
+      resultSha256: null,
+    };
+    return { body: JSON.stringify(draft), rowVersion: row.row_version };
+  }
+  const record = known && known.xmin === row.row_xmin ? known : hold(row.id, row.row_xmin, row.scored_record);
+  // As the list's columns do (coalesce(record value, live value)): the record's value unless it is null.
+  const summary = toSummary({
+    ...row,
+    gate_label: record.gate.label,
+    gate_kind: record.gate.kind,
+    site_id: record.site.id,
+    site_name: record.site.name ?? row.site_name,
+    site_address_line1: record.site.addressLine1,
+    site_city: record.site.city,
+    site_usage_class: record.site.usageClass,
+    client_id: record.client.id,
+    client_name: record.client.name,
+    ruleset_title: record.rulesetTitle,
+  });
+  return { body: `${JSON.stringify(summary).slice(0, -1)},${record.tail}}`, rowVersion: row.row_version };
+}
