@@ -42,13 +42,12 @@ describe('re-scoring thread pool', () => {
 
   it('keeps the other threads’ slices when one thread dies', async () => {
     pool = await startRescorePool(fixture, 2);
-    const results = await Promise.allSettled([
-      pool!.run(slice('crash')),
-      pool!.run(slice('x')),
-      pool!.run(slice('y')),
-    ]);
-    expect(results[0]).toMatchObject({ status: 'rejected' });
-    expect(results.slice(1).map((r) => r.status)).toEqual(['fulfilled', 'fulfilled']);
+    // The least busy thread takes each slice, so with two threads these two land on different
+    // threads (a third would share the crashing thread and, by timing, go down with it or not).
+    const results = await Promise.allSettled([pool!.run(slice('crash')), pool!.run(slice('x'))]);
+    expect(results.map((r) => r.status)).toEqual(['rejected', 'fulfilled']);
+    // And the pool still scores afterwards, on a replacement thread if need be.
+    await expect(pool!.run(slice('y'))).resolves.toHaveLength(1);
   }, 60_000);
 
   it('rejects what it still holds when closed', async () => {
