@@ -65,49 +65,15 @@ interface FullRow extends SummaryRow {
 
 /**
  * Once submitted, what the assessment shows of its gate, site, client and ruleset is the frozen
- * record's (scored-record.ts); a draft shows the live rows it will be scored against.
- */
-const frozenOr = (path: string, live: string, alias: string, cast = '') =>
-  db().raw(`coalesce((a.scored_record #>> '{${path}}')${cast}, ${live}) as ${alias}`);
-
-const summaryColumns = () => [
-  'a.id',
-  'a.status',
-  'a.purpose',
-  'a.verdict',
-  'a.row_version',
-  'a.gate_id',
-  frozenOr('gate,label', 'g.label', 'gate_label'),
-  frozenOr('gate,kind', 'g.kind', 'gate_kind'),
-  frozenOr('site,id', 's.id::text', 'site_id'),
-  frozenOr('site,name', 's.name', 'site_name'),
-  frozenOr('site,addressLine1', 's.address_line1', 'site_address_line1'),
-  frozenOr('site,city', 's.city', 'site_city'),
-  frozenOr('site,usageClass', 's.usage_class', 'site_usage_class', '::int'),
-  frozenOr('client,id', 'c.id::text', 'client_id'),
-  frozenOr('client,name', 'c.name', 'client_name'),
-  'a.auditor_id',
-  'u.name as auditor_name',
-  'a.ruleset_version_id',
-  'r.family as ruleset_family',
-  'rv.version as ruleset_version',
-  frozenOr('ruleset,title', 'r.title', 'ruleset_title'),
-  'a.visited_on',
-  'a.submitted_at',
-  'a.signed_at',
-  'a.created_at',
-  'a.updated_at',
-];
-
-/**
- * The list's columns: the same values as summaryColumns, the frozen ones read from the small
- * `scored_summary` the database keeps beside each record (migration
- * 20261204181800_assessment_scored_summary), so a page never decompresses a whole record.
+ * record's (scored-record.ts); a draft shows the live rows it will be scored against. The frozen
+ * values come from the small `scored_summary` the database derives from each record (migration
+ * 20261204181800_assessment_scored_summary): `#>>` on the record itself would decompress the
+ * whole record once per value.
  */
 const frozenListed = (key: string, live: string, alias: string, cast = '') =>
   db().raw(`coalesce((a.scored_summary ->> '${key}')${cast}, ${live}) as ${alias}`);
 
-const listColumns = () => [
+const summaryColumns = () => [
   'a.id',
   'a.status',
   'a.purpose',
@@ -260,7 +226,7 @@ export async function listAssessments(
   return fetchPageCounted<SummaryRow, AssessmentSummary>(
     {
       base,
-      columns: listColumns(),
+      columns: summaryColumns(),
       order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
       idColumn: 'a.id',
       map: toSummary,
