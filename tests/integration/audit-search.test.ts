@@ -221,3 +221,44 @@ describe('gates in the audit trail', () => {
     expect(actions(await search(owner, 'action=gate.duplicated'))).toEqual(['gate.duplicated']);
   });
 });
+
+describe('clients and sites in the audit trail', () => {
+  it('records a client and a site made over the API once each (a replay adds nothing), with who made them', async () => {
+    const clientKey = crypto.randomUUID();
+    const clientBody = { kind: 'homeowner', name: 'Audited Newcomer' };
+    const madeClient = await office.fetch('/api/clients', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'idempotency-key': clientKey },
+      body: JSON.stringify(clientBody),
+    });
+    expect(madeClient.status, await madeClient.clone().text()).toBe(201);
+    const client = (await madeClient.json()) as { id: string };
+    const replay = await office.fetch('/api/clients', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'idempotency-key': clientKey },
+      body: JSON.stringify(clientBody),
+    });
+    expect(replay.headers.get('idempotent-replayed')).toBe('true');
+
+    const madeSite = await office.json('POST', '/api/sites', {
+      clientId: client.id,
+      name: 'Audited yard',
+      addressLine1: '4 Lantern Row',
+      city: 'Brookvale',
+      usageClass: 1,
+    });
+    expect(madeSite.status, await madeSite.clone().text()).toBe(201);
+    const site = (await madeSite.json()) as { id: string };
+
+    const clients = await search(owner, 'action=client.created');
+    expect(clients.filter((e) => e.entityId === client.id)).toHaveLength(1);
+    expect(clients.find((e) => e.entityId === client.id)).toMatchObject({
+      actorUserId: org.office.id,
+      entityType: 'client',
+    });
+    const sites = await search(owner, `q=${encodeURIComponent('Audited yard')}`);
+    expect(actions(sites)).toEqual(['site.created']);
+    expect(sites[0]).toMatchObject({ actorUserId: org.office.id, entityType: 'site', entityId: site.id });
+    expect(await search(otherOwner, 'action=client.created')).toEqual([]);
+  });
+});

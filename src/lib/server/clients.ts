@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
 import { countAssessmentsOfGates, loadFrozenAssessment } from './assessments';
 import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/api/clients';
 import type { Page } from '@/lib/api/common';
-import { recordAudit } from './audit';
+import { recordAudit, recordByPerson } from './audit';
 import { db } from './db';
 import { ConflictError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -103,15 +103,26 @@ export async function getClient(viewer: SessionUser, id: string, knex: Knex = db
   return row ? toClient(row) : null;
 }
 
+/** Creates a client; the audit trail records it with who made it. */
 export async function createClient(
   viewer: SessionUser,
   input: ClientCreate,
   knex: Knex = db(),
+  options: { ip?: string | null } = {},
 ): Promise<Client> {
-  const [row] = await knex('clients')
-    .insert({ ...toRow(input), organisation_id: viewer.organisationId })
-    .returning<ClientRow[]>(returnedColumns);
-  return toClient(row as ClientRow);
+  return knex.transaction(async (trx) => {
+    const [row] = await trx('clients')
+      .insert({ ...toRow(input), organisation_id: viewer.organisationId })
+      .returning<ClientRow[]>(returnedColumns);
+    const client = toClient(row as ClientRow);
+    await recordByPerson(trx, viewer, options.ip, {
+      action: 'client.created',
+      entityType: 'client',
+      entityId: client.id,
+      detail: { client },
+    });
+    return client;
+  });
 }
 
 /**

@@ -139,13 +139,25 @@ async function assertClientInOrganisation(knex: Knex, viewer: SessionUser, clien
   if (!client) throw InvalidInputError.field('clientId', 'no such client in this organisation');
 }
 
-export async function createSite(viewer: SessionUser, input: SiteCreate, knex: Knex = db()): Promise<Site> {
+/** Creates a site; the audit trail records it with the stored row. */
+export async function createSite(
+  viewer: SessionUser,
+  input: SiteCreate,
+  knex: Knex = db(),
+  options: { ip?: string | null } = {},
+): Promise<Site> {
   return knex.transaction(async (trx) => {
     await assertClientInOrganisation(trx, viewer, input.clientId);
-    const [{ id }] = await trx('sites')
+    const [created] = await trx('sites')
       .insert({ ...toRow(input), organisation_id: viewer.organisationId })
-      .returning<{ id: string }[]>('id');
-    return (await getSite(viewer, id as string, trx)) as Site;
+      .returning('*');
+    await recordByPerson(trx, viewer, options.ip, {
+      action: 'site.created',
+      entityType: 'site',
+      entityId: created.id,
+      detail: { site: created },
+    });
+    return (await getSite(viewer, created.id as string, trx)) as Site;
   });
 }
 

@@ -1,3 +1,4 @@
+import { clientAddressOf } from '@/lib/server/auth/client-address';
 import type { APIRoute } from 'astro';
 import { ClientCreateSchema, ClientListQuerySchema } from '@/lib/api/clients';
 import { createClient, listClients } from '@/lib/server/clients';
@@ -13,10 +14,12 @@ export const GET: APIRoute = handle(async ({ locals, url }) => {
 });
 
 /** Creates one; an `Idempotency-Key` header makes a retry answer the first response instead of creating again. */
-export const POST: APIRoute = handle(async ({ locals, request }) => {
-  const { user } = requireRole(locals, ...directoryWriters);
-  return withIdempotency(user, request, async (knex, body) => {
-    const created = await createClient(user, await parseBody(ClientCreateSchema, body), knex);
+export const POST: APIRoute = handle(async (context) => {
+  const { user } = requireRole(context.locals, ...directoryWriters);
+  return withIdempotency(user, context.request, async (knex, body) => {
+    const created = await createClient(user, await parseBody(ClientCreateSchema, body), knex, {
+      ip: clientAddressOf(context),
+    });
     return Response.json(created, { status: 201, headers: { location: `/api/clients/${created.id}` } });
   });
 });
