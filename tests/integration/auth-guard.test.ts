@@ -126,6 +126,25 @@ describe('cross-site writes', () => {
     expect(res.status).toBe(403);
   });
 
+  it('answer a refused browser form post with a page naming the configured address', async () => {
+    // Opened at another name for the same machine, the page says where Latchwell really is.
+    const res = await owner.fetch('/auth/signout', {
+      method: 'POST',
+      headers: {
+        origin: 'http://localhost:9',
+        accept: 'text/html',
+        'content-type': 'application/x-www-form-urlencoded',
+      },
+      body: '',
+    });
+    expect(res.status).toBe(403);
+    expect(res.headers.get('content-type')).toContain('text/html');
+    const page = await res.text();
+    const origin = new URL(baseUrl).origin;
+    expect(page).toContain(`<a href="${origin}/signin">Sign in</a>`);
+    expect(page).not.toContain('localhost');
+  });
+
   it('refuse a cross-site form post to sign out', async () => {
     const res = await owner.fetch('/auth/signout', {
       method: 'POST',

@@ -39,7 +39,13 @@ export function isCrossSiteWrite(request: Request): boolean {
 
 const refusalDetail = 'Requests from another site are refused.';
 
-const refusalPage = `<!doctype html>
+const escapeHtml = (text: string) => text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+
+/**
+ * The page for a refused browser post. It names Latchwell's configured address, since the usual
+ * honest cause is the app opened at another name for the same machine (localhost for 127.0.0.1).
+ */
+const refusalPage = (origin: string) => `<!doctype html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
@@ -50,8 +56,8 @@ const refusalPage = `<!doctype html>
 <body>
 <main>
 <h1>This form did not come from Latchwell</h1>
-<p>It was sent from another site, so nothing was changed. If you were using Latchwell, go back to it and try again from its own page.</p>
-<p><a href="/">Go to Latchwell</a> · <a href="/signin">Sign in</a></p>
+<p>It was sent from another site or another address, so nothing was changed. Latchwell's address is <a href="${origin}/">${origin}</a>: open it there and try again from its own page.</p>
+<p><a href="${origin}/">Go to Latchwell</a> · <a href="${origin}/signin">Sign in</a></p>
 </main>
 </body>
 </html>
@@ -63,7 +69,7 @@ export function crossSiteRefusal(request: Request): Response {
     request.headers.get('sec-fetch-mode') === 'navigate' ||
     (request.headers.get('accept') ?? '').includes('text/html');
   if (!page) return problem(403, refusalDetail);
-  return new Response(refusalPage, {
+  return new Response(refusalPage(escapeHtml(linkOrigin())), {
     status: 403,
     headers: { 'content-type': 'text/html; charset=utf-8', 'cache-control': 'no-store' },
   });
