@@ -73,7 +73,7 @@ interface FullRow extends SummaryRow {
 const frozenListed = (key: string, live: string, alias: string, cast = '') =>
   db().raw(`coalesce((a.scored_summary ->> '${key}')${cast}, ${live}) as ${alias}`);
 
-const summaryColumns = () => [
+export const summaryColumns = () => [
   'a.id',
   'a.status',
   'a.purpose',

@@ -19,7 +19,7 @@ import { LRUCache } from 'lru-cache';
 import type { Assessment } from '@/lib/api/assessments';
 import { db } from '../db';
 import type { SessionUser } from '../session-user';
-import { frozenDocuments, toSummary, visibleAssessments, type SummaryRow } from './drafts';
+import { frozenDocuments, summaryColumns, toSummary, visibleAssessments, type SummaryRow } from './drafts';
 import { parseScoredRecord } from './scored-record';
 
 interface ReadRow extends SummaryRow {
@@ -31,13 +31,9 @@ interface ReadRow extends SummaryRow {
   scored_record: unknown;
 }
 
-/** What a frozen record shows: the summary's frozen values and the rest of the answer as JSON text. */
+/** What a frozen record adds to the summary, as JSON text, for one version (`xmin`) of the row. */
 interface HeldRecord {
   xmin: string;
-  gate: { label: string; kind: string };
-  site: { id: string; name: string | null; addressLine1: string; city: string; usageClass: number };
-  client: { id: string; name: string };
-  rulesetTitle: string;
   /** `"answers":…,"measurements":…,"observations":…,"gateSnapshot":…,"result":…,"resultSha256":…` */
   tail: string;
 }
@@ -56,20 +52,7 @@ export function forgetHeldRecords(): void {
 function hold(id: string, xmin: string, raw: unknown): HeldRecord {
   const record = parseScoredRecord(id, raw);
   const tail = JSON.stringify(frozenDocuments(record, raw)).slice(1, -1);
-  const entry: HeldRecord = {
-    xmin,
-    gate: { label: record.gate.label, kind: record.gate.kind },
-    site: {
-      id: record.site.id,
-      name: record.site.name,
-      addressLine1: record.site.addressLine1,
-      city: record.site.city,
-      usageClass: record.site.usageClass,
-    },
-    client: { id: record.client.id, name: record.client.name },
-    rulesetTitle: record.ruleset.title,
-    tail,
-  };
+  const entry: HeldRecord = { xmin, tail };
   held.set(id, entry);
   return entry;
 }
@@ -84,32 +67,7 @@ export async function readAssessmentJson(
   const row = await visibleAssessments(knex, viewer)
     .andWhere('a.id', id)
     .first<ReadRow | undefined>([
-      'a.id',
-      'a.status',
-      'a.purpose',
-      'a.verdict',
-      'a.row_version',
-      'a.gate_id',
-      'g.label as gate_label',
-      'g.kind as gate_kind',
-      knex.raw('s.id::text as site_id'),
-      's.name as site_name',
-      's.address_line1 as site_address_line1',
-      's.city as site_city',
-      's.usage_class as site_usage_class',
-      knex.raw('c.id::text as client_id'),
-      'c.name as client_name',
-      'a.auditor_id',
-      'u.name as auditor_name',
-      'a.ruleset_version_id',
-      'r.family as ruleset_family',
-      'rv.version as ruleset_version',
-      'r.title as ruleset_title',
-      'a.visited_on',
-      'a.submitted_at',
-      'a.signed_at',
-      'a.created_at',
-      'a.updated_at',
+      ...summaryColumns(),
       knex.raw('a.xmin::text as row_xmin'),
       knex.raw(`case when a.status = 'draft' then a.answers end as answers`),
       knex.raw(`case when a.status = 'draft' then a.measurements end as measurements`),
@@ -133,19 +91,7 @@ export async function readAssessmentJson(
     return { body: JSON.stringify(draft), rowVersion: row.row_version };
   }
   const record = known && known.xmin === row.row_xmin ? known : hold(row.id, row.row_xmin, row.scored_record);
-  // As the list's columns do (coalesce(record value, live value)): the record's value unless it is null.
-  const summary = toSummary({
-    ...row,
-    gate_label: record.gate.label,
-    gate_kind: record.gate.kind,
-    site_id: record.site.id,
-    site_name: record.site.name ?? row.site_name,
-    site_address_line1: record.site.addressLine1,
-    site_city: record.site.city,
-    site_usage_class: record.site.usageClass,
-    client_id: record.client.id,
-    client_name: record.client.name,
-    ruleset_title: record.rulesetTitle,
-  });
+  // The summary's frozen values come from scored_summary, as the list's do.
+  const summary = toSummary(row);
   return { body: `${JSON.stringify(summary).slice(0, -1)},${record.tail}}`, rowVersion: row.row_version };
 }
