@@ -109,7 +109,7 @@ describe('each domain error as an RFC 9457 problem', () => {
       'Too many requests',
       'Too many wrong passwords.',
     ],
-    [new GoneError('This signing link has expired.'), 410, 'Error', 'This signing link has expired.'],
+    [new GoneError('This signing link has expired.'), 410, 'Gone', 'This signing link has expired.'],
   ] as const)('%s answers %i', async (error, status, title, detail) => {
     const { status: answered, headers, body } = await answer(error);
     expect(answered).toBe(status);

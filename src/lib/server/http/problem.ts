@@ -2,6 +2,7 @@
  * RFC 9457 problem details: every API error leaves through here, with per-field messages in
  * `errors` and never a stack trace.
  */
+import { STATUS_CODES } from 'node:http';
 import { z } from 'zod';
 import { CorruptRecordError, DomainError, RateLimitedError } from '../errors';
 import { readBodyText } from './body';
@@ -21,13 +22,15 @@ export interface ProblemBody {
   [extension: string]: unknown;
 }
 
-const titles: Record<number, string> = {
+/** The statuses this app answers with on purpose, each with its own title. */
+const titles = {
   400: 'Bad request',
   401: 'Sign-in required',
   403: 'Not allowed',
   404: 'Not found',
   405: 'Method not allowed',
   409: 'Conflict',
+  410: 'Gone',
   413: 'Request too large',
   415: 'Unsupported media type',
   422: 'Invalid input',
@@ -35,7 +38,14 @@ const titles: Record<number, string> = {
   429: 'Too many requests',
   500: 'Server error',
   503: 'Service unavailable',
-};
+} as const satisfies Record<number, string>;
+
+export type ProblemStatus = keyof typeof titles;
+
+/** A problem's title: ours for the statuses above, else the status's standard reason phrase. */
+export function problemTitle(status: number): string {
+  return titles[status as ProblemStatus] ?? STATUS_CODES[status] ?? `HTTP ${status}`;
+}
 
 export function problem(
   status: number,
@@ -45,7 +55,7 @@ export function problem(
 ): Response {
   const body: ProblemBody = {
     type: `https://latchwell.invalid/problems/${status}`,
-    title: titles[status] ?? 'Error',
+    title: problemTitle(status),
     status,
     ...(detail ? { detail } : {}),
     ...extra,
@@ -153,7 +163,8 @@ export function handle<C>(fn: (context: C) => Promise<Response> | Response) {
   };
 }
 
-const domainStatus: Record<DomainError['kind'], number> = {
+/** Each kind's status; a status without a title of its own does not type-check here. */
+export const domainStatus: Record<DomainError['kind'], ProblemStatus> = {
   not_found: 404,
   conflict: 409,
   invalid_input: 422,
