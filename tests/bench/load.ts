@@ -54,10 +54,34 @@ function figures(result: Result): Figures {
   };
 }
 
-function run(options: autocannon.Options): Promise<Result> {
+/** The autocannon run going now, which Ctrl-C stops; after Ctrl-C no further run starts. */
+let current: autocannon.Instance | null = null;
+let interrupted = false;
+let listening = false;
+
+function onInterrupt() {
+  interrupted = true;
+  current?.stop();
+}
+
+/**
+ * One autocannon run. Ctrl-C stops the run in progress (its figures still come back) and makes
+ * the next one refuse to start, so the bench ends and stops its server. One SIGINT listener
+ * serves every run.
+ */
+export function runAutocannon(options: autocannon.Options): Promise<Result> {
+  if (interrupted) return Promise.reject(new Error('the load bench was interrupted'));
+  if (!listening) {
+    listening = true;
+    process.on('SIGINT', onInterrupt);
+  }
   return new Promise((resolve, reject) => {
-    const instance = autocannon(options, (error, result) => (error ? reject(error) : resolve(result)));
-    process.once('SIGINT', () => instance.stop());
+    const instance = autocannon(options, (error, result) => {
+      if (current === instance) current = null;
+      if (error) reject(error);
+      else resolve(result);
+    });
+    current = instance;
   });
 }
 
@@ -191,8 +215,8 @@ export async function runLoadBench(
       const mine: Figures[] = [];
       const ceiling: Figures[] = [];
       for (let round = 0; round < rounds; round++) {
-        ceiling.push(figures(await run({ connections, duration: slice, ...health })));
-        mine.push(figures(await run({ connections, duration: slice, ...options })));
+        ceiling.push(figures(await runAutocannon({ connections, duration: slice, ...health })));
+        mine.push(figures(await runAutocannon({ connections, duration: slice, ...options })));
       }
       const f = merge(mine);
       const h = merge(ceiling);
