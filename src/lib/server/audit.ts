@@ -101,3 +101,33 @@ export function recordByPerson(
     ip: ip ?? null,
   });
 }
+
+/**
+ * Inserts one row of the person's organisation into `table` and records it in the audit trail in
+ * the same transaction: `action` on `entityType` with the new row's id, the detail built from the
+ * row as stored (`returning`, every column by default). Answers the stored row.
+ */
+export async function insertAudited<Row extends { id: string }>(
+  trx: Knex.Transaction,
+  person: Pick<SessionUser, 'id' | 'email' | 'organisationId'>,
+  ip: string | null | undefined,
+  insert: {
+    table: string;
+    values: Record<string, unknown>;
+    returning?: readonly string[];
+    action: string;
+    entityType: string;
+    detail: (row: Row) => Record<string, unknown>;
+  },
+): Promise<Row> {
+  const [row] = (await trx(insert.table)
+    .insert({ ...insert.values, organisation_id: person.organisationId })
+    .returning(insert.returning ? [...insert.returning] : '*')) as Row[];
+  await recordByPerson(trx, person, ip, {
+    action: insert.action,
+    entityType: insert.entityType,
+    entityId: row!.id,
+    detail: insert.detail(row!),
+  });
+  return row!;
+}

@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
 import { countAssessmentsOfGates, loadFrozenAssessment } from './assessments';
 import type { Client, ClientCreate, ClientListQuery, ClientPatch } from '@/lib/api/clients';
 import type { Page } from '@/lib/api/common';
-import { recordAudit, recordByPerson } from './audit';
+import { insertAudited, recordAudit, recordByPerson } from './audit';
 import { db } from './db';
 import { ConflictError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -111,17 +111,15 @@ export async function createClient(
   options: { ip?: string | null } = {},
 ): Promise<Client> {
   return knex.transaction(async (trx) => {
-    const [row] = await trx('clients')
-      .insert({ ...toRow(input), organisation_id: viewer.organisationId })
-      .returning<ClientRow[]>(returnedColumns);
-    const client = toClient(row as ClientRow);
-    await recordByPerson(trx, viewer, options.ip, {
+    const row = await insertAudited<ClientRow>(trx, viewer, options.ip, {
+      table: 'clients',
+      values: toRow(input),
+      returning: returnedColumns,
       action: 'client.created',
       entityType: 'client',
-      entityId: client.id,
-      detail: { client },
+      detail: (stored) => ({ client: toClient(stored) }),
     });
-    return client;
+    return toClient(row);
   });
 }
 

@@ -15,7 +15,7 @@ import type {
   OperatorFacts,
 } from '@/lib/api/gates';
 import { applyMergePatch } from '@/lib/merge-patch';
-import { changedColumns, recordByPerson } from './audit';
+import { changedColumns, insertAudited, recordByPerson } from './audit';
 import { db } from './db';
 import { ConflictError, InvalidInputError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -177,16 +177,14 @@ export async function createGate(
 ): Promise<Gate> {
   return knex.transaction(async (trx) => {
     await assertSiteInOrganisation(trx, viewer, input.siteId);
-    const [created] = await trx('gates')
-      .insert({ operator: '{}', ...toRow(input), organisation_id: viewer.organisationId })
-      .returning('*');
-    await recordByPerson(trx, viewer, options.ip, {
+    const created = await insertAudited(trx, viewer, options.ip, {
+      table: 'gates',
+      values: { operator: '{}', ...toRow(input) },
       action: 'gate.created',
       entityType: 'gate',
-      entityId: created.id,
-      detail: { gate: created },
+      detail: (gate) => ({ gate }),
     });
-    return (await getGate(viewer, created.id as string, trx)) as Gate;
+    return (await getGate(viewer, created.id, trx)) as Gate;
   });
 }
 
@@ -218,23 +216,20 @@ export async function duplicateGate(
         'installed_on',
       );
     if (!source) return null;
-    const [copy] = await trx('gates')
-      .insert({
+    // The copy is the record; `gateId` names the original, so the original's history lists it too.
+    const copy = await insertAudited(trx, viewer, options.ip, {
+      table: 'gates',
+      values: {
         ...source,
         entered: JSON.stringify(source.entered ?? {}),
         operator: JSON.stringify(source.operator ?? {}),
         label,
-        organisation_id: viewer.organisationId,
-      })
-      .returning('*');
-    // The copy is the record; `gateId` names the original, so the original's history lists it too.
-    await recordByPerson(trx, viewer, options.ip, {
+      },
       action: 'gate.duplicated',
       entityType: 'gate',
-      entityId: copy.id,
-      detail: { gateId: id, gate: copy },
+      detail: (gate) => ({ gateId: id, gate }),
     });
-    return (await getGate(viewer, copy.id as string, trx)) as Gate;
+    return (await getGate(viewer, copy.id, trx)) as Gate;
   });
 }
 

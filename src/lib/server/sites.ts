@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
 import { countAssessmentsOfGates } from './assessments';
 import type { Page } from '@/lib/api/common';
 import type { Site, SiteCreate, SiteListQuery, SitePatch } from '@/lib/api/sites';
-import { changedColumns, recordByPerson } from './audit';
+import { changedColumns, insertAudited, recordByPerson } from './audit';
 import { db } from './db';
 import { ConflictError, InvalidInputError } from './errors';
 import { containsPattern, fetchPage, iso } from './listing';
@@ -148,16 +148,14 @@ export async function createSite(
 ): Promise<Site> {
   return knex.transaction(async (trx) => {
     await assertClientInOrganisation(trx, viewer, input.clientId);
-    const [created] = await trx('sites')
-      .insert({ ...toRow(input), organisation_id: viewer.organisationId })
-      .returning('*');
-    await recordByPerson(trx, viewer, options.ip, {
+    const created = await insertAudited(trx, viewer, options.ip, {
+      table: 'sites',
+      values: toRow(input),
       action: 'site.created',
       entityType: 'site',
-      entityId: created.id,
-      detail: { site: created },
+      detail: (site) => ({ site }),
     });
-    return (await getSite(viewer, created.id as string, trx)) as Site;
+    return (await getSite(viewer, created.id, trx)) as Site;
   });
 }
 
