@@ -29,6 +29,7 @@ import {
   type FixtureOrganisation,
 } from './support/fixtures';
 import { seedScoredAssessment } from './support/signing-seed';
+import { extractPdfText } from '../support/pdf-text';
 
 let bare: RunningServer;
 let smtpPort: number;
@@ -394,5 +395,106 @@ describe('links in e-mails ignore the host a request claims', () => {
       expect(links.some((u) => u.pathname === '/archive/reinspection')).toBe(true);
       for (const link of links) expect(link.origin, `forged ${forged.name}`).toBe(server.expected);
     }
+  });
+});
+
+describe('the signed PDF names the Verify page at the public address', () => {
+  /** Sends a report for signature on `base`, signs it there with `forged` headers, returns the PDF's text. */
+  async function signedPdfText(base: string, catcherUrl: string, forged: Record<string, string>) {
+    const cookie = await staffCookie(org.office.email);
+    const email = newAddress('verify-link');
+    const [clientRow] = await testDb()('clients')
+      .insert({ organisation_id: org.id, name: `Signer ${email}`, kind: 'homeowner', contact_email: email })
+      .returning('id');
+    const seeded = await seedScoredAssessment(
+      testDb(),
+      { id: org.id, auditorId: org.auditor.id, clientId: clientRow.id },
+      { dataDir: inject('dataDir'), photos: 0, findings: 2 },
+    );
+    const sent = await json(
+      base,
+      'POST',
+      `/api/assessments/${seeded.assessmentId}/send-for-signature`,
+      {},
+      { cookie, ...forged },
+    );
+    expect(sent.status, sent.body).toBe(202);
+    const { links } = await onlyMailTo(catcherUrl, email);
+    const token = links.find((u) => u.pathname.startsWith('/sign/'))!.pathname.slice('/sign/'.length);
+    const page = await raw(base, `/sign/${token}`, { headers: forged });
+    const shownSha = /data-document-sha256>([0-9a-f]{64})</.exec(page.body)?.[1];
+    expect(shownSha).toMatch(/^[0-9a-f]{64}$/);
+    const signed = await json(
+      base,
+      'POST',
+      `/api/sign/${token}/submit`,
+      {
+        name: 'Orla Brindlecombe',
+        consent: true,
+        intent: true,
+        acknowledgedCautions: seeded.result.findings.filter((f) => f.outcome === 'fail').map((f) => f.ruleId),
+        shownPdfSha256: shownSha,
+        signature: { method: 'typed' },
+      },
+      { origin: base, ...forged },
+    );
+    expect(signed.status, signed.body).toBe(201);
+    const documentId = (JSON.parse(signed.body) as { document: { id: string } }).document.id;
+    const pdf = await fetch(`${base}/api/documents/${documentId}/file`, { headers: { cookie } });
+    expect(pdf.status).toBe(200);
+    return extractPdfText(new Uint8Array(await pdf.arrayBuffer()));
+  }
+
+  /** The link the PDF gives for the Verify page, white space (line breaks) taken out. */
+  const verifyLinkIn = (text: string) => /Verify page \(([^)]*)\)/.exec(text)?.[1]?.replace(/\s+/g, '');
+
+  it('absolute, from the configured origin or else the listening address, whatever the signer forged', async () => {
+    const forged = forgeries[2]!.headers;
+    const cases = [
+      { base: bare.url, catcherUrl: `http://127.0.0.1:${httpPort}`, expected: `${bare.url}/verify` },
+      {
+        base: inject('baseUrl'),
+        catcherUrl: inject('catcherUrl'),
+        expected: `${inject('serverEnv').PUBLIC_URL}/verify`,
+      },
+    ];
+    for (const { base, catcherUrl, expected } of cases) {
+      const text = await signedPdfText(base, catcherUrl, forged);
+      expect(verifyLinkIn(text), base).toBe(expected);
+      expect(text).not.toContain('attacker.example');
+    }
+  }, 120_000);
+});
+
+describe('cookies do not follow the scheme a request claims', () => {
+  it('a password sign-in claiming X-Forwarded-Proto: https on a plain-http server sets no Secure cookie', async () => {
+    const forged = { 'x-forwarded-proto': 'https', 'x-forwarded-host': 'attacker.example' };
+    const csrf = await raw(bare.url, '/api/auth/csrf', { headers: forged });
+    const { csrfToken } = JSON.parse(csrf.body) as { csrfToken: string };
+    const csrfCookies = csrf.headers['set-cookie'] ?? [];
+    const res = await raw(bare.url, '/api/auth/callback/credentials', {
+      method: 'POST',
+      headers: {
+        ...forged,
+        origin: bare.url,
+        cookie: csrfCookies.map((c) => c.split(';')[0]).join('; '),
+        'content-type': 'application/x-www-form-urlencoded',
+      },
+      body: new URLSearchParams({
+        email: org.office.email,
+        password: fixturePassword,
+        csrfToken,
+        callbackUrl: '/',
+      }).toString(),
+    });
+    expect(res.status, res.body).toBeLessThan(400);
+    const cookies = [...csrfCookies, ...(res.headers['set-cookie'] ?? [])];
+    expect(cookies.some((c) => c.startsWith('authjs.session-token='))).toBe(true);
+    for (const cookie of cookies) {
+      expect(cookie).not.toMatch(/;\s*secure/i);
+      expect(cookie).not.toMatch(/^__(Secure|Host)-/);
+    }
+    // A redirect, if any, stays on the server's own address.
+    if (res.headers.location) expect(new URL(res.headers.location, bare.url).origin).toBe(bare.url);
   });
 });

@@ -4,10 +4,12 @@
  * found, so no spelling of a path reaches outside the folder, and dotfiles stay out.
  */
 import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { clientFileFor, listClientFiles } from '@/lib/server/http/node-server';
+import { clientFileFor, createRequestListener, listClientFiles } from '@/lib/server/http/node-server';
 
 let dir: string;
 let files: Map<string, string>;
@@ -86,5 +88,69 @@ describe('finding the file a request names', () => {
     '/%E0%A4%A',
   ])('%s is no file', (url) => {
     expect(clientFileFor(url, files)).toBeNull();
+  });
+});
+
+describe('what Astro makes of a request that names another host or scheme', () => {
+  /** The URL (and the headers) Astro's createRequest builds for one request through the listener. */
+  async function seenByAstro(headers: Record<string, string>) {
+    const { NodeApp } = await import('astro/app/node');
+    const server = http.createServer(
+      createRequestListener(
+        (req, res) => {
+          const request = NodeApp.createRequest(req, { skipBody: true });
+          res.setHeader('content-type', 'application/json');
+          res.end(
+            JSON.stringify({
+              url: request.url,
+              forwarded: ['x-forwarded-host', 'x-forwarded-proto', 'x-forwarded-port', 'forwarded'].filter(
+                (name) => request.headers.has(name),
+              ),
+              forwardedFor: request.headers.get('x-forwarded-for'),
+            }),
+          );
+        },
+        dir,
+        files,
+      ),
+    );
+    await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+    try {
+      const { port } = server.address() as AddressInfo;
+      return await new Promise<{ url: string; forwarded: string[]; forwardedFor: string | null }>(
+        (resolve, reject) => {
+          const req = http.request(
+            { host: '127.0.0.1', port, path: '/api/things?page=2', headers },
+            (res) => {
+              let body = '';
+              res.on('data', (chunk: Buffer) => (body += chunk));
+              res.on('end', () => resolve(JSON.parse(body)));
+            },
+          );
+          req.on('error', reject);
+          req.end();
+        },
+      );
+    } finally {
+      await new Promise((resolve) => server.close(resolve));
+    }
+  }
+
+  it('ignores X-Forwarded-Proto/-Host/-Port and Forwarded: request.url keeps the connection scheme', async () => {
+    const seen = await seenByAstro({
+      host: 'attacker.example',
+      'x-forwarded-proto': 'https',
+      'x-forwarded-host': 'attacker.example:8443',
+      'x-forwarded-port': '8443',
+      forwarded: 'for=198.51.100.7;host=attacker.example;proto=https',
+    });
+    expect(seen.url).toBe('http://localhost/api/things?page=2');
+    expect(seen.forwarded).toEqual([]);
+  });
+
+  it('leaves X-Forwarded-For to the client-address hook (TRUST_PROXY decides there)', async () => {
+    const seen = await seenByAstro({ 'x-forwarded-for': '198.51.100.7', 'x-forwarded-proto': 'https' });
+    expect(seen.url).toBe('http://localhost/api/things?page=2');
+    expect(seen.forwardedFor).toBe('198.51.100.7');
   });
 });

@@ -13,9 +13,18 @@
  *
  * Unchanged from the standalone server: a URL that does not decode is a bare 400; the client
  * address comes from the hook in src/lib/server/http/client-address-hook.ts (imported by the
- * adapter's entry, so subscribed before this server listens); the forwarded headers Astro reads
- * are read by Astro's own `createRequest`; HTTPS with SERVER_CERT_PATH and SERVER_KEY_PATH;
- * Node's default header and time limits. Request bodies are bounded by the routes (body.ts).
+ * adapter's entry, so subscribed before this server listens); HTTPS with SERVER_CERT_PATH and
+ * SERVER_KEY_PATH; Node's default header and time limits. Request bodies are bounded by the
+ * routes (body.ts).
+ *
+ * Not as before: the headers by which a caller names the host or scheme it used
+ * (`X-Forwarded-Host`, `X-Forwarded-Proto`, `X-Forwarded-Port`, `Forwarded`) are dropped before
+ * Astro builds the request, whoever sent them and whatever TRUST_PROXY says. Astro's
+ * `createRequest` believed `X-Forwarded-Proto` from anyone, so `request.url` / `Astro.url` said
+ * `https:` when a caller claimed it. Nothing in the app needs the request's origin: links,
+ * the same-site check, auth core's URL and cookie flags all come from the configured public
+ * origin (auth/public-origin.ts). `request.url` keeps only the path and query the caller sent,
+ * on the connection's own scheme (host `localhost`: Astro believes no Host header either).
  */
 import fs from 'node:fs';
 import http, { type IncomingMessage, type ServerResponse } from 'node:http';
@@ -76,6 +85,19 @@ export function clientFileFor(url: string, files: Map<string, string>): string |
   return files.get(path.posix.normalize(`/${pathname}`)) ?? null;
 }
 
+/** What a caller may say about the host or scheme it used; never believed (see above). */
+export const forwardedOriginHeaders = [
+  'x-forwarded-host',
+  'x-forwarded-proto',
+  'x-forwarded-port',
+  'forwarded',
+];
+
+/** Drops the forwarded host/scheme headers from an incoming request, in place. */
+export function dropForwardedOrigin(req: IncomingMessage): void {
+  for (const name of forwardedOriginHeaders) delete req.headers[name];
+}
+
 /** The request listener: listed client files through `send`, everything else to Astro. */
 export function createRequestListener(
   astro: AstroHandler,
@@ -92,6 +114,7 @@ export function createRequestListener(
     });
   };
   return (req, res) => {
+    dropForwardedOrigin(req);
     const url = req.url ?? '/';
     try {
       decodeURI(url);

@@ -15,7 +15,7 @@ import { ConflictError, InvalidInputError, NotFoundError, TooLargeError } from '
 import { enqueueMail, wakeOutboxWorker } from '../outbox';
 import { signPdfWithCertificate } from '../pdf/digital-signature';
 import { signingCertificateFor } from '../signing-certificates';
-import { configuredOrigin } from '../auth/public-origin';
+import { linkOrigin } from '../auth/public-origin';
 import { cautionsOf } from '../pdf/report-model';
 import { loadFrozenAssessment, lockAssessment, markSigned } from '../assessments';
 import { renderAssessmentReport } from '../reports';
@@ -160,8 +160,9 @@ export async function submitSignature(
             cautionsAcknowledged: cautions.map((c) => ({ ruleId: c.ruleId, title: c.title })),
           },
           certificate: certificate.facts,
-          // Only the configured public address: the signer's request must not name the host.
-          verifyUrl: `${configuredOrigin() ?? ''}/verify`,
+          // The public address every e-mailed link uses (absolute even with none configured); the
+          // signer's request (Host, X-Forwarded-*) never names it.
+          verifyUrl: `${linkOrigin()}/verify`,
           auditHead,
         },
       },
