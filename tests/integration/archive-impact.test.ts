@@ -4,6 +4,7 @@
  * new version and one does not (decided by the same engine, so the test follows the shipped
  * rulesets as they change); the stored results must not change.
  */
+import fs from 'node:fs';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort, startAppServer } from '../../src/cli/services';
 import type { ImpactReport, ImpactRunView } from '../../src/lib/api/impact';
@@ -230,6 +231,66 @@ describe('ruleset impact', () => {
       await server.stop();
     }
   }, 60_000);
+
+  it('shares one bounded pool of re-scoring threads between concurrent reports and CSV exports', async () => {
+    const expected = await expectJson<ImpactReport>(
+      await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
+    );
+    const bound = 2;
+    const server = await startAppServer({
+      port: await freePort(),
+      quiet: true,
+      env: {
+        DATABASE_URL: inject('databaseUrl'),
+        AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
+        AUTH_TRUST_HOST: 'true',
+        LATCHWELL_DATA_DIR: inject('dataDir'),
+        LATCHWELL_ENV: 'test',
+        OUTBOX_WORKER: 'off',
+        IMPACT_QUEUE_WORKER: 'off',
+        SMTP_URL: 'smtp://127.0.0.1:9',
+        IMPACT_WORKERS: String(bound),
+        IMPACT_SLICE_SIZE: '1',
+      },
+    });
+    // The server's OS threads (a worker thread is one of them), read from /proc.
+    const threads = () =>
+      Number(/^Threads:\s+(\d+)/m.exec(fs.readFileSync(`/proc/${server.child.pid}/status`, 'utf8'))![1]);
+    const get = (path: string) =>
+      fetch(`${server.url}${path}`, { headers: { cookie: office.cookie, accept: 'application/json' } });
+    try {
+      // Warm up what every request uses (the database pool, the job queue, libuv's threads).
+      for (let i = 0; i < 3; i++) await (await get('/api/archive?limit=5')).arrayBuffer();
+      await new Promise((resolve) => setTimeout(resolve, 300));
+      const before = threads();
+      let most = before;
+      const sampler = setInterval(() => (most = Math.max(most, threads())), 5);
+      const concurrent = 6;
+      const query = `versionId=${v2026.id}&basis=all`;
+      const answers = await Promise.all([
+        ...Array.from({ length: concurrent }, () => get(`/api/archive/impact?${query}`)),
+        get(`/api/archive/impact.csv?${query}`),
+        get(`/api/archive/impact.csv?${query}`),
+      ]);
+      clearInterval(sampler);
+      most = Math.max(most, threads());
+      const reports = await Promise.all(answers.slice(0, concurrent).map((r) => expectJson<ImpactReport>(r)));
+      const csvs = await Promise.all(answers.slice(concurrent).map((r) => r.text()));
+      // Every answer is whole and the same as one report alone; the threads were really used.
+      for (const report of reports) {
+        expect(report.workers).toBe(bound);
+        const { durationMs: _a, workers: _b, ...same } = report;
+        const { durationMs: _c, workers: _d, ...alone } = expected;
+        expect(same).toEqual(alone);
+      }
+      for (const csv of csvs) expect(csv.trim().split('\n')).toHaveLength(1 + expected.worse);
+      // A pool per request would have added `bound` threads for each of the eight; one shared
+      // pool adds `bound` (one more allowed for anything else the server starts meanwhile).
+      expect(most - before, `threads before ${before}, at most ${most}`).toBeLessThanOrEqual(bound + 1);
+    } finally {
+      await server.stop();
+    }
+  }, 90_000);
 
   it('runs on the job queue in slices that two server instances share, with progress, and finds the same', async () => {
     const expected = await expectJson<ImpactReport>(

@@ -30,7 +30,7 @@ import {
   worseFirst,
   type ImpactSlice,
 } from './impact';
-import { startRescorePool, workerCount, type RescorePool } from './impact-workers';
+import { acquireSharedPool, releaseSharedPool, workerCount, type RescorePool } from './impact-workers';
 import { onJobsStarted, queueName, sendJob } from './jobs/boss';
 import { iso } from './listing';
 
@@ -184,34 +184,6 @@ export interface SliceJob {
 }
 
 /**
- * This instance's re-scoring threads for queued slices (impact-workers.ts): IMPACT_WORKERS, by
- * default one per core (at most 4) and at least one, so scoring never blocks the event loop that
- * answers requests. Started with the first slice this instance takes, closed after a minute
- * without one (threads hold memory and connections of their own); null where threads cannot
- * load the module (the dev server), and then slices are scored in this thread.
- */
-let slicePool: Promise<RescorePool | null> | undefined;
-let slicesActive = 0;
-let idleTimer: NodeJS.Timeout | undefined;
-const POOL_IDLE_MS = 60_000;
-
-export function impactSlicePool(): Promise<RescorePool | null> {
-  slicePool ??= startRescorePool(impactModuleUrl, workerCount(1), { unref: true }).catch(() => null);
-  return slicePool;
-}
-
-function closeIdlePool(): void {
-  clearTimeout(idleTimer);
-  idleTimer = setTimeout(() => {
-    const closing = slicePool;
-    if (slicesActive > 0 || !closing) return;
-    slicePool = undefined;
-    void closing.then((pool) => pool?.close());
-  }, POOL_IDLE_MS);
-  idleTimer.unref();
-}
-
-/**
  * Slices this instance takes at once (IMPACT_CONCURRENCY, 1–16): by default one per thread, so
  * each thread has a slice and an instance takes no more than it can score while others wait.
  * (Measured on two shared cores, 20,000 assessments in slices of 1,000: two threads with two
@@ -230,12 +202,12 @@ export async function workSlice(
   pool?: RescorePool | null,
 ): Promise<void> {
   const { runId, slice, spec } = job.data;
-  slicesActive++;
+  // This instance's re-scoring threads (impact-workers.ts), shared with the reports asked for over HTTP.
+  const threads = pool === undefined ? await acquireSharedPool(impactModuleUrl) : pool;
   try {
     await db()('impact_runs')
       .where({ id: runId, status: 'queued' })
       .update({ status: 'running', started_at: db().fn.now() });
-    const threads = pool === undefined ? await impactSlicePool() : pool;
     await addSlice(runId, slice, threads ? await threads.run(spec) : await rescoreSlice(spec));
   } catch (error) {
     const message = (error instanceof Error ? error.message : String(error)).slice(0, 1000);
@@ -245,8 +217,7 @@ export async function workSlice(
       .update({ last_error: message, ...(last ? { status: 'failed' } : {}) });
     throw error;
   } finally {
-    slicesActive--;
-    if (pool === undefined) closeIdlePool();
+    if (pool === undefined) releaseSharedPool();
   }
 }
 

@@ -3,9 +3,11 @@
  * main thread, each thread reading and scoring its own slices with its own database connection,
  * while the main thread keeps answering requests.
  *
- * Two users: a report or CSV asked for over HTTP (impact.ts `rescoreArchive`, a pool for that
- * request) and the queued impact runs (impact-runs.ts, one pool per server instance, started with
- * the job queue and kept).
+ * One pool per process (`acquireSharedPool` / `releaseSharedPool`) serves both users: a report or
+ * CSV asked for over HTTP (impact.ts `rescoreArchive`) and the queued impact runs (impact-runs.ts).
+ * However many reports are asked for at once, the process runs at most IMPACT_WORKERS threads;
+ * their slices queue on those threads. The pool starts with its first user and closes a minute
+ * after its last one is done (threads hold memory and database connections of their own).
  *
  * A worker imports the module that holds `rescoreSlice` (impact.ts, by its own URL: the source
  * file under tsx, with tsx's loader registered in the worker; the bundled chunk in the built
@@ -18,7 +20,7 @@
  * pool fails what it still holds only when no thread can be started again.
  *
  * IMPACT_WORKERS sets the thread count (0 turns workers off); by default one per core, at most 4,
- * none on a single core for a report (the queued runs keep one thread even there).
+ * and one even on a single core, so scoring never blocks the thread that answers requests.
  */
 import os from 'node:os';
 import { Worker } from 'node:worker_threads';
@@ -202,4 +204,40 @@ export async function startRescorePool(
       await Promise.all(all.map((s) => s.worker.terminate()));
     },
   };
+}
+
+let shared: Promise<RescorePool | null> | undefined;
+let sharedUsers = 0;
+let sharedIdleTimer: NodeJS.Timeout | undefined;
+
+/** How long the shared pool outlives its last user (IMPACT_POOL_IDLE_MS, default a minute). */
+function sharedIdleMs(): number {
+  const configured = Number(process.env.IMPACT_POOL_IDLE_MS);
+  return Number.isFinite(configured) && configured >= 0 ? configured : 60_000;
+}
+
+/**
+ * This process's re-scoring threads (IMPACT_WORKERS, at least one unless 0), started by the first
+ * caller and shared by every later one; null where threads are off or cannot load the module (the
+ * dev server), and the caller then scores in its own thread. Each acquire needs one release.
+ */
+export function acquireSharedPool(moduleUrl: string): Promise<RescorePool | null> {
+  sharedUsers++;
+  clearTimeout(sharedIdleTimer);
+  shared ??= startRescorePool(moduleUrl, workerCount(1), { unref: true }).catch(() => null);
+  return shared;
+}
+
+/** Done with the shared pool; once nobody uses it for the idle time, its threads end. */
+export function releaseSharedPool(): void {
+  sharedUsers = Math.max(0, sharedUsers - 1);
+  if (sharedUsers > 0) return;
+  clearTimeout(sharedIdleTimer);
+  sharedIdleTimer = setTimeout(() => {
+    const closing = shared;
+    if (sharedUsers > 0 || !closing) return;
+    shared = undefined;
+    void closing.then((pool) => pool?.close());
+  }, sharedIdleMs());
+  sharedIdleTimer.unref();
 }

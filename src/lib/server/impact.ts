@@ -40,7 +40,7 @@ import {
 import { csvRow } from './csv';
 import { db } from './db';
 import { iso } from './listing';
-import { startRescorePool } from './impact-workers';
+import { acquireSharedPool, releaseSharedPool } from './impact-workers';
 import { loadedRuleset } from './ruleset-cache';
 
 type Verdict = 'clear' | 'remedy' | 'withdraw';
@@ -320,8 +320,9 @@ export const impactModuleUrl = import.meta.url;
 /**
  * Re-scores the archive against `target`, one outcome per assessment considered, as an async
  * stream: callers count, list or write CSV without holding the whole archive. Large archives are
- * spread over worker threads (impact-workers.ts), each reading and scoring its own slices; a
- * few slices run here, one at a time, yielding to the event loop in between.
+ * spread over the process's shared re-scoring threads (impact-workers.ts), each reading and
+ * scoring its own slices; without threads, slices run here, one at a time, yielding to the event
+ * loop in between.
  */
 export async function* rescoreArchive(
   organisationId: string,
@@ -338,7 +339,8 @@ export async function* rescoreArchive(
     yield* await rescoreSlice(first.value, knex);
     return;
   }
-  const pool = await startRescorePool(impactModuleUrl);
+  // The process's one pool: concurrent reports share its threads instead of starting their own.
+  const pool = await acquireSharedPool(impactModuleUrl);
   info.workers = pool?.size ?? 0;
   try {
     // Two slices per worker in flight, or two here: one is read from the database while the
@@ -363,7 +365,7 @@ export async function* rescoreArchive(
       if (!pool) await yieldToEventLoop();
     }
   } finally {
-    await pool?.close();
+    releaseSharedPool();
   }
 }
 
