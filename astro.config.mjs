@@ -25,8 +25,10 @@ export default defineConfig({
   ],
   server: { host: process.env.HOST ?? '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
   // Cross-site writes (forms and JSON alike) are refused by src/middleware.ts, which compares
-  // Origin with the Host the browser used. Astro's own check compares with Astro.url, whose host
-  // is "localhost" unless security.allowedDomains is set at build time, so it refused every form.
+  // Origin with the configured public origin (src/lib/server/auth/public-origin.ts). Astro's own
+  // check compares with Astro.url, whose host is "localhost" unless security.allowedDomains is
+  // set at build time, so it refused every form. (The server drops X-Forwarded-Host/-Proto before
+  // Astro builds the request: src/lib/server/http/node-server.ts.)
   security: { checkOrigin: false },
   vite: {
     plugins: [tailwindcss()],
