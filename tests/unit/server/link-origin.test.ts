@@ -10,6 +10,8 @@ const saved = {
   PUBLIC_URL: process.env.PUBLIC_URL,
   HOST: process.env.HOST,
   PORT: process.env.PORT,
+  SERVER_CERT_PATH: process.env.SERVER_CERT_PATH,
+  SERVER_KEY_PATH: process.env.SERVER_KEY_PATH,
 };
 
 afterEach(() => {
@@ -43,6 +45,19 @@ describe('linkOrigin', () => {
 });
 
 describe('listeningOrigin', () => {
+  it('says https when the server answers TLS itself (SERVER_CERT_PATH and SERVER_KEY_PATH)', () => {
+    delete process.env.AUTH_URL;
+    delete process.env.PUBLIC_URL;
+    process.env.HOST = '127.0.0.1';
+    process.env.PORT = '44999';
+    process.env.SERVER_CERT_PATH = '/etc/latchwell/cert.pem';
+    expect(linkOrigin()).toBe('http://127.0.0.1:44999'); // a certificate without its key serves plain HTTP
+    process.env.SERVER_KEY_PATH = '/etc/latchwell/key.pem';
+    expect(linkOrigin()).toBe('https://127.0.0.1:44999');
+    expect(listeningOrigin('gates.internal', '443')).toBe('https://gates.internal');
+    expect(listeningOrigin('gates.internal', '443', false)).toBe('http://gates.internal:443');
+  });
+
   it('reaches a wildcard address on loopback and brackets IPv6', () => {
     expect(listeningOrigin('0.0.0.0', 8080)).toBe('http://127.0.0.1:8080');
     expect(listeningOrigin('::', 8080)).toBe('http://127.0.0.1:8080');

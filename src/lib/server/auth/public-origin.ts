@@ -18,11 +18,19 @@ export function configuredOrigin(): string | null {
   }
 }
 
-/** `http://host:port` for a listening address; a wildcard address is reached on loopback. */
-export function listeningOrigin(host: string, port: number | string): string {
+/** Whether the built server answers HTTPS itself (both SERVER_CERT_PATH and SERVER_KEY_PATH set). */
+export function servesTls(): boolean {
+  return Boolean(process.env.SERVER_CERT_PATH && process.env.SERVER_KEY_PATH);
+}
+
+/**
+ * `http://host:port` (`https://` when the server answers TLS itself) for a listening address; a
+ * wildcard address is reached on loopback.
+ */
+export function listeningOrigin(host: string, port: number | string, tls = servesTls()): string {
   const name = host === '' || host === '0.0.0.0' || host === '::' || host === '[::]' ? '127.0.0.1' : host;
   const bracketed = name.includes(':') && !name.startsWith('[') ? `[${name}]` : name;
-  return new URL(`http://${bracketed}:${port}`).origin;
+  return new URL(`${tls ? 'https' : 'http'}://${bracketed}:${port}`).origin;
 }
 
 /**
