@@ -131,6 +131,26 @@ beforeAll(async () => {
   ).id;
 });
 
+/** A second built server on the suite's database, with re-scoring threads and one assessment per slice. */
+async function threadedServer(env: Record<string, string>) {
+  return startAppServer({
+    port: await freePort(),
+    quiet: true,
+    env: {
+      DATABASE_URL: inject('databaseUrl'),
+      AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
+      AUTH_TRUST_HOST: 'true',
+      LATCHWELL_DATA_DIR: inject('dataDir'),
+      LATCHWELL_ENV: 'test',
+      OUTBOX_WORKER: 'off',
+      SMTP_URL: 'smtp://127.0.0.1:9',
+      // One assessment per slice, so even this small archive goes to the workers.
+      IMPACT_SLICE_SIZE: '1',
+      ...env,
+    },
+  });
+}
+
 describe('ruleset impact', () => {
   it('lists the gates whose last signed visit would get a worse verdict, with the rules responsible, without touching stored results', async () => {
     const stored = await testDb()('assessments')
@@ -201,22 +221,7 @@ describe('ruleset impact', () => {
     const here = await expectJson<ImpactReport>(
       await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
     );
-    const server = await startAppServer({
-      port: await freePort(),
-      quiet: true,
-      env: {
-        DATABASE_URL: inject('databaseUrl'),
-        AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
-        AUTH_TRUST_HOST: 'true',
-        LATCHWELL_DATA_DIR: inject('dataDir'),
-        LATCHWELL_ENV: 'test',
-        OUTBOX_WORKER: 'off',
-        SMTP_URL: 'smtp://127.0.0.1:9',
-        IMPACT_WORKERS: '2',
-        // One assessment per slice, so even this small archive goes to the workers.
-        IMPACT_SLICE_SIZE: '1',
-      },
-    });
+    const server = await threadedServer({ IMPACT_WORKERS: '2' });
     try {
       const res = await fetch(`${server.url}/api/archive/impact?versionId=${v2026.id}&basis=all`, {
         headers: { cookie: office.cookie, accept: 'application/json', origin: server.url },
@@ -237,22 +242,7 @@ describe('ruleset impact', () => {
       await office.fetch(`/api/archive/impact?versionId=${v2026.id}&basis=all`),
     );
     const bound = 2;
-    const server = await startAppServer({
-      port: await freePort(),
-      quiet: true,
-      env: {
-        DATABASE_URL: inject('databaseUrl'),
-        AUTH_SECRET: 'integration-test-secret-0123456789abcdef',
-        AUTH_TRUST_HOST: 'true',
-        LATCHWELL_DATA_DIR: inject('dataDir'),
-        LATCHWELL_ENV: 'test',
-        OUTBOX_WORKER: 'off',
-        IMPACT_QUEUE_WORKER: 'off',
-        SMTP_URL: 'smtp://127.0.0.1:9',
-        IMPACT_WORKERS: String(bound),
-        IMPACT_SLICE_SIZE: '1',
-      },
-    });
+    const server = await threadedServer({ IMPACT_WORKERS: String(bound), IMPACT_QUEUE_WORKER: 'off' });
     // The server's OS threads (a worker thread is one of them), read from /proc.
     const threads = () =>
       Number(/^Threads:\s+(\d+)/m.exec(fs.readFileSync(`/proc/${server.child.pid}/status`, 'utf8'))![1]);

@@ -188,6 +188,18 @@ async function onlyMailTo(catcherUrl: string, to: string): Promise<{ mail: Caugh
 
 const newAddress = (label: string) => `${label}-${randomBytes(4).toString('hex')}@fixtures.test`;
 
+/** A scored report, ready to send for signature, of a new homeowner client at `email`. */
+async function reportForNewClient(email: string) {
+  const [clientRow] = await testDb()('clients')
+    .insert({ organisation_id: org.id, name: `Signer ${email}`, kind: 'homeowner', contact_email: email })
+    .returning('id');
+  return seedScoredAssessment(
+    testDb(),
+    { id: org.id, auditorId: org.auditor.id, clientId: clientRow.id },
+    { dataDir: inject('dataDir'), photos: 0, findings: 2 },
+  );
+}
+
 describe('mail while SMTP is unreachable', () => {
   let invitee: string;
 
@@ -349,19 +361,7 @@ describe('links in e-mails ignore the host a request claims', () => {
     const cookie = await staffCookie(org.office.email);
     for (const forged of forgeries) {
       const client = newAddress('forged-signer');
-      const [clientRow] = await testDb()('clients')
-        .insert({
-          organisation_id: org.id,
-          name: `Signer ${client}`,
-          kind: 'homeowner',
-          contact_email: client,
-        })
-        .returning('id');
-      const seeded = await seedScoredAssessment(
-        testDb(),
-        { id: org.id, auditorId: org.auditor.id, clientId: clientRow.id },
-        { dataDir: inject('dataDir'), photos: 0, findings: 2 },
-      );
+      const seeded = await reportForNewClient(client);
       const res = await json(
         server.base,
         'POST',
@@ -405,14 +405,7 @@ describe('the signed PDF names the Verify page at the public address', () => {
     catcher ??= await startMailCatcher({ dir: mailDir, smtpPort, httpPort });
     const cookie = await staffCookie(org.office.email);
     const email = newAddress('verify-link');
-    const [clientRow] = await testDb()('clients')
-      .insert({ organisation_id: org.id, name: `Signer ${email}`, kind: 'homeowner', contact_email: email })
-      .returning('id');
-    const seeded = await seedScoredAssessment(
-      testDb(),
-      { id: org.id, auditorId: org.auditor.id, clientId: clientRow.id },
-      { dataDir: inject('dataDir'), photos: 0, findings: 2 },
-    );
+    const seeded = await reportForNewClient(email);
     const sent = await json(
       base,
       'POST',
