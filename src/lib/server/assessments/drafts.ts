@@ -436,8 +436,8 @@ interface SavedRow extends Partial<SummaryRow> {
 
 /**
  * One conditional UPDATE of the draft from `base` (its documents as of `expectedVersion`) and the
- * patch: `undefined` when the row did not match (someone saved since, it left draft, it is not
- * this viewer's) or, with `fromCache`, when the patch is invalid (the caller then reads the row
+ * patch. `unmatched` when the row did not match (someone wrote it since, it left draft, it is
+ * not this viewer's); with an `xmin`, `invalid` instead of the 422 (the caller then reads the row
  * and answers in the usual order: 403, 409, then 422).
  */
 async function saveOver(
@@ -449,7 +449,7 @@ async function saveOver(
   base: Omit<KnownDraft, 'xmin' | 'rowVersion' | 'organisationId'>,
   xmin: string | null,
   answer: SaveAnswer,
-): Promise<Assessment | SavedDraft | undefined> {
+): Promise<Assessment | SavedDraft | 'unmatched' | 'invalid'> {
   const merged = mergeDocuments(
     base.documents,
     patch,
@@ -459,7 +459,7 @@ async function saveOver(
     }),
   );
   if (!merged.ok) {
-    if (xmin !== null) return undefined;
+    if (xmin !== null) return 'invalid';
     throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
   }
   const documents = merged.value;
@@ -502,7 +502,7 @@ async function saveOver(
       : await visibleAssessments(knex, viewer, 'saved as a')
           .with('saved', (query) => update(query).returning(['*', knex.raw('xmin::text as row_xmin')]))
           .first<SavedRow | undefined>([...summaryColumns(), 'a.row_xmin']);
-  if (!saved) return undefined;
+  if (!saved) return 'unmatched';
   const key = knownKey(viewer.organisationId, id);
   const held = knownDrafts.get(key);
   if (!held || held.rowVersion < saved.row_version)
@@ -565,8 +565,9 @@ export async function patchAssessment(
     (viewer.role !== 'auditor' || known.auditorId === viewer.id)
   ) {
     const saved = await saveOver(knex, viewer, id, expectedVersion, patch, known, known.xmin, answer);
-    if (saved) return saved;
-    if (knownDrafts.get(key) === known) knownDrafts.delete(key);
+    if (saved === 'unmatched') {
+      if (knownDrafts.get(key) === known) knownDrafts.delete(key);
+    } else if (saved !== 'invalid') return saved;
   }
   /** The refusal, with the assessment as it is now; null when the viewer cannot see it. */
   const refuse = async (): Promise<null> => {
@@ -609,7 +610,8 @@ export async function patchAssessment(
     } satisfies AssessmentDocuments,
     carried: draft.carried_forward,
   };
-  return (await saveOver(knex, viewer, id, expectedVersion, patch, base, null, answer)) ?? refuse();
+  const saved = await saveOver(knex, viewer, id, expectedVersion, patch, base, null, answer);
+  return typeof saved === 'string' ? refuse() : saved;
 }
 
 /**
