@@ -290,3 +290,32 @@ describe('what this instance knows of a draft is no one else’s to use', () => 
     expect((await rowOf(id)).row_version).toBe(3);
   });
 });
+
+describe('what a draft save costs the table', () => {
+  it('no index holds a column a draft save writes, and pages keep room for the next version (HOT updates)', async () => {
+    const written = [
+      'answers',
+      'measurements',
+      'observations',
+      'row_version',
+      'updated_at',
+      'carried_forward',
+    ];
+    const { rows } = await testDb().raw<{ rows: { indexname: string; indexdef: string }[] }>(
+      `select indexname, indexdef from pg_indexes where schemaname = current_schema() and tablename = 'assessments'`,
+    );
+    expect(rows.length).toBeGreaterThan(1);
+    const holding = rows.filter(({ indexdef }) =>
+      written.some((column) => new RegExp(`\\b${column}\\b`).test(indexdef.replace(/^.*? USING /, ''))),
+    );
+    expect(holding).toEqual([]);
+    // The auditor's own list by last change still finds their rows through an index.
+    expect(rows.map((r) => r.indexdef)).toContainEqual(
+      expect.stringMatching(/\(organisation_id, auditor_id\)$/),
+    );
+    const table = await testDb().raw<{ rows: { reloptions: string[] | null }[] }>(
+      `select reloptions from pg_class where oid = 'assessments'::regclass`,
+    );
+    expect(table.rows[0].reloptions).toContain('fillfactor=80');
+  });
+});
