@@ -143,9 +143,14 @@ export async function runLoadBench(
         headers: { ...headers(auditor), 'content-type': 'application/json' },
         body: scoreBody,
       },
+      // As the walk-through sends it (src/lib/api/client.ts): a merge patch, the minimal answer.
       autosave: {
         url: base,
-        headers: { ...headers(auditor), 'content-type': 'application/json' },
+        headers: {
+          ...headers(auditor),
+          'content-type': 'application/merge-patch+json',
+          prefer: 'return=minimal',
+        },
         initialContext: {},
         requests: [
           {

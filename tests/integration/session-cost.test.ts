@@ -116,7 +116,7 @@ describe('the cost of a signed-in request', () => {
 });
 
 describe('the cost of an autosave', () => {
-  it('saves a draft in two statements and answers it as GET shows it; a stale save changes nothing', async () => {
+  it('saves a draft this instance saved last in one statement and answers it as GET shows it; a stale save changes nothing', async () => {
     const fresh = await createOrganisation('session-cost-save');
     const dir = await seedDirectory(fresh);
     const version = await currentVersion('north-american-gate');
@@ -133,13 +133,17 @@ describe('the cost of an autosave', () => {
         },
         body: JSON.stringify({ answers: { latchFitted: { value: 'no', note } } }),
       });
-    // The first save may load the pinned version into the process's cache.
-    expect((await save(1, 'first')).status).toBe(200);
+    // The first save may load the pinned version into the process's cache; it reads the draft
+    // (1) and saves it (2).
+    const first = await save(1, 'first');
+    expect(first.status).toBe(200);
+    expect(Number(first.headers.get('x-query-count'))).toBeGreaterThanOrEqual(2);
 
     const second = await save(2, 'second');
     const saved = await second.json();
     expect(second.status).toBe(200);
-    expect(second.headers.get('x-query-count')).toBe('2');
+    // This instance saved version 2: one conditional update naming the row's xmin.
+    expect(second.headers.get('x-query-count')).toBe('1');
     expect(second.headers.get('etag')).toBe('"3"');
     expect(saved.rowVersion).toBe(3);
     expect(saved.answers).toEqual({ latchFitted: { value: 'no', note: 'second' } });

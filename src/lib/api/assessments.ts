@@ -162,3 +162,13 @@ export interface Assessment extends AssessmentSummary {
   result: unknown;
   resultSha256: string | null;
 }
+
+/**
+ * A save's answer when the client asks for the minimal one (`Prefer: return=minimal`): the new
+ * row version (also the ETag) and the draft's documents as stored, which the walk-through keeps
+ * as its base; not what the summary joins in (gate, site, client, auditor, ruleset).
+ */
+export type SavedDraft = Pick<
+  Assessment,
+  'id' | 'status' | 'rowVersion' | 'updatedAt' | 'answers' | 'measurements' | 'observations'
+>;

@@ -7,7 +7,7 @@
  * a message. Endpoint functions below name each call an island makes.
  */
 import type { ArchivePage } from './archive';
-import type { Assessment } from './assessments';
+import type { Assessment, SavedDraft } from './assessments';
 import type { ImpactReport, ImpactRunView } from './impact';
 import type { AmendmentPatch, RulesetVersionDetail } from './rulesets';
 import type { PhotoRecord, TraceRecord } from './uploads';
@@ -141,15 +141,18 @@ const enc = encodeURIComponent;
 // ---------------------------------------------------------------------------------------------
 // The walk-through (sync loop: OfflineError keeps an edit queued)
 
-/** Saves a merge patch over the row version this device last saw (`If-Match`). */
+/**
+ * Saves a merge patch over the row version this device last saw (`If-Match`). The walk-through
+ * keeps only the new version and the documents as stored, so it asks for the minimal answer.
+ */
 export function patchAssessment(
   id: string,
   rowVersion: number,
   patch: unknown,
-): Promise<ApiResult<Assessment>> {
+): Promise<ApiResult<SavedDraft>> {
   return request('PATCH', `/api/assessments/${enc(id)}`, {
     raw: { text: JSON.stringify(patch), contentType: 'application/merge-patch+json' },
-    headers: { 'if-match': `"${rowVersion}"` },
+    headers: { 'if-match': `"${rowVersion}"`, prefer: 'return=minimal' },
   });
 }
 

@@ -7,7 +7,7 @@
  * sender (a react-query mutation).
  */
 import type { WalkDraft } from '@/lib/api/walk-through';
-import type { Assessment } from '@/lib/api/assessments';
+import type { Assessment, SavedDraft } from '@/lib/api/assessments';
 import * as api from '@/lib/api/client';
 import { OfflineError, type ApiResult, type UploadProgress } from '@/lib/api/client';
 import type { Problem } from '@/lib/api/problem';
@@ -156,7 +156,7 @@ export class WalkSync {
 
   constructor(
     private readonly initial: InitialAssessment,
-    private readonly onServerCopy: (assessment: Assessment) => void = () => {},
+    private readonly onServerCopy: (assessment: SavedDraft) => void = () => {},
   ) {
     this.state = {
       phase: 'loading',
@@ -393,7 +393,7 @@ export class WalkSync {
   }
 
   /** The server's copy became the base: remember it on the device too. */
-  private async adopt(assessment: Assessment): Promise<void> {
+  private async adopt(assessment: SavedDraft): Promise<void> {
     const draft = asDraft({
       answers: assessment.answers,
       measurements: assessment.measurements,
@@ -494,7 +494,7 @@ export class WalkSync {
       });
       if (result.ok) {
         await this.drop(batch);
-        await this.serial(() => this.adopt(result.value as Assessment));
+        await this.serial(() => this.adopt(result.value as SavedDraft));
         return true;
       }
       if (result.problem.status === 409 && result.problem.current)

@@ -5,12 +5,14 @@
  */
 import { carryForwardIntoDraft, pendingAfterPatch, type CarriedForward } from './carry-forward';
 import type { Knex } from 'knex';
+import { LRUCache } from 'lru-cache';
 import type {
   Assessment,
   AssessmentCreate,
   AssessmentListQuery,
   AssessmentPatch,
   AssessmentSummary,
+  SavedDraft,
 } from '@/lib/api/assessments';
 import type { Page } from '@/lib/api/common';
 import type { RulesetQuestion } from '@/lib/rules/ruleset-schema';
@@ -394,23 +396,179 @@ async function pinnedQuestions(
   return loaded.version.questions;
 }
 
+/** What a save answers: the assessment as GET shows it, or (`Prefer: return=minimal`) `SavedDraft`. */
+export type SaveAnswer = 'full' | 'minimal';
+
+/** A draft this process saved, as its row now stands (`xmin`): what the next save over it needs. */
+interface KnownDraft {
+  organisationId: string;
+  auditorId: string;
+  xmin: string;
+  rowVersion: number;
+  rulesetVersionId: string;
+  contentSha256: string;
+  documents: AssessmentDocuments;
+  carried: CarriedForward | null;
+}
+
+/**
+ * The drafts this process saved last, by organisation and id (about 16 MB at most; a draft's
+ * documents are a few KB). An entry is only a guess at the row: a save that uses it sends its
+ * `xmin` along, and the database refuses the update when the row was written since by anyone
+ * (another instance, a confirmation that leaves the row version alone, SQL by hand), since any
+ * UPDATE gives the row a new `xmin`.
+ */
+const knownDrafts = new LRUCache<string, KnownDraft>({ maxSize: 16 * 1024 * 1024 });
+const knownKey = (organisationId: string, id: string) => `${organisationId}/${id}`;
+
+/** Forgets every known draft (tests). */
+export function forgetKnownDrafts(): void {
+  knownDrafts.clear();
+}
+
+/** The row a save wrote: the summary as GET shows it (full answer) or its new version (minimal). */
+interface SavedRow extends Partial<SummaryRow> {
+  row_version: number;
+  status: Assessment['status'];
+  updated_at: Date;
+  row_xmin: string;
+}
+
+/**
+ * One conditional UPDATE of the draft from `base` (its documents as of `expectedVersion`) and the
+ * patch. `unmatched` when the row did not match (someone wrote it since, it left draft, it is
+ * not this viewer's); with an `xmin`, `invalid` instead of the 422 (the caller then reads the row
+ * and answers in the usual order: 403, 409, then 422).
+ */
+async function saveOver(
+  knex: Knex,
+  viewer: SessionUser,
+  id: string,
+  expectedVersion: number,
+  patch: AssessmentPatch,
+  base: Omit<KnownDraft, 'xmin' | 'rowVersion' | 'organisationId'>,
+  xmin: string | null,
+  answer: SaveAnswer,
+): Promise<Assessment | SavedDraft | 'unmatched' | 'invalid'> {
+  const merged = mergeDocuments(
+    base.documents,
+    patch,
+    await pinnedQuestions(knex, {
+      ruleset_version_id: base.rulesetVersionId,
+      content_sha256: base.contentSha256,
+    }),
+  );
+  if (!merged.ok) {
+    if (xmin !== null) return 'invalid';
+    throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
+  }
+  const documents = merged.value;
+  const text = {
+    answers: JSON.stringify(documents.answers),
+    measurements: JSON.stringify(documents.measurements),
+    observations: JSON.stringify(documents.observations),
+  };
+  const changes: Record<string, unknown> = {
+    ...text,
+    row_version: knex.raw('row_version + 1'),
+    updated_at: knex.fn.now(),
+  };
+  if (patch.purpose !== undefined) changes.purpose = patch.purpose;
+  // Saving a carried-forward answer (changed or not) confirms it.
+  let carried = base.carried;
+  if (carried?.pending.length) {
+    carried = { ...carried, pending: pendingAfterPatch(carried, patch) };
+    changes.carried_forward = JSON.stringify(carried);
+  }
+  if (patch.visitedOn !== undefined) changes.visited_on = patch.visitedOn;
+  const update = (query: Knex.QueryBuilder) => {
+    query
+      .from('assessments')
+      .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' });
+    if (viewer.role === 'auditor') query.andWhere('auditor_id', viewer.id);
+    if (xmin !== null) query.andWhereRaw('xmin = ?::xid', [xmin]);
+    return query.update(changes);
+  };
+  const saved =
+    answer === 'minimal'
+      ? (
+          (await update(knex.queryBuilder()).returning([
+            'row_version',
+            'status',
+            'updated_at',
+            knex.raw('xmin::text as row_xmin'),
+          ])) as SavedRow[]
+        )[0]
+      : await visibleAssessments(knex, viewer, 'saved as a')
+          .with('saved', (query) => update(query).returning(['*', knex.raw('xmin::text as row_xmin')]))
+          .first<SavedRow | undefined>([...summaryColumns(), 'a.row_xmin']);
+  if (!saved) return 'unmatched';
+  const key = knownKey(viewer.organisationId, id);
+  const held = knownDrafts.get(key);
+  if (!held || held.rowVersion < saved.row_version)
+    knownDrafts.set(
+      key,
+      {
+        ...base,
+        organisationId: viewer.organisationId,
+        xmin: saved.row_xmin,
+        rowVersion: saved.row_version,
+        documents,
+        carried,
+      },
+      { size: 2 * (text.answers.length + text.measurements.length + text.observations.length) + 1024 },
+    );
+  if (answer === 'minimal')
+    return {
+      id,
+      status: saved.status,
+      rowVersion: saved.row_version,
+      updatedAt: iso(saved.updated_at),
+      ...documents,
+    };
+  return {
+    ...toSummary(saved as SummaryRow),
+    ...documents,
+    gateSnapshot: null,
+    result: null,
+    resultSha256: null,
+  };
+}
+
 /**
  * Saves a merge patch to a draft, but only over the row version the client read: the update
  * is one `UPDATE … WHERE id = ? AND row_version = ?`, so of two saves made from the same
  * version exactly one wins and the other gets 409 with the current state.
  *
- * Two statements when it succeeds: the draft's own row (no joins but its version's hash), then
- * the conditional update, which answers the saved assessment as GET shows it in the same
- * statement (`WITH saved AS (UPDATE … RETURNING *) SELECT …`). Only a refusal reads the full
- * assessment, for the problem's `current`.
+ * One statement when this process saved the draft last and nobody wrote the row since: the
+ * documents it wrote are merged with the patch here and the update names the row's `xmin`
+ * (see `knownDrafts`), and for the full answer joins what GET shows in the same statement
+ * (`WITH saved AS (UPDATE … RETURNING *) SELECT …`). Otherwise, or when that update matches
+ * nothing, two: the draft's own row (no joins but its version's hash), then the update. Only a
+ * refusal reads the full assessment, for the problem's `current`.
  */
 export async function patchAssessment(
   viewer: SessionUser,
   id: string,
   expectedVersion: number,
   patch: AssessmentPatch,
-): Promise<Assessment | null> {
+  answer: SaveAnswer = 'full',
+): Promise<Assessment | SavedDraft | null> {
   const knex = db();
+  const key = knownKey(viewer.organisationId, id);
+  const known = knownDrafts.get(key);
+  if (
+    known &&
+    known.organisationId === viewer.organisationId &&
+    known.rowVersion === expectedVersion &&
+    viewer.role !== 'homeowner' &&
+    (viewer.role !== 'auditor' || known.auditorId === viewer.id)
+  ) {
+    const saved = await saveOver(knex, viewer, id, expectedVersion, patch, known, known.xmin, answer);
+    if (saved === 'unmatched') {
+      if (knownDrafts.get(key) === known) knownDrafts.delete(key);
+    } else if (saved !== 'invalid') return saved;
+  }
   /** The refusal, with the assessment as it is now; null when the viewer cannot see it. */
   const refuse = async (): Promise<null> => {
     const now = await getAssessment(viewer, id, knex);
@@ -441,39 +599,19 @@ export async function patchAssessment(
     draft.row_version !== expectedVersion
   )
     return refuse();
-  const merged = mergeDocuments(
-    {
+  const base = {
+    auditorId: draft.auditor_id,
+    rulesetVersionId: draft.ruleset_version_id,
+    contentSha256: draft.content_sha256,
+    documents: {
       answers: draft.answers ?? {},
       measurements: draft.measurements ?? {},
       observations: draft.observations ?? {},
     } satisfies AssessmentDocuments,
-    patch,
-    await pinnedQuestions(knex, draft),
-  );
-  if (!merged.ok) throw new InvalidInputError('Some fields are missing or invalid.', merged.errors);
-  const changes: Record<string, unknown> = {
-    answers: JSON.stringify(merged.value.answers),
-    measurements: JSON.stringify(merged.value.measurements),
-    observations: JSON.stringify(merged.value.observations),
-    row_version: knex.raw('row_version + 1'),
-    updated_at: knex.fn.now(),
+    carried: draft.carried_forward,
   };
-  if (patch.purpose !== undefined) changes.purpose = patch.purpose;
-  // Saving a carried-forward answer (changed or not) confirms it.
-  const carried = draft.carried_forward;
-  if (carried?.pending.length)
-    changes.carried_forward = JSON.stringify({ ...carried, pending: pendingAfterPatch(carried, patch) });
-  if (patch.visitedOn !== undefined) changes.visited_on = patch.visitedOn;
-  const saved = await visibleAssessments(knex, viewer, 'saved as a')
-    .with('saved', (update) =>
-      update
-        .from('assessments')
-        .where({ id, organisation_id: viewer.organisationId, row_version: expectedVersion, status: 'draft' })
-        .update(changes)
-        .returning('*'),
-    )
-    .first<FullRow | undefined>(fullColumns());
-  return saved ? toAssessment(saved) : refuse();
+  const saved = await saveOver(knex, viewer, id, expectedVersion, patch, base, null, answer);
+  return typeof saved === 'string' ? refuse() : saved;
 }
 
 /**

@@ -6,6 +6,7 @@ import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { found, requireRole } from '@/lib/server/http/guard';
 import { etagOf, requireIfMatch } from '@/lib/server/http/row-version';
+import { preferenceHeaders, returnPreference } from '@/lib/server/http/prefer';
 import { handle, HttpProblem, parseBody } from '@/lib/server/http/problem';
 
 const what = 'That assessment';
@@ -23,14 +24,22 @@ export const GET: APIRoute = handle(async ({ locals, params }) => {
   });
 });
 
-/** Merge-patches a draft's answers, measurements and observations over the row version in If-Match. */
+/**
+ * Merge-patches a draft's answers, measurements and observations over the row version in If-Match.
+ * Answers the assessment as GET shows it; with `Prefer: return=minimal` (the walk-through's
+ * autosave) only the new row version and the documents as stored (`SavedDraft`).
+ */
 export const PATCH: APIRoute = handle(async ({ locals, params, request }) => {
   const { user } = requireRole(locals, ...assessmentWorkers);
   const id = found(idFromPath(params.id), what);
   const expectedVersion = requireIfMatch(request);
+  const wanted = returnPreference(request);
   const patch = await parseBody(AssessmentPatchSchema, request);
-  const saved = found(await patchAssessment(user, id, expectedVersion, patch), what);
-  return Response.json(saved, { headers: { etag: etagOf(saved.rowVersion) } });
+  const saved = found(
+    await patchAssessment(user, id, expectedVersion, patch, wanted === 'minimal' ? 'minimal' : 'full'),
+    what,
+  );
+  return Response.json(saved, { headers: { etag: etagOf(saved.rowVersion), ...preferenceHeaders(wanted) } });
 });
 
 /** Discards a draft; anything submitted is kept. */
