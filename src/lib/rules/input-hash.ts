@@ -23,6 +23,7 @@
 import type { CompiledRuleset } from './compile';
 import { canonicalJson, sha256Hex } from './hash';
 import type { AssessmentInput } from './input';
+import { inputEntries, sortedOrder, type InputEntries, type RecordEntries } from './input-entries';
 
 type Writer = (value: unknown) => string;
 
@@ -278,16 +279,16 @@ function keyTextsOf(compiled: CompiledRuleset): Map<string, KeyText> {
 }
 
 /**
- * The canonical JSON of the input's record form (see the module comment). `schemaOrdered` is
- * accepted for callers that know the input came from the schema; the writer no longer needs it.
+ * The canonical JSON of the input's record form (see the module comment). `entries`: the input's
+ * answers and measurements when the caller has already read them (scoring does).
  */
 export function inputRecordJson(
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  _schemaOrdered = false,
+  entries?: InputEntries,
 ): string {
   try {
-    return write(input, compiled);
+    return write(input, compiled, entries);
   } catch (error) {
     // Name where the problem is, from the top of the input (canonicalJson throws with the path).
     if (error instanceof TypeError) canonicalJson(input);
@@ -295,22 +296,26 @@ export function inputRecordJson(
   }
 }
 
-function write(input: AssessmentInput, compiled: CompiledRuleset): string {
-  if (input === null || typeof input !== 'object' || Array.isArray(input)) return canonicalJson(input);
+const isRecord = (value: unknown): value is object =>
+  value !== null && typeof value === 'object' && !Array.isArray(value);
+
+function write(input: AssessmentInput, compiled: CompiledRuleset, given: InputEntries | undefined): string {
+  if (!isRecord(input)) return canonicalJson(input);
+  const entries = given ?? inputEntries(input);
   const texts = keyTextsOf(compiled);
   let out = '';
-  const answers = input.answers as Record<string, unknown> | undefined;
-  if (answers !== undefined) {
-    if (answers === null || typeof answers !== 'object' || Array.isArray(answers))
-      // Not a record: the split has nothing to split (the engine would have refused it before here).
-      throw new TypeError('answers is not a record');
+  if (input.answers !== undefined) {
+    // Not a record: the split has nothing to split (the engine would have refused it before here).
+    if (!isRecord(input.answers)) throw new TypeError('answers is not a record');
+    const { keys, values } = entries.answers;
+    const order = sortedOrder(keys);
     let yesNo = '';
     let choices = '';
-    const keys = sortedKeys(answers);
-    for (let i = 0; i < keys.length; i++) {
-      const key = keys[i]!;
-      const entry = answers[key];
+    for (let n = 0; n < keys.length; n++) {
+      const i = order === null ? n : order[n]!;
+      const entry = values[i];
       if (entry === undefined) continue;
+      const key = keys[i]!;
       const known = texts.get(key);
       const member = (known ? known.prefix : str(key) + ':') + answer(entry);
       if (known?.yesNo) yesNo = yesNo === '' ? member : yesNo + ',' + member;
@@ -323,7 +328,8 @@ function write(input: AssessmentInput, compiled: CompiledRuleset): string {
     const member = input[name] as unknown;
     if (member === undefined) continue;
     let written: string;
-    if (name === 'measurements') written = measurements(member, texts);
+    if (name === 'measurements')
+      written = isRecord(member) ? measurements(entries.measurements, texts) : canonicalJson(member);
     else if (name === 'hrnOverrides') written = hrnOverrides(member);
     else written = RECORD_WRITERS[name]!(member);
     out = out === '' ? '"' + name + '":' + written : out + ',"' + name + '":' + written;
@@ -359,25 +365,25 @@ const NO_NUMBERS: readonly string[] = [];
  * times as much, and the measured values are most of an input's numbers; JSON.stringify writes a
  * finite number as canonicalJson does, -0 as 0), any entry of another shape by `measured`.
  */
-function measurements(value: unknown, texts: Map<string, KeyText>): string {
-  if (value === null || typeof value !== 'object' || Array.isArray(value)) return canonicalJson(value);
-  const record = value as Record<string, unknown>;
-  const keys = sortedKeys(record);
+function measurements(record: RecordEntries, texts: Map<string, KeyText>): string {
+  const { keys, values } = record;
+  const order = sortedOrder(keys);
   numbers.length = 0;
-  for (let i = 0; i < keys.length; i++) {
-    const entry = record[keys[i]!];
-    if ((regular[i] = isMeasuredValue(entry))) numbers.push(entry.canonical, entry.value);
+  for (let n = 0; n < keys.length; n++) {
+    const entry = values[order === null ? n : order[n]!];
+    if ((regular[n] = isMeasuredValue(entry))) numbers.push(entry.canonical, entry.value);
   }
   const written = numbers.length > 0 ? JSON.stringify(numbers).slice(1, -1).split(',') : NO_NUMBERS;
   let at = 0;
   let out = '';
-  for (let i = 0; i < keys.length; i++) {
-    const key = keys[i]!;
-    const entry = record[key];
+  for (let n = 0; n < keys.length; n++) {
+    const i = order === null ? n : order[n]!;
+    const entry = values[i];
     if (entry === undefined) continue;
+    const key = keys[i]!;
     const known = texts.get(key);
     let member = known ? known.prefix : str(key) + ':';
-    if (regular[i]) {
+    if (regular[n]) {
       const { note, unit } = entry as { note?: string; unit: string };
       member +=
         '{"canonical":' +
@@ -397,7 +403,7 @@ function measurements(value: unknown, texts: Map<string, KeyText>): string {
 export function inputSha256(
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  schemaOrdered = false,
+  entries?: InputEntries,
 ): string {
-  return sha256Hex(inputRecordJson(input, compiled, schemaOrdered));
+  return sha256Hex(inputRecordJson(input, compiled, entries));
 }
