@@ -108,7 +108,7 @@ function scoreChecked(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVe
     verdict,
     complete: counts.needsInfo === 0 && (contradictions === null || contradictions.length === 0),
     findings,
-    areaScores: areaScores(findings, version),
+    areaScores: areaScores(findings, version, compiled),
     counts,
     needsInfo: collectNeedsInfo(findings, compiled),
     evidenceProblems: problems,
