@@ -94,6 +94,27 @@ function readerOf(segments: readonly string[]): (facts: unknown) => unknown {
       return inner === undefined || inner === null ? undefined : inner[name];
     };
   }
+  // Deeper paths (`calc.entrapment.closing.compliant2016`): one closure per depth, no loop over the segments.
+  if (segments.length === 3) {
+    const [a, b, c] = segments as [string, string, string];
+    return (facts) => {
+      const first = (facts as Record<string, Record<string, unknown> | undefined>)[a];
+      if (first === undefined || first === null) return undefined;
+      const second = first[b] as Record<string, unknown> | undefined | null;
+      return second === undefined || second === null ? undefined : second[c];
+    };
+  }
+  if (segments.length === 4) {
+    const [a, b, c, d] = segments as [string, string, string, string];
+    return (facts) => {
+      const first = (facts as Record<string, Record<string, unknown> | undefined>)[a];
+      if (first === undefined || first === null) return undefined;
+      const second = first[b] as Record<string, unknown> | undefined | null;
+      if (second === undefined || second === null) return undefined;
+      const third = second[c] as Record<string, unknown> | undefined | null;
+      return third === undefined || third === null ? undefined : third[d];
+    };
+  }
   return (facts) => walk(facts, segments);
 }
 

@@ -14,6 +14,7 @@ import { buildFacts, type Facts } from './facts';
 import { rateFinding } from './finding-hrn';
 import { AssessmentInputSchema, type AssessmentInput } from './input';
 import { AssessmentInputError, checkInputAgainstRuleset, issuesFromZod } from './input-check';
+import { inputEntries } from './input-entries';
 import { inputSha256 } from './input-hash';
 import { truthy } from './json-logic-compile';
 import { explainMissing, isMissing } from './missing-info';
@@ -56,7 +57,7 @@ function resolve(ruleset: LoadedRuleset | RulesetVersion): CompiledRuleset {
 export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
   const parsed = parseInput.safeParse(input);
   if (!parsed.success) throw new AssessmentInputError(issuesFromZod(parsed.error));
-  return scoreChecked(parsed.data, ruleset, true);
+  return scoreChecked(parsed.data, ruleset);
 }
 
 /**
@@ -65,19 +66,16 @@ export function score(input: unknown, ruleset: LoadedRuleset | RulesetVersion): 
  * the version (AssessmentInputError): an answer the version asks in another form is refused.
  */
 export function scoreParsed(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
-  return scoreChecked(input, ruleset, false);
+  return scoreChecked(input, ruleset);
 }
 
-/** `schemaOrdered`: the input is what the schema just built (keys in canonical order), so it hashes natively. */
-function scoreChecked(
-  input: AssessmentInput,
-  ruleset: LoadedRuleset | RulesetVersion,
-  schemaOrdered: boolean,
-): ScoreResult {
+function scoreChecked(input: AssessmentInput, ruleset: LoadedRuleset | RulesetVersion): ScoreResult {
   const compiled = resolve(ruleset);
-  const issues = checkInputAgainstRuleset(input, compiled);
+  // Answers and measurements are read once, for the check, the facts and the input hash.
+  const entries = inputEntries(input);
+  const issues = checkInputAgainstRuleset(input, compiled, entries);
   if (issues.length > 0) throw new AssessmentInputError(issues);
-  const { facts, problems } = buildFacts(input, compiled);
+  const { facts, problems } = buildFacts(input, compiled, entries);
   const contradictions = compiled.crossChecks.length > 0 ? crossCheck(facts, compiled) : null;
   // compiled.rules is already in report order (severity, area, id).
   const rules = compiled.rules;
@@ -106,11 +104,11 @@ function scoreChecked(
   const verdict = verdictOf(findings);
   const result: ScoreResult = {
     ruleset: { family: version.family, version: version.version, contentSha256: compiled.contentSha256 },
-    inputSha256: inputSha256(input, compiled, schemaOrdered),
+    inputSha256: inputSha256(input, compiled, entries),
     verdict,
     complete: counts.needsInfo === 0 && (contradictions === null || contradictions.length === 0),
     findings,
-    areaScores: areaScores(findings, version),
+    areaScores: areaScores(findings, version, compiled),
     counts,
     needsInfo: collectNeedsInfo(findings, compiled),
     evidenceProblems: problems,

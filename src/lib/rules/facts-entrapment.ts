@@ -3,10 +3,13 @@
  * (pre-2016 table, 2016 two independent means), which regime applies to this operator, and the
  * plain counts rules read (external sensors, unmonitored ones, zones no sensor watches).
  */
-import { assessEntrapmentProtection, type FittedDevice } from './calculators/entrapment-protection';
+import { applicableEntrapmentEdition, entrapmentVerdicts } from './calculators/entrapment-protection';
 import type { AssessmentInput, EntrapmentInput } from './input';
 
 const isExternalSensor = (type: string): boolean => type === 'B1' || type === 'B2';
+
+/** The facts list closing first, then opening. */
+const DIRECTIONS = ['closing', 'opening'] as const;
 
 /** A zone the measurements imply (see the ruleset's `impliedZones`). */
 export type ZoneAtDirection = EntrapmentInput['zones'][number];
@@ -38,55 +41,76 @@ export function entrapmentFacts(
     }
     if (added > 0) e = { ...recorded, zones: zonesList };
   }
-  const devices: Record<'opening' | 'closing', FittedDevice[]> = { opening: [], closing: [] };
-  for (const d of e.devices) devices[d.direction].push({ type: d.type, monitored: d.monitored });
-  const zones = {
-    opening: e.zones.some((z) => z.direction === 'opening'),
-    closing: e.zones.some((z) => z.direction === 'closing'),
-  };
-  const judged = assessEntrapmentProtection({
-    gateKind: input.profile.kind,
-    usageClass: input.profile.usageClass,
-    automaticClosing: input.profile.automaticClosing,
-    manufacturedOn: input.profile.operatorManufacturedOn ?? null,
-    edition: e.edition ?? null,
-    devices,
-    entrapmentZones: zones,
-  });
-  const facts: Record<string, unknown> = {
-    deviceCount: e.devices.length,
-    zonesWithoutExternalSensor: e.zones.filter(
-      (z) =>
-        !e.devices.some((d) => d.zone === z.zone && d.direction === z.direction && isExternalSensor(d.type)),
-    ).length,
-    unmonitoredExternal: e.devices.filter((d) => isExternalSensor(d.type) && !d.monitored).length,
-    typeDWithAutoClose: input.profile.automaticClosing && e.devices.some((d) => d.type === 'D'),
-    zonesFromMeasurements: added,
+  const { devices, zones: listed } = e;
+  const zones = { opening: false, closing: false };
+  for (let i = 0; i < listed.length; i++) zones[listed[i]!.direction] = true;
+  const { kind, usageClass, automaticClosing } = input.profile;
+  const applicableEdition = applicableEntrapmentEdition(
+    input.profile.operatorManufacturedOn ?? null,
+    e.edition ?? null,
+  );
+  const judged = { gateKind: kind, usageClass, automaticClosing, devices, entrapmentZones: zones };
+  let unmonitoredExternal = 0;
+  let typeD = false;
+  let fixedObjectZoneProtected = false;
+  let photoEyes = 0;
+  let edges = 0;
+  for (let i = 0; i < devices.length; i++) {
+    const d = devices[i]!;
+    const external = isExternalSensor(d.type);
+    if (external && !d.monitored) unmonitoredExternal++;
+    if (d.type === 'D') typeD = true;
+    if (d.type === 'B1') photoEyes++;
+    else if (d.type === 'B2') edges++;
     // UL 325 2016 revision (secondary source): external devices count when monitored every cycle;
     // a monitored edge or photo-eye listed for the open side while opening protects the fixed-object zone.
-    fixedObjectZoneProtected: e.devices.some(
-      (d) =>
-        d.zone === FIXED_OBJECT_ZONE.zone &&
-        d.direction === FIXED_OBJECT_ZONE.direction &&
-        isExternalSensor(d.type) &&
-        d.monitored,
-    ),
-    photoEyes: e.devices.filter((d) => d.type === 'B1').length,
-    edges: e.devices.filter((d) => d.type === 'B2').length,
+    if (
+      d.zone === FIXED_OBJECT_ZONE.zone &&
+      d.direction === FIXED_OBJECT_ZONE.direction &&
+      external &&
+      d.monitored
+    )
+      fixedObjectZoneProtected = true;
+  }
+  let zonesWithoutExternalSensor = 0;
+  for (let i = 0; i < listed.length; i++) {
+    const z = listed[i]!;
+    let watched = false;
+    for (let j = 0; j < devices.length && !watched; j++) {
+      const d = devices[j]!;
+      watched = d.zone === z.zone && d.direction === z.direction && isExternalSensor(d.type);
+    }
+    if (!watched) zonesWithoutExternalSensor++;
+  }
+  const facts: Record<string, unknown> = {
+    deviceCount: devices.length,
+    zonesWithoutExternalSensor,
+    unmonitoredExternal,
+    typeDWithAutoClose: automaticClosing && typeD,
+    zonesFromMeasurements: added,
+    fixedObjectZoneProtected,
+    photoEyes,
+    edges,
   };
-  if (judged.applicableEdition) facts.rules2016 = judged.applicableEdition === '2016';
-  for (const direction of ['closing', 'opening'] as const) {
-    const pre = judged.byEdition['pre-2016'][direction];
-    const now = judged.byEdition['2016'][direction];
-    const external = e.devices.filter((d) => d.direction === direction && isExternalSensor(d.type));
+  if (applicableEdition) facts.rules2016 = applicableEdition === '2016';
+  for (const direction of DIRECTIONS) {
+    const verdict = entrapmentVerdicts(judged, direction);
+    let externalSensors = 0;
+    let monitoredSensors = 0;
+    for (let i = 0; i < devices.length; i++) {
+      const d = devices[i]!;
+      if (d.direction !== direction || !isExternalSensor(d.type)) continue;
+      externalSensors++;
+      if (d.monitored) monitoredSensors++;
+    }
     const side: Record<string, unknown> = {
       zone: zones[direction],
-      countedTypes2016: now.countedTypes.length,
-      externalSensors: external.length,
-      monitoredSensors: external.filter((d) => d.monitored).length,
+      countedTypes2016: verdict.countedTypes2016,
+      externalSensors,
+      monitoredSensors,
     };
-    if (pre.compliant !== null) side.compliantPre2016 = pre.compliant;
-    if (now.compliant !== null) side.compliant2016 = now.compliant;
+    if (verdict.compliantPre2016 !== null) side.compliantPre2016 = verdict.compliantPre2016;
+    if (verdict.compliant2016 !== null) side.compliant2016 = verdict.compliant2016;
     facts[direction] = side;
   }
   return facts;

@@ -15,6 +15,7 @@ import { entrapmentFacts, type ZoneAtDirection } from './facts-entrapment';
 import { forceFacts } from './facts-force';
 import { geometryFacts } from './facts-geometry';
 import type { AssessmentInput } from './input';
+import { inputEntries, type InputEntries } from './input-entries';
 
 export type { EvidenceProblem } from './evidence';
 
@@ -63,18 +64,26 @@ export interface FactOptions {
   impliedZones?: readonly CompiledImpliedZone[] | null;
 }
 
-/** Builds the facts for one input. Pure: same input, same facts. */
-export function buildFacts(input: AssessmentInput, options: FactOptions = {}): FactsResult {
+/**
+ * Builds the facts for one input. Pure: same input, same facts. `entries`: the input's answers and
+ * measurements when the caller has already read them (scoring does).
+ */
+export function buildFacts(
+  input: AssessmentInput,
+  options: FactOptions = {},
+  entries: InputEntries = inputEntries(input),
+): FactsResult {
   const problems: EvidenceProblem[] = [];
   // Keyed by question: each input answers a different subset, so these are dictionaries from the
   // start (no per-subset hidden classes to build) and a key such as `constructor` reads nothing.
   const answers: Record<string, string> = Object.create(null) as Record<string, string>;
-  const given = input.answers ?? {};
-  for (const key of Object.keys(given)) answers[key] = (given[key] as { value: string }).value;
+  const given = entries.answers;
+  for (let i = 0; i < given.keys.length; i++)
+    answers[given.keys[i]!] = (given.values[i] as { value: string }).value;
   const m: Record<string, number> = Object.create(null) as Record<string, number>;
-  const measurements = input.measurements ?? {};
-  for (const key of Object.keys(measurements))
-    m[key] = (measurements[key] as { canonical: number }).canonical;
+  const measurements = entries.measurements;
+  for (let i = 0; i < measurements.keys.length; i++)
+    m[measurements.keys[i]!] = (measurements.values[i] as { canonical: number }).canonical;
 
   const facts: Facts = { profile: profileFacts(input), site: { ...input.site }, answers, m, calc: {} };
   if (input.entrapment)

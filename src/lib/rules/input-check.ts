@@ -7,6 +7,7 @@
 import type { z } from 'zod';
 import type { CompiledRuleset } from './compile';
 import type { AssessmentInput } from './input';
+import { inputEntries, type InputEntries } from './input-entries';
 import { kindOfUnit, MEASURED_ANSWER_TYPES } from './measures';
 
 /** One problem with an input, at the path the form or API should highlight. */
@@ -49,15 +50,23 @@ export function isIsoDate(value: string): boolean {
   return day <= days;
 }
 
-/** Problems of an already-parsed input against one version; empty when it fits. */
-export function checkInputAgainstRuleset(input: AssessmentInput, compiled: CompiledRuleset): InputIssue[] {
+/**
+ * Problems of an already-parsed input against one version; empty when it fits. `entries`: the
+ * input's answers and measurements when the caller has already read them (scoring does).
+ */
+export function checkInputAgainstRuleset(
+  input: AssessmentInput,
+  compiled: CompiledRuleset,
+  entries: InputEntries = inputEntries(input),
+): InputIssue[] {
   const issues: InputIssue[] = [];
   const questions = compiled.questionByKey;
-  const measurements = input.measurements ?? {};
-  for (const key of Object.keys(measurements)) {
+  const measurements = entries.measurements;
+  for (let i = 0; i < measurements.keys.length; i++) {
+    const key = measurements.keys[i]!;
     const q = questions.get(key);
     if (!q) continue;
-    const m = measurements[key] as { unit: string };
+    const m = measurements.values[i] as { unit: string };
     if (!measured.has(q.answerType))
       issues.push({
         path: `measurements.${key}`,
@@ -69,11 +78,12 @@ export function checkInputAgainstRuleset(input: AssessmentInput, compiled: Compi
         message: `"${key}" is a ${q.answerType}; "${m.unit}" is not a unit of it`,
       });
   }
-  const answers = input.answers ?? {};
-  for (const key of Object.keys(answers)) {
+  const answers = entries.answers;
+  for (let i = 0; i < answers.keys.length; i++) {
+    const key = answers.keys[i]!;
     const q = questions.get(key);
     if (!q) continue;
-    const { value } = answers[key] as { value: string };
+    const { value } = answers.values[i] as { value: string };
     switch (q.answerType) {
       case 'yes_no_na':
         if (value !== 'yes' && value !== 'no' && value !== 'na')

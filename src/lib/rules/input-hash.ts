@@ -8,21 +8,52 @@
  * stored answer map, but results signed before that carry hashes of this form, and the same
  * documents scored again must give the same result bytes, so the split is kept here, for the
  * hash only. Everything is written as canonicalJson writes it (keys sorted, undefined members
- * left out, -0 as 0); a unit test holds it to an independent writer from npm.
+ * left out, -0 as 0, a non-finite number refused); unit tests hold it to an independent writer
+ * from npm over thousands of generated inputs, odd shapes included.
  *
- * Answers and measurements are most of an input, so their entries (`{ note?, value }` and
- * `{ canonical, note?, unit, value }`) are written by hand in canonical order; an entry with any
- * other member goes through the generic writer, so nothing is ever left out of the hash.
+ * Speed (the hash was a third of scoring an assessment): every object of the input has a known
+ * shape, so each is written by a writer that knows its members — each member's `"key":` written
+ * once per process (question keys once per version), each value by its type — and not by the
+ * generic writer, which looked up every key and short string in a cache and recursed. The
+ * members are still the object's own keys in sorted order (a member the schema does not know
+ * is written by the generic writer in its place), so the bytes are canonical JSON whatever the
+ * object holds. Strings of plain printable ASCII are quoted directly; any other goes through
+ * JSON.stringify, as canonicalJson writes it.
  */
 import type { CompiledRuleset } from './compile';
-import { canonicalJson, quoted, sha256Hex } from './hash';
+import { canonicalJson, sha256Hex } from './hash';
 import type { AssessmentInput } from './input';
+import { inputEntries, sortedOrder, type InputEntries, type RecordEntries } from './input-entries';
 
-/** The members after `answers`, `choices` and `entrapment`…`hrnOverrides`, in canonical (sorted) order. */
-const BEFORE_MEASUREMENTS = ['entrapment', 'forceTests', 'hrnOverrides'] as const;
-const AFTER_MEASUREMENTS = ['profile', 'site', 'swingGeometry'] as const;
+type Writer = (value: unknown) => string;
 
-/** The record's own keys in code-unit order (an insertion sort: a record holds a few dozen). */
+/** One member of a known object: its key, `"key":` ready written, and how its value is written. */
+interface Member {
+  readonly key: string;
+  readonly prefix: string;
+  readonly write: Writer;
+}
+
+/** A string as JSON.stringify writes it: printable ASCII without `"` or `\` needs no escaping. */
+function str(value: string): string {
+  for (let i = 0; i < value.length; i++) {
+    const c = value.charCodeAt(i);
+    if (c < 0x20 || c > 0x7e || c === 0x22 || c === 0x5c) return JSON.stringify(value);
+  }
+  return '"' + value + '"';
+}
+
+/** A finite number as canonicalJson writes it (-0 as 0); anything else by the generic writer (which refuses NaN and Infinity). */
+const num: Writer = (value) =>
+  typeof value === 'number' && Number.isFinite(value)
+    ? value === 0
+      ? '0'
+      : '' + value
+    : canonicalJson(value);
+const text: Writer = (value) => (typeof value === 'string' ? str(value) : canonicalJson(value));
+const bool: Writer = (value) => (value === true ? 'true' : value === false ? 'false' : canonicalJson(value));
+
+/** The record's own keys in code-unit order (an insertion sort: linear when already sorted, as parsed inputs are). */
 function sortedKeys(record: object): string[] {
   const keys = Object.keys(record);
   if (keys.length > 64) return keys.sort();
@@ -35,101 +66,229 @@ function sortedKeys(record: object): string[] {
   return keys;
 }
 
+/**
+ * A writer for objects of a known shape: the object's own keys in sorted order, each known member
+ * by its writer, an unknown one by the generic writer, undefined members left out — exactly what
+ * canonicalJson writes. Not an object (or an array): the generic writer.
+ */
+function shape(writers: Readonly<Record<string, Writer>>): Writer {
+  const members: Member[] = Object.keys(writers)
+    .sort()
+    .map((key) => ({ key, prefix: JSON.stringify(key) + ':', write: writers[key]! }));
+  return (value) => {
+    if (value === null || typeof value !== 'object' || Array.isArray(value)) return canonicalJson(value);
+    const record = value as Record<string, unknown>;
+    const keys = sortedKeys(record);
+    let out = '';
+    let at = 0;
+    for (let i = 0; i < keys.length; i++) {
+      const key = keys[i]!;
+      const member = record[key];
+      if (member === undefined) continue;
+      // Both lists are sorted: the known member for this key, if any, is at or after `at`.
+      while (at < members.length && members[at]!.key < key) at++;
+      const known = at < members.length && members[at]!.key === key ? members[at]! : null;
+      const written = known ? known.prefix + known.write(member) : str(key) + ':' + canonicalJson(member);
+      out = out === '' ? written : out + ',' + written;
+    }
+    return '{' + out + '}';
+  };
+}
+
+/** An array whose items are written by `item`; anything else by the generic writer. */
+function list(item: Writer): Writer {
+  return (value) => {
+    if (!Array.isArray(value)) return canonicalJson(value);
+    let out = '[';
+    for (let i = 0; i < value.length; i++) {
+      const entry: unknown = value[i];
+      if (i > 0) out += ',';
+      // As JSON.stringify and canonicalJson write a hole or undefined in an array.
+      out += entry === undefined || typeof entry === 'function' ? 'null' : item(entry);
+    }
+    return out + ']';
+  };
+}
+
 function countKeys(value: object): number {
   let n = 0;
   for (const key in value) if (Object.prototype.hasOwnProperty.call(value, key)) n++;
   return n;
 }
 
-function writeAnswer(entry: { value: string; note?: string }): string {
-  const { value, note } = entry;
-  if (typeof value !== 'string' || countKeys(entry) !== (note === undefined ? ('note' in entry ? 2 : 1) : 2))
-    return canonicalJson(entry);
-  if (note === undefined) return '{"value":' + quoted(value) + '}';
-  if (typeof note !== 'string') return canonicalJson(entry);
-  return '{"note":' + JSON.stringify(note) + ',"value":' + quoted(value) + '}';
-}
+/** A measured value `{ canonical, note?, unit, value }`, the commonest object of an input, by hand; any other shape by `measuredShape`. */
+const measuredShape = shape({ canonical: num, note: text, unit: text, value: num });
+const measured: Writer = (entry) => {
+  if (entry === null || typeof entry !== 'object') return canonicalJson(entry);
+  const { canonical, note, unit, value } = entry as Record<string, unknown>;
+  if (
+    typeof canonical !== 'number' ||
+    typeof value !== 'number' ||
+    typeof unit !== 'string' ||
+    !Number.isFinite(canonical) ||
+    !Number.isFinite(value) ||
+    (note !== undefined && typeof note !== 'string') ||
+    countKeys(entry) !== (note === undefined && !('note' in entry) ? 3 : 4)
+  )
+    return measuredShape(entry);
+  return (
+    '{"canonical":' +
+    (canonical === 0 ? '0' : '' + canonical) +
+    (note === undefined ? ',"unit":' : ',"note":' + str(note) + ',"unit":') +
+    str(unit) +
+    ',"value":' +
+    (value === 0 ? '0' : '' + value) +
+    '}'
+  );
+};
 
-/**
- * Measurements: each entry copied into an object literal with its members in canonical order
- * (`canonical`, `note`, `unit`, `value`), keys added in sorted order, and the whole written by the
- * native writer. An entry of any other shape, or with a number that is not finite, goes through
- * the generic writer instead, so nothing is ever left out of the hash or written as `null`.
- */
-function writeMeasurements(measurements: Readonly<Record<string, unknown>>): string {
-  const mirror: Record<string, unknown> = {};
-  for (const key of sortedKeys(measurements)) {
-    // A key an object literal would not keep in insertion order (an array index) or would not keep at all.
-    const first = key.charCodeAt(0);
-    if (key === '__proto__' || (first >= 48 && first <= 57)) return canonicalJson(measurements);
-    const entry = measurements[key] as { value: number; unit: string; canonical: number; note?: string };
-    if (entry === undefined) continue;
-    const { value, unit, canonical, note } = entry;
-    if (
-      typeof value !== 'number' ||
-      typeof canonical !== 'number' ||
-      !Number.isFinite(value) ||
-      !Number.isFinite(canonical) ||
-      typeof unit !== 'string' ||
-      (note !== undefined && typeof note !== 'string') ||
-      countKeys(entry) !== (note === undefined && !('note' in entry) ? 3 : 4)
-    )
-      return canonicalJson(measurements);
-    mirror[key] = { canonical, note, unit, value };
-  }
-  return JSON.stringify(mirror);
-}
+/** An answer `{ note?, value }` by hand; any other shape by `answerShape`. */
+const answerShape = shape({ note: text, value: text });
+const answer: Writer = (entry) => {
+  if (entry === null || typeof entry !== 'object') return canonicalJson(entry);
+  const { note, value } = entry as Record<string, unknown>;
+  if (
+    typeof value !== 'string' ||
+    (note !== undefined && typeof note !== 'string') ||
+    countKeys(entry) !== (note === undefined && !('note' in entry) ? 1 : 2)
+  )
+    return answerShape(entry);
+  return note === undefined
+    ? '{"value":' + str(value) + '}'
+    : '{"note":' + str(note) + ',"value":' + str(value) + '}';
+};
 
 /**
  * A force trace's samples (thousands of `{ f, t }`): when every sample has exactly `f` then `t`
  * (the canonical order, which is also the order PostgreSQL's jsonb keeps them in) and finite
  * numbers, the native writer writes the canonical JSON; otherwise the generic writer does.
  */
-function writeSamples(samples: readonly { t: number; f: number }[]): string {
-  for (let i = 0; i < samples.length; i++) {
-    const sample = samples[i] as Record<string, unknown> | null;
-    if (typeof sample !== 'object' || sample === null) return canonicalJson(samples);
+const samples: Writer = (value) => {
+  if (!Array.isArray(value)) return canonicalJson(value);
+  for (let i = 0; i < value.length; i++) {
+    const sample = value[i] as Record<string, unknown> | null;
+    if (typeof sample !== 'object' || sample === null || Array.isArray(sample)) return canonicalJson(value);
     let at = 0;
     for (const key in sample) {
-      if (key !== (at === 0 ? 'f' : 't') || !Number.isFinite(sample[key])) return canonicalJson(samples);
+      if (key !== (at === 0 ? 'f' : 't') || !Number.isFinite(sample[key])) return canonicalJson(value);
       at++;
     }
-    if (at !== 2) return canonicalJson(samples);
+    if (at !== 2) return canonicalJson(value);
   }
-  return JSON.stringify(samples);
+  return JSON.stringify(value);
+};
+
+/** The members of the input other than the answers and measurements, by their schemas (input.ts). */
+const RECORD_WRITERS: Readonly<Record<string, Writer>> = {
+  entrapment: shape({
+    devices: list(shape({ direction: text, monitored: bool, note: text, type: text, zone: text })),
+    edition: text,
+    zones: list(shape({ direction: text, note: text, zone: text })),
+  }),
+  forceTests: list(
+    shape({
+      direction: text,
+      gapMm: num,
+      heightMm: num,
+      location: text,
+      note: text,
+      samples,
+      summary: shape({ durationAbove150S: num, peakN: num, residualAt5sN: num, staticN: num }),
+    }),
+  ),
+  profile: shape({
+    automaticClosing: bool,
+    kind: text,
+    leafHeight: measured,
+    leafWeight: measured,
+    leafWidth: measured,
+    leaves: text,
+    openingDirection: text,
+    operatorListed: bool,
+    operatorManufacturedOn: text,
+    usageClass: num,
+  }),
+  site: shape({
+    childrenOrPetsPresent: bool,
+    pedestriansUseDriveway: bool,
+    publicAccess: bool,
+    slopeAcrossSwing: bool,
+  }),
+  swingGeometry: shape({
+    aMm: num,
+    bMm: num,
+    bracketFromHingeMm: num,
+    bracketOffsetMm: num,
+    leafThicknessMm: num,
+    operatorBodyLengthMm: num,
+    operatorHalfWidthMm: num,
+    retractedLengthMm: num,
+    strokeMm: num,
+    targetOpeningDeg: num,
+  }),
+};
+const hrnOverride = shape({ dph: text, fe: text, lo: text, np: text, reason: text });
+/** HRN overrides are keyed by rule id: a dictionary of known entries. */
+const hrnOverrides: Writer = dictionary(hrnOverride);
+
+/** A record keyed by data (rule ids): every value by `entry`. */
+function dictionary(entry: Writer): Writer {
+  return (value) => {
+    if (value === null || typeof value !== 'object' || Array.isArray(value)) return canonicalJson(value);
+    const record = value as Record<string, unknown>;
+    const keys = sortedKeys(record);
+    let out = '';
+    for (let i = 0; i < keys.length; i++) {
+      const key = keys[i]!;
+      const member = record[key];
+      if (member === undefined) continue;
+      const written = str(key) + ':' + entry(member);
+      out = out === '' ? written : out + ',' + written;
+    }
+    return '{' + out + '}';
+  };
 }
 
-/** Force tests by the generic writer, but their samples (most of an input that has them) by hand. */
-function writeForceTests(tests: NonNullable<AssessmentInput['forceTests']>): string {
-  let out = '[';
-  for (let i = 0; i < tests.length; i++) {
-    const test = tests[i]!;
-    let written: string;
-    // `samples` sorts after every other member of a force test but `summary` (refused beside samples).
-    if (test && Array.isArray(test.samples) && test.samples.length > 0 && !('summary' in test)) {
-      const { samples, ...rest } = test;
-      const others = canonicalJson(rest);
-      written =
-        others.slice(0, -1) + (others.length > 2 ? ',' : '') + '"samples":' + writeSamples(samples) + '}';
-    } else written = canonicalJson(test);
-    out += i === 0 ? written : ',' + written;
+/** The record's top-level members after `answers`/`choices`, in canonical (sorted) order. */
+const REST = [
+  'entrapment',
+  'forceTests',
+  'hrnOverrides',
+  'measurements',
+  'profile',
+  'site',
+  'swingGeometry',
+] as const;
+
+/** Per version: each question key's `"key":` and whether its answer is a yes/no/na one (goes under `answers`). */
+interface KeyText {
+  prefix: string;
+  yesNo: boolean;
+}
+const keyTexts = new WeakMap<CompiledRuleset, Map<string, KeyText>>();
+
+function keyTextsOf(compiled: CompiledRuleset): Map<string, KeyText> {
+  let texts = keyTexts.get(compiled);
+  if (!texts) {
+    texts = new Map();
+    for (const [key, q] of compiled.questionByKey)
+      texts.set(key, { prefix: JSON.stringify(key) + ':', yesNo: q.answerType === 'yes_no_na' });
+    keyTexts.set(compiled, texts);
   }
-  return out + ']';
+  return texts;
 }
 
 /**
- * The canonical JSON of the input's record form (see the module comment). `schemaOrdered`: the
- * input is what AssessmentInputSchema just built, every object's keys already in canonical order
- * (canonicalObject and dictionaryRecord in input.ts) and every number finite, so the native
- * writer's output is canonical for each member (a unit test holds the two equal).
+ * The canonical JSON of the input's record form (see the module comment). `entries`: the input's
+ * answers and measurements when the caller has already read them (scoring does).
  */
 export function inputRecordJson(
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  schemaOrdered = false,
+  entries?: InputEntries,
 ): string {
   try {
-    return schemaOrdered ? writeOrdered(input, compiled) : write(input, compiled);
+    return write(input, compiled, entries);
   } catch (error) {
     // Name where the problem is, from the top of the input (canonicalJson throws with the path).
     if (error instanceof TypeError) canonicalJson(input);
@@ -137,72 +296,114 @@ export function inputRecordJson(
   }
 }
 
-function write(input: AssessmentInput, compiled: CompiledRuleset): string {
-  let out = '{';
-  const answers = input.answers;
-  if (answers !== undefined) {
+const isRecord = (value: unknown): value is object =>
+  value !== null && typeof value === 'object' && !Array.isArray(value);
+
+function write(input: AssessmentInput, compiled: CompiledRuleset, given: InputEntries | undefined): string {
+  if (!isRecord(input)) return canonicalJson(input);
+  const entries = given ?? inputEntries(input);
+  const texts = keyTextsOf(compiled);
+  let out = '';
+  if (input.answers !== undefined) {
+    // Not a record: the split has nothing to split (the engine would have refused it before here).
+    if (!isRecord(input.answers)) throw new TypeError('answers is not a record');
+    const { keys, values } = entries.answers;
+    const order = sortedOrder(keys);
     let yesNo = '';
     let choices = '';
-    const questions = compiled.questionByKey;
-    for (const key of sortedKeys(answers)) {
-      const entry = answers[key];
+    for (let n = 0; n < keys.length; n++) {
+      const i = order === null ? n : order[n]!;
+      const entry = values[i];
       if (entry === undefined) continue;
-      const member = quoted(key) + ':' + writeAnswer(entry);
-      if (questions.get(key)?.answerType === 'yes_no_na') yesNo += yesNo ? ',' + member : member;
-      else choices += choices ? ',' + member : member;
+      const key = keys[i]!;
+      const known = texts.get(key);
+      const member = (known ? known.prefix : str(key) + ':') + answer(entry);
+      if (known?.yesNo) yesNo = yesNo === '' ? member : yesNo + ',' + member;
+      else choices = choices === '' ? member : choices + ',' + member;
     }
-    out += '"answers":{' + yesNo + '},"choices":{' + choices + '}';
+    out = '"answers":{' + yesNo + '},"choices":{' + choices + '}';
   }
-  for (const name of BEFORE_MEASUREMENTS) {
-    const member = input[name];
+  for (let n = 0; n < REST.length; n++) {
+    const name = REST[n]!;
+    const member = input[name] as unknown;
     if (member === undefined) continue;
-    const written =
-      name === 'forceTests' && Array.isArray(member)
-        ? writeForceTests(member as NonNullable<AssessmentInput['forceTests']>)
-        : canonicalJson(member);
-    out += (out.length > 1 ? ',"' : '"') + name + '":' + written;
+    let written: string;
+    if (name === 'measurements')
+      written = isRecord(member) ? measurements(entries.measurements, texts) : canonicalJson(member);
+    else if (name === 'hrnOverrides') written = hrnOverrides(member);
+    else written = RECORD_WRITERS[name]!(member);
+    out = out === '' ? '"' + name + '":' + written : out + ',"' + name + '":' + written;
   }
-  const measurements = input.measurements;
-  if (measurements !== undefined)
-    out += (out.length > 1 ? ',' : '') + '"measurements":' + writeMeasurements(measurements);
-  for (const name of AFTER_MEASUREMENTS) {
-    const member = input[name];
-    if (member === undefined) continue;
-    out += (out.length > 1 ? ',"' : '"') + name + '":' + canonicalJson(member);
-  }
-  return out + '}';
+  return '{' + out + '}';
 }
 
-/** The record form of an input the schema built (see inputRecordJson): the native writer, member by member. */
-function writeOrdered(input: AssessmentInput, compiled: CompiledRuleset): string {
-  let out = '{';
-  const answers = input.answers;
-  if (answers !== undefined) {
-    let yesNo = '';
-    let choices = '';
-    const questions = compiled.questionByKey;
-    for (const key in answers) {
-      const member = quoted(key) + ':' + JSON.stringify(answers[key]);
-      if (questions.get(key)?.answerType === 'yes_no_na') yesNo += yesNo ? ',' + member : member;
-      else choices += choices ? ',' + member : member;
-    }
-    out += '"answers":{' + yesNo + '},"choices":{' + choices + '}';
-  }
-  for (const name of ORDERED_REST) {
-    const member = input[name];
-    if (member === undefined) continue;
-    out += (out.length > 1 ? ',"' : '"') + name + '":' + JSON.stringify(member);
-  }
-  return out + '}';
+/** Whether a measured value has exactly the members `{ canonical, note?, unit, value }`, numbers finite and text strings. */
+function isMeasuredValue(
+  entry: unknown,
+): entry is { canonical: number; note?: string; unit: string; value: number } {
+  if (entry === null || typeof entry !== 'object') return false;
+  const { canonical, note, unit, value } = entry as Record<string, unknown>;
+  return (
+    typeof canonical === 'number' &&
+    typeof value === 'number' &&
+    typeof unit === 'string' &&
+    Number.isFinite(canonical) &&
+    Number.isFinite(value) &&
+    (note === undefined || typeof note === 'string') &&
+    countKeys(entry) === (note === undefined && !('note' in entry) ? 3 : 4)
+  );
 }
 
-const ORDERED_REST = [...BEFORE_MEASUREMENTS, 'measurements', ...AFTER_MEASUREMENTS] as const;
+/** Scratch lists for one measurements record (measurements never re-enters itself): its numbers, and which entries gave them. */
+const numbers: number[] = [];
+const regular: boolean[] = [];
+const NO_NUMBERS: readonly string[] = [];
+
+/**
+ * Measurements, keyed by question: each key's text from the version, each entry's numbers written
+ * together by one native JSON.stringify of a number list (a double written from script cost several
+ * times as much, and the measured values are most of an input's numbers; JSON.stringify writes a
+ * finite number as canonicalJson does, -0 as 0), any entry of another shape by `measured`.
+ */
+function measurements(record: RecordEntries, texts: Map<string, KeyText>): string {
+  const { keys, values } = record;
+  const order = sortedOrder(keys);
+  numbers.length = 0;
+  for (let n = 0; n < keys.length; n++) {
+    const entry = values[order === null ? n : order[n]!];
+    if ((regular[n] = isMeasuredValue(entry))) numbers.push(entry.canonical, entry.value);
+  }
+  const written = numbers.length > 0 ? JSON.stringify(numbers).slice(1, -1).split(',') : NO_NUMBERS;
+  let at = 0;
+  let out = '';
+  for (let n = 0; n < keys.length; n++) {
+    const i = order === null ? n : order[n]!;
+    const entry = values[i];
+    if (entry === undefined) continue;
+    const key = keys[i]!;
+    const known = texts.get(key);
+    let member = known ? known.prefix : str(key) + ':';
+    if (regular[n]) {
+      const { note, unit } = entry as { note?: string; unit: string };
+      member +=
+        '{"canonical":' +
+        written[at++]! +
+        (note === undefined ? ',"unit":' : ',"note":' + str(note) + ',"unit":') +
+        str(unit) +
+        ',"value":' +
+        written[at++]! +
+        '}';
+    } else member += measured(entry);
+    out = out === '' ? member : out + ',' + member;
+  }
+  return '{' + out + '}';
+}
 
 /** SHA-256 of the input's record form. */
 export function inputSha256(
   input: AssessmentInput,
   compiled: CompiledRuleset,
-  schemaOrdered = false,
+  entries?: InputEntries,
 ): string {
-  return sha256Hex(inputRecordJson(input, compiled, schemaOrdered));
+  return sha256Hex(inputRecordJson(input, compiled, entries));
 }

@@ -154,6 +154,18 @@ function compileVar(values: unknown[], constants: Constants): CompiledLogic {
         return inner === undefined ? notFound : inner;
       };
     }
+    if (segments.length === 3) {
+      const [first, second, third] = segments as [string, string, string];
+      return (data) => {
+        if (data === null || data === undefined) return notFound;
+        const a = (data as Record<string, unknown>)[first];
+        if (a === undefined || a === null) return notFound;
+        const b = (a as Record<string, unknown>)[second];
+        if (b === undefined || b === null) return notFound;
+        const c = (b as Record<string, unknown>)[third];
+        return c === undefined ? notFound : c;
+      };
+    }
     return (data) => {
       let current: unknown = data;
       for (const segment of segments) {

@@ -136,8 +136,17 @@ export function applicableEntrapmentEdition(
 /** A real calendar date in YYYY-MM-DD form, leap years included: zod's ISO date check, as the input schema uses. */
 const CalendarDate = z.iso.date();
 
+/** Dates already judged (every assessment of a gate carries the same one; the zod check was a dear part of the facts). */
+const judgedDates = new Map<string, boolean>();
+const JUDGED_DATES_LIMIT = 4096;
+
 function manufactureDateIsValid(manufacturedOn: string): boolean {
-  return ISO_DATE.test(manufacturedOn) && CalendarDate.safeParse(manufacturedOn.slice(0, 10)).success;
+  let valid = judgedDates.get(manufacturedOn);
+  if (valid === undefined) {
+    valid = ISO_DATE.test(manufacturedOn) && CalendarDate.safeParse(manufacturedOn.slice(0, 10)).success;
+    if (judgedDates.size < JUDGED_DATES_LIMIT) judgedDates.set(manufacturedOn, valid);
+  }
+  return valid;
 }
 
 function refuseDate(manufacturedOn: string): never {
@@ -261,5 +270,96 @@ export function assessEntrapmentProtection(
     applicableEdition,
     byEdition,
     compliant: applicableEdition === null ? null : byEdition[applicableEdition].compliant,
+  };
+}
+
+/** What the entrapment facts read of one direction's judgement under both editions. */
+export interface DirectionVerdict {
+  /** As `judgePre2016(...).compliant`. */
+  compliantPre2016: boolean | null;
+  /** As `judge2016(...).compliant`. */
+  compliant2016: boolean | null;
+  /** As `judge2016(...).countedTypes.length`. */
+  countedTypes2016: number;
+}
+
+/** A fitted device as the input records it, with its direction of travel. */
+export interface DirectedDevice {
+  readonly type: EntrapmentDeviceType;
+  readonly direction: TravelDirection;
+  readonly monitored: boolean;
+}
+
+/** Device types as bits, so the tables' lists become masks. */
+const TYPE_BIT: Readonly<Record<string, number>> = Object.freeze(
+  Object.fromEntries(ENTRAPMENT_DEVICE_TYPES.map((type, i) => [type, 1 << i])),
+);
+const maskOf = (types: readonly EntrapmentDeviceType[]): number =>
+  types.reduce((mask, type) => mask | TYPE_BIT[type]!, 0);
+const EXTERNAL_MASK = maskOf(DEFAULT_RULES.externalTypes);
+const BIT_D = TYPE_BIT.D!;
+const PRE2016_MASKS = Object.fromEntries(
+  Object.entries(DEFAULT_RULES.pre2016Table).map(([group, byClass]) => [
+    group,
+    Object.fromEntries(
+      Object.entries(byClass).map(([usageClass, row]) => [
+        usageClass,
+        { primary: maskOf(row.primary), secondary: maskOf(row.secondary) },
+      ]),
+    ),
+  ]),
+) as Record<Ul325KindGroup, Record<UsageClass, { primary: number; secondary: number } | undefined>>;
+const ALLOWED_2016_MASK = Object.fromEntries(
+  Object.entries(DEFAULT_RULES.allowed2016).map(([group, types]) => [group, maskOf(types)]),
+) as Record<Ul325KindGroup, number>;
+const BIT_E = TYPE_BIT.E!;
+
+const bitCount = (mask: number): number => {
+  let n = 0;
+  for (let m = mask; m !== 0; m &= m - 1) n++;
+  return n;
+};
+
+/**
+ * The verdicts the entrapment facts read — per direction, compliance under each edition and how
+ * many types count under 2016 — by the same rules as assessEntrapmentProtection with the default
+ * tables, without building its full judgement (sets, reasons and lists per direction and edition,
+ * which made it the dearest part of the facts). A unit test holds the two equal.
+ */
+export function entrapmentVerdicts(
+  input: Omit<EntrapmentProtectionInput, 'devices'> & { devices: readonly DirectedDevice[] },
+  direction: TravelDirection,
+): DirectionVerdict {
+  const rules = DEFAULT_RULES;
+  const zone = input.entrapmentZones[direction];
+  const group = UL325_KIND_GROUP[input.gateKind];
+  const row = group ? PRE2016_MASKS[group][input.usageClass] : undefined;
+  const primary = row ? row.primary : 0;
+  const secondary = row ? row.secondary : 0;
+  // No group: 2016 restricts no type (as judge2016 with no allowed list).
+  const allowed = group ? ALLOWED_2016_MASK[group] : -1;
+  let usable = 0;
+  let counted = 0;
+  const { devices, automaticClosing } = input;
+  for (let i = 0; i < devices.length; i++) {
+    const device = devices[i]!;
+    if (device.direction !== direction) continue;
+    const bit = TYPE_BIT[device.type] ?? 0;
+    if (bit === BIT_D && automaticClosing) continue;
+    // pre-2016: a type the table lists for this kind and class, as primary or secondary.
+    if (bit & (primary | secondary)) usable |= bit;
+    // 2016: type E never counts; an external device counts only when monitored.
+    if (bit !== BIT_E && bit & allowed && !(bit & EXTERNAL_MASK && !device.monitored)) counted |= bit;
+  }
+  // A primary and a different secondary among the usable types.
+  const primaries = usable & primary;
+  const secondaries = usable & secondary;
+  const assigned =
+    primaries !== 0 && secondaries !== 0 && !(primaries === secondaries && bitCount(primaries) === 1);
+  const countedTypes2016 = bitCount(counted);
+  return {
+    compliantPre2016: row ? !zone || assigned : zone ? null : true,
+    compliant2016: !zone || countedTypes2016 >= rules.minIndependentTypes2016,
+    countedTypes2016,
   };
 }
