@@ -1,10 +1,12 @@
 /**
  * Ruleset impact runs on the job queue. Publishing a version (an organisation's own, or a
  * shipped one for each organisation with signed assessments of its family) queues a run; so can
- * the impact page. A run is cut into slices (impact.ts `slicesOf`: keyset ranges of assessment
- * ids, IMPACT_SLICE_SIZE each) and each slice is one `impact-slice` job that any server instance
- * of the channel takes, scores (impact.ts `rescoreSlice`) and adds into the run's row: counts,
- * the most severe worse outcomes, progress. More instances, more slices at once.
+ * the impact page. A run is cut into slices when it is queued (impact.ts `slicesOf`: the ids of
+ * the assessments to re-score, found with one statement per version, IMPACT_SLICE_SIZE each) and
+ * each slice is one `impact-slice` job, carrying its ids, that any server instance of the channel
+ * takes, scores (impact.ts `rescoreSlice`: its rows by primary key) and adds into the run's row:
+ * counts, the most severe worse outcomes, progress. More instances, more slices at once. A run
+ * re-scores the assessments that were to be re-scored when it was queued.
  *
  * A slice job that runs twice (an instance died after adding its counts) is counted once
  * (`done_slices`). A slice that fails after its retries marks the run failed; the owner's jobs
