@@ -118,8 +118,8 @@ describe('ruleset impact reads', () => {
       return found;
     });
     // Twelve gates' last visits in slices of five, found with one statement per other version.
-    expect(slices.map((s) => s.ids?.length)).toEqual([5, 5, 2]);
     expect(slicing).toHaveLength(target.otherVersions.length);
+    expect(slices.map((s) => s.ids?.length)).toEqual([5, 5, 2]);
     const lastVisits = visits.map((v) => v[2]!).sort();
     expect(slices.flatMap((s) => s.ids)).toEqual(lastVisits);
 
