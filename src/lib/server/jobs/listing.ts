@@ -58,22 +58,25 @@ function jobsQuery(knex: Knex, organisationId: string) {
 
 /** The organisation's jobs that are not done, newest first (at most `limit`), and the counts by status. */
 export async function listJobs(organisationId: string, limit = 200, knex: Knex = db()): Promise<JobList> {
-  const rows = (await jobsQuery(knex, organisationId).orderBy('j.created_on', 'desc').limit(limit).select(
-    'j.id',
-    'j.name',
-    'j.state',
-    // An impact slice's spec (up to IMPACT_SLICE_SIZE assessment ids) is not shown: left in the database.
-    knex.raw(`j.data - 'spec' as data`),
-    'j.output',
-    'j.created_on',
-    'j.start_after',
-    'j.started_on',
-    'j.retry_count',
-    'o.subject',
-    knex.raw(
-      `j.data -> 'target' ->> 'family' || ' ' || (j.data -> 'target' ->> 'version') as impact_version`,
-    ),
-  )) as JobRow[];
+  // An impact slice's spec (up to IMPACT_SLICE_SIZE assessment ids) stays in the database.
+  const rows = (await jobsQuery(knex, organisationId)
+    .orderBy('j.created_on', 'desc')
+    .limit(limit)
+    .select(
+      'j.id',
+      'j.name',
+      'j.state',
+      knex.raw(`j.data - 'spec' as data`),
+      'j.output',
+      'j.created_on',
+      'j.start_after',
+      'j.started_on',
+      'j.retry_count',
+      'o.subject',
+      knex.raw(
+        `j.data -> 'target' ->> 'family' || ' ' || (j.data -> 'target' ->> 'version') as impact_version`,
+      ),
+    )) as JobRow[];
   const counted = (await jobsQuery(knex, organisationId)
     .groupBy('j.name', 'j.state')
     .select('j.name', 'j.state', knex.raw('count(*)::int as n'))) as {
