@@ -559,7 +559,7 @@ async function queuedRun(
   try {
     for (let i = 0; i < instances; i++)
       running.push(await startAppServer({ port: await freePort(), quiet: true, env }));
-    // Every instance starts its job queue (and its re-scoring threads) with its first request.
+    // Every instance starts its job queue with its first request (its re-scoring threads with its first slice).
     for (const server of running) await fetch(`${server.url}/api/health`).then((r) => r.arrayBuffer());
     await new Promise((r) => setTimeout(r, 5000));
     const url = running[0]!.url;

@@ -1,10 +1,12 @@
 /**
  * Ruleset impact runs on the job queue. Publishing a version (an organisation's own, or a
  * shipped one for each organisation with signed assessments of its family) queues a run; so can
- * the impact page. A run is cut into slices (impact.ts `slicesOf`: keyset ranges of assessment
- * ids, IMPACT_SLICE_SIZE each) and each slice is one `impact-slice` job that any server instance
- * of the channel takes, scores (impact.ts `rescoreSlice`) and adds into the run's row: counts,
- * the most severe worse outcomes, progress. More instances, more slices at once.
+ * the impact page. A run is cut into slices when it is queued (impact.ts `slicesOf`: the ids of
+ * the assessments to re-score, found with one statement per version, IMPACT_SLICE_SIZE each) and
+ * each slice is one `impact-slice` job, carrying its ids, that any server instance of the channel
+ * takes, scores (impact.ts `rescoreSlice`: its rows by primary key) and adds into the run's row:
+ * counts, the most severe worse outcomes, progress. More instances, more slices at once. A run
+ * re-scores the assessments that were to be re-scored when it was queued.
  *
  * A slice job that runs twice (an instance died after adding its counts) is counted once
  * (`done_slices`). A slice that fails after its retries marks the run failed; the owner's jobs
@@ -184,16 +186,16 @@ export interface SliceJob {
 }
 
 /**
- * Slices this instance takes at once (IMPACT_CONCURRENCY, 1–16): by default one per thread, so
- * each thread has a slice and an instance takes no more than it can score while others wait.
- * (Measured on two shared cores, 20,000 assessments in slices of 1,000: two threads with two
- * slices at once 84 s, with three 96 s; one thread 148 s; the request thread 139 s, with health
- * p95 1.5 s during the run against 0.2–0.3 s with threads. `npm run bench -- impact-runs`.)
+ * Slices this instance takes at once (IMPACT_CONCURRENCY, 1–16): by default two per thread (two
+ * for the request thread), so each thread scores one slice while the next one's rows come from
+ * the database, as the in-process report keeps two slices per thread in flight.
+ * (Measured on two shared cores, load average 10–13, 10,000 assessments in slices of 1,000, one
+ * thread: one slice at a time 13.5–13.8 s from queued to done, two at once 7.2–10.5 s.)
  */
 export function impactConcurrency(threads = workerCount(1)): number {
   const configured = Number(process.env.IMPACT_CONCURRENCY);
   if (Number.isFinite(configured) && configured >= 1) return Math.min(16, Math.floor(configured));
-  return Math.max(1, threads);
+  return 2 * Math.max(1, threads);
 }
 
 /** Scores one queued slice and adds it into its run; a failure is recorded on the run, and the job retried. */

@@ -5,8 +5,9 @@
  * (`gate_snapshot`) — and compared with the verdict it was signed with. Nothing stored
  * changes: the archive keeps what was signed; this is a planning list for return visits.
  *
- * Rows are read in keyset batches (id order, one version at a time) and scored as they come,
- * yielding to the event loop between batches, so memory holds one batch and the server keeps
+ * The ids to re-score are found first (one statement per version of the family, ids only), then
+ * cut into slices; each slice's rows are read by primary key and scored as they come, yielding to
+ * the event loop between slices, so memory holds the ids and one slice's rows and the server keeps
  * answering while a large archive is re-scored.
  *
  * `basis: 'latest'` (the default) looks at each gate's most recent signed assessment of the
@@ -30,7 +31,8 @@ import {
   type LoadedRuleset,
 } from '@/lib/rules';
 import {
-  lastIdOfRescorePage,
+  idsToRescore,
+  rescoreRowsByIds,
   rescoreRowsInRange,
   signedRuleOutcomes,
   type ImpactRow,
@@ -264,14 +266,19 @@ export async function rescoreRows(
 /** Assessments per slice (IMPACT_SLICE_SIZE, for tests of the slicing; 1,000 by default). */
 const BATCH = Math.min(10_000, Math.max(1, Number(process.env.IMPACT_SLICE_SIZE) || 1000));
 
-/** One slice of the work: a version's candidate assessments with ids in (afterId, upToId]. */
+/**
+ * One slice of the work: at most BATCH of a version's assessments to re-score, by id (chosen
+ * once, when the run's slices are cut). A slice queued by an older server carries the id range
+ * (afterId, upToId] instead, and is read by range.
+ */
 export interface ImpactSlice extends RescoreScope {
   fromVersion: string;
-  afterId: string | null;
-  upToId: string;
+  ids?: string[];
+  afterId?: string | null;
+  upToId?: string;
 }
 
-/** Slices of at most BATCH candidates each, found by reading ids only (keyset, id order). */
+/** Slices of at most BATCH assessments each, for each other version of the family: one id query per version. */
 export async function* slicesOf(
   knex: Knex,
   organisationId: string,
@@ -279,26 +286,10 @@ export async function* slicesOf(
   basis: ImpactBasis,
 ): AsyncGenerator<ImpactSlice> {
   for (const from of target.otherVersions) {
-    let afterId: string | null = null;
-    for (;;) {
-      const upToId = await lastIdOfRescorePage(
-        knex,
-        { organisationId, target, versionId: from.id, basis },
-        afterId,
-        BATCH,
-      );
-      if (!upToId) break;
-      yield {
-        organisationId,
-        target,
-        versionId: from.id,
-        fromVersion: from.version,
-        basis,
-        afterId,
-        upToId,
-      };
-      afterId = upToId;
-    }
+    const scope = { organisationId, target, versionId: from.id, basis };
+    const ids = await idsToRescore(knex, scope);
+    for (let i = 0; i < ids.length; i += BATCH)
+      yield { ...scope, fromVersion: from.version, ids: ids.slice(i, i + BATCH) };
   }
 }
 
@@ -306,7 +297,9 @@ export async function* slicesOf(
 export async function rescoreSlice(slice: ImpactSlice, knex: Knex = db()): Promise<ImpactOutcome[]> {
   const [loaded, rows] = await Promise.all([
     loadTarget(knex, slice.target.id),
-    rescoreRowsInRange(knex, slice),
+    slice.ids
+      ? rescoreRowsByIds(knex, { ...slice, ids: slice.ids })
+      : rescoreRowsInRange(knex, { ...slice, afterId: slice.afterId ?? null, upToId: slice.upToId ?? '' }),
   ]);
   return rescoreRows(knex, rows, loaded, slice.fromVersion);
 }

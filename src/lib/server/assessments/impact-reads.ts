@@ -1,7 +1,7 @@
 /**
- * What ruleset impact (impact.ts) reads of the archive: the signed assessments of one version it
- * re-scores, in keyset ranges of ids, and how each rule stood in their signed results. Read
- * only; the queries and the indexes they use are those impact.ts has always run.
+ * What ruleset impact (impact.ts) reads of the archive: the ids of the signed assessments of one
+ * version it re-scores (one statement for the whole run), those rows by id, a slice at a time,
+ * and how each rule stood in their signed results. Read only.
  *
  * `basis: 'latest'` keeps each gate's most recent signed assessment of the family only (a gate
  * already signed under a later one of the family is left out); `basis: 'all'` keeps every one.
@@ -65,26 +65,85 @@ function signedAssessmentsToRescore(knex: Knex, scope: RescoreScope): Knex.Query
 }
 
 /**
- * The last id of the next `size` assessments to re-score after `afterId` (from the first when
- * null), in id order, reading ids only; null when none are left.
+ * The ids of every assessment to re-score in `scope`, in id order: one statement, ids only.
+ * `latest` takes each gate's most recent signed assessment of the family (one pass over the
+ * organisation's signed rows of the family, sorted by gate) and keeps those under `versionId`.
  */
-export async function lastIdOfRescorePage(
-  knex: Knex,
-  scope: RescoreScope,
-  afterId: string | null,
-  size: number,
-): Promise<string | null> {
-  const query = signedAssessmentsToRescore(knex, scope);
-  if (afterId) query.andWhere('a.id', '>', afterId);
-  const [last] = (await knex
-    .from(query.orderBy('a.id').limit(size).select('a.id').as('page'))
-    .orderBy('id', 'desc')
-    .limit(1)
-    .select('id')) as { id: string }[];
-  return last?.id ?? null;
+export async function idsToRescore(knex: Knex, scope: RescoreScope): Promise<string[]> {
+  const { organisationId, target, versionId, basis } = scope;
+  if (basis === 'all') {
+    const rows = (await knex('assessments as a')
+      .where({ 'a.organisation_id': organisationId, 'a.ruleset_version_id': versionId, 'a.status': 'signed' })
+      .whereNotNull('a.verdict')
+      .orderBy('a.id')
+      .select('a.id')) as { id: string }[];
+    return rows.map((r) => r.id);
+  }
+  const familyVersionIds = [target.id, ...target.otherVersions.map((v) => v.id)];
+  const latest = knex('assessments as a')
+    .where({ 'a.organisation_id': organisationId, 'a.status': 'signed' })
+    .whereIn('a.ruleset_version_id', familyVersionIds)
+    .distinctOn('a.gate_id')
+    .orderByRaw(`a.gate_id, ${archiveDateSql} desc, a.id desc`)
+    .select('a.id', 'a.ruleset_version_id', 'a.verdict');
+  const rows = (await knex
+    .from(latest.as('latest'))
+    .where('latest.ruleset_version_id', versionId)
+    .whereNotNull('latest.verdict')
+    .orderBy('latest.id')
+    .select('latest.id')) as { id: string }[];
+  return rows.map((r) => r.id);
 }
 
-/** The assessments to re-score with ids in (afterId, upToId], id order, with their gate, site and client. */
+/** What the impact reads of each assessment it re-scores: its inputs and what the list shows. */
+function rescoreColumns(knex: Knex) {
+  return [
+    'a.id',
+    'a.gate_id',
+    'g.label as gate_label',
+    'g.kind as gate_kind',
+    'c.name as client_name',
+    's.address_line1',
+    's.city',
+    knex.raw(`${archiveDateSql} as archive_date`),
+    'a.signed_at',
+    'a.verdict',
+    'a.answers',
+    'a.measurements',
+    'a.observations',
+    'a.gate_snapshot',
+  ];
+}
+
+/**
+ * The assessments `ids` (chosen by `idsToRescore`), id order, with their gate, site and client:
+ * primary-key reads of those rows alone. The scope's organisation, version and signed state are
+ * checked again, so a slice can never read another organisation's rows or an unsigned one.
+ */
+export async function rescoreRowsByIds(
+  knex: Knex,
+  scope: RescoreScope & { ids: string[] },
+): Promise<ImpactRow[]> {
+  if (!scope.ids.length) return [];
+  return (await knex('assessments as a')
+    .join('gates as g', 'g.id', 'a.gate_id')
+    .join('sites as s', 's.id', 'g.site_id')
+    .join('clients as c', 'c.id', 's.client_id')
+    .whereRaw('a.id = any(?::uuid[])', [scope.ids])
+    .andWhere({
+      'a.organisation_id': scope.organisationId,
+      'a.ruleset_version_id': scope.versionId,
+      'a.status': 'signed',
+    })
+    .whereNotNull('a.verdict')
+    .orderBy('a.id')
+    .select(rescoreColumns(knex))) as ImpactRow[];
+}
+
+/**
+ * The assessments to re-score with ids in (afterId, upToId], id order, with their gate, site and
+ * client: how slices queued before they carried their ids are read.
+ */
 export async function rescoreRowsInRange(
   knex: Knex,
   range: RescoreScope & { afterId: string | null; upToId: string },
@@ -95,24 +154,7 @@ export async function rescoreRowsInRange(
     .join('clients as c', 'c.id', 's.client_id')
     .andWhere('a.id', '<=', range.upToId);
   if (range.afterId) query.andWhere('a.id', '>', range.afterId);
-  return (await query
-    .orderBy('a.id')
-    .select(
-      'a.id',
-      'a.gate_id',
-      'g.label as gate_label',
-      'g.kind as gate_kind',
-      'c.name as client_name',
-      's.address_line1',
-      's.city',
-      knex.raw(`${archiveDateSql} as archive_date`),
-      'a.signed_at',
-      'a.verdict',
-      'a.answers',
-      'a.measurements',
-      'a.observations',
-      'a.gate_snapshot',
-    )) as ImpactRow[];
+  return (await query.orderBy('a.id').select(rescoreColumns(knex))) as ImpactRow[];
 }
 
 /** How each rule stood in the signed results of these assessments, by assessment id. */
@@ -122,7 +164,7 @@ export async function signedRuleOutcomes(
 ): Promise<Map<string, SignedRuleOutcomes>> {
   if (!ids.length) return new Map();
   const rows = await knex('assessments as a')
-    .whereIn('a.id', ids)
+    .whereRaw('a.id = any(?::uuid[])', [ids])
     .select(
       'a.id',
       knex.raw(

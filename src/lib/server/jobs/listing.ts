@@ -58,6 +58,7 @@ function jobsQuery(knex: Knex, organisationId: string) {
 
 /** The organisation's jobs that are not done, newest first (at most `limit`), and the counts by status. */
 export async function listJobs(organisationId: string, limit = 200, knex: Knex = db()): Promise<JobList> {
+  // An impact slice's spec (up to IMPACT_SLICE_SIZE assessment ids) stays in the database.
   const rows = (await jobsQuery(knex, organisationId)
     .orderBy('j.created_on', 'desc')
     .limit(limit)
@@ -65,7 +66,7 @@ export async function listJobs(organisationId: string, limit = 200, knex: Knex =
       'j.id',
       'j.name',
       'j.state',
-      'j.data',
+      knex.raw(`j.data - 'spec' as data`),
       'j.output',
       'j.created_on',
       'j.start_after',
