@@ -1,0 +1,74 @@
+/**
+ * Server and PostgreSQL CPU per request for a few endpoints (scratch probe, loopback only).
+ * `npx tsx tests/bench/cost-probe.ts [requests] [rounds]`
+ */
+import autocannon from 'autocannon';
+import fs from 'node:fs';
+import { demoPassword } from '../../db/seeds/demo/people';
+import { signInCookie, startBenchApp } from './support/app';
+
+const hz = 100;
+function cpuOf(pid: number): number {
+  const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+  const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return ((Number(f[11]) + Number(f[12])) * 1000) / hz;
+}
+function pgCpu(): number {
+  let total = 0;
+  for (const d of fs.readdirSync('/proc')) {
+    if (!/^\d+$/.test(d)) continue;
+    try {
+      const cmd = fs.readFileSync(`/proc/${d}/cmdline`, 'utf8');
+      if (!cmd.startsWith('postgres: ')) continue;
+      const stat = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      // only backends of our cluster: parent is the postmaster listening on our port
+      const ppid = Number(f[1]);
+      const pcmd = fs.readFileSync(`/proc/${ppid}/cmdline`, 'utf8');
+      if (!pcmd.includes(process.env.LATCHWELL_PG_PORT ?? '54312')) continue;
+      total += ((Number(f[11]) + Number(f[12])) * 1000) / hz;
+    } catch {}
+  }
+  return total;
+}
+
+const amount = Number(process.argv[2] ?? 4000);
+const rounds = Number(process.argv[3] ?? 2);
+const app = await startBenchApp();
+const base = app.server.url;
+const pid = app.server.child.pid!;
+try {
+  const office = await signInCookie(base, 'office@quillmoor.test', demoPassword);
+  const headers = { cookie: office, origin: base, accept: 'application/json' };
+  const list = await (await fetch(`${base}/api/assessments?status=signed&pageSize=5`, { headers })).json();
+  const readId: string = list.items[0].id;
+  const targets: Record<string, autocannon.Options> = {
+    health: { url: `${base}/api/health` },
+    list: { url: `${base}/api/assessments?status=signed&pageSize=25`, headers },
+    read: { url: `${base}/api/assessments/${readId}`, headers },
+  };
+  const only = process.env.LOAD_TARGETS?.split(',');
+  for (const o of Object.values(targets)) await autocannon({ ...o, connections: 20, amount: 500 });
+  const sums: Record<string, { node: number; pg: number; n: number; rps: number }> = {};
+  for (let r = 0; r < rounds; r++) {
+    for (const [name, o] of Object.entries(targets)) {
+      if (only && !only.includes(name)) continue;
+      const n0 = cpuOf(pid);
+      const p0 = pgCpu();
+      const res = await autocannon({ ...o, connections: 20, amount });
+      const s = (sums[name] ??= { node: 0, pg: 0, n: 0, rps: 0 });
+      s.node += cpuOf(pid) - n0;
+      s.pg += pgCpu() - p0;
+      s.n += res.requests.total;
+      s.rps += res.requests.average / rounds;
+      if (res.non2xx) console.log(`${name}: ${res.non2xx} non-2xx`);
+    }
+  }
+  for (const [name, s] of Object.entries(sums))
+    console.log(
+      `${name.padEnd(7)} node ${((s.node / s.n) * 1000).toFixed(0).padStart(5)} µs/req  pg ${((s.pg / s.n) * 1000).toFixed(0).padStart(5)} µs/req  ${s.rps.toFixed(0)} req/s`,
+    );
+} finally {
+  await app.server.stop();
+}
+process.exit(0);
