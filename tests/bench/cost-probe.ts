@@ -1,13 +1,19 @@
 /**
- * Server and PostgreSQL CPU per request for a few endpoints (scratch probe, loopback only).
- * `npx tsx tests/bench/cost-probe.ts [requests] [rounds]`
+ * What a request costs the machine, steadier than throughput on a shared host: the server's CPU
+ * time and PostgreSQL's (every backend of the private cluster on LATCHWELL_PG_PORT) per request,
+ * for /api/health, the signed-in assessment list and an assessment read, each run for a fixed
+ * number of requests at 20 connections, in rounds that alternate the endpoints. Loopback only.
+ *
+ * `npx tsx tests/bench/cost-probe.ts [requests] [rounds]` (default 4000, 2); LOAD_TARGETS=list
+ * runs only those (add `health` to have it); LATCHWELL_SERVER_ENTRY runs another build;
+ * BENCH_CPU_PROF_DIR=dir profiles the server.
  */
 import autocannon from 'autocannon';
 import fs from 'node:fs';
 import { demoPassword } from '../../db/seeds/demo/people';
 import { signInCookie, startBenchApp } from './support/app';
 
-const hz = 100;
+const hz = 100; // USER_HZ: the unit of /proc/<pid>/stat's utime and stime
 function cpuOf(pid: number): number {
   const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
   const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
@@ -22,7 +28,7 @@ function pgCpu(): number {
       if (!cmd.startsWith('postgres: ')) continue;
       const stat = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
       const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-      // only backends of our cluster: parent is the postmaster listening on our port
+      // Only this cluster's backends: their parent is the postmaster started on our port.
       const ppid = Number(f[1]);
       const pcmd = fs.readFileSync(`/proc/${ppid}/cmdline`, 'utf8');
       if (!pcmd.includes(process.env.LATCHWELL_PG_PORT ?? '54312')) continue;
