@@ -20,7 +20,14 @@ import { mergeDocuments, type AssessmentDocuments } from '../assessment-input';
 import { recordAudit } from '../audit';
 import { db } from '../db';
 import { ConflictError, ForbiddenError, InvalidInputError } from '../errors';
-import { fetchPageCounted, FOREIGN_KEY_VIOLATION, iso, pgErrorCode } from '../listing';
+import {
+  fetchPageCounted,
+  fetchPageJson,
+  FOREIGN_KEY_VIOLATION,
+  iso,
+  isoTextSql,
+  pgErrorCode,
+} from '../listing';
 import type { SessionUser } from '../session-user';
 import { loadedRuleset } from '../ruleset-cache';
 import { parseScoredRecord, type ScoredRecord } from './scored-record';
@@ -206,11 +213,8 @@ export function visibleAssessments(
   return query;
 }
 
-export async function listAssessments(
-  viewer: SessionUser,
-  timeZone: string,
-  query: AssessmentListQuery,
-): Promise<Page<AssessmentSummary>> {
+/** The assessments the viewer may see that match the list's filters, as the list's base query. */
+function filteredAssessments(viewer: SessionUser, timeZone: string, query: AssessmentListQuery) {
   const base = visibleAssessments(db(), viewer);
   if (query.status) base.andWhere('a.status', query.status);
   if (query.verdict) base.andWhere('a.verdict', query.verdict);
@@ -225,13 +229,71 @@ export async function listAssessments(
     base.andWhereRaw('a.visited_on >= (?::date)::timestamp at time zone ?', [query.from, timeZone]);
   if (query.to)
     base.andWhereRaw('a.visited_on < (?::date + 1)::timestamp at time zone ?', [query.to, timeZone]);
+  return base;
+}
+
+export async function listAssessments(
+  viewer: SessionUser,
+  timeZone: string,
+  query: AssessmentListQuery,
+): Promise<Page<AssessmentSummary>> {
   return fetchPageCounted<SummaryRow, AssessmentSummary>(
     {
-      base,
+      base: filteredAssessments(viewer, timeZone, query),
       columns: summaryColumns(),
       order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
       idColumn: 'a.id',
       map: toSummary,
+    },
+    query,
+  );
+}
+
+/**
+ * SQL giving the summary of the row `p` (with summaryColumns' names) as JSON text, byte for
+ * byte `JSON.stringify(toSummary(row))`: the same keys in the same order, `row_to_json` writing
+ * them without spaces and escaping strings as JSON.stringify does, timestamps as toISOString
+ * writes them (`isoTextSql`). Keep it in step with toSummary; the list test compares the two.
+ */
+export function summaryJsonSql(p: string): string {
+  const object = (fields: string) => `(select row_to_json(o) from (select ${fields}) o)`;
+  return `(select row_to_json(j) from (select ${p}.id, ${p}.status, ${p}.purpose, ${p}.verdict, ${p}.row_version as "rowVersion", ${object(
+    `${p}.gate_id as id, ${p}.gate_label as label, ${p}.gate_kind as kind`,
+  )} as gate, ${object(
+    `${p}.site_id as id, ${p}.site_name as name, ${p}.site_address_line1 as "addressLine1", ${p}.site_city as city, ${p}.site_usage_class as "usageClass"`,
+  )} as site, ${object(`${p}.client_id as id, ${p}.client_name as name`)} as client, ${object(
+    `${p}.auditor_id as id, ${p}.auditor_name as name`,
+  )} as auditor, ${object(
+    `${p}.ruleset_version_id as "versionId", ${p}.ruleset_family as family, ${p}.ruleset_version as version, ${p}.ruleset_title as title`,
+  )} as ruleset, ${isoTextSql(`${p}.visited_on`)} as "visitedOn", ${isoTextSql(`${p}.submitted_at`)} as "submittedAt", ${isoTextSql(
+    `${p}.signed_at`,
+  )} as "signedAt", ${isoTextSql(`${p}.created_at`)} as "createdAt", ${isoTextSql(`${p}.updated_at`)} as "updatedAt") j)`;
+}
+
+/**
+ * What a summary is made of, over visibleAssessments' tables: the assessment's id and the `xmin`
+ * (the version) of the assessment, gate, site, client, auditor, ruleset version and ruleset rows.
+ */
+const summaryKeySql = `concat_ws(' ', a.id, a.xmin, g.xmin, s.xmin, c.xmin, u.xmin, rv.xmin, r.xmin)`;
+
+/**
+ * `listAssessments`' page as the JSON text `JSON.stringify` gives of it, built by the database
+ * (`GET /api/assessments`): no row is parsed, mapped and stringified again here.
+ */
+export async function listAssessmentsJson(
+  viewer: SessionUser,
+  timeZone: string,
+  query: AssessmentListQuery,
+): Promise<string> {
+  return fetchPageJson(
+    {
+      base: filteredAssessments(viewer, timeZone, query),
+      columns: summaryColumns(),
+      order: { column: sortColumns[query.sort.field], direction: query.sort.direction },
+      idColumn: 'a.id',
+      rowKeySql: summaryKeySql,
+      itemJsonSql: summaryJsonSql,
+      listKey: JSON.stringify([viewer.organisationId, viewer.role, viewer.clientId, timeZone, query]),
     },
     query,
   );

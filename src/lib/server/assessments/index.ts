@@ -10,6 +10,7 @@ export {
   discardAssessment,
   getAssessment,
   listAssessments,
+  listAssessmentsJson,
   patchAssessment,
   revisionLinks,
   type RequestFacts,

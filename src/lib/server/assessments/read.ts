@@ -17,6 +17,7 @@
  */
 import { LRUCache } from 'lru-cache';
 import type { Assessment } from '@/lib/api/assessments';
+import { compiledQuery } from '../compiled-query';
 import { db } from '../db';
 import type { SessionUser } from '../session-user';
 import { frozenDocuments, summaryColumns, toSummary, visibleAssessments, type SummaryRow } from './drafts';
@@ -57,26 +58,52 @@ function hold(id: string, xmin: string, raw: unknown): HeldRecord {
   return entry;
 }
 
+/**
+ * The read's statement, compiled once per viewer role (compiled-query.ts): who may see the row is
+ * visibleAssessments' to say, with the viewer's own values as parameters.
+ */
+const readQuery = compiledQuery(
+  ['viewerId', 'organisationId', 'email', 'name', 'clientId', 'id', 'knownXmin'] as const,
+  (knex, role, p) =>
+    visibleAssessments(knex, {
+      id: p.viewerId,
+      organisationId: p.organisationId,
+      email: p.email,
+      name: p.name,
+      role: role as SessionUser['role'],
+      clientId: p.clientId,
+    })
+      .andWhere('a.id', p.id)
+      .first([
+        ...summaryColumns(),
+        knex.raw('a.xmin::text as row_xmin'),
+        knex.raw(`case when a.status = 'draft' then a.answers end as answers`),
+        knex.raw(`case when a.status = 'draft' then a.measurements end as measurements`),
+        knex.raw(`case when a.status = 'draft' then a.observations end as observations`),
+        knex.raw(
+          `case when a.status <> 'draft' and a.xmin::text is distinct from ? then a.scored_record end as scored_record`,
+          [p.knownXmin],
+        ),
+      ]),
+);
+
 /** The assessment as the JSON text of `getAssessment`'s answer, or null when this viewer cannot see it. */
 export async function readAssessmentJson(
   viewer: SessionUser,
   id: string,
 ): Promise<{ body: string; rowVersion: number } | null> {
-  const knex = db();
   const known = held.get(id);
-  const row = await visibleAssessments(knex, viewer)
-    .andWhere('a.id', id)
-    .first<ReadRow | undefined>([
-      ...summaryColumns(),
-      knex.raw('a.xmin::text as row_xmin'),
-      knex.raw(`case when a.status = 'draft' then a.answers end as answers`),
-      knex.raw(`case when a.status = 'draft' then a.measurements end as measurements`),
-      knex.raw(`case when a.status = 'draft' then a.observations end as observations`),
-      knex.raw(
-        `case when a.status <> 'draft' and a.xmin::text is distinct from ? then a.scored_record end as scored_record`,
-        [known?.xmin ?? null],
-      ),
-    ]);
+  const row = (
+    await readQuery.raw(db(), viewer.role, {
+      viewerId: viewer.id,
+      organisationId: viewer.organisationId,
+      email: viewer.email,
+      name: viewer.name,
+      clientId: viewer.clientId,
+      id,
+      knownXmin: known?.xmin ?? null,
+    })
+  ).rows[0] as ReadRow | undefined;
   if (!row) return null;
   if (row.status === 'draft') {
     const draft: Assessment = {

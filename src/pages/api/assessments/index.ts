@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { AssessmentCreateSchema, AssessmentListQuerySchema } from '@/lib/api/assessments';
-import { createAssessment, listAssessments } from '@/lib/server/assessments';
+import { createAssessment, listAssessmentsJson } from '@/lib/server/assessments';
 import { clientAddressOf } from '@/lib/server/auth/client-address';
 import { assessmentReaders, assessmentWorkers } from '@/lib/server/domain-access';
 import { requireRole } from '@/lib/server/http/guard';
@@ -8,12 +8,18 @@ import { withIdempotency } from '@/lib/server/http/idempotency';
 import { etagOf } from '@/lib/server/http/row-version';
 import { handle, parseBody, parseQuery } from '@/lib/server/http/problem';
 
-/** Assessments filtered by status, verdict, gate kind, auditor, visit dates, gate, site or client. */
+/**
+ * Assessments filtered by status, verdict, gate kind, auditor, visit dates, gate, site or client:
+ * `listAssessments`' page, as JSON text the database builds (`listAssessmentsJson`).
+ */
 export const GET: APIRoute = handle(async ({ locals, url }) => {
   const { user, organisation } = requireRole(locals, ...assessmentReaders);
-  return Response.json(
-    await listAssessments(user, organisation.timeZone, parseQuery(AssessmentListQuerySchema, url)),
+  const body = await listAssessmentsJson(
+    user,
+    organisation.timeZone,
+    parseQuery(AssessmentListQuerySchema, url),
   );
+  return new Response(body, { headers: { 'content-type': 'application/json' } });
 });
 
 /**
