@@ -563,7 +563,7 @@ async function saveOver(
         )[0]
       : await visibleAssessments(knex, viewer, 'saved as a')
           .with('saved', (query) => update(query).returning(['*', knex.raw('xmin::text as row_xmin')]))
-          .first<SavedRow | undefined>([...summaryColumns(), 'a.row_xmin']);
+          .first<SavedRow | undefined>([...fullColumns(), 'a.row_xmin']);
   if (!saved) return 'unmatched';
   const key = knownKey(viewer.organisationId, id);
   const held = knownDrafts.get(key);
@@ -588,13 +588,9 @@ async function saveOver(
       updatedAt: iso(saved.updated_at),
       ...documents,
     };
-  return {
-    ...toSummary(saved as SummaryRow),
-    ...documents,
-    gateSnapshot: null,
-    result: null,
-    resultSha256: null,
-  };
+  // The full answer is GET's, byte for byte: the documents as PostgreSQL stores them (jsonb
+  // orders an object's keys its own way), not as merged here.
+  return toAssessment(saved as unknown as FullRow);
 }
 
 /**
