@@ -10,13 +10,9 @@
  * +13:45); the HTTP part runs a second server whose database connection goes through a relay
  * that counts the bytes PostgreSQL sends.
  */
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { AssessmentListQuerySchema } from '../../src/lib/api/assessments';
 import type { SessionUser } from '../../src/lib/server/session-user';
-import { freePort, startAppServer, type RunningServer } from '../../src/cli/services';
 import {
   closeTestDb,
   createOrganisation,
@@ -28,7 +24,7 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { currentVersion, insertClient, insertDraft, insertGate, insertSite } from './support/domain';
-import { startTcpProxy, type TcpProxy } from './support/tcp-proxy';
+import { startCountingServer, type CountingServer } from './support/counting-server';
 
 // The modules under test read DATABASE_URL when they first connect: here with a session time zone
 // whose offset has minutes, so nothing can lean on the database answering in UTC.
@@ -40,9 +36,7 @@ const { forgetHeldPages } = await import('../../src/lib/server/listing');
 const { closeDatabase, db } = await import('../../src/lib/server/db');
 
 const family = 'north-american-gate';
-const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-list-'));
-let proxy: TcpProxy;
-let server: RunningServer;
+let counting: CountingServer;
 let org: FixtureOrganisation;
 let owner: TestClient;
 let gateId: string;
@@ -63,29 +57,11 @@ const queryOf = (search: string) =>
 
 /** The list on the counting server with the owner's cookie; the answer and the bytes PostgreSQL sent meanwhile. */
 async function listOnCounted(search: string, client: TestClient = owner) {
-  const before = proxy.bytesFromTarget;
-  const res = await fetch(`${server.url}/api/assessments?${search}`, {
-    headers: { cookie: client.cookie, origin: server.url, accept: 'application/json' },
-  });
-  const text = await res.text();
-  return { res, text, databaseBytes: proxy.bytesFromTarget - before };
+  return counting.get(`/api/assessments?${search}`, client);
 }
 
 beforeAll(async () => {
-  const dbUrl = new URL(inject('databaseUrl'));
-  proxy = await startTcpProxy(dbUrl.hostname, Number(dbUrl.port));
-  const viaProxy = new URL(dbUrl);
-  viaProxy.port = String(proxy.port);
-  server = await startAppServer({
-    port: await freePort(),
-    quiet: true,
-    env: {
-      ...inject('serverEnv'),
-      DATABASE_URL: viaProxy.toString(),
-      OUTBOX_WORKER: 'off',
-      LATCHWELL_DATA_DIR: dataDir,
-    },
-  });
+  counting = await startCountingServer('list');
 
   org = await createOrganisation('list');
   owner = await signIn(org.owner.email, fixturePassword);
@@ -145,11 +121,9 @@ beforeAll(async () => {
 }, 120_000);
 
 afterAll(async () => {
-  await server?.stop();
-  await proxy?.close();
+  await counting?.stop();
   await closeDatabase();
   await closeTestDb();
-  fs.rmSync(dataDir, { recursive: true, force: true });
 });
 
 describe('the assessment list as JSON text', () => {

@@ -7,11 +7,7 @@
  * A second server instance runs here with its database connection through a relay that counts
  * the bytes PostgreSQL sends.
  */
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { freePort, startAppServer, type RunningServer } from '../../src/cli/services';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   createOrganisation,
   fixturePassword,
@@ -22,12 +18,10 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { insertClient, insertGate, insertSite } from './support/domain';
-import { startTcpProxy, type TcpProxy } from './support/tcp-proxy';
+import { startCountingServer, type CountingServer } from './support/counting-server';
 
 const family = 'north-american-gate';
-const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'latchwell-read-'));
-let proxy: TcpProxy;
-let server: RunningServer;
+let counting: CountingServer;
 let org: FixtureOrganisation;
 let owner: TestClient;
 let assessmentId: string;
@@ -36,29 +30,11 @@ let submittedText: string;
 
 /** A GET on the counting instance with the owner's cookie; returns the answer and the bytes the database sent meanwhile. */
 async function readOnCounted(id: string, client: TestClient = owner) {
-  const before = proxy.bytesFromTarget;
-  const res = await fetch(`${server.url}/api/assessments/${id}`, {
-    headers: { cookie: client.cookie, origin: server.url, accept: 'application/json' },
-  });
-  const text = await res.text();
-  return { res, text, databaseBytes: proxy.bytesFromTarget - before };
+  return counting.get(`/api/assessments/${id}`, client);
 }
 
 beforeAll(async () => {
-  const dbUrl = new URL(inject('databaseUrl'));
-  proxy = await startTcpProxy(dbUrl.hostname, Number(dbUrl.port));
-  const viaProxy = new URL(dbUrl);
-  viaProxy.port = String(proxy.port);
-  server = await startAppServer({
-    port: await freePort(),
-    quiet: true,
-    env: {
-      ...inject('serverEnv'),
-      DATABASE_URL: viaProxy.toString(),
-      OUTBOX_WORKER: 'off',
-      LATCHWELL_DATA_DIR: dataDir,
-    },
-  });
+  counting = await startCountingServer('read');
 
   org = await createOrganisation('read');
   owner = await signIn(org.owner.email, fixturePassword);
@@ -88,9 +64,7 @@ beforeAll(async () => {
 }, 120_000);
 
 afterAll(async () => {
-  await server?.stop();
-  await proxy?.close();
-  fs.rmSync(dataDir, { recursive: true, force: true });
+  await counting?.stop();
 });
 
 describe('reading one assessment', () => {
