@@ -41,6 +41,20 @@ export async function fetchPage<Row, Item>(
 }
 
 /**
+ * The list's total from the page's `count(*) over ()`; a page past the end has no row to carry
+ * it, so only then is it counted on its own (and page 1 with no rows is 0).
+ */
+async function pageTotal(
+  base: Knex.QueryBuilder,
+  rows: readonly { page_total: string | number }[],
+  page: number,
+): Promise<number> {
+  if (rows.length > 0) return Number(rows[0]!.page_total);
+  if (page === 1) return 0;
+  return Number(((await base.clone().count({ total: '*' })) as { total: string | number }[])[0]!.total);
+}
+
+/**
  * fetchPage in one statement: each row carries the total (`count(*) over ()`, counted before
  * the limit), so a page costs one round trip instead of two. A page with no rows says nothing
  * of the total, so only a page past the end asks for it apart. Suits lists whose page needs a
@@ -59,12 +73,7 @@ export async function fetchPageCounted<Row, Item>(
     .orderByRaw(`?? ${order.direction} ${nulls}, ?? ${order.direction}`, [order.column, idColumn])
     .limit(request.pageSize)
     .offset((request.page - 1) * request.pageSize)) as (Row & { page_total: string | number })[];
-  const total =
-    rows.length > 0
-      ? Number(rows[0].page_total)
-      : request.page === 1
-        ? 0
-        : Number(((await base.clone().count({ total: '*' })) as { total: string | number }[])[0].total);
+  const total = await pageTotal(base, rows, request.page);
   return { items: rows.map(map), page: request.page, pageSize: request.pageSize, total };
 }
 
@@ -186,12 +195,7 @@ export async function fetchPageJson(plan: JsonListPlan, request: PageRequest): P
       });
     }
   }
-  const total =
-    rows.length > 0
-      ? Number(rows[0].page_total)
-      : request.page === 1
-        ? 0
-        : Number(((await base.clone().count({ total: '*' })) as { total: string | number }[])[0].total);
+  const total = await pageTotal(base, rows, request.page);
   const answered = new Map<string, string>();
   let items = '';
   for (const row of rows) {
