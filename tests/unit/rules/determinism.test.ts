@@ -1,5 +1,4 @@
 import { createHash } from 'node:crypto';
-import { configure } from 'safe-stable-stringify';
 import { describe, expect, it } from 'vitest';
 import {
   AnswerSchema,
@@ -13,33 +12,14 @@ import {
   score,
   sha256Hex,
   scoreParsed,
-  type AssessmentInput,
-  type RulesetVersion,
 } from '@/lib/rules';
 import { euSwingGate } from './fixtures/european-powered-gate';
 import { naSwingGate } from './fixtures/north-american-gate';
 import { applyPatch, len, YES } from './support/inputs';
 import { generateInput } from './support/generate-input';
 import { createPrng } from './support/prng';
+import { recordForm, referenceJson } from './support/record-form';
 import { shipped, shippedRulesets } from './support/shipped';
-
-/** An independent deterministic JSON writer from npm: keys sorted, no whitespace. */
-const referenceJson = configure({ deterministic: true, bigint: false, circularValue: Error });
-
-/**
- * The record form results hash (written here independently of src/lib/rules/input-hash.ts): the
- * answers split into `answers` (the version's yes/no/na questions) and `choices` (the rest),
- * as the input looked when answers and choices were separate members; -0 written as 0.
- */
-function recordForm(input: AssessmentInput, version: RulesetVersion): unknown {
-  const yesNo = new Set(version.questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key));
-  const { answers, ...rest } = JSON.parse(JSON.stringify(input)) as AssessmentInput;
-  if (!answers) return rest;
-  const split: Record<'answers' | 'choices', Record<string, unknown>> = { answers: {}, choices: {} };
-  for (const [key, entry] of Object.entries(answers))
-    split[yesNo.has(key) ? 'answers' : 'choices'][key] = entry;
-  return { ...rest, ...split };
-}
 
 /** The same object with every key order reversed, all the way down. */
 function reverseKeys(value: unknown): unknown {

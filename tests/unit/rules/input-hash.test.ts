@@ -5,7 +5,6 @@
  * members the schema does not know at every level, members set to undefined, values of the wrong
  * type, text that needs escaping, -0, keys that are not question keys.
  */
-import { configure } from 'safe-stable-stringify';
 import { describe, expect, it } from 'vitest';
 import {
   AssessmentInputSchema,
@@ -13,35 +12,22 @@ import {
   inputRecordJson,
   scoreParsed,
   type AssessmentInput,
-  type RulesetVersion,
 } from '@/lib/rules';
 import { generateInput } from './support/generate-input';
 import { createPrng, type Prng } from './support/prng';
+import { recordForm, referenceJson } from './support/record-form';
 import { shippedRulesets } from './support/shipped';
 
-const referenceJson = configure({ deterministic: true, bigint: false, circularValue: Error });
-
-/** The record form, written independently: answers split into yes/no/na `answers` and the rest as `choices`. */
-function recordForm(input: AssessmentInput, version: RulesetVersion): unknown {
-  const yesNo = new Set(version.questions.filter((q) => q.answerType === 'yes_no_na').map((q) => q.key));
-  const { answers, ...rest } = JSON.parse(JSON.stringify(input)) as AssessmentInput;
-  const known = [
-    'measurements',
-    'entrapment',
-    'forceTests',
-    'swingGeometry',
-    'hrnOverrides',
-    'profile',
-    'site',
-  ];
-  const form: Record<string, unknown> = {};
-  for (const name of known) if (name in rest) form[name] = (rest as Record<string, unknown>)[name];
-  if (!answers) return form;
-  const split: Record<'answers' | 'choices', Record<string, unknown>> = { answers: {}, choices: {} };
-  for (const [key, entry] of Object.entries(answers))
-    split[yesNo.has(key) ? 'answers' : 'choices'][key] = entry;
-  return { ...form, ...split };
-}
+/** The members of an input the record form writes, besides its answers. */
+const RECORD_MEMBERS = [
+  'measurements',
+  'entrapment',
+  'forceTests',
+  'swingGeometry',
+  'hrnOverrides',
+  'profile',
+  'site',
+];
 
 const ODD_TEXT = [
   'Quote " and backslash \\',
@@ -120,7 +106,7 @@ describe('the input record writer', () => {
       const compiled = compileRuleset(ruleset.version, ruleset.contentSha256);
       const generated = generateInput(rng, ruleset.version);
       const parsed = AssessmentInputSchema.parse(generated);
-      const expected = referenceJson(recordForm(parsed, ruleset.version));
+      const expected = referenceJson(recordForm(parsed, ruleset.version, RECORD_MEMBERS));
       expect(inputRecordJson(parsed, compiled)).toBe(expected);
       expect(inputRecordJson(generated, compiled)).toBe(expected);
       expect(inputRecordJson(reverseKeys(parsed) as AssessmentInput, compiled)).toBe(expected);
@@ -144,7 +130,7 @@ describe('the input record writer', () => {
           ...input.hrnOverrides,
         };
       bend(rng, input);
-      const expected = referenceJson(recordForm(input, ruleset.version));
+      const expected = referenceJson(recordForm(input, ruleset.version, RECORD_MEMBERS));
       expect(inputRecordJson(input, compiled)).toBe(expected);
       expect(inputRecordJson(reverseKeys(input) as AssessmentInput, compiled)).toBe(expected);
     }
