@@ -18,20 +18,8 @@ import { naSwingGate } from './fixtures/north-american-gate';
 import { applyPatch, len, YES } from './support/inputs';
 import { generateInput } from './support/generate-input';
 import { createPrng } from './support/prng';
-import { recordForm, referenceJson } from './support/record-form';
+import { recordForm, referenceJson, reverseKeys } from './support/record-form';
 import { shipped, shippedRulesets } from './support/shipped';
-
-/** The same object with every key order reversed, all the way down. */
-function reverseKeys(value: unknown): unknown {
-  if (Array.isArray(value)) return value.map(reverseKeys);
-  if (value && typeof value === 'object')
-    return Object.fromEntries(
-      Object.entries(value)
-        .reverse()
-        .map(([k, v]) => [k, reverseKeys(v)]),
-    );
-  return value;
-}
 
 describe('canonicalJson', () => {
   it('sorts keys at every depth and drops undefined members', () => {

@@ -15,7 +15,7 @@ import {
 } from '@/lib/rules';
 import { generateInput } from './support/generate-input';
 import { createPrng, type Prng } from './support/prng';
-import { recordForm, referenceJson } from './support/record-form';
+import { recordForm, referenceJson, reverseKeys } from './support/record-form';
 import { shippedRulesets } from './support/shipped';
 
 /** The members of an input the record form writes, besides its answers. */
@@ -82,18 +82,6 @@ function bend(rng: Prng, input: AssessmentInput): void {
         target['0digit'] = 'odd key';
     }
   }
-}
-
-/** The same object with every key order reversed, all the way down. */
-function reverseKeys(value: unknown): unknown {
-  if (Array.isArray(value)) return value.map(reverseKeys);
-  if (value && typeof value === 'object')
-    return Object.fromEntries(
-      Object.entries(value)
-        .reverse()
-        .map(([k, v]) => [k, reverseKeys(v)]),
-    );
-  return value;
 }
 
 describe('the input record writer', () => {

@@ -28,3 +28,15 @@ export function recordForm(
     split[yesNo.has(key) ? 'answers' : 'choices'][key] = entry;
   return { ...form, ...split };
 }
+
+/** The same object with every key order reversed, all the way down. */
+export function reverseKeys(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(reverseKeys);
+  if (value && typeof value === 'object')
+    return Object.fromEntries(
+      Object.entries(value)
+        .reverse()
+        .map(([k, v]) => [k, reverseKeys(v)]),
+    );
+  return value;
+}
