@@ -18,6 +18,7 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { insertClient, insertGate, insertSite } from './support/domain';
+import { saveNewDraft } from './support/draft-over-http';
 import { startCountingServer, type CountingServer } from './support/counting-server';
 
 const family = 'north-american-gate';
@@ -41,13 +42,10 @@ beforeAll(async () => {
   const clientId = await insertClient(org.id, { name: 'Harrowby Lettings' });
   const siteId = await insertSite(org.id, clientId, { address_line1: '3 Fenwick Row', city: 'Oldbridge' });
   const gateId = await insertGate(org.id, siteId, { label: 'Yard gate', width_mm: 3660 });
-  const draft = await owner.json('POST', '/api/assessments', { gateId, family, purpose: 'inspection' });
-  expect(draft.status, await draft.clone().text()).toBe(201);
-  assessmentId = (await draft.json()).id;
-  const saved = await owner.fetch(`/api/assessments/${assessmentId}`, {
-    method: 'PATCH',
-    headers: { 'content-type': 'application/merge-patch+json', 'if-match': '"1"' },
-    body: JSON.stringify({
+  const { id, saved } = await saveNewDraft(
+    owner,
+    { gateId, family },
+    {
       answers: { placardsLegible: { value: 'no' } },
       observations: {
         site: {
@@ -57,8 +55,9 @@ beforeAll(async () => {
           slopeAcrossSwing: false,
         },
       },
-    }),
-  });
+    },
+  );
+  assessmentId = id;
   expect(saved.status).toBe(200);
   savedText = await saved.text();
 }, 120_000);

@@ -11,7 +11,6 @@
  */
 import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
-import http from 'node:http';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
@@ -28,6 +27,7 @@ import {
   testDb,
   type FixtureOrganisation,
 } from './support/fixtures';
+import { rawRequest, type RawResponse } from './support/raw-http';
 import { seedScoredAssessment } from './support/signing-seed';
 import { extractPdfText } from '../support/pdf-text';
 
@@ -83,44 +83,18 @@ afterAll(async () => {
   if (mailDir) fs.rmSync(mailDir, { recursive: true, force: true });
 });
 
-interface RawAnswer {
-  status: number;
-  headers: http.IncomingHttpHeaders;
-  body: string;
-}
-
 /** One HTTP request with exactly the headers given (fetch will not forge Host). */
-function raw(
+async function raw(
   base: string,
   pathname: string,
   init: { method?: string; headers?: Record<string, string>; body?: string } = {},
-): Promise<RawAnswer> {
-  const url = new URL(pathname, base);
-  return new Promise((resolve, reject) => {
-    const req = http.request(
-      {
-        host: url.hostname,
-        port: url.port,
-        path: `${url.pathname}${url.search}`,
-        method: init.method ?? 'GET',
-        headers: { 'x-forwarded-for': testAddress(), ...init.headers },
-      },
-      (res) => {
-        const chunks: Buffer[] = [];
-        res.on('data', (c: Buffer) => chunks.push(c));
-        res.on('end', () =>
-          resolve({
-            status: res.statusCode ?? 0,
-            headers: res.headers,
-            body: Buffer.concat(chunks).toString('utf8'),
-          }),
-        );
-        res.on('error', reject);
-      },
-    );
-    req.on('error', reject);
-    req.end(init.body);
+): Promise<{ status: number; headers: RawResponse['headers']; body: string }> {
+  const answer = await rawRequest(new URL(pathname, base), {
+    method: init.method,
+    headers: { 'x-forwarded-for': testAddress(), ...init.headers },
+    body: init.body,
   });
+  return { status: answer.status, headers: answer.headers, body: answer.text() };
 }
 
 function json(

@@ -20,6 +20,7 @@ import {
   type TestClient,
 } from './support/fixtures';
 import { insertClient, insertGate, insertSite } from './support/domain';
+import { saveNewDraft } from './support/draft-over-http';
 
 const family = 'north-american-gate';
 
@@ -51,13 +52,10 @@ beforeAll(async () => {
   label = `Courtyard gate ${Date.now().toString(36)}`;
   gateId = await insertGate(org.id, siteId, { label, width_mm: 3660 });
 
-  const draft = await owner.json('POST', '/api/assessments', { gateId, family, purpose: 'inspection' });
-  expect(draft.status, await draft.clone().text()).toBe(201);
-  assessmentId = (await draft.json()).id;
-  const saved = await owner.fetch(`/api/assessments/${assessmentId}`, {
-    method: 'PATCH',
-    headers: { 'content-type': 'application/merge-patch+json', 'if-match': '"1"' },
-    body: JSON.stringify({
+  const { id, saved } = await saveNewDraft(
+    owner,
+    { gateId, family },
+    {
       answers: { placardsLegible: { value: 'no' } },
       observations: {
         site: {
@@ -67,8 +65,9 @@ beforeAll(async () => {
           slopeAcrossSwing: false,
         },
       },
-    }),
-  });
+    },
+  );
+  assessmentId = id;
   expect(saved.status, await saved.clone().text()).toBe(200);
   const submitted = await owner.json('POST', `/api/assessments/${assessmentId}/submit`);
   expect(submitted.status, await submitted.clone().text()).toBe(200);

@@ -5,34 +5,15 @@
  * bare 400, no spelling of a path serves anything outside the client folder, and HEAD and
  * OPTIONS on pages and the API get Astro's answers.
  */
-import http from 'node:http';
 import { describe, expect, inject, it } from 'vitest';
+import { rawRequest } from './support/raw-http';
 
 const base = new URL(inject('baseUrl'));
 
 /** A request with the path exactly as given (fetch and URL would normalise `..` and escapes). */
-function exact(method: string, rawPath: string) {
-  return new Promise<{ status: number; headers: http.IncomingHttpHeaders; body: string }>(
-    (resolve, reject) => {
-      const request = http.request(
-        { host: base.hostname, port: base.port, method, path: rawPath, agent: false },
-        (res) => {
-          const chunks: Buffer[] = [];
-          res.on('data', (c: Buffer) => chunks.push(c));
-          res.on('end', () =>
-            resolve({
-              status: res.statusCode ?? 0,
-              headers: res.headers,
-              body: Buffer.concat(chunks).toString('utf8'),
-            }),
-          );
-          res.on('error', reject);
-        },
-      );
-      request.on('error', reject);
-      request.end();
-    },
-  );
+async function exact(method: string, rawPath: string) {
+  const answer = await rawRequest(base, { method, rawPath });
+  return { status: answer.status, headers: answer.headers, body: answer.text() };
 }
 
 describe('the production server', () => {

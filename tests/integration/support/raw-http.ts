@@ -1,7 +1,8 @@
 /**
  * HTTP over node:http for what fetch cannot do: send from a chosen loopback address (so the
- * server sees a socket address of the test's own), and stream a chunked body of any size
- * without a Content-Length, stopping as soon as the server answers.
+ * server sees a socket address of the test's own), stream a chunked body of any size without a
+ * Content-Length, stopping as soon as the server answers, forge Host, and send a path exactly
+ * as given.
  */
 import http from 'node:http';
 
@@ -27,6 +28,8 @@ export interface RawRequest {
   fill?: number;
   /** The local (source) address to connect from, e.g. 127.31.4.9. */
   localAddress?: string;
+  /** The request target exactly as sent, instead of the URL's (URL normalises `..` and escapes). */
+  rawPath?: string;
 }
 
 /** A random loopback address other than 127.0.0.1, as the socket address of one test's client. */
@@ -54,7 +57,7 @@ export function rawRequest(url: string | URL, options: RawRequest = {}): Promise
       {
         host: target.hostname,
         port: target.port,
-        path: `${target.pathname}${target.search}`,
+        path: options.rawPath ?? `${target.pathname}${target.search}`,
         method: options.method ?? 'GET',
         headers,
         localAddress: options.localAddress,
